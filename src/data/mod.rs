@@ -1,0 +1,319 @@
+//! Data stage: reads a CSV file into a table, then extracts the response and
+//! factor columns an analysis needs, with missing values counted and every
+//! number kept to its written precision.
+
+pub mod csv;
+pub mod decimal;
+
+use decimal::{Number, parse_number, shift_column};
+
+/// How a CSV file is written.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CsvFormat {
+    pub delimiter: u8,
+    /// Numbers written with a decimal comma (3,14).
+    pub decimal_comma: bool,
+    /// Cell texts that mean "no value" (compared after trimming, ignoring case).
+    pub missing: Vec<String>,
+}
+
+impl Default for CsvFormat {
+    fn default() -> Self {
+        CsvFormat {
+            delimiter: b',',
+            decimal_comma: false,
+            missing: DEFAULT_MISSING.iter().map(|s| s.to_string()).collect(),
+        }
+    }
+}
+
+/// Tokens read as missing unless the block says otherwise.
+pub const DEFAULT_MISSING: [&str; 6] = ["", "NA", "N/A", "NaN", ".", "-"];
+
+/// A problem found in a data file: where, what, and what to do.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DataError {
+    pub line: Option<usize>,
+    pub column: Option<usize>,
+    pub message: String,
+    pub hint: Option<String>,
+}
+
+impl DataError {
+    fn at(line: usize, message: impl Into<String>) -> Self {
+        DataError {
+            line: Some(line),
+            column: None,
+            message: message.into(),
+            hint: None,
+        }
+    }
+
+    fn hint(mut self, hint: impl Into<String>) -> Self {
+        self.hint = Some(hint.into());
+        self
+    }
+}
+
+/// A parsed CSV file: a header and records of equal width.
+#[derive(Debug, Clone)]
+pub struct Table {
+    pub header: Vec<String>,
+    pub header_line: usize,
+    pub rows: Vec<csv::Record>,
+}
+
+impl Table {
+    /// Parses CSV bytes, checking that every record has the header's width.
+    pub fn parse(bytes: &[u8], format: &CsvFormat) -> Result<Table, DataError> {
+        let mut records = csv::parse_records(bytes, format.delimiter).map_err(|e| DataError {
+            line: Some(e.line),
+            column: None,
+            message: e.message,
+            hint: e.hint,
+        })?;
+        if records.is_empty() {
+            return Err(DataError {
+                line: None,
+                column: None,
+                message: "the file is empty".into(),
+                hint: None,
+            }
+            .hint(
+                "a data file needs a header row naming its columns, then one row per observation",
+            ));
+        }
+        let head = records.remove(0);
+        let header: Vec<String> = head.fields.iter().map(|h| h.trim().to_string()).collect();
+        for (i, name) in header.iter().enumerate() {
+            if name.is_empty() {
+                return Err(DataError {
+                    column: Some(i + 1),
+                    ..DataError::at(
+                        head.line,
+                        format!("column {} has no name in the header row", i + 1),
+                    )
+                });
+            }
+            if header[..i].contains(name) {
+                return Err(DataError::at(
+                    head.line,
+                    format!("the header names column `{name}` twice"),
+                ));
+            }
+        }
+        if header.len() == 1
+            && format.delimiter == b','
+            && (header[0].contains(';') || header[0].contains('\t'))
+        {
+            return Err(DataError::at(head.line, "the header has a single column".to_string())
+                .hint("the file looks semicolon- or tab-separated: add `delimiter: semicolon` or `delimiter: tab` to the block"));
+        }
+        for r in &records {
+            if r.fields.len() != header.len() {
+                return Err(DataError::at(
+                    r.line,
+                    format!("found {} fields where the header has {}", r.fields.len(), header.len()),
+                )
+                .hint(if format.delimiter == b',' && !format.decimal_comma {
+                    "check for an unquoted comma inside a value (quote the field), or a decimal comma (add `decimal: comma` and `delimiter: semicolon`)"
+                } else {
+                    "every row needs one value per header column"
+                }));
+            }
+        }
+        Ok(Table {
+            header,
+            header_line: head.line,
+            rows: records,
+        })
+    }
+
+    /// Index of a named column, or an error that suggests the nearest name.
+    pub fn column(&self, name: &str) -> Result<usize, DataError> {
+        if let Some(i) = self.header.iter().position(|h| h == name) {
+            return Ok(i);
+        }
+        let listed = self
+            .header
+            .iter()
+            .map(|h| format!("`{h}`"))
+            .collect::<Vec<_>>()
+            .join(", ");
+        let hint = if let Some(h) = self.header.iter().find(|h| h.eq_ignore_ascii_case(name)) {
+            format!("column names are case-sensitive: did you mean `{h}`?")
+        } else if let Some(near) =
+            crate::diag::nearest(name, self.header.iter().map(String::as_str))
+        {
+            format!("did you mean `{near}`? The columns are {listed}")
+        } else {
+            format!("the columns are {listed}")
+        };
+        Err(DataError::at(self.header_line, format!("no column named `{name}`")).hint(hint))
+    }
+}
+
+/// One level of the factor: its observations as offsets from the column origin.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LevelData {
+    pub name: String,
+    pub offsets: Vec<f64>,
+    /// File line of each observation, for diagnostics that name rows.
+    pub lines: Vec<usize>,
+}
+
+/// A row left out of the analysis, and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Exclusion {
+    pub line: usize,
+    pub reason: String,
+}
+
+/// A response column split by one factor.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FactorResponse {
+    /// Levels in order of first appearance in the file.
+    pub levels: Vec<LevelData>,
+    /// Every offset is relative to this value (see `decimal`).
+    pub origin: f64,
+    /// Most digits after the decimal point among the response values.
+    pub decimals: u32,
+    pub excluded: Vec<Exclusion>,
+}
+
+/// Extracts `response` split by `factor` from a table.
+pub fn factor_response(
+    table: &Table,
+    response: &str,
+    factor: &str,
+    format: &CsvFormat,
+) -> Result<FactorResponse, DataError> {
+    let yi = table.column(response)?;
+    let fi = table.column(factor)?;
+    let is_missing = |cell: &str| {
+        let t = cell.trim();
+        format.missing.iter().any(|m| m.eq_ignore_ascii_case(t))
+    };
+    let mut numbers: Vec<Number> = Vec::with_capacity(table.rows.len());
+    let mut keys: Vec<(usize, usize)> = Vec::with_capacity(table.rows.len());
+    let mut names: Vec<String> = Vec::new();
+    let mut excluded = Vec::new();
+    for row in &table.rows {
+        let (y, g) = (&row.fields[yi], row.fields[fi].trim());
+        if is_missing(g) {
+            excluded.push(Exclusion {
+                line: row.line,
+                reason: format!("`{factor}` is missing"),
+            });
+            continue;
+        }
+        if is_missing(y) {
+            excluded.push(Exclusion {
+                line: row.line,
+                reason: format!("`{response}` is missing"),
+            });
+            continue;
+        }
+        let text = if format.decimal_comma {
+            y.trim().replace(',', ".")
+        } else {
+            y.trim().to_string()
+        };
+        let Some(number) = parse_number(&text) else {
+            let lowered = text.to_ascii_lowercase();
+            let non_finite =
+                ["inf", "+inf", "-inf", "infinity", "-infinity"].contains(&lowered.as_str());
+            let hint = if non_finite {
+                "infinite values cannot enter an analysis of variance; correct or remove the row"
+                    .to_string()
+            } else if !format.decimal_comma && y.contains(',') {
+                "for a decimal comma add `decimal: comma` to the block".to_string()
+            } else {
+                format!(
+                    "write a number, or one of the missing-value markers {}",
+                    quote_list(&format.missing)
+                )
+            };
+            return Err(DataError {
+                line: Some(row.line),
+                column: Some(yi + 1),
+                message: format!("`{response}` must be a number, found `{}`", y.trim()),
+                hint: Some(hint),
+            });
+        };
+        let level = match names.iter().position(|n| n == g) {
+            Some(i) => i,
+            None => {
+                names.push(g.to_string());
+                names.len() - 1
+            }
+        };
+        numbers.push(number);
+        keys.push((level, row.line));
+    }
+    let decimals = numbers.iter().map(|n| n.decimals()).max().unwrap_or(0);
+    let (origin, offsets) = shift_column(&numbers);
+    let mut levels: Vec<LevelData> = names
+        .into_iter()
+        .map(|name| LevelData {
+            name,
+            offsets: Vec::new(),
+            lines: Vec::new(),
+        })
+        .collect();
+    for ((level, line), offset) in keys.into_iter().zip(offsets) {
+        levels[level].offsets.push(offset);
+        levels[level].lines.push(line);
+    }
+    Ok(FactorResponse {
+        levels,
+        origin,
+        decimals,
+        excluded,
+    })
+}
+
+fn quote_list(items: &[String]) -> String {
+    items
+        .iter()
+        .map(|m| format!("`{m}`"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn splits_by_level_and_counts_missing() {
+        let text = b"y,g\n1.5,a\nNA,b\n2.25,b\n3,a\n4,\n";
+        let table = Table::parse(text, &CsvFormat::default()).expect("table");
+        let fr = factor_response(&table, "y", "g", &CsvFormat::default()).expect("data");
+        assert_eq!(fr.levels.len(), 2);
+        assert_eq!(fr.levels[0].lines, vec![2, 5]);
+        assert_eq!(fr.excluded.len(), 2);
+        assert_eq!(fr.decimals, 2);
+        assert_eq!(fr.origin + fr.levels[1].offsets[0], 2.25);
+    }
+
+    #[test]
+    fn text_in_the_response_names_line_and_column() {
+        let table = Table::parse(b"g,y\na,1\na,x\n", &CsvFormat::default()).expect("table");
+        let err = factor_response(&table, "y", "g", &CsvFormat::default()).unwrap_err();
+        assert_eq!((err.line, err.column), (Some(3), Some(2)));
+    }
+
+    #[test]
+    fn decimal_comma() {
+        let format = CsvFormat {
+            delimiter: b';',
+            decimal_comma: true,
+            ..CsvFormat::default()
+        };
+        let table = Table::parse("g;y\na;3,14\nb;2,5\n".as_bytes(), &format).expect("table");
+        let fr = factor_response(&table, "y", "g", &format).expect("data");
+        assert_eq!(fr.origin, 3.14);
+        assert_eq!(fr.levels[1].offsets[0], -0.64);
+    }
+}

@@ -1,0 +1,153 @@
+//! Diagnostics: an error or warning is a value with a place, a message and
+//! hints, rendered like a compiler message.
+
+use std::fmt;
+
+/// Where a diagnostic points: a file (as the user named it), and a 1-based
+/// line and column when known.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Place {
+    pub file: String,
+    pub line: Option<usize>,
+    pub column: Option<usize>,
+}
+
+/// A user-facing error.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Diagnostic {
+    pub place: Option<Place>,
+    pub message: String,
+    /// The source line the place points at, shown under the message.
+    pub snippet: Option<String>,
+    pub hints: Vec<String>,
+    /// Secondary places, e.g. the block that named a broken data file.
+    pub notes: Vec<String>,
+}
+
+impl Diagnostic {
+    pub fn new(message: impl Into<String>) -> Self {
+        Diagnostic {
+            place: None,
+            message: message.into(),
+            snippet: None,
+            hints: Vec::new(),
+            notes: Vec::new(),
+        }
+    }
+
+    pub fn at(mut self, file: &str, line: Option<usize>, column: Option<usize>) -> Self {
+        self.place = Some(Place {
+            file: file.to_string(),
+            line,
+            column,
+        });
+        self
+    }
+
+    pub fn snippet(mut self, text: impl Into<String>) -> Self {
+        self.snippet = Some(text.into());
+        self
+    }
+
+    pub fn hint(mut self, hint: impl Into<String>) -> Self {
+        self.hints.push(hint.into());
+        self
+    }
+
+    pub fn note(mut self, note: impl Into<String>) -> Self {
+        self.notes.push(note.into());
+        self
+    }
+
+    /// `file:line:col: error: message`, one line, for editors and CI logs.
+    pub fn short(&self) -> String {
+        match &self.place {
+            Some(p) => format!("{}: error: {}", place_text(p), self.message),
+            None => format!("error: {}", self.message),
+        }
+    }
+}
+
+fn place_text(p: &Place) -> String {
+    match (p.line, p.column) {
+        (Some(l), Some(c)) => format!("{}:{l}:{c}", p.file),
+        (Some(l), None) => format!("{}:{l}", p.file),
+        _ => p.file.clone(),
+    }
+}
+
+impl fmt::Display for Diagnostic {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        writeln!(f, "error: {}", self.message)?;
+        if let Some(p) = &self.place {
+            let gutter = p.line.map(|l| l.to_string().len()).unwrap_or(1);
+            let pad = " ".repeat(gutter);
+            writeln!(f, "{pad}--> {}", place_text(p))?;
+            if let (Some(line), Some(text)) = (p.line, &self.snippet) {
+                writeln!(f, "{pad} |")?;
+                writeln!(f, "{line} | {text}")?;
+                if let Some(col) = p.column {
+                    let offset: usize = text.chars().take(col.saturating_sub(1)).map(|_| 1).sum();
+                    writeln!(f, "{pad} | {}^", " ".repeat(offset))?;
+                } else {
+                    writeln!(f, "{pad} |")?;
+                }
+            }
+        }
+        for h in &self.hints {
+            writeln!(f, "  = hint: {h}")?;
+        }
+        for n in &self.notes {
+            writeln!(f, "  = note: {n}")?;
+        }
+        Ok(())
+    }
+}
+
+impl std::error::Error for Diagnostic {}
+
+/// The candidate closest to `word` by edit distance, if it is close enough to
+/// be a plausible typo (at most a third of the word's length, and at least 1).
+pub fn nearest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
+    let limit = (word.chars().count() / 3).max(1);
+    candidates
+        .into_iter()
+        .map(|c| {
+            (
+                strsim::damerau_levenshtein(&word.to_lowercase(), &c.to_lowercase()),
+                c,
+            )
+        })
+        .filter(|(d, _)| *d <= limit)
+        .min_by_key(|(d, _)| *d)
+        .map(|(_, c)| c)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn suggests_close_names_only() {
+        let keys = ["compare", "caption", "alpha"];
+        assert_eq!(nearest("compar", keys), Some("compare"));
+        assert_eq!(nearest("aplha", keys), Some("alpha"));
+        assert_eq!(nearest("zzz", keys), None);
+    }
+
+    #[test]
+    fn renders_place_snippet_and_hint() {
+        let d = Diagnostic::new("unknown key `compar`")
+            .at("trial/report.md", Some(14), Some(1))
+            .snippet("compar: tukey")
+            .hint("did you mean `compare`?");
+        let text = d.to_string();
+        assert!(text.contains("--> trial/report.md:14:1"), "{text}");
+        assert!(text.contains("14 | compar: tukey"));
+        assert!(text.contains("= hint: did you mean `compare`?"));
+        assert_eq!(
+            d.short(),
+            "trial/report.md:14:1: error: unknown key `compar`"
+        );
+    }
+}

@@ -1,0 +1,9 @@
+//! Statistics: pure functions on numbers. No I/O, no formatting, no Markdown.
+
+pub mod dist;
+pub mod oneway;
+pub mod ptukey;
+pub mod quadrature;
+pub mod roots;
+pub mod special;
+pub mod sum;

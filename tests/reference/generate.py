@@ -1,0 +1,191 @@
+#!/usr/bin/env python3
+"""Regenerates the reference fixtures that sheaf's Rust tests compare against.
+
+Every expected value in the JSON files written here comes from scipy or
+statsmodels, never from sheaf. Run from the repository root:
+
+    python3 -m venv /tmp/refenv
+    /tmp/refenv/bin/pip install scipy statsmodels pandas
+    /tmp/refenv/bin/python tests/reference/generate.py
+
+It rewrites tests/reference/distributions.json and tests/reference/oneway.json;
+commit them together with any change to this script.
+"""
+
+import json
+
+import mpmath as mp
+import math
+import pathlib
+
+import numpy as np
+import pandas as pd
+import scipy
+import statsmodels
+from scipy import stats
+from statsmodels.formula.api import ols
+from statsmodels.stats.anova import anova_lm
+from statsmodels.stats.multitest import multipletests
+
+ROOT = pathlib.Path(__file__).resolve().parents[2]
+OUT = ROOT / "tests" / "reference"
+
+
+def num(x):
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def distributions():
+    t_sf = []
+    for df in [1, 2, 3, 5, 10, 27, 100, 1e3, 1e4, 1e5, 1e6, 1e7]:
+        for t in [0.1, 1.0, 2.0, 3.5, 8.0, 30.0]:
+            t_sf.append({"t": t, "df": df, "sf": num(stats.t.sf(t, df))})
+    t_isf = []
+    for df in [1, 2, 3, 4.5, 10, 27, 100, 1e3, 1e4, 1e5, 1e6, 1e7]:
+        for p in [0.25, 0.05, 0.025, 0.005, 1e-6]:
+            t_isf.append({"p": p, "df": df, "isf": num(stats.t.isf(p, df))})
+    f_sf = []
+    f_isf = []
+    for d1 in [1, 2, 4, 9, 99]:
+        for d2 in [1, 2, 5, 20, 27, 100, 1e4, 1e6, 1e7]:
+            for f in [0.2, 1.0, 3.0, 15.0, 200.0]:
+                f_sf.append({"f": f, "d1": d1, "d2": d2, "sf": num(stats.f.sf(f, d1, d2))})
+            for p in [0.1, 0.05, 0.01, 0.001]:
+                f_isf.append({"p": p, "d1": d1, "d2": d2, "isf": num(stats.f.isf(p, d1, d2))})
+    ptukey = []
+    for k in [2, 3, 4, 5, 10, 20, 50, 100]:
+        # scipy switches to the infinite-df formula at df >= 1e5, so stay below it.
+        for df in [2, 3, 5, 10, 20, 60, 120, 1000, 5e4, math.inf]:
+            for q in [0.5, 1.0, 2.0, 3.0, 4.0, 5.0, 6.5, 8.0, 12.0]:
+                cdf = stats.studentized_range.cdf(q, k, df)
+                ptukey.append({"q": q, "k": k, "df": df if math.isfinite(df) else None, "cdf": num(cdf)})
+    qtukey = []
+    for k in [2, 3, 4, 5, 10, 20, 100]:
+        for df in [5, 10, 27, 120, math.inf]:
+            for alpha in [0.05, 0.01]:
+                q = stats.studentized_range.ppf(1 - alpha, k, df)
+                qtukey.append({"alpha": alpha, "k": k, "df": df if math.isfinite(df) else None, "q": num(q)})
+    # Very large df, beyond what scipy's t is tested for: exact values from mpmath.
+    mp.mp.dps = 40
+    t_sf_mp = []
+    for df in [1e8, 1e9]:
+        for t in [0.5, 1.7677669529663687, 3.0, 5.0, 8.0]:
+            nu, tt = mp.mpf(df), mp.mpf(t)
+            sf = mp.betainc(nu / 2, mp.mpf(1) / 2, 0, nu / (nu + tt * tt), regularized=True) / 2
+            t_sf_mp.append({"t": t, "df": df, "sf": float(sf)})
+    return {
+        "generator": "tests/reference/generate.py",
+        "scipy": scipy.__version__,
+        "mpmath": mp.__version__,
+        "t_sf_mpmath": t_sf_mp,
+        "t_sf": t_sf,
+        "t_isf": t_isf,
+        "f_sf": f_sf,
+        "f_isf": f_isf,
+        "ptukey_cdf": ptukey,
+        "qtukey": qtukey,
+    }
+
+
+def oneway_case(name, path, response, factor, source):
+    df = pd.read_csv(path, dtype={factor: str})
+    levels = list(dict.fromkeys(df[factor]))
+    groups = [df.loc[df[factor] == lv, response].to_numpy(float) for lv in levels]
+    model = ols(f"Q('{response}') ~ C(Q('{factor}'))", data=df).fit()
+    table = anova_lm(model, typ=1)
+    effect, resid = table.iloc[0], table.iloc[1]
+    k, n = len(levels), len(df)
+    mse = float(resid["sum_sq"] / resid["df"])
+    nu = n - k
+    alpha = 0.05
+    means = [g.mean() for g in groups]
+    group_rows = []
+    for lv, g in zip(levels, groups):
+        se = math.sqrt(mse / len(g))
+        tcrit = stats.t.isf(alpha / 2, nu)
+        group_rows.append({
+            "level": lv, "n": len(g), "mean": num(g.mean()),
+            "sd": num(g.std(ddof=1)) if len(g) > 1 else None,
+            "ci_lower": num(g.mean() - tcrit * se), "ci_upper": num(g.mean() + tcrit * se),
+        })
+    # Pairwise in the order sheaf uses: (i, j) for i < j in level order, diff = mean_j - mean_i
+    # is NOT used; sheaf reports a = later level, b = earlier level, diff = mean(a) - mean(b).
+    pairs = [(j, i) for i in range(k) for j in range(i + 1, k)]
+    m = len(pairs)
+    raw_p, lsd = [], []
+    for a, b in pairs:
+        se = math.sqrt(mse * (1 / len(groups[a]) + 1 / len(groups[b])))
+        d = means[a] - means[b]
+        t = d / se
+        p = 2 * stats.t.sf(abs(t), nu)
+        raw_p.append(p)
+        half = stats.t.isf(alpha / 2, nu) * se
+        lsd.append({"a": levels[a], "b": levels[b], "diff": num(d), "se": num(se),
+                    "lower": num(d - half), "upper": num(d + half), "p_adj": num(p)})
+    bonf = multipletests(raw_p, method="bonferroni")[1]
+    holm = multipletests(raw_p, method="holm")[1]
+    bonf_rows, holm_rows = [], []
+    for (a, b), row, pb, ph in zip(pairs, lsd, bonf, holm):
+        half = stats.t.isf(alpha / (2 * m), nu) * row["se"]
+        base = {"a": row["a"], "b": row["b"], "diff": row["diff"], "se": row["se"],
+                "lower": num(row["diff"] - half), "upper": num(row["diff"] + half)}
+        bonf_rows.append({**base, "p_adj": num(pb)})
+        holm_rows.append({**base, "p_adj": num(ph)})
+    tukey_rows = []
+    if min(len(g) for g in groups) > 1:
+        tukey = stats.tukey_hsd(*groups)
+        ci = tukey.confidence_interval(confidence_level=1 - alpha)
+        for a, b in pairs:
+            se = math.sqrt(mse / 2 * (1 / len(groups[a]) + 1 / len(groups[b])))
+            tukey_rows.append({"a": levels[a], "b": levels[b], "diff": num(tukey.statistic[a, b]),
+                               "se": num(se), "lower": num(ci.low[a, b]), "upper": num(ci.high[a, b]),
+                               "p_adj": num(tukey.pvalue[a, b])})
+    else:
+        # scipy.stats.tukey_hsd refuses groups of one; use its studentized range directly.
+        qcrit = stats.studentized_range.ppf(1 - alpha, k, nu)
+        for a, b in pairs:
+            se = math.sqrt(mse / 2 * (1 / len(groups[a]) + 1 / len(groups[b])))
+            d = means[a] - means[b]
+            tukey_rows.append({"a": levels[a], "b": levels[b], "diff": num(d), "se": num(se),
+                               "lower": num(d - qcrit * se), "upper": num(d + qcrit * se),
+                               "p_adj": num(stats.studentized_range.sf(abs(d) / se, k, nu))})
+    return {
+        "name": name, "source": source, "csv": str(path.relative_to(ROOT)),
+        "response": response, "factor": factor, "levels": levels,
+        "anova": {
+            "df1": int(effect["df"]), "ss_between": num(effect["sum_sq"]), "ms_between": num(effect["mean_sq"]),
+            "f": num(effect["F"]), "p": num(effect["PR(>F)"]),
+            "df2": int(resid["df"]), "ss_within": num(resid["sum_sq"]), "ms_within": mse,
+            "r_squared": num(model.rsquared),
+            "f_crit": num(stats.f.isf(alpha, int(effect["df"]), int(resid["df"]))),
+        },
+        "groups": group_rows,
+        "comparisons": {"lsd": lsd, "bonferroni": bonf_rows, "holm": holm_rows, "tukey": tukey_rows},
+        "scipy_f_oneway": num(stats.f_oneway(*groups).statistic),
+    }
+
+
+def oneway():
+    data = ROOT / "tests" / "data"
+    cases = [
+        oneway_case("plant_growth", data / "open" / "PlantGrowth.csv", "weight", "group",
+                    "Dobson (1983) plant weights, via pydataset; see tests/data/open/SOURCES.md"),
+        oneway_case("primer", data / "invented" / "primer.csv", "strength", "primer",
+                    "invented, unequal n 3/5/4/6"),
+        oneway_case("singleton", data / "invented" / "singleton.csv", "volume", "formulation",
+                    "invented, one level with n = 1"),
+    ]
+    return {"generator": "tests/reference/generate.py", "scipy": scipy.__version__,
+            "statsmodels": statsmodels.__version__, "alpha": 0.05, "cases": cases}
+
+
+def main():
+    for name, builder in [("oneway.json", oneway), ("distributions.json", distributions)]:
+        text = json.dumps(builder(), indent=1, allow_nan=False)
+        (OUT / name).write_text(text + "\n")
+        print("wrote", OUT / name)
+
+
+if __name__ == "__main__":
+    main()
