@@ -311,9 +311,9 @@ mod tests {
             decimal_comma: true,
             ..CsvFormat::default()
         };
-        let table = Table::parse("g;y\na;3,14\nb;2,5\n".as_bytes(), &format).expect("table");
+        let table = Table::parse("g;y\na;4,25\nb;2,5\n".as_bytes(), &format).expect("table");
         let fr = factor_response(&table, "y", "g", &format).expect("data");
-        assert_eq!(fr.origin, 3.14);
-        assert_eq!(fr.levels[1].offsets[0], -0.64);
+        assert_eq!(fr.origin, 4.25);
+        assert_eq!(fr.levels[1].offsets[0], -1.75);
     }
 }
