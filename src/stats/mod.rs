@@ -1,6 +1,8 @@
 //! Statistics: pure functions on numbers. No I/O, no formatting, no Markdown.
 
+pub mod compare;
 pub mod dist;
+pub mod letters;
 pub mod oneway;
 pub mod ptukey;
 pub mod quadrature;

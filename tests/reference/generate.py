@@ -137,7 +137,7 @@ def oneway_case(name, path, response, factor, source):
         tukey = stats.tukey_hsd(*groups)
         ci = tukey.confidence_interval(confidence_level=1 - alpha)
         for a, b in pairs:
-            se = math.sqrt(mse / 2 * (1 / len(groups[a]) + 1 / len(groups[b])))
+            se = math.sqrt(mse * (1 / len(groups[a]) + 1 / len(groups[b])))
             tukey_rows.append({"a": levels[a], "b": levels[b], "diff": num(tukey.statistic[a, b]),
                                "se": num(se), "lower": num(ci.low[a, b]), "upper": num(ci.high[a, b]),
                                "p_adj": num(tukey.pvalue[a, b])})
@@ -145,11 +145,11 @@ def oneway_case(name, path, response, factor, source):
         # scipy.stats.tukey_hsd refuses groups of one; use its studentized range directly.
         qcrit = stats.studentized_range.ppf(1 - alpha, k, nu)
         for a, b in pairs:
-            se = math.sqrt(mse / 2 * (1 / len(groups[a]) + 1 / len(groups[b])))
+            se = math.sqrt(mse * (1 / len(groups[a]) + 1 / len(groups[b])))
             d = means[a] - means[b]
             tukey_rows.append({"a": levels[a], "b": levels[b], "diff": num(d), "se": num(se),
-                               "lower": num(d - qcrit * se), "upper": num(d + qcrit * se),
-                               "p_adj": num(stats.studentized_range.sf(abs(d) / se, k, nu))})
+                               "lower": num(d - qcrit / math.sqrt(2) * se), "upper": num(d + qcrit / math.sqrt(2) * se),
+                               "p_adj": num(stats.studentized_range.sf(math.sqrt(2) * abs(d) / se, k, nu))})
     return {
         "name": name, "source": source, "csv": str(path.relative_to(ROOT)),
         "response": response, "factor": factor, "levels": levels,
