@@ -1,6 +1,9 @@
 //! Compact letter display: the sharing guarantee on random significance
 //! patterns (METHODS 6.8, property test; no published source needed).
 
+// Index loops read most plainly for a symmetric matrix.
+#![allow(clippy::needless_range_loop)]
+
 use proptest::prelude::*;
 use sheaf::stats::letters::compact_letters;
 
