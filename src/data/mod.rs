@@ -207,6 +207,15 @@ pub fn factor_response(
             });
             continue;
         }
+        // A level is registered even when its response is missing, so that a
+        // level with no usable rows is reported rather than silently lost.
+        let level = match names.iter().position(|n| n == g) {
+            Some(i) => i,
+            None => {
+                names.push(g.to_string());
+                names.len() - 1
+            }
+        };
         if is_missing(y) {
             excluded.push(Exclusion {
                 line: row.line,
@@ -240,13 +249,6 @@ pub fn factor_response(
                 message: format!("`{response}` must be a number, found `{}`", y.trim()),
                 hint: Some(hint),
             });
-        };
-        let level = match names.iter().position(|n| n == g) {
-            Some(i) => i,
-            None => {
-                names.push(g.to_string());
-                names.len() - 1
-            }
         };
         numbers.push(number);
         keys.push((level, row.line));

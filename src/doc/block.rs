@@ -1,0 +1,436 @@
+//! Analysis block specifications: the keys of an `anova` block, checked and
+//! typed, each remembering its document line.
+
+use super::formula::{Formula, parse_formula};
+use super::keyvalue::Entry;
+use crate::data::{CsvFormat, DEFAULT_MISSING};
+use crate::stats::compare::Method;
+
+/// The block kinds sheaf knows. A fenced block with any other info string is
+/// ordinary code.
+pub const BLOCK_KINDS: [&str; 1] = ["anova"];
+
+/// Every key an `anova` block accepts.
+pub const ANOVA_KEYS: [&str; 14] = [
+    "id",
+    "data",
+    "model",
+    "compare",
+    "alpha",
+    "levels",
+    "caption",
+    "decimals",
+    "delimiter",
+    "decimal",
+    "missing",
+    "protected",
+    "order",
+    "show",
+];
+
+/// A value with the document line (and value column) it came from.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Located<T> {
+    pub value: T,
+    pub line: usize,
+    pub column: usize,
+}
+
+/// Row order of the level-means table.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Order {
+    /// Highest mean first (matches the letter convention).
+    Mean,
+    /// The order of `levels`, or of first appearance in the data.
+    Levels,
+}
+
+/// Which tables a block shows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Show {
+    pub anova: bool,
+    pub means: bool,
+    pub pairs: bool,
+}
+
+/// A checked `anova` block.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AnovaSpec {
+    pub id: Option<Located<String>>,
+    pub data: Located<String>,
+    pub model: Located<Formula>,
+    /// `None` when `compare: none`.
+    pub compare: Option<Method>,
+    pub alpha: Option<f64>,
+    pub levels: Option<Located<Vec<String>>>,
+    pub caption: Option<String>,
+    pub decimals: Option<u32>,
+    pub csv: CsvFormat,
+    /// Fisher's protection for LSD: declare pairs only after a significant F.
+    pub protected: bool,
+    pub order: Order,
+    pub show: Show,
+}
+
+/// A problem with one key, at its line and column.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpecError {
+    pub line: usize,
+    pub column: usize,
+    pub message: String,
+    pub hint: Option<String>,
+}
+
+fn bad(entry: &Entry, message: String, hint: impl Into<String>) -> SpecError {
+    SpecError {
+        line: entry.line,
+        column: entry.value_column,
+        message,
+        hint: Some(hint.into()),
+    }
+}
+
+/// Document-wide defaults a block falls back on.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Defaults {
+    pub compare: Option<Method>,
+}
+
+/// Reads an `alpha` value: a probability strictly between 0 and 1.
+pub fn parse_alpha(entry: &Entry) -> Result<f64, SpecError> {
+    match entry.value.parse::<f64>() {
+        Ok(a) if a > 0.0 && a < 1.0 => Ok(a),
+        _ => Err(bad(
+            entry,
+            format!(
+                "`alpha` must be a number between 0 and 1, found `{}`",
+                entry.value
+            ),
+            "for example `alpha: 0.05`",
+        )),
+    }
+}
+
+/// Reads a `decimals` value: 0 to 12 digits.
+pub fn parse_decimals(entry: &Entry) -> Result<u32, SpecError> {
+    match entry.value.parse::<u32>() {
+        Ok(d) if d <= 12 => Ok(d),
+        _ => Err(bad(
+            entry,
+            format!(
+                "`decimals` must be a whole number from 0 to 12, found `{}`",
+                entry.value
+            ),
+            "for example `decimals: 2`",
+        )),
+    }
+}
+
+/// Reads a comparison procedure name.
+pub fn parse_compare(entry: &Entry) -> Result<Option<Method>, SpecError> {
+    let methods = [Method::Lsd, Method::Tukey, Method::Bonferroni, Method::Holm];
+    let v = entry.value.to_ascii_lowercase();
+    if v == "none" {
+        return Ok(None);
+    }
+    if let Some(m) = methods.iter().find(|m| m.key() == v) {
+        return Ok(Some(*m));
+    }
+    let names = ["lsd", "tukey", "bonferroni", "holm", "none"];
+    let hint = match crate::diag::nearest(&v, names) {
+        Some(n) => {
+            format!("did you mean `{n}`? The choices are lsd, tukey, bonferroni, holm and none")
+        }
+        None => "the choices are lsd, tukey (Tukey-Kramer), bonferroni, holm and none".into(),
+    };
+    Err(bad(
+        entry,
+        format!("unknown comparison procedure `{}`", entry.value),
+        hint,
+    ))
+}
+
+fn parse_yes_no(entry: &Entry) -> Result<bool, SpecError> {
+    match entry.value.to_ascii_lowercase().as_str() {
+        "yes" | "true" | "on" => Ok(true),
+        "no" | "false" | "off" => Ok(false),
+        _ => Err(bad(
+            entry,
+            format!("`{}` must be yes or no, found `{}`", entry.key, entry.value),
+            "write `yes` or `no`",
+        )),
+    }
+}
+
+fn list(value: &str) -> Vec<String> {
+    value
+        .split(',')
+        .map(|s| s.trim().to_string())
+        .filter(|s| !s.is_empty())
+        .collect()
+}
+
+/// Checks an `anova` block's entries. `fence_line` is the opening fence's line.
+pub fn anova_spec(
+    entries: &[Entry],
+    fence_line: usize,
+    defaults: Defaults,
+) -> Result<AnovaSpec, SpecError> {
+    for e in entries {
+        if !ANOVA_KEYS.contains(&e.key.as_str()) {
+            let hint = match crate::diag::nearest(&e.key, ANOVA_KEYS) {
+                Some(k) => format!("did you mean `{k}`?"),
+                None => format!("an anova block takes {}", ANOVA_KEYS.join(", ")),
+            };
+            return Err(SpecError {
+                line: e.line,
+                column: e.key_column,
+                message: format!("unknown key `{}`", e.key),
+                hint: Some(hint),
+            });
+        }
+    }
+    let get = |key: &str| entries.iter().find(|e| e.key == key);
+    let required = |key: &str, example: &str| {
+        get(key).ok_or_else(|| SpecError {
+            line: fence_line,
+            column: 1,
+            message: format!("this anova block has no `{key}`"),
+            hint: Some(format!("add a line such as `{example}`")),
+        })
+    };
+    let located = |e: &Entry| Located {
+        value: e.value.clone(),
+        line: e.line,
+        column: e.value_column,
+    };
+
+    let id = match get("id") {
+        Some(e) => {
+            let ok = e
+                .value
+                .chars()
+                .next()
+                .is_some_and(|c| c.is_ascii_alphabetic())
+                && e.value
+                    .chars()
+                    .all(|c| c.is_ascii_alphanumeric() || c == '_');
+            if !ok {
+                return Err(bad(
+                    e,
+                    format!("`{}` is not a usable id", e.value),
+                    "an id starts with a letter and has only letters, digits and `_`, so prose can write {{ id.f }}",
+                ));
+            }
+            Some(located(e))
+        }
+        None => None,
+    };
+    let data_entry = required("data", "data: plants.csv")?;
+    if data_entry.value.is_empty() {
+        return Err(bad(
+            data_entry,
+            "`data` is empty".into(),
+            "name a CSV file relative to the document's folder",
+        ));
+    }
+    let model_entry = required("model", "model: weight ~ group")?;
+    let formula = parse_formula(&model_entry.value).map_err(|e| SpecError {
+        line: model_entry.line,
+        column: model_entry.value_column + e.offset,
+        message: e.message,
+        hint: Some(e.hint),
+    })?;
+    let compare = match get("compare") {
+        Some(e) => parse_compare(e)?,
+        None => defaults.compare,
+    };
+    let alpha = get("alpha").map(parse_alpha).transpose()?;
+    let decimals = get("decimals").map(parse_decimals).transpose()?;
+    let levels = match get("levels") {
+        Some(e) => {
+            let names = list(&e.value);
+            if names.len() < 2 {
+                return Err(bad(
+                    e,
+                    "`levels` must list at least two levels".into(),
+                    "separate level names with commas: `levels: ctrl, trt1, trt2`",
+                ));
+            }
+            if let Some(dup) = names
+                .iter()
+                .enumerate()
+                .find(|(i, n)| names[..*i].contains(n))
+                .map(|(_, n)| n)
+            {
+                return Err(bad(
+                    e,
+                    format!("`levels` lists `{dup}` twice"),
+                    "list each level once",
+                ));
+            }
+            Some(Located {
+                value: names,
+                line: e.line,
+                column: e.value_column,
+            })
+        }
+        None => None,
+    };
+    let mut csv = CsvFormat::default();
+    if let Some(e) = get("delimiter") {
+        csv.delimiter = match e.value.to_ascii_lowercase().as_str() {
+            "comma" | "," => b',',
+            "semicolon" | ";" => b';',
+            "tab" | "\\t" => b'\t',
+            _ => {
+                return Err(bad(
+                    e,
+                    format!("unknown delimiter `{}`", e.value),
+                    "write `comma`, `semicolon` or `tab`",
+                ));
+            }
+        };
+    }
+    if let Some(e) = get("decimal") {
+        csv.decimal_comma = match e.value.to_ascii_lowercase().as_str() {
+            "comma" | "," => true,
+            "point" | "dot" | "." => false,
+            _ => {
+                return Err(bad(
+                    e,
+                    format!("unknown decimal mark `{}`", e.value),
+                    "write `point` or `comma`",
+                ));
+            }
+        };
+        if csv.decimal_comma && csv.delimiter == b',' {
+            return Err(bad(
+                e,
+                "a decimal comma needs another field delimiter".into(),
+                "add `delimiter: semicolon` (or tab)",
+            ));
+        }
+    }
+    if let Some(e) = get("missing") {
+        csv.missing = e.value.split(',').map(|s| s.trim().to_string()).collect();
+        if !csv.missing.iter().any(String::is_empty) {
+            csv.missing.push(String::new());
+        }
+    } else {
+        csv.missing = DEFAULT_MISSING.iter().map(|s| s.to_string()).collect();
+    }
+    let protected = get("protected")
+        .map(parse_yes_no)
+        .transpose()?
+        .unwrap_or(true);
+    if let Some(e) = get("protected") {
+        if compare != Some(Method::Lsd) {
+            return Err(bad(
+                e,
+                "`protected` applies only to `compare: lsd`".into(),
+                "remove it, or choose `compare: lsd`",
+            ));
+        }
+    }
+    let order = match get("order") {
+        None => Order::Mean,
+        Some(e) => match e.value.to_ascii_lowercase().as_str() {
+            "mean" | "means" => Order::Mean,
+            "levels" | "data" => Order::Levels,
+            _ => {
+                return Err(bad(
+                    e,
+                    format!("unknown order `{}`", e.value),
+                    "write `mean` (highest first) or `levels` (as listed or as in the data)",
+                ));
+            }
+        },
+    };
+    let show = match get("show") {
+        None => Show {
+            anova: true,
+            means: true,
+            pairs: true,
+        },
+        Some(e) => {
+            let mut s = Show {
+                anova: false,
+                means: false,
+                pairs: false,
+            };
+            for item in list(&e.value) {
+                match item.as_str() {
+                    "anova" => s.anova = true,
+                    "means" => s.means = true,
+                    "pairs" => s.pairs = true,
+                    "none" => {}
+                    other => {
+                        let hint = match crate::diag::nearest(other, ["anova", "means", "pairs", "none"]) {
+                            Some(n) => format!("did you mean `{n}`? Choose from anova, means, pairs, or none"),
+                            None => "choose from anova, means, pairs, or none (prose can still quote the results)".into(),
+                        };
+                        return Err(bad(e, format!("unknown table `{other}` in `show`"), hint));
+                    }
+                }
+            }
+            s
+        }
+    };
+    Ok(AnovaSpec {
+        id,
+        data: located(data_entry),
+        model: Located {
+            value: formula,
+            line: model_entry.line,
+            column: model_entry.value_column,
+        },
+        compare,
+        alpha,
+        levels,
+        caption: get("caption").map(|e| e.value.clone()),
+        decimals,
+        csv,
+        protected,
+        order,
+        show,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::doc::keyvalue::parse_entries;
+
+    const DEFAULTS: Defaults = Defaults {
+        compare: Some(Method::Tukey),
+    };
+
+    #[test]
+    fn a_full_block() {
+        let e = parse_entries("id: growth\ndata: plants.csv\nmodel: weight ~ group\ncompare: lsd\nalpha: 0.01\nlevels: ctrl, trt1, trt2", 3).expect("entries");
+        let s = anova_spec(&e, 2, DEFAULTS).expect("spec");
+        assert_eq!(s.compare, Some(Method::Lsd));
+        assert_eq!(s.alpha, Some(0.01));
+        assert_eq!(
+            s.levels.expect("levels").value,
+            vec!["ctrl", "trt1", "trt2"]
+        );
+        assert_eq!(s.model.line, 5);
+    }
+
+    #[test]
+    fn unknown_key_suggests_the_nearest() {
+        let e = parse_entries("data: a.csv\nmodel: y ~ g\ncompar: tukey", 10).expect("entries");
+        let err = anova_spec(&e, 9, DEFAULTS).unwrap_err();
+        assert_eq!(err.line, 12);
+        assert_eq!(err.hint.as_deref(), Some("did you mean `compare`?"));
+    }
+
+    #[test]
+    fn missing_model_points_at_the_fence() {
+        let e = parse_entries("data: a.csv", 10).expect("entries");
+        let err = anova_spec(&e, 9, DEFAULTS).unwrap_err();
+        assert_eq!(err.line, 9);
+    }
+}

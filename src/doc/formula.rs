@@ -1,0 +1,279 @@
+//! Wilkinson-Rogers model formulas: `response ~ terms`.
+//!
+//! Terms are joined by `+`; `a:b` is an interaction; `a*b` expands to
+//! `a + b + a:b` (and `a*b*c` to all main effects and interactions). Names
+//! are identifiers, or any text in backticks (`` `dry weight` ``). The
+//! parser is general; which models can be fitted is decided later.
+
+use std::fmt;
+
+/// A parsed model: the response and its terms in model order.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Formula {
+    pub response: String,
+    pub terms: Vec<Term>,
+}
+
+/// A main effect (one factor) or an interaction (several).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Term {
+    pub factors: Vec<String>,
+}
+
+impl fmt::Display for Term {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.factors.join(":"))
+    }
+}
+
+impl Formula {
+    /// Every factor named in any term, in order of first mention.
+    pub fn factors(&self) -> Vec<&str> {
+        let mut out: Vec<&str> = Vec::new();
+        for t in &self.terms {
+            for f in &t.factors {
+                if !out.contains(&f.as_str()) {
+                    out.push(f);
+                }
+            }
+        }
+        out
+    }
+}
+
+/// A formula syntax error at a character column (0-based within the formula).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FormulaError {
+    pub offset: usize,
+    pub message: String,
+    pub hint: String,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+enum Token {
+    Name(String),
+    Tilde,
+    Plus,
+    Colon,
+    Star,
+}
+
+fn tokenize(text: &str) -> Result<Vec<(usize, Token)>, FormulaError> {
+    let chars: Vec<char> = text.chars().collect();
+    let mut out = Vec::new();
+    let mut i = 0;
+    while i < chars.len() {
+        let c = chars[i];
+        match c {
+            ' ' | '\t' => i += 1,
+            '~' => {
+                out.push((i, Token::Tilde));
+                i += 1
+            }
+            '+' => {
+                out.push((i, Token::Plus));
+                i += 1
+            }
+            ':' => {
+                out.push((i, Token::Colon));
+                i += 1
+            }
+            '*' => {
+                out.push((i, Token::Star));
+                i += 1
+            }
+            '`' => {
+                let start = i;
+                let close = chars[i + 1..]
+                    .iter()
+                    .position(|&c| c == '`')
+                    .ok_or(FormulaError {
+                        offset: start,
+                        message: "a backtick-quoted name is not closed".into(),
+                        hint: "close the name with a second backtick".into(),
+                    })?;
+                let name: String = chars[i + 1..i + 1 + close].iter().collect();
+                if name.trim().is_empty() {
+                    return Err(FormulaError {
+                        offset: start,
+                        message: "an empty name".into(),
+                        hint: "write the column name between the backticks".into(),
+                    });
+                }
+                out.push((start, Token::Name(name)));
+                i += close + 2;
+            }
+            c if c.is_alphanumeric() || c == '_' || c == '.' => {
+                let start = i;
+                while i < chars.len()
+                    && (chars[i].is_alphanumeric() || chars[i] == '_' || chars[i] == '.')
+                {
+                    i += 1;
+                }
+                out.push((start, Token::Name(chars[start..i].iter().collect())));
+            }
+            other => {
+                return Err(FormulaError {
+                    offset: i,
+                    message: format!("unexpected `{other}` in the model"),
+                    hint: "models read `response ~ factor`, with terms joined by `+`, `*` or `:`; put column names with spaces or symbols in backticks".into(),
+                });
+            }
+        }
+    }
+    Ok(out)
+}
+
+/// Parses a formula such as `weight ~ group` or `y ~ A * B`.
+pub fn parse_formula(text: &str) -> Result<Formula, FormulaError> {
+    let tokens = tokenize(text)?;
+    let end = text.chars().count();
+    let mut it = tokens.into_iter().peekable();
+    let Some((_, Token::Name(response))) = it.next() else {
+        return Err(FormulaError {
+            offset: 0,
+            message: "the model must start with the response column".into(),
+            hint: "write `response ~ factor`, for example `weight ~ group`".into(),
+        });
+    };
+    match it.next() {
+        Some((_, Token::Tilde)) => {}
+        other => {
+            return Err(FormulaError {
+                offset: other.map_or(end, |(at, _)| at),
+                message: "expected `~` after the response".into(),
+                hint: "write `response ~ factor`, for example `weight ~ group`".into(),
+            });
+        }
+    }
+    // Each `+`-separated chunk is a product of `:`/`*`-joined names.
+    let mut terms: Vec<Term> = Vec::new();
+    loop {
+        let mut names: Vec<(String, bool)> = Vec::new(); // (name, joined to previous by `*`)
+        let mut joiner_star = false;
+        loop {
+            match it.next() {
+                Some((_, Token::Name(n))) => names.push((n, joiner_star)),
+                other => {
+                    return Err(FormulaError {
+                        offset: other.map_or(end, |(at, _)| at),
+                        message: "expected a factor name".into(),
+                        hint: "a term is a column name, or names joined by `:` or `*`".into(),
+                    });
+                }
+            }
+            match it.peek() {
+                Some((_, Token::Colon)) => joiner_star = false,
+                Some((_, Token::Star)) => joiner_star = true,
+                _ => break,
+            }
+            it.next();
+        }
+        for t in expand(&names) {
+            if !terms.contains(&t) {
+                terms.push(t);
+            }
+        }
+        match it.next() {
+            None => break,
+            Some((_, Token::Plus)) => continue,
+            Some((at, _)) => {
+                return Err(FormulaError {
+                    offset: at,
+                    message: "expected `+` between terms".into(),
+                    hint: "join terms with `+`, for example `y ~ variety + block`".into(),
+                });
+            }
+        }
+    }
+    for t in &terms {
+        if t.factors.contains(&response) {
+            return Err(FormulaError {
+                offset: 0,
+                message: format!("`{response}` is both the response and a factor"),
+                hint: "the column left of `~` is the measured response; factors go on the right"
+                    .into(),
+            });
+        }
+    }
+    // Main effects first, then interactions by order, as in the usual tables.
+    terms.sort_by_key(|t| t.factors.len());
+    Ok(Formula { response, terms })
+}
+
+/// Expands one chunk: `a:b` stays one term; `a*b` gives a, b and a:b.
+fn expand(names: &[(String, bool)]) -> Vec<Term> {
+    // Split into `*`-separated groups of `:`-joined names.
+    let mut groups: Vec<Vec<String>> = Vec::new();
+    for (name, star) in names {
+        if *star || groups.is_empty() {
+            groups.push(vec![name.clone()]);
+        } else if let Some(last) = groups.last_mut() {
+            last.push(name.clone());
+        }
+    }
+    // Every non-empty subset of the groups, in order of size then position.
+    let g = groups.len();
+    let mut subsets: Vec<Vec<usize>> = (1..(1u32 << g))
+        .map(|mask| (0..g).filter(|i| mask & (1 << i) != 0).collect())
+        .collect();
+    subsets.sort_by_key(|s| (s.len(), s.clone()));
+    subsets
+        .into_iter()
+        .map(|s| {
+            let mut factors: Vec<String> = Vec::new();
+            for i in s {
+                for f in &groups[i] {
+                    if !factors.contains(f) {
+                        factors.push(f.clone());
+                    }
+                }
+            }
+            Term { factors }
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn terms(text: &str) -> Vec<String> {
+        parse_formula(text)
+            .expect("parses")
+            .terms
+            .iter()
+            .map(|t| t.to_string())
+            .collect()
+    }
+
+    #[test]
+    fn one_factor() {
+        let f = parse_formula("weight ~ group").expect("parses");
+        assert_eq!(f.response, "weight");
+        assert_eq!(terms("weight ~ group"), vec!["group"]);
+    }
+
+    #[test]
+    fn crossing_and_interactions() {
+        assert_eq!(terms("y ~ a * b"), vec!["a", "b", "a:b"]);
+        assert_eq!(terms("y ~ a + b + a:b"), vec!["a", "b", "a:b"]);
+        assert_eq!(
+            terms("y ~ a*b*c"),
+            vec!["a", "b", "c", "a:b", "a:c", "b:c", "a:b:c"]
+        );
+        assert_eq!(
+            terms("y ~ `dry weight` + block"),
+            vec!["dry weight", "block"]
+        );
+    }
+
+    #[test]
+    fn errors_point_at_the_problem() {
+        assert_eq!(parse_formula("weight group").unwrap_err().offset, 7);
+        assert_eq!(parse_formula("weight ~ ").unwrap_err().offset, 9);
+        assert_eq!(parse_formula("weight ~ a b").unwrap_err().offset, 11);
+        assert!(parse_formula("y ~ a + $").is_err());
+        assert!(parse_formula("y ~ y").is_err());
+    }
+}

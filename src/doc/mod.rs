@@ -1,0 +1,258 @@
+//! Document stage: front matter, analysis blocks and prose expressions,
+//! each with its place in the source, checked before any data is read.
+//!
+//! Front matter is optional: the document's first line `---`, then
+//! `key: value` lines (the same grammar as analysis blocks, not YAML), then a
+//! closing `---`.
+
+pub mod block;
+pub mod formula;
+pub mod keyvalue;
+pub mod markdown;
+
+use crate::diag::Diagnostic;
+use crate::source::LineIndex;
+use crate::stats::compare::Method;
+use block::{
+    AnovaSpec, BLOCK_KINDS, Defaults, SpecError, anova_spec, parse_alpha, parse_compare,
+    parse_decimals,
+};
+use keyvalue::{Entry, EntryError, parse_entries};
+use markdown::{Expression, find_expressions, scan};
+use std::ops::Range;
+
+/// Keys accepted in the front matter.
+pub const FRONT_MATTER_KEYS: [&str; 6] =
+    ["title", "author", "date", "alpha", "decimals", "compare"];
+
+/// Document-wide settings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FrontMatter {
+    pub title: Option<String>,
+    pub author: Option<String>,
+    pub date: Option<String>,
+    pub alpha: f64,
+    pub decimals: Option<u32>,
+    pub compare: Option<Method>,
+}
+
+impl Default for FrontMatter {
+    fn default() -> Self {
+        FrontMatter {
+            title: None,
+            author: None,
+            date: None,
+            alpha: 0.05,
+            decimals: None,
+            compare: Some(Method::Tukey),
+        }
+    }
+}
+
+/// An analysis block in the document.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Block {
+    /// The block's id: as written, or `block<N>` from its position.
+    pub id: String,
+    /// 1-based line of the opening fence.
+    pub line: usize,
+    /// Byte range of the block in the source, fences included.
+    pub range: Range<usize>,
+    pub spec: AnovaSpec,
+}
+
+/// A parsed, checked document.
+#[derive(Debug, Clone)]
+pub struct Document {
+    /// The name to show in messages (as the user gave it).
+    pub name: String,
+    pub source: String,
+    pub lines: LineIndex,
+    pub front: FrontMatter,
+    /// Byte offset where the Markdown body starts (after the front matter).
+    pub body_start: usize,
+    pub blocks: Vec<Block>,
+    pub expressions: Vec<Expression>,
+}
+
+impl Document {
+    /// A diagnostic at a 1-based line and column of this document, with the line shown.
+    pub fn error_at(
+        &self,
+        line: usize,
+        column: Option<usize>,
+        message: impl Into<String>,
+    ) -> Diagnostic {
+        Diagnostic::new(message)
+            .at(&self.name, Some(line), column)
+            .snippet(self.lines.line_text(&self.source, line))
+    }
+
+    fn spec_error(&self, e: SpecError) -> Diagnostic {
+        let mut d = self.error_at(e.line, Some(e.column), e.message);
+        if let Some(h) = e.hint {
+            d = d.hint(h);
+        }
+        d
+    }
+
+    fn entry_error(&self, e: EntryError) -> Diagnostic {
+        let mut d = self.error_at(e.line, Some(e.column), e.message);
+        if let Some(h) = e.hint {
+            d = d.hint(h);
+        }
+        d
+    }
+}
+
+/// Parses and checks a document. `name` is used only in messages.
+pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic> {
+    let lines = LineIndex::new(&source);
+    let mut doc = Document {
+        name: name.to_string(),
+        source,
+        lines,
+        front: FrontMatter::default(),
+        body_start: 0,
+        blocks: Vec::new(),
+        expressions: Vec::new(),
+    };
+    let (front_entries, body_start) = split_front_matter(&doc)?;
+    doc.body_start = body_start;
+    doc.front = front_matter(&doc, &front_entries)?;
+    let defaults = Defaults {
+        compare: doc.front.compare,
+    };
+
+    let found = scan(&doc.source, body_start, |k| BLOCK_KINDS.contains(&k));
+    let mut blocks = Vec::new();
+    for (i, fenced) in found.blocks.iter().enumerate() {
+        let line = doc.lines.line(fenced.range.start);
+        if fenced.nested {
+            return Err(doc
+                .error_at(
+                    line,
+                    None,
+                    format!("an `{}` block inside a list or quote", fenced.kind),
+                )
+                .hint(
+                    "move the analysis block to the top level of the document (no indentation)",
+                ));
+        }
+        let first_line = doc.lines.line(fenced.body_start);
+        let entries = parse_entries(&fenced.body, first_line).map_err(|e| doc.entry_error(e))?;
+        let spec = anova_spec(&entries, line, defaults).map_err(|e| doc.spec_error(e))?;
+        let id = spec
+            .id
+            .as_ref()
+            .map_or_else(|| format!("block{}", i + 1), |l| l.value.clone());
+        if let Some(prev) = blocks.iter().find(|b: &&Block| b.id == id) {
+            let at = spec.id.as_ref().map_or(line, |l| l.line);
+            return Err(doc
+                .error_at(at, None, format!("the id `{id}` is already used"))
+                .hint(format!(
+                    "the block on line {} has this id; ids must be unique in a document",
+                    prev.line
+                )));
+        }
+        blocks.push(Block {
+            id,
+            line,
+            range: fenced.range.clone(),
+            spec,
+        });
+    }
+    let mut skip: Vec<Range<usize>> = found.code.clone();
+    skip.extend(blocks.iter().map(|b| b.range.clone()));
+    doc.expressions = find_expressions(&doc.source, body_start, &skip).map_err(|u| {
+        let (line, col) = doc.lines.line_col(&doc.source, u.offset);
+        doc.error_at(line, Some(col), "`{{` is never closed by `}}`")
+            .hint("close the expression on the same paragraph, e.g. `{{ growth.p | pvalue }}`; to show braces literally, put them in `code`")
+    })?;
+    doc.blocks = blocks;
+    Ok(doc)
+}
+
+/// Returns the front-matter entries and where the body starts.
+fn split_front_matter(doc: &Document) -> Result<(Vec<Entry>, usize), Diagnostic> {
+    let text = &doc.source;
+    let first = text.lines().next().unwrap_or("");
+    if first.trim_end() != "---" {
+        return Ok((Vec::new(), 0));
+    }
+    let open_len = text.find('\n').map_or(text.len(), |i| i + 1);
+    let mut offset = open_len;
+    for line in text[open_len..].split_inclusive('\n') {
+        if line.trim_end() == "---" {
+            let inner = &text[open_len..offset];
+            let entries = parse_entries(inner, 2).map_err(|e| doc.entry_error(e))?;
+            return Ok((entries, offset + line.len()));
+        }
+        offset += line.len();
+    }
+    Err(doc
+        .error_at(1, Some(1), "the front matter is never closed")
+        .hint("end the front matter with a line holding only `---`"))
+}
+
+fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagnostic> {
+    let mut f = FrontMatter::default();
+    for e in entries {
+        match e.key.as_str() {
+            "title" => f.title = Some(e.value.clone()),
+            "author" => f.author = Some(e.value.clone()),
+            "date" => f.date = Some(e.value.clone()),
+            "alpha" => f.alpha = parse_alpha(e).map_err(|x| doc.spec_error(x))?,
+            "decimals" => f.decimals = Some(parse_decimals(e).map_err(|x| doc.spec_error(x))?),
+            "compare" => f.compare = parse_compare(e).map_err(|x| doc.spec_error(x))?,
+            other => {
+                let mut d = doc.error_at(
+                    e.line,
+                    Some(e.key_column),
+                    format!("unknown front-matter key `{other}`"),
+                );
+                d = match crate::diag::nearest(other, FRONT_MATTER_KEYS) {
+                    Some(k) => d.hint(format!("did you mean `{k}`?")),
+                    None => d.hint(format!(
+                        "the front matter takes {}",
+                        FRONT_MATTER_KEYS.join(", ")
+                    )),
+                };
+                return Err(d);
+            }
+        }
+    }
+    Ok(f)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn front_matter_blocks_and_expressions() {
+        let src = "---\ntitle: Trial\nalpha: 0.1\n---\n# Results\n\n```anova\ndata: a.csv\nmodel: y ~ g\n```\n\nF = {{ block1.f }}.\n";
+        let d = parse_document("r.md", src.to_string()).expect("parses");
+        assert_eq!(d.front.title.as_deref(), Some("Trial"));
+        assert_eq!(d.front.alpha, 0.1);
+        assert_eq!(d.blocks.len(), 1);
+        assert_eq!(d.blocks[0].id, "block1");
+        assert_eq!(d.blocks[0].line, 7);
+        assert_eq!(d.expressions.len(), 1);
+    }
+
+    #[test]
+    fn duplicate_ids_are_refused_at_the_second() {
+        let src = "```anova\nid: a\ndata: x.csv\nmodel: y ~ g\n```\n\n```anova\nid: a\ndata: x.csv\nmodel: y ~ g\n```\n";
+        let err = parse_document("r.md", src.to_string()).unwrap_err();
+        assert_eq!(err.place.and_then(|p| p.line), Some(8));
+    }
+
+    #[test]
+    fn errors_in_block_bodies_carry_document_lines() {
+        let src = "Intro\n\n```anova\ndata: x.csv\nmodel: y ~ g\naplha: 0.05\n```\n";
+        let err = parse_document("r.md", src.to_string()).unwrap_err();
+        assert_eq!(err.place.as_ref().and_then(|p| p.line), Some(6));
+        assert_eq!(err.hints, vec!["did you mean `alpha`?"]);
+    }
+}
