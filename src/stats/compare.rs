@@ -40,10 +40,10 @@ impl Method {
     /// The methods' sources, for the methods note in a report.
     pub fn citation(self) -> &'static str {
         match self {
-            Method::Lsd => "Fisher (1935)",
-            Method::Tukey => "Tukey (1953); Kramer (1956)",
-            Method::Bonferroni => "Dunn (1961)",
-            Method::Holm => "Holm (1979)",
+            Method::Lsd => "Fisher 1935",
+            Method::Tukey => "Tukey 1953; Kramer 1956",
+            Method::Bonferroni => "Dunn 1961",
+            Method::Holm => "Holm 1979",
         }
     }
 }

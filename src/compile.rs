@@ -1,0 +1,127 @@
+//! The driver: document → data → statistics → rendering → results, in memory.
+//! Nothing is written here; `output` writes the finished files.
+
+use crate::analysis::{AnovaResult, Input, run_anova};
+use crate::diag::Diagnostic;
+use crate::doc::parse_document;
+use crate::render::{Format, render_report};
+use crate::results::results_json;
+use std::path::{Path, PathBuf};
+
+/// Where sheaf reads files from: the disk for the CLI, memory in tests.
+pub trait World {
+    /// Reads `path`, which is relative to the document's folder (or absolute).
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>>;
+    /// How to show `path` in messages (e.g. joined to the document's folder).
+    fn display(&self, path: &str) -> String;
+}
+
+/// Files on disk, relative to a document's folder.
+pub struct DiskWorld {
+    pub base: PathBuf,
+}
+
+impl World for DiskWorld {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        let full = self.base.join(path);
+        if full.is_dir() {
+            return Err(std::io::Error::other("it is a folder, not a file"));
+        }
+        std::fs::read(full)
+    }
+
+    fn display(&self, path: &str) -> String {
+        self.base.join(path).display().to_string()
+    }
+}
+
+/// The finished outputs of a build.
+#[derive(Debug, Clone)]
+pub struct Built {
+    pub report_name: String,
+    pub report: Vec<u8>,
+    pub results_name: String,
+    pub results: Vec<u8>,
+    /// Warnings to show on the terminal (they are in the report too).
+    pub warnings: Vec<String>,
+}
+
+/// Compiles a document. `doc_display` names the document in messages;
+/// only its file name appears in the outputs.
+pub fn compile(
+    doc_display: &str,
+    doc_bytes: &[u8],
+    world: &dyn World,
+    format: Format,
+) -> Result<Built, Diagnostic> {
+    let file_name = Path::new(doc_display).file_name().map_or_else(
+        || "report.md".to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    );
+    let stem = file_name
+        .strip_suffix(".md")
+        .or_else(|| file_name.strip_suffix(".markdown"))
+        .unwrap_or(&file_name)
+        .to_string();
+    let source = String::from_utf8(doc_bytes.to_vec()).map_err(|e| {
+        let line = 1 + doc_bytes[..e.utf8_error().valid_up_to()]
+            .iter()
+            .filter(|b| **b == b'\n')
+            .count();
+        Diagnostic::new("the document is not valid UTF-8")
+            .at(doc_display, Some(line), None)
+            .hint("save the document as UTF-8")
+    })?;
+    let doc = parse_document(doc_display, source)?;
+
+    let mut inputs: Vec<Input> = Vec::new();
+    let mut results: Vec<AnovaResult> = Vec::with_capacity(doc.blocks.len());
+    for block in &doc.blocks {
+        let path = &block.spec.data.value;
+        if !inputs.iter().any(|i| &i.path == path) {
+            let bytes = world.read(path).map_err(|e| {
+                let reason = match e.kind() {
+                    std::io::ErrorKind::NotFound => "no such file".to_string(),
+                    _ => e.to_string(),
+                };
+                doc.error_at(
+                    block.spec.data.line,
+                    Some(block.spec.data.column),
+                    format!("cannot read data file `{path}`: {reason}"),
+                )
+                .hint(format!(
+                    "paths are relative to the document's folder; looked for {}",
+                    world.display(path)
+                ))
+            })?;
+            inputs.push(Input {
+                path: path.clone(),
+                bytes,
+            });
+        }
+        let input = inputs
+            .iter()
+            .find(|i| &i.path == path)
+            .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
+        results.push(run_anova(&doc, block, input, &world.display(path))?);
+    }
+
+    let results_name = format!("{stem}.results.json");
+    let report = render_report(&doc, &results, &inputs, format, &file_name, &results_name)?;
+    let name = doc.name.as_str();
+    let warnings = results
+        .iter()
+        .flat_map(|r| {
+            r.warnings
+                .iter()
+                .map(move |w| format!("{name}:{} (block `{}`): {w}", r.line, r.id))
+        })
+        .collect();
+    Ok(Built {
+        report_name: format!("{stem}.{}", format.extension()),
+        report: report.into_bytes(),
+        results_name,
+        results: results_json(&file_name, doc.source.as_bytes(), &inputs, &results),
+        warnings,
+    })
+}

@@ -1,0 +1,298 @@
+//! Prose expressions: `{{ growth.f | round(2) }}` evaluated by minijinja in
+//! strict mode against the blocks' results, with sheaf's own filters.
+
+use super::format::{f_statement, fixed, p_phrase, p_value, significant};
+use super::to_value;
+use crate::analysis::AnovaResult;
+use crate::diag::Diagnostic;
+use crate::doc::Document;
+use crate::doc::markdown::Expression;
+use minijinja::value::Value;
+use minijinja::{Environment, ErrorKind, UndefinedBehavior};
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// Names of sheaf's own filters, for the README and error hints.
+pub const FILTERS: [&str; 5] = ["pvalue", "ptext", "fixed", "sig", "ftest"];
+
+#[derive(Serialize)]
+struct TermContext {
+    df: usize,
+    df1: usize,
+    df2: usize,
+    ss: f64,
+    ms: f64,
+    f: f64,
+    p: f64,
+    f_crit: f64,
+}
+
+#[derive(Serialize)]
+struct GroupContext {
+    n: usize,
+    mean: f64,
+    sd: f64,
+    se: f64,
+    ci_lower: f64,
+    ci_upper: f64,
+    letters: Option<String>,
+}
+
+#[derive(Serialize)]
+struct PairContext {
+    a: String,
+    b: String,
+    diff: f64,
+    se: f64,
+    lower: f64,
+    upper: f64,
+    p: f64,
+    significant: bool,
+}
+
+#[derive(Serialize)]
+struct BlockContext {
+    f: f64,
+    p: f64,
+    df1: usize,
+    df2: usize,
+    f_crit: f64,
+    r_squared: f64,
+    n: usize,
+    n_excluded: usize,
+    alpha: f64,
+    response: String,
+    factor: String,
+    method: Option<&'static str>,
+    terms: BTreeMap<String, TermContext>,
+    residual: BTreeMap<&'static str, f64>,
+    groups: BTreeMap<String, GroupContext>,
+    letters: BTreeMap<String, String>,
+    pairs: Vec<PairContext>,
+}
+
+fn block_context(r: &AnovaResult) -> BlockContext {
+    let t = &r.table;
+    let mut terms = BTreeMap::new();
+    terms.insert(
+        r.factor.clone(),
+        TermContext {
+            df: t.df_between,
+            df1: t.df_between,
+            df2: t.df_within,
+            ss: t.ss_between,
+            ms: t.ms_between,
+            f: t.f,
+            p: t.p,
+            f_crit: t.f_crit,
+        },
+    );
+    let letters_of = |i: usize| r.comparison.as_ref().map(|c| c.letters[i].clone());
+    BlockContext {
+        f: t.f,
+        p: t.p,
+        df1: t.df_between,
+        df2: t.df_within,
+        f_crit: t.f_crit,
+        r_squared: t.r_squared,
+        n: t.n,
+        n_excluded: r.exclusions.len(),
+        alpha: r.alpha,
+        response: r.response.clone(),
+        factor: r.factor.clone(),
+        method: r.comparison.as_ref().map(|c| c.method.key()),
+        terms,
+        residual: [
+            ("df", t.df_within as f64),
+            ("ss", t.ss_within),
+            ("ms", t.ms_within),
+        ]
+        .into_iter()
+        .collect(),
+        groups: r
+            .levels
+            .iter()
+            .enumerate()
+            .map(|(i, l)| {
+                let g = GroupContext {
+                    n: l.n,
+                    mean: l.mean,
+                    sd: l.sd,
+                    se: l.se,
+                    ci_lower: l.ci_lower,
+                    ci_upper: l.ci_upper,
+                    letters: letters_of(i),
+                };
+                (l.name.clone(), g)
+            })
+            .collect(),
+        letters: r
+            .levels
+            .iter()
+            .enumerate()
+            .filter_map(|(i, l)| letters_of(i).map(|s| (l.name.clone(), s)))
+            .collect(),
+        pairs: r
+            .comparison
+            .iter()
+            .flat_map(|c| c.pairs.iter())
+            .map(|p| PairContext {
+                a: r.levels[p.a].name.clone(),
+                b: r.levels[p.b].name.clone(),
+                diff: p.diff,
+                se: p.se,
+                lower: p.lower,
+                upper: p.upper,
+                p: p.p_adj,
+                significant: p.significant,
+            })
+            .collect(),
+    }
+}
+
+fn number(v: &Value, what: &str) -> Result<f64, minijinja::Error> {
+    f64::try_from(v.clone()).map_err(|_| {
+        minijinja::Error::new(
+            ErrorKind::InvalidOperation,
+            format!("`{what}` expects a number, got {}", v.kind()),
+        )
+    })
+}
+
+fn attr(v: &Value, name: &str) -> Result<f64, minijinja::Error> {
+    let a = v.get_attr(name)?;
+    if a.is_undefined() {
+        return Err(minijinja::Error::new(
+            ErrorKind::InvalidOperation,
+            format!(
+                "`ftest` needs a block or a term (with df1, df2, f and p); `{name}` is missing"
+            ),
+        ));
+    }
+    number(&a, "ftest")
+}
+
+/// The expression environment: strict undefined names and sheaf's filters.
+fn environment() -> Environment<'static> {
+    let mut env = Environment::new();
+    env.set_undefined_behavior(UndefinedBehavior::Strict);
+    env.add_filter("pvalue", |v: Value| -> Result<String, minijinja::Error> {
+        Ok(p_value(number(&v, "pvalue")?))
+    });
+    env.add_filter("ptext", |v: Value| -> Result<String, minijinja::Error> {
+        Ok(p_phrase(number(&v, "ptext")?))
+    });
+    env.add_filter(
+        "fixed",
+        |v: Value, d: u32| -> Result<String, minijinja::Error> {
+            Ok(fixed(number(&v, "fixed")?, d.min(12)))
+        },
+    );
+    env.add_filter(
+        "sig",
+        |v: Value, d: Option<u32>| -> Result<String, minijinja::Error> {
+            Ok(significant(number(&v, "sig")?, d.unwrap_or(3).clamp(1, 15)))
+        },
+    );
+    env.add_filter("ftest", |v: Value| -> Result<String, minijinja::Error> {
+        Ok(f_statement(
+            attr(&v, "df1")?,
+            attr(&v, "df2")?,
+            attr(&v, "f")?,
+            attr(&v, "p")?,
+        ))
+    });
+    env
+}
+
+/// Evaluates every expression; returns the text for each, in order.
+pub fn evaluate(
+    doc: &Document,
+    results: &[AnovaResult],
+    expressions: &[Expression],
+) -> Result<Vec<String>, Diagnostic> {
+    let env = environment();
+    let ctx: BTreeMap<String, Value> = results
+        .iter()
+        .map(|r| (r.id.clone(), to_value(block_context(r))))
+        .collect();
+    let ctx_value = to_value(&ctx);
+    let mut out = Vec::with_capacity(expressions.len());
+    for e in expressions {
+        let (line, col) = doc.lines.line_col(&doc.source, e.range.start);
+        let fail = |err: minijinja::Error| expression_error(doc, results, e, line, col, err);
+        let expr = env.compile_expression(&e.source).map_err(fail)?;
+        let value = expr.eval(&ctx_value).map_err(fail)?;
+        if value.is_undefined() || value.is_none() {
+            return Err(doc
+                .error_at(line, Some(col), format!("`{}` has no value", e.source))
+                .hint("quote a number such as `{{ id.f }}` or `{{ id.p | pvalue }}`"));
+        }
+        out.push(display(&value));
+    }
+    Ok(out)
+}
+
+/// Floats print in shortest round-trip form, everything else as minijinja shows it.
+fn display(v: &Value) -> String {
+    v.to_string()
+}
+
+fn expression_error(
+    doc: &Document,
+    results: &[AnovaResult],
+    e: &Expression,
+    line: usize,
+    col: usize,
+    err: minijinja::Error,
+) -> Diagnostic {
+    let ids: Vec<&str> = results.iter().map(|r| r.id.as_str()).collect();
+    let head: String = e
+        .source
+        .chars()
+        .take_while(|c| c.is_ascii_alphanumeric() || *c == '_')
+        .collect();
+    let mut d;
+    if err.kind() == ErrorKind::UndefinedError {
+        if !head.is_empty() && !ids.contains(&head.as_str()) {
+            d = doc.error_at(
+                line,
+                Some(col),
+                format!("`{head}` is not the id of an analysis block"),
+            );
+            d = match crate::diag::nearest(&head, ids.iter().copied()) {
+                Some(n) => d.hint(format!("did you mean `{n}`?")),
+                None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
+                None => d.hint(format!(
+                    "the blocks in this document are {}",
+                    ids.join(", ")
+                )),
+            };
+        } else {
+            d = doc.error_at(
+                line,
+                Some(col),
+                format!(
+                    "`{}` names something the block `{head}` does not have",
+                    e.source
+                ),
+            );
+            d = d.hint("a block has f, p, df1, df2, f_crit, r_squared, n, n_excluded, alpha, terms.<factor>.<f|p|df|ss|ms|f_crit>, residual.<df|ss|ms>, groups.<level>.<n|mean|sd|se|ci_lower|ci_upper|letters>, letters.<level> and pairs");
+        }
+    } else {
+        let detail = err
+            .detail()
+            .map(str::to_string)
+            .unwrap_or_else(|| err.to_string());
+        d = doc.error_at(
+            line,
+            Some(col),
+            format!("cannot evaluate `{}`: {detail}", e.source),
+        );
+        d = d.hint(format!(
+            "expressions look like `{{{{ id.f | round(2) }}}}`; sheaf's filters are {}",
+            FILTERS.join(", ")
+        ));
+    }
+    d
+}

@@ -1,0 +1,299 @@
+//! Rendering stage: view models laid out by templates (embedded at compile
+//! time from `templates/`), prose from pulldown-cmark. HTML escaping happens
+//! in minijinja's HTML auto-escape and pulldown-cmark's writer; Markdown
+//! escaping happens in `markdown_escape`. Nowhere else.
+
+pub mod format;
+pub mod inline;
+pub mod view;
+
+use crate::analysis::{AnovaResult, Input};
+use crate::diag::Diagnostic;
+use crate::doc::Document;
+use crate::doc::markdown::markdown_options;
+use crate::results::sha256_hex;
+use minijinja::value::Value;
+use minijinja::{AutoEscape, Environment};
+use pulldown_cmark::{CowStr, Event, Parser};
+use serde::Serialize;
+
+/// Output format of the report.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    Html,
+    Markdown,
+}
+
+impl Format {
+    pub fn extension(self) -> &'static str {
+        match self {
+            Format::Html => "html",
+            Format::Markdown => "md",
+        }
+    }
+}
+
+/// The standing cautions printed at the end of every report.
+pub const CAUTIONS: [&str; 5] = [
+    "Statistical significance is not practical importance: judge each difference and its confidence interval against the smallest difference that matters in your setting.",
+    "A difference that is not significant does not show that levels are equivalent; equivalence needs its own test.",
+    "The analysis assumes independent observations, normally distributed errors and equal variances across levels. This report does not test those assumptions; check them before relying on the results.",
+    "Results must be reviewed by a qualified statistician or responsible scientist before they inform decisions or submissions.",
+    "Applicable regulatory guidance and local standard operating procedures take precedence over this tool's defaults.",
+];
+
+const TEMPLATES: [(&str, &str); 5] = [
+    ("block.html", include_str!("../../templates/block.html")),
+    ("block.md", include_str!("../../templates/block.md")),
+    ("report.html", include_str!("../../templates/report.html")),
+    ("report.md", include_str!("../../templates/report.md")),
+    ("report.css", include_str!("../../templates/report.css")),
+];
+
+fn template_source(name: &str) -> &'static str {
+    TEMPLATES
+        .iter()
+        .find(|(n, _)| *n == name)
+        .map_or("", |(_, s)| s)
+}
+
+/// Escapes text for inline Markdown: punctuation that could start markup is
+/// backslash-escaped; `<` only where it could open a tag.
+pub fn markdown_escape(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut chars = text.chars().peekable();
+    while let Some(c) = chars.next() {
+        match c {
+            '\\' | '`' | '*' | '_' | '[' | ']' | '|' | '~' | '#' | '!' => {
+                out.push('\\');
+                out.push(c);
+            }
+            '<' if chars
+                .peek()
+                .is_some_and(|n| n.is_ascii_alphabetic() || matches!(n, '/' | '!' | '?')) =>
+            {
+                out.push_str("\\<")
+            }
+            '&' if chars
+                .peek()
+                .is_some_and(|n| n.is_ascii_alphanumeric() || *n == '#') =>
+            {
+                out.push_str("\\&")
+            }
+            '\n' | '\r' => out.push(' '),
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
+/// A serializable view as a template value.
+pub(crate) fn to_value<T: Serialize>(x: T) -> Value {
+    Value::from(minijinja::value::Serde(x))
+}
+
+fn environment() -> Environment<'static> {
+    let mut env = Environment::new();
+    env.set_auto_escape_callback(|name| {
+        if name.ends_with(".html") {
+            AutoEscape::Html
+        } else if name.ends_with(".md") {
+            AutoEscape::Custom("markdown".into())
+        } else {
+            AutoEscape::None
+        }
+    });
+    env.set_formatter(|out, state, value| {
+        if matches!(state.auto_escape(), AutoEscape::Custom(n) if n == "markdown") {
+            let text = value.to_string();
+            let text = if value.is_safe() {
+                text
+            } else {
+                markdown_escape(&text)
+            };
+            return out.write_str(&text).map_err(minijinja::Error::from);
+        }
+        minijinja::escape_formatter(out, state, value)
+    });
+    for (name, _) in TEMPLATES {
+        // The templates are ours and fixed at compile time; a syntax error is
+        // caught by every test that renders a report.
+        let _ = env.add_template(name, template_source(name));
+    }
+    env
+}
+
+fn render(env: &Environment<'_>, name: &str, ctx: Value) -> Result<String, Diagnostic> {
+    env.get_template(name)
+        .and_then(|t| t.render(ctx))
+        .map_err(|e| Diagnostic::new(format!("internal error in template `{name}`: {e}")))
+}
+
+#[derive(Serialize)]
+struct InputView {
+    path: String,
+    bytes: usize,
+    sha256: String,
+}
+
+#[derive(Serialize)]
+struct DocumentView {
+    name: String,
+    sha256: String,
+}
+
+#[derive(Serialize)]
+struct FrontView {
+    title: Option<String>,
+    author: Option<String>,
+    date: Option<String>,
+}
+
+/// Marker standing for block `i` in the prose while it goes through the
+/// Markdown parser; replaced by the block's HTML afterwards.
+fn marker(i: usize) -> String {
+    format!("<!-- sheaf-block-{i} -->")
+}
+
+/// Renders the report. `results_name` is the results file's name, quoted in
+/// the provenance note.
+pub fn render_report(
+    doc: &Document,
+    results: &[AnovaResult],
+    inputs: &[Input],
+    format: Format,
+    document_name: &str,
+    results_name: &str,
+) -> Result<String, Diagnostic> {
+    let env = environment();
+    let values = inline::evaluate(doc, results, &doc.expressions)?;
+
+    // Block fragments, with tables numbered through the document.
+    let mut next_table = 1;
+    let mut fragments = Vec::with_capacity(results.len());
+    for r in results {
+        let v = view::block_view(r, &mut next_table);
+        let name = if format == Format::Html {
+            "block.html"
+        } else {
+            "block.md"
+        };
+        let text = render(&env, name, minijinja::context! { block => to_value(&v) })?;
+        fragments.push(if format == Format::Markdown {
+            tidy_markdown(&text)
+        } else {
+            text
+        });
+    }
+
+    // The body with expressions and blocks replaced, front matter dropped.
+    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
+    for (e, v) in doc.expressions.iter().zip(&values) {
+        edits.push((e.range.clone(), markdown_escape(v)));
+    }
+    for (i, b) in doc.blocks.iter().enumerate() {
+        let replacement = match format {
+            Format::Html => format!("{}\n", marker(i)),
+            Format::Markdown => fragments[i].clone(),
+        };
+        edits.push((b.range.clone(), replacement));
+    }
+    edits.sort_by_key(|(r, _)| r.start);
+    let mut body = String::with_capacity(doc.source.len());
+    let mut pos = doc.body_start;
+    for (range, text) in edits {
+        body.push_str(&doc.source[pos..range.start]);
+        body.push_str(&text);
+        pos = range.end;
+    }
+    body.push_str(&doc.source[pos..]);
+
+    let content = match format {
+        Format::Html => prose_html(&body, &fragments),
+        Format::Markdown => body.trim().to_string(),
+    };
+    let title = doc
+        .front
+        .title
+        .clone()
+        .unwrap_or_else(|| document_name.trim_end_matches(".md").to_string());
+    let ctx = minijinja::context! {
+        version => crate::VERSION,
+        title => title,
+        front => to_value(FrontView {
+            title: doc.front.title.clone(),
+            author: doc.front.author.clone(),
+            date: doc.front.date.clone(),
+        }),
+        content => Value::from_safe_string(content),
+        css => Value::from_safe_string(template_source("report.css").to_string()),
+        cautions => CAUTIONS.to_vec(),
+        document => to_value(DocumentView { name: document_name.to_string(), sha256: sha256_hex(doc.source.as_bytes()) }),
+        inputs => to_value(inputs.iter().map(|i| InputView { path: i.path.clone(), bytes: i.bytes.len(), sha256: sha256_hex(&i.bytes) }).collect::<Vec<_>>()),
+        results_name => results_name,
+    };
+    let name = if format == Format::Html {
+        "report.html"
+    } else {
+        "report.md"
+    };
+    let mut text = render(&env, name, ctx)?;
+    if !text.ends_with('\n') {
+        text.push('\n');
+    }
+    Ok(text)
+}
+
+/// One blank line between paragraphs and tables, one newline at the end.
+fn tidy_markdown(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut blank_run = 0;
+    for line in text.trim().lines() {
+        if line.trim().is_empty() {
+            blank_run += 1;
+            if blank_run > 1 {
+                continue;
+            }
+        } else {
+            blank_run = 0;
+        }
+        out.push_str(line.trim_end());
+        out.push('\n');
+    }
+    out
+}
+
+/// Markdown to HTML. Raw HTML written in the document is shown as text (a
+/// report carries no scripts); block markers become the blocks' HTML.
+fn prose_html(body: &str, fragments: &[String]) -> String {
+    let markers: Vec<String> = (0..fragments.len()).map(marker).collect();
+    let events = Parser::new_ext(body, markdown_options()).map(|event| match event {
+        Event::Html(h) | Event::InlineHtml(h) => match markers.iter().position(|m| h.trim() == m) {
+            Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
+            None => Event::Text(h),
+        },
+        other => other,
+    });
+    let mut html = String::with_capacity(body.len() * 2);
+    pulldown_cmark::html::push_html(&mut html, events);
+    html
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn markdown_escape_keeps_numbers_readable() {
+        assert_eq!(markdown_escape("< 0.001"), "< 0.001");
+        assert_eq!(markdown_escape("<script>"), "\\<script>");
+        assert_eq!(markdown_escape("a|b *c*"), "a\\|b \\*c\\*");
+    }
+
+    #[test]
+    fn raw_html_in_prose_is_text() {
+        let html = prose_html("Hello <script>alert(1)</script>\n", &[]);
+        assert!(html.contains("&lt;script&gt;"), "{html}");
+        assert!(!html.contains("<script>"));
+    }
+}

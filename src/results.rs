@@ -1,0 +1,280 @@
+//! The results file `<stem>.results.json`: a documented contract that other
+//! tools and checks read. Field names here are stable; new fields may be
+//! added, none renamed.
+//!
+//! Numbers are written in shortest round-trip form (serde_json uses `ryu`).
+//! A value that is not finite is written as `null`, and the block's
+//! `warnings` say why.
+
+use crate::analysis::{AnovaResult, Input};
+use serde::Serialize;
+use serde::ser::{SerializeMap, Serializer};
+use sha2::{Digest, Sha256};
+
+/// Version of this file's layout; raised when a field changes meaning.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// Lowercase hex SHA-256 of some bytes.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    let digest = Sha256::digest(bytes);
+    digest.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+fn finite(x: f64) -> Option<f64> {
+    x.is_finite().then_some(x)
+}
+
+#[derive(Serialize)]
+pub struct ResultsFile {
+    pub sheaf: String,
+    pub schema: u32,
+    pub document: String,
+    pub document_sha256: String,
+    pub inputs: Vec<InputRecord>,
+    pub blocks: Vec<BlockRecord>,
+}
+
+#[derive(Serialize)]
+pub struct InputRecord {
+    pub path: String,
+    pub sha256: String,
+    pub bytes: usize,
+}
+
+#[derive(Serialize)]
+pub struct BlockRecord {
+    pub id: String,
+    pub kind: &'static str,
+    pub line: usize,
+    pub data: String,
+    pub response: String,
+    pub factors: Vec<String>,
+    pub n: usize,
+    pub n_excluded: usize,
+    pub excluded: Vec<ExcludedRecord>,
+    pub alpha: f64,
+    pub anova: AnovaRecord,
+    pub groups: Vec<GroupRecord>,
+    pub comparisons: Vec<ComparisonRecord>,
+    pub warnings: Vec<String>,
+}
+
+#[derive(Serialize)]
+pub struct ExcludedRecord {
+    pub line: usize,
+    pub reason: String,
+}
+
+#[derive(Serialize)]
+pub struct AnovaRecord {
+    pub terms: Vec<TermRecord>,
+    pub residual: ResidualRecord,
+    pub total: TotalRecord,
+    pub r_squared: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct TermRecord {
+    pub term: String,
+    pub df: usize,
+    pub ss: Option<f64>,
+    pub ms: Option<f64>,
+    pub f: Option<f64>,
+    pub p: Option<f64>,
+    pub f_crit: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct ResidualRecord {
+    pub df: usize,
+    pub ss: Option<f64>,
+    pub ms: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct TotalRecord {
+    pub df: usize,
+    pub ss: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct GroupRecord {
+    pub level: String,
+    pub n: usize,
+    pub mean: Option<f64>,
+    pub sd: Option<f64>,
+    pub se: Option<f64>,
+    pub ci_lower: Option<f64>,
+    pub ci_upper: Option<f64>,
+    /// Which error term the interval uses: "pooled" (the ANOVA's MSE).
+    pub ci_error: &'static str,
+}
+
+#[derive(Serialize)]
+pub struct ComparisonRecord {
+    pub term: String,
+    pub within: Option<String>,
+    pub method: &'static str,
+    pub alpha: f64,
+    pub critical_value: Option<f64>,
+    pub pairs: Vec<PairRecord>,
+    pub letters: Letters,
+}
+
+#[derive(Serialize)]
+pub struct PairRecord {
+    pub a: String,
+    pub b: String,
+    pub diff: Option<f64>,
+    pub se: Option<f64>,
+    pub lower: Option<f64>,
+    pub upper: Option<f64>,
+    pub p_adj: Option<f64>,
+    pub significant: bool,
+}
+
+/// Level → letters, written in design order (not sorted by key).
+pub struct Letters(pub Vec<(String, String)>);
+
+impl Serialize for Letters {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut map = serializer.serialize_map(Some(self.0.len()))?;
+        for (k, v) in &self.0 {
+            map.serialize_entry(k, v)?;
+        }
+        map.end()
+    }
+}
+
+/// The record of one `anova` block.
+pub fn block_record(r: &AnovaResult) -> BlockRecord {
+    let t = &r.table;
+    let comparisons = r
+        .comparison
+        .iter()
+        .map(|c| ComparisonRecord {
+            term: r.factor.clone(),
+            within: None,
+            method: c.method.key(),
+            alpha: c.alpha,
+            critical_value: finite(c.critical),
+            pairs: c
+                .pairs
+                .iter()
+                .map(|p| PairRecord {
+                    a: r.levels[p.a].name.clone(),
+                    b: r.levels[p.b].name.clone(),
+                    diff: finite(p.diff),
+                    se: finite(p.se),
+                    lower: finite(p.lower),
+                    upper: finite(p.upper),
+                    p_adj: finite(p.p_adj),
+                    significant: p.significant,
+                })
+                .collect(),
+            letters: Letters(
+                r.levels
+                    .iter()
+                    .zip(&c.letters)
+                    .map(|(l, s)| (l.name.clone(), s.clone()))
+                    .collect(),
+            ),
+        })
+        .collect();
+    BlockRecord {
+        id: r.id.clone(),
+        kind: "anova",
+        line: r.line,
+        data: r.data.clone(),
+        response: r.response.clone(),
+        factors: vec![r.factor.clone()],
+        n: r.n,
+        n_excluded: r.exclusions.len(),
+        excluded: r
+            .exclusions
+            .iter()
+            .map(|e| ExcludedRecord {
+                line: e.line,
+                reason: e.reason.clone(),
+            })
+            .collect(),
+        alpha: r.alpha,
+        anova: AnovaRecord {
+            terms: vec![TermRecord {
+                term: r.factor.clone(),
+                df: t.df_between,
+                ss: finite(t.ss_between),
+                ms: finite(t.ms_between),
+                f: finite(t.f),
+                p: finite(t.p),
+                f_crit: finite(t.f_crit),
+            }],
+            residual: ResidualRecord {
+                df: t.df_within,
+                ss: finite(t.ss_within),
+                ms: finite(t.ms_within),
+            },
+            total: TotalRecord {
+                df: t.n - 1,
+                ss: finite(t.ss_total),
+            },
+            r_squared: finite(t.r_squared),
+        },
+        groups: r
+            .levels
+            .iter()
+            .map(|l| GroupRecord {
+                level: l.name.clone(),
+                n: l.n,
+                mean: finite(l.mean),
+                sd: finite(l.sd),
+                se: finite(l.se),
+                ci_lower: finite(l.ci_lower),
+                ci_upper: finite(l.ci_upper),
+                ci_error: "pooled",
+            })
+            .collect(),
+        comparisons,
+        warnings: r.warnings.clone(),
+    }
+}
+
+/// The whole results file, pretty-printed with a trailing newline.
+pub fn results_json(
+    document: &str,
+    document_bytes: &[u8],
+    inputs: &[Input],
+    blocks: &[AnovaResult],
+) -> Vec<u8> {
+    let file = ResultsFile {
+        sheaf: crate::VERSION.to_string(),
+        schema: SCHEMA_VERSION,
+        document: document.to_string(),
+        document_sha256: sha256_hex(document_bytes),
+        inputs: inputs
+            .iter()
+            .map(|i| InputRecord {
+                path: i.path.clone(),
+                sha256: sha256_hex(&i.bytes),
+                bytes: i.bytes.len(),
+            })
+            .collect(),
+        blocks: blocks.iter().map(block_record).collect(),
+    };
+    // Serializing plain structs of strings and numbers cannot fail.
+    let mut out = serde_json::to_vec_pretty(&file).unwrap_or_default();
+    out.push(b'\n');
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn sha256_of_abc() {
+        // Source: FIPS 180-2, appendix B.1 test vector for "abc".
+        assert_eq!(
+            super::sha256_hex(b"abc"),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+    }
+}
