@@ -223,7 +223,10 @@ pub fn evaluate(
         let fail = |err: minijinja::Error| expression_error(doc, results, e, line, col, err);
         let expr = env.compile_expression(&e.source).map_err(fail)?;
         let value = expr.eval(&ctx_value).map_err(fail)?;
-        if value.is_undefined() || value.is_none() {
+        if value.is_undefined() {
+            return Err(unknown_name_error(doc, results, e, line, col));
+        }
+        if value.is_none() {
             return Err(doc
                 .error_at(line, Some(col), format!("`{}` has no value", e.source))
                 .hint("quote a number such as `{{ id.f }}` or `{{ id.p | pvalue }}`"));
@@ -246,53 +249,56 @@ fn expression_error(
     col: usize,
     err: minijinja::Error,
 ) -> Diagnostic {
+    if err.kind() == ErrorKind::UndefinedError {
+        return unknown_name_error(doc, results, e, line, col);
+    }
+    let detail = err
+        .detail()
+        .map(str::to_string)
+        .unwrap_or_else(|| err.to_string());
+    doc.error_at(
+        line,
+        Some(col),
+        format!("cannot evaluate `{}`: {detail}", e.source),
+    )
+    .hint(format!(
+        "expressions look like `{{{{ id.f | round(2) }}}}`; sheaf's filters are {}",
+        FILTERS.join(", ")
+    ))
+}
+
+/// An expression that names a block or a quantity that does not exist.
+fn unknown_name_error(
+    doc: &Document,
+    results: &[AnovaResult],
+    e: &Expression,
+    line: usize,
+    col: usize,
+) -> Diagnostic {
     let ids: Vec<&str> = results.iter().map(|r| r.id.as_str()).collect();
     let head: String = e
         .source
         .chars()
         .take_while(|c| c.is_ascii_alphanumeric() || *c == '_')
         .collect();
-    let mut d;
-    if err.kind() == ErrorKind::UndefinedError {
-        if !head.is_empty() && !ids.contains(&head.as_str()) {
-            d = doc.error_at(
-                line,
-                Some(col),
-                format!("`{head}` is not the id of an analysis block"),
-            );
-            d = match crate::diag::nearest(&head, ids.iter().copied()) {
-                Some(n) => d.hint(format!("did you mean `{n}`?")),
-                None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
-                None => d.hint(format!(
-                    "the blocks in this document are {}",
-                    ids.join(", ")
-                )),
-            };
-        } else {
-            d = doc.error_at(
-                line,
-                Some(col),
-                format!(
-                    "`{}` names something the block `{head}` does not have",
-                    e.source
-                ),
-            );
-            d = d.hint("a block has f, p, df1, df2, f_crit, r_squared, n, n_excluded, alpha, terms.<factor>.<f|p|df|ss|ms|f_crit>, residual.<df|ss|ms>, groups.<level>.<n|mean|sd|se|ci_lower|ci_upper|letters>, letters.<level> and pairs");
-        }
-    } else {
-        let detail = err
-            .detail()
-            .map(str::to_string)
-            .unwrap_or_else(|| err.to_string());
-        d = doc.error_at(
+    if !head.is_empty() && !ids.contains(&head.as_str()) {
+        let d = doc.error_at(
             line,
             Some(col),
-            format!("cannot evaluate `{}`: {detail}", e.source),
+            format!("`{head}` is not the id of an analysis block"),
         );
-        d = d.hint(format!(
-            "expressions look like `{{{{ id.f | round(2) }}}}`; sheaf's filters are {}",
-            FILTERS.join(", ")
-        ));
+        return match crate::diag::nearest(&head, ids.iter().copied()) {
+            Some(n) => d.hint(format!("did you mean `{n}`?")),
+            None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
+            None => d.hint(format!(
+                "the blocks in this document are {}",
+                ids.join(", ")
+            )),
+        };
     }
-    d
+    doc.error_at(line, Some(col), format!("`{}` names something the block `{head}` does not have", e.source)).hint(
+        "a block has f, p, df1, df2, f_crit, r_squared, n, n_excluded, alpha, response, factor, method, \
+         terms.<factor>.<f|p|df|df1|df2|ss|ms|f_crit>, residual.<df|ss|ms>, \
+         groups.<level>.<n|mean|sd|se|ci_lower|ci_upper|letters>, letters.<level> and pairs",
+    )
 }

@@ -270,7 +270,8 @@ pub fn block_view(r: &AnovaResult, next_table: &mut usize) -> BlockView {
                 })
                 .collect();
             let interval = match c.method.key() {
-                "tukey" | "bonferroni" | "holm" => format!("{conf} simultaneous intervals"),
+                "holm" => format!("{conf} Bonferroni simultaneous intervals"),
+                "tukey" | "bonferroni" => format!("{conf} simultaneous intervals"),
                 _ => format!("{conf} intervals per pair"),
             };
             let number = take_number();

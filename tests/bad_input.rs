@@ -1,0 +1,377 @@
+//! Bad input: each broken document, data file or command line gives a clear
+//! message at the right place, exits with the right code, and writes
+//! nothing (an earlier report stays in place).
+
+use std::path::Path;
+use std::process::Command;
+
+const PLANTS: &str =
+    "weight,group\n4.17,ctrl\n5.58,ctrl\n4.81,trt1\n4.17,trt1\n6.31,trt2\n5.12,trt2\n";
+
+fn doc_with(body: &str) -> String {
+    format!("# Trial\n\n```anova\n{body}```\n")
+}
+
+const GOOD_BLOCK: &str = "id: growth\ndata: plants.csv\nmodel: weight ~ group\n";
+
+struct Case {
+    name: &'static str,
+    document: String,
+    files: Vec<(&'static str, Vec<u8>)>,
+    /// Every string must appear in stderr.
+    expect: Vec<&'static str>,
+}
+
+fn case(name: &'static str, document: String, expect: Vec<&'static str>) -> Case {
+    Case {
+        name,
+        document,
+        files: vec![("plants.csv", PLANTS.as_bytes().to_vec())],
+        expect,
+    }
+}
+
+fn with_data(mut c: Case, data: &[u8]) -> Case {
+    c.files = vec![("plants.csv", data.to_vec())];
+    c
+}
+
+fn run_case(c: &Case) {
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("report.md"), &c.document).expect("write doc");
+    for (name, bytes) in &c.files {
+        std::fs::write(dir.path().join(name), bytes).expect("write data");
+    }
+    // An earlier good report that a failed build must leave alone.
+    let out = dir.path().join("out");
+    std::fs::create_dir(&out).expect("out");
+    std::fs::write(out.join("report.html"), "EARLIER").expect("earlier");
+    let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["build", "report.md", "-o", "out"])
+        .output()
+        .expect("runs");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(
+        output.status.code(),
+        Some(1),
+        "{}: exit code\n{stderr}",
+        c.name
+    );
+    for want in &c.expect {
+        assert!(
+            stderr.contains(want),
+            "{}: expected `{want}` in\n{stderr}",
+            c.name
+        );
+    }
+    assert!(!stderr.contains("panicked"), "{}: panic\n{stderr}", c.name);
+    let names: Vec<String> = std::fs::read_dir(&out)
+        .expect("out")
+        .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
+        .collect();
+    assert_eq!(
+        names,
+        vec!["report.html"],
+        "{}: something was written",
+        c.name
+    );
+    assert_eq!(
+        std::fs::read_to_string(out.join("report.html")).expect("read"),
+        "EARLIER",
+        "{}",
+        c.name
+    );
+}
+
+fn cases() -> Vec<Case> {
+    vec![
+        case(
+            "unknown key",
+            doc_with(&format!("{GOOD_BLOCK}compar: tukey\n")),
+            vec![
+                "unknown key `compar`",
+                "report.md:7:1",
+                "did you mean `compare`?",
+            ],
+        ),
+        case(
+            "duplicate key",
+            doc_with(&format!("{GOOD_BLOCK}alpha: 0.05\nalpha: 0.01\n")),
+            vec![
+                "`alpha` is given twice",
+                "report.md:8:1",
+                "first `alpha` is on line 7",
+            ],
+        ),
+        case(
+            "alpha out of range",
+            doc_with(&format!("{GOOD_BLOCK}alpha: 1.5\n")),
+            vec!["`alpha` must be a number between 0 and 1", "report.md:7:8"],
+        ),
+        case(
+            "unknown procedure",
+            doc_with(&format!("{GOOD_BLOCK}compare: tukee\n")),
+            vec![
+                "unknown comparison procedure `tukee`",
+                "report.md:7",
+                "did you mean `tukey`?",
+            ],
+        ),
+        case(
+            "no model",
+            doc_with("data: plants.csv\n"),
+            vec!["this anova block has no `model`", "report.md:3:1"],
+        ),
+        case(
+            "formula without tilde",
+            doc_with("data: plants.csv\nmodel: weight group\n"),
+            vec!["expected `~` after the response", "report.md:5:15"],
+        ),
+        case(
+            "line that is not key: value",
+            doc_with("data plants.csv\n"),
+            vec!["expected `key: value`", "report.md:4:1"],
+        ),
+        case(
+            "missing data file",
+            doc_with("data: nowhere.csv\nmodel: weight ~ group\n"),
+            vec![
+                "cannot read data file `nowhere.csv`: no such file",
+                "report.md:4:7",
+            ],
+        ),
+        case(
+            "missing column",
+            doc_with("data: plants.csv\nmodel: wieght ~ group\n"),
+            vec![
+                "no column named `wieght`",
+                "plants.csv:1",
+                "did you mean `weight`?",
+                "read by the block",
+            ],
+        ),
+        with_data(
+            case(
+                "text in the response",
+                doc_with(GOOD_BLOCK),
+                vec!["`weight` must be a number, found `heavy`", "plants.csv:3:1"],
+            ),
+            b"weight,group\n4.1,a\nheavy,a\n5.0,b\n",
+        ),
+        with_data(
+            case(
+                "unterminated quote",
+                doc_with(GOOD_BLOCK),
+                vec!["a quoted field is never closed", "plants.csv:3"],
+            ),
+            b"weight,group\n4.1,a\n\"5.0,b\n6.0,b\n",
+        ),
+        with_data(
+            case(
+                "empty data file",
+                doc_with(GOOD_BLOCK),
+                vec!["the file is empty", "plants.csv"],
+            ),
+            b"",
+        ),
+        with_data(
+            case(
+                "one level",
+                doc_with(GOOD_BLOCK),
+                vec![
+                    "`group` needs two or more levels with data; only `a` has observations",
+                    "report.md:6",
+                ],
+            ),
+            b"weight,group\n4.1,a\n4.5,a\n",
+        ),
+        with_data(
+            case(
+                "ragged row",
+                doc_with(GOOD_BLOCK),
+                vec!["found 3 fields where the header has 2", "plants.csv:3"],
+            ),
+            b"weight,group\n4.1,a\n4,5,b\n",
+        ),
+        with_data(
+            case(
+                "invalid UTF-8",
+                doc_with(GOOD_BLOCK),
+                vec!["not valid UTF-8", "plants.csv:3"],
+            ),
+            b"weight,group\n4.1,a\n4.2,\xff\xfe\n",
+        ),
+        with_data(
+            case(
+                "infinity",
+                doc_with(GOOD_BLOCK),
+                vec!["`weight` must be a number, found `inf`", "infinite values"],
+            ),
+            b"weight,group\n4.1,a\ninf,b\n3,b\n",
+        ),
+        with_data(
+            case(
+                "semicolon file read as comma",
+                doc_with(GOOD_BLOCK),
+                vec!["single column", "delimiter: semicolon"],
+            ),
+            b"weight;group\n4,1;a\n",
+        ),
+        case(
+            "undefined block in prose",
+            format!("{}\nF was {{{{ grwth.f }}}}.\n", doc_with(GOOD_BLOCK)),
+            vec![
+                "`grwth` is not the id of an analysis block",
+                "report.md:9:7",
+                "did you mean `growth`?",
+            ],
+        ),
+        case(
+            "unknown field in prose",
+            format!("{}\nF was {{{{ growth.fstat }}}}.\n", doc_with(GOOD_BLOCK)),
+            vec![
+                "names something the block `growth` does not have",
+                "report.md:9:7",
+            ],
+        ),
+        case(
+            "unclosed expression",
+            format!("{}\nF was {{{{ growth.f.\n", doc_with(GOOD_BLOCK)),
+            vec!["`{{` is never closed", "report.md:9:7"],
+        ),
+        case(
+            "bad filter argument",
+            format!(
+                "{}\nF was {{{{ growth.response | pvalue }}}}.\n",
+                doc_with(GOOD_BLOCK)
+            ),
+            vec![
+                "cannot evaluate",
+                "`pvalue` expects a number",
+                "report.md:9",
+            ],
+        ),
+        case(
+            "duplicate id",
+            format!(
+                "{}\n{}",
+                doc_with(GOOD_BLOCK),
+                doc_with(GOOD_BLOCK).replace("# Trial\n\n", "")
+            ),
+            vec!["the id `growth` is already used", "report.md:10"],
+        ),
+        case(
+            "data is a folder",
+            doc_with("data: .\nmodel: weight ~ group\n"),
+            vec!["cannot read data file `.`", "folder"],
+        ),
+        case(
+            "unknown front matter key",
+            format!("---\ntitel: A\n---\n{}", doc_with(GOOD_BLOCK)),
+            vec![
+                "unknown front-matter key `titel`",
+                "report.md:2:1",
+                "did you mean `title`?",
+            ],
+        ),
+        case(
+            "unclosed front matter",
+            format!("---\ntitle: A\n{}", doc_with(GOOD_BLOCK)),
+            vec!["the front matter is never closed", "report.md:1"],
+        ),
+        case(
+            "level not in data",
+            doc_with(&format!("{GOOD_BLOCK}levels: ctrl, trt1, trt3\n")),
+            vec![
+                "level `trt3` does not occur in column `group`",
+                "did you mean `trt1`?",
+                "report.md:7:9",
+            ],
+        ),
+        case(
+            "level missing from levels",
+            doc_with(&format!("{GOOD_BLOCK}levels: ctrl, trt1\n")),
+            vec![
+                "level `trt2` occurs in the data but is not listed",
+                "report.md:7",
+            ],
+        ),
+        case(
+            "two-factor model",
+            doc_with("data: plants.csv\nmodel: weight ~ group * site\n"),
+            vec![
+                "this version of sheaf fits one treatment factor",
+                "report.md:5",
+            ],
+        ),
+        case(
+            "nested block",
+            "- item\n\n  ```anova\n  data: plants.csv\n  model: weight ~ group\n  ```\n"
+                .to_string(),
+            vec!["inside a list or quote", "report.md:3"],
+        ),
+        case(
+            "protected without lsd",
+            doc_with(&format!("{GOOD_BLOCK}protected: yes\n")),
+            vec!["`protected` applies only to `compare: lsd`", "report.md:7"],
+        ),
+        case(
+            "unknown table in show",
+            doc_with(&format!("{GOOD_BLOCK}show: anova, mean\n")),
+            vec!["unknown table `mean` in `show`", "did you mean `means`?"],
+        ),
+        case(
+            "decimal comma with comma delimiter",
+            doc_with(&format!("{GOOD_BLOCK}decimal: comma\n")),
+            vec!["a decimal comma needs another field delimiter"],
+        ),
+        case(
+            "bad id",
+            doc_with("id: 3rd\ndata: plants.csv\nmodel: weight ~ group\n"),
+            vec!["`3rd` is not a usable id", "report.md:4"],
+        ),
+        Case {
+            name: "document not UTF-8",
+            document: String::new(),
+            files: vec![("report.md", b"# T\n\xff\n".to_vec())],
+            expect: vec!["the document is not valid UTF-8", "report.md:2"],
+        },
+    ]
+}
+
+#[test]
+fn every_bad_input_is_reported_at_its_place_and_writes_nothing() {
+    let all = cases();
+    assert!(all.len() >= 15);
+    for c in &all {
+        run_case(c);
+    }
+}
+
+#[test]
+fn usage_errors_exit_with_two() {
+    let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(["build", "report.md"])
+        .output()
+        .expect("runs");
+    assert_eq!(output.status.code(), Some(2));
+    let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .args(["build", "x.md", "-o", "o", "--to", "pdf"])
+        .output()
+        .expect("runs");
+    assert_eq!(output.status.code(), Some(2));
+}
+
+#[test]
+fn a_missing_document_exits_with_one() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["build", "absent.md", "-o", "out"])
+        .output()
+        .expect("runs");
+    assert_eq!(output.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&output.stderr).contains("cannot read absent.md"));
+    assert!(!Path::new(&dir.path().join("out")).exists());
+}
