@@ -151,3 +151,131 @@ fn dobson_tukey_matches_published_output() {
     assert!((last.p_adj - 0.01200642).abs() < 5e-9);
     assert!((last.upper - last.diff - 0.69121605).abs() < 5e-9);
 }
+
+fn anova_of(groups: &[&[f64]]) -> sheaf::stats::oneway::OneWay {
+    let s: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    one_way(&s, 0.05, None).expect("anova")
+}
+
+#[test]
+fn textbook_examples_reproduce_their_printed_tables() {
+    // Source: Montgomery, Design and Analysis of Experiments, 5th ed. (2001),
+    // Example 3-1, tensile strength by cotton weight percent (from memory, via
+    // METHODS 6.1A): SS_trt = 475.76, SS_E = 161.20, F = 14.76; printed to the
+    // digits shown, so agreement is to half a unit in the last printed digit.
+    let t = anova_of(&[
+        &[7.0, 7.0, 15.0, 11.0, 9.0],
+        &[12.0, 17.0, 12.0, 18.0, 18.0],
+        &[14.0, 18.0, 18.0, 19.0, 19.0],
+        &[19.0, 25.0, 22.0, 19.0, 23.0],
+        &[7.0, 10.0, 11.0, 15.0, 11.0],
+    ]);
+    assert!((t.ss_between - 475.76).abs() < 0.005 && (t.ss_within - 161.20).abs() < 0.005);
+    assert!((t.f - 14.76).abs() < 0.005);
+    // Computed in METHODS 6.1A with scipy: F = 14.756824, p = 9.128e-06.
+    assert!((t.p - 9.128e-6).abs() < 5e-10);
+
+    // Montgomery, 8th ed. (2013), Example 3.1, etch rate by RF power (from
+    // memory, METHODS 6.1B): SS_trt = 66,870.55, SS_E = 5,339.20, F = 66.80.
+    let t = anova_of(&[
+        &[575.0, 542.0, 530.0, 539.0, 570.0],
+        &[565.0, 593.0, 590.0, 579.0, 610.0],
+        &[600.0, 651.0, 610.0, 637.0, 629.0],
+        &[725.0, 700.0, 715.0, 685.0, 710.0],
+    ]);
+    assert!((t.ss_between - 66870.55).abs() < 0.005 && (t.ss_within - 5339.20).abs() < 0.005);
+    assert!((t.f - 66.80).abs() < 0.005);
+
+    // Chick weights by feed, unequal n (Anonymous 1948, Biometrika 35:214, via
+    // McNeil 1977; data and F(5, 65) = 15.365 from memory, METHODS 6.1D).
+    let t = anova_of(&[
+        &[
+            179.0, 160.0, 136.0, 227.0, 217.0, 168.0, 108.0, 124.0, 143.0, 140.0,
+        ],
+        &[
+            309.0, 229.0, 181.0, 141.0, 260.0, 203.0, 148.0, 169.0, 213.0, 257.0, 244.0, 271.0,
+        ],
+        &[
+            243.0, 230.0, 248.0, 327.0, 329.0, 250.0, 193.0, 271.0, 316.0, 267.0, 199.0, 171.0,
+            158.0, 248.0,
+        ],
+        &[
+            423.0, 340.0, 392.0, 339.0, 341.0, 226.0, 320.0, 295.0, 334.0, 322.0, 297.0, 318.0,
+        ],
+        &[
+            325.0, 257.0, 303.0, 315.0, 380.0, 153.0, 263.0, 242.0, 206.0, 344.0, 258.0,
+        ],
+        &[
+            368.0, 390.0, 379.0, 260.0, 404.0, 318.0, 352.0, 359.0, 216.0, 222.0, 283.0, 332.0,
+        ],
+    ]);
+    assert_eq!((t.df_between, t.df_within), (5, 65));
+    assert!((t.f - 15.365).abs() < 0.0005);
+    // Computed (scipy, METHODS 6.1D): SSB = 231129.162, p = 5.9364e-10.
+    assert!((t.ss_between - 231129.162).abs() < 0.0005);
+    assert!((t.p - 5.9364e-10).abs() < 5e-14);
+}
+
+#[test]
+fn chick_weight_tukey_kramer_with_unequal_n() {
+    // Source: METHODS 6.4, computed with scipy.stats.tukey_hsd on the chick
+    // weight data (unequal n): soybean−linseed p = 0.793285,
+    // casein−soybean p = 0.008365, linseed−horsebean p = 0.141333; printed to
+    // 6 digits, so agreement is to 5e-7 (within ptukey's 1e-8 bar).
+    let groups: [&[f64]; 6] = [
+        &[
+            179.0, 160.0, 136.0, 227.0, 217.0, 168.0, 108.0, 124.0, 143.0, 140.0,
+        ],
+        &[
+            309.0, 229.0, 181.0, 141.0, 260.0, 203.0, 148.0, 169.0, 213.0, 257.0, 244.0, 271.0,
+        ],
+        &[
+            243.0, 230.0, 248.0, 327.0, 329.0, 250.0, 193.0, 271.0, 316.0, 267.0, 199.0, 171.0,
+            158.0, 248.0,
+        ],
+        &[
+            423.0, 340.0, 392.0, 339.0, 341.0, 226.0, 320.0, 295.0, 334.0, 322.0, 297.0, 318.0,
+        ],
+        &[
+            325.0, 257.0, 303.0, 315.0, 380.0, 153.0, 263.0, 242.0, 206.0, 344.0, 258.0,
+        ],
+        &[
+            368.0, 390.0, 379.0, 260.0, 404.0, 318.0, 352.0, 359.0, 216.0, 222.0, 283.0, 332.0,
+        ],
+    ];
+    let s: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    let t = one_way(&s, 0.05, None).expect("anova");
+    let levels: Vec<LevelMean> = s
+        .iter()
+        .map(|g| LevelMean {
+            n: g.n,
+            mean: g.mean,
+        })
+        .collect();
+    let tk = pairwise(
+        &levels,
+        t.ms_within,
+        t.df_within as f64,
+        0.05,
+        Method::Tukey,
+    );
+    let p = |a: usize, b: usize| {
+        tk.pairs
+            .iter()
+            .find(|x| (x.a, x.b) == (a, b))
+            .expect("pair")
+            .p_adj
+    };
+    // Order: 0 horsebean, 1 linseed, 2 soybean, 3 sunflower, 4 meatmeal, 5 casein.
+    assert!((p(2, 1) - 0.793285).abs() < 5e-7);
+    assert!((p(5, 2) - 0.008365).abs() < 5e-7);
+    assert!((p(1, 0) - 0.141333).abs() < 5e-7);
+    assert!((p(4, 2) - 0.739136).abs() < 5e-7);
+    assert!((p(5, 3) - 0.99989).abs() < 5e-6);
+}
