@@ -280,20 +280,4 @@ fn prose_html(body: &str, fragments: &[String]) -> String {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn markdown_escape_keeps_numbers_readable() {
-        assert_eq!(markdown_escape("< 0.001"), "< 0.001");
-        assert_eq!(markdown_escape("<script>"), "\\<script>");
-        assert_eq!(markdown_escape("a|b *c*"), "a\\|b \\*c\\*");
-    }
-
-    #[test]
-    fn raw_html_in_prose_is_text() {
-        let html = prose_html("Hello <script>alert(1)</script>\n", &[]);
-        assert!(html.contains("&lt;script&gt;"), "{html}");
-        assert!(!html.contains("<script>"));
-    }
-}
+mod tests;

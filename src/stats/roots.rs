@@ -76,10 +76,5 @@ pub fn brent(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tol_abs: f64, tol_re
 }
 
 #[cfg(test)]
-mod tests {
-    #[test]
-    fn finds_square_root_of_two() {
-        let r = super::brent(|x| x * x - 2.0, 0.0, 2.0, 0.0, 1e-15);
-        assert!((r - std::f64::consts::SQRT_2).abs() < 1e-14);
-    }
-}
+#[path = "roots_tests.rs"]
+mod tests;
