@@ -193,10 +193,10 @@ pub fn run_anova(
         .map(|&i| GroupSummary::from_values(&data.levels[i].offsets))
         .collect();
     let total_ss = total_sum_of_squares(used.iter().map(|&i| data.levels[i].offsets.as_slice()));
-    let table = match one_way(&summaries, alpha, Some(total_ss)) {
-        Ok(t) => t,
-        Err(OneWayError::TooFewLevels(_)) => unreachable_two_levels(doc, block)?,
-    };
+    // Two or more levels were checked above, so `one_way` cannot refuse.
+    let table = one_way(&summaries, alpha, Some(total_ss)).map_err(|OneWayError::TooFewLevels(k)| {
+        doc.error_at(block.line, None, format!("internal error: {k} level(s) reached the analysis"))
+    })?;
     warnings.extend(table.warnings.iter().cloned());
     for &i in &used {
         if data.levels[i].offsets.len() == 1 {
@@ -341,15 +341,6 @@ pub fn run_anova(
         order: spec.order,
         show: spec.show,
     })
-}
-
-/// `one_way` refuses fewer than two levels, which was checked just before.
-fn unreachable_two_levels(doc: &Document, block: &Block) -> Result<OneWay, Diagnostic> {
-    Err(doc.error_at(
-        block.line,
-        None,
-        "internal error: fewer than two levels reached the analysis",
-    ))
 }
 
 fn formula_text(f: &crate::doc::formula::Formula) -> String {
