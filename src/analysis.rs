@@ -194,9 +194,14 @@ pub fn run_anova(
         .collect();
     let total_ss = total_sum_of_squares(used.iter().map(|&i| data.levels[i].offsets.as_slice()));
     // Two or more levels were checked above, so `one_way` cannot refuse.
-    let table = one_way(&summaries, alpha, Some(total_ss)).map_err(|OneWayError::TooFewLevels(k)| {
-        doc.error_at(block.line, None, format!("internal error: {k} level(s) reached the analysis"))
-    })?;
+    let table =
+        one_way(&summaries, alpha, Some(total_ss)).map_err(|OneWayError::TooFewLevels(k)| {
+            doc.error_at(
+                block.line,
+                None,
+                format!("internal error: {k} level(s) reached the analysis"),
+            )
+        })?;
     warnings.extend(table.warnings.iter().cloned());
     for &i in &used {
         if data.levels[i].offsets.len() == 1 {
