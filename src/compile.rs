@@ -72,6 +72,11 @@ pub fn compile(
             .at(doc_display, Some(line), None)
             .hint("save the document as UTF-8")
     })?;
+    // A byte-order mark is not part of the text (editors on some systems add one).
+    let source = source
+        .strip_prefix('\u{feff}')
+        .map(str::to_string)
+        .unwrap_or(source);
     let doc = parse_document(doc_display, source)?;
 
     let mut inputs: Vec<Input> = Vec::new();
@@ -107,7 +112,14 @@ pub fn compile(
     }
 
     let results_name = format!("{stem}.results.json");
-    let report = render_report(&doc, &results, &inputs, format, &file_name, &results_name)?;
+    let report = render_report(
+        &doc,
+        &results,
+        &inputs,
+        format,
+        (&file_name, doc_bytes),
+        &results_name,
+    )?;
     let name = doc.name.as_str();
     let warnings = results
         .iter()
@@ -121,7 +133,7 @@ pub fn compile(
         report_name: format!("{stem}.{}", format.extension()),
         report: report.into_bytes(),
         results_name,
-        results: results_json(&file_name, doc.source.as_bytes(), &inputs, &results),
+        results: results_json(&file_name, doc_bytes, &inputs, &results),
         warnings,
     })
 }

@@ -155,14 +155,14 @@ fn marker(i: usize) -> String {
     format!("<!-- sheaf-block-{i} -->")
 }
 
-/// Renders the report. `results_name` is the results file's name, quoted in
-/// the provenance note.
+/// Renders the report. The document's name and bytes (as read, for its
+/// hash) and the results file's name appear in the provenance note.
 pub fn render_report(
     doc: &Document,
     results: &[AnovaResult],
     inputs: &[Input],
     format: Format,
-    document_name: &str,
+    (document_name, document_bytes): (&str, &[u8]),
     results_name: &str,
 ) -> Result<String, Diagnostic> {
     let env = environment();
@@ -228,7 +228,7 @@ pub fn render_report(
         content => Value::from_safe_string(content),
         css => Value::from_safe_string(template_source("report.css").to_string()),
         cautions => CAUTIONS.to_vec(),
-        document => to_value(DocumentView { name: document_name.to_string(), sha256: sha256_hex(doc.source.as_bytes()) }),
+        document => to_value(DocumentView { name: document_name.to_string(), sha256: sha256_hex(document_bytes) }),
         inputs => to_value(inputs.iter().map(|i| InputView { path: i.path.clone(), bytes: i.bytes.len(), sha256: sha256_hex(&i.bytes) }).collect::<Vec<_>>()),
         results_name => results_name,
     };

@@ -40,6 +40,26 @@ impl GroupSummary {
         }
     }
 
+    /// Combines the summaries of two disjoint parts of one group (Chan, Golub
+    /// & LeVeque 1983), so a reader can summarise a file chunk by chunk and
+    /// merge the chunks in a fixed order.
+    pub fn merge(&self, other: &GroupSummary) -> GroupSummary {
+        if self.n == 0 {
+            return *other;
+        }
+        if other.n == 0 {
+            return *self;
+        }
+        let (na, nb) = (self.n as f64, other.n as f64);
+        let n = na + nb;
+        let delta = other.mean - self.mean;
+        GroupSummary {
+            n: self.n + other.n,
+            mean: self.mean + delta * nb / n,
+            ss: self.ss + other.ss + delta * delta * na * nb / n,
+        }
+    }
+
     /// Sample variance (divisor n − 1); NaN for n < 2.
     pub fn variance(&self) -> f64 {
         if self.n < 2 {
