@@ -5,7 +5,7 @@
 //! refined by safeguarded Newton steps on the log survival function, which
 //! stays accurate at ν = 1e7 where bisection-based inverses drift.
 
-use super::special::{inc_beta_pair, ln_beta, ln_beta_density};
+use super::special::{inc_beta_pair, inc_gamma_pair, ln_beta, ln_beta_density};
 
 const SQRT_2: f64 = std::f64::consts::SQRT_2;
 const LN_SQRT_2PI: f64 = 0.918_938_533_204_672_8;
@@ -144,6 +144,14 @@ pub fn f_pdf(f: f64, d1: f64, d2: f64) -> f64 {
 /// Upper-tail F quantile: f with P(F > f) = p (the F critical value at α = p).
 pub fn f_isf(p: f64, d1: f64, d2: f64) -> f64 {
     invert_upper_tail(p, 1.0, |f| (f_sf(f, d1, d2), f_pdf(f, d1, d2)))
+}
+
+/// χ² survival function P(X > x) with `df` degrees of freedom.
+pub fn chi2_sf(x: f64, df: f64) -> f64 {
+    if x.is_nan() {
+        return f64::NAN;
+    }
+    inc_gamma_pair(df / 2.0, x / 2.0).1
 }
 
 /// Solves sf(x) = p for x > 0, where `eval` returns (sf(x), pdf(x)).

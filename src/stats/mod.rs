@@ -1,5 +1,7 @@
 //! Statistics: pure functions on numbers. No I/O, no formatting, no Markdown.
 
+pub mod assumptions;
+pub mod chi_scale;
 pub mod compare;
 pub mod dist;
 pub mod letters;

@@ -141,3 +141,57 @@ fn ln_of(x: f64, y: f64) -> f64 {
 #[cfg(test)]
 #[path = "special_tests.rs"]
 mod tests;
+
+/// Regularized lower and upper incomplete gamma P(a, x) and Q(a, x), each
+/// computed directly: the series for P when x < a + 1, the continued
+/// fraction (modified Lentz) for Q otherwise (Numerical Recipes, 3rd ed., §6.2).
+pub fn inc_gamma_pair(a: f64, x: f64) -> (f64, f64) {
+    if x <= 0.0 {
+        return (0.0, 1.0);
+    }
+    if x.is_infinite() {
+        return (1.0, 0.0);
+    }
+    let log_front = a * x.ln() - x - ln_gamma(a);
+    if x < a + 1.0 {
+        let mut term = 1.0 / a;
+        let mut sum = term;
+        let mut ap = a;
+        for _ in 0..100_000 {
+            ap += 1.0;
+            term *= x / ap;
+            sum += term;
+            if term.abs() < sum.abs() * 1e-17 {
+                break;
+            }
+        }
+        let p = (sum * log_front.exp()).clamp(0.0, 1.0);
+        (p, 1.0 - p)
+    } else {
+        const TINY: f64 = 1e-300;
+        let mut b = x + 1.0 - a;
+        let mut c = 1.0 / TINY;
+        let mut d = 1.0 / b;
+        let mut h = d;
+        for i in 1..100_000 {
+            let an = -(i as f64) * (i as f64 - a);
+            b += 2.0;
+            d = an * d + b;
+            if d.abs() < TINY {
+                d = TINY;
+            }
+            c = b + an / c;
+            if c.abs() < TINY {
+                c = TINY;
+            }
+            d = 1.0 / d;
+            let delta = d * c;
+            h *= delta;
+            if (delta - 1.0).abs() < 1e-16 {
+                break;
+            }
+        }
+        let q = (log_front.exp() * h).clamp(0.0, 1.0);
+        (1.0 - q, q)
+    }
+}

@@ -180,8 +180,107 @@ def oneway():
             "statsmodels": statsmodels.__version__, "alpha": 0.05, "cases": cases}
 
 
+def robust_case(name, path, response, factor, source, control):
+    """Checks, alternatives and further procedures for one dataset."""
+    import pingouin as pg
+    import scikit_posthocs as sp
+
+    df = pd.read_csv(path, dtype={factor: str})
+    levels = list(dict.fromkeys(df[factor]))
+    groups = [df.loc[df[factor] == lv, response].to_numpy(float) for lv in levels]
+    k, n = len(groups), len(df)
+    means = [g.mean() for g in groups]
+    resid = np.concatenate([g - g.mean() for g in groups])
+    mse = float(sum(((g - g.mean()) ** 2).sum() for g in groups) / (n - k))
+    nu = n - k
+    alpha = 0.05
+    pairs = [(j, i) for i in range(k) for j in range(i + 1, k)]
+    m = len(pairs)
+
+    bf = stats.levene(*groups, center="median")
+    lev = stats.levene(*groups, center="mean")
+    bart = stats.bartlett(*groups)
+    sw = stats.shapiro(resid)
+    checks = {
+        "brown_forsythe": {"statistic": num(bf.statistic), "p": num(bf.pvalue)},
+        "levene": {"statistic": num(lev.statistic), "p": num(lev.pvalue)},
+        "bartlett": {"statistic": num(bart.statistic), "p": num(bart.pvalue)},
+        "shapiro_wilk": {"w": num(sw.statistic), "p": num(sw.pvalue), "n": len(resid)},
+        "skewness": num(stats.skew(resid, bias=False)),
+        "excess_kurtosis": num(stats.kurtosis(resid, bias=False)),
+    }
+
+    long = pd.DataFrame({"y": df[response].astype(float), "g": df[factor]})
+    w = pg.welch_anova(data=long, dv="y", between="g")
+    welch = {"f": num(w["F"].iloc[0]), "df1": num(w["ddof1"].iloc[0]), "df2": num(w["ddof2"].iloc[0]),
+             "p": num(w["p_unc"].iloc[0] if "p_unc" in w else w["p-unc"].iloc[0])}
+    gh = pg.pairwise_gameshowell(data=long, dv="y", between="g")
+    games_howell = []
+    for a, b in pairs:
+        row = gh[((gh["A"] == levels[a]) & (gh["B"] == levels[b])) | ((gh["A"] == levels[b]) & (gh["B"] == levels[a]))].iloc[0]
+        sign = 1.0 if row["A"] == levels[a] else -1.0
+        pcol = "pval" if "pval" in row else "p-tukey"
+        games_howell.append({"a": levels[a], "b": levels[b], "diff": num(sign * row["diff"]),
+                             "se": num(row["se"]), "df": num(row["df"]), "p_adj": num(row[pcol])})
+
+    kw = stats.kruskal(*groups)
+    dunn_b = sp.posthoc_dunn(long, val_col="y", group_col="g", p_adjust="bonferroni")
+    dunn_h = sp.posthoc_dunn(long, val_col="y", group_col="g", p_adjust="holm")
+    dunn = [{"a": levels[a], "b": levels[b], "p_bonferroni": num(dunn_b.loc[levels[a], levels[b]]),
+             "p_holm": num(dunn_h.loc[levels[a], levels[b]])} for a, b in pairs]
+    scheffe_m = sp.posthoc_scheffe(long, val_col="y", group_col="g")
+    scheffe = [{"a": levels[a], "b": levels[b], "p_adj": num(scheffe_m.loc[levels[a], levels[b]])} for a, b in pairs]
+    raw = []
+    for a, b in pairs:
+        se = math.sqrt(mse * (1 / len(groups[a]) + 1 / len(groups[b])))
+        raw.append(2 * stats.t.sf(abs(means[a] - means[b]) / se, nu))
+    sidak = [{"a": levels[a], "b": levels[b], "p_adj": num(p)}
+             for (a, b), p in zip(pairs, multipletests(raw, method="sidak")[1])]
+
+    ci = levels.index(control)
+    others = [i for i in range(k) if i != ci]
+    dn = stats.dunnett(*[groups[i] for i in others], control=groups[ci], rng=np.random.default_rng(1))
+    dunnett = [{"treatment": levels[i], "p_adj": num(p)} for i, p in zip(others, dn.pvalue)]
+
+    ss_b = sum(len(g) * (g.mean() - np.concatenate(groups).mean()) ** 2 for g in groups)
+    f_obs = (ss_b / (k - 1)) / mse
+    return {
+        "name": name, "source": source, "csv": str(path.relative_to(ROOT)), "response": response,
+        "factor": factor, "levels": levels, "control": control, "checks": checks, "welch": welch,
+        "games_howell": games_howell,
+        "kruskal": {"h": num(kw.statistic), "df": k - 1, "p": num(kw.pvalue),
+                    "medians": [num(np.median(g)) for g in groups]},
+        "dunn": dunn, "scheffe": scheffe, "sidak": sidak, "dunnett_scipy": dunnett,
+        "effect": {"f": num(f_obs), "df1": k - 1, "df2": nu,
+                   "ncf_cdf_at_f": [{"nc": nc, "cdf": num(stats.ncf.cdf(f_obs, k - 1, nu, nc))}
+                                    for nc in [0.5, 2.0, 8.0, 25.0]]},
+    }
+
+
+def robust():
+    data = ROOT / "tests" / "data"
+    import pingouin
+    import scikit_posthocs
+    cases = [
+        robust_case("plant_growth", data / "open" / "PlantGrowth.csv", "weight", "group",
+                    "Dobson (1983) plant weights", "ctrl"),
+        robust_case("assay", data / "invented" / "assay.csv", "signal", "condition",
+                    "invented, unequal spreads and n, ties", "A"),
+        robust_case("primer", data / "invented" / "primer.csv", "strength", "primer",
+                    "invented, unequal n", "P0"),
+    ]
+    ncf = []
+    for d1, d2 in [(2, 27), (3, 16), (4, 120), (1, 10)]:
+        for nc in [0.0, 1.0, 5.0, 20.0, 80.0]:
+            for x in [0.5, 2.0, 4.0, 10.0]:
+                ncf.append({"x": x, "d1": d1, "d2": d2, "nc": nc, "cdf": num(stats.ncf.cdf(x, d1, d2, nc))})
+    return {"generator": "tests/reference/generate.py", "scipy": scipy.__version__,
+            "pingouin": pingouin.__version__, "scikit_posthocs": scikit_posthocs.__version__,
+            "statsmodels": statsmodels.__version__, "cases": cases, "ncf_cdf": ncf}
+
+
 def main():
-    for name, builder in [("oneway.json", oneway), ("distributions.json", distributions)]:
+    for name, builder in [("oneway.json", oneway), ("distributions.json", distributions), ("robust.json", robust)]:
         text = json.dumps(builder(), indent=1, allow_nan=False)
         (OUT / name).write_text(text + "\n")
         print("wrote", OUT / name)

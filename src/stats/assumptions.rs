@@ -1,0 +1,290 @@
+//! Assumption checks for a one-way layout: homogeneity of variance
+//! (Brown-Forsythe, Levene, Bartlett), normality of residuals (Shapiro-Wilk,
+//! skewness, excess kurtosis) and outlying observations (METHODS 3.13, 3.14).
+
+use super::dist::{chi2_sf, normal_isf, normal_sf, t_sf};
+use super::oneway::{GroupSummary, one_way};
+use super::sum::neumaier;
+
+/// An F test on (k − 1, N − k) df.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FTest {
+    pub statistic: f64,
+    pub df1: f64,
+    pub df2: f64,
+    pub p: f64,
+}
+
+/// A χ² test.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ChiSquareTest {
+    pub statistic: f64,
+    pub df: f64,
+    pub p: f64,
+}
+
+/// Where Levene's absolute deviations are taken from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Center {
+    /// Levene (1960): deviations from each level's mean.
+    Mean,
+    /// Brown & Forsythe (1974): deviations from each level's median.
+    Median,
+}
+
+/// The median of a sample (mean of the two middle values for even n).
+pub fn median(values: &[f64]) -> f64 {
+    if values.is_empty() {
+        return f64::NAN;
+    }
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    let m = v.len() / 2;
+    if v.len() % 2 == 1 {
+        v[m]
+    } else {
+        0.5 * (v[m - 1] + v[m])
+    }
+}
+
+/// Levene's test (`Center::Mean`) or the Brown-Forsythe test
+/// (`Center::Median`): a one-way ANOVA F on |y − centreᵢ|. `None` when it is
+/// undefined (fewer than two levels, no residual df, or no spread at all).
+pub fn levene(groups: &[&[f64]], center: Center) -> Option<FTest> {
+    let deviations: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| {
+            let c = match center {
+                Center::Mean => neumaier(g.iter().copied()) / g.len() as f64,
+                Center::Median => median(g),
+            };
+            let z: Vec<f64> = g.iter().map(|y| (y - c).abs()).collect();
+            GroupSummary::from_values(&z)
+        })
+        .collect();
+    let t = one_way(&deviations, 0.05, None).ok()?;
+    (t.f.is_finite() && t.df_within > 0).then_some(FTest {
+        statistic: t.f,
+        df1: t.df_between as f64,
+        df2: t.df_within as f64,
+        p: t.p,
+    })
+}
+
+/// Bartlett's test (Bartlett 1937) from group summaries; `None` when a level
+/// has fewer than two observations or no spread.
+pub fn bartlett(groups: &[GroupSummary]) -> Option<ChiSquareTest> {
+    let k = groups.len();
+    if k < 2 || groups.iter().any(|g| g.n < 2 || !(g.variance() > 0.0)) {
+        return None;
+    }
+    let n: usize = groups.iter().map(|g| g.n).sum();
+    let nu = (n - k) as f64;
+    let pooled = neumaier(groups.iter().map(|g| g.ss)) / nu;
+    let numerator =
+        nu * pooled.ln() - neumaier(groups.iter().map(|g| (g.n - 1) as f64 * g.variance().ln()));
+    let correction = 1.0
+        + (neumaier(groups.iter().map(|g| 1.0 / (g.n - 1) as f64)) - 1.0 / nu)
+            / (3.0 * (k - 1) as f64);
+    let statistic = numerator / correction;
+    let df = (k - 1) as f64;
+    Some(ChiSquareTest {
+        statistic,
+        df,
+        p: chi2_sf(statistic, df),
+    })
+}
+
+/// Shapiro-Wilk W and its p-value.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ShapiroWilk {
+    pub w: f64,
+    pub p: f64,
+    pub n: usize,
+}
+
+/// Why Shapiro-Wilk was not computed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ShapiroWilkSkip {
+    TooFew,
+    TooMany,
+    NoSpread,
+}
+
+/// Shapiro & Wilk (1965) W with Royston's (1992, 1995; AS R94) coefficients
+/// and p-value approximation, valid for 3 ≤ n ≤ 5000.
+pub fn shapiro_wilk(values: &[f64]) -> Result<ShapiroWilk, ShapiroWilkSkip> {
+    let n = values.len();
+    if n < 3 {
+        return Err(ShapiroWilkSkip::TooFew);
+    }
+    if n > 5000 {
+        return Err(ShapiroWilkSkip::TooMany);
+    }
+    let mut x = values.to_vec();
+    x.sort_by(f64::total_cmp);
+    let mean = neumaier(x.iter().copied()) / n as f64;
+    let ss = neumaier(x.iter().map(|v| (v - mean) * (v - mean)));
+    if !(ss > 0.0) || x[0] == x[n - 1] {
+        return Err(ShapiroWilkSkip::NoSpread);
+    }
+    let a = shapiro_wilk_coefficients(n);
+    let w = (neumaier(a.iter().zip(&x).map(|(a, x)| a * (x - mean))).powi(2) / ss).min(1.0);
+    let nf = n as f64;
+    let p = if n == 3 {
+        // Exact for n = 3 (Shapiro & Wilk 1965).
+        let p = 6.0 / std::f64::consts::PI * (w.sqrt().asin() - 0.75f64.sqrt().asin());
+        p.clamp(0.0, 1.0)
+    } else if n <= 11 {
+        let gamma = -2.273 + 0.459 * nf;
+        let mu = 0.5440 - 0.39978 * nf + 0.025054 * nf * nf - 0.0006714 * nf.powi(3);
+        let sigma = (1.3822 - 0.77857 * nf + 0.062767 * nf * nf - 0.0020322 * nf.powi(3)).exp();
+        let l = (1.0 - w).ln();
+        if l >= gamma {
+            0.0
+        } else {
+            normal_sf((-(gamma - l).ln() - mu) / sigma)
+        }
+    } else {
+        let ln_n = nf.ln();
+        let mu = -1.5861 - 0.31082 * ln_n - 0.083751 * ln_n * ln_n + 0.0038915 * ln_n.powi(3);
+        let sigma = (-0.4803 - 0.082676 * ln_n + 0.0030302 * ln_n * ln_n).exp();
+        normal_sf(((1.0 - w).ln() - mu) / sigma)
+    };
+    Ok(ShapiroWilk { w, p, n })
+}
+
+/// Royston's approximation to the Shapiro-Wilk coefficients a₁…aₙ.
+pub fn shapiro_wilk_coefficients(n: usize) -> Vec<f64> {
+    if n == 3 {
+        let r = std::f64::consts::FRAC_1_SQRT_2;
+        return vec![-r, 0.0, r];
+    }
+    let nf = n as f64;
+    // mᵢ = Φ⁻¹((i − 3/8)/(n + 1/4)) = −isf(·).
+    let m: Vec<f64> = (1..=n)
+        .map(|i| -normal_isf((i as f64 - 0.375) / (nf + 0.25)))
+        .collect();
+    let mm: f64 = neumaier(m.iter().map(|v| v * v));
+    let norm = mm.sqrt();
+    let u = 1.0 / nf.sqrt();
+    let poly = |c: &[f64; 6]| c[0] + u * (c[1] + u * (c[2] + u * (c[3] + u * (c[4] + u * c[5]))));
+    let an = poly(&[
+        m[n - 1] / norm,
+        0.221157,
+        -0.147981,
+        -2.071190,
+        4.434685,
+        -2.706056,
+    ]);
+    let mut a = vec![0.0; n];
+    if n > 5 {
+        let an1 = poly(&[
+            m[n - 2] / norm,
+            0.042981,
+            -0.293762,
+            -1.752461,
+            5.682633,
+            -3.582633,
+        ]);
+        let phi = (mm - 2.0 * m[n - 1].powi(2) - 2.0 * m[n - 2].powi(2))
+            / (1.0 - 2.0 * an * an - 2.0 * an1 * an1);
+        for i in 2..n - 2 {
+            a[i] = m[i] / phi.sqrt();
+        }
+        a[n - 1] = an;
+        a[n - 2] = an1;
+        a[0] = -an;
+        a[1] = -an1;
+    } else {
+        let phi = (mm - 2.0 * m[n - 1].powi(2)) / (1.0 - 2.0 * an * an);
+        for i in 1..n - 1 {
+            a[i] = m[i] / phi.sqrt();
+        }
+        a[n - 1] = an;
+        a[0] = -an;
+    }
+    a
+}
+
+/// Bias-adjusted sample skewness G₁ and excess kurtosis G₂ (the estimators
+/// most statistics packages print; scipy's `bias=False`). NaN when
+/// undefined (n < 3, n < 4 for kurtosis, or no spread).
+pub fn skewness_kurtosis(values: &[f64]) -> (f64, f64) {
+    let n = values.len() as f64;
+    if values.len() < 3 {
+        return (f64::NAN, f64::NAN);
+    }
+    let mean = neumaier(values.iter().copied()) / n;
+    let m2 = neumaier(values.iter().map(|v| (v - mean).powi(2))) / n;
+    let m3 = neumaier(values.iter().map(|v| (v - mean).powi(3))) / n;
+    let m4 = neumaier(values.iter().map(|v| (v - mean).powi(4))) / n;
+    if !(m2 > 0.0) {
+        return (f64::NAN, f64::NAN);
+    }
+    let g1 = m3 / m2.powf(1.5);
+    let skew = g1 * (n * (n - 1.0)).sqrt() / (n - 2.0);
+    let kurt = if values.len() < 4 {
+        f64::NAN
+    } else {
+        let g2 = m4 / (m2 * m2) - 3.0;
+        ((n + 1.0) * g2 + 6.0) * (n - 1.0) / ((n - 2.0) * (n - 3.0))
+    };
+    (skew, kurt)
+}
+
+/// An observation whose externally studentized residual is beyond the threshold.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Outlier {
+    /// Index of the level.
+    pub level: usize,
+    /// Index of the observation within its level.
+    pub index: usize,
+    pub residual: f64,
+    pub studentized: f64,
+    /// Two-sided p of the studentized residual, Bonferroni-adjusted over N.
+    pub p_bonferroni: f64,
+}
+
+/// |Externally studentized residual| beyond which an observation is flagged
+/// (METHODS 4.4: flag, never exclude).
+pub const OUTLIER_THRESHOLD: f64 = 3.0;
+
+/// Externally studentized residuals of a one-way model: each observation's
+/// residual divided by an error estimate that leaves it out,
+/// tᵢ = rᵢ √((ν − 1)/(ν − rᵢ²)) with rᵢ = eᵢ/√(MSE(1 − 1/nⱼ)). Levels of one
+/// observation have no studentized residual.
+pub fn outliers(groups: &[&[f64]], means: &[f64], mse: f64, df: usize) -> Vec<Outlier> {
+    let n_total: usize = groups.iter().map(|g| g.len()).sum();
+    let nu = df as f64;
+    let mut out = Vec::new();
+    if df < 2 || !(mse > 0.0) {
+        return out;
+    }
+    for (level, (g, mean)) in groups.iter().zip(means).enumerate() {
+        if g.len() < 2 {
+            continue;
+        }
+        let leverage = 1.0 / g.len() as f64;
+        for (index, y) in g.iter().enumerate() {
+            let e = y - mean;
+            let r = e / (mse * (1.0 - leverage)).sqrt();
+            let t = r * ((nu - 1.0) / (nu - r * r)).max(0.0).sqrt();
+            if t.abs() > OUTLIER_THRESHOLD {
+                let p = (2.0 * t_sf(t.abs(), nu - 1.0) * n_total as f64).min(1.0);
+                out.push(Outlier {
+                    level,
+                    index,
+                    residual: e,
+                    studentized: t,
+                    p_bonferroni: p,
+                });
+            }
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+#[path = "assumptions_tests.rs"]
+mod tests;
