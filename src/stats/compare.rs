@@ -1,7 +1,7 @@
 //! Pairwise comparisons of level means with the pooled error term: Fisher's
 //! LSD, Tukey-Kramer, Bonferroni and Holm (METHODS 3.5–3.7).
 
-use super::dist::{t_isf, t_sf};
+use super::dist::{f_isf, f_sf, t_isf, t_sf};
 use super::ptukey::{ptukey_sf, qtukey_isf};
 use std::fmt;
 
@@ -14,6 +14,16 @@ pub enum Method {
     Tukey,
     Bonferroni,
     Holm,
+    /// Scheffé: F-based, valid for every contrast, so conservative for pairs.
+    Scheffe,
+    /// Šidák: 1 − (1 − p)^m, slightly less conservative than Bonferroni.
+    Sidak,
+    /// Dunnett: each treatment against one control (multivariate t).
+    Dunnett,
+    /// Games-Howell: unequal variances, Welch-Satterthwaite df per pair.
+    GamesHowell,
+    /// Dunn: rank-sum differences from the joint Kruskal-Wallis ranking.
+    Dunn,
 }
 
 impl Method {
@@ -24,6 +34,11 @@ impl Method {
             Method::Tukey => "tukey",
             Method::Bonferroni => "bonferroni",
             Method::Holm => "holm",
+            Method::Scheffe => "scheffe",
+            Method::Sidak => "sidak",
+            Method::Dunnett => "dunnett",
+            Method::GamesHowell => "games-howell",
+            Method::Dunn => "dunn",
         }
     }
 
@@ -34,6 +49,11 @@ impl Method {
             Method::Tukey => "Tukey-Kramer",
             Method::Bonferroni => "Bonferroni",
             Method::Holm => "Holm",
+            Method::Scheffe => "Scheffé",
+            Method::Sidak => "Šidák",
+            Method::Dunnett => "Dunnett",
+            Method::GamesHowell => "Games-Howell",
+            Method::Dunn => "Dunn",
         }
     }
 
@@ -44,6 +64,11 @@ impl Method {
             Method::Tukey => "Tukey 1953; Kramer 1956",
             Method::Bonferroni => "Dunn 1961",
             Method::Holm => "Holm 1979",
+            Method::Scheffe => "Scheffé 1953",
+            Method::Sidak => "Šidák 1967",
+            Method::Dunnett => "Dunnett 1955",
+            Method::GamesHowell => "Games & Howell 1976",
+            Method::Dunn => "Dunn 1964",
         }
     }
 }
@@ -71,11 +96,14 @@ pub struct Pair {
     pub se: f64,
     pub lower: f64,
     pub upper: f64,
-    /// t = diff/se (LSD, Bonferroni, Holm) or q = √2·|diff|/se (Tukey).
+    /// t = diff/se (LSD, Bonferroni, Holm, Šidák, Dunnett, Games-Howell),
+    /// q = √2·|diff|/se (Tukey), F = t²/(k − 1) (Scheffé) or z (Dunn).
     pub statistic: f64,
     pub p_raw: f64,
     pub p_adj: f64,
     pub significant: bool,
+    /// The pair's own degrees of freedom, where the method has them (Games-Howell).
+    pub df: Option<f64>,
 }
 
 /// A family of pairwise comparisons.
@@ -84,13 +112,15 @@ pub struct Pairwise {
     pub method: Method,
     pub alpha: f64,
     pub pairs: Vec<Pair>,
-    /// The critical value behind the intervals: t for LSD, Bonferroni and
-    /// Holm (which borrows Bonferroni's intervals), q for Tukey-Kramer.
+    /// The critical value behind the intervals: t for LSD, Bonferroni, Šidák
+    /// and Holm (which borrows Bonferroni's intervals), q for Tukey-Kramer,
+    /// F for Scheffé, d for Dunnett; NaN where each pair has its own.
     pub critical: f64,
 }
 
 /// All pairs (j, i) for i < j in level order, compared with the pooled MSE
-/// on `df` error degrees of freedom.
+/// on `df` error degrees of freedom, by LSD, Tukey-Kramer, Bonferroni, Holm,
+/// Scheffé or Šidák. (Dunnett, Games-Howell and Dunn have their own modules.)
 pub fn pairwise(levels: &[LevelMean], mse: f64, df: f64, alpha: f64, method: Method) -> Pairwise {
     let k = levels.len();
     let m = k * (k - 1) / 2;
@@ -112,29 +142,41 @@ pub fn pairwise(levels: &[LevelMean], mse: f64, df: f64, alpha: f64, method: Met
                 p_raw: 2.0 * t_sf(t.abs(), df),
                 p_adj: f64::NAN,
                 significant: false,
+                df: None,
             });
         }
     }
+    let mf = m as f64;
+    // Šidák's per-comparison level 1 − (1 − α)^(1/m), without cancellation.
+    let sidak_alpha = -((-alpha).ln_1p() / mf).exp_m1();
     let critical = match method {
-        Method::Lsd => t_isf(alpha / 2.0, df),
-        Method::Bonferroni | Method::Holm => t_isf(alpha / (2.0 * m as f64), df),
+        Method::Bonferroni | Method::Holm => t_isf(alpha / (2.0 * mf), df),
+        Method::Sidak => t_isf(sidak_alpha / 2.0, df),
         Method::Tukey => qtukey_isf(alpha, k, df),
+        Method::Scheffe => f_isf(alpha, (k - 1) as f64, df),
+        _ => t_isf(alpha / 2.0, df),
     };
     let half_width_factor = match method {
         Method::Tukey => critical / std::f64::consts::SQRT_2,
+        Method::Scheffe => ((k - 1) as f64 * critical).sqrt(),
         _ => critical,
     };
     for p in &mut pairs {
         p.lower = p.diff - half_width_factor * p.se;
         p.upper = p.diff + half_width_factor * p.se;
         match method {
-            Method::Lsd => p.p_adj = p.p_raw,
-            Method::Bonferroni => p.p_adj = (p.p_raw * m as f64).min(1.0),
+            Method::Bonferroni => p.p_adj = (p.p_raw * mf).min(1.0),
+            Method::Sidak => p.p_adj = -(mf * (-p.p_raw).ln_1p()).exp_m1(),
             Method::Tukey => {
                 p.statistic = std::f64::consts::SQRT_2 * p.diff.abs() / p.se;
                 p.p_adj = ptukey_sf(p.statistic, k, df);
             }
+            Method::Scheffe => {
+                p.statistic = p.statistic * p.statistic / (k - 1) as f64;
+                p.p_adj = f_sf(p.statistic, (k - 1) as f64, df);
+            }
             Method::Holm => {}
+            _ => p.p_adj = p.p_raw,
         }
     }
     if method == Method::Holm {
