@@ -4,12 +4,20 @@
 
 use crate::data::{DataError, Exclusion, Table, factor_response};
 use crate::diag::Diagnostic;
-use crate::doc::block::Order;
+use crate::doc::block::{AnovaSpec, Omnibus, Order};
 use crate::doc::{Block, Document};
+use crate::stats::assumptions::{
+    Center, ChiSquareTest, FTest, OUTLIER_THRESHOLD, ShapiroWilk, ShapiroWilkSkip, bartlett,
+    levene, outliers, quartiles, shapiro_wilk, skewness_kurtosis,
+};
 use crate::stats::compare::{LevelMean, Method, Pair, pairwise};
 use crate::stats::dist::t_isf;
+use crate::stats::dunnett::{Sides, dunnett};
+use crate::stats::effect::{EffectSizes, one_way_effects};
 use crate::stats::letters::{compact_letters, letter_count};
 use crate::stats::oneway::{GroupSummary, OneWay, OneWayError, one_way, total_sum_of_squares};
+use crate::stats::ranks::{KruskalWallis, dunn, kruskal_wallis};
+use crate::stats::welch::{WelchAnova, games_howell, welch_anova};
 
 /// Summary of one level of the factor.
 #[derive(Debug, Clone, PartialEq)]
@@ -19,11 +27,16 @@ pub struct LevelResult {
     pub mean: f64,
     /// Sample SD (n − 1 divisor); NaN for n = 1.
     pub sd: f64,
-    /// Pooled standard error √(MSE/n).
+    /// Standard error of the mean: √(MSE/n) pooled, or s/√n under Welch.
     pub se: f64,
-    /// Confidence interval for the mean from the pooled MSE on ν error df.
+    /// Confidence interval for the mean: pooled MSE on ν error df, or the
+    /// level's own SD under Welch (see `AnovaResult::ci_pooled`).
     pub ci_lower: f64,
     pub ci_upper: f64,
+    pub median: f64,
+    /// First and third quartiles (linear interpolation, "type 7").
+    pub q1: f64,
+    pub q3: f64,
 }
 
 /// One pairwise family with its letters.
@@ -32,10 +45,14 @@ pub struct ComparisonResult {
     pub method: Method,
     pub alpha: f64,
     pub pairs: Vec<Pair>,
-    /// Letters per level, in level order.
+    /// Letters per level, in level order; empty for Dunnett (many-to-one).
     pub letters: Vec<String>,
     /// The t or q critical value behind the intervals.
     pub critical: f64,
+    /// Dunnett's control level (index into the levels).
+    pub control: Option<usize>,
+    /// Dunnett's sidedness.
+    pub sides: Sides,
     /// True when Fisher's protection withheld all declarations (F not significant).
     pub withheld: bool,
     /// Plain-language notes on the procedure (protection, interval choice).
@@ -45,6 +62,13 @@ pub struct ComparisonResult {
 /// Everything computed for one `anova` block.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AnovaResult {
+    pub method: Omnibus,
+    pub checks: Checks,
+    pub welch: Option<WelchAnova>,
+    pub kruskal: Option<KruskalWallis>,
+    pub effect: Option<EffectSizes>,
+    /// True when SEs and intervals use the pooled MSE; false for per-level SDs.
+    pub ci_pooled: bool,
     pub id: String,
     pub line: usize,
     pub data: String,
@@ -237,25 +261,106 @@ pub fn run_anova(
     }
 
     let nu = table.df_within as f64;
+    let offsets: Vec<&[f64]> = used
+        .iter()
+        .map(|&i| data.levels[i].offsets.as_slice())
+        .collect();
+    let names: Vec<String> = used.iter().map(|&i| data.levels[i].name.clone()).collect();
+    let lines: Vec<&[usize]> = used
+        .iter()
+        .map(|&i| data.levels[i].lines.as_slice())
+        .collect();
+    let checks = assumption_checks(
+        &offsets,
+        &summaries,
+        &table,
+        data.origin,
+        &names,
+        &lines,
+        spec.checks,
+    );
+    warnings.extend(checks.advice(spec.method, alpha, data.decimals));
+
+    let welch = match spec.method {
+        Omnibus::Welch => Some(welch_anova(&summaries).map_err(|i| {
+            let line = block.spec.model.line;
+            doc.error_at(line, None, format!("Welch's ANOVA is undefined: level `{}` has fewer than two observations or no spread", names[i]))
+                .hint("every level needs at least two differing values; use `method: anova` or `method: ranks`")
+        })?),
+        _ => None,
+    };
+    let kruskal = match spec.method {
+        Omnibus::Ranks => {
+            let kw = kruskal_wallis(&offsets).ok_or_else(|| {
+                doc.error_at(
+                    block.spec.model.line,
+                    None,
+                    "Kruskal-Wallis is undefined: every observation has the same value",
+                )
+                .hint("ranks cannot separate levels without any differing values")
+            })?;
+            if summaries.iter().any(|s| s.n < 5) {
+                warnings.push("Some levels have fewer than five observations: the chi-squared approximation to the Kruskal-Wallis p-value is rough there.".into());
+            }
+            Some(kw)
+        }
+        _ => None,
+    };
+    let effect = (table.df_within > 0 && table.f.is_finite()).then(|| {
+        one_way_effects(
+            table.ss_between,
+            table.ss_within,
+            table.df_between as f64,
+            nu,
+            table.f,
+            1.0 - alpha,
+        )
+    });
+    if effect.is_some_and(|e| e.omega_sq < 0.0) {
+        warnings.push(
+            "ω² is negative, an estimate consistent with no effect; it is printed as computed."
+                .into(),
+        );
+    }
+
+    // Standard errors and intervals: pooled under the ANOVA model, each
+    // level's own under Welch (METHODS 3.17).
+    let pooled = spec.method != Omnibus::Welch;
     let t_crit = if table.df_within > 0 {
         t_isf(alpha / 2.0, nu)
     } else {
         f64::NAN
     };
-    let levels: Vec<LevelResult> = used
+    let levels: Vec<LevelResult> = offsets
         .iter()
         .zip(&summaries)
-        .map(|(&i, s)| {
+        .zip(&names)
+        .map(|((values, s), name)| {
             let mean = data.origin + s.mean;
-            let se = (table.ms_within / s.n as f64).sqrt();
+            let (se, t) = if pooled {
+                ((table.ms_within / s.n as f64).sqrt(), t_crit)
+            } else {
+                (
+                    (s.variance() / s.n as f64).sqrt(),
+                    if s.n > 1 {
+                        t_isf(alpha / 2.0, (s.n - 1) as f64)
+                    } else {
+                        f64::NAN
+                    },
+                )
+            };
+            let (q1, median, q3) = quartiles(values);
             LevelResult {
-                name: data.levels[i].name.clone(),
+                name: name.clone(),
                 n: s.n,
                 mean,
                 sd: s.variance().sqrt(),
                 se,
-                ci_lower: mean - t_crit * se,
-                ci_upper: mean + t_crit * se,
+                ci_lower: mean - t * se,
+                ci_upper: mean + t * se,
+                median: data.origin + median,
+                q1: data.origin + q1,
+                q3: data.origin + q3,
             }
         })
         .collect();
@@ -263,63 +368,22 @@ pub fn run_anova(
     let comparison = match spec.compare {
         None => None,
         Some(method) => {
-            if table.df_within == 0 || table.ms_within.is_nan() || table.ms_within <= 0.0 {
+            let pooled_ok = table.df_within > 0 && table.ms_within > 0.0;
+            if spec.method == Omnibus::Anova && !pooled_ok {
                 warnings.push("pairwise comparisons need an error term with variation and degrees of freedom; none are reported".into());
                 None
             } else {
-                let means: Vec<LevelMean> = summaries
-                    .iter()
-                    .map(|s| LevelMean {
-                        n: s.n,
-                        mean: s.mean,
-                    })
-                    .collect();
-                let mut family = pairwise(&means, table.ms_within, nu, alpha, method);
-                let mut notes = Vec::new();
-                let mut withheld = false;
-                if method == Method::Lsd {
-                    if spec.protected {
-                        if table.p < alpha {
-                            notes.push(format!("Fisher's protected LSD: the F test was significant at α = {alpha}, so pairs were tested."));
-                        } else {
-                            withheld = true;
-                            for p in &mut family.pairs {
-                                p.significant = false;
-                            }
-                            notes.push(format!("Fisher's protected LSD: the F test was not significant at α = {alpha}, so no pair is declared different."));
-                        }
-                    } else {
-                        notes.push(
-                            "Unprotected LSD: pairs were tested whatever the F test showed.".into(),
-                        );
-                    }
-                    if levels.len() >= 4 {
-                        notes.push("With four or more levels the LSD does not hold the familywise error rate at α; Tukey-Kramer does.".into());
-                    }
-                }
-                if method == Method::Holm {
-                    notes.push("Holm's procedure has no matching simultaneous intervals; the intervals shown are Bonferroni's.".into());
-                }
-                let k = means.len();
-                let mut different = vec![vec![false; k]; k];
-                for p in &family.pairs {
-                    different[p.a][p.b] = p.significant;
-                    different[p.b][p.a] = p.significant;
-                }
-                let level_means: Vec<f64> = levels.iter().map(|l| l.mean).collect();
-                let letters = compact_letters(&level_means, |i, j| different[i][j]);
-                if letter_count(&letters) > 26 {
-                    warnings.push("more than 26 letter groups: the letter display has become hard to read; consult the pairwise table".into());
-                }
-                Some(ComparisonResult {
+                Some(compare_levels(
+                    doc,
+                    spec,
                     method,
+                    &summaries,
+                    &levels,
+                    &table,
+                    kruskal.as_ref(),
                     alpha,
-                    pairs: family.pairs,
-                    letters,
-                    critical: family.critical,
-                    withheld,
-                    notes,
-                })
+                    &mut warnings,
+                )?)
             }
         }
     };
@@ -329,6 +393,12 @@ pub fn run_anova(
         .or(doc.front.decimals)
         .unwrap_or((data.decimals + 1).min(6));
     Ok(AnovaResult {
+        method: spec.method,
+        checks,
+        welch,
+        kruskal,
+        effect,
+        ci_pooled: pooled,
         id: block.id.clone(),
         line: block.line,
         data: input.path.clone(),
@@ -351,4 +421,258 @@ pub fn run_anova(
 fn formula_text(f: &crate::doc::formula::Formula) -> String {
     let terms: Vec<String> = f.terms.iter().map(|t| t.to_string()).collect();
     format!("{} ~ {}", f.response, terms.join(" + "))
+}
+
+/// Assumption checks of one block (computed always; shown unless `checks: none`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Checks {
+    pub shown: bool,
+    pub brown_forsythe: Option<FTest>,
+    pub levene: Option<FTest>,
+    pub bartlett: Option<ChiSquareTest>,
+    pub shapiro_wilk: Result<ShapiroWilk, ShapiroWilkSkip>,
+    pub skewness: f64,
+    pub excess_kurtosis: f64,
+    /// Largest over smallest level SD.
+    pub sd_ratio: f64,
+    pub balanced: bool,
+    pub outliers: Vec<OutlierRow>,
+}
+
+/// An observation flagged by its studentized residual.
+#[derive(Debug, Clone, PartialEq)]
+pub struct OutlierRow {
+    pub line: usize,
+    pub level: String,
+    pub value: f64,
+    pub studentized_residual: f64,
+}
+
+fn assumption_checks(
+    offsets: &[&[f64]],
+    summaries: &[GroupSummary],
+    table: &OneWay,
+    origin: f64,
+    names: &[String],
+    lines: &[&[usize]],
+    shown: bool,
+) -> Checks {
+    let residuals: Vec<f64> = offsets
+        .iter()
+        .zip(summaries)
+        .flat_map(|(g, s)| g.iter().map(move |y| y - s.mean))
+        .collect();
+    let (skewness, excess_kurtosis) = skewness_kurtosis(&residuals);
+    let sds: Vec<f64> = summaries
+        .iter()
+        .map(|s| s.variance().sqrt())
+        .filter(|v| v.is_finite())
+        .collect();
+    let sd_ratio = match (
+        sds.iter().cloned().fold(f64::NAN, f64::max),
+        sds.iter().cloned().fold(f64::NAN, f64::min),
+    ) {
+        (hi, lo) if lo > 0.0 => hi / lo,
+        _ => f64::NAN,
+    };
+    let means: Vec<f64> = summaries.iter().map(|s| s.mean).collect();
+    let flagged = outliers(offsets, &means, table.ms_within, table.df_within)
+        .into_iter()
+        .map(|o| OutlierRow {
+            line: lines[o.level][o.index],
+            level: names[o.level].clone(),
+            value: origin + offsets[o.level][o.index],
+            studentized_residual: o.studentized,
+        })
+        .collect();
+    Checks {
+        shown,
+        brown_forsythe: levene(offsets, Center::Median),
+        levene: levene(offsets, Center::Mean),
+        bartlett: bartlett(summaries),
+        shapiro_wilk: shapiro_wilk(&residuals),
+        skewness,
+        excess_kurtosis,
+        sd_ratio,
+        balanced: summaries.iter().all(|s| s.n == summaries[0].n),
+        outliers: flagged,
+    }
+}
+
+impl Checks {
+    /// Plain-language advice when a check fails at α, naming the key that
+    /// switches to the alternative. The declared method is never changed.
+    /// `decimals` is the data's own precision, for quoting values.
+    pub fn advice(&self, method: Omnibus, alpha: f64, decimals: u32) -> Vec<String> {
+        let mut out = Vec::new();
+        let p3 = crate::render::format::p_phrase;
+        if method == Omnibus::Anova {
+            if let Some(bf) = self.brown_forsythe.filter(|t| t.p < alpha) {
+                out.push(format!(
+                    "The level variances differ (Brown-Forsythe {}). The F test and pooled comparisons assume equal variances; consider `method: welch` (Welch's ANOVA with Games-Howell comparisons).",
+                    p3(bf.p)
+                ));
+            } else if self.sd_ratio > 2.0 && !self.balanced {
+                out.push(format!(
+                    "The largest level SD is {:.1} times the smallest, with unequal group sizes; the F test can mislead there. Consider `method: welch`.",
+                    self.sd_ratio
+                ));
+            }
+        }
+        if method != Omnibus::Ranks {
+            if let Ok(sw) = self.shapiro_wilk.as_ref() {
+                if sw.p < alpha {
+                    out.push(format!(
+                        "The residuals depart from a normal distribution (Shapiro-Wilk W = {:.3}, {}). Look at how they depart; consider a transformation of the response, or `method: ranks` (Kruskal-Wallis with Dunn's comparisons).",
+                        sw.w,
+                        p3(sw.p)
+                    ));
+                }
+            }
+        }
+        if let Err(ShapiroWilkSkip::TooMany) = self.shapiro_wilk {
+            out.push("Shapiro-Wilk is not computed above 5,000 residuals (outside the range of Royston's approximation); judge normality from skewness, kurtosis and a Q-Q plot.".into());
+        }
+        for o in &self.outliers {
+            out.push(format!(
+                "The observation on line {} (level `{}`, value {}) has a studentized residual of {:.2}, beyond ±{OUTLIER_THRESHOLD}; check it against the records. Flagging excludes nothing.",
+                o.line,
+                o.level,
+                crate::render::format::fixed(o.value, decimals),
+                o.studentized_residual
+            ));
+        }
+        out
+    }
+}
+
+/// Runs the chosen comparison procedure and derives its letters.
+#[allow(clippy::too_many_arguments)]
+fn compare_levels(
+    doc: &Document,
+    spec: &AnovaSpec,
+    method: Method,
+    summaries: &[GroupSummary],
+    levels: &[LevelResult],
+    table: &OneWay,
+    kruskal: Option<&KruskalWallis>,
+    alpha: f64,
+    warnings: &mut Vec<String>,
+) -> Result<ComparisonResult, Diagnostic> {
+    let nu = table.df_within as f64;
+    let means: Vec<LevelMean> = summaries
+        .iter()
+        .map(|s| LevelMean {
+            n: s.n,
+            mean: s.mean,
+        })
+        .collect();
+    let mut notes = Vec::new();
+    let mut control = None;
+    let mut family = match method {
+        Method::GamesHowell => games_howell(summaries, alpha),
+        Method::Dunn => match kruskal {
+            Some(kw) => dunn(kw, alpha, spec.adjust),
+            None => {
+                return Err(doc.error_at(
+                    spec.model.line,
+                    None,
+                    "internal error: Dunn's test without a ranking",
+                ));
+            }
+        },
+        Method::Dunnett => {
+            let Some(c) = spec.control.as_ref() else {
+                return Err(doc.error_at(
+                    spec.model.line,
+                    None,
+                    "Dunnett's comparisons need `control`",
+                ));
+            };
+            let Some(ci) = levels.iter().position(|l| l.name == c.value) else {
+                let found: Vec<&str> = levels.iter().map(|l| l.name.as_str()).collect();
+                let d = doc.error_at(
+                    c.line,
+                    Some(c.column),
+                    format!("the control `{}` is not a level with data", c.value),
+                );
+                return Err(
+                    match crate::diag::nearest(&c.value, found.iter().copied()) {
+                        Some(n) => d.hint(format!("did you mean `{n}`?")),
+                        None => d.hint(format!("the levels are {}", found.join(", "))),
+                    },
+                );
+            };
+            control = Some(ci);
+            let pairs: Vec<(usize, f64)> = summaries.iter().map(|s| (s.n, s.mean)).collect();
+            dunnett(&pairs, ci, table.ms_within, nu, alpha, spec.sides)
+        }
+        _ => pairwise(&means, table.ms_within, nu, alpha, method),
+    };
+    let mut withheld = false;
+    match method {
+        Method::Lsd => {
+            if spec.protected {
+                if table.p < alpha {
+                    notes.push(format!("Fisher's protected LSD: the F test was significant at α = {alpha}, so pairs were tested."));
+                } else {
+                    withheld = true;
+                    for p in &mut family.pairs {
+                        p.significant = false;
+                    }
+                    notes.push(format!("Fisher's protected LSD: the F test was not significant at α = {alpha}, so no pair is declared different."));
+                }
+            } else {
+                notes.push("Unprotected LSD: pairs were tested whatever the F test showed.".into());
+            }
+            if levels.len() >= 4 {
+                notes.push("With four or more levels the LSD does not hold the familywise error rate at α; Tukey-Kramer does.".into());
+            }
+        }
+        Method::Holm => notes.push("Holm's procedure has no matching simultaneous intervals; the intervals shown are Bonferroni's.".into()),
+        Method::Scheffe => notes.push("Scheffé's procedure covers every contrast, not only pairs, so it is the most conservative choice for pairwise comparisons.".into()),
+        Method::Dunn => notes.push(format!(
+            "Dunn's test compares mean ranks from the joint Kruskal-Wallis ranking, with {} adjustment.",
+            spec.adjust.title()
+        )),
+        Method::GamesHowell => notes.push("Games-Howell uses each pair's own variances and Welch-Satterthwaite degrees of freedom.".into()),
+        Method::Dunnett => notes.push(match spec.sides {
+            Sides::Two => "Dunnett's procedure compares each treatment with the control, two-sided.".to_string(),
+            Sides::Greater => "Dunnett's procedure compares each treatment with the control, one-sided: is the treatment above the control?".to_string(),
+            Sides::Less => "Dunnett's procedure compares each treatment with the control, one-sided: is the treatment below the control?".to_string(),
+        }),
+        _ => {}
+    }
+    // Letters need all pairs; Dunnett compares with one control only.
+    let letters = if method == Method::Dunnett {
+        Vec::new()
+    } else {
+        let k = levels.len();
+        let mut different = vec![vec![false; k]; k];
+        for p in &family.pairs {
+            different[p.a][p.b] = p.significant;
+            different[p.b][p.a] = p.significant;
+        }
+        // Rank methods order letters by mean rank, the others by mean.
+        let order_by: Vec<f64> = match kruskal {
+            Some(kw) if method == Method::Dunn => kw.mean_ranks.clone(),
+            _ => levels.iter().map(|l| l.mean).collect(),
+        };
+        let letters = compact_letters(&order_by, |i, j| different[i][j]);
+        if letter_count(&letters) > 26 {
+            warnings.push("more than 26 letter groups: the letter display has become hard to read; consult the pairwise table".into());
+        }
+        letters
+    };
+    Ok(ComparisonResult {
+        method,
+        alpha,
+        pairs: family.pairs,
+        letters,
+        critical: family.critical,
+        control,
+        sides: spec.sides,
+        withheld,
+        notes,
+    })
 }

@@ -53,7 +53,14 @@ pub struct BlockRecord {
     pub n_excluded: usize,
     pub excluded: Vec<ExcludedRecord>,
     pub alpha: f64,
+    /// The omnibus test the block declared: "anova", "welch" or "ranks".
+    pub method: &'static str,
     pub anova: AnovaRecord,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub welch: Option<WelchRecord>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub kruskal: Option<KruskalRecord>,
+    pub checks: ChecksRecord,
     pub groups: Vec<GroupRecord>,
     pub comparisons: Vec<ComparisonRecord>,
     pub warnings: Vec<String>,
@@ -82,6 +89,77 @@ pub struct TermRecord {
     pub f: Option<f64>,
     pub p: Option<f64>,
     pub f_crit: Option<f64>,
+    pub effect: Option<EffectRecord>,
+}
+
+#[derive(Serialize)]
+pub struct EffectRecord {
+    pub eta_sq: Option<f64>,
+    pub partial_eta_sq: Option<f64>,
+    pub omega_sq: Option<f64>,
+    pub cohens_f: Option<f64>,
+    /// [lower, upper] at `ci_level`, from the noncentral F.
+    pub partial_eta_sq_ci: [Option<f64>; 2],
+    pub ci_level: f64,
+}
+
+#[derive(Serialize)]
+pub struct WelchRecord {
+    pub f: Option<f64>,
+    pub df1: f64,
+    pub df2: Option<f64>,
+    pub p: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct KruskalRecord {
+    pub h: Option<f64>,
+    pub df: f64,
+    pub p: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct FTestRecord {
+    pub statistic: Option<f64>,
+    pub df1: f64,
+    pub df2: f64,
+    pub p: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct ChiSquareRecord {
+    pub statistic: Option<f64>,
+    pub df: f64,
+    pub p: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct ShapiroRecord {
+    pub w: Option<f64>,
+    pub p: Option<f64>,
+    pub n: usize,
+}
+
+#[derive(Serialize)]
+pub struct OutlierRecord {
+    pub line: usize,
+    pub level: String,
+    pub value: Option<f64>,
+    pub studentized_residual: Option<f64>,
+}
+
+/// Assumption checks; a test that could not be computed is `null`.
+#[derive(Serialize)]
+pub struct ChecksRecord {
+    pub brown_forsythe: Option<FTestRecord>,
+    pub levene: Option<FTestRecord>,
+    pub bartlett: Option<ChiSquareRecord>,
+    pub shapiro_wilk: Option<ShapiroRecord>,
+    pub skewness: Option<f64>,
+    pub excess_kurtosis: Option<f64>,
+    /// |externally studentized residual| above which observations are listed.
+    pub outlier_threshold: f64,
+    pub outliers: Vec<OutlierRecord>,
 }
 
 #[derive(Serialize)]
@@ -106,8 +184,12 @@ pub struct GroupRecord {
     pub se: Option<f64>,
     pub ci_lower: Option<f64>,
     pub ci_upper: Option<f64>,
-    /// Which error term the interval uses: "pooled" (the ANOVA's MSE).
+    /// Which error term the SE and interval use: "pooled" (the ANOVA's MSE)
+    /// or "level" (the level's own SD, under Welch).
     pub ci_error: &'static str,
+    pub median: Option<f64>,
+    pub q1: Option<f64>,
+    pub q3: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -117,6 +199,11 @@ pub struct ComparisonRecord {
     pub method: &'static str,
     pub alpha: f64,
     pub critical_value: Option<f64>,
+    /// Dunnett only: the control level and "two-sided", "greater" or "less".
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub control: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sides: Option<&'static str>,
     pub pairs: Vec<PairRecord>,
     pub letters: Letters,
 }
@@ -131,6 +218,9 @@ pub struct PairRecord {
     pub upper: Option<f64>,
     pub p_adj: Option<f64>,
     pub significant: bool,
+    /// Games-Howell: the pair's own Welch-Satterthwaite df.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub df: Option<f64>,
 }
 
 /// Level → letters, written in design order (not sorted by key).
@@ -158,6 +248,12 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
             method: c.method.key(),
             alpha: c.alpha,
             critical_value: finite(c.critical),
+            control: c.control.map(|i| r.levels[i].name.clone()),
+            sides: (c.method == crate::stats::compare::Method::Dunnett).then_some(match c.sides {
+                crate::stats::dunnett::Sides::Two => "two-sided",
+                crate::stats::dunnett::Sides::Greater => "greater",
+                crate::stats::dunnett::Sides::Less => "less",
+            }),
             pairs: c
                 .pairs
                 .iter()
@@ -170,6 +266,7 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
                     upper: finite(p.upper),
                     p_adj: finite(p.p_adj),
                     significant: p.significant,
+                    df: p.df.and_then(finite),
                 })
                 .collect(),
             letters: Letters(
@@ -199,6 +296,19 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
             })
             .collect(),
         alpha: r.alpha,
+        method: r.method.key(),
+        welch: r.welch.map(|w| WelchRecord {
+            f: finite(w.f),
+            df1: w.df1,
+            df2: finite(w.df2),
+            p: finite(w.p),
+        }),
+        kruskal: r.kruskal.as_ref().map(|k| KruskalRecord {
+            h: finite(k.h),
+            df: k.df,
+            p: finite(k.p),
+        }),
+        checks: checks_record(&r.checks),
         anova: AnovaRecord {
             terms: vec![TermRecord {
                 term: r.factor.clone(),
@@ -208,6 +318,17 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
                 f: finite(t.f),
                 p: finite(t.p),
                 f_crit: finite(t.f_crit),
+                effect: r.effect.map(|e| EffectRecord {
+                    eta_sq: finite(e.eta_sq),
+                    partial_eta_sq: finite(e.partial_eta_sq),
+                    omega_sq: finite(e.omega_sq),
+                    cohens_f: finite(e.cohens_f),
+                    partial_eta_sq_ci: [
+                        finite(e.partial_eta_sq_ci.0),
+                        finite(e.partial_eta_sq_ci.1),
+                    ],
+                    ci_level: e.level,
+                }),
             }],
             residual: ResidualRecord {
                 df: t.df_within,
@@ -231,11 +352,50 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
                 se: finite(l.se),
                 ci_lower: finite(l.ci_lower),
                 ci_upper: finite(l.ci_upper),
-                ci_error: "pooled",
+                ci_error: if r.ci_pooled { "pooled" } else { "level" },
+                median: finite(l.median),
+                q1: finite(l.q1),
+                q3: finite(l.q3),
             })
             .collect(),
         comparisons,
         warnings: r.warnings.clone(),
+    }
+}
+
+fn checks_record(c: &crate::analysis::Checks) -> ChecksRecord {
+    let f = |t: &crate::stats::assumptions::FTest| FTestRecord {
+        statistic: finite(t.statistic),
+        df1: t.df1,
+        df2: t.df2,
+        p: finite(t.p),
+    };
+    ChecksRecord {
+        brown_forsythe: c.brown_forsythe.as_ref().map(f),
+        levene: c.levene.as_ref().map(f),
+        bartlett: c.bartlett.map(|b| ChiSquareRecord {
+            statistic: finite(b.statistic),
+            df: b.df,
+            p: finite(b.p),
+        }),
+        shapiro_wilk: c.shapiro_wilk.ok().map(|s| ShapiroRecord {
+            w: finite(s.w),
+            p: finite(s.p),
+            n: s.n,
+        }),
+        skewness: finite(c.skewness),
+        excess_kurtosis: finite(c.excess_kurtosis),
+        outlier_threshold: crate::stats::assumptions::OUTLIER_THRESHOLD,
+        outliers: c
+            .outliers
+            .iter()
+            .map(|o| OutlierRecord {
+                line: o.line,
+                level: o.level.clone(),
+                value: finite(o.value),
+                studentized_residual: finite(o.studentized_residual),
+            })
+            .collect(),
     }
 }
 

@@ -375,3 +375,78 @@ fn a_missing_document_exits_with_one() {
     assert!(String::from_utf8_lossy(&output.stderr).contains("cannot read absent.md"));
     assert!(!Path::new(&dir.path().join("out")).exists());
 }
+
+#[test]
+fn robust_method_keys_are_checked() {
+    let cases = vec![
+        case(
+            "unknown method",
+            doc_with(&format!("{GOOD_BLOCK}method: welsh\n")),
+            vec!["unknown method `welsh`", "report.md:7:9"],
+        ),
+        case(
+            "procedure that does not fit the method",
+            doc_with(&format!("{GOOD_BLOCK}method: welch\ncompare: tukey\n")),
+            vec![
+                "`compare: tukey` does not fit `method: welch`",
+                "games-howell",
+                "report.md:8",
+            ],
+        ),
+        case(
+            "dunnett without control",
+            doc_with(&format!("{GOOD_BLOCK}compare: dunnett\n")),
+            vec!["Dunnett's comparisons need a control level", "report.md:7"],
+        ),
+        case(
+            "control not in data",
+            doc_with(&format!("{GOOD_BLOCK}compare: dunnett\ncontrol: ctlr\n")),
+            vec![
+                "the control `ctlr` is not a level with data",
+                "did you mean `ctrl`?",
+                "report.md:8:10",
+            ],
+        ),
+        case(
+            "control without dunnett",
+            doc_with(&format!("{GOOD_BLOCK}control: ctrl\n")),
+            vec!["`control` applies only to `compare: dunnett`"],
+        ),
+        case(
+            "bad sides",
+            doc_with(&format!(
+                "{GOOD_BLOCK}compare: dunnett\ncontrol: ctrl\nsides: 3\n"
+            )),
+            vec!["unknown `sides` value `3`", "report.md:9"],
+        ),
+        case(
+            "adjust without dunn",
+            doc_with(&format!("{GOOD_BLOCK}adjust: holm\n")),
+            vec!["`adjust` applies only to `compare: dunn`"],
+        ),
+        case(
+            "bad checks value",
+            doc_with(&format!("{GOOD_BLOCK}checks: some\n")),
+            vec!["unknown `checks` value `some`"],
+        ),
+        with_data(
+            case(
+                "welch with a single observation",
+                doc_with(&format!("{GOOD_BLOCK}method: welch\n")),
+                vec!["Welch's ANOVA is undefined: level `b`", "report.md:6"],
+            ),
+            b"weight,group\n4.1,a\n4.5,a\n5.0,b\n",
+        ),
+        with_data(
+            case(
+                "ranks on constant data",
+                doc_with(&format!("{GOOD_BLOCK}method: ranks\n")),
+                vec!["Kruskal-Wallis is undefined", "report.md:6"],
+            ),
+            b"weight,group\n4,a\n4,a\n4,b\n4,b\n",
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}

@@ -5,13 +5,14 @@ use super::formula::{Formula, parse_formula};
 use super::keyvalue::Entry;
 use crate::data::{CsvFormat, DEFAULT_MISSING};
 use crate::stats::compare::Method;
+use crate::stats::dunnett::Sides;
 
 /// The block kinds sheaf knows. A fenced block with any other info string is
 /// ordinary code.
 pub const BLOCK_KINDS: [&str; 1] = ["anova"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 14] = [
+pub const ANOVA_KEYS: [&str; 19] = [
     "id",
     "data",
     "model",
@@ -26,6 +27,11 @@ pub const ANOVA_KEYS: [&str; 14] = [
     "protected",
     "order",
     "show",
+    "method",
+    "checks",
+    "control",
+    "sides",
+    "adjust",
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -34,6 +40,27 @@ pub struct Located<T> {
     pub value: T,
     pub line: usize,
     pub column: usize,
+}
+
+/// The omnibus test of a block.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Omnibus {
+    /// The classical F test with a pooled error term.
+    Anova,
+    /// Welch's heteroscedastic F (with Games-Howell comparisons).
+    Welch,
+    /// Kruskal-Wallis on ranks (with Dunn's comparisons).
+    Ranks,
+}
+
+impl Omnibus {
+    pub fn key(self) -> &'static str {
+        match self {
+            Omnibus::Anova => "anova",
+            Omnibus::Welch => "welch",
+            Omnibus::Ranks => "ranks",
+        }
+    }
 }
 
 /// Row order of the level-means table.
@@ -70,6 +97,14 @@ pub struct AnovaSpec {
     pub protected: bool,
     pub order: Order,
     pub show: Show,
+    pub method: Omnibus,
+    /// Show the assumption-check table (they are computed either way).
+    pub checks: bool,
+    /// The control level for Dunnett's comparisons.
+    pub control: Option<Located<String>>,
+    pub sides: Sides,
+    /// Adjustment of Dunn's p-values: Holm (default) or Bonferroni.
+    pub adjust: Method,
 }
 
 /// A problem with one key, at its line and column.
@@ -126,22 +161,34 @@ pub fn parse_decimals(entry: &Entry) -> Result<u32, SpecError> {
     }
 }
 
+/// Every procedure `compare` accepts, by its key.
+pub const COMPARE_METHODS: [Method; 9] = [
+    Method::Tukey,
+    Method::Lsd,
+    Method::Bonferroni,
+    Method::Holm,
+    Method::Scheffe,
+    Method::Sidak,
+    Method::Dunnett,
+    Method::GamesHowell,
+    Method::Dunn,
+];
+
 /// Reads a comparison procedure name.
 pub fn parse_compare(entry: &Entry) -> Result<Option<Method>, SpecError> {
-    let methods = [Method::Lsd, Method::Tukey, Method::Bonferroni, Method::Holm];
     let v = entry.value.to_ascii_lowercase();
     if v == "none" {
         return Ok(None);
     }
-    if let Some(m) = methods.iter().find(|m| m.key() == v) {
+    if let Some(m) = COMPARE_METHODS.iter().find(|m| m.key() == v) {
         return Ok(Some(*m));
     }
-    let names = ["lsd", "tukey", "bonferroni", "holm", "none"];
-    let hint = match crate::diag::nearest(&v, names) {
-        Some(n) => {
-            format!("did you mean `{n}`? The choices are lsd, tukey, bonferroni, holm and none")
-        }
-        None => "the choices are lsd, tukey (Tukey-Kramer), bonferroni, holm and none".into(),
+    let mut names: Vec<&str> = COMPARE_METHODS.iter().map(|m| m.key()).collect();
+    names.push("none");
+    let listed = names.join(", ");
+    let hint = match crate::diag::nearest(&v, names.iter().copied()) {
+        Some(n) => format!("did you mean `{n}`? The choices are {listed}"),
+        None => format!("the choices are {listed}"),
     };
     Err(bad(
         entry,
@@ -241,9 +288,54 @@ pub fn anova_spec(
         message: e.message,
         hint: Some(e.hint),
     })?;
-    let compare = match get("compare") {
-        Some(e) => parse_compare(e)?,
-        None => defaults.compare,
+    let method = match get("method") {
+        None => Omnibus::Anova,
+        Some(e) => match e.value.to_ascii_lowercase().as_str() {
+            "anova" => Omnibus::Anova,
+            "welch" => Omnibus::Welch,
+            "ranks" | "kruskal" => Omnibus::Ranks,
+            _ => {
+                return Err(bad(
+                    e,
+                    format!("unknown method `{}`", e.value),
+                    "write `anova` (the F test), `welch` (unequal variances) or `ranks` (Kruskal-Wallis)",
+                ));
+            }
+        },
+    };
+    // Each omnibus test has the comparison procedures that share its assumptions.
+    let compare = match (get("compare"), method) {
+        (Some(e), _) => {
+            let chosen = parse_compare(e)?;
+            let fits = match (method, chosen) {
+                (_, None) => true,
+                (Omnibus::Welch, Some(m)) => m == Method::GamesHowell,
+                (Omnibus::Ranks, Some(m)) => m == Method::Dunn,
+                (Omnibus::Anova, Some(m)) => !matches!(m, Method::GamesHowell | Method::Dunn),
+            };
+            if !fits {
+                let hint = match method {
+                    Omnibus::Welch => "with `method: welch` use `compare: games-howell` (or none)",
+                    Omnibus::Ranks => "with `method: ranks` use `compare: dunn` (or none)",
+                    Omnibus::Anova => {
+                        "Games-Howell goes with `method: welch`, Dunn with `method: ranks`"
+                    }
+                };
+                return Err(bad(
+                    e,
+                    format!(
+                        "`compare: {}` does not fit `method: {}`",
+                        e.value,
+                        method.key()
+                    ),
+                    hint,
+                ));
+            }
+            chosen
+        }
+        (None, Omnibus::Welch) => Some(Method::GamesHowell),
+        (None, Omnibus::Ranks) => Some(Method::Dunn),
+        (None, Omnibus::Anova) => defaults.compare,
     };
     let alpha = get("alpha").map(parse_alpha).transpose()?;
     let decimals = get("decimals").map(parse_decimals).transpose()?;
@@ -377,7 +469,92 @@ pub fn anova_spec(
             s
         }
     };
+    let checks = match get("checks") {
+        None => true,
+        Some(e) => match e.value.to_ascii_lowercase().as_str() {
+            "all" | "yes" | "show" => true,
+            "none" | "no" | "hide" => false,
+            _ => {
+                return Err(bad(
+                    e,
+                    format!("unknown `checks` value `{}`", e.value),
+                    "write `all` (the default) or `none` to hide the table; the checks stay in the results file",
+                ));
+            }
+        },
+    };
+    let control = get("control").map(located);
+    if compare == Some(Method::Dunnett) && control.is_none() {
+        let e = get("compare").map_or(fence_line, |e| e.line);
+        return Err(SpecError {
+            line: e,
+            column: 1,
+            message: "Dunnett's comparisons need a control level".into(),
+            hint: Some("add `control: <level>`, the level every treatment is compared with".into()),
+        });
+    }
+    if let Some(e) = get("control") {
+        if compare != Some(Method::Dunnett) {
+            return Err(bad(
+                e,
+                "`control` applies only to `compare: dunnett`".into(),
+                "remove it, or choose `compare: dunnett`",
+            ));
+        }
+    }
+    let sides = match get("sides") {
+        None => Sides::Two,
+        Some(e) => {
+            if compare != Some(Method::Dunnett) {
+                return Err(bad(
+                    e,
+                    "`sides` applies only to `compare: dunnett`".into(),
+                    "the other procedures are two-sided",
+                ));
+            }
+            match e.value.to_ascii_lowercase().as_str() {
+                "2" | "two" | "both" => Sides::Two,
+                "1" | "greater" | "above" => Sides::Greater,
+                "less" | "below" => Sides::Less,
+                _ => {
+                    return Err(bad(
+                        e,
+                        format!("unknown `sides` value `{}`", e.value),
+                        "write `2` (two-sided), `1` or `greater` (treatments above the control), or `less`",
+                    ));
+                }
+            }
+        }
+    };
+    let adjust = match get("adjust") {
+        None => Method::Holm,
+        Some(e) => {
+            if compare != Some(Method::Dunn) {
+                return Err(bad(
+                    e,
+                    "`adjust` applies only to `compare: dunn`".into(),
+                    "the other procedures carry their own adjustment",
+                ));
+            }
+            match e.value.to_ascii_lowercase().as_str() {
+                "holm" => Method::Holm,
+                "bonferroni" => Method::Bonferroni,
+                _ => {
+                    return Err(bad(
+                        e,
+                        format!("unknown adjustment `{}`", e.value),
+                        "write `holm` (the default) or `bonferroni`",
+                    ));
+                }
+            }
+        }
+    };
     Ok(AnovaSpec {
+        method,
+        checks,
+        control,
+        sides,
+        adjust,
         id,
         data: located(data_entry),
         model: Located {

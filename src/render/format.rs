@@ -75,6 +75,15 @@ pub fn column_decimals(values: &[f64], digits: u32) -> u32 {
     (digits as i32 - 1 - magnitude).clamp(0, 10) as u32
 }
 
+/// An effect size: two decimals, three below 0.1 (METHODS 4.2).
+pub fn effect_size(x: f64) -> String {
+    if x.is_finite() && x.abs() < 0.1 {
+        fixed(x, 3)
+    } else {
+        fixed(x, 2)
+    }
+}
+
 /// The F statistic as printed in tables and prose: two decimals.
 pub fn f_stat(f: f64) -> String {
     fixed(f, 2)

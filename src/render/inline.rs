@@ -13,7 +13,7 @@ use serde::Serialize;
 use std::collections::BTreeMap;
 
 /// Names of sheaf's own filters, for the README and error hints.
-pub const FILTERS: [&str; 5] = ["pvalue", "ptext", "fixed", "sig", "ftest"];
+pub const FILTERS: [&str; 6] = ["pvalue", "ptext", "fixed", "sig", "ftest", "htest"];
 
 #[derive(Serialize)]
 struct TermContext {
@@ -25,6 +25,37 @@ struct TermContext {
     f: f64,
     p: f64,
     f_crit: f64,
+    effect: Option<EffectContext>,
+}
+
+#[derive(Serialize)]
+struct EffectContext {
+    eta_sq: f64,
+    partial_eta_sq: f64,
+    omega_sq: f64,
+    cohens_f: f64,
+    ci_lower: f64,
+    ci_upper: f64,
+}
+
+#[derive(Serialize)]
+struct TestContext {
+    statistic: f64,
+    df1: f64,
+    df2: f64,
+    f: f64,
+    p: f64,
+}
+
+#[derive(Serialize)]
+struct ChecksContext {
+    brown_forsythe: Option<TestContext>,
+    levene: Option<TestContext>,
+    bartlett: Option<BTreeMap<&'static str, f64>>,
+    shapiro_wilk: Option<BTreeMap<&'static str, f64>>,
+    skewness: f64,
+    excess_kurtosis: f64,
+    outliers: usize,
 }
 
 #[derive(Serialize)]
@@ -35,6 +66,9 @@ struct GroupContext {
     se: f64,
     ci_lower: f64,
     ci_upper: f64,
+    median: f64,
+    q1: f64,
+    q3: f64,
     letters: Option<String>,
 }
 
@@ -63,7 +97,13 @@ struct BlockContext {
     alpha: f64,
     response: String,
     factor: String,
-    method: Option<&'static str>,
+    method: &'static str,
+    compare: Option<&'static str>,
+    /// The declared omnibus test as a sentence fragment.
+    statement: String,
+    welch: Option<BTreeMap<&'static str, f64>>,
+    kruskal: Option<BTreeMap<&'static str, f64>>,
+    checks: ChecksContext,
     terms: BTreeMap<String, TermContext>,
     residual: BTreeMap<&'static str, f64>,
     groups: BTreeMap<String, GroupContext>,
@@ -85,9 +125,29 @@ fn block_context(r: &AnovaResult) -> BlockContext {
             f: t.f,
             p: t.p,
             f_crit: t.f_crit,
+            effect: r.effect.map(|e| EffectContext {
+                eta_sq: e.eta_sq,
+                partial_eta_sq: e.partial_eta_sq,
+                omega_sq: e.omega_sq,
+                cohens_f: e.cohens_f,
+                ci_lower: e.partial_eta_sq_ci.0,
+                ci_upper: e.partial_eta_sq_ci.1,
+            }),
         },
     );
-    let letters_of = |i: usize| r.comparison.as_ref().map(|c| c.letters[i].clone());
+    let ftest = |t: &crate::stats::assumptions::FTest| TestContext {
+        statistic: t.statistic,
+        df1: t.df1,
+        df2: t.df2,
+        f: t.statistic,
+        p: t.p,
+    };
+    let c = &r.checks;
+    let letters_of = |i: usize| {
+        r.comparison
+            .as_ref()
+            .and_then(|c| c.letters.get(i).cloned())
+    };
     BlockContext {
         f: t.f,
         p: t.p,
@@ -100,7 +160,35 @@ fn block_context(r: &AnovaResult) -> BlockContext {
         alpha: r.alpha,
         response: r.response.clone(),
         factor: r.factor.clone(),
-        method: r.comparison.as_ref().map(|c| c.method.key()),
+        method: r.method.key(),
+        compare: r.comparison.as_ref().map(|c| c.method.key()),
+        statement: super::view::omnibus_statement(r),
+        welch: r.welch.map(|w| {
+            [("f", w.f), ("df1", w.df1), ("df2", w.df2), ("p", w.p)]
+                .into_iter()
+                .collect()
+        }),
+        kruskal: r
+            .kruskal
+            .as_ref()
+            .map(|k| [("h", k.h), ("df", k.df), ("p", k.p)].into_iter().collect()),
+        checks: ChecksContext {
+            brown_forsythe: c.brown_forsythe.as_ref().map(ftest),
+            levene: c.levene.as_ref().map(ftest),
+            bartlett: c.bartlett.map(|b| {
+                [("statistic", b.statistic), ("df", b.df), ("p", b.p)]
+                    .into_iter()
+                    .collect()
+            }),
+            shapiro_wilk: c.shapiro_wilk.ok().map(|s| {
+                [("w", s.w), ("p", s.p), ("n", s.n as f64)]
+                    .into_iter()
+                    .collect()
+            }),
+            skewness: c.skewness,
+            excess_kurtosis: c.excess_kurtosis,
+            outliers: c.outliers.len(),
+        },
         terms,
         residual: [
             ("df", t.df_within as f64),
@@ -121,6 +209,9 @@ fn block_context(r: &AnovaResult) -> BlockContext {
                     se: l.se,
                     ci_lower: l.ci_lower,
                     ci_upper: l.ci_upper,
+                    median: l.median,
+                    q1: l.q1,
+                    q3: l.q3,
                     letters: letters_of(i),
                 };
                 (l.name.clone(), g)
@@ -194,6 +285,15 @@ fn environment() -> Environment<'static> {
             Ok(significant(number(&v, "sig")?, d.unwrap_or(3).clamp(1, 15)))
         },
     );
+    env.add_filter("htest", |v: Value| -> Result<String, minijinja::Error> {
+        let (h, df, p) = (attr(&v, "h")?, attr(&v, "df")?, attr(&v, "p")?);
+        Ok(format!(
+            "H({}) = {}, {}",
+            super::format::df_text(df),
+            fixed(h, 2),
+            p_phrase(p)
+        ))
+    });
     env.add_filter("ftest", |v: Value| -> Result<String, minijinja::Error> {
         Ok(f_statement(
             attr(&v, "df1")?,

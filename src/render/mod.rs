@@ -1,7 +1,8 @@
 //! Rendering stage: view models laid out by templates (embedded at compile
 //! time from `templates/`), prose from pulldown-cmark. HTML escaping happens
-//! in minijinja's HTML auto-escape and pulldown-cmark's writer; Markdown
-//! escaping happens in `markdown_escape`. Nowhere else.
+//! in minijinja's HTML auto-escape, pulldown-cmark's writer and `html_escape`
+//! (for the `code_spans` filter); Markdown escaping in `markdown_escape`.
+//! Nowhere else.
 
 pub mod format;
 pub mod inline;
@@ -37,7 +38,7 @@ impl Format {
 pub const CAUTIONS: [&str; 5] = [
     "Statistical significance is not practical importance: judge each difference and its confidence interval against the smallest difference that matters in your setting.",
     "A difference that is not significant does not show that levels are equivalent; equivalence needs its own test.",
-    "The analysis assumes independent observations, normally distributed errors and equal variances across levels. This report does not test those assumptions; check them before relying on the results.",
+    "An analysis of variance assumes independent observations, normally distributed errors and equal variances across levels. The checks in this report test the last two, but a check that passes does not prove an assumption holds, and independence comes from the design, which no test can confirm.",
     "Results must be reviewed by a qualified statistician or responsible scientist before they inform decisions or submissions.",
     "Applicable regulatory guidance and local standard operating procedures take precedence over this tool's defaults.",
 ];
@@ -115,12 +116,56 @@ fn environment() -> Environment<'static> {
         }
         minijinja::escape_formatter(out, state, value)
     });
+    env.add_filter("code_spans", code_spans);
     for (name, _) in TEMPLATES {
         // The templates are ours and fixed at compile time; a syntax error is
         // caught by every test that renders a report.
         let _ = env.add_template(name, template_source(name));
     }
     env
+}
+
+/// Escapes a sentence of ours that may quote keys or names in backticks, and
+/// turns those quotes into code: `<code>` in HTML, a code span in Markdown.
+/// The text inside the backticks is escaped too, so data strings stay inert.
+fn code_spans(state: &minijinja::State, text: String) -> Value {
+    let markdown = matches!(state.auto_escape(), AutoEscape::Custom(n) if n == "markdown");
+    let mut out = String::with_capacity(text.len() + 16);
+    for (i, part) in text.split('`').enumerate() {
+        // Odd parts sit between backticks (an unmatched last one stays plain).
+        let quoted = i % 2 == 1 && text.matches('`').count() > i;
+        match (markdown, quoted) {
+            (true, true) if !part.contains('\n') => {
+                out.push('`');
+                out.push_str(part);
+                out.push('`');
+            }
+            (true, _) => out.push_str(&markdown_escape(part)),
+            (false, true) => {
+                out.push_str("<code>");
+                out.push_str(&html_escape(part));
+                out.push_str("</code>");
+            }
+            (false, false) => out.push_str(&html_escape(part)),
+        }
+    }
+    Value::from_safe_string(out)
+}
+
+/// Escapes text for HTML element content and attribute values.
+pub fn html_escape(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for c in text.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&#x27;"),
+            _ => out.push(c),
+        }
+    }
+    out
 }
 
 fn render(env: &Environment<'_>, name: &str, ctx: Value) -> Result<String, Diagnostic> {

@@ -1,9 +1,14 @@
 //! The view model: every number of a block formatted once, as strings, with
 //! the results-file key it came from. Templates only lay these out.
 
-use super::format::{column_decimals, df_text, f_stat, fixed, p_value};
-use crate::analysis::AnovaResult;
-use crate::doc::block::Order;
+use super::format::{
+    column_decimals, df_text, effect_size, f_stat, fixed, p_phrase, p_value, significant,
+};
+use crate::analysis::{AnovaResult, ComparisonResult};
+use crate::doc::block::{Omnibus, Order};
+use crate::stats::assumptions::ShapiroWilkSkip;
+use crate::stats::compare::Method;
+use crate::stats::dunnett::Sides;
 use serde::Serialize;
 
 #[derive(Debug, Clone, Serialize)]
@@ -37,8 +42,11 @@ pub struct BlockView {
     pub warnings: Vec<String>,
 }
 
-fn cell(text: String, key: Option<String>) -> Cell {
-    Cell { text, key }
+fn cell(text: String, key: String) -> Cell {
+    Cell {
+        text,
+        key: Some(key),
+    }
 }
 
 fn text(t: impl Into<String>) -> Cell {
@@ -71,235 +79,674 @@ pub fn alpha_text(alpha: f64) -> String {
     format!("{alpha}")
 }
 
+/// Numbers tables through the document.
+struct Numbering<'a>(&'a mut usize);
+
+impl Numbering<'_> {
+    fn next(&mut self) -> usize {
+        let n = *self.0;
+        *self.0 += 1;
+        n
+    }
+}
+
 /// Builds the block's tables; `next_table` is the number of its first table.
 pub fn block_view(r: &AnovaResult, next_table: &mut usize) -> BlockView {
-    let t = &r.table;
-    let id = &r.id;
-    let d = r.decimals;
+    let mut numbers = Numbering(next_table);
     let mut tables = Vec::new();
-    let mut take_number = || {
-        let n = *next_table;
-        *next_table += 1;
-        n
-    };
-    let conf = confidence_label(r.alpha);
-
     if r.show.anova {
-        // SS to five significant digits of the total, MS to four of the
-        // largest mean square, each column on one number of decimals.
-        let ss_dec = column_decimals(&[t.ss_total], 5);
-        let ms_dec = column_decimals(&[t.ms_between, t.ms_within], 4);
-        let term_key = |q: &str| Some(format!("{id}.anova.terms.{}.{q}", r.factor));
-        let rows = vec![
-            vec![
-                text(r.factor.clone()),
-                cell(t.df_between.to_string(), term_key("df")),
-                cell(fixed(t.ss_between, ss_dec), term_key("ss")),
-                cell(fixed(t.ms_between, ms_dec), term_key("ms")),
-                cell(f_stat(t.f), term_key("f")),
-                cell(p_value(t.p), term_key("p")),
-            ],
-            vec![
-                text("Residual"),
-                cell(
-                    t.df_within.to_string(),
-                    Some(format!("{id}.anova.residual.df")),
-                ),
-                cell(
-                    fixed(t.ss_within, ss_dec),
-                    Some(format!("{id}.anova.residual.ss")),
-                ),
-                cell(
-                    fixed(t.ms_within, ms_dec),
-                    Some(format!("{id}.anova.residual.ms")),
-                ),
-                text(""),
-                text(""),
-            ],
-            vec![
-                text("Total"),
-                cell((t.n - 1).to_string(), Some(format!("{id}.anova.total.df"))),
-                cell(
-                    fixed(t.ss_total, ss_dec),
-                    Some(format!("{id}.anova.total.ss")),
-                ),
-                text(""),
-                text(""),
-                text(""),
-            ],
-        ];
-        let number = take_number();
-        let caption = match &r.caption {
-            Some(c) => format!("Table {number}. {c}"),
-            None => format!(
-                "Table {number}. Analysis of variance of {} by {} (N = {}).",
-                r.response, r.factor, t.n
-            ),
-        };
-        let footnotes = vec![format!(
-            "Critical value F({}, {}) at α = {} is {}; R² = {}.",
-            t.df_between,
-            df_text(t.df_within as f64),
-            alpha_text(r.alpha),
-            fixed(t.f_crit, 3),
-            fixed(t.r_squared, 3)
-        )];
-        tables.push(TableView {
-            number,
-            id: format!("{id}-anova"),
-            caption,
-            columns: vec![
-                col("Source", false),
-                col("df", true),
-                col("SS", true),
-                col("MS", true),
-                col("F", true),
-                col("p", true),
-            ],
-            rows,
-            footnotes,
+        tables.push(match r.method {
+            Omnibus::Anova => anova_table(r, numbers.next()),
+            Omnibus::Welch => welch_table(r, numbers.next()),
+            Omnibus::Ranks => kruskal_table(r, numbers.next()),
         });
     }
-
+    if r.checks.shown {
+        tables.push(checks_table(r, numbers.next()));
+    }
     if r.show.means {
-        let letters = r.comparison.as_ref().map(|c| &c.letters);
-        let mut order: Vec<usize> = (0..r.levels.len()).collect();
-        if r.order == Order::Mean {
-            order.sort_by(|&a, &b| {
-                r.levels[b]
-                    .mean
-                    .total_cmp(&r.levels[a].mean)
-                    .then(a.cmp(&b))
-            });
-        }
-        let rows = order
-            .iter()
-            .map(|&i| {
-                let l = &r.levels[i];
-                let g = |q: &str| Some(format!("{id}.groups.{}.{q}", l.name));
-                let mut row = vec![
-                    text(l.name.clone()),
-                    cell(l.n.to_string(), g("n")),
-                    cell(fixed(l.mean, d), g("mean")),
-                    cell(fixed(l.sd, d), g("sd")),
-                    cell(fixed(l.se, d), g("se")),
-                    cell(
-                        format!("{} to {}", fixed(l.ci_lower, d), fixed(l.ci_upper, d)),
-                        g("ci"),
-                    ),
-                ];
-                if let Some(ls) = letters {
-                    row.push(cell(
-                        ls[i].clone(),
-                        Some(format!("{id}.comparisons.{}.letters", r.factor)),
-                    ));
-                }
-                row
-            })
-            .collect();
-        let mut columns = vec![
-            col(r.factor.clone(), false),
-            col("n", true),
-            col("Mean", true),
-            col("SD", true),
-            col("SE", true),
-            col(format!("{conf} CI"), true),
-        ];
-        let mut footnotes = vec![format!(
-            "SE and {conf} confidence intervals use the pooled error mean square (MSE = {}, {} df), as the ANOVA model assumes equal variances; SD is each level's own.",
-            super::format::significant(t.ms_within, 4),
-            t.df_within
-        )];
-        if let Some(c) = &r.comparison {
-            columns.push(col("Letters", false));
-            let rows_note = if r.order == Order::Mean {
-                " Rows run from the highest mean."
-            } else {
-                ""
-            };
-            footnotes.push(format!(
-                "Means sharing a letter are not significantly different ({}, α = {}); the letter a marks the group holding the highest mean.{rows_note}",
-                c.method.title(),
-                alpha_text(c.alpha)
-            ));
-        }
-        let number = take_number();
-        tables.push(TableView {
-            number,
-            id: format!("{id}-means"),
-            caption: format!("Table {number}. Means of {} by {}.", r.response, r.factor),
-            columns,
-            rows,
-            footnotes,
+        tables.push(if r.method == Omnibus::Ranks {
+            ranks_table(r, numbers.next())
+        } else {
+            means_table(r, numbers.next())
         });
     }
-
     let mut notes = Vec::new();
     if let Some(c) = &r.comparison {
         notes.extend(c.notes.iter().cloned());
         if r.show.pairs {
-            let p_label = if c.method.key() == "lsd" {
-                "p"
-            } else {
-                "adjusted p"
-            };
-            let rows = c
-                .pairs
-                .iter()
-                .enumerate()
-                .map(|(i, p)| {
-                    let k = |q: &str| Some(format!("{id}.comparisons.{}.pairs.{i}.{q}", r.factor));
-                    vec![
-                        text(format!("{} − {}", r.levels[p.a].name, r.levels[p.b].name)),
-                        cell(fixed(p.diff, d), k("diff")),
-                        cell(fixed(p.se, d), k("se")),
-                        cell(
-                            format!("{} to {}", fixed(p.lower, d), fixed(p.upper, d)),
-                            k("ci"),
-                        ),
-                        cell(p_value(p.p_adj), k("p_adj")),
-                        cell(
-                            if p.significant {
-                                "yes".into()
-                            } else {
-                                "no".into()
-                            },
-                            k("significant"),
-                        ),
-                    ]
-                })
-                .collect();
-            let interval = match c.method.key() {
-                "holm" => format!("{conf} Bonferroni simultaneous intervals"),
-                "tukey" | "bonferroni" => format!("{conf} simultaneous intervals"),
-                _ => format!("{conf} intervals per pair"),
-            };
-            let number = take_number();
-            tables.push(TableView {
-                number,
-                id: format!("{id}-pairs"),
-                caption: format!("Table {number}. Pairwise comparisons of {} means ({}, {interval}).", r.factor, c.method.title()),
-                columns: vec![
-                    col("Comparison", false),
-                    col("Difference", true),
-                    col("SE", true),
-                    col(format!("{conf} CI"), true),
-                    col(p_label, true),
-                    col(format!("Significant at α = {}", alpha_text(c.alpha)), false),
-                ],
-                rows,
-                footnotes: vec![format!(
-                    "Difference is the first level's mean minus the second's; SE = √(MSE(1/nᵢ + 1/nⱼ)). Procedure: {} ({}).",
-                    c.method.title(),
-                    c.method.citation()
-                )],
-            });
+            tables.push(pairs_table(r, c, numbers.next()));
         }
     }
     BlockView {
-        id: id.clone(),
+        id: r.id.clone(),
         tables,
         notes,
         warnings: r.warnings.clone(),
+    }
+}
+
+fn anova_table(r: &AnovaResult, number: usize) -> TableView {
+    let (t, id) = (&r.table, &r.id);
+    // SS to five significant digits of the total, MS to four of the
+    // largest mean square, each column on one number of decimals.
+    let ss_dec = column_decimals(&[t.ss_total], 5);
+    let ms_dec = column_decimals(&[t.ms_between, t.ms_within], 4);
+    let term = |q: &str| format!("{id}.anova.terms.{}.{q}", r.factor);
+    let eta = r
+        .effect
+        .map_or_else(|| "".to_string(), |e| effect_size(e.partial_eta_sq));
+    let rows = vec![
+        vec![
+            text(r.factor.clone()),
+            cell(t.df_between.to_string(), term("df")),
+            cell(fixed(t.ss_between, ss_dec), term("ss")),
+            cell(fixed(t.ms_between, ms_dec), term("ms")),
+            cell(f_stat(t.f), term("f")),
+            cell(p_value(t.p), term("p")),
+            cell(eta, term("effect.partial_eta_sq")),
+        ],
+        vec![
+            text("Residual"),
+            cell(t.df_within.to_string(), format!("{id}.anova.residual.df")),
+            cell(
+                fixed(t.ss_within, ss_dec),
+                format!("{id}.anova.residual.ss"),
+            ),
+            cell(
+                fixed(t.ms_within, ms_dec),
+                format!("{id}.anova.residual.ms"),
+            ),
+            text(""),
+            text(""),
+            text(""),
+        ],
+        vec![
+            text("Total"),
+            cell((t.n - 1).to_string(), format!("{id}.anova.total.df")),
+            cell(fixed(t.ss_total, ss_dec), format!("{id}.anova.total.ss")),
+            text(""),
+            text(""),
+            text(""),
+            text(""),
+        ],
+    ];
+    let caption = match &r.caption {
+        Some(c) => format!("Table {number}. {c}"),
+        None => format!(
+            "Table {number}. Analysis of variance of {} by {} (N = {}).",
+            r.response, r.factor, t.n
+        ),
+    };
+    let mut footnotes = vec![format!(
+        "Critical value F({}, {}) at α = {} is {}; R² = {}.",
+        t.df_between,
+        df_text(t.df_within as f64),
+        alpha_text(r.alpha),
+        fixed(t.f_crit, 3),
+        fixed(t.r_squared, 3)
+    )];
+    if let Some(e) = r.effect {
+        footnotes.push(format!(
+            "Effect size: η² = {} (partial η², here the same; {} CI {} to {}, from the noncentral F), ω² = {}, Cohen's f = {}.",
+            effect_size(e.eta_sq),
+            confidence_label(1.0 - e.level),
+            effect_size(e.partial_eta_sq_ci.0),
+            effect_size(e.partial_eta_sq_ci.1),
+            effect_size(e.omega_sq),
+            effect_size(e.cohens_f)
+        ));
+    }
+    TableView {
+        number,
+        id: format!("{id}-anova"),
+        caption,
+        columns: vec![
+            col("Source", false),
+            col("df", true),
+            col("SS", true),
+            col("MS", true),
+            col("F", true),
+            col("p", true),
+            col("η²", true),
+        ],
+        rows,
+        footnotes,
+    }
+}
+
+fn welch_table(r: &AnovaResult, number: usize) -> TableView {
+    let id = &r.id;
+    let rows = r
+        .welch
+        .iter()
+        .map(|w| {
+            vec![
+                text(r.factor.clone()),
+                cell(f_stat(w.f), format!("{id}.welch.f")),
+                cell(df_text(w.df1), format!("{id}.welch.df1")),
+                cell(fixed(w.df2, 2), format!("{id}.welch.df2")),
+                cell(p_value(w.p), format!("{id}.welch.p")),
+            ]
+        })
+        .collect();
+    let caption = match &r.caption {
+        Some(c) => format!("Table {number}. {c}"),
+        None => format!(
+            "Table {number}. Welch's analysis of variance of {} by {} (N = {}), not assuming equal variances.",
+            r.response, r.factor, r.table.n
+        ),
+    };
+    TableView {
+        number,
+        id: format!("{id}-welch"),
+        caption,
+        columns: vec![
+            col("Source", false),
+            col("F*", true),
+            col("df₁", true),
+            col("df₂", true),
+            col("p", true),
+        ],
+        rows,
+        footnotes: vec![format!(
+            "Welch (1951). The classical F test, for comparison: {}.",
+            super::format::f_statement(
+                r.table.df_between as f64,
+                r.table.df_within as f64,
+                r.table.f,
+                r.table.p
+            )
+        )],
+    }
+}
+
+fn kruskal_table(r: &AnovaResult, number: usize) -> TableView {
+    let id = &r.id;
+    let rows = r
+        .kruskal
+        .iter()
+        .map(|k| {
+            vec![
+                text(r.factor.clone()),
+                cell(fixed(k.h, 2), format!("{id}.kruskal.h")),
+                cell(df_text(k.df), format!("{id}.kruskal.df")),
+                cell(p_value(k.p), format!("{id}.kruskal.p")),
+            ]
+        })
+        .collect();
+    let caption = match &r.caption {
+        Some(c) => format!("Table {number}. {c}"),
+        None => format!(
+            "Table {number}. Kruskal-Wallis test of {} by {} (N = {}).",
+            r.response, r.factor, r.table.n
+        ),
+    };
+    TableView {
+        number,
+        id: format!("{id}-kruskal"),
+        caption,
+        columns: vec![col("Source", false), col("H", true), col("df", true), col("p", true)],
+        rows,
+        footnotes: vec![
+            "Kruskal & Wallis (1952); H is corrected for ties and referred to the chi-squared distribution.".into()
+        ],
+    }
+}
+
+fn checks_table(r: &AnovaResult, number: usize) -> TableView {
+    let c = &r.checks;
+    let id = &r.id;
+    let a = r.alpha;
+    let reading = |p: f64, yes: &str, no: &str| {
+        if p < a {
+            yes.to_string()
+        } else {
+            no.to_string()
+        }
+    };
+    let mut rows = Vec::new();
+    let mut ftest = |name: &str, key: &str, t: &Option<crate::stats::assumptions::FTest>| match t {
+        Some(t) => rows.push(vec![
+            text(name),
+            cell(f_stat(t.statistic), format!("{id}.checks.{key}.statistic")),
+            text(format!("{}, {}", df_text(t.df1), df_text(t.df2))),
+            cell(p_value(t.p), format!("{id}.checks.{key}.p")),
+            text(reading(
+                t.p,
+                "variances differ",
+                "no evidence of unequal variances",
+            )),
+        ]),
+        None => rows.push(vec![
+            text(name),
+            text("–"),
+            text(""),
+            text("–"),
+            text("not defined for these data"),
+        ]),
+    };
+    ftest(
+        "Brown-Forsythe (median-centred)",
+        "brown_forsythe",
+        &c.brown_forsythe,
+    );
+    ftest("Levene (mean-centred)", "levene", &c.levene);
+    match c.bartlett {
+        Some(b) => rows.push(vec![
+            text("Bartlett"),
+            cell(
+                fixed(b.statistic, 2),
+                format!("{id}.checks.bartlett.statistic"),
+            ),
+            text(df_text(b.df)),
+            cell(p_value(b.p), format!("{id}.checks.bartlett.p")),
+            text(reading(
+                b.p,
+                "variances differ (sensitive to non-normality)",
+                "no evidence of unequal variances",
+            )),
+        ]),
+        None => rows.push(vec![
+            text("Bartlett"),
+            text("–"),
+            text(""),
+            text("–"),
+            text("needs two or more values with spread in every level"),
+        ]),
+    }
+    match &c.shapiro_wilk {
+        Ok(sw) => rows.push(vec![
+            text("Shapiro-Wilk (residuals)"),
+            cell(fixed(sw.w, 4), format!("{id}.checks.shapiro_wilk.w")),
+            text(format!("n = {}", sw.n)),
+            cell(p_value(sw.p), format!("{id}.checks.shapiro_wilk.p")),
+            text(reading(
+                sw.p,
+                "residuals depart from normality",
+                "no evidence against normality",
+            )),
+        ]),
+        Err(why) => rows.push(vec![
+            text("Shapiro-Wilk (residuals)"),
+            text("–"),
+            text(""),
+            text("–"),
+            text(match why {
+                ShapiroWilkSkip::TooFew => "not computed: fewer than 3 residuals",
+                ShapiroWilkSkip::TooMany => "not computed: more than 5,000 residuals",
+                ShapiroWilkSkip::NoSpread => "not computed: the residuals have no spread",
+            }),
+        ]),
+    }
+    rows.push(vec![
+        text("Skewness of residuals"),
+        cell(fixed(c.skewness, 2), format!("{id}.checks.skewness")),
+        text(""),
+        text(""),
+        text("0 for a symmetric distribution"),
+    ]);
+    rows.push(vec![
+        text("Excess kurtosis of residuals"),
+        cell(
+            fixed(c.excess_kurtosis, 2),
+            format!("{id}.checks.excess_kurtosis"),
+        ),
+        text(""),
+        text(""),
+        text("0 for a normal distribution"),
+    ]);
+    let outliers = if c.outliers.is_empty() {
+        format!(
+            "No observation has an externally studentized residual beyond ±{}.",
+            crate::stats::assumptions::OUTLIER_THRESHOLD
+        )
+    } else {
+        let lines: Vec<String> = c.outliers.iter().map(|o| o.line.to_string()).collect();
+        format!(
+            "Observations with an externally studentized residual beyond ±{} (flagged, not excluded): data line(s) {}.",
+            crate::stats::assumptions::OUTLIER_THRESHOLD,
+            lines.join(", ")
+        )
+    };
+    TableView {
+        number,
+        id: format!("{id}-checks"),
+        caption: format!(
+            "Table {number}. Assumption checks for {} by {}.",
+            r.response, r.factor
+        ),
+        columns: vec![
+            col("Check", false),
+            col("Statistic", true),
+            col("df", true),
+            col("p", true),
+            col("Reading at α", false),
+        ],
+        rows,
+        footnotes: vec![
+            format!(
+                "Readings use α = {}. A check that passes does not prove an assumption holds, and with many observations small, harmless departures reach significance: look at the data as well. Skewness and kurtosis are the bias-adjusted sample estimates.",
+                alpha_text(a)
+            ),
+            outliers,
+        ],
+    }
+}
+
+/// Rows in display order: by mean (or mean rank) descending, or as designed.
+fn display_order(r: &AnovaResult, key: &[f64]) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..r.levels.len()).collect();
+    if r.order == Order::Mean {
+        order.sort_by(|&a, &b| key[b].total_cmp(&key[a]).then(a.cmp(&b)));
+    }
+    order
+}
+
+fn letters_footnote(r: &AnovaResult, c: &ComparisonResult, what: &str) -> String {
+    let rows_note = if r.order == Order::Mean {
+        format!(" Rows run from the highest {what}.")
+    } else {
+        String::new()
+    };
+    format!(
+        "Levels sharing a letter are not significantly different ({}, α = {}); the letter a marks the group holding the highest {what}.{rows_note}",
+        c.method.title(),
+        alpha_text(c.alpha)
+    )
+}
+
+fn means_table(r: &AnovaResult, number: usize) -> TableView {
+    let (t, id, d) = (&r.table, &r.id, r.decimals);
+    let conf = confidence_label(r.alpha);
+    let letters = r.comparison.as_ref().filter(|c| !c.letters.is_empty());
+    let dunnett = r
+        .comparison
+        .as_ref()
+        .filter(|c| c.method == Method::Dunnett);
+    let means: Vec<f64> = r.levels.iter().map(|l| l.mean).collect();
+    let rows = display_order(r, &means)
+        .into_iter()
+        .map(|i| {
+            let l = &r.levels[i];
+            let g = |q: &str| format!("{id}.groups.{}.{q}", l.name);
+            let mut row = vec![
+                text(l.name.clone()),
+                cell(l.n.to_string(), g("n")),
+                cell(fixed(l.mean, d), g("mean")),
+                cell(fixed(l.sd, d), g("sd")),
+                cell(fixed(l.se, d), g("se")),
+                cell(
+                    format!("{} to {}", fixed(l.ci_lower, d), fixed(l.ci_upper, d)),
+                    g("ci"),
+                ),
+            ];
+            if let Some(c) = letters {
+                row.push(cell(
+                    c.letters[i].clone(),
+                    format!("{id}.comparisons.{}.letters", r.factor),
+                ));
+            }
+            if let Some(c) = dunnett {
+                let mark = if c.control == Some(i) {
+                    "control".to_string()
+                } else {
+                    c.pairs
+                        .iter()
+                        .find(|p| p.a == i)
+                        .map_or(String::new(), |p| {
+                            if p.significant { "*".into() } else { "".into() }
+                        })
+                };
+                row.push(text(mark));
+            }
+            row
+        })
+        .collect();
+    let mut columns = vec![
+        col(r.factor.clone(), false),
+        col("n", true),
+        col("Mean", true),
+        col("SD", true),
+        col("SE", true),
+        col(format!("{conf} CI"), true),
+    ];
+    let mut footnotes = vec![if r.ci_pooled {
+        format!(
+            "SE and {conf} confidence intervals use the pooled error mean square (MSE = {}, {} df), as the ANOVA model assumes equal variances; SD is each level's own.",
+            significant(t.ms_within, 4),
+            t.df_within
+        )
+    } else {
+        format!(
+            "SE and {conf} confidence intervals use each level's own SD (n − 1 df), as Welch's ANOVA does not assume equal variances."
+        )
+    }];
+    if let Some(c) = letters {
+        columns.push(col("Letters", false));
+        footnotes.push(letters_footnote(r, c, "mean"));
+    }
+    if let Some(c) = dunnett {
+        columns.push(col("vs control", false));
+        footnotes.push(format!(
+            "* differs from the control at α = {} (Dunnett). Letters are not given: Dunnett's procedure compares treatments with the control only.",
+            alpha_text(c.alpha)
+        ));
+    }
+    TableView {
+        number,
+        id: format!("{id}-means"),
+        caption: format!("Table {number}. Means of {} by {}.", r.response, r.factor),
+        columns,
+        rows,
+        footnotes,
+    }
+}
+
+fn ranks_table(r: &AnovaResult, number: usize) -> TableView {
+    let (id, d) = (&r.id, r.decimals);
+    let mean_ranks: Vec<f64> = r
+        .kruskal
+        .as_ref()
+        .map_or_else(|| vec![f64::NAN; r.levels.len()], |k| k.mean_ranks.clone());
+    let letters = r.comparison.as_ref().filter(|c| !c.letters.is_empty());
+    let rows = display_order(r, &mean_ranks)
+        .into_iter()
+        .map(|i| {
+            let l = &r.levels[i];
+            let g = |q: &str| format!("{id}.groups.{}.{q}", l.name);
+            let mut row = vec![
+                text(l.name.clone()),
+                cell(l.n.to_string(), g("n")),
+                cell(fixed(l.median, d), g("median")),
+                cell(
+                    format!("{} to {}", fixed(l.q1, d), fixed(l.q3, d)),
+                    g("iqr"),
+                ),
+                text(fixed(mean_ranks[i], 1)),
+                cell(fixed(l.mean, d), g("mean")),
+            ];
+            if let Some(c) = letters {
+                row.push(cell(
+                    c.letters[i].clone(),
+                    format!("{id}.comparisons.{}.letters", r.factor),
+                ));
+            }
+            row
+        })
+        .collect();
+    let mut columns = vec![
+        col(r.factor.clone(), false),
+        col("n", true),
+        col("Median", true),
+        col("Quartiles", true),
+        col("Mean rank", true),
+        col("Mean", true),
+    ];
+    let mut footnotes = vec!["Quartiles by linear interpolation between order statistics; ranks are joint over all observations, ties sharing their mid-rank.".to_string()];
+    if let Some(c) = letters {
+        columns.push(col("Letters", false));
+        footnotes.push(letters_footnote(r, c, "mean rank"));
+    }
+    TableView {
+        number,
+        id: format!("{id}-levels"),
+        caption: format!(
+            "Table {number}. Medians and ranks of {} by {}.",
+            r.response, r.factor
+        ),
+        columns,
+        rows,
+        footnotes,
+    }
+}
+
+fn pairs_table(r: &AnovaResult, c: &ComparisonResult, number: usize) -> TableView {
+    let (id, d) = (&r.id, r.decimals);
+    let conf = confidence_label(r.alpha);
+    let key = |i: usize, q: &str| format!("{id}.comparisons.{}.pairs.{i}.{q}", r.factor);
+    let p_label = if c.method == Method::Lsd {
+        "p"
+    } else {
+        "adjusted p"
+    };
+    let sig_label = format!("Significant at α = {}", alpha_text(c.alpha));
+    let name = |i: usize| r.levels[i].name.clone();
+    let (columns, rows): (Vec<Column>, Vec<Vec<Cell>>) = if c.method == Method::Dunn {
+        (
+            vec![
+                col("Comparison", false),
+                col("Mean-rank difference", true),
+                col("z", true),
+                col(p_label, true),
+                col(sig_label, false),
+            ],
+            c.pairs
+                .iter()
+                .enumerate()
+                .map(|(i, p)| {
+                    vec![
+                        text(format!("{} − {}", name(p.a), name(p.b))),
+                        cell(fixed(p.diff, 2), key(i, "diff")),
+                        text(fixed(p.statistic, 2)),
+                        cell(p_value(p.p_adj), key(i, "p_adj")),
+                        cell(yes_no(p.significant), key(i, "significant")),
+                    ]
+                })
+                .collect(),
+        )
+    } else {
+        let interval =
+            |p: &crate::stats::compare::Pair| match (p.lower.is_finite(), p.upper.is_finite()) {
+                (true, true) => format!("{} to {}", fixed(p.lower, d), fixed(p.upper, d)),
+                (true, false) => format!("above {}", fixed(p.lower, d)),
+                (false, true) => format!("below {}", fixed(p.upper, d)),
+                _ => "–".into(),
+            };
+        let mut columns = vec![
+            col("Comparison", false),
+            col("Difference", true),
+            col("SE", true),
+            col(format!("{conf} CI"), true),
+        ];
+        if c.method == Method::GamesHowell {
+            columns.push(col("df", true));
+        }
+        columns.push(col(p_label, true));
+        columns.push(col(sig_label, false));
+        let rows = c
+            .pairs
+            .iter()
+            .enumerate()
+            .map(|(i, p)| {
+                let mut row = vec![
+                    text(format!("{} − {}", name(p.a), name(p.b))),
+                    cell(fixed(p.diff, d), key(i, "diff")),
+                    cell(fixed(p.se, d), key(i, "se")),
+                    cell(interval(p), key(i, "ci")),
+                ];
+                if let Some(df) = p.df {
+                    row.push(cell(fixed(df, 2), key(i, "df")));
+                }
+                row.push(cell(p_value(p.p_adj), key(i, "p_adj")));
+                row.push(cell(yes_no(p.significant), key(i, "significant")));
+                row
+            })
+            .collect();
+        (columns, rows)
+    };
+    let interval = match c.method {
+        Method::Holm => format!("{conf} Bonferroni simultaneous intervals"),
+        Method::Lsd => format!("{conf} intervals per pair"),
+        Method::Dunn => "no intervals".to_string(),
+        Method::Dunnett if c.sides != Sides::Two => format!("one-sided {conf} simultaneous bounds"),
+        _ => format!("{conf} simultaneous intervals"),
+    };
+    let what = match c.method {
+        Method::Dunnett => "treatment–control comparisons".to_string(),
+        _ => format!("pairwise comparisons of {} levels", r.factor),
+    };
+    let se_note = match c.method {
+        Method::GamesHowell => {
+            "SE = √(sᵢ²/nᵢ + sⱼ²/nⱼ), with the pair's own Welch-Satterthwaite df"
+        }
+        Method::Dunn => {
+            "z is the mean-rank difference over its standard error under the joint ranking"
+        }
+        _ => "SE = √(MSE(1/nᵢ + 1/nⱼ))",
+    };
+    TableView {
+        number,
+        id: format!("{id}-pairs"),
+        caption: format!(
+            "Table {number}. {} ({}, {interval}).",
+            capitalise(&what),
+            c.method.title()
+        ),
+        columns,
+        rows,
+        footnotes: vec![format!(
+            "Difference is the first level's {} minus the second's; {se_note}. Procedure: {} ({}).",
+            if c.method == Method::Dunn {
+                "mean rank"
+            } else {
+                "mean"
+            },
+            c.method.title(),
+            c.method.citation()
+        )],
+    }
+}
+
+fn yes_no(b: bool) -> String {
+    if b { "yes".into() } else { "no".into() }
+}
+
+fn capitalise(s: &str) -> String {
+    let mut c = s.chars();
+    c.next().map_or_else(String::new, |f| {
+        f.to_uppercase().collect::<String>() + c.as_str()
+    })
+}
+
+/// The one-line statement of a block's omnibus test, for prose.
+pub fn omnibus_statement(r: &AnovaResult) -> String {
+    match (r.method, &r.welch, &r.kruskal) {
+        (Omnibus::Welch, Some(w), _) => format!(
+            "Welch's {}",
+            super::format::f_statement(w.df1, w.df2, w.f, w.p)
+        ),
+        (Omnibus::Ranks, _, Some(k)) => format!(
+            "H({}) = {}, {}",
+            df_text(k.df),
+            fixed(k.h, 2),
+            p_phrase(k.p)
+        ),
+        _ => super::format::f_statement(
+            r.table.df_between as f64,
+            r.table.df_within as f64,
+            r.table.f,
+            r.table.p,
+        ),
     }
 }

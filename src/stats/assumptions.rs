@@ -47,6 +47,23 @@ pub fn median(values: &[f64]) -> f64 {
     }
 }
 
+/// First quartile, median and third quartile by linear interpolation between
+/// order statistics (Hyndman & Fan 1996, type 7; numpy's default).
+pub fn quartiles(values: &[f64]) -> (f64, f64, f64) {
+    if values.is_empty() {
+        return (f64::NAN, f64::NAN, f64::NAN);
+    }
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    let at = |q: f64| {
+        let h = (v.len() - 1) as f64 * q;
+        let lo = h.floor() as usize;
+        let hi = (lo + 1).min(v.len() - 1);
+        v[lo] + (h - lo as f64) * (v[hi] - v[lo])
+    };
+    (at(0.25), at(0.5), at(0.75))
+}
+
 /// Levene's test (`Center::Mean`) or the Brown-Forsythe test
 /// (`Center::Median`): a one-way ANOVA F on |y − centreᵢ|. `None` when it is
 /// undefined (fewer than two levels, no residual df, or no spread at all).
@@ -75,7 +92,11 @@ pub fn levene(groups: &[&[f64]], center: Center) -> Option<FTest> {
 /// has fewer than two observations or no spread.
 pub fn bartlett(groups: &[GroupSummary]) -> Option<ChiSquareTest> {
     let k = groups.len();
-    if k < 2 || groups.iter().any(|g| g.n < 2 || !(g.variance() > 0.0)) {
+    if k < 2
+        || groups
+            .iter()
+            .any(|g| g.n < 2 || !crate::stats::is_positive(g.variance()))
+    {
         return None;
     }
     let n: usize = groups.iter().map(|g| g.n).sum();
@@ -125,7 +146,7 @@ pub fn shapiro_wilk(values: &[f64]) -> Result<ShapiroWilk, ShapiroWilkSkip> {
     x.sort_by(f64::total_cmp);
     let mean = neumaier(x.iter().copied()) / n as f64;
     let ss = neumaier(x.iter().map(|v| (v - mean) * (v - mean)));
-    if !(ss > 0.0) || x[0] == x[n - 1] {
+    if !crate::stats::is_positive(ss) || x[0] == x[n - 1] {
         return Err(ShapiroWilkSkip::NoSpread);
     }
     let a = shapiro_wilk_coefficients(n);
@@ -219,7 +240,7 @@ pub fn skewness_kurtosis(values: &[f64]) -> (f64, f64) {
     let m2 = neumaier(values.iter().map(|v| (v - mean).powi(2))) / n;
     let m3 = neumaier(values.iter().map(|v| (v - mean).powi(3))) / n;
     let m4 = neumaier(values.iter().map(|v| (v - mean).powi(4))) / n;
-    if !(m2 > 0.0) {
+    if !crate::stats::is_positive(m2) {
         return (f64::NAN, f64::NAN);
     }
     let g1 = m3 / m2.powf(1.5);
@@ -258,7 +279,7 @@ pub fn outliers(groups: &[&[f64]], means: &[f64], mse: f64, df: usize) -> Vec<Ou
     let n_total: usize = groups.iter().map(|g| g.len()).sum();
     let nu = df as f64;
     let mut out = Vec::new();
-    if df < 2 || !(mse > 0.0) {
+    if df < 2 || !crate::stats::is_positive(mse) {
         return out;
     }
     for (level, (g, mean)) in groups.iter().zip(means).enumerate() {

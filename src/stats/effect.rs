@@ -98,7 +98,7 @@ pub fn one_way_effects(
 /// λ_L solves cdf(F_obs; λ) = 1 − (1 − level)/2 and λ_U solves it at
 /// (1 − level)/2; a bound is 0 when even λ = 0 cannot reach its target.
 pub fn noncentrality_interval(f_obs: f64, df1: f64, df2: f64, level: f64) -> (f64, f64) {
-    if !f_obs.is_finite() || !(df2 > 0.0) {
+    if !f_obs.is_finite() || !crate::stats::is_positive(df2) {
         return (f64::NAN, f64::NAN);
     }
     let tail = (1.0 - level) / 2.0;

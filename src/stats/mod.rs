@@ -15,3 +15,9 @@ pub mod roots;
 pub mod special;
 pub mod sum;
 pub mod welch;
+
+/// True for a positive number; false for zero, negatives and NaN. Reads
+/// better than a negated comparison where NaN must count as "not positive".
+pub(crate) fn is_positive(x: f64) -> bool {
+    x > 0.0
+}

@@ -48,7 +48,7 @@ pub fn kruskal_wallis(groups: &[&[f64]]) -> Option<KruskalWallis> {
     let n_total = all.len() as f64;
     let (ranks, ties) = mid_ranks(&all);
     let correction = 1.0 - ties / (n_total.powi(3) - n_total);
-    if !(correction > 0.0) || groups.len() < 2 {
+    if !crate::stats::is_positive(correction) || groups.len() < 2 {
         return None;
     }
     let mut offset = 0;

@@ -20,7 +20,10 @@ pub struct WelchAnova {
 /// Welch's ANOVA; `Err(i)` names the first level with n < 2 or no spread,
 /// for which the statistic is undefined.
 pub fn welch_anova(groups: &[GroupSummary]) -> Result<WelchAnova, usize> {
-    if let Some(bad) = groups.iter().position(|g| g.n < 2 || !(g.variance() > 0.0)) {
+    if let Some(bad) = groups
+        .iter()
+        .position(|g| g.n < 2 || !crate::stats::is_positive(g.variance()))
+    {
         return Err(bad);
     }
     let k = groups.len() as f64;
