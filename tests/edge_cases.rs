@@ -165,3 +165,73 @@ fn results_file_keeps_the_contract() {
     assert_eq!(block["id"], "t");
     assert_eq!(block["line"], 1);
 }
+
+#[test]
+fn results_file_carries_checks_effects_and_alternatives() {
+    // Field names from the contract for checks, effect sizes, Welch and Kruskal-Wallis.
+    let data = "y,g\n1.0,a\n2.0,a\n3.5,a\n4.0,b\n5.5,b\n6.0,b\n8.0,c\n9.5,c\n9.0,c\n";
+    let b = build(data, "");
+    let block = &results(&b)["blocks"][0];
+    let checks = &block["checks"];
+    for key in ["brown_forsythe", "levene"] {
+        for field in ["statistic", "df1", "df2", "p"] {
+            assert!(checks[key].get(field).is_some(), "checks.{key}.{field}");
+        }
+    }
+    for field in ["statistic", "df", "p"] {
+        assert!(checks["bartlett"].get(field).is_some(), "bartlett.{field}");
+    }
+    for field in ["w", "p", "n"] {
+        assert!(
+            checks["shapiro_wilk"].get(field).is_some(),
+            "shapiro_wilk.{field}"
+        );
+    }
+    assert!(checks.get("skewness").is_some() && checks.get("excess_kurtosis").is_some());
+    assert!(checks["outliers"].is_array());
+    let effect = &block["anova"]["terms"][0]["effect"];
+    for field in [
+        "eta_sq",
+        "partial_eta_sq",
+        "omega_sq",
+        "cohens_f",
+        "partial_eta_sq_ci",
+    ] {
+        assert!(effect.get(field).is_some(), "effect.{field}");
+    }
+    assert_eq!(
+        effect["partial_eta_sq_ci"].as_array().expect("pair").len(),
+        2
+    );
+    assert_eq!(block["method"], "anova");
+
+    let w = results(&build(data, "method: welch\n"));
+    for field in ["f", "df1", "df2", "p"] {
+        assert!(
+            w["blocks"][0]["welch"].get(field).is_some(),
+            "welch.{field}"
+        );
+    }
+    assert_eq!(w["blocks"][0]["comparisons"][0]["method"], "games-howell");
+    assert_eq!(w["blocks"][0]["groups"][0]["ci_error"], "level");
+
+    let k = results(&build(data, "method: ranks\n"));
+    for field in ["h", "df", "p"] {
+        assert!(
+            k["blocks"][0]["kruskal"].get(field).is_some(),
+            "kruskal.{field}"
+        );
+    }
+    assert_eq!(k["blocks"][0]["comparisons"][0]["method"], "dunn");
+    assert!(k["blocks"][0]["groups"][0]["median"].is_number());
+
+    let d = results(&build(data, "compare: dunnett\ncontrol: a\n"));
+    let c = &d["blocks"][0]["comparisons"][0];
+    assert_eq!(c["method"], "dunnett");
+    assert_eq!(c["control"], "a");
+    assert_eq!(c["pairs"].as_array().expect("pairs").len(), 2);
+    for m in ["scheffe", "sidak"] {
+        let r = results(&build(data, &format!("compare: {m}\n")));
+        assert_eq!(r["blocks"][0]["comparisons"][0]["method"], m);
+    }
+}
