@@ -5,6 +5,7 @@
 use crate::data::{DataError, Exclusion, Table, factor_response};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus, Order};
+use crate::doc::power::{EffectInput, PowerGoal, PowerSpec};
 use crate::doc::{Block, Document};
 use crate::stats::assumptions::{
     Center, ChiSquareTest, FTest, OUTLIER_THRESHOLD, ShapiroWilk, ShapiroWilkSkip, bartlett,
@@ -14,6 +15,7 @@ use crate::stats::compare::{LevelMean, Method, Pair, pairwise};
 use crate::stats::dist::t_isf;
 use crate::stats::dunnett::{Sides, dunnett};
 use crate::stats::effect::{EffectSizes, one_way_effects};
+use crate::stats::effect::{one_way_power, one_way_sample_size};
 use crate::stats::letters::{compact_letters, letter_count};
 use crate::stats::oneway::{GroupSummary, OneWay, OneWayError, one_way, total_sum_of_squares};
 use crate::stats::ranks::{KruskalWallis, dunn, kruskal_wallis};
@@ -89,6 +91,117 @@ pub struct AnovaResult {
     pub show: crate::doc::block::Show,
 }
 
+/// The result of any analysis block.
+#[derive(Debug, Clone, PartialEq)]
+pub enum BlockResult {
+    Anova(AnovaResult),
+    Power(PowerResult),
+}
+
+impl BlockResult {
+    pub fn id(&self) -> &str {
+        match self {
+            BlockResult::Anova(r) => &r.id,
+            BlockResult::Power(r) => &r.id,
+        }
+    }
+
+    pub fn line(&self) -> usize {
+        match self {
+            BlockResult::Anova(r) => r.line,
+            BlockResult::Power(r) => r.line,
+        }
+    }
+
+    pub fn warnings(&self) -> &[String] {
+        match self {
+            BlockResult::Anova(r) => &r.warnings,
+            BlockResult::Power(r) => &r.warnings,
+        }
+    }
+}
+
+/// A planned one-way experiment: the power at n per group, or the n for a power.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PowerResult {
+    pub id: String,
+    pub line: usize,
+    pub groups: usize,
+    pub effect: EffectInput,
+    pub cohens_f: f64,
+    pub alpha: f64,
+    /// The target power when solving for n.
+    pub target: Option<f64>,
+    /// n per group: the answer when solving for n, else the input.
+    pub n_per_group: Option<usize>,
+    /// Power at `n_per_group`.
+    pub power: f64,
+    /// Power over a range of n per group, for the table.
+    pub curve: Vec<(usize, f64)>,
+    pub caption: Option<String>,
+    pub warnings: Vec<String>,
+}
+
+/// Runs a `power` block (no data needed).
+pub fn run_power(doc: &Document, block: &Block, spec: &PowerSpec) -> PowerResult {
+    let alpha = spec.alpha.unwrap_or(doc.front.alpha);
+    let f = spec.effect.cohens_f();
+    let k = spec.groups;
+    let mut warnings = Vec::new();
+    if matches!(spec.effect, EffectInput::CohensF(_)) {
+        warnings.push("Cohen's benchmarks (f = 0.10, 0.25, 0.40 for small, medium, large) are no substitute for the smallest difference that matters in your setting; base the effect on that.".to_string());
+    }
+    let (target, n, power) = match spec.goal {
+        PowerGoal::SampleSize { power } => match one_way_sample_size(k, f, alpha, power) {
+            Some((n, achieved)) => (Some(power), Some(n), achieved),
+            None => {
+                warnings.push(format!("No n per group up to 1,000,000 reaches power {power}: the effect is too small to detect in practice."));
+                (Some(power), None, f64::NAN)
+            }
+        },
+        PowerGoal::Power { n_per_group } => (
+            None,
+            Some(n_per_group),
+            one_way_power(k, n_per_group, f, alpha),
+        ),
+    };
+    // A small table around the answer: half, three quarters, n − 1, n, 1.25 n, 1.5 n, 2 n.
+    let mut ns: Vec<usize> = match n {
+        Some(n) => [
+            n / 2,
+            3 * n / 4,
+            n.saturating_sub(1),
+            n,
+            n + n / 4,
+            n + n / 2,
+            2 * n,
+        ]
+        .to_vec(),
+        None => Vec::new(),
+    };
+    ns.retain(|&m| m >= 2);
+    ns.sort_unstable();
+    ns.dedup();
+    let curve = ns
+        .into_iter()
+        .map(|m| (m, one_way_power(k, m, f, alpha)))
+        .collect();
+    PowerResult {
+        id: block.id.clone(),
+        line: block.line,
+        groups: k,
+        effect: spec.effect.clone(),
+        cohens_f: f,
+        alpha,
+        target,
+        n_per_group: n,
+        power,
+        curve,
+        caption: spec.caption.clone(),
+        warnings,
+    }
+}
+
 /// A data file as read for the build.
 #[derive(Debug, Clone)]
 pub struct Input {
@@ -99,14 +212,20 @@ pub struct Input {
 
 /// Turns a data-file problem into a diagnostic pointing into the data file,
 /// with a note at the block that named it.
-fn data_error(doc: &Document, block: &Block, display_path: &str, e: DataError) -> Diagnostic {
+fn data_error(
+    doc: &Document,
+    block: &Block,
+    data_line: usize,
+    display_path: &str,
+    e: DataError,
+) -> Diagnostic {
     let mut d = Diagnostic::new(e.message).at(display_path, e.line, e.column);
     if let Some(h) = e.hint {
         d = d.hint(h);
     }
     d.note(format!(
         "read by the block `{}` at {}:{}",
-        block.id, doc.name, block.spec.data.line
+        block.id, doc.name, data_line
     ))
 }
 
@@ -114,10 +233,10 @@ fn data_error(doc: &Document, block: &Block, display_path: &str, e: DataError) -
 pub fn run_anova(
     doc: &Document,
     block: &Block,
+    spec: &AnovaSpec,
     input: &Input,
     display_path: &str,
 ) -> Result<AnovaResult, Diagnostic> {
-    let spec = &block.spec;
     let formula = &spec.model.value;
     let model_error = |message: String, hint: &str| {
         doc.error_at(spec.model.line, Some(spec.model.column), message)
@@ -136,9 +255,9 @@ pub fn run_anova(
     let factor = formula.terms[0].factors[0].clone();
     let response = formula.response.clone();
     let table = Table::parse(&input.bytes, &spec.csv)
-        .map_err(|e| data_error(doc, block, display_path, e))?;
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
     let data = factor_response(&table, &response, &factor, &spec.csv).map_err(|e| {
-        let mut d = data_error(doc, block, display_path, e);
+        let mut d = data_error(doc, block, spec.data.line, display_path, e);
         d = d.note(format!(
             "the model is `{}` (line {})",
             formula_text(formula),
@@ -283,7 +402,7 @@ pub fn run_anova(
 
     let welch = match spec.method {
         Omnibus::Welch => Some(welch_anova(&summaries).map_err(|i| {
-            let line = block.spec.model.line;
+            let line = spec.model.line;
             doc.error_at(line, None, format!("Welch's ANOVA is undefined: level `{}` has fewer than two observations or no spread", names[i]))
                 .hint("every level needs at least two differing values; use `method: anova` or `method: ranks`")
         })?),
@@ -293,7 +412,7 @@ pub fn run_anova(
         Omnibus::Ranks => {
             let kw = kruskal_wallis(&offsets).ok_or_else(|| {
                 doc.error_at(
-                    block.spec.model.line,
+                    spec.model.line,
                     None,
                     "Kruskal-Wallis is undefined: every observation has the same value",
                 )

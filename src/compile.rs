@@ -1,9 +1,9 @@
 //! The driver: document → data → statistics → rendering → results, in memory.
 //! Nothing is written here; `output` writes the finished files.
 
-use crate::analysis::{AnovaResult, Input, run_anova};
+use crate::analysis::{BlockResult, Input, run_anova, run_power};
 use crate::diag::Diagnostic;
-use crate::doc::parse_document;
+use crate::doc::{BlockSpec, parse_document};
 use crate::render::{Format, render_report};
 use crate::results::results_json;
 use std::path::{Path, PathBuf};
@@ -80,9 +80,16 @@ pub fn compile(
     let doc = parse_document(doc_display, source)?;
 
     let mut inputs: Vec<Input> = Vec::new();
-    let mut results: Vec<AnovaResult> = Vec::with_capacity(doc.blocks.len());
+    let mut results: Vec<BlockResult> = Vec::with_capacity(doc.blocks.len());
     for block in &doc.blocks {
-        let path = &block.spec.data.value;
+        let spec = match &block.spec {
+            BlockSpec::Power(spec) => {
+                results.push(BlockResult::Power(run_power(&doc, block, spec)));
+                continue;
+            }
+            BlockSpec::Anova(spec) => spec,
+        };
+        let path = &spec.data.value;
         if !inputs.iter().any(|i| &i.path == path) {
             let bytes = world.read(path).map_err(|e| {
                 let reason = match e.kind() {
@@ -90,8 +97,8 @@ pub fn compile(
                     _ => e.to_string(),
                 };
                 doc.error_at(
-                    block.spec.data.line,
-                    Some(block.spec.data.column),
+                    spec.data.line,
+                    Some(spec.data.column),
                     format!("cannot read data file `{path}`: {reason}"),
                 )
                 .hint(format!(
@@ -108,7 +115,13 @@ pub fn compile(
             .iter()
             .find(|i| &i.path == path)
             .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
-        results.push(run_anova(&doc, block, input, &world.display(path))?);
+        results.push(BlockResult::Anova(run_anova(
+            &doc,
+            block,
+            spec,
+            input,
+            &world.display(path),
+        )?));
     }
 
     let results_name = format!("{stem}.results.json");
@@ -124,9 +137,9 @@ pub fn compile(
     let warnings = results
         .iter()
         .flat_map(|r| {
-            r.warnings
+            r.warnings()
                 .iter()
-                .map(move |w| format!("{name}:{} (block `{}`): {w}", r.line, r.id))
+                .map(move |w| format!("{name}:{} (block `{}`): {w}", r.line(), r.id()))
         })
         .collect();
     Ok(Built {

@@ -6,7 +6,8 @@
 //! A value that is not finite is written as `null`, and the block's
 //! `warnings` say why.
 
-use crate::analysis::{AnovaResult, Input};
+use crate::analysis::{AnovaResult, BlockResult, Input, PowerResult};
+use crate::doc::power::EffectInput;
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 use sha2::{Digest, Sha256};
@@ -31,7 +32,77 @@ pub struct ResultsFile {
     pub document: String,
     pub document_sha256: String,
     pub inputs: Vec<InputRecord>,
-    pub blocks: Vec<BlockRecord>,
+    pub blocks: Vec<BlockEntry>,
+}
+
+/// One block's record; its `kind` field says which.
+#[derive(Serialize)]
+#[serde(untagged)]
+pub enum BlockEntry {
+    Anova(Box<BlockRecord>),
+    Power(PowerRecord),
+}
+
+/// A `power` block: its inputs and its answer.
+#[derive(Serialize)]
+pub struct PowerRecord {
+    pub id: String,
+    pub kind: &'static str,
+    pub line: usize,
+    pub groups: usize,
+    pub effect: PowerEffectRecord,
+    pub alpha: f64,
+    /// The power asked for when solving for n; null when n was given.
+    pub target_power: Option<f64>,
+    pub n_per_group: Option<usize>,
+    pub power: Option<f64>,
+    pub curve: Vec<PowerPointRecord>,
+    pub warnings: Vec<String>,
+}
+
+#[derive(Serialize)]
+pub struct PowerEffectRecord {
+    pub cohens_f: f64,
+    pub means: Option<Vec<f64>>,
+    pub sd: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct PowerPointRecord {
+    pub n_per_group: usize,
+    pub power: Option<f64>,
+}
+
+/// The record of one `power` block.
+pub fn power_record(r: &PowerResult) -> PowerRecord {
+    let (means, sd) = match &r.effect {
+        EffectInput::Means { means, sd } => (Some(means.clone()), Some(*sd)),
+        EffectInput::CohensF(_) => (None, None),
+    };
+    PowerRecord {
+        id: r.id.clone(),
+        kind: "power",
+        line: r.line,
+        groups: r.groups,
+        effect: PowerEffectRecord {
+            cohens_f: r.cohens_f,
+            means,
+            sd,
+        },
+        alpha: r.alpha,
+        target_power: r.target,
+        n_per_group: r.n_per_group,
+        power: finite(r.power),
+        curve: r
+            .curve
+            .iter()
+            .map(|(n, p)| PowerPointRecord {
+                n_per_group: *n,
+                power: finite(*p),
+            })
+            .collect(),
+        warnings: r.warnings.clone(),
+    }
 }
 
 #[derive(Serialize)]
@@ -404,7 +475,7 @@ pub fn results_json(
     document: &str,
     document_bytes: &[u8],
     inputs: &[Input],
-    blocks: &[AnovaResult],
+    blocks: &[BlockResult],
 ) -> Vec<u8> {
     let file = ResultsFile {
         sheaf: crate::VERSION.to_string(),
@@ -419,7 +490,13 @@ pub fn results_json(
                 bytes: i.bytes.len(),
             })
             .collect(),
-        blocks: blocks.iter().map(block_record).collect(),
+        blocks: blocks
+            .iter()
+            .map(|b| match b {
+                BlockResult::Anova(r) => BlockEntry::Anova(Box::new(block_record(r))),
+                BlockResult::Power(r) => BlockEntry::Power(power_record(r)),
+            })
+            .collect(),
     };
     // Serializing plain structs of strings and numbers cannot fail.
     let mut out = serde_json::to_vec_pretty(&file).unwrap_or_default();

@@ -450,3 +450,48 @@ fn robust_method_keys_are_checked() {
         run_case(c);
     }
 }
+
+#[test]
+fn power_block_keys_are_checked() {
+    let power = |body: &str| format!("# Plan\n\n```power\n{body}```\n");
+    let cases = vec![
+        case(
+            "power: unknown key",
+            power("groups: 4\neffect: 0.25\npowr: 0.8\n"),
+            vec!["unknown key `powr`", "did you mean `power`?", "report.md:6"],
+        ),
+        case(
+            "power: no effect",
+            power("groups: 4\npower: 0.8\n"),
+            vec!["this power block has no `effect`", "report.md:3"],
+        ),
+        case(
+            "power: unreadable effect",
+            power("groups: 4\neffect: medium\npower: 0.8\n"),
+            vec!["cannot read the effect `medium`", "report.md:5"],
+        ),
+        case(
+            "power: both goals",
+            power("groups: 4\neffect: 0.25\npower: 0.8\nn: 10\n"),
+            vec!["give `power` (to find n) or `n`", "report.md:7"],
+        ),
+        case(
+            "power: means without sd",
+            power("effect: means = 1, 2, 3\nn: 5\n"),
+            vec!["the expected means need a common SD", "report.md:4"],
+        ),
+        case(
+            "power: groups disagree with means",
+            power("groups: 4\neffect: means = 1, 2, 3 and sd = 1\nn: 5\n"),
+            vec!["`groups` is 4 but the effect lists 3 means"],
+        ),
+        case(
+            "power: bad target",
+            power("groups: 4\neffect: 0.25\npower: 80\n"),
+            vec!["`power` must be a number between 0 and 1"],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}

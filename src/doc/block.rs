@@ -9,7 +9,7 @@ use crate::stats::dunnett::Sides;
 
 /// The block kinds sheaf knows. A fenced block with any other info string is
 /// ordinary code.
-pub const BLOCK_KINDS: [&str; 1] = ["anova"];
+pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
 pub const ANOVA_KEYS: [&str; 19] = [

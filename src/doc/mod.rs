@@ -9,6 +9,7 @@ pub mod block;
 pub mod formula;
 pub mod keyvalue;
 pub mod markdown;
+pub mod power;
 
 use crate::diag::Diagnostic;
 use crate::source::LineIndex;
@@ -19,6 +20,7 @@ use block::{
 };
 use keyvalue::{Entry, EntryError, parse_entries};
 use markdown::{Expression, find_expressions, scan};
+use power::{PowerSpec, power_spec};
 use std::ops::Range;
 
 /// Keys accepted in the front matter.
@@ -58,7 +60,31 @@ pub struct Block {
     pub line: usize,
     /// Byte range of the block in the source, fences included.
     pub range: Range<usize>,
-    pub spec: AnovaSpec,
+    pub spec: BlockSpec,
+}
+
+/// A checked analysis block of one of the known kinds.
+#[derive(Debug, Clone, PartialEq)]
+pub enum BlockSpec {
+    Anova(AnovaSpec),
+    Power(PowerSpec),
+}
+
+impl BlockSpec {
+    /// The block's kind as written after the opening fence.
+    pub fn kind(&self) -> &'static str {
+        match self {
+            BlockSpec::Anova(_) => "anova",
+            BlockSpec::Power(_) => "power",
+        }
+    }
+
+    fn id(&self) -> Option<&block::Located<String>> {
+        match self {
+            BlockSpec::Anova(s) => s.id.as_ref(),
+            BlockSpec::Power(s) => s.id.as_ref(),
+        }
+    }
 }
 
 /// A parsed, checked document.
@@ -141,13 +167,17 @@ pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic
         }
         let first_line = doc.lines.line(fenced.body_start);
         let entries = parse_entries(&fenced.body, first_line).map_err(|e| doc.entry_error(e))?;
-        let spec = anova_spec(&entries, line, defaults).map_err(|e| doc.spec_error(e))?;
+        let spec = match fenced.kind.as_str() {
+            "power" => BlockSpec::Power(power_spec(&entries, line).map_err(|e| doc.spec_error(e))?),
+            _ => BlockSpec::Anova(
+                anova_spec(&entries, line, defaults).map_err(|e| doc.spec_error(e))?,
+            ),
+        };
         let id = spec
-            .id
-            .as_ref()
+            .id()
             .map_or_else(|| format!("block{}", i + 1), |l| l.value.clone());
         if let Some(prev) = blocks.iter().find(|b: &&Block| b.id == id) {
-            let at = spec.id.as_ref().map_or(line, |l| l.line);
+            let at = spec.id().map_or(line, |l| l.line);
             return Err(doc
                 .error_at(at, None, format!("the id `{id}` is already used"))
                 .hint(format!(

@@ -3,7 +3,7 @@
 
 use super::format::{f_statement, fixed, p_phrase, p_value, significant};
 use super::to_value;
-use crate::analysis::AnovaResult;
+use crate::analysis::{AnovaResult, BlockResult, PowerResult};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::markdown::Expression;
@@ -241,6 +241,29 @@ fn block_context(r: &AnovaResult) -> BlockContext {
     }
 }
 
+#[derive(Serialize)]
+struct PowerContext {
+    groups: usize,
+    f: f64,
+    alpha: f64,
+    n: Option<usize>,
+    n_total: Option<usize>,
+    power: f64,
+    target: Option<f64>,
+}
+
+fn power_context(r: &PowerResult) -> PowerContext {
+    PowerContext {
+        groups: r.groups,
+        f: r.cohens_f,
+        alpha: r.alpha,
+        n: r.n_per_group,
+        n_total: r.n_per_group.map(|n| n * r.groups),
+        power: r.power,
+        target: r.target,
+    }
+}
+
 fn number(v: &Value, what: &str) -> Result<f64, minijinja::Error> {
     f64::try_from(v.clone()).map_err(|_| {
         minijinja::Error::new(
@@ -308,13 +331,16 @@ fn environment() -> Environment<'static> {
 /// Evaluates every expression; returns the text for each, in order.
 pub fn evaluate(
     doc: &Document,
-    results: &[AnovaResult],
+    results: &[BlockResult],
     expressions: &[Expression],
 ) -> Result<Vec<String>, Diagnostic> {
     let env = environment();
     let ctx: BTreeMap<String, Value> = results
         .iter()
-        .map(|r| (r.id.clone(), to_value(block_context(r))))
+        .map(|r| match r {
+            BlockResult::Anova(a) => (a.id.clone(), to_value(block_context(a))),
+            BlockResult::Power(p) => (p.id.clone(), to_value(power_context(p))),
+        })
         .collect();
     let ctx_value = to_value(&ctx);
     let mut out = Vec::with_capacity(expressions.len());
@@ -343,7 +369,7 @@ fn display(v: &Value) -> String {
 
 fn expression_error(
     doc: &Document,
-    results: &[AnovaResult],
+    results: &[BlockResult],
     e: &Expression,
     line: usize,
     col: usize,
@@ -370,12 +396,12 @@ fn expression_error(
 /// An expression that names a block or a quantity that does not exist.
 fn unknown_name_error(
     doc: &Document,
-    results: &[AnovaResult],
+    results: &[BlockResult],
     e: &Expression,
     line: usize,
     col: usize,
 ) -> Diagnostic {
-    let ids: Vec<&str> = results.iter().map(|r| r.id.as_str()).collect();
+    let ids: Vec<&str> = results.iter().map(|r| r.id()).collect();
     let head: String = e
         .source
         .chars()

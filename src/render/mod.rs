@@ -8,7 +8,7 @@ pub mod format;
 pub mod inline;
 pub mod view;
 
-use crate::analysis::{AnovaResult, Input};
+use crate::analysis::{BlockResult, Input};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::markdown::markdown_options;
@@ -204,7 +204,7 @@ fn marker(i: usize) -> String {
 /// hash) and the results file's name appear in the provenance note.
 pub fn render_report(
     doc: &Document,
-    results: &[AnovaResult],
+    results: &[BlockResult],
     inputs: &[Input],
     format: Format,
     (document_name, document_bytes): (&str, &[u8]),
@@ -217,7 +217,10 @@ pub fn render_report(
     let mut next_table = 1;
     let mut fragments = Vec::with_capacity(results.len());
     for r in results {
-        let v = view::block_view(r, &mut next_table);
+        let v = match r {
+            BlockResult::Anova(r) => view::block_view(r, &mut next_table),
+            BlockResult::Power(r) => view::power_view(r, &mut next_table),
+        };
         let name = if format == Format::Html {
             "block.html"
         } else {
