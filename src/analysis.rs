@@ -94,7 +94,7 @@ pub struct AnovaResult {
 /// The result of any analysis block.
 #[derive(Debug, Clone, PartialEq)]
 pub enum BlockResult {
-    Anova(AnovaResult),
+    Anova(Box<AnovaResult>),
     Power(PowerResult),
 }
 

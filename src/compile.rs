@@ -115,13 +115,8 @@ pub fn compile(
             .iter()
             .find(|i| &i.path == path)
             .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
-        results.push(BlockResult::Anova(run_anova(
-            &doc,
-            block,
-            spec,
-            input,
-            &world.display(path),
-        )?));
+        let result = run_anova(&doc, block, spec, input, &world.display(path))?;
+        results.push(BlockResult::Anova(Box::new(result)));
     }
 
     let results_name = format!("{stem}.results.json");
