@@ -2,7 +2,9 @@
 //! and runs the statistics. The result is the one source of every number in
 //! the report, the results file and the prose.
 
-use crate::data::{DataError, Exclusion, Table, factor_response};
+use crate::data::{
+    DataError, Exclusion, SummaryColumns, SummaryRow, Table, factor_response, summary_rows,
+};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus, Order};
 use crate::doc::power::{EffectInput, PowerGoal, PowerSpec};
@@ -229,6 +231,32 @@ fn data_error(
     ))
 }
 
+/// The levels of a block as loaded: summaries in design order, with the raw
+/// observations when the data file has them.
+struct Sample {
+    names: Vec<String>,
+    summaries: Vec<GroupSummary>,
+    /// Offsets and data lines per level; `None` for summary input.
+    raw: Option<(Vec<Vec<f64>>, Vec<Vec<usize>>)>,
+    /// Every mean and offset is relative to this value (see `data::decimal`).
+    origin: f64,
+    /// Most decimals written in the response (or means) column.
+    decimals: u32,
+    excluded: Vec<Exclusion>,
+    /// Range of F over the rounding of published summaries.
+    rounding: Option<RoundingRange>,
+}
+
+/// How far F and p can move when each published mean and SD is anywhere
+/// within half a unit of its last printed digit (METHODS 3.19).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RoundingRange {
+    pub f_low: f64,
+    pub f_high: f64,
+    pub p_low: f64,
+    pub p_high: f64,
+}
+
 /// Runs one `anova` block on its data file.
 pub fn run_anova(
     doc: &Document,
@@ -238,178 +266,359 @@ pub fn run_anova(
     display_path: &str,
 ) -> Result<AnovaResult, Diagnostic> {
     let formula = &spec.model.value;
-    let model_error = |message: String, hint: &str| {
-        doc.error_at(spec.model.line, Some(spec.model.column), message)
-            .hint(hint.to_string())
-    };
     if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
-        return Err(model_error(
-            format!(
-                "`{}` has {} terms; this version of sheaf fits one treatment factor",
-                formula_text(formula),
-                formula.terms.len()
-            ),
-            "write `response ~ factor`; models with several factors, interactions or blocks are not fitted yet",
-        ));
+        return Err(doc
+            .error_at(
+                spec.model.line,
+                Some(spec.model.column),
+                format!("`{}` has {} terms; this version of sheaf fits one treatment factor", formula_text(formula), formula.terms.len()),
+            )
+            .hint("write `response ~ factor`; models with several factors, interactions or blocks are not fitted yet"));
     }
     let factor = formula.terms[0].factors[0].clone();
     let response = formula.response.clone();
     let table = Table::parse(&input.bytes, &spec.csv)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
-    let data = factor_response(&table, &response, &factor, &spec.csv).map_err(|e| {
-        let mut d = data_error(doc, block, spec.data.line, display_path, e);
-        d = d.note(format!(
-            "the model is `{}` (line {})",
-            formula_text(formula),
-            spec.model.line
-        ));
-        d
-    })?;
-    let alpha = spec.alpha.unwrap_or(doc.front.alpha);
-    let mut warnings = Vec::new();
+    let sample = match &spec.summary {
+        None => load_raw(
+            doc,
+            block,
+            spec,
+            &table,
+            &factor,
+            &response,
+            input,
+            display_path,
+        )?,
+        Some(columns) => load_summary(doc, block, spec, columns, &table, &factor, display_path)?,
+    };
+    analyse(doc, block, spec, sample, factor, response, input)
+}
 
-    // Design order: `levels` if given (it must name exactly the data's levels), else first appearance.
-    let mut order: Vec<usize> = (0..data.levels.len()).collect();
-    if let Some(listed) = &spec.levels {
-        let found: Vec<&str> = data.levels.iter().map(|l| l.name.as_str()).collect();
-        let found_text = found
-            .iter()
-            .map(|l| format!("`{l}`"))
-            .collect::<Vec<_>>()
-            .join(", ");
-        for name in &listed.value {
-            if !found.contains(&name.as_str()) {
-                let mut d = doc.error_at(
-                    listed.line,
-                    Some(listed.column),
-                    format!(
-                        "level `{name}` does not occur in column `{factor}` of {}",
-                        input.path
-                    ),
-                );
-                d = match crate::diag::nearest(name, found.iter().copied()) {
-                    Some(n) => d.hint(format!(
-                        "did you mean `{n}`? The levels in the data are {found_text}"
-                    )),
-                    None => d.hint(format!("the levels in the data are {found_text}")),
-                };
-                return Err(d);
-            }
+/// The design order of the levels found in the data: `levels` if given (it
+/// must name exactly the data's levels), else first appearance.
+fn design_order(
+    doc: &Document,
+    spec: &AnovaSpec,
+    found: &[&str],
+    factor: &str,
+    path: &str,
+) -> Result<Vec<usize>, Diagnostic> {
+    let Some(listed) = &spec.levels else {
+        return Ok((0..found.len()).collect());
+    };
+    let found_text = found
+        .iter()
+        .map(|l| format!("`{l}`"))
+        .collect::<Vec<_>>()
+        .join(", ");
+    for name in &listed.value {
+        if !found.contains(&name.as_str()) {
+            let d = doc.error_at(
+                listed.line,
+                Some(listed.column),
+                format!("level `{name}` does not occur in column `{factor}` of {path}"),
+            );
+            return Err(match crate::diag::nearest(name, found.iter().copied()) {
+                Some(n) => d.hint(format!(
+                    "did you mean `{n}`? The levels in the data are {found_text}"
+                )),
+                None => d.hint(format!("the levels in the data are {found_text}")),
+            });
         }
-        if let Some(extra) = found.iter().find(|f| !listed.value.iter().any(|l| l == *f)) {
-            return Err(doc
-                .error_at(
-                    listed.line,
-                    Some(listed.column),
-                    format!("level `{extra}` occurs in the data but is not listed in `levels`"),
-                )
-                .hint(format!("list every level: the data have {found_text}")));
-        }
-        order = listed
-            .value
-            .iter()
-            .filter_map(|name| found.iter().position(|f| f == name))
-            .collect();
     }
-    let mut used: Vec<usize> = Vec::new();
+    if let Some(extra) = found.iter().find(|f| !listed.value.iter().any(|l| l == *f)) {
+        return Err(doc
+            .error_at(
+                listed.line,
+                Some(listed.column),
+                format!("level `{extra}` occurs in the data but is not listed in `levels`"),
+            )
+            .hint(format!("list every level: the data have {found_text}")));
+    }
+    Ok(listed
+        .value
+        .iter()
+        .filter_map(|name| found.iter().position(|f| f == name))
+        .collect())
+}
+
+fn too_few_levels(
+    doc: &Document,
+    spec: &AnovaSpec,
+    factor: &str,
+    used: &[String],
+    display_path: &str,
+) -> Diagnostic {
+    let which = match used.first() {
+        None => "no level".to_string(),
+        Some(n) => format!("only `{n}`"),
+    };
+    doc.error_at(spec.model.line, Some(spec.model.column), format!("`{factor}` needs two or more levels with data; {which} has observations"))
+        .hint("an analysis of variance compares levels: check the factor column and the missing-value markers")
+        .note(format!("data file {display_path}"))
+}
+
+#[allow(clippy::too_many_arguments)]
+fn load_raw(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    table: &Table,
+    factor: &str,
+    response: &str,
+    input: &Input,
+    display_path: &str,
+) -> Result<Sample, Diagnostic> {
+    let data = factor_response(table, response, factor, &spec.csv).map_err(|e| {
+        data_error(doc, block, spec.data.line, display_path, e).note(format!(
+            "the model is `{}` (line {})",
+            formula_text(&spec.model.value),
+            spec.model.line
+        ))
+    })?;
+    let found: Vec<&str> = data.levels.iter().map(|l| l.name.as_str()).collect();
+    let order = design_order(doc, spec, &found, factor, &input.path)?;
+    let mut warnings = Vec::new();
+    let mut used = Vec::new();
     for &i in &order {
         let lvl = &data.levels[i];
         if lvl.offsets.is_empty() {
-            warnings.push(format!("level `{}` has no observations with a value of `{response}`; it is left out of the analysis", lvl.name));
+            warnings.push(lvl.name.clone());
         } else {
             used.push(i);
         }
     }
+    let names: Vec<String> = used.iter().map(|&i| data.levels[i].name.clone()).collect();
     if used.len() < 2 {
-        let which = if used.is_empty() {
-            "no level".to_string()
-        } else {
-            format!("only `{}`", data.levels[used[0]].name)
-        };
-        return Err(doc
-            .error_at(spec.model.line, Some(spec.model.column), format!("`{factor}` needs two or more levels with data; {which} has observations"))
-            .hint("an analysis of variance compares levels: check the factor column and the missing-value markers")
-            .note(format!("data file {display_path}")));
+        return Err(too_few_levels(doc, spec, factor, &names, display_path));
     }
-    let summaries: Vec<GroupSummary> = used
+    Ok(Sample {
+        summaries: used
+            .iter()
+            .map(|&i| GroupSummary::from_values(&data.levels[i].offsets))
+            .collect(),
+        raw: Some((
+            used.iter()
+                .map(|&i| data.levels[i].offsets.clone())
+                .collect(),
+            used.iter().map(|&i| data.levels[i].lines.clone()).collect(),
+        )),
+        names,
+        origin: data.origin,
+        decimals: data.decimals,
+        excluded: data.excluded,
+        rounding: None,
+    }
+    .with_empty_levels(warnings))
+}
+
+impl Sample {
+    /// Records levels that had rows but no usable response, as exclusions
+    /// are recorded: they are named in the warnings by `analyse`.
+    fn with_empty_levels(mut self, empty: Vec<String>) -> Self {
+        for name in empty {
+            self.excluded.push(Exclusion {
+                line: 0,
+                reason: format!("level `{name}` has no observations"),
+            });
+        }
+        self
+    }
+}
+
+fn load_summary(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    columns: &SummaryColumns,
+    table: &Table,
+    factor: &str,
+    display_path: &str,
+) -> Result<Sample, Diagnostic> {
+    let rows = summary_rows(table, factor, columns, &spec.csv)
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let found: Vec<&str> = rows.iter().map(|r| r.level.as_str()).collect();
+    let order = design_order(doc, spec, &found, factor, &spec.data.value)?;
+    let names: Vec<String> = order.iter().map(|&i| rows[i].level.clone()).collect();
+    if names.len() < 2 {
+        return Err(too_few_levels(doc, spec, factor, &names, display_path));
+    }
+    let to_sd = |r: &SummaryRow, spread: f64| {
+        if columns.spread_is_se {
+            spread * (r.n as f64).sqrt()
+        } else {
+            spread
+        }
+    };
+    let origin = rows[order[0]].mean;
+    let summaries_at = |shift_mean: &dyn Fn(usize) -> f64, shift_sd: f64| -> Vec<GroupSummary> {
+        order
+            .iter()
+            .map(|&i| {
+                let r = &rows[i];
+                let sd = (to_sd(r, r.spread) + shift_sd * to_sd(r, r.spread_half_unit)).max(0.0);
+                GroupSummary {
+                    n: r.n,
+                    mean: r.mean - origin + shift_mean(i),
+                    ss: (r.n as f64 - 1.0) * sd * sd,
+                }
+            })
+            .collect()
+    };
+    let summaries = summaries_at(&|_| 0.0, 0.0);
+    // Rounding sensitivity: F is largest with the means pushed apart and the
+    // SDs at their lowest, smallest with the means pulled together and the
+    // SDs at their highest.
+    let n_total: f64 = summaries.iter().map(|s| s.n as f64).sum();
+    let grand = summaries.iter().map(|s| s.n as f64 * s.mean).sum::<f64>() / n_total;
+    let away = |i: usize| {
+        let r = &rows[i];
+        if r.mean - origin >= grand {
+            r.mean_half_unit
+        } else {
+            -r.mean_half_unit
+        }
+    };
+    let toward = |i: usize| {
+        let r = &rows[i];
+        let d = r.mean - origin - grand;
+        -d.signum() * r.mean_half_unit.min(d.abs())
+    };
+    let f_of = |g: &[GroupSummary]| {
+        one_way(g, 0.05, None)
+            .map(|t| (t.f, t.p))
+            .unwrap_or((f64::NAN, f64::NAN))
+    };
+    let (f_high, p_low) = f_of(&summaries_at(&away, -1.0));
+    let (f_low, p_high) = f_of(&summaries_at(&toward, 1.0));
+    let decimals = order
         .iter()
-        .map(|&i| GroupSummary::from_values(&data.levels[i].offsets))
-        .collect();
-    let total_ss = total_sum_of_squares(used.iter().map(|&i| data.levels[i].offsets.as_slice()));
-    // Two or more levels were checked above, so `one_way` cannot refuse.
-    let table =
-        one_way(&summaries, alpha, Some(total_ss)).map_err(|OneWayError::TooFewLevels(k)| {
-            doc.error_at(
-                block.line,
-                None,
-                format!("internal error: {k} level(s) reached the analysis"),
-            )
-        })?;
+        .map(|&i| rows[i].mean_decimals)
+        .max()
+        .unwrap_or(0);
+    Ok(Sample {
+        names,
+        summaries,
+        raw: None,
+        origin,
+        decimals: decimals.saturating_sub(1),
+        excluded: Vec::new(),
+        rounding: Some(RoundingRange {
+            f_low,
+            f_high,
+            p_low,
+            p_high,
+        }),
+    })
+}
+
+/// The statistics of a loaded sample.
+fn analyse(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    sample: Sample,
+    factor: String,
+    response: String,
+    input: &Input,
+) -> Result<AnovaResult, Diagnostic> {
+    let alpha = spec.alpha.unwrap_or(doc.front.alpha);
+    let mut warnings = Vec::new();
+    let Sample {
+        names,
+        summaries,
+        raw,
+        origin,
+        decimals: data_decimals,
+        excluded,
+        rounding,
+    } = sample;
+    let (excluded, empty): (Vec<Exclusion>, Vec<Exclusion>) =
+        excluded.into_iter().partition(|e| e.line > 0);
+    for e in &empty {
+        warnings.push(format!(
+            "{} with a value of `{response}`; it is left out of the analysis",
+            e.reason
+        ));
+    }
+    let total_ss = raw
+        .as_ref()
+        .map(|(offsets, _)| total_sum_of_squares(offsets.iter().map(Vec::as_slice)));
+    // Two or more levels were checked when loading, so `one_way` cannot refuse.
+    let table = one_way(&summaries, alpha, total_ss).map_err(|OneWayError::TooFewLevels(k)| {
+        doc.error_at(
+            block.line,
+            None,
+            format!("internal error: {k} level(s) reached the analysis"),
+        )
+    })?;
     warnings.extend(table.warnings.iter().cloned());
-    for &i in &used {
-        if data.levels[i].offsets.len() == 1 {
+    for (s, name) in summaries.iter().zip(&names) {
+        if s.n == 1 {
             warnings.push(format!(
-                "level `{}` has a single observation: it adds nothing to the error term, and its SD cannot be computed",
-                data.levels[i].name
+                "level `{name}` has a single observation: it adds nothing to the error term, and its SD cannot be computed"
             ));
         }
     }
-    if !data.excluded.is_empty() {
-        let lines: Vec<String> = data
-            .excluded
+    if !excluded.is_empty() {
+        let lines: Vec<String> = excluded
             .iter()
             .take(12)
             .map(|e| e.line.to_string())
             .collect();
-        let more = if data.excluded.len() > 12 {
-            ", …"
-        } else {
-            ""
-        };
-        let (rows, were, line_word) = if data.excluded.len() == 1 {
+        let more = if excluded.len() > 12 { ", …" } else { "" };
+        let (rows, were, line_word) = if excluded.len() == 1 {
             ("row", "was", "line")
         } else {
             ("rows", "were", "lines")
         };
         warnings.push(format!(
             "{} {rows} of {} {were} left out because a value was missing ({line_word} {}{more}).",
-            data.excluded.len(),
+            excluded.len(),
             input.path,
             lines.join(", ")
         ));
     }
+    if let Some(r) = rounding {
+        warnings.push(format!(
+            "These results come from published summaries (n, mean and SD per level). Checks that need the raw observations (Brown-Forsythe, Levene, Shapiro-Wilk, outliers, ranks) could not be done. Rounding the summaries to their printed digits leaves F between {} and {} (p between {} and {}).",
+            crate::render::format::fixed(r.f_low, 2),
+            crate::render::format::fixed(r.f_high, 2),
+            crate::render::format::p_value(r.p_low),
+            crate::render::format::p_value(r.p_high)
+        ));
+    }
 
     let nu = table.df_within as f64;
-    let offsets: Vec<&[f64]> = used
-        .iter()
-        .map(|&i| data.levels[i].offsets.as_slice())
-        .collect();
-    let names: Vec<String> = used.iter().map(|&i| data.levels[i].name.clone()).collect();
-    let lines: Vec<&[usize]> = used
-        .iter()
-        .map(|&i| data.levels[i].lines.as_slice())
-        .collect();
-    let checks = assumption_checks(
-        &offsets,
-        &summaries,
-        &table,
-        data.origin,
-        &names,
-        &lines,
-        spec.checks,
-    );
-    warnings.extend(checks.advice(spec.method, alpha, data.decimals));
+    let checks = match &raw {
+        Some((offsets, lines)) => {
+            let offsets: Vec<&[f64]> = offsets.iter().map(Vec::as_slice).collect();
+            let lines: Vec<&[usize]> = lines.iter().map(Vec::as_slice).collect();
+            assumption_checks(
+                &offsets,
+                &summaries,
+                &table,
+                origin,
+                &names,
+                &lines,
+                spec.checks,
+            )
+        }
+        None => summary_checks(&summaries, spec.checks),
+    };
+    warnings.extend(checks.advice(spec.method, alpha, data_decimals));
 
     let welch = match spec.method {
         Omnibus::Welch => Some(welch_anova(&summaries).map_err(|i| {
-            let line = spec.model.line;
-            doc.error_at(line, None, format!("Welch's ANOVA is undefined: level `{}` has fewer than two observations or no spread", names[i]))
+            doc.error_at(spec.model.line, None, format!("Welch's ANOVA is undefined: level `{}` has fewer than two observations or no spread", names[i]))
                 .hint("every level needs at least two differing values; use `method: anova` or `method: ranks`")
         })?),
         _ => None,
     };
-    let kruskal = match spec.method {
-        Omnibus::Ranks => {
+    let kruskal = match (spec.method, &raw) {
+        (Omnibus::Ranks, Some((offsets, _))) => {
+            let offsets: Vec<&[f64]> = offsets.iter().map(Vec::as_slice).collect();
             let kw = kruskal_wallis(&offsets).ok_or_else(|| {
                 doc.error_at(
                     spec.model.line,
@@ -422,6 +631,15 @@ pub fn run_anova(
                 warnings.push("Some levels have fewer than five observations: the chi-squared approximation to the Kruskal-Wallis p-value is rough there.".into());
             }
             Some(kw)
+        }
+        (Omnibus::Ranks, None) => {
+            return Err(doc
+                .error_at(
+                    spec.model.line,
+                    None,
+                    "Kruskal-Wallis needs the raw observations, not summaries",
+                )
+                .hint("use `method: anova` or `method: welch` with `input: summary`"));
         }
         _ => None,
     };
@@ -450,12 +668,12 @@ pub fn run_anova(
     } else {
         f64::NAN
     };
-    let levels: Vec<LevelResult> = offsets
+    let levels: Vec<LevelResult> = summaries
         .iter()
-        .zip(&summaries)
         .zip(&names)
-        .map(|((values, s), name)| {
-            let mean = data.origin + s.mean;
+        .enumerate()
+        .map(|(i, (s, name))| {
+            let mean = origin + s.mean;
             let (se, t) = if pooled {
                 ((table.ms_within / s.n as f64).sqrt(), t_crit)
             } else {
@@ -468,7 +686,11 @@ pub fn run_anova(
                     },
                 )
             };
-            let (q1, median, q3) = quartiles(values);
+            let (q1, median, q3) = raw
+                .as_ref()
+                .map_or((f64::NAN, f64::NAN, f64::NAN), |(offsets, _)| {
+                    quartiles(&offsets[i])
+                });
             LevelResult {
                 name: name.clone(),
                 n: s.n,
@@ -477,9 +699,9 @@ pub fn run_anova(
                 se,
                 ci_lower: mean - t * se,
                 ci_upper: mean + t * se,
-                median: data.origin + median,
-                q1: data.origin + q1,
-                q3: data.origin + q3,
+                median: origin + median,
+                q1: origin + q1,
+                q3: origin + q3,
             }
         })
         .collect();
@@ -510,7 +732,7 @@ pub fn run_anova(
     let decimals = spec
         .decimals
         .or(doc.front.decimals)
-        .unwrap_or((data.decimals + 1).min(6));
+        .unwrap_or((data_decimals + 1).min(6));
     Ok(AnovaResult {
         method: spec.method,
         checks,
@@ -525,7 +747,7 @@ pub fn run_anova(
         factor,
         alpha,
         n: table.n,
-        exclusions: data.excluded,
+        exclusions: excluded,
         table,
         levels,
         comparison,
@@ -556,6 +778,8 @@ pub struct Checks {
     pub sd_ratio: f64,
     pub balanced: bool,
     pub outliers: Vec<OutlierRow>,
+    /// Only summaries were given, so the raw-data checks could not run.
+    pub from_summary: bool,
 }
 
 /// An observation flagged by its studentized residual.
@@ -565,6 +789,35 @@ pub struct OutlierRow {
     pub level: String,
     pub value: f64,
     pub studentized_residual: f64,
+}
+
+/// Checks possible from summaries alone: Bartlett and the SD ratio.
+fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks {
+    let sds: Vec<f64> = summaries
+        .iter()
+        .map(|s| s.variance().sqrt())
+        .filter(|v| v.is_finite())
+        .collect();
+    let sd_ratio = match (
+        sds.iter().cloned().fold(f64::NAN, f64::max),
+        sds.iter().cloned().fold(f64::NAN, f64::min),
+    ) {
+        (hi, lo) if lo > 0.0 => hi / lo,
+        _ => f64::NAN,
+    };
+    Checks {
+        shown,
+        brown_forsythe: None,
+        levene: None,
+        bartlett: bartlett(summaries),
+        shapiro_wilk: Err(ShapiroWilkSkip::Summary),
+        skewness: f64::NAN,
+        excess_kurtosis: f64::NAN,
+        sd_ratio,
+        balanced: summaries.iter().all(|s| s.n == summaries[0].n),
+        outliers: Vec::new(),
+        from_summary: true,
+    }
 }
 
 fn assumption_checks(
@@ -615,6 +868,7 @@ fn assumption_checks(
         sd_ratio,
         balanced: summaries.iter().all(|s| s.n == summaries[0].n),
         outliers: flagged,
+        from_summary: false,
     }
 }
 

@@ -495,3 +495,71 @@ fn power_block_keys_are_checked() {
         run_case(c);
     }
 }
+
+#[test]
+fn summary_input_is_checked() {
+    let summary = |extra: &str| {
+        doc_with(&format!(
+            "data: plants.csv\nmodel: weight ~ group\ninput: summary\n{extra}"
+        ))
+    };
+    let table = |text: &'static str| text.as_bytes();
+    let cases = vec![
+        with_data(
+            case(
+                "summary: missing sd column",
+                summary(""),
+                vec!["no column named `sd`", "plants.csv:1"],
+            ),
+            table("group,n,mean\na,3,1.0\nb,3,2.0\n"),
+        ),
+        with_data(
+            case(
+                "summary: fractional n",
+                summary(""),
+                vec![
+                    "n must be a whole number of at least 1, found `2.5`",
+                    "plants.csv:3",
+                ],
+            ),
+            table("group,n,mean,sd\na,3,1.0,0.5\nb,2.5,2.0,0.4\n"),
+        ),
+        with_data(
+            case(
+                "summary: level twice",
+                summary(""),
+                vec!["level `a` appears twice", "plants.csv:3"],
+            ),
+            table("group,n,mean,sd\na,3,1.0,0.5\na,3,2.0,0.4\n"),
+        ),
+        with_data(
+            case(
+                "summary: negative sd",
+                summary(""),
+                vec!["a spread cannot be negative", "plants.csv:2"],
+            ),
+            table("group,n,mean,sd\na,3,1.0,-0.5\nb,3,2.0,0.4\n"),
+        ),
+        with_data(
+            case(
+                "summary: ranks",
+                summary("method: ranks\n"),
+                vec!["Kruskal-Wallis needs the raw observations"],
+            ),
+            table("group,n,mean,sd\na,3,1.0,0.5\nb,3,2.0,0.4\n"),
+        ),
+        case(
+            "columns without summary",
+            doc_with(&format!("{GOOD_BLOCK}columns: n = k\n")),
+            vec!["`columns` applies only to `input: summary`"],
+        ),
+        case(
+            "unknown input",
+            doc_with(&format!("{GOOD_BLOCK}input: means\n")),
+            vec!["unknown input `means`"],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}

@@ -275,6 +275,111 @@ pub fn factor_response(
     })
 }
 
+/// Which columns of a summary table hold n, the mean and the spread.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SummaryColumns {
+    pub n: String,
+    pub mean: String,
+    pub spread: String,
+    /// The spread column holds standard errors (SD = SE·√n), not SDs.
+    pub spread_is_se: bool,
+}
+
+/// One level of a summary table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SummaryRow {
+    pub level: String,
+    pub n: usize,
+    pub mean: f64,
+    pub spread: f64,
+    /// Half a unit in the last printed digit of the mean and of the spread.
+    pub mean_half_unit: f64,
+    pub spread_half_unit: f64,
+    pub mean_decimals: u32,
+    pub line: usize,
+}
+
+/// Reads a summary table: one row per level with n, mean and SD (or SE).
+pub fn summary_rows(
+    table: &Table,
+    factor: &str,
+    columns: &SummaryColumns,
+    format: &CsvFormat,
+) -> Result<Vec<SummaryRow>, DataError> {
+    let li = table.column(factor)?;
+    let ni = table.column(&columns.n)?;
+    let mi = table.column(&columns.mean)?;
+    let si = table.column(&columns.spread)?;
+    let read = |row: &csv::Record, i: usize, what: &str| -> Result<(f64, u32), DataError> {
+        let raw = row.fields[i].trim();
+        let text = if format.decimal_comma {
+            raw.replace(',', ".")
+        } else {
+            raw.to_string()
+        };
+        let number = parse_number(&text)
+            .filter(|n| n.to_f64().is_finite())
+            .ok_or_else(|| DataError {
+                line: Some(row.line),
+                column: Some(i + 1),
+                message: format!("the {what} must be a number, found `{raw}`"),
+                hint: Some("a summary table needs a value in every cell: one row per level".into()),
+            })?;
+        Ok((number.to_f64(), number.decimals()))
+    };
+    let mut rows: Vec<SummaryRow> = Vec::with_capacity(table.rows.len());
+    for row in &table.rows {
+        let level = row.fields[li].trim().to_string();
+        if level.is_empty() {
+            return Err(DataError {
+                column: Some(li + 1),
+                ..DataError::at(row.line, format!("`{factor}` is empty"))
+            }
+            .hint("name the level of each summary row"));
+        }
+        if let Some(first) = rows.iter().find(|r| r.level == level) {
+            return Err(
+                DataError::at(row.line, format!("level `{level}` appears twice")).hint(format!(
+                    "a summary table has one row per level; the first is on line {}",
+                    first.line
+                )),
+            );
+        }
+        let (n, _) = read(row, ni, "n")?;
+        if n.fract() != 0.0 || n < 1.0 {
+            return Err(DataError {
+                column: Some(ni + 1),
+                ..DataError::at(
+                    row.line,
+                    format!(
+                        "n must be a whole number of at least 1, found `{}`",
+                        row.fields[ni].trim()
+                    ),
+                )
+            });
+        }
+        let (mean, mean_decimals) = read(row, mi, "mean")?;
+        let (spread, spread_decimals) = read(row, si, "spread (SD or SE)")?;
+        if spread < 0.0 {
+            return Err(DataError {
+                column: Some(si + 1),
+                ..DataError::at(row.line, "a spread cannot be negative".to_string())
+            });
+        }
+        rows.push(SummaryRow {
+            level,
+            n: n as usize,
+            mean,
+            spread,
+            mean_half_unit: 0.5 * 10f64.powi(-(mean_decimals as i32)),
+            spread_half_unit: 0.5 * 10f64.powi(-(spread_decimals as i32)),
+            mean_decimals,
+            line: row.line,
+        });
+    }
+    Ok(rows)
+}
+
 fn quote_list(items: &[String]) -> String {
     items
         .iter()

@@ -3,7 +3,7 @@
 
 use super::formula::{Formula, parse_formula};
 use super::keyvalue::Entry;
-use crate::data::{CsvFormat, DEFAULT_MISSING};
+use crate::data::{CsvFormat, DEFAULT_MISSING, SummaryColumns};
 use crate::stats::compare::Method;
 use crate::stats::dunnett::Sides;
 
@@ -12,7 +12,7 @@ use crate::stats::dunnett::Sides;
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 19] = [
+pub const ANOVA_KEYS: [&str; 21] = [
     "id",
     "data",
     "model",
@@ -32,6 +32,8 @@ pub const ANOVA_KEYS: [&str; 19] = [
     "control",
     "sides",
     "adjust",
+    "input",
+    "columns",
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -105,6 +107,8 @@ pub struct AnovaSpec {
     pub sides: Sides,
     /// Adjustment of Dunn's p-values: Holm (default) or Bonferroni.
     pub adjust: Method,
+    /// `input: summary`: the data file holds n, mean and SD per level.
+    pub summary: Option<SummaryColumns>,
 }
 
 /// A problem with one key, at its line and column.
@@ -195,6 +199,49 @@ pub fn parse_compare(entry: &Entry) -> Result<Option<Method>, SpecError> {
         format!("unknown comparison procedure `{}`", entry.value),
         hint,
     ))
+}
+
+/// Reads `columns: n = plots, mean = yield, sd = sd_yield` (or `se = …`).
+fn summary_columns(entry: Option<&Entry>) -> Result<SummaryColumns, SpecError> {
+    let mut c = SummaryColumns {
+        n: "n".into(),
+        mean: "mean".into(),
+        spread: "sd".into(),
+        spread_is_se: false,
+    };
+    let Some(e) = entry else {
+        return Ok(c);
+    };
+    for part in list(&e.value) {
+        let Some((key, column)) = part.split_once('=') else {
+            return Err(bad(
+                e,
+                format!("expected `name = column`, found `{part}`"),
+                "for example `columns: n = plots, mean = yield, sd = yield_sd`",
+            ));
+        };
+        let column = column.trim().to_string();
+        match key.trim().to_ascii_lowercase().as_str() {
+            "n" => c.n = column,
+            "mean" => c.mean = column,
+            "sd" => {
+                c.spread = column;
+                c.spread_is_se = false;
+            }
+            "se" => {
+                c.spread = column;
+                c.spread_is_se = true;
+            }
+            other => {
+                return Err(bad(
+                    e,
+                    format!("unknown summary column `{other}`"),
+                    "name the columns for n, mean, and sd (or se)",
+                ));
+            }
+        }
+    }
+    Ok(c)
 }
 
 fn parse_yes_no(entry: &Entry) -> Result<bool, SpecError> {
@@ -549,7 +596,29 @@ pub fn anova_spec(
             }
         }
     };
+    let summary = match get("input").map(|e| (e, e.value.to_ascii_lowercase())) {
+        None => None,
+        Some((_, v)) if v == "raw" => None,
+        Some((_, v)) if v == "summary" => Some(summary_columns(get("columns"))?),
+        Some((e, _)) => {
+            return Err(bad(
+                e,
+                format!("unknown input `{}`", e.value),
+                "write `raw` (one row per observation, the default) or `summary` (n, mean and SD per level)",
+            ));
+        }
+    };
+    if summary.is_none() {
+        if let Some(e) = get("columns") {
+            return Err(bad(
+                e,
+                "`columns` applies only to `input: summary`".into(),
+                "add `input: summary`, or remove `columns`",
+            ));
+        }
+    }
     Ok(AnovaSpec {
+        summary,
         method,
         checks,
         control,

@@ -461,15 +461,23 @@ fn checks_table(r: &AnovaResult, number: usize) -> TableView {
                 ShapiroWilkSkip::TooFew => "not computed: fewer than 3 residuals",
                 ShapiroWilkSkip::TooMany => "not computed: more than 5,000 residuals",
                 ShapiroWilkSkip::NoSpread => "not computed: the residuals have no spread",
+                ShapiroWilkSkip::Summary => "not possible from summary statistics",
             }),
         ]),
     }
+    let moment_note = |normal: &str| {
+        if c.from_summary {
+            "needs the raw observations".to_string()
+        } else {
+            normal.to_string()
+        }
+    };
     rows.push(vec![
         text("Skewness of residuals"),
         cell(fixed(c.skewness, 2), format!("{id}.checks.skewness")),
         text(""),
         text(""),
-        text("0 for a symmetric distribution"),
+        text(moment_note("0 for a symmetric distribution")),
     ]);
     rows.push(vec![
         text("Excess kurtosis of residuals"),
@@ -479,9 +487,11 @@ fn checks_table(r: &AnovaResult, number: usize) -> TableView {
         ),
         text(""),
         text(""),
-        text("0 for a normal distribution"),
+        text(moment_note("0 for a normal distribution")),
     ]);
-    let outliers = if c.outliers.is_empty() {
+    let outliers = if c.from_summary {
+        "Outlying observations cannot be looked for in summary statistics.".to_string()
+    } else if c.outliers.is_empty() {
         format!(
             "No observation has an externally studentized residual beyond ±{}.",
             crate::stats::assumptions::OUTLIER_THRESHOLD

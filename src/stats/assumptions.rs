@@ -130,6 +130,8 @@ pub enum ShapiroWilkSkip {
     TooFew,
     TooMany,
     NoSpread,
+    /// Only summaries (n, mean, SD) were given.
+    Summary,
 }
 
 /// Shapiro & Wilk (1965) W with Royston's (1992, 1995; AS R94) coefficients

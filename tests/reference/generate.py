@@ -274,7 +274,14 @@ def robust():
         for nc in [0.0, 1.0, 5.0, 20.0, 80.0]:
             for x in [0.5, 2.0, 4.0, 10.0]:
                 ncf.append({"x": x, "d1": d1, "d2": d2, "nc": nc, "cdf": num(stats.ncf.cdf(x, d1, d2, nc))})
-    return {"generator": "tests/reference/generate.py", "scipy": scipy.__version__,
+    from statsmodels.stats.oneway import anova_generic
+    summ = pd.read_csv(ROOT / "tests" / "cases" / "summary" / "plants-summary.csv")
+    eq = anova_generic(summ["mean"], summ["sd"] ** 2, summ["n"], use_var="equal")
+    uneq = anova_generic(summ["mean"], summ["sd"] ** 2, summ["n"], use_var="unequal")
+    summary = {"csv": "tests/cases/summary/plants-summary.csv",
+               "equal": {"f": num(eq.statistic), "p": num(eq.pvalue)},
+               "welch": {"f": num(uneq.statistic), "df2": num(uneq.df[1]), "p": num(uneq.pvalue)}}
+    return {"generator": "tests/reference/generate.py", "scipy": scipy.__version__, "summary": summary,
             "pingouin": pingouin.__version__, "scikit_posthocs": scikit_posthocs.__version__,
             "statsmodels": statsmodels.__version__, "cases": cases, "ncf_cdf": ncf}
 
