@@ -237,7 +237,7 @@ struct Sample {
     names: Vec<String>,
     summaries: Vec<GroupSummary>,
     /// Offsets and data lines per level; `None` for summary input.
-    raw: Option<(Vec<Vec<f64>>, Vec<Vec<usize>>)>,
+    raw: Option<RawLevels>,
     /// Every mean and offset is relative to this value (see `data::decimal`).
     origin: f64,
     /// Most decimals written in the response (or means) column.
@@ -246,6 +246,9 @@ struct Sample {
     /// Range of F over the rounding of published summaries.
     rounding: Option<RoundingRange>,
 }
+
+/// Raw observations per level: offsets from the origin and their data lines.
+type RawLevels = (Vec<Vec<f64>>, Vec<Vec<usize>>);
 
 /// How far F and p can move when each published mean and SD is anywhere
 /// within half a unit of its last printed digit (METHODS 3.19).

@@ -66,7 +66,7 @@ pub struct Block {
 /// A checked analysis block of one of the known kinds.
 #[derive(Debug, Clone, PartialEq)]
 pub enum BlockSpec {
-    Anova(AnovaSpec),
+    Anova(Box<AnovaSpec>),
     Power(PowerSpec),
 }
 
@@ -169,9 +169,9 @@ pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic
         let entries = parse_entries(&fenced.body, first_line).map_err(|e| doc.entry_error(e))?;
         let spec = match fenced.kind.as_str() {
             "power" => BlockSpec::Power(power_spec(&entries, line).map_err(|e| doc.spec_error(e))?),
-            _ => BlockSpec::Anova(
+            _ => BlockSpec::Anova(Box::new(
                 anova_spec(&entries, line, defaults).map_err(|e| doc.spec_error(e))?,
-            ),
+            )),
         };
         let id = spec
             .id()
