@@ -69,3 +69,23 @@ fn median_of_even_and_odd() {
     assert_eq!(median(&[3.0, 1.0, 2.0]), 2.0);
     assert_eq!(median(&[4.0, 1.0, 3.0, 2.0]), 2.5);
 }
+
+#[test]
+fn royston_coefficients_against_the_published_table() {
+    // Source: Shapiro & Wilk (1965), Biometrika 52:591-611, Table 5 of exact
+    // coefficients (from memory) for n = 5, 10 and 20. Royston's (1992)
+    // approximation is not the exact table; it agrees to within 1e-3, the
+    // size of its published approximation error.
+    let table: [(usize, &[f64]); 3] = [
+        (5, &[0.6646, 0.2413]),
+        (10, &[0.5739, 0.3291, 0.2141, 0.1224, 0.0399]),
+        (20, &[0.4734, 0.3211, 0.2565, 0.2085, 0.1686, 0.1334, 0.1013, 0.0711, 0.0422, 0.0140]),
+    ];
+    for (n, published) in table {
+        let a = shapiro_wilk_coefficients(n);
+        for (i, want) in published.iter().enumerate() {
+            let got = a[n - 1 - i];
+            assert!((got - want).abs() < 1e-3, "n = {n}, a[{}] = {got}, table {want}", n - i);
+        }
+    }
+}
