@@ -79,13 +79,22 @@ fn royston_coefficients_against_the_published_table() {
     let table: [(usize, &[f64]); 3] = [
         (5, &[0.6646, 0.2413]),
         (10, &[0.5739, 0.3291, 0.2141, 0.1224, 0.0399]),
-        (20, &[0.4734, 0.3211, 0.2565, 0.2085, 0.1686, 0.1334, 0.1013, 0.0711, 0.0422, 0.0140]),
+        (
+            20,
+            &[
+                0.4734, 0.3211, 0.2565, 0.2085, 0.1686, 0.1334, 0.1013, 0.0711, 0.0422, 0.0140,
+            ],
+        ),
     ];
     for (n, published) in table {
         let a = shapiro_wilk_coefficients(n);
         for (i, want) in published.iter().enumerate() {
             let got = a[n - 1 - i];
-            assert!((got - want).abs() < 1e-3, "n = {n}, a[{}] = {got}, table {want}", n - i);
+            assert!(
+                (got - want).abs() < 1e-3,
+                "n = {n}, a[{}] = {got}, table {want}",
+                n - i
+            );
         }
     }
 }
