@@ -380,6 +380,109 @@ pub fn summary_rows(
     Ok(rows)
 }
 
+/// A response with several crossed factors, one row per observation.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FactorialData {
+    /// Per factor, its levels in order of first appearance.
+    pub levels: Vec<Vec<String>>,
+    /// Per observation, each factor's level index.
+    pub rows: Vec<Vec<usize>>,
+    /// Per observation, the response as an offset from `origin`.
+    pub offsets: Vec<f64>,
+    /// Per observation, its data line.
+    pub lines: Vec<usize>,
+    pub origin: f64,
+    pub decimals: u32,
+    pub excluded: Vec<Exclusion>,
+}
+
+/// Extracts `response` and several factor columns; a row missing any of
+/// them is left out and recorded.
+pub fn factorial_response(
+    table: &Table,
+    response: &str,
+    factors: &[&str],
+    format: &CsvFormat,
+) -> Result<FactorialData, DataError> {
+    let yi = table.column(response)?;
+    let fis: Vec<usize> = factors
+        .iter()
+        .map(|f| table.column(f))
+        .collect::<Result<_, _>>()?;
+    let is_missing = |cell: &str| {
+        format
+            .missing
+            .iter()
+            .any(|m| m.eq_ignore_ascii_case(cell.trim()))
+    };
+    let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors.len()];
+    let mut rows = Vec::new();
+    let mut numbers = Vec::new();
+    let mut lines = Vec::new();
+    let mut excluded = Vec::new();
+    'rows: for row in &table.rows {
+        for (k, &fi) in fis.iter().enumerate() {
+            if is_missing(&row.fields[fi]) {
+                excluded.push(Exclusion {
+                    line: row.line,
+                    reason: format!("`{}` is missing", factors[k]),
+                });
+                continue 'rows;
+            }
+        }
+        let y = &row.fields[yi];
+        if is_missing(y) {
+            excluded.push(Exclusion {
+                line: row.line,
+                reason: format!("`{response}` is missing"),
+            });
+            continue;
+        }
+        let text = if format.decimal_comma {
+            y.trim().replace(',', ".")
+        } else {
+            y.trim().to_string()
+        };
+        let Some(number) = parse_number(&text) else {
+            return Err(DataError {
+                line: Some(row.line),
+                column: Some(yi + 1),
+                message: format!("`{response}` must be a number, found `{}`", y.trim()),
+                hint: Some(format!(
+                    "write a number, or one of the missing-value markers {}",
+                    quote_list(&format.missing)
+                )),
+            });
+        };
+        let mut idx = Vec::with_capacity(fis.len());
+        for (k, &fi) in fis.iter().enumerate() {
+            let name = row.fields[fi].trim();
+            let pos = match levels[k].iter().position(|l| l == name) {
+                Some(p) => p,
+                None => {
+                    levels[k].push(name.to_string());
+                    levels[k].len() - 1
+                }
+            };
+            idx.push(pos);
+        }
+        rows.push(idx);
+        numbers.push(number);
+        lines.push(row.line);
+    }
+    let decimals = numbers.iter().map(|n| n.decimals()).max().unwrap_or(0);
+    let (origin, offsets) = shift_column(&numbers);
+    Ok(FactorialData {
+        levels,
+        rows,
+        offsets,
+        lines,
+        origin,
+        decimals,
+        excluded,
+    })
+}
+
 fn quote_list(items: &[String]) -> String {
     items
         .iter()

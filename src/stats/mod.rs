@@ -7,6 +7,7 @@ pub mod dist;
 pub mod dunnett;
 pub mod effect;
 pub mod letters;
+pub mod linear;
 pub mod oneway;
 pub mod ptukey;
 pub mod quadrature;

@@ -286,8 +286,84 @@ def robust():
             "statsmodels": statsmodels.__version__, "cases": cases, "ncf_cdf": ncf}
 
 
+def factorial_case(name, path, formula_terms, response, factors, source, compare_terms, dtype=None):
+    """ANOVA tables of every type and estimated marginal means for one design."""
+    import patsy
+    from statsmodels.formula.api import ols as fit_ols
+
+    df = pd.read_csv(path, dtype={f: str for f in factors})
+    levels = {f: list(dict.fromkeys(df[f])) for f in factors}
+    # Sum-to-zero coding with the level order of first appearance, as sheaf uses.
+    coded = {f: f"C({f}, Sum, levels={levels[f]!r})" for f in factors}
+    rhs = " + ".join(":".join(coded[factors[i]] for i in t) for t in formula_terms)
+    model = fit_ols(f"{response} ~ {rhs}", data=df).fit()
+    tables = {}
+    for typ in (1, 2, 3):
+        try:
+            t = anova_lm(model, typ=typ)
+        except Exception as e:  # noqa: BLE001 - recorded, not hidden
+            tables[str(typ)] = {"error": str(e)}
+            continue
+        rows = []
+        for (label, row) in t.iterrows():
+            if label in ("Intercept",):
+                continue
+            rows.append({"label": label, "df": num(row["df"]), "ss": num(row["sum_sq"]),
+                         "f": num(row.get("F", float("nan"))), "p": num(row.get("PR(>F)", float("nan")))})
+        tables[str(typ)] = rows
+    # Estimated marginal means on the full reference grid (equal weights).
+    grid = pd.MultiIndex.from_product([levels[f] for f in factors], names=factors).to_frame(index=False)
+    # The same right-hand side through patsy gives the model's columns in order.
+    design_info = patsy.dmatrix(rhs, df).design_info
+    X = np.asarray(patsy.build_design_matrices([design_info], grid)[0])
+    cov = np.asarray(model.cov_params())
+    beta = np.asarray(model.params)
+    emms = {}
+    for term in compare_terms:
+        f = factors[term]
+        rows = []
+        Ls = []
+        for lv in levels[f]:
+            L = X[(grid[f] == lv).to_numpy()].mean(axis=0)
+            Ls.append(L)
+            rows.append({"level": lv, "emm": num(L @ beta), "se": num(math.sqrt(L @ cov @ L))})
+        k = len(levels[f])
+        pairs = []
+        for i in range(k):
+            for j in range(i + 1, k):
+                d = Ls[j] - Ls[i]
+                diff = d @ beta
+                se = math.sqrt(d @ cov @ d)
+                pairs.append({"a": levels[f][j], "b": levels[f][i], "diff": num(diff), "se": num(se),
+                              "tukey_p": num(stats.studentized_range.sf(math.sqrt(2) * abs(diff) / se, k, model.df_resid))})
+        emms[f] = {"means": rows, "pairs": pairs}
+    return {"name": name, "source": source, "csv": str(path.relative_to(ROOT)), "response": response,
+            "factors": factors, "terms": [[factors[i] for i in t] for t in formula_terms],
+            "levels": levels, "df_resid": num(model.df_resid), "ssr": num(model.ssr),
+            "tables": tables, "emms": emms}
+
+
+def factorial():
+    data = ROOT / "tests" / "data"
+    cases = [
+        factorial_case("warpbreaks", data / "open" / "warpbreaks.csv", [[0], [1], [0, 1]], "breaks",
+                       ["wool", "tension"], "Tippett (1950) via pydataset", [0, 1]),
+        factorial_case("warp_unbalanced", data / "invented" / "warp-unbalanced.csv", [[0], [1], [0, 1]], "breaks",
+                       ["wool", "tension"], "warpbreaks with an invented deletion pattern", [0, 1]),
+        factorial_case("warp_empty_cell", data / "invented" / "warp-empty-cell.csv", [[0], [1], [0, 1]], "breaks",
+                       ["wool", "tension"], "warpbreaks with cell B-H removed (invented)", []),
+        factorial_case("warp_additive_empty", data / "invented" / "warp-empty-cell.csv", [[0], [1]], "breaks",
+                       ["wool", "tension"], "additive model on the empty-cell data", [0, 1]),
+        factorial_case("immer", data / "open" / "immer.csv", [[0], [1]], "Y1", ["Var", "Loc"],
+                       "Immer et al. (1934) barley, randomized complete blocks", [0]),
+    ]
+    return {"generator": "tests/reference/generate.py", "statsmodels": statsmodels.__version__,
+            "coding": "sum-to-zero (C(x, Sum)), levels in order of first appearance", "cases": cases}
+
+
 def main():
-    for name, builder in [("oneway.json", oneway), ("distributions.json", distributions), ("robust.json", robust)]:
+    for name, builder in [("oneway.json", oneway), ("distributions.json", distributions), ("robust.json", robust),
+                          ("factorial.json", factorial)]:
         text = json.dumps(builder(), indent=1, allow_nan=False)
         (OUT / name).write_text(text + "\n")
         print("wrote", OUT / name)
