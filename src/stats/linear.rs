@@ -164,6 +164,7 @@ impl Fit {
     }
 
     /// (XᵀX)⁻¹ of the kept columns, as R⁻¹R⁻ᵀ.
+    #[allow(clippy::needless_range_loop)] // triangular index loops read best as such
     pub fn unscaled_covariance(&self) -> Vec<Vec<f64>> {
         let k = self.rank;
         // R⁻¹ by back-substitution, column by column.
