@@ -2,6 +2,8 @@
 //! and runs the statistics. The result is the one source of every number in
 //! the report, the results file and the prose.
 
+pub mod factorial;
+
 use crate::data::{
     DataError, Exclusion, SummaryColumns, SummaryRow, Table, factor_response, summary_rows,
 };
@@ -97,6 +99,7 @@ pub struct AnovaResult {
 #[derive(Debug, Clone, PartialEq)]
 pub enum BlockResult {
     Anova(Box<AnovaResult>),
+    Factorial(Box<factorial::FactorialResult>),
     Power(PowerResult),
 }
 
@@ -104,6 +107,7 @@ impl BlockResult {
     pub fn id(&self) -> &str {
         match self {
             BlockResult::Anova(r) => &r.id,
+            BlockResult::Factorial(r) => &r.id,
             BlockResult::Power(r) => &r.id,
         }
     }
@@ -111,6 +115,7 @@ impl BlockResult {
     pub fn line(&self) -> usize {
         match self {
             BlockResult::Anova(r) => r.line,
+            BlockResult::Factorial(r) => r.line,
             BlockResult::Power(r) => r.line,
         }
     }
@@ -118,6 +123,7 @@ impl BlockResult {
     pub fn warnings(&self) -> &[String] {
         match self {
             BlockResult::Anova(r) => &r.warnings,
+            BlockResult::Factorial(r) => &r.warnings,
             BlockResult::Power(r) => &r.warnings,
         }
     }

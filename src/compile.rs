@@ -1,6 +1,7 @@
 //! The driver: document → data → statistics → rendering → results, in memory.
 //! Nothing is written here; `output` writes the finished files.
 
+use crate::analysis::factorial::run_factorial;
 use crate::analysis::{BlockResult, Input, run_anova, run_power};
 use crate::diag::Diagnostic;
 use crate::doc::{BlockSpec, parse_document};
@@ -115,8 +116,14 @@ pub fn compile(
             .iter()
             .find(|i| &i.path == path)
             .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
-        let result = run_anova(&doc, block, spec, input, &world.display(path))?;
-        results.push(BlockResult::Anova(Box::new(result)));
+        let model = &spec.model.value;
+        if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
+            let result = run_factorial(&doc, block, spec, input, &world.display(path))?;
+            results.push(BlockResult::Factorial(Box::new(result)));
+        } else {
+            let result = run_anova(&doc, block, spec, input, &world.display(path))?;
+            results.push(BlockResult::Anova(Box::new(result)));
+        }
     }
 
     let results_name = format!("{stem}.results.json");

@@ -40,7 +40,208 @@ pub struct ResultsFile {
 #[serde(untagged)]
 pub enum BlockEntry {
     Anova(Box<BlockRecord>),
+    Factorial(Box<FactorialRecord>),
     Power(PowerRecord),
+}
+
+/// A factorial `anova` block: the same fields as a one-factor block where
+/// they apply, plus `ss_type`, `cells` and estimated marginal means.
+#[derive(Serialize)]
+pub struct FactorialRecord {
+    pub id: String,
+    pub kind: &'static str,
+    pub line: usize,
+    pub data: String,
+    pub response: String,
+    pub factors: Vec<String>,
+    pub n: usize,
+    pub n_excluded: usize,
+    pub excluded: Vec<ExcludedRecord>,
+    pub alpha: f64,
+    pub method: &'static str,
+    /// 1, 2 or 3.
+    pub ss_type: u8,
+    pub anova: AnovaRecord,
+    pub checks: ChecksRecord,
+    /// Estimated marginal means of the first compared term (as `groups` for one factor).
+    pub groups: Vec<GroupRecord>,
+    pub cells: Vec<CellRecord>,
+    pub comparisons: Vec<ComparisonRecord>,
+    pub warnings: Vec<String>,
+}
+
+#[derive(Serialize)]
+pub struct CellRecord {
+    /// Factor → level, in model order.
+    pub levels: Letters,
+    pub n: usize,
+    pub mean: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct MeanRecord {
+    pub level: String,
+    pub n: usize,
+    pub mean: Option<f64>,
+    pub se: Option<f64>,
+    pub ci_lower: Option<f64>,
+    pub ci_upper: Option<f64>,
+}
+
+fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> FactorialRecord {
+    let comparisons: Vec<ComparisonRecord> = r
+        .families
+        .iter()
+        .map(|fam| {
+            let c = &fam.comparison;
+            ComparisonRecord {
+                term: fam.term.clone(),
+                within: fam.within.clone(),
+                method: c.method.key(),
+                alpha: c.alpha,
+                critical_value: finite(c.critical),
+                control: None,
+                sides: None,
+                means: Some(
+                    fam.means
+                        .iter()
+                        .map(|m| MeanRecord {
+                            level: m.label.clone(),
+                            n: m.n,
+                            mean: finite(m.mean),
+                            se: finite(m.se),
+                            ci_lower: finite(m.ci_lower),
+                            ci_upper: finite(m.ci_upper),
+                        })
+                        .collect(),
+                ),
+                pairs: c
+                    .pairs
+                    .iter()
+                    .map(|p| PairRecord {
+                        a: fam.means[p.a].label.clone(),
+                        b: fam.means[p.b].label.clone(),
+                        diff: finite(p.diff),
+                        se: finite(p.se),
+                        lower: finite(p.lower),
+                        upper: finite(p.upper),
+                        p_adj: finite(p.p_adj),
+                        significant: p.significant,
+                        df: None,
+                    })
+                    .collect(),
+                letters: Letters(
+                    fam.means
+                        .iter()
+                        .zip(&c.letters)
+                        .map(|(m, l)| (m.label.clone(), l.clone()))
+                        .collect(),
+                ),
+            }
+        })
+        .collect();
+    let groups = r
+        .families
+        .first()
+        .map(|fam| {
+            fam.means
+                .iter()
+                .map(|m| GroupRecord {
+                    level: m.label.clone(),
+                    n: m.n,
+                    mean: finite(m.mean),
+                    sd: None,
+                    se: finite(m.se),
+                    ci_lower: finite(m.ci_lower),
+                    ci_upper: finite(m.ci_upper),
+                    ci_error: "pooled",
+                    median: None,
+                    q1: None,
+                    q3: None,
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    FactorialRecord {
+        id: r.id.clone(),
+        kind: "anova",
+        line: r.line,
+        data: r.data.clone(),
+        response: r.response.clone(),
+        factors: r.factors.clone(),
+        n: r.n,
+        n_excluded: r.exclusions.len(),
+        excluded: r
+            .exclusions
+            .iter()
+            .map(|e| ExcludedRecord {
+                line: e.line,
+                reason: e.reason.clone(),
+            })
+            .collect(),
+        alpha: r.alpha,
+        method: "anova",
+        ss_type: match r.ss_type {
+            crate::stats::linear::SsType::I => 1,
+            crate::stats::linear::SsType::II => 2,
+            crate::stats::linear::SsType::III => 3,
+        },
+        anova: AnovaRecord {
+            terms: r
+                .terms
+                .iter()
+                .map(|t| TermRecord {
+                    term: t.name.clone(),
+                    df: t.df,
+                    ss: finite(t.ss),
+                    ms: finite(t.ms),
+                    f: finite(t.f),
+                    p: finite(t.p),
+                    f_crit: finite(t.f_crit),
+                    effect: Some(EffectRecord {
+                        eta_sq: None,
+                        partial_eta_sq: finite(t.partial_eta_sq),
+                        omega_sq: finite(t.partial_omega_sq),
+                        cohens_f: finite((t.partial_eta_sq / (1.0 - t.partial_eta_sq)).sqrt()),
+                        partial_eta_sq_ci: [
+                            finite(t.partial_eta_sq_ci.0),
+                            finite(t.partial_eta_sq_ci.1),
+                        ],
+                        ci_level: 1.0 - r.alpha,
+                    }),
+                })
+                .collect(),
+            residual: ResidualRecord {
+                df: r.residual_df,
+                ss: finite(r.residual_ss),
+                ms: finite(r.mse),
+            },
+            total: TotalRecord {
+                df: r.n - 1,
+                ss: finite(r.total_ss),
+            },
+            r_squared: finite(r.r_squared),
+        },
+        checks: checks_record(&r.checks),
+        groups,
+        cells: r
+            .cells
+            .iter()
+            .map(|c| CellRecord {
+                levels: Letters(
+                    c.levels
+                        .iter()
+                        .enumerate()
+                        .map(|(f, &l)| (r.factors[f].clone(), r.levels[f][l].clone()))
+                        .collect(),
+                ),
+                n: c.n,
+                mean: if c.n > 0 { finite(c.mean) } else { None },
+            })
+            .collect(),
+        comparisons,
+        warnings: r.warnings.clone(),
+    }
 }
 
 /// A `power` block: its inputs and its answer.
@@ -275,6 +476,9 @@ pub struct ComparisonRecord {
     pub control: Option<String>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub sides: Option<&'static str>,
+    /// Factorial designs: the estimated marginal (or cell) means compared.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub means: Option<Vec<MeanRecord>>,
     pub pairs: Vec<PairRecord>,
     pub letters: Letters,
 }
@@ -320,6 +524,7 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
             alpha: c.alpha,
             critical_value: finite(c.critical),
             control: c.control.map(|i| r.levels[i].name.clone()),
+            means: None,
             sides: (c.method == crate::stats::compare::Method::Dunnett).then_some(match c.sides {
                 crate::stats::dunnett::Sides::Two => "two-sided",
                 crate::stats::dunnett::Sides::Greater => "greater",
@@ -494,6 +699,7 @@ pub fn results_json(
             .iter()
             .map(|b| match b {
                 BlockResult::Anova(r) => BlockEntry::Anova(Box::new(block_record(r))),
+                BlockResult::Factorial(r) => BlockEntry::Factorial(Box::new(factorial_record(r))),
                 BlockResult::Power(r) => BlockEntry::Power(power_record(r)),
             })
             .collect(),

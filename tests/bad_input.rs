@@ -298,12 +298,9 @@ fn cases() -> Vec<Case> {
             ],
         ),
         case(
-            "two-factor model",
+            "factor missing from the data",
             doc_with("data: plants.csv\nmodel: weight ~ group * site\n"),
-            vec![
-                "this version of sheaf fits one treatment factor",
-                "report.md:5",
-            ],
+            vec!["no column named `site`", "plants.csv:1"],
         ),
         case(
             "nested block",
@@ -557,6 +554,100 @@ fn summary_input_is_checked() {
             "unknown input",
             doc_with(&format!("{GOOD_BLOCK}input: means\n")),
             vec!["unknown input `means`"],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}
+
+#[test]
+fn factorial_designs_are_checked() {
+    let two = "y,a,b\n1,x,p\n2,x,p\n3,x,q\n4,x,q\n5,z,p\n6,z,p\n7,z,q\n9,z,q\n";
+    let single = "y,a,b\n1,x,p\n3,x,q\n5,z,p\n8,z,q\n";
+    let empty = "y,a,b\n1,x,p\n2,x,p\n3,x,q\n4,x,q\n5,z,p\n6,z,p\n7,z,q\n9,z,q\n9,w,p\n10,w,p\n";
+    let doc = |extra: &str| doc_with(&format!("data: plants.csv\nmodel: y ~ a * b\n{extra}"));
+    let cases = vec![
+        with_data(
+            case(
+                "factorial: one observation per cell",
+                doc(""),
+                vec!["no residual degrees of freedom", "fit the additive model"],
+            ),
+            single.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: empty cell with Type III",
+                doc(""),
+                vec![
+                    "Type III sums of squares are not estimable",
+                    "a=w, b=q",
+                    "ss: 2",
+                ],
+            ),
+            empty.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: marginal means with an empty cell",
+                doc("ss: 2\n"),
+                vec!["marginal means cannot be estimated", "cells: yes"],
+            ),
+            empty.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: within a stranger",
+                doc("within: c\n"),
+                vec!["`c` is not a factor of the model", "report.md:6"],
+            ),
+            two.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: welch",
+                doc("method: welch\n"),
+                vec!["`method: welch` is for one-factor models"],
+            ),
+            two.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: dunnett",
+                doc("compare: dunnett\ncontrol: x\n"),
+                vec!["`compare: dunnett` is available for one-factor models only"],
+            ),
+            two.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: bad ss",
+                doc("ss: 4\n"),
+                vec!["unknown sums-of-squares type `4`"],
+            ),
+            two.as_bytes(),
+        ),
+        with_data(
+            case(
+                "factorial: cells without the interaction",
+                doc_with("data: plants.csv\nmodel: y ~ a + b\ncells: yes\n"),
+                vec!["`cells` compares cell means"],
+            ),
+            two.as_bytes(),
+        ),
+        case(
+            "one-factor model with ss",
+            doc_with(&format!("{GOOD_BLOCK}ss: 2\n")),
+            vec!["`ss` applies to models with two or more factors"],
+        ),
+        with_data(
+            case(
+                "factorial: block not in model",
+                doc("block: c\n"),
+                vec!["`c` is not a factor of the model"],
+            ),
+            two.as_bytes(),
         ),
     ];
     for c in &cases {

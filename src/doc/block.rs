@@ -6,13 +6,14 @@ use super::keyvalue::Entry;
 use crate::data::{CsvFormat, DEFAULT_MISSING, SummaryColumns};
 use crate::stats::compare::Method;
 use crate::stats::dunnett::Sides;
+use crate::stats::linear::SsType;
 
 /// The block kinds sheaf knows. A fenced block with any other info string is
 /// ordinary code.
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 21] = [
+pub const ANOVA_KEYS: [&str; 26] = [
     "id",
     "data",
     "model",
@@ -34,6 +35,11 @@ pub const ANOVA_KEYS: [&str; 21] = [
     "adjust",
     "input",
     "columns",
+    "ss",
+    "compare_term",
+    "within",
+    "cells",
+    "block",
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -109,6 +115,16 @@ pub struct AnovaSpec {
     pub adjust: Method,
     /// `input: summary`: the data file holds n, mean and SD per level.
     pub summary: Option<SummaryColumns>,
+    /// Factorial designs: the sums-of-squares type (default III).
+    pub ss_type: Option<Located<SsType>>,
+    /// Factorial designs: the main effects whose levels are compared.
+    pub compare_terms: Option<Located<Vec<String>>>,
+    /// Factorial designs: compare within each level of this factor (simple effects).
+    pub within: Option<Located<String>>,
+    /// Factorial designs: compare all cell means with one letter set.
+    pub cells: Option<Located<bool>>,
+    /// Blocking factors: reported in the table, never compared.
+    pub blocks: Option<Located<Vec<String>>>,
 }
 
 /// A problem with one key, at its line and column.
@@ -617,7 +633,56 @@ pub fn anova_spec(
             ));
         }
     }
+    let ss_type = match get("ss") {
+        None => None,
+        Some(e) => Some(Located {
+            value: match e.value.trim().to_ascii_uppercase().as_str() {
+                "1" | "I" => SsType::I,
+                "2" | "II" => SsType::II,
+                "3" | "III" => SsType::III,
+                _ => {
+                    return Err(bad(
+                        e,
+                        format!("unknown sums-of-squares type `{}`", e.value),
+                        "write 1 (sequential), 2 or 3",
+                    ));
+                }
+            },
+            line: e.line,
+            column: e.value_column,
+        }),
+    };
+    let named_list = |key: &str| {
+        get(key).map(|e| Located {
+            value: list(&e.value),
+            line: e.line,
+            column: e.value_column,
+        })
+    };
+    let cells = match get("cells") {
+        None => None,
+        Some(e) => Some(Located {
+            value: parse_yes_no(e)?,
+            line: e.line,
+            column: e.value_column,
+        }),
+    };
+    let factor_count = formula.factors().len();
+    for key in ["ss", "compare_term", "within", "cells"] {
+        if let (Some(e), true) = (get(key), factor_count < 2) {
+            return Err(bad(
+                e,
+                format!("`{key}` applies to models with two or more factors"),
+                "write the model as `y ~ A * B` (or `y ~ treatment + block`), or remove the key",
+            ));
+        }
+    }
     Ok(AnovaSpec {
+        ss_type,
+        compare_terms: named_list("compare_term"),
+        within: get("within").map(located),
+        cells,
+        blocks: named_list("block"),
         summary,
         method,
         checks,

@@ -242,6 +242,109 @@ fn block_context(r: &AnovaResult) -> BlockContext {
 }
 
 #[derive(Serialize)]
+struct EmmContext {
+    n: usize,
+    mean: f64,
+    se: f64,
+    ci_lower: f64,
+    ci_upper: f64,
+    letters: String,
+}
+
+#[derive(Serialize)]
+struct FactorialContext {
+    n: usize,
+    n_excluded: usize,
+    alpha: f64,
+    response: String,
+    ss_type: u8,
+    r_squared: f64,
+    terms: BTreeMap<String, TermContext>,
+    residual: BTreeMap<&'static str, f64>,
+    total: BTreeMap<&'static str, f64>,
+    /// means.<factor>.<level> for main-effect families; means.cells.<label>.
+    means: BTreeMap<String, BTreeMap<String, EmmContext>>,
+}
+
+fn factorial_context(r: &crate::analysis::factorial::FactorialResult) -> FactorialContext {
+    let terms = r
+        .terms
+        .iter()
+        .map(|t| {
+            (
+                t.name.clone(),
+                TermContext {
+                    df: t.df,
+                    df1: t.df,
+                    df2: r.residual_df,
+                    ss: t.ss,
+                    ms: t.ms,
+                    f: t.f,
+                    p: t.p,
+                    f_crit: t.f_crit,
+                    effect: Some(EffectContext {
+                        eta_sq: t.partial_eta_sq,
+                        partial_eta_sq: t.partial_eta_sq,
+                        omega_sq: t.partial_omega_sq,
+                        cohens_f: (t.partial_eta_sq / (1.0 - t.partial_eta_sq)).sqrt(),
+                        ci_lower: t.partial_eta_sq_ci.0,
+                        ci_upper: t.partial_eta_sq_ci.1,
+                    }),
+                },
+            )
+        })
+        .collect();
+    let mut means = BTreeMap::new();
+    for fam in &r.families {
+        let key = match &fam.within {
+            Some(w) => format!("{}@{w}", fam.term),
+            None => fam.term.clone(),
+        };
+        let entries = fam
+            .means
+            .iter()
+            .enumerate()
+            .map(|(i, m)| {
+                let e = EmmContext {
+                    n: m.n,
+                    mean: m.mean,
+                    se: m.se,
+                    ci_lower: m.ci_lower,
+                    ci_upper: m.ci_upper,
+                    letters: fam.comparison.letters[i].clone(),
+                };
+                (m.label.clone(), e)
+            })
+            .collect();
+        means.insert(key, entries);
+    }
+    FactorialContext {
+        n: r.n,
+        n_excluded: r.exclusions.len(),
+        alpha: r.alpha,
+        response: r.response.clone(),
+        ss_type: match r.ss_type {
+            crate::stats::linear::SsType::I => 1,
+            crate::stats::linear::SsType::II => 2,
+            crate::stats::linear::SsType::III => 3,
+        },
+        r_squared: r.r_squared,
+        terms,
+        residual: [
+            ("df", r.residual_df as f64),
+            ("ss", r.residual_ss),
+            ("ms", r.mse),
+        ]
+        .into_iter()
+        .collect(),
+        total: [("df", (r.n - 1) as f64), ("ss", r.total_ss)]
+            .into_iter()
+            .collect(),
+        means,
+    }
+}
+
+#[derive(Serialize)]
 struct PowerContext {
     groups: usize,
     f: f64,
@@ -339,6 +442,7 @@ pub fn evaluate(
         .iter()
         .map(|r| match r {
             BlockResult::Anova(a) => (a.id.clone(), to_value(block_context(a))),
+            BlockResult::Factorial(f) => (f.id.clone(), to_value(factorial_context(f))),
             BlockResult::Power(p) => (p.id.clone(), to_value(power_context(p))),
         })
         .collect();

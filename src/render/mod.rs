@@ -219,6 +219,7 @@ pub fn render_report(
     for r in results {
         let v = match r {
             BlockResult::Anova(r) => view::block_view(r, &mut next_table),
+            BlockResult::Factorial(r) => view::factorial_view(r, &mut next_table),
             BlockResult::Power(r) => view::power_view(r, &mut next_table),
         };
         let name = if format == Format::Html {

@@ -4,6 +4,7 @@
 use super::format::{
     column_decimals, df_text, effect_size, f_stat, fixed, p_phrase, p_value, significant,
 };
+use crate::analysis::factorial::{FactorialResult, term_label};
 use crate::analysis::{AnovaResult, ComparisonResult, PowerResult};
 use crate::doc::block::{Omnibus, Order};
 use crate::stats::assumptions::ShapiroWilkSkip;
@@ -380,9 +381,23 @@ fn kruskal_table(r: &AnovaResult, number: usize) -> TableView {
 }
 
 fn checks_table(r: &AnovaResult, number: usize) -> TableView {
-    let c = &r.checks;
-    let id = &r.id;
-    let a = r.alpha;
+    checks_table_of(
+        &r.checks,
+        &r.id,
+        r.alpha,
+        &format!("{} by {}", r.response, r.factor),
+        number,
+    )
+}
+
+/// The assumption-check table; `subject` reads like "weight by group".
+fn checks_table_of(
+    c: &crate::analysis::Checks,
+    id: &str,
+    a: f64,
+    subject: &str,
+    number: usize,
+) -> TableView {
     let reading = |p: f64, yes: &str, no: &str| {
         if p < a {
             yes.to_string()
@@ -507,10 +522,7 @@ fn checks_table(r: &AnovaResult, number: usize) -> TableView {
     TableView {
         number,
         id: format!("{id}-checks"),
-        caption: format!(
-            "Table {number}. Assumption checks for {} by {}.",
-            r.response, r.factor
-        ),
+        caption: format!("Table {number}. Assumption checks for {subject}."),
         columns: vec![
             col("Check", false),
             col("Statistic", true),
@@ -843,5 +855,372 @@ pub fn omnibus_statement(r: &AnovaResult) -> String {
             r.table.f,
             r.table.p,
         ),
+    }
+}
+
+/// A factorial block: the ANOVA table of every term, checks, cell means,
+/// and for each comparison family its means and pairs.
+pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView {
+    let mut numbers = Numbering(next_table);
+    let id = &r.id;
+    let d = r.decimals;
+    let conf = confidence_label(r.alpha);
+    let factors_text = match r.factors.len() {
+        2 => r.factors.join(" and "),
+        n => format!("{} and {}", r.factors[..n - 1].join(", "), r.factors[n - 1]),
+    };
+    let mut tables = Vec::new();
+    if r.show.anova {
+        let number = numbers.next();
+        let ss_dec = column_decimals(&[r.total_ss], 5);
+        let ms_dec = column_decimals(
+            &r.terms
+                .iter()
+                .map(|t| t.ms)
+                .chain([r.mse])
+                .collect::<Vec<_>>(),
+            4,
+        );
+        let mut rows: Vec<Vec<Cell>> = r
+            .terms
+            .iter()
+            .map(|t| {
+                let k = |q: &str| format!("{id}.anova.terms.{}.{q}", t.name);
+                let label = if t.is_block {
+                    format!("{} (block)", term_label(&t.name))
+                } else {
+                    term_label(&t.name)
+                };
+                vec![
+                    text(label),
+                    cell(t.df.to_string(), k("df")),
+                    cell(fixed(t.ss, ss_dec), k("ss")),
+                    cell(fixed(t.ms, ms_dec), k("ms")),
+                    cell(f_stat(t.f), k("f")),
+                    cell(p_value(t.p), k("p")),
+                    cell(effect_size(t.partial_eta_sq), k("effect.partial_eta_sq")),
+                ]
+            })
+            .collect();
+        rows.push(vec![
+            text("Residual"),
+            cell(r.residual_df.to_string(), format!("{id}.anova.residual.df")),
+            cell(
+                fixed(r.residual_ss, ss_dec),
+                format!("{id}.anova.residual.ss"),
+            ),
+            cell(fixed(r.mse, ms_dec), format!("{id}.anova.residual.ms")),
+            text(""),
+            text(""),
+            text(""),
+        ]);
+        rows.push(vec![
+            text("Total"),
+            cell((r.n - 1).to_string(), format!("{id}.anova.total.df")),
+            cell(fixed(r.total_ss, ss_dec), format!("{id}.anova.total.ss")),
+            text(""),
+            text(""),
+            text(""),
+            text(""),
+        ]);
+        let ss_text = match r.ss_type {
+            crate::stats::linear::SsType::I => {
+                "Type I (sequential, in the order shown) sums of squares"
+            }
+            crate::stats::linear::SsType::II => "Type II sums of squares",
+            crate::stats::linear::SsType::III => "Type III sums of squares, sum-to-zero coding",
+        };
+        let caption = match &r.caption {
+            Some(c) => format!("Table {number}. {c} ({ss_text})."),
+            None => format!(
+                "Table {number}. Analysis of variance of {} by {factors_text} (N = {}; {ss_text}).",
+                r.response, r.n
+            ),
+        };
+        let crits: Vec<String> = r
+            .terms
+            .iter()
+            .map(|t| {
+                format!(
+                    "{} F({}, {}) = {}",
+                    term_label(&t.name),
+                    t.df,
+                    r.residual_df,
+                    fixed(t.f_crit, 3)
+                )
+            })
+            .collect();
+        let mut footnotes = vec![
+            format!(
+                "Critical values at α = {}: {}. R² = {}.",
+                alpha_text(r.alpha),
+                crits.join("; "),
+                fixed(r.r_squared, 3)
+            ),
+            format!(
+                "η² is partial η² = SS/(SS + SS residual); {conf} intervals for it from the noncentral F: {}.",
+                r.terms
+                    .iter()
+                    .map(|t| format!(
+                        "{} {} to {}",
+                        term_label(&t.name),
+                        effect_size(t.partial_eta_sq_ci.0),
+                        effect_size(t.partial_eta_sq_ci.1)
+                    ))
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            ),
+            "All factors are fixed effects; every F uses the residual mean square.".to_string(),
+        ];
+        if r.types_agree {
+            footnotes
+                .push("The design is balanced: Types I, II and III sums of squares agree.".into());
+        }
+        tables.push(TableView {
+            number,
+            id: format!("{id}-anova"),
+            caption,
+            columns: vec![
+                col("Source", false),
+                col("df", true),
+                col("SS", true),
+                col("MS", true),
+                col("F", true),
+                col("p", true),
+                col("η²", true),
+            ],
+            rows,
+            footnotes,
+        });
+    }
+    if r.checks.shown {
+        tables.push(checks_table_of(
+            &r.checks,
+            id,
+            r.alpha,
+            &format!("{} by {factors_text}", r.response),
+            numbers.next(),
+        ));
+    }
+    if r.show.means && r.cells.iter().any(|c| c.n > 1) {
+        tables.push(cell_table(r, numbers.next()));
+    }
+    let mut notes = Vec::new();
+    for fam in &r.families {
+        notes.extend(fam.comparison.notes.iter().cloned());
+        let slice = fam
+            .within
+            .as_ref()
+            .map_or(String::new(), |w| format!(" at {w}"));
+        let what = if fam.term == "cells" {
+            "cell".to_string()
+        } else {
+            fam.term.clone()
+        };
+        if r.show.means {
+            let number = numbers.next();
+            let mut order: Vec<usize> = (0..fam.means.len()).collect();
+            if r.order == Order::Mean {
+                order.sort_by(|&a, &b| {
+                    fam.means[b]
+                        .mean
+                        .total_cmp(&fam.means[a].mean)
+                        .then(a.cmp(&b))
+                });
+            }
+            let rows = order
+                .into_iter()
+                .map(|i| (i, &fam.means[i]))
+                .map(|(i, m)| {
+                    vec![
+                        text(m.label.clone()),
+                        text(m.n.to_string()),
+                        text(fixed(m.mean, d)),
+                        text(fixed(m.se, d)),
+                        text(format!(
+                            "{} to {}",
+                            fixed(m.ci_lower, d),
+                            fixed(m.ci_upper, d)
+                        )),
+                        text(fam.comparison.letters[i].clone()),
+                    ]
+                })
+                .collect();
+            let kind = if fam.term == "cells" {
+                "Cell means"
+            } else {
+                "Estimated marginal means"
+            };
+            tables.push(TableView {
+                number,
+                id: format!("{id}-means-{}{}", fam.term, fam.within.as_ref().map_or(String::new(), |w| format!("-{w}"))),
+                caption: format!("Table {number}. {kind} of {} by {what}{slice}.", r.response),
+                columns: vec![col(what.clone(), false), col("n", true), col("Mean", true), col("SE", true), col(format!("{conf} CI"), true), col("Letters", false)],
+                rows,
+                footnotes: vec![
+                    if fam.term == "cells" {
+                        format!("SE = √(MSE/n) from the model's residual mean square ({} df).", r.residual_df)
+                    } else {
+                        format!(
+                            "Least-squares means: model predictions averaged with equal weight over the levels of the other factors, so unbalanced data are compared fairly; SE from the model ({} df).",
+                            r.residual_df
+                        )
+                    },
+                    format!(
+                        "Means sharing a letter are not significantly different ({}, α = {}); the letter a marks the highest mean.{}",
+                        fam.comparison.method.title(),
+                        alpha_text(fam.comparison.alpha),
+                        if r.order == Order::Mean { " Rows run from the highest mean." } else { "" }
+                    ),
+                ],
+            });
+        }
+        if r.show.pairs {
+            let number = numbers.next();
+            let c = &fam.comparison;
+            let p_label = if c.method == Method::Lsd {
+                "p"
+            } else {
+                "adjusted p"
+            };
+            let rows = c
+                .pairs
+                .iter()
+                .map(|p| {
+                    let interval = format!("{} to {}", fixed(p.lower, d), fixed(p.upper, d));
+                    vec![
+                        text(format!(
+                            "{} − {}",
+                            fam.means[p.a].label, fam.means[p.b].label
+                        )),
+                        text(fixed(p.diff, d)),
+                        text(fixed(p.se, d)),
+                        text(interval),
+                        text(p_value(p.p_adj)),
+                        text(yes_no(p.significant)),
+                    ]
+                })
+                .collect();
+            tables.push(TableView {
+                number,
+                id: format!(
+                    "{id}-pairs-{}{}",
+                    fam.term,
+                    fam.within
+                        .as_ref()
+                        .map_or(String::new(), |w| format!("-{w}"))
+                ),
+                caption: format!(
+                    "Table {number}. Pairwise comparisons of {what} means{slice} ({}).",
+                    c.method.title()
+                ),
+                columns: vec![
+                    col("Comparison", false),
+                    col("Difference", true),
+                    col("SE", true),
+                    col(format!("{conf} CI"), true),
+                    col(p_label, true),
+                    col(format!("Significant at α = {}", alpha_text(c.alpha)), false),
+                ],
+                rows,
+                footnotes: vec![format!(
+                    "Procedure: {} ({}).",
+                    c.method.title(),
+                    c.method.citation()
+                )],
+            });
+        }
+    }
+    BlockView {
+        id: id.clone(),
+        lead: None,
+        tables,
+        notes,
+        warnings: r.warnings.clone(),
+    }
+}
+
+/// Observed cell means: rows by the first factor and columns by the second
+/// for two factors, one row per cell otherwise. (Not shown when every cell
+/// holds a single observation: that table would be the data themselves.)
+fn cell_table(r: &FactorialResult, number: usize) -> TableView {
+    let d = r.decimals;
+    let cell_letters = r.families.iter().find(|f| f.term == "cells");
+    let letters_of = |c: &crate::analysis::factorial::CellRow| -> String {
+        let label = c
+            .levels
+            .iter()
+            .enumerate()
+            .map(|(f, &l)| r.levels[f][l].clone())
+            .collect::<Vec<_>>()
+            .join(" × ");
+        cell_letters
+            .and_then(|fam| {
+                fam.means
+                    .iter()
+                    .position(|m| m.label == label)
+                    .map(|i| format!(" {}", fam.comparison.letters[i]))
+            })
+            .unwrap_or_default()
+    };
+    let show = |c: &crate::analysis::factorial::CellRow| {
+        if c.n == 0 {
+            "no data".to_string()
+        } else {
+            format!("{} (n = {}){}", fixed(c.mean, d), c.n, letters_of(c))
+        }
+    };
+    let (columns, rows) = if r.factors.len() == 2 {
+        let mut columns = vec![col(format!("{} \\ {}", r.factors[0], r.factors[1]), false)];
+        columns.extend(r.levels[1].iter().map(|l| col(l.clone(), true)));
+        let rows = (0..r.levels[0].len())
+            .map(|a| {
+                let mut row = vec![text(r.levels[0][a].clone())];
+                for bb in 0..r.levels[1].len() {
+                    let c = r.cells.iter().find(|c| c.levels == vec![a, bb]);
+                    row.push(text(c.map_or_else(String::new, show)));
+                }
+                row
+            })
+            .collect();
+        (columns, rows)
+    } else {
+        let mut columns: Vec<Column> = r.factors.iter().map(|f| col(f.clone(), false)).collect();
+        columns.push(col("Mean (n)", true));
+        let rows = r
+            .cells
+            .iter()
+            .map(|c| {
+                let mut row: Vec<Cell> = c
+                    .levels
+                    .iter()
+                    .enumerate()
+                    .map(|(f, &l)| text(r.levels[f][l].clone()))
+                    .collect();
+                row.push(text(show(c)));
+                row
+            })
+            .collect();
+        (columns, rows)
+    };
+    let mut footnotes = vec!["Observed cell means with their number of observations.".to_string()];
+    if let Some(fam) = cell_letters {
+        footnotes.push(format!(
+            "Cells sharing a letter are not significantly different ({}, α = {}).",
+            fam.comparison.method.title(),
+            alpha_text(fam.comparison.alpha)
+        ));
+    }
+    TableView {
+        number,
+        id: format!("{}-cells", r.id),
+        caption: format!(
+            "Table {number}. Cell means of {} by {}.",
+            r.response,
+            r.factors.join(" and ")
+        ),
+        columns,
+        rows,
+        footnotes,
     }
 }

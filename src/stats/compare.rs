@@ -122,14 +122,34 @@ pub struct Pairwise {
 /// on `df` error degrees of freedom, by LSD, Tukey-Kramer, Bonferroni, Holm,
 /// Scheffé or Šidák. (Dunnett, Games-Howell and Dunn have their own modules.)
 pub fn pairwise(levels: &[LevelMean], mse: f64, df: f64, alpha: f64, method: Method) -> Pairwise {
-    let k = levels.len();
+    let means: Vec<f64> = levels.iter().map(|l| l.mean).collect();
+    pairwise_with_se(
+        &means,
+        |a, b| (mse * (1.0 / levels[a].n as f64 + 1.0 / levels[b].n as f64)).sqrt(),
+        df,
+        alpha,
+        method,
+    )
+}
+
+/// All pairs (j, i) for i < j of any estimates whose differences have the
+/// standard errors `se(a, b)` on `df` error degrees of freedom: the form
+/// estimated marginal means in factorial designs need.
+pub fn pairwise_with_se(
+    means: &[f64],
+    se: impl Fn(usize, usize) -> f64,
+    df: f64,
+    alpha: f64,
+    method: Method,
+) -> Pairwise {
+    let k = means.len();
     let m = k * (k - 1) / 2;
     let mut pairs = Vec::with_capacity(m);
     for i in 0..k {
         for j in (i + 1)..k {
             let (a, b) = (j, i);
-            let diff = levels[a].mean - levels[b].mean;
-            let se = (mse * (1.0 / levels[a].n as f64 + 1.0 / levels[b].n as f64)).sqrt();
+            let diff = means[a] - means[b];
+            let se = se(a, b);
             let t = diff / se;
             pairs.push(Pair {
                 a,

@@ -1,0 +1,805 @@
+//! Factorial, blocked and Latin-square designs: any fixed-effects model with
+//! categorical factors, fitted by QR, with Type I/II/III sums of squares,
+//! comparisons on estimated marginal means, simple effects and cell means.
+
+use super::{Checks, ComparisonResult, Input, OutlierRow, data_error, summary_checks};
+use crate::data::{Table, factorial_response};
+use crate::diag::Diagnostic;
+use crate::doc::block::{AnovaSpec, Omnibus};
+use crate::doc::{Block, Document};
+use crate::stats::assumptions::{
+    Center, OUTLIER_THRESHOLD, bartlett, levene, shapiro_wilk, skewness_kurtosis,
+};
+use crate::stats::compare::{Method, pairwise_with_se};
+use crate::stats::dist::{f_isf, f_sf, t_isf};
+use crate::stats::effect::noncentrality_interval;
+use crate::stats::letters::compact_letters;
+use crate::stats::linear::{
+    Layout, SsTable, SsType, TermFactors, design_matrix, fit, grid_average, sums_of_squares,
+    term_columns,
+};
+use crate::stats::oneway::GroupSummary;
+use crate::stats::sum::neumaier;
+
+/// One row of the factorial ANOVA table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TermRow {
+    /// Factor names joined by `:` (`wool:tension`).
+    pub name: String,
+    pub factors: Vec<usize>,
+    pub df: usize,
+    pub ss: f64,
+    pub ms: f64,
+    pub f: f64,
+    pub p: f64,
+    pub f_crit: f64,
+    pub partial_eta_sq: f64,
+    pub partial_omega_sq: f64,
+    pub partial_eta_sq_ci: (f64, f64),
+    /// A declared blocking factor: reported, never compared.
+    pub is_block: bool,
+}
+
+/// Observed data in one cell (one combination of every factor's levels).
+#[derive(Debug, Clone, PartialEq)]
+pub struct CellRow {
+    pub levels: Vec<usize>,
+    pub n: usize,
+    pub mean: f64,
+    pub sd: f64,
+}
+
+/// An estimated marginal (or cell) mean.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EmmRow {
+    pub label: String,
+    pub n: usize,
+    pub mean: f64,
+    pub se: f64,
+    pub ci_lower: f64,
+    pub ci_upper: f64,
+}
+
+/// One family of comparisons: a main effect, a slice of one (`within`), or all cells.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Family {
+    /// The compared factor's name, or `cells`.
+    pub term: String,
+    /// `Some("B=level")` for simple effects.
+    pub within: Option<String>,
+    pub means: Vec<EmmRow>,
+    pub comparison: ComparisonResult,
+}
+
+/// Everything computed for a factorial `anova` block.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FactorialResult {
+    pub id: String,
+    pub line: usize,
+    pub data: String,
+    pub response: String,
+    pub factors: Vec<String>,
+    pub levels: Vec<Vec<String>>,
+    pub alpha: f64,
+    pub ss_type: SsType,
+    /// False when the three SS types give different tables (unbalanced data).
+    pub types_agree: bool,
+    pub terms: Vec<TermRow>,
+    pub residual_df: usize,
+    pub residual_ss: f64,
+    pub mse: f64,
+    pub total_ss: f64,
+    pub r_squared: f64,
+    pub n: usize,
+    pub exclusions: Vec<crate::data::Exclusion>,
+    pub cells: Vec<CellRow>,
+    pub families: Vec<Family>,
+    pub checks: Checks,
+    pub warnings: Vec<String>,
+    pub decimals: u32,
+    pub caption: Option<String>,
+    pub order: crate::doc::block::Order,
+    pub show: crate::doc::block::Show,
+}
+
+/// Term label for people: `wool × tension`.
+pub fn term_label(name: &str) -> String {
+    name.replace(':', " × ")
+}
+
+fn ss_name(t: SsType) -> &'static str {
+    match t {
+        SsType::I => "Type I (sequential)",
+        SsType::II => "Type II",
+        SsType::III => "Type III",
+    }
+}
+
+/// Every combination of the given factors' levels, first factor slowest.
+fn combinations(factors: &[usize], levels: &[usize]) -> Vec<Vec<usize>> {
+    let mut out = vec![Vec::new()];
+    for &f in factors {
+        out = out
+            .into_iter()
+            .flat_map(|prefix| (0..levels[f]).map(move |l| [prefix.clone(), vec![l]].concat()))
+            .collect();
+    }
+    out
+}
+
+/// Runs a factorial `anova` block.
+pub fn run_factorial(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    input: &Input,
+    display_path: &str,
+) -> Result<FactorialResult, Diagnostic> {
+    let formula = &spec.model.value;
+    let model_err = |msg: String, hint: &str| {
+        doc.error_at(spec.model.line, Some(spec.model.column), msg)
+            .hint(hint.to_string())
+    };
+    if spec.method != Omnibus::Anova {
+        return Err(model_err(
+            format!("`method: {}` is for one-factor models", spec.method.key()),
+            "factorial and block designs use the F tests of the linear model; remove `method`",
+        ));
+    }
+    if let Some(m) = spec
+        .compare
+        .filter(|m| matches!(m, Method::Dunnett | Method::GamesHowell | Method::Dunn))
+    {
+        return Err(model_err(
+            format!(
+                "`compare: {}` is available for one-factor models only",
+                m.key()
+            ),
+            "in factorial designs use tukey, lsd, bonferroni, sidak, holm or scheffe",
+        ));
+    }
+    if let Some(l) = &spec.levels {
+        return Err(doc
+            .error_at(
+                l.line,
+                Some(l.column),
+                "`levels` applies to one-factor models",
+            )
+            .hint("in factorial designs levels keep their order of first appearance in the data"));
+    }
+    if spec.summary.is_some() {
+        return Err(model_err(
+            "`input: summary` applies to one-factor models".into(),
+            "factorial designs need one row per observation",
+        ));
+    }
+    let factor_names: Vec<String> = formula.factors().iter().map(|s| s.to_string()).collect();
+    let index_of = |name: &str| factor_names.iter().position(|f| f == name);
+    let blocks: Vec<usize> = match &spec.blocks {
+        None => Vec::new(),
+        Some(b) => b
+            .value
+            .iter()
+            .map(|name| {
+                index_of(name).ok_or_else(|| {
+                    doc.error_at(
+                        b.line,
+                        Some(b.column),
+                        format!("`{name}` is not a factor of the model"),
+                    )
+                    .hint(format!(
+                        "the model's factors are {}",
+                        factor_names.join(", ")
+                    ))
+                })
+            })
+            .collect::<Result<_, _>>()?,
+    };
+    let terms: Vec<TermFactors> = formula
+        .terms
+        .iter()
+        .map(|t| t.factors.iter().filter_map(|f| index_of(f)).collect())
+        .collect();
+    let term_names: Vec<String> = formula.terms.iter().map(|t| t.to_string()).collect();
+
+    let table = Table::parse(&input.bytes, &spec.csv)
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();
+    let data = factorial_response(&table, &formula.response, &names, &spec.csv)
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
+    if let Some(f) = levels.iter().position(|&l| l < 2) {
+        return Err(model_err(
+            format!(
+                "`{}` has {} level(s) with data; a factor needs two or more",
+                factor_names[f], levels[f]
+            ),
+            "check the factor column and the missing-value markers",
+        ));
+    }
+    let n = data.offsets.len();
+    let layout = Layout {
+        levels: levels.clone(),
+        rows: data.rows.clone(),
+    };
+    let alpha = spec.alpha.unwrap_or(doc.front.alpha);
+    let mut warnings = Vec::new();
+
+    // Cells of every interaction term that have no observation.
+    let mut empty: Vec<String> = Vec::new();
+    for t in terms.iter().filter(|t| t.len() > 1) {
+        for combo in combinations(t, &levels) {
+            let present = data
+                .rows
+                .iter()
+                .any(|r| t.iter().zip(&combo).all(|(&f, &l)| r[f] == l));
+            if !present {
+                let label = t
+                    .iter()
+                    .zip(&combo)
+                    .map(|(&f, &l)| format!("{}={}", factor_names[f], data.levels[f][l]))
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                if !empty.contains(&label) {
+                    empty.push(label);
+                }
+            }
+        }
+    }
+
+    let design = design_matrix(&layout, &terms);
+    let ranges = term_columns(&terms, &levels);
+    let full = fit(&design, &data.offsets);
+    let residual_df = n - full.rank;
+    if residual_df == 0 {
+        let has_interaction = terms.iter().any(|t| t.len() > 1);
+        let d = model_err(
+            "no residual degrees of freedom: the model uses up every observation".into(),
+            if has_interaction {
+                "with one observation per cell the interaction cannot be tested; fit the additive model, e.g. `y ~ A + B`"
+            } else {
+                "add replicates, or fit fewer terms"
+            },
+        );
+        return Err(d);
+    }
+    let rank_deficient = full.kept.iter().any(|k| !k);
+    let ss_type = spec.ss_type.as_ref().map_or(SsType::III, |l| l.value);
+    if rank_deficient && ss_type == SsType::III {
+        let at = spec.ss_type.as_ref().map_or(spec.model.line, |l| l.line);
+        return Err(doc
+            .error_at(at, None, format!("Type III sums of squares are not estimable: {} cell(s) have no data ({})", empty.len(), empty.join("; ")))
+            .hint("use `ss: 2` (each term adjusted for the terms that do not contain it), or drop the interaction from the model"));
+    }
+    let tables: Vec<(SsType, SsTable)> = [SsType::I, SsType::II, SsType::III]
+        .into_iter()
+        .filter(|t| !(rank_deficient && *t == SsType::III))
+        .map(|t| {
+            (
+                t,
+                sums_of_squares(&design, &data.offsets, &terms, &ranges, t),
+            )
+        })
+        .collect();
+    let chosen = tables
+        .iter()
+        .find(|(t, _)| *t == ss_type)
+        .map(|(_, s)| s.clone())
+        .unwrap_or_else(|| tables[0].1.clone());
+    let types_agree = tables.iter().all(|(_, t)| {
+        t.terms.iter().zip(&chosen.terms).all(|(a, b)| {
+            (a.ss - b.ss).abs() <= 1e-9 * b.ss.abs().max(1e-300) || (a.ss - b.ss).abs() < 1e-12
+        })
+    });
+    if let Some(i) = chosen.terms.iter().position(|t| t.df == 0) {
+        return Err(model_err(
+            format!(
+                "the term `{}` is not estimable: every one of its columns is determined by earlier terms",
+                term_names[i]
+            ),
+            "check that the factors really cross (each combination of levels occurs), or remove the term",
+        ));
+    }
+    let mse = full.rss / residual_df as f64;
+    let nu = residual_df as f64;
+    let rows: Vec<TermRow> = chosen
+        .terms
+        .iter()
+        .enumerate()
+        .map(|(i, t)| {
+            let df = t.df as f64;
+            let ms = t.ss / df;
+            let f = ms / mse;
+            let (lo, hi) = noncentrality_interval(f, df, nu, 1.0 - alpha);
+            let to_eta = |lambda: f64| lambda / (lambda + df + nu + 1.0);
+            TermRow {
+                name: term_names[i].clone(),
+                factors: terms[i].clone(),
+                df: t.df,
+                ss: t.ss,
+                ms,
+                f,
+                p: f_sf(f, df, nu),
+                f_crit: f_isf(alpha, df, nu),
+                partial_eta_sq: t.ss / (t.ss + full.rss),
+                partial_omega_sq: df * (ms - mse) / (df * ms + (n as f64 - df) * mse),
+                partial_eta_sq_ci: (to_eta(lo), to_eta(hi)),
+                is_block: terms[i].len() == 1 && blocks.contains(&terms[i][0]),
+            }
+        })
+        .collect();
+    let total_ss = GroupSummary::from_values(&data.offsets).ss;
+
+    if !types_agree {
+        warnings.push(format!(
+            "The data are unbalanced, so Types I, II and III sums of squares differ; this table uses {}.",
+            ss_name(ss_type)
+        ));
+    }
+    if !empty.is_empty() {
+        warnings.push(format!(
+            "{} combination(s) of levels have no observations ({}); {}",
+            empty.len(),
+            empty.join("; "),
+            if rank_deficient {
+                "the interaction is estimated only from the cells with data, and marginal means cannot be estimated"
+            } else {
+                "the additive model estimates them from the other cells"
+            }
+        ));
+    }
+    if rows.iter().any(|r| r.is_block) {
+        warnings.push("Blocks are reported but not tested for their own sake: blocks are not randomized, so their F is not a valid test (Montgomery, ch. 4).".into());
+    }
+
+    // Observed cells over every factor.
+    let all_factors: Vec<usize> = (0..levels.len()).collect();
+    let cells: Vec<CellRow> = combinations(&all_factors, &levels)
+        .into_iter()
+        .map(|combo| {
+            let values: Vec<f64> = data
+                .rows
+                .iter()
+                .zip(&data.offsets)
+                .filter(|(r, _)| **r == combo)
+                .map(|(_, y)| *y)
+                .collect();
+            let s = GroupSummary::from_values(&values);
+            CellRow {
+                levels: combo,
+                n: s.n,
+                mean: data.origin + s.mean,
+                sd: s.variance().sqrt(),
+            }
+        })
+        .collect();
+
+    // Residuals, leverage and checks.
+    let kept_design: Vec<Vec<f64>> = design
+        .iter()
+        .zip(&full.kept)
+        .filter(|(_, k)| **k)
+        .map(|(c, _)| c.clone())
+        .collect();
+    let b = full.coefficients();
+    let cov = full.unscaled_covariance();
+    let row_of = |i: usize| -> Vec<f64> { kept_design.iter().map(|c| c[i]).collect() };
+    let residuals: Vec<f64> = (0..n)
+        .map(|i| data.offsets[i] - neumaier(row_of(i).iter().zip(&b).map(|(x, b)| x * b)))
+        .collect();
+    let leverage: Vec<f64> = (0..n)
+        .map(|i| {
+            let x = row_of(i);
+            neumaier((0..x.len()).map(|a| x[a] * neumaier((0..x.len()).map(|c| cov[a][c] * x[c]))))
+        })
+        .collect();
+    let cell_groups: Vec<Vec<f64>> = cells
+        .iter()
+        .filter(|c| c.n > 0)
+        .map(|c| {
+            data.rows
+                .iter()
+                .zip(&data.offsets)
+                .filter(|(r, _)| **r == c.levels)
+                .map(|(_, y)| *y)
+                .collect()
+        })
+        .collect();
+    let group_refs: Vec<&[f64]> = cell_groups.iter().map(Vec::as_slice).collect();
+    let group_summaries: Vec<GroupSummary> = cell_groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    let replicated = cell_groups.iter().all(|g| g.len() >= 2);
+    let (skewness, excess_kurtosis) = skewness_kurtosis(&residuals);
+    let mut warnings_note: Vec<String> = Vec::new();
+    let mut outliers = Vec::new();
+    for i in 0..n {
+        let h = leverage[i];
+        if h >= 1.0 - 1e-12 || residual_df < 2 {
+            continue;
+        }
+        let r = residuals[i] / (mse * (1.0 - h)).sqrt();
+        let t = r * ((nu - 1.0) / (nu - r * r)).max(0.0).sqrt();
+        if t.abs() > OUTLIER_THRESHOLD {
+            let label = data.rows[i]
+                .iter()
+                .enumerate()
+                .map(|(f, &l)| data.levels[f][l].clone())
+                .collect::<Vec<_>>()
+                .join(" × ");
+            outliers.push(OutlierRow {
+                line: data.lines[i],
+                level: label,
+                value: data.origin + data.offsets[i],
+                studentized_residual: t,
+            });
+        }
+    }
+    let mut checks = summary_checks(&group_summaries, spec.checks);
+    checks.from_summary = false;
+    if replicated {
+        checks.brown_forsythe = levene(&group_refs, Center::Median);
+        checks.levene = levene(&group_refs, Center::Mean);
+        checks.bartlett = bartlett(&group_summaries);
+    } else {
+        // Unreplicated cells (blocks): compare the spread of the residuals
+        // across the levels of the first treatment factor instead.
+        let treatment = (0..levels.len()).find(|f| !blocks.contains(f)).unwrap_or(0);
+        let by_level: Vec<Vec<f64>> = (0..levels[treatment])
+            .map(|l| {
+                (0..n)
+                    .filter(|&i| data.rows[i][treatment] == l)
+                    .map(|i| residuals[i])
+                    .collect()
+            })
+            .collect();
+        let refs: Vec<&[f64]> = by_level.iter().map(Vec::as_slice).collect();
+        let sums: Vec<GroupSummary> = by_level
+            .iter()
+            .map(|g| GroupSummary::from_values(g))
+            .collect();
+        checks.brown_forsythe = levene(&refs, Center::Median);
+        checks.levene = levene(&refs, Center::Mean);
+        checks.bartlett = bartlett(&sums);
+        warnings_note.push(format!(
+            "With one observation per cell, the variance checks compare the residuals' spread across the levels of `{}`.",
+            factor_names[treatment]
+        ));
+    }
+    checks.shapiro_wilk = shapiro_wilk(&residuals);
+    checks.skewness = skewness;
+    checks.excess_kurtosis = excess_kurtosis;
+    checks.outliers = outliers;
+    warnings.extend(warnings_note);
+    warnings.extend(factorial_advice(&checks, alpha, data.decimals));
+
+    // Comparisons.
+    let t_crit = t_isf(alpha / 2.0, nu);
+    let mut families = Vec::new();
+    if let Some(method) = spec.compare {
+        let compare: Vec<usize> = match &spec.compare_terms {
+            Some(c) => c
+                .value
+                .iter()
+                .map(|name| match index_of(name) {
+                    Some(i) if !blocks.contains(&i) => Ok(i),
+                    Some(_) => Err(doc.error_at(
+                        c.line,
+                        Some(c.column),
+                        format!("`{name}` is a block; blocks are not compared"),
+                    )),
+                    None => Err(doc
+                        .error_at(
+                            c.line,
+                            Some(c.column),
+                            format!("`{name}` is not a factor of the model"),
+                        )
+                        .hint(format!(
+                            "the model's factors are {}",
+                            factor_names.join(", ")
+                        ))),
+                })
+                .collect::<Result<_, _>>()?,
+            None => (0..factor_names.len())
+                .filter(|f| !blocks.contains(f) && terms.iter().any(|t| t == &vec![*f]))
+                .collect(),
+        };
+        let within = match &spec.within {
+            None => None,
+            Some(w) => match index_of(&w.value) {
+                Some(i) => Some(i),
+                None => {
+                    return Err(doc
+                        .error_at(
+                            w.line,
+                            Some(w.column),
+                            format!("`{}` is not a factor of the model", w.value),
+                        )
+                        .hint(format!(
+                            "the model's factors are {}",
+                            factor_names.join(", ")
+                        )));
+                }
+            },
+        };
+        let cells_wanted = spec.cells.as_ref().is_some_and(|c| c.value);
+        let marginal_wanted = !cells_wanted || spec.compare_terms.is_some() || within.is_some();
+        if marginal_wanted && rank_deficient {
+            return Err(model_err(
+                "marginal means cannot be estimated with empty cells and an interaction in the model".into(),
+                "compare observed cell means with `cells: yes`, or drop the interaction",
+            ));
+        }
+        let emm = |fixed: &[Option<usize>]| -> (f64, f64, Vec<f64>) {
+            let l = grid_average(&terms, &levels, fixed);
+            let (v, var) = full.estimate(&l, &cov, &b).unwrap_or((f64::NAN, f64::NAN));
+            (v, var, l)
+        };
+        let diff_se = |la: &[f64], lb: &[f64]| -> f64 {
+            let d: Vec<f64> = la.iter().zip(lb).map(|(a, b)| a - b).collect();
+            let dummy = vec![0.0; d.len()];
+            let (_, var) = full
+                .estimate(&d, &cov, &dummy)
+                .unwrap_or((f64::NAN, f64::NAN));
+            (mse * var).sqrt()
+        };
+        if marginal_wanted {
+            for &f in compare.iter().filter(|f| Some(**f) != within) {
+                let slices: Vec<Option<usize>> = match within {
+                    Some(w) => (0..levels[w]).map(Some).collect(),
+                    None => vec![None],
+                };
+                for slice in slices {
+                    let mut estimates = Vec::new();
+                    for l in 0..levels[f] {
+                        let mut fixed = vec![None; levels.len()];
+                        fixed[f] = Some(l);
+                        if let (Some(w), Some(s)) = (within, slice) {
+                            fixed[w] = Some(s);
+                        }
+                        estimates.push(emm(&fixed));
+                    }
+                    let count = |l: usize| {
+                        data.rows
+                            .iter()
+                            .filter(|r| {
+                                r[f] == l
+                                    && match (within, slice) {
+                                        (Some(w), Some(s)) => r[w] == s,
+                                        _ => true,
+                                    }
+                            })
+                            .count()
+                    };
+                    let means: Vec<EmmRow> = estimates
+                        .iter()
+                        .enumerate()
+                        .map(|(l, (v, var, _))| {
+                            let se = (mse * var).sqrt();
+                            let mean = data.origin + v;
+                            EmmRow {
+                                label: data.levels[f][l].clone(),
+                                n: count(l),
+                                mean,
+                                se,
+                                ci_lower: mean - t_crit * se,
+                                ci_upper: mean + t_crit * se,
+                            }
+                        })
+                        .collect();
+                    let offsets: Vec<f64> = estimates.iter().map(|e| e.0).collect();
+                    let fam = pairwise_with_se(
+                        &offsets,
+                        |a, bb| diff_se(&estimates[a].2, &estimates[bb].2),
+                        nu,
+                        alpha,
+                        method,
+                    );
+                    let protect_p = rows
+                        .iter()
+                        .find(|r| r.factors == vec![f])
+                        .map_or(f64::NAN, |r| r.p);
+                    let within_label = match (within, slice) {
+                        (Some(w), Some(s)) => {
+                            Some(format!("{}={}", factor_names[w], data.levels[w][s]))
+                        }
+                        _ => None,
+                    };
+                    families.push(make_family(
+                        &factor_names[f],
+                        within_label,
+                        means,
+                        fam,
+                        method,
+                        spec.protected && within.is_none(),
+                        protect_p,
+                        alpha,
+                    ));
+                }
+            }
+        }
+        if cells_wanted {
+            let treatment: Vec<usize> = (0..factor_names.len())
+                .filter(|f| !blocks.contains(f))
+                .collect();
+            let full_interaction = terms
+                .iter()
+                .any(|t| t.len() == treatment.len() && treatment.iter().all(|f| t.contains(f)));
+            if !full_interaction || !blocks.is_empty() {
+                let c = spec.cells.as_ref().map_or(spec.model.line, |c| c.line);
+                return Err(doc
+                    .error_at(c, None, "`cells` compares cell means, which needs the model with all interactions and no blocks")
+                    .hint("write the model as `y ~ A * B`, or compare marginal means with `within`"));
+            }
+            let present: Vec<&CellRow> = cells.iter().filter(|c| c.n > 0).collect();
+            let means: Vec<EmmRow> = present
+                .iter()
+                .map(|c| {
+                    let se = (mse / c.n as f64).sqrt();
+                    let label = c
+                        .levels
+                        .iter()
+                        .enumerate()
+                        .map(|(f, &l)| data.levels[f][l].clone())
+                        .collect::<Vec<_>>()
+                        .join(" × ");
+                    EmmRow {
+                        label,
+                        n: c.n,
+                        mean: c.mean,
+                        se,
+                        ci_lower: c.mean - t_crit * se,
+                        ci_upper: c.mean + t_crit * se,
+                    }
+                })
+                .collect();
+            let offsets: Vec<f64> = present.iter().map(|c| c.mean - data.origin).collect();
+            let fam = pairwise_with_se(
+                &offsets,
+                |a, bb| (mse * (1.0 / present[a].n as f64 + 1.0 / present[bb].n as f64)).sqrt(),
+                nu,
+                alpha,
+                method,
+            );
+            families.push(make_family(
+                "cells",
+                None,
+                means,
+                fam,
+                method,
+                false,
+                f64::NAN,
+                alpha,
+            ));
+        }
+        let interaction_significant = rows.iter().any(|r| r.factors.len() > 1 && r.p < alpha);
+        if interaction_significant && within.is_none() && !cells_wanted {
+            let inter = rows
+                .iter()
+                .find(|r| r.factors.len() > 1 && r.p < alpha)
+                .map_or(String::new(), |r| term_label(&r.name));
+            let other = rows
+                .iter()
+                .find(|r| r.factors.len() > 1 && r.p < alpha)
+                .and_then(|r| r.factors.get(1))
+                .map_or("B".to_string(), |&f| factor_names[f].clone());
+            warnings.push(format!(
+                "The {inter} interaction is significant at α = {alpha}: comparisons of main-effect means averaged over the other factor may mislead. Compare within each level with `within: {other}`, or compare all cells with `cells: yes`."
+            ));
+        }
+    }
+    let decimals = spec
+        .decimals
+        .or(doc.front.decimals)
+        .unwrap_or((data.decimals + 1).min(6));
+    Ok(FactorialResult {
+        id: block.id.clone(),
+        line: block.line,
+        data: input.path.clone(),
+        response: formula.response.clone(),
+        factors: factor_names,
+        levels: data.levels,
+        alpha,
+        ss_type,
+        types_agree,
+        terms: rows,
+        residual_df,
+        residual_ss: full.rss,
+        mse,
+        total_ss,
+        r_squared: 1.0 - full.rss / total_ss,
+        n,
+        exclusions: data.excluded,
+        cells,
+        families,
+        checks,
+        warnings,
+        decimals,
+        caption: spec.caption.clone(),
+        order: spec.order,
+        show: spec.show,
+    })
+}
+
+/// Plain-language advice for factorial designs, where Welch and rank methods
+/// are not available: the remedy offered is a transformation.
+fn factorial_advice(checks: &Checks, alpha: f64, decimals: u32) -> Vec<String> {
+    let p3 = crate::render::format::p_phrase;
+    let mut out = Vec::new();
+    if let Some(bf) = checks.brown_forsythe.filter(|t| t.p < alpha) {
+        out.push(format!(
+            "The variances differ (Brown-Forsythe {}). F tests in factorial designs tolerate this best with equal cell sizes; consider a variance-stabilizing transformation of the response (logarithm or square root for counts and yields).",
+            p3(bf.p)
+        ));
+    }
+    if let Ok(sw) = checks.shapiro_wilk.as_ref() {
+        if sw.p < alpha {
+            out.push(format!(
+                "The residuals depart from a normal distribution (Shapiro-Wilk W = {:.3}, {}); look at how they depart and consider a transformation of the response.",
+                sw.w,
+                p3(sw.p)
+            ));
+        }
+    }
+    out.extend(
+        checks
+            .advice(Omnibus::Ranks, alpha, decimals)
+            .into_iter()
+            .filter(|w| w.starts_with("The observation on line")),
+    );
+    out
+}
+
+#[allow(clippy::too_many_arguments)]
+fn make_family(
+    term: &str,
+    within: Option<String>,
+    means: Vec<EmmRow>,
+    mut fam: crate::stats::compare::Pairwise,
+    method: Method,
+    protected: bool,
+    protect_p: f64,
+    alpha: f64,
+) -> Family {
+    let mut notes = Vec::new();
+    let mut withheld = false;
+    if method == Method::Lsd {
+        if protected && (protect_p.is_nan() || protect_p >= alpha) {
+            withheld = true;
+            for p in &mut fam.pairs {
+                p.significant = false;
+            }
+            notes.push(format!("Fisher's protected LSD: the F test for `{term}` was not significant at α = {alpha}, so no pair is declared different."));
+        } else if !protected {
+            notes.push("Unprotected LSD: pairs were tested whatever the F tests showed.".into());
+        }
+    }
+    if method == Method::Holm {
+        notes.push("Holm's procedure has no matching simultaneous intervals; the intervals shown are Bonferroni's.".into());
+    }
+    let k = means.len();
+    let mut different = vec![vec![false; k]; k];
+    for p in &fam.pairs {
+        different[p.a][p.b] = p.significant;
+        different[p.b][p.a] = p.significant;
+    }
+    let values: Vec<f64> = means.iter().map(|m| m.mean).collect();
+    let letters = compact_letters(&values, |i, j| different[i][j]);
+    Family {
+        term: term.to_string(),
+        within,
+        means,
+        comparison: ComparisonResult {
+            method,
+            alpha,
+            pairs: fam.pairs,
+            letters,
+            critical: fam.critical,
+            control: None,
+            sides: crate::stats::dunnett::Sides::Two,
+            withheld,
+            notes,
+        },
+    }
+}
