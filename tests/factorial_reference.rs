@@ -250,3 +250,105 @@ fn textbook_designs_reproduce_their_printed_tables() {
     assert!((t.terms[2].ss - 150.0).abs() < 1e-9 && (t.rss - 128.0).abs() < 1e-9);
     assert!(((330.0 / 4.0) / (128.0 / 12.0) - 7.73f64).abs() < 5e-3);
 }
+
+struct Memory(Vec<(&'static str, Vec<u8>)>);
+
+impl sheaf::compile::World for Memory {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        self.0
+            .iter()
+            .find(|(p, _)| *p == path)
+            .map(|(_, b)| b.clone())
+            .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
+    }
+    fn display(&self, path: &str) -> String {
+        path.to_string()
+    }
+}
+
+#[test]
+fn documents_compare_marginal_means_like_the_reference() {
+    // Tukey-Kramer on estimated marginal means: p from the reference script's
+    // own EMM contrasts and scipy's studentized range (1e-8, the ptukey bar).
+    for (name, doc) in [
+        (
+            "warp_unbalanced",
+            "```anova\nid: t\ndata: d.csv\nmodel: breaks ~ wool * tension\ncompare: tukey\nss: 3\n```\n",
+        ),
+        (
+            "immer",
+            "```anova\nid: t\ndata: d.csv\nmodel: Y1 ~ Var + Loc\nblock: Loc\ncompare: tukey\n```\n",
+        ),
+    ] {
+        let case = cases()
+            .into_iter()
+            .find(|c| c["name"] == name)
+            .expect("case");
+        let path = format!(
+            "{}/{}",
+            env!("CARGO_MANIFEST_DIR"),
+            case["csv"].as_str().expect("csv")
+        );
+        let world = Memory(vec![("d.csv", std::fs::read(path).expect("data"))]);
+        let built = sheaf::compile::compile(
+            "report.md",
+            doc.as_bytes(),
+            &world,
+            sheaf::render::Format::Html,
+        )
+        .expect("builds");
+        let r: Value = serde_json::from_slice(&built.results).expect("results");
+        let block = &r["blocks"][0];
+        assert_eq!(block["ss_type"], 3);
+        for fam in block["comparisons"].as_array().expect("families") {
+            let term = fam["term"].as_str().expect("term");
+            assert!(fam["within"].is_null());
+            let want = &case["emms"][term];
+            for (got, w) in fam["means"]
+                .as_array()
+                .expect("means")
+                .iter()
+                .zip(want["means"].as_array().expect("means"))
+            {
+                assert_eq!(got["level"], w["level"]);
+                assert!(
+                    close(num(&got["mean"]), num(&w["emm"])),
+                    "{name} {term} emm"
+                );
+                assert!(close(num(&got["se"]), num(&w["se"])), "{name} {term} se");
+            }
+            for (got, w) in fam["pairs"]
+                .as_array()
+                .expect("pairs")
+                .iter()
+                .zip(want["pairs"].as_array().expect("pairs"))
+            {
+                assert_eq!(
+                    (got["a"].as_str(), got["b"].as_str()),
+                    (w["a"].as_str(), w["b"].as_str())
+                );
+                assert!(close(num(&got["diff"]), num(&w["diff"])), "{name} diff");
+                assert!(close(num(&got["se"]), num(&w["se"])), "{name} se");
+                assert!(
+                    (num(&got["p_adj"]) - num(&w["tukey_p"])).abs() < 1e-8,
+                    "{name} {term} p"
+                );
+            }
+        }
+        // Contract fields of factorial blocks.
+        assert!(
+            block["cells"]
+                .as_array()
+                .expect("cells")
+                .iter()
+                .all(|c| c.get("levels").is_some() && c.get("n").is_some())
+        );
+        let terms: Vec<&str> = block["anova"]["terms"]
+            .as_array()
+            .expect("terms")
+            .iter()
+            .map(|t| t["term"].as_str().expect("t"))
+            .collect();
+        assert_eq!(terms.len(), case["terms"].as_array().expect("terms").len());
+    }
+}

@@ -356,6 +356,9 @@ def factorial():
                        ["wool", "tension"], "additive model on the empty-cell data", [0, 1]),
         factorial_case("immer", data / "open" / "immer.csv", [[0], [1]], "Y1", ["Var", "Loc"],
                        "Immer et al. (1934) barley, randomized complete blocks", [0]),
+        factorial_case("three_factor", data / "invented" / "three-factor.csv",
+                       [[0], [1], [2], [0, 1], [0, 2], [1, 2], [0, 1, 2]], "y", ["fert", "water", "cultivar"],
+                       "invented 2 x 2 x 3, unequal replication", [0, 2]),
     ]
     return {"generator": "tests/reference/generate.py", "statsmodels": statsmodels.__version__,
             "coding": "sum-to-zero (C(x, Sum)), levels in order of first appearance", "cases": cases}
