@@ -229,10 +229,10 @@ fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> Factoria
             .iter()
             .map(|c| CellRecord {
                 levels: Letters(
-                    c.levels
+                    r.cell_factors
                         .iter()
-                        .enumerate()
-                        .map(|(f, &l)| (r.factors[f].clone(), r.levels[f][l].clone()))
+                        .zip(&c.levels)
+                        .map(|(&f, &l)| (r.factors[f].clone(), r.levels[f][l].clone()))
                         .collect(),
                 ),
                 n: c.n,

@@ -40,7 +40,7 @@ pub struct TermRow {
     pub is_block: bool,
 }
 
-/// Observed data in one cell (one combination of every factor's levels).
+/// Observed data in one cell (one combination of the treatment factors' levels).
 #[derive(Debug, Clone, PartialEq)]
 pub struct CellRow {
     pub levels: Vec<usize>,
@@ -93,6 +93,8 @@ pub struct FactorialResult {
     pub n: usize,
     pub exclusions: Vec<crate::data::Exclusion>,
     pub cells: Vec<CellRow>,
+    /// The factors a cell's `levels` refer to: every factor but the blocks.
+    pub cell_factors: Vec<usize>,
     pub families: Vec<Family>,
     pub checks: Checks,
     pub warnings: Vec<String>,
@@ -352,16 +354,18 @@ pub fn run_factorial(
         warnings.push("Blocks are reported but not tested for their own sake: blocks are not randomized, so their F is not a valid test (Montgomery, ch. 4).".into());
     }
 
-    // Observed cells over every factor.
-    let all_factors: Vec<usize> = (0..levels.len()).collect();
-    let cells: Vec<CellRow> = combinations(&all_factors, &levels)
+    // Observed cells over the treatment factors (blocks left out).
+    let treatment: Vec<usize> = (0..levels.len()).filter(|f| !blocks.contains(f)).collect();
+    let in_cell =
+        |row: &[usize], combo: &[usize]| treatment.iter().zip(combo).all(|(&f, &l)| row[f] == l);
+    let cells: Vec<CellRow> = combinations(&treatment, &levels)
         .into_iter()
         .map(|combo| {
             let values: Vec<f64> = data
                 .rows
                 .iter()
                 .zip(&data.offsets)
-                .filter(|(r, _)| **r == combo)
+                .filter(|(r, _)| in_cell(r, &combo))
                 .map(|(_, y)| *y)
                 .collect();
             let s = GroupSummary::from_values(&values);
@@ -393,15 +397,15 @@ pub fn run_factorial(
             neumaier((0..x.len()).map(|a| x[a] * neumaier((0..x.len()).map(|c| cov[a][c] * x[c]))))
         })
         .collect();
+    // Variance checks on the residuals grouped by treatment cell: within a
+    // cell of the full model these are the observations less a constant.
     let cell_groups: Vec<Vec<f64>> = cells
         .iter()
         .filter(|c| c.n > 0)
         .map(|c| {
-            data.rows
-                .iter()
-                .zip(&data.offsets)
-                .filter(|(r, _)| **r == c.levels)
-                .map(|(_, y)| *y)
+            (0..n)
+                .filter(|&i| in_cell(&data.rows[i], &c.levels))
+                .map(|i| residuals[i])
                 .collect()
         })
         .collect();
@@ -445,11 +449,11 @@ pub fn run_factorial(
     } else {
         // Unreplicated cells (blocks): compare the spread of the residuals
         // across the levels of the first treatment factor instead.
-        let treatment = (0..levels.len()).find(|f| !blocks.contains(f)).unwrap_or(0);
-        let by_level: Vec<Vec<f64>> = (0..levels[treatment])
+        let first = treatment.first().copied().unwrap_or(0);
+        let by_level: Vec<Vec<f64>> = (0..levels[first])
             .map(|l| {
                 (0..n)
-                    .filter(|&i| data.rows[i][treatment] == l)
+                    .filter(|&i| data.rows[i][first] == l)
                     .map(|i| residuals[i])
                     .collect()
             })
@@ -463,8 +467,8 @@ pub fn run_factorial(
         checks.levene = levene(&refs, Center::Mean);
         checks.bartlett = bartlett(&sums);
         warnings_note.push(format!(
-            "With one observation per cell, the variance checks compare the residuals' spread across the levels of `{}`.",
-            factor_names[treatment]
+            "With one observation per treatment cell, the variance checks compare the residuals' spread across the levels of `{}`.",
+            factor_names[first]
         ));
     }
     checks.shapiro_wilk = shapiro_wilk(&residuals);
@@ -620,28 +624,24 @@ pub fn run_factorial(
             }
         }
         if cells_wanted {
-            let treatment: Vec<usize> = (0..factor_names.len())
-                .filter(|f| !blocks.contains(f))
-                .collect();
             let full_interaction = terms
                 .iter()
                 .any(|t| t.len() == treatment.len() && treatment.iter().all(|f| t.contains(f)));
-            if !full_interaction || !blocks.is_empty() {
+            if !full_interaction || (!blocks.is_empty() && !types_agree) {
                 let c = spec.cells.as_ref().map_or(spec.model.line, |c| c.line);
                 return Err(doc
-                    .error_at(c, None, "`cells` compares cell means, which needs the model with all interactions and no blocks")
-                    .hint("write the model as `y ~ A * B`, or compare marginal means with `within`"));
+                    .error_at(c, None, "`cells` compares cell means, which needs the model with all interactions of the treatment factors (and complete blocks)")
+                    .hint("write the model as `y ~ A * B` (plus any blocks), or compare marginal means with `within`"));
             }
             let present: Vec<&CellRow> = cells.iter().filter(|c| c.n > 0).collect();
             let means: Vec<EmmRow> = present
                 .iter()
                 .map(|c| {
                     let se = (mse / c.n as f64).sqrt();
-                    let label = c
-                        .levels
+                    let label = treatment
                         .iter()
-                        .enumerate()
-                        .map(|(f, &l)| data.levels[f][l].clone())
+                        .zip(&c.levels)
+                        .map(|(&f, &l)| data.levels[f][l].clone())
                         .collect::<Vec<_>>()
                         .join(" × ");
                     EmmRow {
@@ -712,6 +712,7 @@ pub fn run_factorial(
         n,
         exclusions: data.excluded,
         cells,
+        cell_factors: treatment,
         families,
         checks,
         warnings,

@@ -1002,7 +1002,7 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             numbers.next(),
         ));
     }
-    if r.show.means && r.cells.iter().any(|c| c.n > 1) {
+    if r.show.means && r.cell_factors.len() >= 2 && r.cells.iter().any(|c| c.n > 1) {
         tables.push(cell_table(r, numbers.next()));
     }
     let mut notes = Vec::new();
@@ -1145,13 +1145,13 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
 /// holds a single observation: that table would be the data themselves.)
 fn cell_table(r: &FactorialResult, number: usize) -> TableView {
     let d = r.decimals;
+    let cf = &r.cell_factors;
     let cell_letters = r.families.iter().find(|f| f.term == "cells");
     let letters_of = |c: &crate::analysis::factorial::CellRow| -> String {
-        let label = c
-            .levels
+        let label = cf
             .iter()
-            .enumerate()
-            .map(|(f, &l)| r.levels[f][l].clone())
+            .zip(&c.levels)
+            .map(|(&f, &l)| r.levels[f][l].clone())
             .collect::<Vec<_>>()
             .join(" × ");
         cell_letters
@@ -1170,13 +1170,17 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
             format!("{} (n = {}){}", fixed(c.mean, d), c.n, letters_of(c))
         }
     };
-    let (columns, rows) = if r.factors.len() == 2 {
-        let mut columns = vec![col(format!("{} \\ {}", r.factors[0], r.factors[1]), false)];
-        columns.extend(r.levels[1].iter().map(|l| col(l.clone(), true)));
-        let rows = (0..r.levels[0].len())
+    let (columns, rows) = if cf.len() == 2 {
+        let (fa, fb) = (cf[0], cf[1]);
+        let mut columns = vec![col(
+            format!("{} \\ {}", r.factors[fa], r.factors[fb]),
+            false,
+        )];
+        columns.extend(r.levels[fb].iter().map(|l| col(l.clone(), true)));
+        let rows = (0..r.levels[fa].len())
             .map(|a| {
-                let mut row = vec![text(r.levels[0][a].clone())];
-                for bb in 0..r.levels[1].len() {
+                let mut row = vec![text(r.levels[fa][a].clone())];
+                for bb in 0..r.levels[fb].len() {
                     let c = r.cells.iter().find(|c| c.levels == vec![a, bb]);
                     row.push(text(c.map_or_else(String::new, show)));
                 }
@@ -1185,17 +1189,19 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
             .collect();
         (columns, rows)
     } else {
-        let mut columns: Vec<Column> = r.factors.iter().map(|f| col(f.clone(), false)).collect();
+        let mut columns: Vec<Column> = cf
+            .iter()
+            .map(|&f| col(r.factors[f].clone(), false))
+            .collect();
         columns.push(col("Mean (n)", true));
         let rows = r
             .cells
             .iter()
             .map(|c| {
-                let mut row: Vec<Cell> = c
-                    .levels
+                let mut row: Vec<Cell> = cf
                     .iter()
-                    .enumerate()
-                    .map(|(f, &l)| text(r.levels[f][l].clone()))
+                    .zip(&c.levels)
+                    .map(|(&f, &l)| text(r.levels[f][l].clone()))
                     .collect();
                 row.push(text(show(c)));
                 row
@@ -1217,7 +1223,10 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
         caption: format!(
             "Table {number}. Cell means of {} by {}.",
             r.response,
-            r.factors.join(" and ")
+            cf.iter()
+                .map(|&f| r.factors[f].as_str())
+                .collect::<Vec<_>>()
+                .join(" and ")
         ),
         columns,
         rows,
