@@ -93,6 +93,13 @@ pub struct AnovaResult {
     pub caption: Option<String>,
     pub order: Order,
     pub show: crate::doc::block::Show,
+    /// The observations per level (absolute values), for figures; empty for
+    /// summary input.
+    pub observations: Vec<Vec<f64>>,
+    /// Data lines of the observations, parallel to `observations`.
+    pub observation_lines: Vec<Vec<usize>>,
+    /// Figures asked for with `plot`, with their axis settings.
+    pub plots: crate::doc::block::PlotSpec,
 }
 
 /// The result of any analysis block.
@@ -299,7 +306,27 @@ pub fn run_anova(
             input,
             display_path,
         )?,
-        Some(columns) => load_summary(doc, block, spec, columns, &table, &factor, display_path)?,
+        Some(columns) => {
+            use crate::doc::block::PlotKind;
+            if let Some(k) = spec
+                .plots
+                .kinds
+                .iter()
+                .find(|k| !matches!(k, PlotKind::Means))
+            {
+                return Err(doc
+                    .error_at(
+                        spec.model.line,
+                        None,
+                        format!(
+                            "`plot: {}` needs the raw observations, not summaries",
+                            k.key()
+                        ),
+                    )
+                    .hint("with `input: summary` only `plot: means` can be drawn"));
+            }
+            load_summary(doc, block, spec, columns, &table, &factor, display_path)?
+        }
     };
     analyse(doc, block, spec, sample, factor, response, input)
 }
@@ -765,6 +792,20 @@ fn analyse(
         caption: spec.caption.clone(),
         order: spec.order,
         show: spec.show,
+        observations: raw
+            .as_ref()
+            .map(|(offsets, _)| {
+                offsets
+                    .iter()
+                    .map(|g| g.iter().map(|y| origin + y).collect())
+                    .collect()
+            })
+            .unwrap_or_default(),
+        observation_lines: raw
+            .as_ref()
+            .map(|(_, lines)| lines.clone())
+            .unwrap_or_default(),
+        plots: spec.plots.clone(),
     })
 }
 

@@ -5,7 +5,8 @@ use crate::analysis::factorial::run_factorial;
 use crate::analysis::{BlockResult, Input, run_anova, run_power};
 use crate::diag::Diagnostic;
 use crate::doc::{BlockSpec, parse_document};
-use crate::render::{Format, render_report};
+use crate::figure::{ImageFormat, draw_all, png};
+use crate::render::{Format, PlacedFigure, render_report};
 use crate::results::results_json;
 use std::path::{Path, PathBuf};
 
@@ -43,6 +44,8 @@ pub struct Built {
     pub report: Vec<u8>,
     pub results_name: String,
     pub results: Vec<u8>,
+    /// Further files beside the report (figures in Markdown output).
+    pub files: Vec<(String, Vec<u8>)>,
     /// Warnings to show on the terminal (they are in the report too).
     pub warnings: Vec<String>,
 }
@@ -126,10 +129,38 @@ pub fn compile(
         }
     }
 
+    // Figures: inline SVG in HTML; files beside the report in Markdown.
+    let mut files: Vec<(String, Vec<u8>)> = Vec::new();
+    let mut placed: Vec<Vec<PlacedFigure>> = Vec::with_capacity(results.len());
+    for figs in draw_all(&results) {
+        let mut block = Vec::with_capacity(figs.len());
+        for figure in figs {
+            let file = match (format, doc.front.figures) {
+                (Format::Html, _) => None,
+                (Format::Markdown, ImageFormat::Svg) => {
+                    let name = format!("{stem}-{}.svg", figure.id);
+                    files.push((name.clone(), figure.svg.clone().into_bytes()));
+                    Some(name)
+                }
+                (Format::Markdown, ImageFormat::Png { dpi }) => {
+                    let name = format!("{stem}-{}.png", figure.id);
+                    let bytes = png(&figure.svg, dpi).map_err(|e| {
+                        Diagnostic::new(format!("internal error drawing {}: {e}", figure.id))
+                    })?;
+                    files.push((name.clone(), bytes));
+                    Some(name)
+                }
+            };
+            block.push(PlacedFigure { figure, file });
+        }
+        placed.push(block);
+    }
+
     let results_name = format!("{stem}.results.json");
     let report = render_report(
         &doc,
         &results,
+        &placed,
         &inputs,
         format,
         (&file_name, doc_bytes),
@@ -148,7 +179,8 @@ pub fn compile(
         report_name: format!("{stem}.{}", format.extension()),
         report: report.into_bytes(),
         results_name,
-        results: results_json(&file_name, doc_bytes, &inputs, &results),
+        results: results_json(&file_name, doc_bytes, &inputs, &results, &placed),
+        files,
         warnings,
     })
 }

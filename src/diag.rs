@@ -110,13 +110,16 @@ impl std::error::Error for Diagnostic {}
 /// be a plausible typo (at most a third of the word's length, and at least 1).
 pub fn nearest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
     let limit = (word.chars().count() / 3).max(1);
+    let w = word.to_lowercase();
     candidates
         .into_iter()
         .map(|c| {
-            (
-                strsim::damerau_levenshtein(&word.to_lowercase(), &c.to_lowercase()),
-                c,
-            )
+            let lc = c.to_lowercase();
+            // A plural or a truncation ("boxes", "compar") counts as one edit.
+            let prefix =
+                lc.len() >= 3 && w.len() >= 3 && (w.starts_with(&lc) || lc.starts_with(&w));
+            let d = strsim::damerau_levenshtein(&w, &lc);
+            (if prefix { d.min(1) } else { d }, c)
         })
         .filter(|(d, _)| *d <= limit)
         .min_by_key(|(d, _)| *d)

@@ -22,6 +22,7 @@ pub mod compile;
 pub mod data;
 pub mod diag;
 pub mod doc;
+pub mod figure;
 pub mod output;
 pub mod render;
 pub mod results;

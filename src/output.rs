@@ -24,10 +24,11 @@ pub fn write_outputs(dir: &Path, built: &Built) -> Result<Vec<PathBuf>, Diagnost
         .hint("pass a folder to -o; sheaf names the files after the document"));
     }
     fs::create_dir_all(dir).map_err(|e| io_error(dir, "create", e))?;
-    let files = [
+    let mut files = vec![
         (&built.report_name, &built.report),
         (&built.results_name, &built.results),
     ];
+    files.extend(built.files.iter().map(|(n, b)| (n, b)));
     let mut staged = Vec::new();
     for (name, bytes) in files {
         let tmp = dir.join(format!(".{name}.tmp"));

@@ -67,6 +67,7 @@ pub struct FactorialRecord {
     pub groups: Vec<GroupRecord>,
     pub cells: Vec<CellRecord>,
     pub comparisons: Vec<ComparisonRecord>,
+    pub figures: Vec<FigureRecord>,
     pub warnings: Vec<String>,
 }
 
@@ -240,8 +241,20 @@ fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> Factoria
             })
             .collect(),
         comparisons,
+        figures: Vec::new(),
         warnings: r.warnings.clone(),
     }
+}
+
+/// A figure: its id, kind as written in `plot`, the file beside the report
+/// (Markdown output; null when the SVG is inlined in HTML), and the SHA-256
+/// of its SVG.
+#[derive(Serialize)]
+pub struct FigureRecord {
+    pub id: String,
+    pub kind: &'static str,
+    pub file: Option<String>,
+    pub sha256: String,
 }
 
 /// A `power` block: its inputs and its answer.
@@ -335,6 +348,7 @@ pub struct BlockRecord {
     pub checks: ChecksRecord,
     pub groups: Vec<GroupRecord>,
     pub comparisons: Vec<ComparisonRecord>,
+    pub figures: Vec<FigureRecord>,
     pub warnings: Vec<String>,
 }
 
@@ -635,6 +649,7 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
             })
             .collect(),
         comparisons,
+        figures: Vec::new(),
         warnings: r.warnings.clone(),
     }
 }
@@ -681,7 +696,20 @@ pub fn results_json(
     document_bytes: &[u8],
     inputs: &[Input],
     blocks: &[BlockResult],
+    figures: &[Vec<crate::render::PlacedFigure>],
 ) -> Vec<u8> {
+    let figure_records = |i: usize| -> Vec<FigureRecord> {
+        figures.get(i).map_or_else(Vec::new, |figs| {
+            figs.iter()
+                .map(|p| FigureRecord {
+                    id: p.figure.id.clone(),
+                    kind: p.figure.kind,
+                    file: p.file.clone(),
+                    sha256: sha256_hex(p.figure.svg.as_bytes()),
+                })
+                .collect()
+        })
+    };
     let file = ResultsFile {
         sheaf: crate::VERSION.to_string(),
         schema: SCHEMA_VERSION,
@@ -697,9 +725,18 @@ pub fn results_json(
             .collect(),
         blocks: blocks
             .iter()
-            .map(|b| match b {
-                BlockResult::Anova(r) => BlockEntry::Anova(Box::new(block_record(r))),
-                BlockResult::Factorial(r) => BlockEntry::Factorial(Box::new(factorial_record(r))),
+            .enumerate()
+            .map(|(i, b)| match b {
+                BlockResult::Anova(r) => {
+                    let mut rec = block_record(r);
+                    rec.figures = figure_records(i);
+                    BlockEntry::Anova(Box::new(rec))
+                }
+                BlockResult::Factorial(r) => {
+                    let mut rec = factorial_record(r);
+                    rec.figures = figure_records(i);
+                    BlockEntry::Factorial(Box::new(rec))
+                }
                 BlockResult::Power(r) => BlockEntry::Power(power_record(r)),
             })
             .collect(),

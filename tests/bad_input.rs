@@ -654,3 +654,55 @@ fn factorial_designs_are_checked() {
         run_case(c);
     }
 }
+
+#[test]
+fn plot_keys_are_checked() {
+    let cases = vec![
+        case(
+            "unknown plot kind",
+            doc_with(&format!("{GOOD_BLOCK}plot: boxes\n")),
+            vec![
+                "unknown plot kind `boxes`",
+                "did you mean `box`?",
+                "report.md:7",
+            ],
+        ),
+        case(
+            "interaction for one factor",
+            doc_with(&format!("{GOOD_BLOCK}plot: interaction\n")),
+            vec!["`plot: interaction` needs a model with two or more factors"],
+        ),
+        case(
+            "reference not a number",
+            doc_with(&format!("{GOOD_BLOCK}reference: zero\n")),
+            vec!["`reference` must be a number"],
+        ),
+        with_data(
+            case(
+                "box plot from summaries",
+                doc_with("data: plants.csv\nmodel: weight ~ group\ninput: summary\nplot: box\n"),
+                vec!["`plot: box` needs the raw observations"],
+            ),
+            b"group,n,mean,sd\na,3,1.0,0.5\nb,3,2.0,0.4\n",
+        ),
+        case(
+            "unknown figure number",
+            format!(
+                "{}\nSee {{{{ figure(\"growth-bx\") }}}}.\n",
+                doc_with(&format!("{GOOD_BLOCK}plot: box\n"))
+            ),
+            vec![
+                "no figure with the id `growth-bx`",
+                "did you mean `growth-box`?",
+            ],
+        ),
+        case(
+            "png dpi without png",
+            format!("---\ndpi: 300\n---\n{}", doc_with(GOOD_BLOCK)),
+            vec!["`dpi` applies to `figures: png`"],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}

@@ -1,6 +1,6 @@
 //! Whole-document golden tests: each folder in tests/cases/ holds a report.md
-//! and its data; `expected/` holds the HTML, Markdown and results file sheaf
-//! must produce, byte for byte. Regenerate after an intended change with
+//! and its data; `expected/` holds the HTML, Markdown, results file and
+//! figure files sheaf must produce, byte for byte. Regenerate after an intended change with
 //!
 //!     SHEAF_BLESS=1 cargo test --test golden
 //!
@@ -45,10 +45,12 @@ fn every_case_matches_its_expected_output() {
         let expected = dir.join("expected");
         for format in [Format::Html, Format::Markdown] {
             let built = build(&dir, format);
-            for (name, bytes) in [
+            let mut outputs = vec![
                 (&built.report_name, &built.report),
                 (&built.results_name, &built.results),
-            ] {
+            ];
+            outputs.extend(built.files.iter().map(|(n, b)| (n, b)));
+            for (name, bytes) in outputs {
                 let path = expected.join(name);
                 if bless {
                     std::fs::create_dir_all(&expected).expect("expected folder");

@@ -102,6 +102,13 @@ pub struct FactorialResult {
     pub caption: Option<String>,
     pub order: crate::doc::block::Order,
     pub show: crate::doc::block::Show,
+    /// Per observation: factor levels, value, fitted value, residual, data line (for figures).
+    pub rows: Vec<Vec<usize>>,
+    pub values: Vec<f64>,
+    pub fitted: Vec<f64>,
+    pub residuals: Vec<f64>,
+    pub lines: Vec<usize>,
+    pub plots: crate::doc::block::PlotSpec,
 }
 
 /// Term label for people: `wool × tension`.
@@ -720,6 +727,17 @@ pub fn run_factorial(
         caption: spec.caption.clone(),
         order: spec.order,
         show: spec.show,
+        values: data.offsets.iter().map(|y| data.origin + y).collect(),
+        fitted: data
+            .offsets
+            .iter()
+            .zip(&residuals)
+            .map(|(y, e)| data.origin + y - e)
+            .collect(),
+        residuals: residuals.clone(),
+        rows: data.rows.clone(),
+        lines: data.lines.clone(),
+        plots: spec.plots.clone(),
     })
 }
 

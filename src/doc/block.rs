@@ -13,7 +13,7 @@ use crate::stats::linear::SsType;
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 26] = [
+pub const ANOVA_KEYS: [&str; 30] = [
     "id",
     "data",
     "model",
@@ -40,6 +40,10 @@ pub const ANOVA_KEYS: [&str; 26] = [
     "within",
     "cells",
     "block",
+    "plot",
+    "label",
+    "unit",
+    "reference",
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -69,6 +73,50 @@ impl Omnibus {
             Omnibus::Ranks => "ranks",
         }
     }
+}
+
+/// A figure kind, as written in `plot`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum PlotKind {
+    Box,
+    Means,
+    Strip,
+    Interaction,
+    Residuals,
+    Qq,
+}
+
+impl PlotKind {
+    pub const ALL: [PlotKind; 6] = [
+        PlotKind::Box,
+        PlotKind::Means,
+        PlotKind::Strip,
+        PlotKind::Interaction,
+        PlotKind::Residuals,
+        PlotKind::Qq,
+    ];
+
+    pub fn key(self) -> &'static str {
+        match self {
+            PlotKind::Box => "box",
+            PlotKind::Means => "means",
+            PlotKind::Strip => "strip",
+            PlotKind::Interaction => "interaction",
+            PlotKind::Residuals => "residuals",
+            PlotKind::Qq => "qq",
+        }
+    }
+}
+
+/// The figures a block draws and their axis settings.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct PlotSpec {
+    pub kinds: Vec<PlotKind>,
+    /// Axis title for the response (default: the column name).
+    pub label: Option<String>,
+    pub unit: Option<String>,
+    /// A horizontal reference line.
+    pub reference: Option<f64>,
 }
 
 /// Row order of the level-means table.
@@ -125,6 +173,7 @@ pub struct AnovaSpec {
     pub cells: Option<Located<bool>>,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
+    pub plots: PlotSpec,
 }
 
 /// A problem with one key, at its line and column.
@@ -677,7 +726,56 @@ pub fn anova_spec(
             ));
         }
     }
+    let mut plots = PlotSpec {
+        kinds: Vec::new(),
+        label: get("label").map(|e| e.value.clone()),
+        unit: get("unit").map(|e| e.value.clone()),
+        reference: None,
+    };
+    if let Some(e) = get("plot") {
+        for item in list(&e.value) {
+            match PlotKind::ALL
+                .iter()
+                .find(|k| k.key() == item.to_ascii_lowercase())
+            {
+                Some(k) if !plots.kinds.contains(k) => plots.kinds.push(*k),
+                Some(_) => {}
+                None => {
+                    let keys: Vec<&str> = PlotKind::ALL.iter().map(|k| k.key()).collect();
+                    let hint = match crate::diag::nearest(&item, keys.iter().copied()) {
+                        Some(n) => format!("did you mean `{n}`? The kinds are {}", keys.join(", ")),
+                        None => format!("the kinds are {}", keys.join(", ")),
+                    };
+                    return Err(bad(e, format!("unknown plot kind `{item}`"), hint));
+                }
+            }
+        }
+        if plots.kinds.contains(&PlotKind::Interaction) && factor_count < 2 {
+            return Err(bad(
+                e,
+                "`plot: interaction` needs a model with two or more factors".into(),
+                "use box, means or strip for one factor",
+            ));
+        }
+    }
+    if let Some(e) = get("reference") {
+        plots.reference = Some(
+            e.value
+                .trim()
+                .parse::<f64>()
+                .ok()
+                .filter(|v| v.is_finite())
+                .ok_or_else(|| {
+                    bad(
+                        e,
+                        format!("`reference` must be a number, found `{}`", e.value),
+                        "for example `reference: 0`",
+                    )
+                })?,
+        );
+    }
     Ok(AnovaSpec {
+        plots,
         ss_type,
         compare_terms: named_list("compare_term"),
         within: get("within").map(located),

@@ -36,6 +36,8 @@ pub struct FrontMatter {
     pub alpha: f64,
     pub decimals: Option<u32>,
     pub compare: Option<Method>,
+    /// How Markdown output delivers figures: SVG files, or PNG at a resolution.
+    pub figures: crate::figure::ImageFormat,
 }
 
 impl Default for FrontMatter {
@@ -47,6 +49,7 @@ impl Default for FrontMatter {
             alpha: 0.05,
             decimals: None,
             compare: Some(Method::Tukey),
+            figures: crate::figure::ImageFormat::Svg,
         }
     }
 }
@@ -235,6 +238,22 @@ fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagno
             "alpha" => f.alpha = parse_alpha(e).map_err(|x| doc.spec_error(x))?,
             "decimals" => f.decimals = Some(parse_decimals(e).map_err(|x| doc.spec_error(x))?),
             "compare" => f.compare = parse_compare(e).map_err(|x| doc.spec_error(x))?,
+            "figures" => {
+                f.figures = match e.value.to_ascii_lowercase().as_str() {
+                    "svg" => crate::figure::ImageFormat::Svg,
+                    "png" => crate::figure::ImageFormat::Png { dpi: 150 },
+                    _ => {
+                        return Err(doc
+                            .error_at(
+                                e.line,
+                                Some(e.value_column),
+                                format!("unknown figure format `{}`", e.value),
+                            )
+                            .hint("write `svg` (the default) or `png`"));
+                    }
+                };
+            }
+            "dpi" => {}
             other => {
                 let mut d = doc.error_at(
                     e.line,
@@ -249,6 +268,37 @@ fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagno
                     )),
                 };
                 return Err(d);
+            }
+        }
+    }
+    if let Some(e) = entries.iter().find(|e| e.key == "dpi") {
+        let dpi = match e.value.trim().parse::<u32>() {
+            Ok(d) if (72..=600).contains(&d) => d,
+            _ => {
+                return Err(doc
+                    .error_at(
+                        e.line,
+                        Some(e.value_column),
+                        format!(
+                            "`dpi` must be a whole number from 72 to 600, found `{}`",
+                            e.value
+                        ),
+                    )
+                    .hint("for example `dpi: 300` for print"));
+            }
+        };
+        match f.figures {
+            crate::figure::ImageFormat::Png { .. } => {
+                f.figures = crate::figure::ImageFormat::Png { dpi }
+            }
+            crate::figure::ImageFormat::Svg => {
+                return Err(doc
+                    .error_at(
+                        e.line,
+                        Some(e.key_column),
+                        "`dpi` applies to `figures: png`",
+                    )
+                    .hint("add `figures: png`, or remove `dpi`"));
             }
         }
     }

@@ -436,8 +436,37 @@ pub fn evaluate(
     doc: &Document,
     results: &[BlockResult],
     expressions: &[Expression],
+    numbers: &[(String, String)],
 ) -> Result<Vec<String>, Diagnostic> {
-    let env = environment();
+    let mut env = environment();
+    // `table("growth-anova")` and `figure("growth-box")` print "Table 1", "Figure 2".
+    for (name, prefix) in [("table", "Table"), ("figure", "Figure")] {
+        let known: Vec<(String, String)> = numbers
+            .iter()
+            .filter(|(_, n)| n.starts_with(prefix))
+            .cloned()
+            .collect();
+        env.add_function(
+            name,
+            move |id: String| -> Result<String, minijinja::Error> {
+                match known.iter().find(|(k, _)| *k == id) {
+                    Some((_, n)) => Ok(n.clone()),
+                    None => {
+                        let ids: Vec<&str> = known.iter().map(|(k, _)| k.as_str()).collect();
+                        let near = crate::diag::nearest(&id, ids.iter().copied())
+                            .map_or(String::new(), |n| format!("; did you mean `{n}`?"));
+                        Err(minijinja::Error::new(
+                            ErrorKind::InvalidOperation,
+                            format!(
+                                "no {name} with the id `{id}`{near} (known: {})",
+                                ids.join(", ")
+                            ),
+                        ))
+                    }
+                }
+            },
+        );
+    }
     let ctx: BTreeMap<String, Value> = results
         .iter()
         .map(|r| match r {

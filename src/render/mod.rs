@@ -9,6 +9,14 @@ pub mod inline;
 pub mod view;
 
 use crate::analysis::{BlockResult, Input};
+use crate::figure::Figure;
+
+/// A figure and, for Markdown output, the file it is written to.
+#[derive(Debug, Clone)]
+pub struct PlacedFigure {
+    pub figure: Figure,
+    pub file: Option<String>,
+}
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::markdown::markdown_options;
@@ -202,32 +210,61 @@ fn marker(i: usize) -> String {
 
 /// Renders the report. The document's name and bytes (as read, for its
 /// hash) and the results file's name appear in the provenance note.
+#[allow(clippy::too_many_arguments)]
 pub fn render_report(
     doc: &Document,
     results: &[BlockResult],
+    figures: &[Vec<PlacedFigure>],
     inputs: &[Input],
     format: Format,
     (document_name, document_bytes): (&str, &[u8]),
     results_name: &str,
 ) -> Result<String, Diagnostic> {
     let env = environment();
-    let values = inline::evaluate(doc, results, &doc.expressions)?;
 
-    // Block fragments, with tables numbered through the document.
+    // Views first: they number the tables, which prose may refer to.
     let mut next_table = 1;
-    let mut fragments = Vec::with_capacity(results.len());
-    for r in results {
-        let v = match r {
+    let mut views = Vec::with_capacity(results.len());
+    for (r, figs) in results.iter().zip(figures) {
+        let mut v = match r {
             BlockResult::Anova(r) => view::block_view(r, &mut next_table),
             BlockResult::Factorial(r) => view::factorial_view(r, &mut next_table),
             BlockResult::Power(r) => view::power_view(r, &mut next_table),
         };
+        v.figures = figs
+            .iter()
+            .map(|p| view::FigureView {
+                id: p.figure.id.clone(),
+                caption: p.figure.caption.clone(),
+                svg: if format == Format::Html {
+                    Some(p.figure.svg.clone())
+                } else {
+                    None
+                },
+                file: p.file.clone(),
+            })
+            .collect();
+        views.push(v);
+    }
+    let mut numbers: Vec<(String, String)> = Vec::new();
+    for v in &views {
+        for t in &v.tables {
+            numbers.push((t.id.clone(), format!("Table {}", t.number)));
+        }
+    }
+    for p in figures.iter().flatten() {
+        numbers.push((p.figure.id.clone(), format!("Figure {}", p.figure.number)));
+    }
+    let values = inline::evaluate(doc, results, &doc.expressions, &numbers)?;
+
+    let mut fragments = Vec::with_capacity(results.len());
+    for v in &views {
         let name = if format == Format::Html {
             "block.html"
         } else {
             "block.md"
         };
-        let text = render(&env, name, minijinja::context! { block => to_value(&v) })?;
+        let text = render(&env, name, minijinja::context! { block => to_value(v) })?;
         fragments.push(if format == Format::Markdown {
             tidy_markdown(&text)
         } else {

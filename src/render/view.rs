@@ -35,9 +35,19 @@ pub struct TableView {
     pub footnotes: Vec<String>,
 }
 
+/// A figure as the templates place it: inline SVG (HTML) or a file link (Markdown).
+#[derive(Debug, Clone, Serialize)]
+pub struct FigureView {
+    pub id: String,
+    pub caption: String,
+    pub svg: Option<String>,
+    pub file: Option<String>,
+}
+
 #[derive(Debug, Clone, Serialize)]
 pub struct BlockView {
     pub id: String,
+    pub figures: Vec<FigureView>,
     /// A sentence that opens the block (power blocks state their answer).
     pub lead: Option<String>,
     pub tables: Vec<TableView>,
@@ -122,6 +132,7 @@ pub fn block_view(r: &AnovaResult, next_table: &mut usize) -> BlockView {
         }
     }
     BlockView {
+        figures: Vec::new(),
         id: r.id.clone(),
         lead: None,
         tables,
@@ -204,6 +215,7 @@ pub fn power_view(r: &PowerResult, next_table: &mut usize) -> BlockView {
         });
     }
     BlockView {
+        figures: Vec::new(),
         id: r.id.clone(),
         lead: Some(lead),
         tables,
@@ -1132,6 +1144,7 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
         }
     }
     BlockView {
+        figures: Vec::new(),
         id: id.clone(),
         lead: None,
         tables,

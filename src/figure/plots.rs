@@ -1,0 +1,921 @@
+//! The plot kinds: box, strip and means plots with letters, interaction
+//! plots, and residual diagnostics (residuals against fitted, normal Q-Q).
+
+use super::{Figure, PALETTE, Scale, Svg, nice_ticks, text_width, tick_label};
+use crate::analysis::AnovaResult;
+use crate::analysis::factorial::FactorialResult;
+use crate::doc::block::{PlotKind, PlotSpec};
+use crate::render::format::fixed;
+use crate::stats::assumptions::quartiles;
+use crate::stats::dist::{normal_isf, t_isf};
+
+const WIDTH: f64 = 480.0;
+const HEIGHT: f64 = 320.0;
+const TICK_SIZE: f64 = 11.0;
+const TITLE_SIZE: f64 = 12.0;
+const LETTER_SIZE: f64 = 12.0;
+const INK: &str = "#1d1d1f";
+const GRID: &str = "#e3e3e8";
+const MUTED: &str = "#6e6e73";
+
+/// A line of an interaction plot: its name and (mean, lower, upper) per x level.
+type Series = (String, Vec<(f64, f64, f64)>);
+
+/// A categorical plot drawer: (id, title, desc, groups, y title, x title, reference line).
+type CategoricalPlot = fn(&str, &str, &str, &[Group], &str, &str, Option<f64>) -> String;
+
+/// One group on a categorical axis.
+struct Group<'a> {
+    label: &'a str,
+    values: &'a [f64],
+    letters: Option<&'a str>,
+    /// Mean and interval, for means plots.
+    mean: f64,
+    ci: (f64, f64),
+}
+
+/// SplitMix64: a fixed hash, so jitter is the same on every build and machine.
+fn jitter(level: usize, index: usize) -> f64 {
+    let mut z = (level as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15)
+        ^ (index as u64).wrapping_add(0xBF58_476D_1CE4_E5B9);
+    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+    z ^= z >> 31;
+    (z >> 11) as f64 / (1u64 << 53) as f64 - 0.5
+}
+
+fn axis_title(spec: &PlotSpec, response: &str) -> String {
+    let label = spec.label.clone().unwrap_or_else(|| response.to_string());
+    match &spec.unit {
+        Some(u) => format!("{label} ({u})"),
+        None => label,
+    }
+}
+
+/// The plotting frame: y axis with ticks and grid, x axis with level labels.
+struct Frame {
+    y: Scale,
+    x0: f64,
+    x1: f64,
+    top: f64,
+    bottom: f64,
+}
+
+impl Frame {
+    /// Lays out axes for `n_slots` categories and the data range [lo, hi].
+    fn categorical(
+        svg: &mut Svg,
+        labels: &[&str],
+        lo: f64,
+        hi: f64,
+        y_title: &str,
+        x_title: &str,
+        reference: Option<f64>,
+    ) -> (Frame, Vec<f64>) {
+        let (lo, hi) = match reference {
+            Some(r) => (lo.min(r), hi.max(r)),
+            None => (lo, hi),
+        };
+        let pad = (hi - lo).abs().max(1e-12) * 0.06;
+        let ticks = nice_ticks(lo - pad, hi + pad, 5);
+        let step = if ticks.len() > 1 {
+            ticks[1] - ticks[0]
+        } else {
+            1.0
+        };
+        let tick_texts: Vec<String> = ticks.iter().map(|t| tick_label(*t, step)).collect();
+        let tick_w = tick_texts
+            .iter()
+            .map(|t| text_width(t, TICK_SIZE as f32) as f64)
+            .fold(0.0, f64::max);
+        let left = 28.0 + tick_w + 8.0;
+        let right = WIDTH - 14.0;
+        let slot = (right - left) / labels.len().max(1) as f64;
+        let widest = labels
+            .iter()
+            .map(|l| text_width(l, TICK_SIZE as f32) as f64)
+            .fold(0.0, f64::max);
+        let rotate = widest > slot - 6.0;
+        let label_space = if rotate {
+            (widest * 0.5).min(90.0) + 14.0
+        } else {
+            18.0
+        };
+        let bottom = HEIGHT - 20.0 - label_space;
+        let top = 30.0;
+        let y = Scale {
+            d0: ticks[0],
+            d1: *ticks.last().unwrap_or(&1.0),
+            p0: bottom,
+            p1: top,
+        };
+        for (t, label) in ticks.iter().zip(&tick_texts) {
+            let py = y.map(*t);
+            svg.line(left, py, right, py, GRID, 1.0, None);
+            svg.text(left - 6.0, py + 4.0, label, "end", TICK_SIZE, None, "ytick");
+        }
+        svg.line(left, top - 8.0, left, bottom, INK, 1.0, None);
+        svg.line(left, bottom, right, bottom, INK, 1.0, None);
+        if let Some(r) = reference {
+            svg.line(left, y.map(r), right, y.map(r), MUTED, 1.0, Some("4 3"));
+        }
+        let centres: Vec<f64> = (0..labels.len())
+            .map(|i| left + slot * (i as f64 + 0.5))
+            .collect();
+        for (x, label) in centres.iter().zip(labels) {
+            if rotate {
+                svg.text(
+                    *x,
+                    bottom + 14.0,
+                    label,
+                    "end",
+                    TICK_SIZE,
+                    Some(-30.0),
+                    "xtick",
+                );
+            } else {
+                svg.text(*x, bottom + 16.0, label, "middle", TICK_SIZE, None, "xtick");
+            }
+        }
+        let mid_y = (top + bottom) / 2.0;
+        svg.text(
+            14.0,
+            mid_y,
+            y_title,
+            "middle",
+            TITLE_SIZE,
+            Some(-90.0),
+            "axis-title",
+        );
+        svg.text(
+            (left + right) / 2.0,
+            HEIGHT - 6.0,
+            x_title,
+            "middle",
+            TITLE_SIZE,
+            None,
+            "axis-title",
+        );
+        (
+            Frame {
+                y,
+                x0: left,
+                x1: right,
+                top,
+                bottom,
+            },
+            centres,
+        )
+    }
+
+    fn slot(&self, n: usize) -> f64 {
+        (self.x1 - self.x0) / n.max(1) as f64
+    }
+}
+
+fn letters_at(svg: &mut Svg, x: f64, y_px: f64, letters: Option<&str>) {
+    if let Some(l) = letters.filter(|l| !l.is_empty()) {
+        svg.text(x, y_px - 8.0, l, "middle", LETTER_SIZE, None, "letters");
+    }
+}
+
+fn range(groups: &[Group]) -> (f64, f64) {
+    let mut lo = f64::INFINITY;
+    let mut hi = f64::NEG_INFINITY;
+    for g in groups {
+        for v in g.values.iter().chain([&g.ci.0, &g.ci.1, &g.mean]) {
+            if v.is_finite() {
+                lo = lo.min(*v);
+                hi = hi.max(*v);
+            }
+        }
+    }
+    if lo.is_finite() { (lo, hi) } else { (0.0, 1.0) }
+}
+
+fn box_plot(
+    id: &str,
+    title: &str,
+    desc: &str,
+    groups: &[Group],
+    y_title: &str,
+    x_title: &str,
+    reference: Option<f64>,
+) -> String {
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
+    let (lo, hi) = range(groups);
+    let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
+    let half = (frame.slot(groups.len()) * 0.22).min(28.0);
+    for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
+        let colour = PALETTE[0];
+        if g.values.len() >= 2 {
+            let (q1, median, q3) = quartiles(g.values);
+            let iqr = q3 - q1;
+            let low = g
+                .values
+                .iter()
+                .copied()
+                .filter(|v| *v >= q1 - 1.5 * iqr)
+                .fold(f64::INFINITY, f64::min);
+            let high = g
+                .values
+                .iter()
+                .copied()
+                .filter(|v| *v <= q3 + 1.5 * iqr)
+                .fold(f64::NEG_INFINITY, f64::max);
+            let y = |v: f64| frame.y.map(v);
+            svg.line(x, y(high), x, y(q3), INK, 1.0, None);
+            svg.line(x, y(q1), x, y(low), INK, 1.0, None);
+            svg.line(
+                x - half * 0.5,
+                y(high),
+                x + half * 0.5,
+                y(high),
+                INK,
+                1.0,
+                None,
+            );
+            svg.line(
+                x - half * 0.5,
+                y(low),
+                x + half * 0.5,
+                y(low),
+                INK,
+                1.0,
+                None,
+            );
+            svg.rect(
+                x - half,
+                y(q3),
+                2.0 * half,
+                (y(q1) - y(q3)).max(0.5),
+                "#dbe9f5",
+                colour,
+            );
+            svg.line(x - half, y(median), x + half, y(median), INK, 2.0, None);
+        }
+        for (j, v) in g.values.iter().enumerate() {
+            let jx = x + jitter(i, j) * half * 1.4;
+            svg.marker(jx, frame.y.map(*v), 2.6, 0, "#ffffff", INK, "point");
+        }
+        let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        letters_at(&mut svg, x, frame.y.map(top), g.letters);
+    }
+    let _ = frame.top;
+    let _ = frame.bottom;
+    svg.finish()
+}
+
+fn strip_plot(
+    id: &str,
+    title: &str,
+    desc: &str,
+    groups: &[Group],
+    y_title: &str,
+    x_title: &str,
+    reference: Option<f64>,
+) -> String {
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
+    let (lo, hi) = range(groups);
+    let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
+    let half = (frame.slot(groups.len()) * 0.25).min(30.0);
+    for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
+        for (j, v) in g.values.iter().enumerate() {
+            svg.marker(
+                x + jitter(i, j) * half * 1.6,
+                frame.y.map(*v),
+                3.0,
+                0,
+                PALETTE[0],
+                "#ffffff",
+                "point",
+            );
+        }
+        if g.mean.is_finite() {
+            svg.line(
+                x - half,
+                frame.y.map(g.mean),
+                x + half,
+                frame.y.map(g.mean),
+                INK,
+                2.0,
+                None,
+            );
+        }
+        let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        letters_at(&mut svg, x, frame.y.map(top), g.letters);
+    }
+    svg.finish()
+}
+
+fn means_plot(
+    id: &str,
+    title: &str,
+    desc: &str,
+    groups: &[Group],
+    y_title: &str,
+    x_title: &str,
+    reference: Option<f64>,
+) -> String {
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
+    let (lo, hi) = range(groups);
+    let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
+    let half = (frame.slot(groups.len()) * 0.3).min(34.0);
+    for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
+        // Faint observations behind the summary, so the spread stays visible.
+        for (j, v) in g.values.iter().enumerate() {
+            svg.marker(
+                x + half * 0.9 + jitter(i, j) * 8.0,
+                frame.y.map(*v),
+                2.0,
+                0,
+                "#c7c7cc",
+                "#c7c7cc",
+                "point",
+            );
+        }
+        if g.ci.0.is_finite() && g.ci.1.is_finite() {
+            let (a, b) = (frame.y.map(g.ci.0), frame.y.map(g.ci.1));
+            svg.line(x, a, x, b, INK, 1.5, None);
+            svg.line(x - 6.0, a, x + 6.0, a, INK, 1.5, None);
+            svg.line(x - 6.0, b, x + 6.0, b, INK, 1.5, None);
+        }
+        svg.marker(x, frame.y.map(g.mean), 4.5, 0, PALETTE[0], INK, "mean");
+        let top = if g.ci.1.is_finite() { g.ci.1 } else { g.mean };
+        letters_at(&mut svg, x, frame.y.map(top), g.letters);
+    }
+    svg.finish()
+}
+
+fn scatter_frame(
+    svg: &mut Svg,
+    xs: &[f64],
+    ys: &[f64],
+    x_title: &str,
+    y_title: &str,
+) -> (Scale, Scale) {
+    let finite = |v: &[f64]| {
+        v.iter()
+            .copied()
+            .filter(|x| x.is_finite())
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+                (a.min(x), b.max(x))
+            })
+    };
+    let (xl, xh) = finite(xs);
+    let (yl, yh) = finite(ys);
+    let pad = |l: f64, h: f64| ((h - l).abs().max(1e-9)) * 0.06;
+    let xt = nice_ticks(xl - pad(xl, xh), xh + pad(xl, xh), 5);
+    let yt = nice_ticks(yl - pad(yl, yh), yh + pad(yl, yh), 5);
+    let ystep = if yt.len() > 1 { yt[1] - yt[0] } else { 1.0 };
+    let xstep = if xt.len() > 1 { xt[1] - xt[0] } else { 1.0 };
+    let ylabels: Vec<String> = yt.iter().map(|t| tick_label(*t, ystep)).collect();
+    let tick_w = ylabels
+        .iter()
+        .map(|t| text_width(t, TICK_SIZE as f32) as f64)
+        .fold(0.0, f64::max);
+    let (left, right, top, bottom) = (28.0 + tick_w + 8.0, WIDTH - 14.0, 20.0, HEIGHT - 42.0);
+    let xs_scale = Scale {
+        d0: xt[0],
+        d1: *xt.last().unwrap_or(&1.0),
+        p0: left,
+        p1: right,
+    };
+    let ys_scale = Scale {
+        d0: yt[0],
+        d1: *yt.last().unwrap_or(&1.0),
+        p0: bottom,
+        p1: top,
+    };
+    for (t, label) in yt.iter().zip(&ylabels) {
+        let py = ys_scale.map(*t);
+        svg.line(left, py, right, py, GRID, 1.0, None);
+        svg.text(left - 6.0, py + 4.0, label, "end", TICK_SIZE, None, "ytick");
+    }
+    for t in &xt {
+        let px = xs_scale.map(*t);
+        svg.line(px, bottom, px, bottom + 4.0, INK, 1.0, None);
+        svg.text(
+            px,
+            bottom + 16.0,
+            &tick_label(*t, xstep),
+            "middle",
+            TICK_SIZE,
+            None,
+            "xtick",
+        );
+    }
+    svg.line(left, top, left, bottom, INK, 1.0, None);
+    svg.line(left, bottom, right, bottom, INK, 1.0, None);
+    svg.text(
+        14.0,
+        (top + bottom) / 2.0,
+        y_title,
+        "middle",
+        TITLE_SIZE,
+        Some(-90.0),
+        "axis-title",
+    );
+    svg.text(
+        (left + right) / 2.0,
+        HEIGHT - 6.0,
+        x_title,
+        "middle",
+        TITLE_SIZE,
+        None,
+        "axis-title",
+    );
+    (xs_scale, ys_scale)
+}
+
+/// Residuals against fitted values; `flags` are (index, label) of points to name.
+fn residual_plot(
+    id: &str,
+    title: &str,
+    desc: &str,
+    fitted: &[f64],
+    residuals: &[f64],
+    flags: &[(usize, String)],
+) -> String {
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let (x, y) = scatter_frame(&mut svg, fitted, residuals, "Fitted value", "Residual");
+    svg.line(x.p0, y.map(0.0), x.p1, y.map(0.0), MUTED, 1.0, Some("4 3"));
+    for (i, (f, e)) in fitted.iter().zip(residuals).enumerate() {
+        // Points that share a fitted value (one-way) are spread slightly.
+        svg.marker(
+            x.map(*f) + jitter(7, i) * 6.0,
+            y.map(*e),
+            2.8,
+            0,
+            PALETTE[0],
+            "#ffffff",
+            "point",
+        );
+    }
+    for (i, label) in flags {
+        svg.text(
+            x.map(fitted[*i]) + 6.0,
+            y.map(residuals[*i]) - 4.0,
+            label,
+            "start",
+            TICK_SIZE,
+            None,
+            "flag",
+        );
+    }
+    svg.finish()
+}
+
+/// Normal Q-Q plot with Blom positions and a line through the quartiles.
+fn qq_plot(id: &str, title: &str, desc: &str, residuals: &[f64]) -> String {
+    let mut sorted: Vec<f64> = residuals
+        .iter()
+        .copied()
+        .filter(|v| v.is_finite())
+        .collect();
+    sorted.sort_by(f64::total_cmp);
+    let n = sorted.len() as f64;
+    let theoretical: Vec<f64> = (1..=sorted.len())
+        .map(|i| -normal_isf((i as f64 - 0.375) / (n + 0.25)))
+        .collect();
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let (x, y) = scatter_frame(
+        &mut svg,
+        &theoretical,
+        &sorted,
+        "Normal quantile",
+        "Residual",
+    );
+    if sorted.len() >= 4 {
+        let (q1, _, q3) = quartiles(&sorted);
+        let z = normal_isf(0.25); // Φ⁻¹(0.75)
+        let slope = (q3 - q1) / (2.0 * z);
+        let intercept = (q1 + q3) / 2.0;
+        let (a, b) = (x.d0, x.d1);
+        svg.line(
+            x.map(a),
+            y.map(intercept + slope * a),
+            x.map(b),
+            y.map(intercept + slope * b),
+            MUTED,
+            1.0,
+            Some("4 3"),
+        );
+    }
+    for (t, v) in theoretical.iter().zip(&sorted) {
+        svg.marker(x.map(*t), y.map(*v), 2.8, 0, PALETTE[0], "#ffffff", "point");
+    }
+    svg.finish()
+}
+
+/// Interaction plot: x = levels of one factor, a line per level of another.
+#[allow(clippy::too_many_arguments)]
+fn interaction_plot(
+    id: &str,
+    title: &str,
+    desc: &str,
+    x_labels: &[&str],
+    series: &[Series],
+    y_title: &str,
+    x_title: &str,
+    reference: Option<f64>,
+) -> String {
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let mut lo = f64::INFINITY;
+    let mut hi = f64::NEG_INFINITY;
+    for (_, pts) in series {
+        for (m, l, u) in pts {
+            for v in [m, l, u] {
+                if v.is_finite() {
+                    lo = lo.min(*v);
+                    hi = hi.max(*v);
+                }
+            }
+        }
+    }
+    let (frame, xs) = Frame::categorical(&mut svg, x_labels, lo, hi, y_title, x_title, reference);
+    let dodge = (frame.slot(x_labels.len()) * 0.08).min(8.0);
+    let offset = |s: usize| (s as f64 - (series.len() as f64 - 1.0) / 2.0) * dodge;
+    for (s, (name, pts)) in series.iter().enumerate() {
+        let colour = PALETTE[s % PALETTE.len()];
+        let line: Vec<(f64, f64)> = pts
+            .iter()
+            .zip(&xs)
+            .filter(|((m, _, _), _)| m.is_finite())
+            .map(|((m, _, _), x)| (x + offset(s), frame.y.map(*m)))
+            .collect();
+        svg.polyline(&line, colour, 1.6);
+        for ((m, l, u), x) in pts.iter().zip(&xs) {
+            if !m.is_finite() {
+                continue;
+            }
+            let px = x + offset(s);
+            if l.is_finite() && u.is_finite() {
+                svg.line(px, frame.y.map(*l), px, frame.y.map(*u), colour, 1.2, None);
+            }
+            svg.marker(px, frame.y.map(*m), 4.0, s, colour, INK, "mean");
+        }
+        // Legend, top right, one row per series.
+        let ly = frame.top - 14.0 + 14.0 * s as f64;
+        let lx = frame.x1 - 90.0;
+        svg.marker(lx, ly - 4.0, 4.0, s, colour, INK, "legend");
+        svg.text(lx + 10.0, ly, name, "start", TICK_SIZE, None, "legend");
+    }
+    svg.finish()
+}
+
+fn figure_id(block: &str, kind: PlotKind) -> String {
+    format!("{block}-{}", kind.key())
+}
+
+/// The figures of a one-factor block.
+pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
+    let spec = &r.plots;
+    let y_title = axis_title(spec, &r.response);
+    let letters = r
+        .comparison
+        .as_ref()
+        .filter(|c| !c.letters.is_empty())
+        .map(|c| (c.letters.clone(), c.method.title(), c.alpha));
+    let groups: Vec<Group> = r
+        .levels
+        .iter()
+        .enumerate()
+        .map(|(i, l)| Group {
+            label: &l.name,
+            values: r.observations.get(i).map_or(&[][..], Vec::as_slice),
+            letters: letters.as_ref().map(|(ls, _, _)| ls[i].as_str()),
+            mean: l.mean,
+            ci: (l.ci_lower, l.ci_upper),
+        })
+        .collect();
+    let letters_note = letters.as_ref().map_or(String::new(), |(_, m, a)| {
+        format!(" Levels sharing a letter do not differ significantly ({m}, α = {a}).")
+    });
+    let conf = crate::render::view::confidence_label(r.alpha);
+    let ci_kind = if r.ci_pooled {
+        "pooled"
+    } else {
+        "each level's own SD"
+    };
+    let level_list = r
+        .levels
+        .iter()
+        .map(|l| l.name.as_str())
+        .collect::<Vec<_>>()
+        .join(", ");
+    let means_list = r
+        .levels
+        .iter()
+        .map(|l| fixed(l.mean, r.decimals))
+        .collect::<Vec<_>>()
+        .join(", ");
+    let mut out = Vec::new();
+    for &kind in &spec.kinds {
+        let id = figure_id(&r.id, kind);
+        let n = *number;
+        let (caption, svg) = match kind {
+            PlotKind::Box | PlotKind::Strip | PlotKind::Means => {
+                let (what, draw): (String, CategoricalPlot) = match kind {
+                    PlotKind::Box => (
+                        format!(
+                            "{} by {}: box plots (median, quartiles, whiskers to the most extreme values within 1.5 IQR) with every observation.",
+                            r.response, r.factor
+                        ),
+                        box_plot,
+                    ),
+                    PlotKind::Strip => (
+                        format!(
+                            "Every observation of {} by {}, with the level means as bars.",
+                            r.response, r.factor
+                        ),
+                        strip_plot,
+                    ),
+                    _ => (
+                        format!(
+                            "Mean {} by {} with {conf} confidence intervals ({ci_kind}); observations in grey.",
+                            r.response, r.factor
+                        ),
+                        means_plot,
+                    ),
+                };
+                let caption = format!("Figure {n}. {what}{letters_note}");
+                let desc = format!("Levels {level_list}; means {means_list}.");
+                (
+                    caption.clone(),
+                    draw(
+                        &id,
+                        &caption,
+                        &desc,
+                        &groups,
+                        &y_title,
+                        &r.factor,
+                        spec.reference,
+                    ),
+                )
+            }
+            PlotKind::Residuals | PlotKind::Qq => {
+                let mut fitted = Vec::new();
+                let mut residuals = Vec::new();
+                let mut lines = Vec::new();
+                for (i, l) in r.levels.iter().enumerate() {
+                    for (j, y) in r
+                        .observations
+                        .get(i)
+                        .map_or(&[][..], Vec::as_slice)
+                        .iter()
+                        .enumerate()
+                    {
+                        fitted.push(l.mean);
+                        residuals.push(y - l.mean);
+                        lines.push(r.observation_lines[i][j]);
+                    }
+                }
+                let flags: Vec<(usize, String)> = r
+                    .checks
+                    .outliers
+                    .iter()
+                    .filter_map(|o| {
+                        lines
+                            .iter()
+                            .position(|l| *l == o.line)
+                            .map(|i| (i, format!("line {}", o.line)))
+                    })
+                    .collect();
+                if kind == PlotKind::Residuals {
+                    let caption = format!(
+                        "Figure {n}. Residuals of {} against fitted values (level means); observations beyond ±3 studentized residuals are labelled with their data line.",
+                        r.response
+                    );
+                    let desc = format!("{} residuals; {} flagged.", residuals.len(), flags.len());
+                    (
+                        caption.clone(),
+                        residual_plot(&id, &caption, &desc, &fitted, &residuals, &flags),
+                    )
+                } else {
+                    let caption = format!(
+                        "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.",
+                        r.response
+                    );
+                    let desc = format!("{} residuals against normal quantiles.", residuals.len());
+                    (caption.clone(), qq_plot(&id, &caption, &desc, &residuals))
+                }
+            }
+            PlotKind::Interaction => continue,
+        };
+        *number += 1;
+        out.push(Figure {
+            id,
+            kind: kind.key(),
+            number: n,
+            caption,
+            svg,
+        });
+    }
+    out
+}
+
+/// The figures of a factorial block.
+pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure> {
+    let spec = &r.plots;
+    let y_title = axis_title(spec, &r.response);
+    let Some(&fa) = r.cell_factors.first() else {
+        return Vec::new();
+    };
+    let fam = r
+        .families
+        .iter()
+        .find(|f| f.term == r.factors[fa] && f.within.is_none());
+    let values: Vec<Vec<f64>> = (0..r.levels[fa].len())
+        .map(|l| {
+            r.rows
+                .iter()
+                .zip(&r.values)
+                .filter(|(row, _)| row[fa] == l)
+                .map(|(_, v)| *v)
+                .collect()
+        })
+        .collect();
+    let t = t_isf(r.alpha / 2.0, r.residual_df as f64);
+    let groups: Vec<Group> = r.levels[fa]
+        .iter()
+        .enumerate()
+        .map(|(l, name)| {
+            let (mean, ci) = match fam {
+                Some(f) => (f.means[l].mean, (f.means[l].ci_lower, f.means[l].ci_upper)),
+                None => {
+                    let m = values[l].iter().sum::<f64>() / values[l].len().max(1) as f64;
+                    let se = (r.mse / values[l].len().max(1) as f64).sqrt();
+                    (m, (m - t * se, m + t * se))
+                }
+            };
+            Group {
+                label: name,
+                values: &values[l],
+                letters: fam.map(|f| f.comparison.letters[l].as_str()),
+                mean,
+                ci,
+            }
+        })
+        .collect();
+    let conf = crate::render::view::confidence_label(r.alpha);
+    let letters_note = fam.map_or(String::new(), |f| {
+        format!(
+            " Levels sharing a letter do not differ significantly ({}, α = {}).",
+            f.comparison.method.title(),
+            f.comparison.alpha
+        )
+    });
+    let mut out = Vec::new();
+    for &kind in &spec.kinds {
+        let id = figure_id(&r.id, kind);
+        let n = *number;
+        let factor = &r.factors[fa];
+        let (caption, svg) = match kind {
+            PlotKind::Box => {
+                let caption = format!(
+                    "Figure {n}. {} by {factor}: box plots with every observation.{letters_note}",
+                    r.response
+                );
+                (
+                    caption.clone(),
+                    box_plot(
+                        &id,
+                        &caption,
+                        &caption,
+                        &groups,
+                        &y_title,
+                        factor,
+                        spec.reference,
+                    ),
+                )
+            }
+            PlotKind::Strip => {
+                let caption = format!(
+                    "Figure {n}. Every observation of {} by {factor}, with means as bars.{letters_note}",
+                    r.response
+                );
+                (
+                    caption.clone(),
+                    strip_plot(
+                        &id,
+                        &caption,
+                        &caption,
+                        &groups,
+                        &y_title,
+                        factor,
+                        spec.reference,
+                    ),
+                )
+            }
+            PlotKind::Means => {
+                let caption = format!(
+                    "Figure {n}. Estimated marginal means of {} by {factor} with {conf} confidence intervals from the model.{letters_note}",
+                    r.response
+                );
+                (
+                    caption.clone(),
+                    means_plot(
+                        &id,
+                        &caption,
+                        &caption,
+                        &groups,
+                        &y_title,
+                        factor,
+                        spec.reference,
+                    ),
+                )
+            }
+            PlotKind::Interaction => {
+                let Some(&fb) = r.cell_factors.get(1) else {
+                    continue;
+                };
+                let x_labels: Vec<&str> = r.levels[fa].iter().map(String::as_str).collect();
+                let series: Vec<Series> = r.levels[fb]
+                    .iter()
+                    .enumerate()
+                    .map(|(b, name)| {
+                        let pts = (0..r.levels[fa].len())
+                            .map(|a| {
+                                let v: Vec<f64> = r
+                                    .rows
+                                    .iter()
+                                    .zip(&r.values)
+                                    .filter(|(row, _)| row[fa] == a && row[fb] == b)
+                                    .map(|(_, v)| *v)
+                                    .collect();
+                                if v.is_empty() {
+                                    return (f64::NAN, f64::NAN, f64::NAN);
+                                }
+                                let m = v.iter().sum::<f64>() / v.len() as f64;
+                                let se = (r.mse / v.len() as f64).sqrt();
+                                (m, m - t * se, m + t * se)
+                            })
+                            .collect();
+                        (name.clone(), pts)
+                    })
+                    .collect();
+                let caption = format!(
+                    "Figure {n}. Cell means of {}: {factor} on the axis, one line per level of {}, with {conf} confidence intervals (model residual mean square).",
+                    r.response, r.factors[fb]
+                );
+                (
+                    caption.clone(),
+                    interaction_plot(
+                        &id,
+                        &caption,
+                        &caption,
+                        &x_labels,
+                        &series,
+                        &y_title,
+                        factor,
+                        spec.reference,
+                    ),
+                )
+            }
+            PlotKind::Residuals => {
+                let flags: Vec<(usize, String)> = r
+                    .checks
+                    .outliers
+                    .iter()
+                    .filter_map(|o| {
+                        r.lines
+                            .iter()
+                            .position(|l| *l == o.line)
+                            .map(|i| (i, format!("line {}", o.line)))
+                    })
+                    .collect();
+                let caption = format!(
+                    "Figure {n}. Residuals of {} against fitted values; observations beyond ±3 studentized residuals are labelled with their data line.",
+                    r.response
+                );
+                (
+                    caption.clone(),
+                    residual_plot(&id, &caption, &caption, &r.fitted, &r.residuals, &flags),
+                )
+            }
+            PlotKind::Qq => {
+                let caption = format!(
+                    "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.",
+                    r.response
+                );
+                (
+                    caption.clone(),
+                    qq_plot(&id, &caption, &caption, &r.residuals),
+                )
+            }
+        };
+        *number += 1;
+        out.push(Figure {
+            id,
+            kind: kind.key(),
+            number: n,
+            caption,
+            svg,
+        });
+    }
+    out
+}
