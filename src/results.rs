@@ -41,7 +41,7 @@ pub struct ResultsFile {
 pub enum BlockEntry {
     Anova(Box<BlockRecord>),
     Factorial(Box<FactorialRecord>),
-    Power(PowerRecord),
+    Power(Box<PowerRecord>),
 }
 
 /// A factorial `anova` block: the same fields as a one-factor block where
@@ -271,6 +271,7 @@ pub struct PowerRecord {
     pub n_per_group: Option<usize>,
     pub power: Option<f64>,
     pub curve: Vec<PowerPointRecord>,
+    pub figures: Vec<FigureRecord>,
     pub warnings: Vec<String>,
 }
 
@@ -315,6 +316,7 @@ pub fn power_record(r: &PowerResult) -> PowerRecord {
                 power: finite(*p),
             })
             .collect(),
+        figures: Vec::new(),
         warnings: r.warnings.clone(),
     }
 }
@@ -737,7 +739,11 @@ pub fn results_json(
                     rec.figures = figure_records(i);
                     BlockEntry::Factorial(Box::new(rec))
                 }
-                BlockResult::Power(r) => BlockEntry::Power(power_record(r)),
+                BlockResult::Power(r) => {
+                    let mut rec = power_record(r);
+                    rec.figures = figure_records(i);
+                    BlockEntry::Power(Box::new(rec))
+                }
             })
             .collect(),
     };

@@ -326,7 +326,7 @@ pub fn draw_all(results: &[BlockResult]) -> Vec<Vec<Figure>> {
         .map(|r| match r {
             BlockResult::Anova(a) => plots::one_way_figures(a, &mut number),
             BlockResult::Factorial(f) => plots::factorial_figures(f, &mut number),
-            BlockResult::Power(_) => Vec::new(),
+            BlockResult::Power(p) => plots::power_figures(p, &mut number),
         })
         .collect()
 }

@@ -357,6 +357,18 @@ fn scatter_frame(
     x_title: &str,
     y_title: &str,
 ) -> (Scale, Scale) {
+    scatter_frame_in(svg, xs, ys, x_title, y_title, None)
+}
+
+/// As `scatter_frame`, optionally with a fixed y range (probabilities).
+fn scatter_frame_in(
+    svg: &mut Svg,
+    xs: &[f64],
+    ys: &[f64],
+    x_title: &str,
+    y_title: &str,
+    y_fixed: Option<(f64, f64)>,
+) -> (Scale, Scale) {
     let finite = |v: &[f64]| {
         v.iter()
             .copied()
@@ -369,7 +381,10 @@ fn scatter_frame(
     let (yl, yh) = finite(ys);
     let pad = |l: f64, h: f64| ((h - l).abs().max(1e-9)) * 0.06;
     let xt = nice_ticks(xl - pad(xl, xh), xh + pad(xl, xh), 5);
-    let yt = nice_ticks(yl - pad(yl, yh), yh + pad(yl, yh), 5);
+    let yt = match y_fixed {
+        Some((a, b)) => nice_ticks(a, b, 5),
+        None => nice_ticks(yl - pad(yl, yh), yh + pad(yl, yh), 5),
+    };
     let ystep = if yt.len() > 1 { yt[1] - yt[0] } else { 1.0 };
     let xstep = if xt.len() > 1 { xt[1] - xt[0] } else { 1.0 };
     let ylabels: Vec<String> = yt.iter().map(|t| tick_label(*t, ystep)).collect();
@@ -918,4 +933,73 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
         });
     }
     out
+}
+
+/// The power curve of a `power` block: power against n per group, with the
+/// target (or the given n) marked.
+pub fn power_figures(r: &crate::analysis::PowerResult, number: &mut usize) -> Vec<Figure> {
+    if r.curve.len() < 2 {
+        return Vec::new();
+    }
+    let n_max = r.curve.last().map_or(2, |(n, _)| *n);
+    let ns: Vec<usize> = (2..=n_max.max(3)).step_by((n_max / 60).max(1)).collect();
+    let xs: Vec<f64> = ns.iter().map(|n| *n as f64).collect();
+    let ps: Vec<f64> = ns
+        .iter()
+        .map(|n| crate::stats::effect::one_way_power(r.groups, *n, r.cohens_f, r.alpha))
+        .collect();
+    let id = format!("{}-power", r.id);
+    let n = *number;
+    let caption = format!(
+        "Figure {n}. Power of the one-way F test against observations per group ({} groups, Cohen's f = {}, α = {}).",
+        r.groups,
+        crate::render::format::significant(r.cohens_f, 3),
+        r.alpha
+    );
+    let mut svg = Svg::new(&id, WIDTH, HEIGHT, &caption, &caption);
+    let (x, y) = scatter_frame_in(
+        &mut svg,
+        &xs,
+        &ps,
+        "Observations per group",
+        "Power",
+        Some((0.0, 1.0)),
+    );
+    let pts: Vec<(f64, f64)> = xs
+        .iter()
+        .zip(&ps)
+        .map(|(a, b)| (x.map(*a), y.map(*b)))
+        .collect();
+    svg.polyline(&pts, PALETTE[0], 2.0);
+    if let Some(t) = r.target {
+        svg.line(x.p0, y.map(t), x.p1, y.map(t), MUTED, 1.0, Some("4 3"));
+    }
+    if let Some(nn) = r.n_per_group {
+        svg.marker(
+            x.map(nn as f64),
+            y.map(r.power),
+            4.5,
+            0,
+            PALETTE[1],
+            INK,
+            "answer",
+        );
+        svg.text(
+            x.map(nn as f64) + 8.0,
+            y.map(r.power) + 14.0,
+            &format!("n = {nn}"),
+            "start",
+            TICK_SIZE,
+            None,
+            "answer",
+        );
+    }
+    *number += 1;
+    vec![Figure {
+        id,
+        kind: "power",
+        number: n,
+        caption,
+        svg: svg.finish(),
+    }]
 }
