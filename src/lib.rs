@@ -26,8 +26,11 @@ pub mod figure;
 pub mod output;
 pub mod render;
 pub mod results;
+pub mod scaffold;
 pub mod source;
 pub mod stats;
+pub mod validate;
+pub mod verify;
 
 /// sheaf's version, printed in every report and results file.
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");

@@ -1,11 +1,16 @@
 //! The `sheaf` command: parses arguments, calls the library, prints
-//! diagnostics, maps outcomes to exit codes (0 success, 1 error, 2 usage).
+//! diagnostics, maps outcomes to exit codes (0 success, 1 error or drift,
+//! 2 usage).
+
+// Diagnostics travel by value on the cold error path, as in the library.
+#![allow(clippy::result_large_err)]
 
 use clap::{Parser, Subcommand, ValueEnum};
-use sheaf::compile::{DiskWorld, compile};
+use sheaf::compile::{Built, DiskWorld, compile};
+use sheaf::diag::Diagnostic;
 use sheaf::output::write_outputs;
 use sheaf::render::Format;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(Parser)]
@@ -17,6 +22,9 @@ use std::process::ExitCode;
 struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// Print errors as one line each (file:line:col: error: message).
+    #[arg(long, global = true)]
+    short_errors: bool,
 }
 
 #[derive(Subcommand)]
@@ -31,9 +39,26 @@ enum Command {
         /// Report format.
         #[arg(long = "to", value_enum, default_value_t = To::Html)]
         to: To,
-        /// Print errors as one line each (file:line:col: error: message).
-        #[arg(long)]
-        short_errors: bool,
+    },
+    /// Check that the report in DIR is exactly what the sources produce now.
+    Verify {
+        document: PathBuf,
+        #[arg(short = 'o', long = "out", value_name = "DIR")]
+        out: PathBuf,
+        /// The format the report was built in.
+        #[arg(long = "to", value_enum, default_value_t = To::Html)]
+        to: To,
+    },
+    /// Start a new study folder from a small invented example.
+    New {
+        /// The folder to create (must not exist, or be empty).
+        folder: PathBuf,
+    },
+    /// Run the built-in accuracy suite and write a validation report.
+    Validate {
+        /// Where to write validation.html and validation.results.json.
+        #[arg(short = 'o', long = "out", value_name = "DIR")]
+        out: Option<PathBuf>,
     },
 }
 
@@ -43,41 +68,42 @@ enum To {
     Md,
 }
 
+impl To {
+    fn format(self) -> Format {
+        match self {
+            To::Html => Format::Html,
+            To::Md => Format::Markdown,
+        }
+    }
+}
+
+fn report(d: &Diagnostic, short: bool) -> ExitCode {
+    if short {
+        eprintln!("{}", d.short());
+    } else {
+        eprint!("{d}");
+    }
+    ExitCode::from(1)
+}
+
+fn build(document: &Path, format: Format) -> Result<Built, Diagnostic> {
+    let display = document.display().to_string();
+    let bytes = std::fs::read(document).map_err(|e| {
+        Diagnostic::new(format!("cannot read {display}: {e}"))
+            .hint("give the path of a Markdown document")
+    })?;
+    let base = document.parent().map(PathBuf::from).unwrap_or_default();
+    compile(&display, &bytes, &DiskWorld { base }, format)
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    let short = cli.short_errors;
     match cli.command {
-        Command::Build {
-            document,
-            out,
-            to,
-            short_errors,
-        } => {
-            let format = match to {
-                To::Html => Format::Html,
-                To::Md => Format::Markdown,
-            };
-            let display = document.display().to_string();
-            let fail = |d: sheaf::diag::Diagnostic| {
-                if short_errors {
-                    eprintln!("{}", d.short());
-                } else {
-                    eprint!("{d}");
-                }
-                ExitCode::from(1)
-            };
-            let bytes = match std::fs::read(&document) {
+        Command::Build { document, out, to } => {
+            let built = match build(&document, to.format()) {
                 Ok(b) => b,
-                Err(e) => {
-                    return fail(
-                        sheaf::diag::Diagnostic::new(format!("cannot read {display}: {e}"))
-                            .hint("give the path of a Markdown document"),
-                    );
-                }
-            };
-            let base = document.parent().map(PathBuf::from).unwrap_or_default();
-            let built = match compile(&display, &bytes, &DiskWorld { base }, format) {
-                Ok(b) => b,
-                Err(d) => return fail(d),
+                Err(d) => return report(&d, short),
             };
             for w in &built.warnings {
                 eprintln!("warning: {w}");
@@ -89,7 +115,70 @@ fn main() -> ExitCode {
                     }
                     ExitCode::SUCCESS
                 }
-                Err(d) => fail(d),
+                Err(d) => report(&d, short),
+            }
+        }
+        Command::Verify { document, out, to } => {
+            let built = match build(&document, to.format()) {
+                Ok(b) => b,
+                Err(d) => return report(&d, short),
+            };
+            let drift = sheaf::verify::verify(&built, &out);
+            if drift.is_clean() {
+                eprintln!(
+                    "{} is up to date with its sources",
+                    out.join(&built.report_name).display()
+                );
+                ExitCode::SUCCESS
+            } else {
+                eprintln!(
+                    "{} has drifted from its sources:",
+                    out.join(&built.report_name).display()
+                );
+                eprint!("{}", drift.account());
+                eprintln!(
+                    "rebuild with `sheaf build {} -o {}` and review the changes",
+                    document.display(),
+                    out.display()
+                );
+                ExitCode::from(1)
+            }
+        }
+        Command::New { folder } => match sheaf::scaffold::create(&folder) {
+            Ok(files) => {
+                for f in files {
+                    eprintln!("wrote {}", f.display());
+                }
+                eprintln!(
+                    "next: sheaf build {} -o {}",
+                    folder.join("report.md").display(),
+                    folder.join("out").display()
+                );
+                ExitCode::SUCCESS
+            }
+            Err(d) => report(&d, short),
+        },
+        Command::Validate { out } => {
+            let v = sheaf::validate::run();
+            for c in &v.checks {
+                let mark = if c.pass { "pass" } else { "FAIL" };
+                println!("{mark}  {:<48} {}", c.name, c.detail());
+            }
+            println!("{} passed, {} failed", v.passed(), v.failed());
+            if let Some(dir) = out {
+                match sheaf::validate::write(&v, &dir) {
+                    Ok(paths) => {
+                        for p in paths {
+                            eprintln!("wrote {}", p.display());
+                        }
+                    }
+                    Err(d) => return report(&d, short),
+                }
+            }
+            if v.failed() == 0 {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(1)
             }
         }
     }

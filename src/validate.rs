@@ -1,0 +1,562 @@
+//! `sheaf validate`: the accuracy suite built into the binary. Runs the NIST
+//! StRD ANOVA datasets against their certified values and reference-library
+//! cases for the distributions, comparison procedures and checks, and writes
+//! a validation report. Every reference value comes from an outside source
+//! (NIST, scipy, statsmodels, pingouin, scikit-posthocs, published tables),
+//! embedded at compile time; nothing is compared with sheaf's own output.
+
+use crate::data::{CsvFormat, Table, factor_response, factorial_response};
+use crate::diag::Diagnostic;
+use crate::stats::assumptions::{Center, levene};
+use crate::stats::compare::{LevelMean, Method, pairwise};
+use crate::stats::dist::{f_isf, t_isf};
+use crate::stats::dunnett::{Sides, dunnett};
+use crate::stats::effect::one_way_sample_size;
+use crate::stats::linear::{Layout, SsType, design_matrix, sums_of_squares, term_columns};
+use crate::stats::oneway::{GroupSummary, one_way, total_sum_of_squares};
+use crate::stats::ptukey::{ptukey_cdf, qtukey_isf};
+use crate::stats::ranks::kruskal_wallis;
+use crate::stats::welch::welch_anova;
+use serde::Serialize;
+use serde_json::Value;
+use std::path::{Path, PathBuf};
+
+/// The git revision sheaf was built from ("unknown" outside a git checkout).
+pub const REVISION: &str = env!("SHEAF_GIT_REVISION");
+
+/// How a check is judged.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum Bar {
+    /// Log relative error at least this.
+    MinLre { lre: f64 },
+    /// Absolute difference at most this.
+    MaxAbs { diff: f64 },
+    /// Exactly equal (counts such as degrees of freedom or sample sizes).
+    Exact,
+}
+
+/// One check.
+#[derive(Debug, Clone, Serialize)]
+pub struct Check {
+    pub name: String,
+    pub source: String,
+    pub value: f64,
+    pub reference: f64,
+    /// −log10 of the relative error (15 when exact).
+    pub lre: f64,
+    pub bar: Bar,
+    pub pass: bool,
+}
+
+impl Check {
+    fn new(name: impl Into<String>, source: &str, value: f64, reference: f64, bar: Bar) -> Self {
+        let lre = if value == reference {
+            15.0
+        } else {
+            (-((value - reference) / reference).abs().log10()).clamp(0.0, 15.0)
+        };
+        let pass = match bar {
+            Bar::MinLre { lre: min } => lre >= min,
+            Bar::MaxAbs { diff } => (value - reference).abs() <= diff,
+            Bar::Exact => value == reference,
+        };
+        Check {
+            name: name.into(),
+            source: source.to_string(),
+            value,
+            reference,
+            lre,
+            bar,
+            pass,
+        }
+    }
+
+    /// "value vs reference (LRE 14.2, bar ≥ 9)".
+    pub fn detail(&self) -> String {
+        let bar = match self.bar {
+            Bar::MinLre { lre } => format!("LRE ≥ {lre}"),
+            Bar::MaxAbs { diff } => format!("|Δ| ≤ {diff:e}"),
+            Bar::Exact => "exact".to_string(),
+        };
+        format!(
+            "{:.10e} vs {:.10e} (LRE {:.1}; {bar})",
+            self.value, self.reference, self.lre
+        )
+    }
+}
+
+/// The whole validation run.
+#[derive(Debug, Clone, Serialize)]
+pub struct Validation {
+    pub sheaf: String,
+    pub revision: String,
+    pub platform: String,
+    pub checks: Vec<Check>,
+}
+
+impl Validation {
+    pub fn passed(&self) -> usize {
+        self.checks.iter().filter(|c| c.pass).count()
+    }
+
+    pub fn failed(&self) -> usize {
+        self.checks.len() - self.passed()
+    }
+}
+
+const NIST: [(&str, &str); 11] = [
+    ("AtmWtAg", include_str!("../tests/data/nist/AtmWtAg.csv")),
+    ("SiRstv", include_str!("../tests/data/nist/SiRstv.csv")),
+    ("SmLs01", include_str!("../tests/data/nist/SmLs01.csv")),
+    ("SmLs02", include_str!("../tests/data/nist/SmLs02.csv")),
+    ("SmLs03", include_str!("../tests/data/nist/SmLs03.csv")),
+    ("SmLs04", include_str!("../tests/data/nist/SmLs04.csv")),
+    ("SmLs05", include_str!("../tests/data/nist/SmLs05.csv")),
+    ("SmLs06", include_str!("../tests/data/nist/SmLs06.csv")),
+    ("SmLs07", include_str!("../tests/data/nist/SmLs07.csv")),
+    ("SmLs08", include_str!("../tests/data/nist/SmLs08.csv")),
+    ("SmLs09", include_str!("../tests/data/nist/SmLs09.csv")),
+];
+const NIST_CERTIFIED: &str = include_str!("../tests/data/nist/certified.json");
+const DISTRIBUTIONS: &str = include_str!("../tests/reference/distributions.json");
+const ONEWAY: &str = include_str!("../tests/reference/oneway.json");
+const ROBUST: &str = include_str!("../tests/reference/robust.json");
+const FACTORIAL: &str = include_str!("../tests/reference/factorial.json");
+const PLANTS: &str = include_str!("../tests/data/open/PlantGrowth.csv");
+const ASSAY: &str = include_str!("../tests/data/invented/assay.csv");
+const WARP: &str = include_str!("../tests/data/open/warpbreaks.csv");
+const WARP_UNBALANCED: &str = include_str!("../tests/data/invented/warp-unbalanced.csv");
+
+fn num(v: &Value) -> f64 {
+    v.as_f64().unwrap_or(f64::NAN)
+}
+
+fn groups_of(csv: &str, response: &str, factor: &str) -> Vec<Vec<f64>> {
+    let format = CsvFormat::default();
+    let Ok(table) = Table::parse(csv.as_bytes(), &format) else {
+        return Vec::new();
+    };
+    let Ok(data) = factor_response(&table, response, factor, &format) else {
+        return Vec::new();
+    };
+    data.levels
+        .iter()
+        .map(|l| l.offsets.iter().map(|y| data.origin + y).collect())
+        .collect()
+}
+
+/// Runs every check.
+pub fn run() -> Validation {
+    let mut checks = Vec::new();
+    nist(&mut checks);
+    distributions(&mut checks);
+    oneway_cases(&mut checks);
+    robust_cases(&mut checks);
+    factorial_cases(&mut checks);
+    published(&mut checks);
+    Validation {
+        sheaf: crate::VERSION.to_string(),
+        revision: REVISION.to_string(),
+        platform: format!("{}-{}", std::env::consts::ARCH, std::env::consts::OS),
+        checks,
+    }
+}
+
+fn nist(checks: &mut Vec<Check>) {
+    let certified: Value = serde_json::from_str(NIST_CERTIFIED).unwrap_or(Value::Null);
+    let source = "NIST StRD ANOVA certified values";
+    for (name, csv) in NIST {
+        let c = |key: &str| {
+            certified["datasets"][name]["certified"][key]
+                .as_str()
+                .and_then(|s| s.parse::<f64>().ok())
+                .unwrap_or(f64::NAN)
+        };
+        let format = CsvFormat::default();
+        let Some(data) = Table::parse(csv.as_bytes(), &format)
+            .ok()
+            .and_then(|t| factor_response(&t, "value", "group", &format).ok())
+        else {
+            checks.push(Check::new(
+                format!("{name}: data readable"),
+                source,
+                0.0,
+                1.0,
+                Bar::Exact,
+            ));
+            continue;
+        };
+        let s: Vec<GroupSummary> = data
+            .levels
+            .iter()
+            .map(|l| GroupSummary::from_values(&l.offsets))
+            .collect();
+        let sst = total_sum_of_squares(data.levels.iter().map(|l| l.offsets.as_slice()));
+        let Ok(t) = one_way(&s, 0.05, Some(sst)) else {
+            continue;
+        };
+        let lre9 = Bar::MinLre { lre: 9.0 };
+        checks.push(Check::new(
+            format!("{name}: between-groups SS"),
+            source,
+            t.ss_between,
+            c("between_ss"),
+            lre9,
+        ));
+        checks.push(Check::new(
+            format!("{name}: within-groups SS"),
+            source,
+            t.ss_within,
+            c("within_ss"),
+            lre9,
+        ));
+        checks.push(Check::new(
+            format!("{name}: between-groups MS"),
+            source,
+            t.ms_between,
+            c("between_ms"),
+            lre9,
+        ));
+        checks.push(Check::new(
+            format!("{name}: within-groups MS"),
+            source,
+            t.ms_within,
+            c("within_ms"),
+            lre9,
+        ));
+        checks.push(Check::new(
+            format!("{name}: F"),
+            source,
+            t.f,
+            c("f_statistic"),
+            lre9,
+        ));
+    }
+}
+
+fn distributions(checks: &mut Vec<Check>) {
+    let fx: Value = serde_json::from_str(DISTRIBUTIONS).unwrap_or(Value::Null);
+    for r in fx["t_isf"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter(|r| num(&r["p"]) == 0.025)
+    {
+        let got = t_isf(num(&r["p"]), num(&r["df"]));
+        checks.push(Check::new(
+            format!("t critical value, df = {}", r["df"]),
+            "scipy.stats.t.isf",
+            got,
+            num(&r["isf"]),
+            Bar::MinLre { lre: 9.0 },
+        ));
+    }
+    for r in fx["f_isf"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter(|r| num(&r["p"]) == 0.05)
+    {
+        let got = f_isf(num(&r["p"]), num(&r["d1"]), num(&r["d2"]));
+        checks.push(Check::new(
+            format!("F critical value, df = ({}, {})", r["d1"], r["d2"]),
+            "scipy.stats.f.isf",
+            got,
+            num(&r["isf"]),
+            Bar::MinLre { lre: 9.0 },
+        ));
+    }
+    for r in fx["ptukey_cdf"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter(|r| r["k"].as_u64().unwrap_or(0) <= 20 && num(&r["q"]) >= 2.0)
+    {
+        let k = r["k"].as_u64().unwrap_or(2) as usize;
+        let df = r["df"].as_f64().unwrap_or(f64::INFINITY);
+        let got = ptukey_cdf(num(&r["q"]), k, df);
+        checks.push(Check::new(
+            format!(
+                "studentized range cdf, q = {}, k = {k}, df = {}",
+                r["q"], r["df"]
+            ),
+            "scipy.stats.studentized_range.cdf",
+            got,
+            num(&r["cdf"]),
+            Bar::MaxAbs { diff: 1e-8 },
+        ));
+    }
+}
+
+fn oneway_cases(checks: &mut Vec<Check>) {
+    let fx: Value = serde_json::from_str(ONEWAY).unwrap_or(Value::Null);
+    let Some(case) = fx["cases"]
+        .as_array()
+        .and_then(|c| c.iter().find(|c| c["name"] == "plant_growth"))
+    else {
+        return;
+    };
+    let groups = groups_of(PLANTS, "weight", "group");
+    let s: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    let Ok(t) = one_way(&s, 0.05, None) else {
+        return;
+    };
+    let src = "statsmodels anova_lm";
+    checks.push(Check::new(
+        "PlantGrowth one-way F",
+        src,
+        t.f,
+        num(&case["anova"]["f"]),
+        Bar::MinLre { lre: 9.0 },
+    ));
+    checks.push(Check::new(
+        "PlantGrowth one-way p",
+        src,
+        t.p,
+        num(&case["anova"]["p"]),
+        Bar::MaxAbs { diff: 1e-12 },
+    ));
+    let levels: Vec<LevelMean> = s
+        .iter()
+        .map(|g| LevelMean {
+            n: g.n,
+            mean: g.mean,
+        })
+        .collect();
+    for (key, method, bar, src) in [
+        (
+            "tukey",
+            Method::Tukey,
+            Bar::MaxAbs { diff: 1e-8 },
+            "scipy.stats.tukey_hsd",
+        ),
+        (
+            "lsd",
+            Method::Lsd,
+            Bar::MaxAbs { diff: 1e-12 },
+            "scipy.stats.t",
+        ),
+        (
+            "holm",
+            Method::Holm,
+            Bar::MaxAbs { diff: 1e-12 },
+            "statsmodels multipletests",
+        ),
+    ] {
+        let fam = pairwise(&levels, t.ms_within, t.df_within as f64, 0.05, method);
+        for (p, r) in fam
+            .pairs
+            .iter()
+            .zip(case["comparisons"][key].as_array().into_iter().flatten())
+        {
+            checks.push(Check::new(
+                format!("PlantGrowth {key} p, {} − {}", r["a"], r["b"]),
+                src,
+                p.p_adj,
+                num(&r["p_adj"]),
+                bar,
+            ));
+        }
+    }
+}
+
+fn robust_cases(checks: &mut Vec<Check>) {
+    let fx: Value = serde_json::from_str(ROBUST).unwrap_or(Value::Null);
+    for (name, csv, response, factor) in [
+        ("plant_growth", PLANTS, "weight", "group"),
+        ("assay", ASSAY, "signal", "condition"),
+    ] {
+        let Some(case) = fx["cases"]
+            .as_array()
+            .and_then(|c| c.iter().find(|c| c["name"] == name))
+        else {
+            continue;
+        };
+        let groups = groups_of(csv, response, factor);
+        let refs: Vec<&[f64]> = groups.iter().map(Vec::as_slice).collect();
+        let s: Vec<GroupSummary> = groups
+            .iter()
+            .map(|g| GroupSummary::from_values(g))
+            .collect();
+        if let Some(bf) = levene(&refs, Center::Median) {
+            checks.push(Check::new(
+                format!("{name} Brown-Forsythe F"),
+                "scipy.stats.levene",
+                bf.statistic,
+                num(&case["checks"]["brown_forsythe"]["statistic"]),
+                Bar::MinLre { lre: 9.0 },
+            ));
+        }
+        if let Ok(w) = welch_anova(&s) {
+            checks.push(Check::new(
+                format!("{name} Welch F"),
+                "pingouin.welch_anova",
+                w.f,
+                num(&case["welch"]["f"]),
+                Bar::MinLre { lre: 9.0 },
+            ));
+        }
+        if let Some(kw) = kruskal_wallis(&refs) {
+            checks.push(Check::new(
+                format!("{name} Kruskal-Wallis H"),
+                "scipy.stats.kruskal",
+                kw.h,
+                num(&case["kruskal"]["h"]),
+                Bar::MinLre { lre: 9.0 },
+            ));
+        }
+    }
+}
+
+fn factorial_cases(checks: &mut Vec<Check>) {
+    let fx: Value = serde_json::from_str(FACTORIAL).unwrap_or(Value::Null);
+    for (name, csv) in [("warpbreaks", WARP), ("warp_unbalanced", WARP_UNBALANCED)] {
+        let Some(case) = fx["cases"]
+            .as_array()
+            .and_then(|c| c.iter().find(|c| c["name"] == name))
+        else {
+            continue;
+        };
+        let format = CsvFormat::default();
+        let Some(data) = Table::parse(csv.as_bytes(), &format)
+            .ok()
+            .and_then(|t| factorial_response(&t, "breaks", &["wool", "tension"], &format).ok())
+        else {
+            continue;
+        };
+        let layout = Layout {
+            levels: data.levels.iter().map(Vec::len).collect(),
+            rows: data.rows,
+        };
+        let y: Vec<f64> = data.offsets.iter().map(|o| o + data.origin).collect();
+        let terms = vec![vec![0], vec![1], vec![0, 1]];
+        let design = design_matrix(&layout, &terms);
+        let ranges = term_columns(&terms, &layout.levels);
+        for (key, ty) in [("1", SsType::I), ("2", SsType::II), ("3", SsType::III)] {
+            let t = sums_of_squares(&design, &y, &terms, &ranges, ty);
+            for (got, want) in t
+                .terms
+                .iter()
+                .zip(case["tables"][key].as_array().into_iter().flatten())
+            {
+                checks.push(Check::new(
+                    format!("{name} Type {key} SS, term {}", got.df),
+                    "statsmodels anova_lm (sum-to-zero coding)",
+                    got.ss,
+                    num(&want["ss"]),
+                    Bar::MinLre { lre: 9.0 },
+                ));
+            }
+        }
+    }
+}
+
+fn published(checks: &mut Vec<Check>) {
+    // Dunnett (1955) blood counts; reference p and d from deterministic
+    // quadrature (METHODS 6.4), within 1e-6.
+    let mean = |v: &[f64]| v.iter().sum::<f64>() / v.len() as f64;
+    let levels = [
+        (6, mean(&[7.40, 8.50, 7.20, 8.24, 9.84, 8.32])),
+        (4, mean(&[9.76, 8.80, 7.68, 9.36])),
+        (5, mean(&[12.80, 9.68, 12.16, 9.20, 10.55])),
+    ];
+    let fam = dunnett(&levels, 0, 1.3805233, 12.0, 0.05, Sides::Two);
+    let src = "Dunnett (1955) data; deterministic reference quadrature";
+    checks.push(Check::new(
+        "Dunnett adjusted p, drug A",
+        src,
+        fam.pairs[0].p_adj,
+        0.6201020,
+        Bar::MaxAbs { diff: 1e-6 },
+    ));
+    checks.push(Check::new(
+        "Dunnett adjusted p, drug B",
+        src,
+        fam.pairs[1].p_adj,
+        0.0058254,
+        Bar::MaxAbs { diff: 1e-6 },
+    ));
+    checks.push(Check::new(
+        "Dunnett critical value",
+        src,
+        fam.critical,
+        2.51348,
+        Bar::MaxAbs { diff: 5e-5 },
+    ));
+    // Harter (1960) studentized range table, q(0.95), printed to 3 decimals.
+    for (k, df, q) in [
+        (3, 10.0, 3.877),
+        (4, 20.0, 3.958),
+        (5, f64::INFINITY, 3.858),
+    ] {
+        checks.push(Check::new(
+            format!("q(0.95; {k}, {df})"),
+            "Harter (1960) table",
+            qtukey_isf(0.05, k, df),
+            q,
+            Bar::MaxAbs { diff: 5e-4 },
+        ));
+    }
+    // Cohen (1988) power tables: n per group for power 0.8, α = 0.05.
+    for (k, f, n) in [(4, 0.25, 45.0), (4, 0.10, 274.0), (2, 0.25, 64.0)] {
+        let got = one_way_sample_size(k, f, 0.05, 0.8).map_or(f64::NAN, |(n, _)| n as f64);
+        checks.push(Check::new(
+            format!("n per group, k = {k}, f = {f}"),
+            "Cohen (1988) power tables",
+            got,
+            n,
+            Bar::Exact,
+        ));
+    }
+}
+
+/// Writes validation.html and validation.results.json into `dir`.
+pub fn write(v: &Validation, dir: &Path) -> Result<Vec<PathBuf>, Diagnostic> {
+    let json = serde_json::to_vec_pretty(v).unwrap_or_default();
+    let mut html = String::new();
+    html.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>sheaf validation</title>\n<style>\n");
+    html.push_str(include_str!("../templates/report.css"));
+    html.push_str("\ntd.fail { color: #b00020; font-weight: 600; }\n</style>\n</head>\n<body>\n<main>\n<h1 class=\"title\">sheaf validation report</h1>\n");
+    let e = crate::render::html_escape;
+    html.push_str(&format!(
+        "<p>sheaf {} (revision <code>{}</code>) on {}: {} checks passed, {} failed. Each check compares a value computed by this installation with a certified or reference value from the named outside source; LRE is the log relative error.</p>\n",
+        e(&v.sheaf),
+        e(&v.revision),
+        e(&v.platform),
+        v.passed(),
+        v.failed()
+    ));
+    html.push_str("<table>\n<thead><tr><th>Check</th><th>Source</th><th class=\"num\">Value</th><th class=\"num\">Reference</th><th class=\"num\">LRE</th><th>Bar</th><th>Result</th></tr></thead>\n<tbody>\n");
+    for c in &v.checks {
+        let bar = match c.bar {
+            Bar::MinLre { lre } => format!("LRE ≥ {lre}"),
+            Bar::MaxAbs { diff } => format!("|Δ| ≤ {diff:e}"),
+            Bar::Exact => "exact".into(),
+        };
+        html.push_str(&format!(
+            "<tr><td>{}</td><td>{}</td><td class=\"num\">{:.12e}</td><td class=\"num\">{:.12e}</td><td class=\"num\">{:.1}</td><td>{}</td><td{}>{}</td></tr>\n",
+            e(&c.name),
+            e(&c.source),
+            c.value,
+            c.reference,
+            c.lre,
+            e(&bar),
+            if c.pass { "" } else { " class=\"fail\"" },
+            if c.pass { "pass" } else { "FAIL" }
+        ));
+    }
+    html.push_str("</tbody>\n</table>\n<p>This report is generated by <code>sheaf validate</code>; it is evidence that this installation reproduces published and reference values. It does not by itself make any use of the software compliant with regulations: that depends on the intended use, the procedures around it and a qualified review.</p>\n</main>\n</body>\n</html>\n");
+    let built = crate::compile::Built {
+        report_name: "validation.html".into(),
+        report: html.into_bytes(),
+        results_name: "validation.results.json".into(),
+        results: json,
+        files: Vec::new(),
+        warnings: Vec::new(),
+    };
+    crate::output::write_outputs(dir, &built)
+}

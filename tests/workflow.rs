@@ -1,0 +1,137 @@
+//! The reproducible workflow: `verify` detects drift and explains it,
+//! `new` scaffolds a study that builds, `validate` passes and writes its report.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+fn sheaf(dir: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir)
+        .args(args)
+        .output()
+        .expect("runs")
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+fn study() -> tempfile::TempDir {
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("plants.csv"), "weight,group\n4.17,ctrl\n5.58,ctrl\n5.18,ctrl\n4.81,trt1\n4.17,trt1\n4.41,trt1\n6.31,trt2\n5.12,trt2\n5.54,trt2\n")
+        .expect("data");
+    std::fs::write(dir.path().join("report.md"), "# Trial\n\n```anova\nid: growth\ndata: plants.csv\nmodel: weight ~ group\nplot: box\n```\n\nF = {{ growth.f | round(2) }}.\n")
+        .expect("doc");
+    dir
+}
+
+#[test]
+fn verify_passes_on_a_fresh_build_and_explains_each_kind_of_drift() {
+    let dir = study();
+    let p = dir.path();
+    for to in ["html", "md"] {
+        let out = format!("out-{to}");
+        assert!(
+            sheaf(p, &["build", "report.md", "-o", &out, "--to", to])
+                .status
+                .success()
+        );
+        let ok = sheaf(p, &["verify", "report.md", "-o", &out, "--to", to]);
+        assert_eq!(ok.status.code(), Some(0), "{}", stderr(&ok));
+        assert!(stderr(&ok).contains("is up to date"));
+    }
+
+    // A changed data value: the input hash and the numbers are named.
+    let data = std::fs::read_to_string(p.join("plants.csv")).expect("data");
+    std::fs::write(p.join("plants.csv"), data.replace("6.31", "6.91")).expect("edit");
+    let drift = sheaf(p, &["verify", "report.md", "-o", "out-html"]);
+    assert_eq!(drift.status.code(), Some(1));
+    let text = stderr(&drift);
+    assert!(
+        text.contains("inputs changed:") && text.contains("plants.csv: SHA-256"),
+        "{text}"
+    );
+    assert!(
+        text.contains("numbers changed:") && text.contains("growth: anova.terms[0].f:"),
+        "{text}"
+    );
+    assert!(text.contains("text changed:"), "{text}");
+    std::fs::write(p.join("plants.csv"), data).expect("restore");
+
+    // An edited block: the document is named as changed.
+    let doc = std::fs::read_to_string(p.join("report.md")).expect("doc");
+    std::fs::write(
+        p.join("report.md"),
+        doc.replace(
+            "model: weight ~ group",
+            "model: weight ~ group\ncompare: lsd",
+        ),
+    )
+    .expect("edit");
+    let drift = sheaf(p, &["verify", "report.md", "-o", "out-html"]);
+    assert_eq!(drift.status.code(), Some(1));
+    let text = stderr(&drift);
+    assert!(
+        text.contains("document changed:")
+            && text.contains("comparisons[0].method: \"tukey\" → \"lsd\""),
+        "{text}"
+    );
+    std::fs::write(p.join("report.md"), doc).expect("restore");
+
+    // A hand-edited report: the changed line is shown.
+    let report = std::fs::read_to_string(p.join("out-md/report.md")).expect("report");
+    std::fs::write(p.join("out-md/report.md"), report.replace("F = ", "F was ")).expect("edit");
+    let drift = sheaf(p, &["verify", "report.md", "-o", "out-md", "--to", "md"]);
+    assert_eq!(drift.status.code(), Some(1));
+    assert!(
+        stderr(&drift).contains("report.md line"),
+        "{}",
+        stderr(&drift)
+    );
+
+    // A missing figure file is named.
+    std::fs::remove_file(p.join("out-md/report-growth-box.svg")).expect("remove");
+    let drift = sheaf(p, &["verify", "report.md", "-o", "out-md", "--to", "md"]);
+    assert!(
+        stderr(&drift).contains("missing outputs:")
+            && stderr(&drift).contains("report-growth-box.svg")
+    );
+}
+
+#[test]
+fn new_scaffolds_a_study_that_builds_and_never_overwrites() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let made = sheaf(dir.path(), &["new", "basil"]);
+    assert!(made.status.success(), "{}", stderr(&made));
+    let built = sheaf(dir.path(), &["build", "basil/report.md", "-o", "basil/out"]);
+    assert!(built.status.success(), "{}", stderr(&built));
+    let html = std::fs::read_to_string(dir.path().join("basil/out/report.html")).expect("report");
+    assert!(html.contains("Invented example"));
+    let again = sheaf(dir.path(), &["new", "basil"]);
+    assert_eq!(again.status.code(), Some(1));
+    assert!(stderr(&again).contains("already exists and is not empty"));
+}
+
+#[test]
+fn validate_passes_and_writes_its_report() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let v = sheaf(dir.path(), &["validate", "-o", "validation"]);
+    let stdout = String::from_utf8_lossy(&v.stdout);
+    assert_eq!(v.status.code(), Some(0), "{stdout}");
+    assert!(stdout.contains(" passed, 0 failed"));
+    let json: serde_json::Value = serde_json::from_slice(
+        &std::fs::read(dir.path().join("validation/validation.results.json")).expect("json"),
+    )
+    .expect("parses");
+    let checks = json["checks"].as_array().expect("checks");
+    assert!(checks.len() > 500);
+    assert!(
+        checks
+            .iter()
+            .any(|c| c["source"] == "NIST StRD ANOVA certified values")
+    );
+    assert!(json["revision"].is_string() && json["platform"].is_string());
+    let html =
+        std::fs::read_to_string(dir.path().join("validation/validation.html")).expect("html");
+    assert!(html.contains("SmLs09: F"));
+}
