@@ -5,7 +5,7 @@
 pub mod factorial;
 
 use crate::data::{
-    DataError, Exclusion, SummaryColumns, SummaryRow, Table, factor_response, summary_rows,
+    DataError, Exclusion, SummaryColumns, SummaryRow, Table, factor_response, prepare, summary_rows,
 };
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus, Order};
@@ -295,7 +295,9 @@ pub fn run_anova(
     let response = formula.response.clone();
     let table = Table::parse(&input.bytes, &spec.csv)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
-    let sample = match &spec.summary {
+    let (table, ruled_out) = prepare(table, &spec.rows)
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let mut sample = match &spec.summary {
         None => load_raw(
             doc,
             block,
@@ -328,7 +330,61 @@ pub fn run_anova(
             load_summary(doc, block, spec, columns, &table, &factor, display_path)?
         }
     };
+    sample.excluded.extend(ruled_out);
+    sample.excluded.sort_by_key(|e| e.line);
+    apply_labels(&mut sample.names, &spec.labels);
     analyse(doc, block, spec, sample, factor, response, input)
+}
+
+/// One plain sentence per kind of exclusion: missing values, `exclude`
+/// lines (with their reason) and `where` filters, each with its data lines.
+pub(crate) fn exclusion_notes(excluded: &[Exclusion], path: &str) -> Vec<String> {
+    let kind = |e: &Exclusion| -> String {
+        if e.reason.ends_with("is missing") {
+            "because a value was missing".to_string()
+        } else {
+            format!("by the document ({})", e.reason)
+        }
+    };
+    let mut kinds: Vec<String> = Vec::new();
+    for e in excluded {
+        let k = kind(e);
+        if !kinds.contains(&k) {
+            kinds.push(k);
+        }
+    }
+    kinds
+        .into_iter()
+        .map(|k| {
+            let mut lines: Vec<usize> = excluded
+                .iter()
+                .filter(|e| kind(e) == k)
+                .map(|e| e.line)
+                .collect();
+            lines.dedup();
+            let count = lines.len();
+            let shown: Vec<String> = lines.iter().take(12).map(|l| l.to_string()).collect();
+            let more = if count > 12 { ", …" } else { "" };
+            let (rows, were, line_word) = if count == 1 {
+                ("row", "was", "line")
+            } else {
+                ("rows", "were", "lines")
+            };
+            format!(
+                "{count} {rows} of {path} {were} left out {k} ({line_word} {}{more}).",
+                shown.join(", ")
+            )
+        })
+        .collect()
+}
+
+/// Renames levels for display (`labels`); names not listed stay as they are.
+pub(crate) fn apply_labels(names: &mut [String], labels: &[(String, String)]) {
+    for n in names.iter_mut() {
+        if let Some((_, to)) = labels.iter().find(|(from, _)| from == n) {
+            *n = to.clone();
+        }
+    }
 }
 
 /// The design order of the levels found in the data: `levels` if given (it
@@ -597,25 +653,7 @@ fn analyse(
             ));
         }
     }
-    if !excluded.is_empty() {
-        let lines: Vec<String> = excluded
-            .iter()
-            .take(12)
-            .map(|e| e.line.to_string())
-            .collect();
-        let more = if excluded.len() > 12 { ", …" } else { "" };
-        let (rows, were, line_word) = if excluded.len() == 1 {
-            ("row", "was", "line")
-        } else {
-            ("rows", "were", "lines")
-        };
-        warnings.push(format!(
-            "{} {rows} of {} {were} left out because a value was missing ({line_word} {}{more}).",
-            excluded.len(),
-            input.path,
-            lines.join(", ")
-        ));
-    }
+    warnings.extend(exclusion_notes(&excluded, &input.path));
     if let Some(r) = rounding {
         warnings.push(format!(
             "These results come from published summaries (n, mean and SD per level). Checks that need the raw observations (Brown-Forsythe, Levene, Shapiro-Wilk, outliers, ranks) could not be done. Rounding the summaries to their printed digits leaves F between {} and {} (p between {} and {}).",

@@ -706,3 +706,50 @@ fn plot_keys_are_checked() {
         run_case(c);
     }
 }
+
+#[test]
+fn row_rules_are_checked() {
+    let cases = vec![
+        case(
+            "exclude without a reason",
+            doc_with(&format!("{GOOD_BLOCK}exclude: 3\n")),
+            vec!["`exclude` needs a reason", "report.md:7"],
+        ),
+        case(
+            "exclude a line with no data",
+            doc_with(&format!("{GOOD_BLOCK}exclude: 40: typo\n")),
+            vec![
+                "`exclude` names line 40, which holds no data row",
+                "plants.csv:40",
+            ],
+        ),
+        case(
+            "where without an operator",
+            doc_with(&format!("{GOOD_BLOCK}where: group is ctrl\n")),
+            vec!["cannot read the condition `group is ctrl`"],
+        ),
+        case(
+            "where on a missing column",
+            doc_with(&format!("{GOOD_BLOCK}where: site == north\n")),
+            vec!["no column named `site`", "plants.csv:1"],
+        ),
+        case(
+            "labels without =",
+            doc_with(&format!("{GOOD_BLOCK}labels: ctrl Control\n")),
+            vec!["expected `level = label`"],
+        ),
+        case(
+            "wide layout with two factors",
+            doc_with("data: plants.csv\nmodel: weight ~ group * site\nlayout: wide\n"),
+            vec!["`layout: wide` reads one factor"],
+        ),
+        case(
+            "unknown layout",
+            doc_with(&format!("{GOOD_BLOCK}layout: tall\n")),
+            vec!["unknown layout `tall`"],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}

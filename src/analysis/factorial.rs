@@ -213,9 +213,16 @@ pub fn run_factorial(
 
     let table = Table::parse(&input.bytes, &spec.csv)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
-    let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();
-    let data = factorial_response(&table, &formula.response, &names, &spec.csv)
+    let (table, ruled_out) = crate::data::prepare(table, &spec.rows)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();
+    let mut data = factorial_response(&table, &formula.response, &names, &spec.csv)
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    data.excluded.extend(ruled_out);
+    data.excluded.sort_by_key(|e| e.line);
+    for lv in data.levels.iter_mut() {
+        super::apply_labels(lv, &spec.labels);
+    }
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
     if let Some(f) = levels.iter().position(|&l| l < 2) {
         return Err(model_err(
@@ -345,6 +352,7 @@ pub fn run_factorial(
             ss_name(ss_type)
         ));
     }
+    warnings.extend(super::exclusion_notes(&data.excluded, &input.path));
     if !empty.is_empty() {
         warnings.push(format!(
             "{} combination(s) of levels have no observations ({}); {}",

@@ -483,6 +483,112 @@ pub fn factorial_response(
     })
 }
 
+/// A row condition from `where`: `column op value`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Filter {
+    pub column: String,
+    pub op: String,
+    pub value: String,
+}
+
+/// How rows are chosen before the analysis: layout, filters, exclusions.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct RowRules {
+    /// `layout: wide`: one column per level; (factor, response) names.
+    pub wide: Option<(String, String)>,
+    pub filters: Vec<Filter>,
+    /// Data lines to leave out, each with its reason.
+    pub exclude: Vec<(usize, String)>,
+}
+
+impl Filter {
+    fn keeps(&self, cell: &str) -> bool {
+        let cell = cell.trim();
+        let numbers = (
+            parse_number(cell).map(|n| n.to_f64()),
+            parse_number(&self.value).map(|n| n.to_f64()),
+        );
+        match (self.op.as_str(), numbers) {
+            ("==", (Some(a), Some(b))) => a == b,
+            ("!=", (Some(a), Some(b))) => a != b,
+            ("==", _) => cell == self.value,
+            ("!=", _) => cell != self.value,
+            ("<", (Some(a), Some(b))) => a < b,
+            ("<=", (Some(a), Some(b))) => a <= b,
+            (">", (Some(a), Some(b))) => a > b,
+            (">=", (Some(a), Some(b))) => a >= b,
+            _ => false,
+        }
+    }
+
+    fn text(&self) -> String {
+        format!("{} {} {}", self.column, self.op, self.value)
+    }
+}
+
+/// Applies the row rules: turns a wide table long, then leaves out the rows
+/// that fail a filter or are excluded by line, recording each with its reason.
+pub fn prepare(table: Table, rules: &RowRules) -> Result<(Table, Vec<Exclusion>), DataError> {
+    let mut table = table;
+    if let Some((factor, response)) = &rules.wide {
+        let mut rows = Vec::new();
+        for r in &table.rows {
+            for (name, cell) in table.header.iter().zip(&r.fields) {
+                rows.push(csv::Record {
+                    line: r.line,
+                    fields: vec![name.clone(), cell.clone()],
+                });
+            }
+        }
+        table = Table {
+            header: vec![factor.clone(), response.clone()],
+            header_line: table.header_line,
+            rows,
+        };
+    }
+    let columns: Vec<usize> = rules
+        .filters
+        .iter()
+        .map(|f| table.column(&f.column))
+        .collect::<Result<_, _>>()?;
+    let last_line = table.rows.last().map_or(0, |r| r.line);
+    for (line, _) in &rules.exclude {
+        if !table.rows.iter().any(|r| r.line == *line) {
+            return Err(DataError::at(*line, format!("`exclude` names line {line}, which holds no data row"))
+                .hint(format!("data rows are on lines {} to {last_line}; give the line numbers as they appear in the file", table.header_line + 1)));
+        }
+    }
+    let mut excluded = Vec::new();
+    let mut kept = Vec::with_capacity(table.rows.len());
+    for r in table.rows {
+        if let Some((_, reason)) = rules.exclude.iter().find(|(l, _)| *l == r.line) {
+            if !excluded.iter().any(|e: &Exclusion| e.line == r.line) {
+                excluded.push(Exclusion {
+                    line: r.line,
+                    reason: format!("excluded: {reason}"),
+                });
+            }
+            continue;
+        }
+        if let Some(f) = rules
+            .filters
+            .iter()
+            .zip(&columns)
+            .find(|(f, c)| !f.keeps(&r.fields[**c]))
+            .map(|(f, _)| f)
+        {
+            excluded.push(Exclusion {
+                line: r.line,
+                reason: format!("fails `where: {}`", f.text()),
+            });
+            continue;
+        }
+        kept.push(r);
+    }
+    table.rows = kept;
+    Ok((table, excluded))
+}
+
 fn quote_list(items: &[String]) -> String {
     items
         .iter()

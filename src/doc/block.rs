@@ -3,7 +3,7 @@
 
 use super::formula::{Formula, parse_formula};
 use super::keyvalue::Entry;
-use crate::data::{CsvFormat, DEFAULT_MISSING, SummaryColumns};
+use crate::data::{CsvFormat, DEFAULT_MISSING, Filter, RowRules, SummaryColumns};
 use crate::stats::compare::Method;
 use crate::stats::dunnett::Sides;
 use crate::stats::linear::SsType;
@@ -13,7 +13,7 @@ use crate::stats::linear::SsType;
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 30] = [
+pub const ANOVA_KEYS: [&str; 34] = [
     "id",
     "data",
     "model",
@@ -44,6 +44,10 @@ pub const ANOVA_KEYS: [&str; 30] = [
     "label",
     "unit",
     "reference",
+    "layout",
+    "where",
+    "exclude",
+    "labels",
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -174,6 +178,10 @@ pub struct AnovaSpec {
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
     pub plots: PlotSpec,
+    /// Row rules: wide layout, `where` filters, `exclude` lines.
+    pub rows: RowRules,
+    /// Display names for levels: (as in the data, as shown).
+    pub labels: Vec<(String, String)>,
 }
 
 /// A problem with one key, at its line and column.
@@ -774,7 +782,101 @@ pub fn anova_spec(
                 })?,
         );
     }
+    let mut rows = RowRules::default();
+    if let Some(e) = get("layout") {
+        match e.value.to_ascii_lowercase().as_str() {
+            "long" => {}
+            "wide" => {
+                let f = &formula;
+                if f.terms.len() != 1 || f.terms[0].factors.len() != 1 {
+                    return Err(bad(
+                        e,
+                        "`layout: wide` reads one factor: one column per level".into(),
+                        "write the model as `response ~ factor`",
+                    ));
+                }
+                rows.wide = Some((f.terms[0].factors[0].clone(), f.response.clone()));
+            }
+            _ => {
+                return Err(bad(
+                    e,
+                    format!("unknown layout `{}`", e.value),
+                    "write `long` (one row per observation, the default) or `wide` (one column per level)",
+                ));
+            }
+        }
+    }
+    if let Some(e) = get("where") {
+        for part in e.value.split(" and ") {
+            let part = part.trim();
+            let op = ["==", "!=", "<=", ">=", "<", ">"]
+                .into_iter()
+                .find(|op| part.contains(op))
+                .ok_or_else(|| {
+                    bad(
+                        e,
+                        format!("cannot read the condition `{part}`"),
+                        "write `column == value` (or !=, <, <=, >, >=); join conditions with `and`",
+                    )
+                })?;
+            let (column, value) = part.split_once(op).unwrap_or((part, ""));
+            let (column, value) = (
+                column.trim().trim_matches('`'),
+                value.trim().trim_matches('"'),
+            );
+            if column.is_empty() || value.is_empty() {
+                return Err(bad(
+                    e,
+                    format!("cannot read the condition `{part}`"),
+                    "write `column == value`, for example `where: site == north`",
+                ));
+            }
+            rows.filters.push(Filter {
+                column: column.to_string(),
+                op: op.to_string(),
+                value: value.to_string(),
+            });
+        }
+    }
+    if let Some(e) = get("exclude") {
+        let (lines, reason) = match e.value.split_once(':') {
+            Some((l, r)) => (l, r.trim().to_string()),
+            None => (e.value.as_str(), String::new()),
+        };
+        if reason.is_empty() {
+            return Err(bad(
+                e,
+                "`exclude` needs a reason".into(),
+                "write the data lines, a colon and the reason: `exclude: 14, 27: tray knocked over`",
+            ));
+        }
+        for item in list(lines) {
+            let line = item.parse::<usize>().map_err(|_| {
+                bad(
+                    e,
+                    format!("`{item}` is not a data line number"),
+                    "give line numbers as in the data file, e.g. `exclude: 14, 27: reason`",
+                )
+            })?;
+            rows.exclude.push((line, reason.clone()));
+        }
+    }
+    let mut labels = Vec::new();
+    if let Some(e) = get("labels") {
+        for part in list(&e.value) {
+            let Some((from, to)) = part.split_once('=') else {
+                return Err(bad(
+                    e,
+                    format!("expected `level = label`, found `{part}`"),
+                    "for example `labels: ctrl = Control, trt1 = Treatment 1`",
+                ));
+            };
+            labels.push((from.trim().to_string(), to.trim().to_string()));
+        }
+    }
     Ok(AnovaSpec {
+        rows,
+        labels,
         plots,
         ss_type,
         compare_terms: named_list("compare_term"),
