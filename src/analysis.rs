@@ -293,8 +293,14 @@ pub fn run_anova(
     }
     let factor = formula.terms[0].factors[0].clone();
     let response = formula.response.clone();
-    let table = Table::parse(&input.bytes, &spec.csv)
-        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let table = crate::data::read_table(
+        &input.path,
+        &input.bytes,
+        &spec.csv,
+        spec.sheet.as_deref(),
+        spec.range.as_deref(),
+    )
+    .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
     let (table, ruled_out) = prepare(table, &spec.rows)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
     let mut sample = match &spec.summary {

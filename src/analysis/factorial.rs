@@ -3,7 +3,7 @@
 //! comparisons on estimated marginal means, simple effects and cell means.
 
 use super::{Checks, ComparisonResult, Input, OutlierRow, data_error, summary_checks};
-use crate::data::{Table, factorial_response};
+use crate::data::factorial_response;
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus};
 use crate::doc::{Block, Document};
@@ -211,8 +211,14 @@ pub fn run_factorial(
         .collect();
     let term_names: Vec<String> = formula.terms.iter().map(|t| t.to_string()).collect();
 
-    let table = Table::parse(&input.bytes, &spec.csv)
-        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let table = crate::data::read_table(
+        &input.path,
+        &input.bytes,
+        &spec.csv,
+        spec.sheet.as_deref(),
+        spec.range.as_deref(),
+    )
+    .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
     let (table, ruled_out) = crate::data::prepare(table, &spec.rows)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
     let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();

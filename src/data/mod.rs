@@ -4,6 +4,7 @@
 
 pub mod csv;
 pub mod decimal;
+pub mod spreadsheet;
 
 use decimal::{Number, parse_number, shift_column};
 
@@ -29,6 +30,22 @@ impl Default for CsvFormat {
 
 /// Tokens read as missing unless the block says otherwise.
 pub const DEFAULT_MISSING: [&str; 6] = ["", "NA", "N/A", "NaN", ".", "-"];
+
+/// Reads a data file into a table: a spreadsheet by its file name ending
+/// (with `sheet` and `range`), else CSV.
+pub fn read_table(
+    path: &str,
+    bytes: &[u8],
+    format: &CsvFormat,
+    sheet: Option<&str>,
+    range: Option<&str>,
+) -> Result<Table, DataError> {
+    if spreadsheet::is_spreadsheet(path) {
+        spreadsheet::read_sheet(bytes, sheet, range)
+    } else {
+        Table::parse(bytes, format)
+    }
+}
 
 /// A problem found in a data file: where, what, and what to do.
 #[derive(Debug, Clone, PartialEq)]

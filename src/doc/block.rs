@@ -13,7 +13,7 @@ use crate::stats::linear::SsType;
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 34] = [
+pub const ANOVA_KEYS: [&str; 36] = [
     "id",
     "data",
     "model",
@@ -48,6 +48,8 @@ pub const ANOVA_KEYS: [&str; 34] = [
     "where",
     "exclude",
     "labels",
+    "sheet",
+    "range",
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -182,6 +184,9 @@ pub struct AnovaSpec {
     pub rows: RowRules,
     /// Display names for levels: (as in the data, as shown).
     pub labels: Vec<(String, String)>,
+    /// Spreadsheet input: the sheet (default the first) and a cell range.
+    pub sheet: Option<String>,
+    pub range: Option<String>,
 }
 
 /// A problem with one key, at its line and column.
@@ -874,7 +879,21 @@ pub fn anova_spec(
             labels.push((from.trim().to_string(), to.trim().to_string()));
         }
     }
+    for key in ["sheet", "range"] {
+        if let (Some(e), false) = (
+            get(key),
+            crate::data::spreadsheet::is_spreadsheet(&data_entry.value),
+        ) {
+            return Err(bad(
+                e,
+                format!("`{key}` applies to spreadsheet data (.xlsx, .xls, .ods)"),
+                "remove it, or point `data` at the workbook",
+            ));
+        }
+    }
     Ok(AnovaSpec {
+        sheet: get("sheet").map(|e| e.value.clone()),
+        range: get("range").map(|e| e.value.clone()),
         rows,
         labels,
         plots,
