@@ -16,6 +16,26 @@ pub trait World {
     fn read(&self, path: &str) -> std::io::Result<Vec<u8>>;
     /// How to show `path` in messages (e.g. joined to the document's folder).
     fn display(&self, path: &str) -> String;
+    /// Today's date (YYYY-MM-DD) for `date: today`; `None` where no clock is
+    /// available (tests). The only clock sheaf ever reads.
+    fn today(&self) -> Option<String> {
+        None
+    }
+}
+
+/// YYYY-MM-DD of a Unix time (UTC), by the civil-from-days algorithm
+/// (Hinnant, "chrono-Compatible Low-Level Date Algorithms").
+pub fn civil_date(unix_seconds: i64) -> String {
+    let z = unix_seconds.div_euclid(86_400) + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let day = doy - (153 * mp + 2) / 5 + 1;
+    let month = if mp < 10 { mp + 3 } else { mp - 9 };
+    let year = yoe + era * 400 + i64::from(month <= 2);
+    format!("{year:04}-{month:02}-{day:02}")
 }
 
 /// Files on disk, relative to a document's folder.
@@ -34,6 +54,18 @@ impl World for DiskWorld {
 
     fn display(&self, path: &str) -> String {
         self.base.join(path).display().to_string()
+    }
+
+    /// `SOURCE_DATE_EPOCH` when set (reproducible builds), else the system clock.
+    fn today(&self) -> Option<String> {
+        let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
+            Ok(v) => v.trim().parse::<i64>().ok()?,
+            Err(_) => std::time::SystemTime::now()
+                .duration_since(std::time::UNIX_EPOCH)
+                .ok()?
+                .as_secs() as i64,
+        };
+        Some(civil_date(seconds))
     }
 }
 
@@ -81,7 +113,18 @@ pub fn compile(
         .strip_prefix('\u{feff}')
         .map(str::to_string)
         .unwrap_or(source);
-    let doc = parse_document(doc_display, source)?;
+    let mut doc = parse_document(doc_display, source)?;
+    if doc
+        .front
+        .date
+        .as_deref()
+        .is_some_and(|d| d.eq_ignore_ascii_case("today"))
+    {
+        doc.front.date = Some(world.today().ok_or_else(|| {
+            Diagnostic::new("`date: today` needs a clock, and none is available here")
+                .hint("write the date itself, or set SOURCE_DATE_EPOCH")
+        })?);
+    }
 
     let mut inputs: Vec<Input> = Vec::new();
     let mut results: Vec<BlockResult> = Vec::with_capacity(doc.blocks.len());
@@ -183,4 +226,16 @@ pub fn compile(
         files,
         warnings,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn civil_dates() {
+        // Reference dates (common practice): the Unix epoch, the start of
+        // 2000 (946684800) and 2024-02-29 (1709164800).
+        assert_eq!(super::civil_date(0), "1970-01-01");
+        assert_eq!(super::civil_date(946_684_800), "2000-01-01");
+        assert_eq!(super::civil_date(1_709_164_800), "2024-02-29");
+    }
 }

@@ -316,6 +316,7 @@ pub fn render_report(
         cautions => CAUTIONS.to_vec(),
         document => to_value(DocumentView { name: document_name.to_string(), sha256: sha256_hex(document_bytes) }),
         inputs => to_value(inputs.iter().map(|i| InputView { path: i.path.clone(), bytes: i.bytes.len(), sha256: sha256_hex(&i.bytes) }).collect::<Vec<_>>()),
+        choices => results.iter().map(choices_of).collect::<Vec<_>>(),
         results_name => results_name,
     };
     let name = if format == Format::Html {
@@ -328,6 +329,61 @@ pub fn render_report(
         text.push('\n');
     }
     Ok(text)
+}
+
+/// The analysis choices in effect for one block, as one line for the
+/// provenance note: what a reviewer needs to repeat the analysis.
+fn choices_of(r: &BlockResult) -> String {
+    use crate::doc::block::Omnibus;
+    match r {
+        BlockResult::Anova(a) => {
+            let method = match a.method {
+                Omnibus::Anova => "one-way ANOVA",
+                Omnibus::Welch => "Welch's ANOVA",
+                Omnibus::Ranks => "Kruskal-Wallis",
+            };
+            let compare = a
+                .comparison
+                .as_ref()
+                .map_or("no pairwise comparisons".to_string(), |c| {
+                    format!("{} pairs", c.method.title())
+                });
+            format!(
+                "`{}` (line {}): {method}; {compare}; α = {}; {} observation(s) used, {} row(s) left out.",
+                a.id,
+                a.line,
+                a.alpha,
+                a.n,
+                a.exclusions.len()
+            )
+        }
+        BlockResult::Factorial(f) => {
+            let ss = match f.ss_type {
+                crate::stats::linear::SsType::I => "Type I",
+                crate::stats::linear::SsType::II => "Type II",
+                crate::stats::linear::SsType::III => "Type III",
+            };
+            let compare = f
+                .families
+                .first()
+                .map_or("no pairwise comparisons".to_string(), |c| {
+                    format!("{} on marginal means", c.comparison.method.title())
+                });
+            format!(
+                "`{}` (line {}): linear model of {} with {ss} sums of squares (sum-to-zero coding); {compare}; α = {}; {} observation(s) used, {} row(s) left out.",
+                f.id,
+                f.line,
+                f.factors.join(", "),
+                f.alpha,
+                f.n,
+                f.exclusions.len()
+            )
+        }
+        BlockResult::Power(p) => format!(
+            "`{}` (line {}): power of the one-way F test; α = {}.",
+            p.id, p.line, p.alpha
+        ),
+    }
 }
 
 /// One blank line between paragraphs and tables, one newline at the end.
