@@ -31,6 +31,7 @@ pub mod source;
 pub mod stats;
 pub mod validate;
 pub mod verify;
+pub mod watch;
 
 /// sheaf's version, printed in every report and results file.
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");

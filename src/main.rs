@@ -49,6 +49,20 @@ enum Command {
         #[arg(long = "to", value_enum, default_value_t = To::Html)]
         to: To,
     },
+    /// Rebuild whenever the document or its data change; optionally serve the report.
+    Watch {
+        document: PathBuf,
+        #[arg(short = 'o', long = "out", value_name = "DIR")]
+        out: PathBuf,
+        #[arg(long = "to", value_enum, default_value_t = To::Html)]
+        to: To,
+        /// Serve the report on 127.0.0.1 and reload the page after each rebuild.
+        #[arg(long)]
+        serve: bool,
+        /// Port for --serve.
+        #[arg(long, default_value_t = sheaf::watch::DEFAULT_PORT)]
+        port: u16,
+    },
     /// Start a new study folder from a small invented example.
     New {
         /// The folder to create (must not exist, or be empty).
@@ -142,6 +156,25 @@ fn main() -> ExitCode {
                     out.display()
                 );
                 ExitCode::from(1)
+            }
+        }
+        Command::Watch {
+            document,
+            out,
+            to,
+            serve,
+            port,
+        } => {
+            let opts = sheaf::watch::WatchOptions {
+                document,
+                out,
+                format: to.format(),
+                serve: serve.then_some(port),
+                short_errors: short,
+            };
+            match sheaf::watch::run(opts) {
+                Ok(()) => ExitCode::SUCCESS,
+                Err(d) => report(&d, short),
             }
         }
         Command::New { folder } => match sheaf::scaffold::create(&folder) {
