@@ -105,8 +105,13 @@ fn watch_serves_the_report_and_rebuilds_on_change() {
     )
     .expect("edit");
     // The F value as printed (three decimals) is what must change.
-    let f_text = |b: &str| b.split("F is ").nth(1).map(|t| t.chars().take_while(|c| *c != '<' && *c != '
-').collect::<String>());
+    let f_text = |b: &str| {
+        b.split("F is ").nth(1).map(|t| {
+            t.chars()
+                .take_while(|c| *c != '<' && *c != '\n')
+                .collect::<String>()
+        })
+    };
     let before = f_text(&first).expect("F in the first page");
     let changed = wait_for(Duration::from_secs(20), || {
         get(port, "/").is_some_and(|b| f_text(&b).is_some_and(|f| f != before))
