@@ -26,7 +26,7 @@ use crate::stats::ranks::{KruskalWallis, dunn, kruskal_wallis};
 use crate::stats::welch::{WelchAnova, games_howell, welch_anova};
 
 /// Summary of one level of the factor.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct LevelResult {
     pub name: String,
     pub n: usize,
@@ -46,7 +46,7 @@ pub struct LevelResult {
 }
 
 /// One pairwise family with its letters.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ComparisonResult {
     pub method: Method,
     pub alpha: f64,
@@ -66,7 +66,7 @@ pub struct ComparisonResult {
 }
 
 /// Everything computed for one `anova` block.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct AnovaResult {
     pub method: Omnibus,
     pub checks: Checks,
@@ -103,7 +103,7 @@ pub struct AnovaResult {
 }
 
 /// The result of any analysis block.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum BlockResult {
     Anova(Box<AnovaResult>),
     Factorial(Box<factorial::FactorialResult>),
@@ -127,6 +127,15 @@ impl BlockResult {
         }
     }
 
+    /// Moves a (cached) result to the block's current line.
+    pub fn set_line(&mut self, line: usize) {
+        match self {
+            BlockResult::Anova(r) => r.line = line,
+            BlockResult::Factorial(r) => r.line = line,
+            BlockResult::Power(r) => r.line = line,
+        }
+    }
+
     pub fn warnings(&self) -> &[String] {
         match self {
             BlockResult::Anova(r) => &r.warnings,
@@ -137,7 +146,7 @@ impl BlockResult {
 }
 
 /// A planned one-way experiment: the power at n per group, or the n for a power.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct PowerResult {
     pub id: String,
     pub line: usize,
@@ -859,7 +868,7 @@ fn formula_text(f: &crate::doc::formula::Formula) -> String {
 }
 
 /// Assumption checks of one block (computed always; shown unless `checks: none`).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Checks {
     pub shown: bool,
     pub brown_forsythe: Option<FTest>,
@@ -877,7 +886,7 @@ pub struct Checks {
 }
 
 /// An observation flagged by its studentized residual.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct OutlierRow {
     pub line: usize,
     pub level: String,

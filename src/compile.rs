@@ -7,7 +7,7 @@ use crate::diag::Diagnostic;
 use crate::doc::{BlockSpec, parse_document};
 use crate::figure::{ImageFormat, draw_all, png};
 use crate::render::{Format, PlacedFigure, render_report};
-use crate::results::results_json;
+use crate::results::{results_json, sha256_hex};
 use std::path::{Path, PathBuf};
 
 /// Where sheaf reads files from: the disk for the CLI, memory in tests.
@@ -16,6 +16,12 @@ pub trait World {
     fn read(&self, path: &str) -> std::io::Result<Vec<u8>>;
     /// How to show `path` in messages (e.g. joined to the document's folder).
     fn display(&self, path: &str) -> String;
+    /// Progress for long work; shown only where someone is watching.
+    fn progress(&self, _message: &str) {}
+    /// A cached block result, if this world keeps a cache.
+    fn cache_get(&self, _key: &str) -> Option<Vec<u8>> {
+        None
+    }
     /// Today's date (YYYY-MM-DD) for `date: today`; `None` where no clock is
     /// available (tests). The only clock sheaf ever reads.
     fn today(&self) -> Option<String> {
@@ -56,6 +62,14 @@ impl World for DiskWorld {
         self.base.join(path).display().to_string()
     }
 
+    /// On a terminal only, so logs and CI output stay clean.
+    fn progress(&self, message: &str) {
+        use std::io::IsTerminal;
+        if std::io::stderr().is_terminal() {
+            eprintln!("{message}");
+        }
+    }
+
     /// `SOURCE_DATE_EPOCH` when set (reproducible builds), else the system clock.
     fn today(&self) -> Option<String> {
         let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
@@ -69,6 +83,41 @@ impl World for DiskWorld {
     }
 }
 
+/// Inputs above this size (bytes) get progress messages on a terminal.
+const LARGE_INPUT: usize = 20_000_000;
+
+/// The block cache's folder inside the output folder.
+pub const CACHE_DIR: &str = ".sheaf-cache";
+
+/// Files on disk with a block cache: results of unchanged blocks are reused.
+/// The cache is safe to delete and never changes the output.
+pub struct CachedDisk {
+    pub disk: DiskWorld,
+    pub cache: PathBuf,
+}
+
+impl World for CachedDisk {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        self.disk.read(path)
+    }
+
+    fn display(&self, path: &str) -> String {
+        self.disk.display(path)
+    }
+
+    fn cache_get(&self, key: &str) -> Option<Vec<u8>> {
+        std::fs::read(self.cache.join(key)).ok()
+    }
+
+    fn today(&self) -> Option<String> {
+        self.disk.today()
+    }
+
+    fn progress(&self, message: &str) {
+        self.disk.progress(message)
+    }
+}
+
 /// The finished outputs of a build.
 #[derive(Debug, Clone)]
 pub struct Built {
@@ -78,6 +127,12 @@ pub struct Built {
     pub results: Vec<u8>,
     /// Further files beside the report (figures in Markdown output).
     pub files: Vec<(String, Vec<u8>)>,
+    /// Blocks computed afresh; the others came from the cache.
+    pub recomputed: usize,
+    /// Results of the blocks computed afresh, to store in the cache once the
+    /// build has been written (a failed build writes nothing, cache included).
+    pub cache_entries: Vec<(String, Vec<u8>)>,
+    pub blocks: usize,
     /// Warnings to show on the terminal (they are in the report too).
     pub warnings: Vec<String>,
 }
@@ -128,48 +183,103 @@ pub fn compile(
 
     let mut inputs: Vec<Input> = Vec::new();
     let mut results: Vec<BlockResult> = Vec::with_capacity(doc.blocks.len());
+    let mut recomputed = 0;
+    let mut cache_entries = Vec::new();
     for block in &doc.blocks {
-        let spec = match &block.spec {
-            BlockSpec::Power(spec) => {
-                results.push(BlockResult::Power(run_power(&doc, block, spec)));
-                continue;
-            }
-            BlockSpec::Anova(spec) => spec,
+        let path = match &block.spec {
+            BlockSpec::Anova(spec) => Some((&spec.data.value, spec.data.line, spec.data.column)),
+            BlockSpec::Power(_) => None,
         };
-        let path = &spec.data.value;
-        if !inputs.iter().any(|i| &i.path == path) {
-            let bytes = world.read(path).map_err(|e| {
-                let reason = match e.kind() {
-                    std::io::ErrorKind::NotFound => "no such file".to_string(),
-                    _ => e.to_string(),
-                };
-                doc.error_at(
-                    spec.data.line,
-                    Some(spec.data.column),
-                    format!("cannot read data file `{path}`: {reason}"),
-                )
-                .hint(format!(
-                    "paths are relative to the document's folder; looked for {}",
-                    world.display(path)
-                ))
-            })?;
-            inputs.push(Input {
-                path: path.clone(),
-                bytes,
-            });
+        let mut input_hash = String::new();
+        if let Some((path, line, column)) = path {
+            if !inputs.iter().any(|i| &i.path == path) {
+                let bytes = world.read(path).map_err(|e| {
+                    let reason = match e.kind() {
+                        std::io::ErrorKind::NotFound => "no such file".to_string(),
+                        _ => e.to_string(),
+                    };
+                    doc.error_at(
+                        line,
+                        Some(column),
+                        format!("cannot read data file `{path}`: {reason}"),
+                    )
+                    .hint(format!(
+                        "paths are relative to the document's folder; looked for {}",
+                        world.display(path)
+                    ))
+                })?;
+                inputs.push(Input {
+                    path: path.clone(),
+                    bytes,
+                });
+            }
+            input_hash = inputs
+                .iter()
+                .find(|i| &i.path == path)
+                .map_or_else(String::new, |i| sha256_hex(&i.bytes));
         }
-        let input = inputs
-            .iter()
-            .find(|i| &i.path == path)
-            .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
-        let model = &spec.model.value;
-        if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
-            let result = run_factorial(&doc, block, spec, input, &world.display(path))?;
-            results.push(BlockResult::Factorial(Box::new(result)));
-        } else {
-            let result = run_anova(&doc, block, spec, input, &world.display(path))?;
-            results.push(BlockResult::Anova(Box::new(result)));
+        // A block's result depends only on its text, its id, its data and the
+        // document-wide defaults, so those (and sheaf's version) key the cache.
+        let key = sha256_hex(
+            format!(
+                "sheaf {}\0{}\0{}\0{}\0{:?}\0{:?}\0{:?}",
+                crate::VERSION,
+                block.id,
+                &doc.source[block.range.clone()],
+                input_hash,
+                doc.front.alpha,
+                doc.front.decimals,
+                doc.front.compare.map(|m| m.key())
+            )
+            .as_bytes(),
+        );
+        if let Some(mut cached) = world
+            .cache_get(&key)
+            .and_then(|b| postcard::from_bytes::<BlockResult>(&b).ok())
+        {
+            cached.set_line(block.line);
+            results.push(cached);
+            continue;
         }
+        if inputs.iter().any(|i| i.bytes.len() > LARGE_INPUT) {
+            world.progress(&format!(
+                "computing block `{}` (line {})",
+                block.id, block.line
+            ));
+        }
+        let result = match &block.spec {
+            BlockSpec::Power(spec) => BlockResult::Power(run_power(&doc, block, spec)),
+            BlockSpec::Anova(spec) => {
+                let path = &spec.data.value;
+                let input = inputs
+                    .iter()
+                    .find(|i| &i.path == path)
+                    .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
+                let model = &spec.model.value;
+                if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
+                    BlockResult::Factorial(Box::new(run_factorial(
+                        &doc,
+                        block,
+                        spec,
+                        input,
+                        &world.display(path),
+                    )?))
+                } else {
+                    BlockResult::Anova(Box::new(run_anova(
+                        &doc,
+                        block,
+                        spec,
+                        input,
+                        &world.display(path),
+                    )?))
+                }
+            }
+        };
+        recomputed += 1;
+        if let Ok(bytes) = postcard::to_allocvec(&result) {
+            cache_entries.push((key, bytes));
+        }
+        results.push(result);
     }
 
     // Figures: inline SVG in HTML; files beside the report in Markdown.
@@ -224,6 +334,9 @@ pub fn compile(
         results_name,
         results: results_json(&file_name, doc_bytes, &inputs, &results, &placed),
         files,
+        recomputed,
+        cache_entries,
+        blocks: doc.blocks.len(),
         warnings,
     })
 }

@@ -6,7 +6,7 @@
 #![allow(clippy::result_large_err)]
 
 use clap::{Parser, Subcommand, ValueEnum};
-use sheaf::compile::{Built, DiskWorld, compile};
+use sheaf::compile::{Built, CACHE_DIR, CachedDisk, DiskWorld, compile};
 use sheaf::diag::Diagnostic;
 use sheaf::output::write_outputs;
 use sheaf::render::Format;
@@ -100,14 +100,26 @@ fn report(d: &Diagnostic, short: bool) -> ExitCode {
     ExitCode::from(1)
 }
 
-fn build(document: &Path, format: Format) -> Result<Built, Diagnostic> {
+/// Builds in memory; with `cache`, unchanged blocks are taken from it.
+fn build(document: &Path, format: Format, cache: Option<&Path>) -> Result<Built, Diagnostic> {
     let display = document.display().to_string();
     let bytes = std::fs::read(document).map_err(|e| {
         Diagnostic::new(format!("cannot read {display}: {e}"))
             .hint("give the path of a Markdown document")
     })?;
     let base = document.parent().map(PathBuf::from).unwrap_or_default();
-    compile(&display, &bytes, &DiskWorld { base }, format)
+    match cache {
+        Some(dir) => compile(
+            &display,
+            &bytes,
+            &CachedDisk {
+                disk: DiskWorld { base },
+                cache: dir.to_path_buf(),
+            },
+            format,
+        ),
+        None => compile(&display, &bytes, &DiskWorld { base }, format),
+    }
 }
 
 fn main() -> ExitCode {
@@ -115,15 +127,22 @@ fn main() -> ExitCode {
     let short = cli.short_errors;
     match cli.command {
         Command::Build { document, out, to } => {
-            let built = match build(&document, to.format()) {
+            let built = match build(&document, to.format(), Some(&out.join(CACHE_DIR))) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };
+            eprintln!(
+                "{} block(s): {} computed, {} from the cache",
+                built.blocks,
+                built.recomputed,
+                built.blocks - built.recomputed
+            );
             for w in &built.warnings {
                 eprintln!("warning: {w}");
             }
             match write_outputs(&out, &built) {
                 Ok(paths) => {
+                    sheaf::output::write_cache(&out.join(CACHE_DIR), &built.cache_entries);
                     for p in paths {
                         eprintln!("wrote {}", p.display());
                     }
@@ -133,7 +152,8 @@ fn main() -> ExitCode {
             }
         }
         Command::Verify { document, out, to } => {
-            let built = match build(&document, to.format()) {
+            // verify recomputes everything: it never trusts the cache.
+            let built = match build(&document, to.format(), None) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };

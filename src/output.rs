@@ -52,3 +52,17 @@ pub fn write_outputs(dir: &Path, built: &Built) -> Result<Vec<PathBuf>, Diagnost
     }
     Ok(written)
 }
+
+/// Stores block results in the cache folder. Failures are ignored: the
+/// cache only saves time and is safe to delete.
+pub fn write_cache(dir: &Path, entries: &[(String, Vec<u8>)]) {
+    if entries.is_empty() || fs::create_dir_all(dir).is_err() {
+        return;
+    }
+    for (key, bytes) in entries {
+        let tmp = dir.join(format!(".{key}.tmp"));
+        if fs::write(&tmp, bytes).is_ok() {
+            let _ = fs::rename(&tmp, dir.join(key));
+        }
+    }
+}

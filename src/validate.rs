@@ -556,6 +556,9 @@ pub fn write(v: &Validation, dir: &Path) -> Result<Vec<PathBuf>, Diagnostic> {
         results_name: "validation.results.json".into(),
         results: json,
         files: Vec::new(),
+        recomputed: 0,
+        cache_entries: Vec::new(),
+        blocks: 0,
         warnings: Vec::new(),
     };
     crate::output::write_outputs(dir, &built)

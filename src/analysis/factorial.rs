@@ -22,7 +22,7 @@ use crate::stats::oneway::GroupSummary;
 use crate::stats::sum::neumaier;
 
 /// One row of the factorial ANOVA table.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct TermRow {
     /// Factor names joined by `:` (`wool:tension`).
     pub name: String,
@@ -41,7 +41,7 @@ pub struct TermRow {
 }
 
 /// Observed data in one cell (one combination of the treatment factors' levels).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct CellRow {
     pub levels: Vec<usize>,
     pub n: usize,
@@ -50,7 +50,7 @@ pub struct CellRow {
 }
 
 /// An estimated marginal (or cell) mean.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct EmmRow {
     pub label: String,
     pub n: usize,
@@ -61,7 +61,7 @@ pub struct EmmRow {
 }
 
 /// One family of comparisons: a main effect, a slice of one (`within`), or all cells.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Family {
     /// The compared factor's name, or `cells`.
     pub term: String,
@@ -72,7 +72,7 @@ pub struct Family {
 }
 
 /// Everything computed for a factorial `anova` block.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct FactorialResult {
     pub id: String,
     pub line: usize,

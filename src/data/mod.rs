@@ -180,7 +180,7 @@ pub struct LevelData {
 }
 
 /// A row left out of the analysis, and why.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Exclusion {
     pub line: usize,
     pub reason: String,

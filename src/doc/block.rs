@@ -61,7 +61,7 @@ pub struct Located<T> {
 }
 
 /// The omnibus test of a block.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Omnibus {
     /// The classical F test with a pooled error term.
     Anova,
@@ -82,7 +82,7 @@ impl Omnibus {
 }
 
 /// A figure kind, as written in `plot`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum PlotKind {
     Box,
     Means,
@@ -115,7 +115,7 @@ impl PlotKind {
 }
 
 /// The figures a block draws and their axis settings.
-#[derive(Debug, Clone, PartialEq, Default)]
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
 pub struct PlotSpec {
     pub kinds: Vec<PlotKind>,
     /// Axis title for the response (default: the column name).
@@ -126,7 +126,7 @@ pub struct PlotSpec {
 }
 
 /// Row order of the level-means table.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Order {
     /// Highest mean first (matches the letter convention).
     Mean,
@@ -135,7 +135,7 @@ pub enum Order {
 }
 
 /// Which tables a block shows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub struct Show {
     pub anova: bool,
     pub means: bool,

@@ -9,7 +9,7 @@ use super::keyvalue::Entry;
 pub const POWER_KEYS: [&str; 7] = ["id", "groups", "effect", "alpha", "power", "n", "caption"];
 
 /// How the effect was given.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum EffectInput {
     CohensF(f64),
     /// Expected level means and the common within-level SD.

@@ -7,7 +7,7 @@ use super::oneway::{GroupSummary, one_way};
 use super::sum::neumaier;
 
 /// An F test on (k − 1, N − k) df.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct FTest {
     pub statistic: f64,
     pub df1: f64,
@@ -16,7 +16,7 @@ pub struct FTest {
 }
 
 /// A χ² test.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ChiSquareTest {
     pub statistic: f64,
     pub df: f64,
@@ -117,7 +117,7 @@ pub fn bartlett(groups: &[GroupSummary]) -> Option<ChiSquareTest> {
 }
 
 /// Shapiro-Wilk W and its p-value.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ShapiroWilk {
     pub w: f64,
     pub p: f64,
@@ -125,7 +125,7 @@ pub struct ShapiroWilk {
 }
 
 /// Why Shapiro-Wilk was not computed.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum ShapiroWilkSkip {
     TooFew,
     TooMany,

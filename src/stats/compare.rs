@@ -6,7 +6,7 @@ use super::ptukey::{ptukey_sf, qtukey_isf};
 use std::fmt;
 
 /// A multiple-comparison procedure.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Method {
     /// Fisher's least significant difference: per-pair t tests, no adjustment.
     Lsd,
@@ -87,7 +87,7 @@ pub struct LevelMean {
 }
 
 /// One comparison: level `a` against level `b`, diff = mean(a) − mean(b).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Pair {
     pub a: usize,
     pub b: usize,

@@ -14,7 +14,7 @@ use super::quadrature::gauss_legendre_16;
 use super::roots::brent;
 
 /// One- or two-sided alternative.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Sides {
     Two,
     /// Treatments above the control.

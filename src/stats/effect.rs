@@ -53,7 +53,7 @@ pub fn ncf_cdf(x: f64, d1: f64, d2: f64, nc: f64) -> f64 {
 }
 
 /// Effect sizes of one term.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct EffectSizes {
     pub eta_sq: f64,
     pub partial_eta_sq: f64,

@@ -187,7 +187,7 @@ impl Fit {
 }
 
 /// The sums-of-squares type.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum SsType {
     /// Sequential, in model order.
     I,

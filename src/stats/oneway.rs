@@ -71,7 +71,7 @@ impl GroupSummary {
 }
 
 /// The one-way ANOVA table and what was noticed while computing it.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct OneWay {
     pub k: usize,
     pub n: usize,

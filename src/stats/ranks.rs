@@ -29,7 +29,7 @@ pub fn mid_ranks(values: &[f64]) -> (Vec<f64>, f64) {
 }
 
 /// The Kruskal-Wallis test and what Dunn's test needs from its ranking.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct KruskalWallis {
     /// Tie-corrected H.
     pub h: f64,

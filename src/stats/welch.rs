@@ -9,7 +9,7 @@ use super::ptukey::{ptukey_sf, qtukey_isf};
 use super::sum::neumaier;
 
 /// Welch's F* with its (fractional) degrees of freedom.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct WelchAnova {
     pub f: f64,
     pub df1: f64,
