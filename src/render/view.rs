@@ -273,7 +273,9 @@ fn anova_table(r: &AnovaResult, number: usize) -> TableView {
         Some(c) => format!("Table {number}. {c}"),
         None => format!(
             "Table {number}. Analysis of variance of {} by {} (N = {}).",
-            r.response, r.factor, t.n
+            measure(&r.response, &r.plots),
+            r.factor,
+            t.n
         ),
     };
     let mut footnotes = vec![format!(
@@ -332,7 +334,9 @@ fn welch_table(r: &AnovaResult, number: usize) -> TableView {
         Some(c) => format!("Table {number}. {c}"),
         None => format!(
             "Table {number}. Welch's analysis of variance of {} by {} (N = {}), not assuming equal variances.",
-            r.response, r.factor, r.table.n
+            measure(&r.response, &r.plots),
+            r.factor,
+            r.table.n
         ),
     };
     TableView {
@@ -397,7 +401,7 @@ fn checks_table(r: &AnovaResult, number: usize) -> TableView {
         &r.checks,
         &r.id,
         r.alpha,
-        &format!("{} by {}", r.response, r.factor),
+        &format!("{} by {}", measure(&r.response, &r.plots), r.factor),
         number,
     )
 }
@@ -655,7 +659,11 @@ fn means_table(r: &AnovaResult, number: usize) -> TableView {
     TableView {
         number,
         id: format!("{id}-means"),
-        caption: format!("Table {number}. Means of {} by {}.", r.response, r.factor),
+        caption: format!(
+            "Table {number}. Means of {} by {}.",
+            measure(&r.response, &r.plots),
+            r.factor
+        ),
         columns,
         rows,
         footnotes,
@@ -712,7 +720,8 @@ fn ranks_table(r: &AnovaResult, number: usize) -> TableView {
         id: format!("{id}-levels"),
         caption: format!(
             "Table {number}. Medians and ranks of {} by {}.",
-            r.response, r.factor
+            measure(&r.response, &r.plots),
+            r.factor
         ),
         columns,
         rows,
@@ -837,6 +846,15 @@ fn pairs_table(r: &AnovaResult, c: &ComparisonResult, number: usize) -> TableVie
     }
 }
 
+/// The response as captions name it: its label (or column name) and unit.
+fn measure(response: &str, plots: &crate::doc::block::PlotSpec) -> String {
+    let name = plots.label.clone().unwrap_or_else(|| response.to_string());
+    match &plots.unit {
+        Some(u) => format!("{name} ({u})"),
+        None => name,
+    }
+}
+
 fn yes_no(b: bool) -> String {
     if b { "yes".into() } else { "no".into() }
 }
@@ -946,7 +964,8 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             Some(c) => format!("Table {number}. {c} ({ss_text})."),
             None => format!(
                 "Table {number}. Analysis of variance of {} by {factors_text} (N = {}; {ss_text}).",
-                r.response, r.n
+                measure(&r.response, &r.plots),
+                r.n
             ),
         };
         let crits: Vec<String> = r
