@@ -102,6 +102,10 @@ pub struct AnovaResult {
     pub plots: crate::doc::block::PlotSpec,
 }
 
+/// Above this many levels pairwise comparisons are skipped with a warning
+/// (200 levels are 19,900 pairs, each with its own studentized-range tail).
+pub const MAX_COMPARED_LEVELS: usize = 200;
+
 /// The result of any analysis block.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum BlockResult {
@@ -801,6 +805,13 @@ fn analyse(
             let pooled_ok = table.df_within > 0 && table.ms_within > 0.0;
             if spec.method == Omnibus::Anova && !pooled_ok {
                 warnings.push("pairwise comparisons need an error term with variation and degrees of freedom; none are reported".into());
+                None
+            } else if levels.len() > MAX_COMPARED_LEVELS {
+                warnings.push(format!(
+                    "{} levels would give {} pairwise comparisons; sheaf compares at most {MAX_COMPARED_LEVELS} levels. Group the levels, or use `compare: none`.",
+                    levels.len(),
+                    levels.len() * (levels.len() - 1) / 2
+                ));
                 None
             } else {
                 Some(compare_levels(

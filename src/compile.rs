@@ -83,6 +83,73 @@ impl World for DiskWorld {
     }
 }
 
+/// Files on disk, confined to the document's folder tree (`--confine`): no
+/// absolute paths, no `..` that leaves the folder, no symbolic link that
+/// points outside it. For CI systems that build documents nobody has read.
+pub struct Confined<W: World> {
+    pub inner: W,
+    pub base: PathBuf,
+}
+
+fn confinement_error(why: &str) -> std::io::Error {
+    std::io::Error::new(
+        std::io::ErrorKind::PermissionDenied,
+        format!("{why} (--confine keeps data inside the document's folder)"),
+    )
+}
+
+impl<W: World> World for Confined<W> {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        let p = Path::new(path);
+        if p.is_absolute() || path.starts_with('/') || path.starts_with('\\') || path.contains(':')
+        {
+            return Err(confinement_error("an absolute path"));
+        }
+        let mut depth: i32 = 0;
+        for c in p.components() {
+            match c {
+                std::path::Component::ParentDir => depth -= 1,
+                std::path::Component::Normal(_) => depth += 1,
+                _ => {}
+            }
+            if depth < 0 {
+                return Err(confinement_error(
+                    "a path that leaves the document's folder",
+                ));
+            }
+        }
+        let base = if self.base.as_os_str().is_empty() {
+            Path::new(".")
+        } else {
+            self.base.as_path()
+        };
+        let root = base.canonicalize()?;
+        let full = base.join(p).canonicalize()?;
+        if !full.starts_with(&root) {
+            return Err(confinement_error(
+                "a link that points outside the document's folder",
+            ));
+        }
+        self.inner.read(path)
+    }
+
+    fn display(&self, path: &str) -> String {
+        self.inner.display(path)
+    }
+
+    fn cache_get(&self, key: &str) -> Option<Vec<u8>> {
+        self.inner.cache_get(key)
+    }
+
+    fn today(&self) -> Option<String> {
+        self.inner.today()
+    }
+
+    fn progress(&self, message: &str) {
+        self.inner.progress(message)
+    }
+}
+
 /// Inputs above this size (bytes) get progress messages on a terminal.
 const LARGE_INPUT: usize = 20_000_000;
 

@@ -45,7 +45,15 @@ impl Diagnostic {
     }
 
     pub fn snippet(mut self, text: impl Into<String>) -> Self {
-        self.snippet = Some(text.into());
+        let text: String = text.into();
+        // A very long line (a minified file, a pasted blob) is cut to what
+        // fits a terminal; the column still points into the kept part.
+        const KEEP: usize = 160;
+        self.snippet = Some(if text.chars().count() > KEEP {
+            format!("{}…", text.chars().take(KEEP).collect::<String>())
+        } else {
+            text
+        });
         self
     }
 

@@ -6,7 +6,7 @@
 #![allow(clippy::result_large_err)]
 
 use clap::{Parser, Subcommand, ValueEnum};
-use sheaf::compile::{Built, CACHE_DIR, CachedDisk, DiskWorld, compile};
+use sheaf::compile::{Built, CACHE_DIR, CachedDisk, Confined, DiskWorld, compile};
 use sheaf::diag::Diagnostic;
 use sheaf::output::write_outputs;
 use sheaf::render::Format;
@@ -25,6 +25,10 @@ struct Cli {
     /// Print errors as one line each (file:line:col: error: message).
     #[arg(long, global = true)]
     short_errors: bool,
+    /// Read data only from inside the document's folder: no absolute paths,
+    /// no `..` escapes, no symbolic links out (for untrusted documents).
+    #[arg(long, global = true)]
+    confine: bool,
 }
 
 #[derive(Subcommand)]
@@ -100,34 +104,55 @@ fn report(d: &Diagnostic, short: bool) -> ExitCode {
     ExitCode::from(1)
 }
 
-/// Builds in memory; with `cache`, unchanged blocks are taken from it.
-fn build(document: &Path, format: Format, cache: Option<&Path>) -> Result<Built, Diagnostic> {
+/// Builds in memory; with `cache`, unchanged blocks are taken from it; with
+/// `confine`, data are read only from inside the document's folder.
+fn build(
+    document: &Path,
+    format: Format,
+    cache: Option<&Path>,
+    confine: bool,
+) -> Result<Built, Diagnostic> {
     let display = document.display().to_string();
     let bytes = std::fs::read(document).map_err(|e| {
         Diagnostic::new(format!("cannot read {display}: {e}"))
             .hint("give the path of a Markdown document")
     })?;
     let base = document.parent().map(PathBuf::from).unwrap_or_default();
-    match cache {
-        Some(dir) => compile(
+    let disk = DiskWorld { base: base.clone() };
+    match (cache, confine) {
+        (Some(dir), false) => compile(
             &display,
             &bytes,
             &CachedDisk {
-                disk: DiskWorld { base },
+                disk,
                 cache: dir.to_path_buf(),
             },
             format,
         ),
-        None => compile(&display, &bytes, &DiskWorld { base }, format),
+        (Some(dir), true) => compile(
+            &display,
+            &bytes,
+            &Confined {
+                inner: CachedDisk {
+                    disk,
+                    cache: dir.to_path_buf(),
+                },
+                base,
+            },
+            format,
+        ),
+        (None, false) => compile(&display, &bytes, &disk, format),
+        (None, true) => compile(&display, &bytes, &Confined { inner: disk, base }, format),
     }
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let short = cli.short_errors;
+    let confine = cli.confine;
     match cli.command {
         Command::Build { document, out, to } => {
-            let built = match build(&document, to.format(), Some(&out.join(CACHE_DIR))) {
+            let built = match build(&document, to.format(), Some(&out.join(CACHE_DIR)), confine) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };
@@ -153,7 +178,7 @@ fn main() -> ExitCode {
         }
         Command::Verify { document, out, to } => {
             // verify recomputes everything: it never trusts the cache.
-            let built = match build(&document, to.format(), None) {
+            let built = match build(&document, to.format(), None, confine) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };
@@ -191,6 +216,7 @@ fn main() -> ExitCode {
                 format: to.format(),
                 serve: serve.then_some(port),
                 short_errors: short,
+                confine,
             };
             match sheaf::watch::run(opts) {
                 Ok(()) => ExitCode::SUCCESS,

@@ -753,3 +753,105 @@ fn row_rules_are_checked() {
         run_case(c);
     }
 }
+
+#[test]
+fn hostile_and_extreme_inputs() {
+    // 10,000 levels, two observations each: the ANOVA is computed,
+    // comparisons are declined with a warning, and the build succeeds.
+    let mut many = String::from("weight,group\n");
+    for i in 0..10_000 {
+        many.push_str(&format!("{}.5,L{i}\n{}.7,L{i}\n", i % 7, i % 5));
+    }
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("report.md"), doc_with(GOOD_BLOCK)).expect("doc");
+    std::fs::write(dir.path().join("plants.csv"), &many).expect("data");
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["build", "report.md", "-o", "out", "--to", "md"])
+        .output()
+        .expect("runs");
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(0), "{err}");
+    assert!(
+        err.contains("10000 levels would give 49995000 pairwise comparisons"),
+        "{err}"
+    );
+
+    // NaN is a missing-value marker; the rows are counted, not analysed.
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("report.md"), doc_with(GOOD_BLOCK)).expect("doc");
+    std::fs::write(
+        dir.path().join("plants.csv"),
+        format!("{PLANTS}NaN,ctrl\nnan,trt1\n"),
+    )
+    .expect("data");
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["build", "report.md", "-o", "out"])
+        .output()
+        .expect("runs");
+    assert!(
+        String::from_utf8_lossy(&o.stderr).contains(
+            "2 rows of plants.csv were left out because a value was missing (lines 8, 9)"
+        )
+    );
+
+    let long_line = "x".repeat(2_000_000);
+    let cases = vec![
+        case(
+            "a two-megabyte line in the document",
+            doc_with(&format!("{GOOD_BLOCK}caption {long_line}\n")),
+            vec!["expected `key: value`", "report.md:7"],
+        ),
+        with_data(
+            case(
+                "a two-megabyte field in the data",
+                doc_with(GOOD_BLOCK),
+                vec!["`weight` must be a number", "plants.csv:3"],
+            ),
+            format!("weight,group\n4.1,a\n{long_line},b\n").as_bytes(),
+        ),
+        case(
+            "a block reading its own document",
+            doc_with("data: report.md\nmodel: weight ~ group\n"),
+            vec!["no column named `weight`", "the columns are `# Trial`"],
+        ),
+        with_data(
+            case(
+                "negative infinity in the data",
+                doc_with(GOOD_BLOCK),
+                vec!["found `-inf`", "infinite values"],
+            ),
+            b"weight,group\n4.1,a\n-inf,b\n3,b\n",
+        ),
+        with_data(
+            case(
+                "a header only",
+                doc_with(GOOD_BLOCK),
+                vec!["`group` needs two or more levels with data; no level has observations"],
+            ),
+            b"weight,group\n",
+        ),
+        with_data(
+            case(
+                "a NUL byte in the data",
+                doc_with(GOOD_BLOCK),
+                vec!["`weight` must be a number", "plants.csv:3"],
+            ),
+            b"weight,group\n4.1,a\n4\x00.2,b\n",
+        ),
+        case(
+            "an empty document block",
+            doc_with(""),
+            vec!["this anova block has no `data`", "report.md:3"],
+        ),
+        case(
+            "front matter that is not key: value",
+            "---\njust text\n---\n".to_string(),
+            vec!["expected `key: value`", "report.md:2"],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}

@@ -571,6 +571,15 @@ pub fn run_factorial(
         };
         if marginal_wanted {
             for &f in compare.iter().filter(|f| Some(**f) != within) {
+                if levels[f] > super::MAX_COMPARED_LEVELS {
+                    warnings.push(format!(
+                        "`{}` has {} levels; sheaf compares at most {} levels, so its comparisons are skipped.",
+                        factor_names[f],
+                        levels[f],
+                        super::MAX_COMPARED_LEVELS
+                    ));
+                    continue;
+                }
                 let slices: Vec<Option<usize>> = match within {
                     Some(w) => (0..levels[w]).map(Some).collect(),
                     None => vec![None],
@@ -655,6 +664,19 @@ pub fn run_factorial(
                     .hint("write the model as `y ~ A * B` (plus any blocks), or compare marginal means with `within`"));
             }
             let present: Vec<&CellRow> = cells.iter().filter(|c| c.n > 0).collect();
+            if present.len() > super::MAX_COMPARED_LEVELS {
+                return Err(doc
+                    .error_at(
+                        spec.cells.as_ref().map_or(spec.model.line, |c| c.line),
+                        None,
+                        format!(
+                            "`cells` would compare {} cells; sheaf compares at most {}",
+                            present.len(),
+                            super::MAX_COMPARED_LEVELS
+                        ),
+                    )
+                    .hint("compare marginal means, or within one factor, instead"));
+            }
             let means: Vec<EmmRow> = present
                 .iter()
                 .map(|c| {
