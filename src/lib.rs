@@ -23,6 +23,8 @@ pub mod data;
 pub mod diag;
 pub mod doc;
 pub mod figure;
+#[doc(hidden)]
+pub mod fuzzing;
 pub mod output;
 pub mod render;
 pub mod results;

@@ -855,3 +855,18 @@ fn hostile_and_extreme_inputs() {
         run_case(c);
     }
 }
+
+#[test]
+fn models_that_would_explode_are_refused() {
+    let cases = vec![case(
+        "seven factors crossed",
+        doc_with("data: plants.csv\nmodel: y ~ a*b*c*d*e*f*g\n"),
+        vec![
+            "`*` crosses 7 factors, which would give 127 terms",
+            "report.md:5",
+        ],
+    )];
+    for c in &cases {
+        run_case(c);
+    }
+}

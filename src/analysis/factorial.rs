@@ -21,6 +21,11 @@ use crate::stats::linear::{
 use crate::stats::oneway::GroupSummary;
 use crate::stats::sum::neumaier;
 
+/// Limits that keep a model's fit and reference grid to a size that fits in
+/// memory and finishes in seconds.
+const MAX_DESIGN_COLUMNS: usize = 2_000;
+const MAX_GRID_CELLS: f64 = 1_000_000.0;
+
 /// One row of the factorial ANOVA table.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct TermRow {
@@ -269,6 +274,21 @@ pub fn run_factorial(
         }
     }
 
+    // The design matrix has one column per estimable contrast and the marginal
+    // means average over every combination of levels: bound both.
+    let width: usize = 1 + terms
+        .iter()
+        .map(|t| crate::stats::linear::term_width(t, &levels))
+        .sum::<usize>();
+    let grid: f64 = levels.iter().map(|&l| l as f64).product();
+    if width > MAX_DESIGN_COLUMNS || grid > MAX_GRID_CELLS {
+        return Err(model_err(
+            format!(
+                "the model needs {width} design columns over {grid} combinations of levels, more than sheaf fits"
+            ),
+            "drop high-order interactions (write the terms with `+` and `:`), or merge rare levels",
+        ));
+    }
     let design = design_matrix(&layout, &terms);
     let ranges = term_columns(&terms, &levels);
     let full = fit(&design, &data.offsets);

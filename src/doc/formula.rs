@@ -7,6 +7,9 @@
 
 use std::fmt;
 
+/// At most this many factors may be crossed with `*` in one chunk (63 terms).
+pub const MAX_CROSSED: usize = 6;
+
 /// A parsed model: the response and its terms in model order.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Formula {
@@ -168,6 +171,20 @@ pub fn parse_formula(text: &str) -> Result<Formula, FormulaError> {
                 _ => break,
             }
             it.next();
+        }
+        // `a * b * c …` expands to 2^g − 1 terms: refuse before that explodes.
+        let crossed = names.iter().filter(|(_, star)| *star).count() + 1;
+        if crossed > MAX_CROSSED {
+            return Err(FormulaError {
+                offset: 0,
+                message: format!(
+                    "`*` crosses {crossed} factors, which would give {} terms",
+                    (1u64 << crossed.min(63)) - 1
+                ),
+                hint: format!(
+                    "sheaf fits at most {MAX_CROSSED}-way crossings; list the terms you need with `+` and `:`"
+                ),
+            });
         }
         for t in expand(&names) {
             if !terms.contains(&t) {
