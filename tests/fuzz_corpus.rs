@@ -4,10 +4,13 @@
 
 use std::path::Path;
 
+/// A fuzz entry point.
+type Target = fn(&[u8]);
+
 #[test]
 fn every_corpus_input_is_handled_without_a_panic() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fuzz/corpus");
-    let targets: [(&str, fn(&[u8])); 5] = [
+    let targets: [(&str, Target); 5] = [
         ("block_parser", sheaf::fuzzing::block_parser),
         ("formula", sheaf::fuzzing::formula),
         ("document", sheaf::fuzzing::document),
