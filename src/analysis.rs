@@ -286,7 +286,7 @@ pub struct RoundingRange {
     pub p_high: f64,
 }
 
-/// Runs one `anova` block on its data file.
+/// Runs a one-factor `anova` block on its data file.
 pub fn run_anova(
     doc: &Document,
     block: &Block,
@@ -295,27 +295,17 @@ pub fn run_anova(
     display_path: &str,
 ) -> Result<AnovaResult, Diagnostic> {
     let formula = &spec.model.value;
+    // `compile` sends models with several terms to `factorial::run_factorial`.
     if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
-        return Err(doc
-            .error_at(
-                spec.model.line,
-                Some(spec.model.column),
-                format!("`{}` has {} terms; this version of sheaf fits one treatment factor", formula_text(formula), formula.terms.len()),
-            )
-            .hint("write `response ~ factor`; models with several factors, interactions or blocks are not fitted yet"));
+        return Err(doc.error_at(
+            spec.model.line,
+            None,
+            "internal error: a factorial model reached the one-factor analysis",
+        ));
     }
     let factor = formula.terms[0].factors[0].clone();
     let response = formula.response.clone();
-    let table = crate::data::read_table(
-        &input.path,
-        &input.bytes,
-        &spec.csv,
-        spec.sheet.as_deref(),
-        spec.range.as_deref(),
-    )
-    .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
-    let (table, ruled_out) = prepare(table, &spec.rows)
-        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
     let mut sample = match &spec.summary {
         None => load_raw(
             doc,
@@ -404,6 +394,27 @@ pub(crate) fn apply_labels(names: &mut [String], labels: &[(String, String)]) {
             *n = to.clone();
         }
     }
+}
+
+/// Reads a block's data file (CSV or spreadsheet) and applies its row rules
+/// (`layout`, `where`, `exclude`); returns the rows and those left out.
+pub(crate) fn read_rows(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    input: &Input,
+    display_path: &str,
+) -> Result<(Table, Vec<Exclusion>), Diagnostic> {
+    let fail = |e| data_error(doc, block, spec.data.line, display_path, e);
+    let table = crate::data::read_table(
+        &input.path,
+        &input.bytes,
+        &spec.csv,
+        spec.sheet.as_deref(),
+        spec.range.as_deref(),
+    )
+    .map_err(fail)?;
+    prepare(table, &spec.rows).map_err(fail)
 }
 
 /// The design order of the levels found in the data: `levels` if given (it
@@ -905,20 +916,25 @@ pub struct OutlierRow {
     pub studentized_residual: f64,
 }
 
-/// Checks possible from summaries alone: Bartlett and the SD ratio.
-fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks {
+/// Largest over smallest level SD (NaN when a level has none or no spread).
+fn sd_ratio(summaries: &[GroupSummary]) -> f64 {
     let sds: Vec<f64> = summaries
         .iter()
         .map(|s| s.variance().sqrt())
         .filter(|v| v.is_finite())
         .collect();
-    let sd_ratio = match (
-        sds.iter().cloned().fold(f64::NAN, f64::max),
-        sds.iter().cloned().fold(f64::NAN, f64::min),
+    match (
+        sds.iter().copied().fold(f64::NAN, f64::max),
+        sds.iter().copied().fold(f64::NAN, f64::min),
     ) {
         (hi, lo) if lo > 0.0 => hi / lo,
         _ => f64::NAN,
-    };
+    }
+}
+
+/// Checks possible from summaries alone: Bartlett and the SD ratio.
+fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks {
+    let sd_ratio = sd_ratio(summaries);
     Checks {
         shown,
         brown_forsythe: None,
@@ -949,18 +965,7 @@ fn assumption_checks(
         .flat_map(|(g, s)| g.iter().map(move |y| y - s.mean))
         .collect();
     let (skewness, excess_kurtosis) = skewness_kurtosis(&residuals);
-    let sds: Vec<f64> = summaries
-        .iter()
-        .map(|s| s.variance().sqrt())
-        .filter(|v| v.is_finite())
-        .collect();
-    let sd_ratio = match (
-        sds.iter().cloned().fold(f64::NAN, f64::max),
-        sds.iter().cloned().fold(f64::NAN, f64::min),
-    ) {
-        (hi, lo) if lo > 0.0 => hi / lo,
-        _ => f64::NAN,
-    };
+    let sd_ratio = sd_ratio(summaries);
     let means: Vec<f64> = summaries.iter().map(|s| s.mean).collect();
     let flagged = outliers(offsets, &means, table.ms_within, table.df_within)
         .into_iter()

@@ -419,3 +419,46 @@ mod tests {
         assert_eq!(super::civil_date(1_709_164_800), "2024-02-29");
     }
 }
+
+/// Reads a document from disk and compiles it: with `cache`, unchanged blocks
+/// come from that folder; with `confine`, data are read only from inside the
+/// document's folder. The one entry point the commands share.
+pub fn build_file(
+    document: &Path,
+    format: Format,
+    cache: Option<&Path>,
+    confine: bool,
+) -> Result<Built, Diagnostic> {
+    let display = document.display().to_string();
+    let bytes = std::fs::read(document).map_err(|e| {
+        Diagnostic::new(format!("cannot read {display}: {e}"))
+            .hint("give the path of a Markdown document")
+    })?;
+    let base = document.parent().map(PathBuf::from).unwrap_or_default();
+    let disk = DiskWorld { base: base.clone() };
+    match (cache, confine) {
+        (Some(dir), false) => compile(
+            &display,
+            &bytes,
+            &CachedDisk {
+                disk,
+                cache: dir.to_path_buf(),
+            },
+            format,
+        ),
+        (Some(dir), true) => compile(
+            &display,
+            &bytes,
+            &Confined {
+                inner: CachedDisk {
+                    disk,
+                    cache: dir.to_path_buf(),
+                },
+                base,
+            },
+            format,
+        ),
+        (None, false) => compile(&display, &bytes, &disk, format),
+        (None, true) => compile(&display, &bytes, &Confined { inner: disk, base }, format),
+    }
+}

@@ -6,11 +6,11 @@
 #![allow(clippy::result_large_err)]
 
 use clap::{Parser, Subcommand, ValueEnum};
-use sheaf::compile::{Built, CACHE_DIR, CachedDisk, Confined, DiskWorld, compile};
+use sheaf::compile::{CACHE_DIR, build_file};
 use sheaf::diag::Diagnostic;
 use sheaf::output::write_outputs;
 use sheaf::render::Format;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 #[derive(Parser)]
@@ -104,58 +104,17 @@ fn report(d: &Diagnostic, short: bool) -> ExitCode {
     ExitCode::from(1)
 }
 
-/// Builds in memory; with `cache`, unchanged blocks are taken from it; with
-/// `confine`, data are read only from inside the document's folder.
-fn build(
-    document: &Path,
-    format: Format,
-    cache: Option<&Path>,
-    confine: bool,
-) -> Result<Built, Diagnostic> {
-    let display = document.display().to_string();
-    let bytes = std::fs::read(document).map_err(|e| {
-        Diagnostic::new(format!("cannot read {display}: {e}"))
-            .hint("give the path of a Markdown document")
-    })?;
-    let base = document.parent().map(PathBuf::from).unwrap_or_default();
-    let disk = DiskWorld { base: base.clone() };
-    match (cache, confine) {
-        (Some(dir), false) => compile(
-            &display,
-            &bytes,
-            &CachedDisk {
-                disk,
-                cache: dir.to_path_buf(),
-            },
-            format,
-        ),
-        (Some(dir), true) => compile(
-            &display,
-            &bytes,
-            &Confined {
-                inner: CachedDisk {
-                    disk,
-                    cache: dir.to_path_buf(),
-                },
-                base,
-            },
-            format,
-        ),
-        (None, false) => compile(&display, &bytes, &disk, format),
-        (None, true) => compile(&display, &bytes, &Confined { inner: disk, base }, format),
-    }
-}
-
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let short = cli.short_errors;
     let confine = cli.confine;
     match cli.command {
         Command::Build { document, out, to } => {
-            let built = match build(&document, to.format(), Some(&out.join(CACHE_DIR)), confine) {
-                Ok(b) => b,
-                Err(d) => return report(&d, short),
-            };
+            let built =
+                match build_file(&document, to.format(), Some(&out.join(CACHE_DIR)), confine) {
+                    Ok(b) => b,
+                    Err(d) => return report(&d, short),
+                };
             eprintln!(
                 "{} block(s): {} computed, {} from the cache",
                 built.blocks,
@@ -178,7 +137,7 @@ fn main() -> ExitCode {
         }
         Command::Verify { document, out, to } => {
             // verify recomputes everything: it never trusts the cache.
-            let built = match build(&document, to.format(), None, confine) {
+            let built = match build_file(&document, to.format(), None, confine) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };

@@ -3,7 +3,7 @@
 //! after each rebuild. The report files themselves stay script-free: the
 //! reload snippet is added only to pages as they are served.
 
-use crate::compile::{Built, CACHE_DIR, CachedDisk, Confined, DiskWorld, compile};
+use crate::compile::{Built, CACHE_DIR, build_file};
 use crate::diag::Diagnostic;
 use crate::output::write_outputs;
 use crate::render::Format;
@@ -28,29 +28,6 @@ pub struct WatchOptions {
     pub confine: bool,
 }
 
-fn build(
-    document: &Path,
-    format: Format,
-    cache: &Path,
-    confine: bool,
-) -> Result<Built, Diagnostic> {
-    let display = document.display().to_string();
-    let bytes = std::fs::read(document).map_err(|e| {
-        Diagnostic::new(format!("cannot read {display}: {e}"))
-            .hint("give the path of a Markdown document")
-    })?;
-    let base = document.parent().map(PathBuf::from).unwrap_or_default();
-    let world = CachedDisk {
-        disk: DiskWorld { base: base.clone() },
-        cache: cache.to_path_buf(),
-    };
-    if confine {
-        compile(&display, &bytes, &Confined { inner: world, base }, format)
-    } else {
-        compile(&display, &bytes, &world, format)
-    }
-}
-
 /// The files a build read: the document and every data file it names.
 fn inputs_of(document: &Path, built: Option<&Built>) -> Vec<PathBuf> {
     let mut files = vec![document.to_path_buf()];
@@ -70,10 +47,10 @@ fn inputs_of(document: &Path, built: Option<&Built>) -> Vec<PathBuf> {
 /// One build and write; prints a one-line status. Returns what it read.
 fn rebuild(opts: &WatchOptions, version: &AtomicU64) -> Vec<PathBuf> {
     let start = Instant::now();
-    match build(
+    match build_file(
         &opts.document,
         opts.format,
-        &opts.out.join(CACHE_DIR),
+        Some(&opts.out.join(CACHE_DIR)),
         opts.confine,
     )
     .and_then(|b| write_outputs(&opts.out, &b).map(|_| b))

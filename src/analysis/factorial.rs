@@ -216,16 +216,7 @@ pub fn run_factorial(
         .collect();
     let term_names: Vec<String> = formula.terms.iter().map(|t| t.to_string()).collect();
 
-    let table = crate::data::read_table(
-        &input.path,
-        &input.bytes,
-        &spec.csv,
-        spec.sheet.as_deref(),
-        spec.range.as_deref(),
-    )
-    .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
-    let (table, ruled_out) = crate::data::prepare(table, &spec.rows)
-        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let (table, ruled_out) = super::read_rows(doc, block, spec, input, display_path)?;
     let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();
     let mut data = factorial_response(&table, &formula.response, &names, &spec.csv)
         .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;

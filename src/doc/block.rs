@@ -213,6 +213,26 @@ pub struct Defaults {
     pub compare: Option<Method>,
 }
 
+/// Reads a block `id`: a letter, then letters, digits and `_`, so that prose
+/// can write `{{ id.f }}`.
+pub fn parse_id(e: &Entry) -> Result<Located<String>, SpecError> {
+    let mut chars = e.value.chars();
+    let ok = chars.next().is_some_and(|c| c.is_ascii_alphabetic())
+        && chars.all(|c| c.is_ascii_alphanumeric() || c == '_');
+    if !ok {
+        return Err(bad(
+            e,
+            format!("`{}` is not a usable id", e.value),
+            "an id starts with a letter and has only letters, digits and `_`, so prose can write {{ id.f }}",
+        ));
+    }
+    Ok(Located {
+        value: e.value.clone(),
+        line: e.line,
+        column: e.value_column,
+    })
+}
+
 /// Reads an `alpha` value: a probability strictly between 0 and 1.
 pub fn parse_alpha(entry: &Entry) -> Result<f64, SpecError> {
     match entry.value.parse::<f64>() {
@@ -377,27 +397,7 @@ pub fn anova_spec(
         column: e.value_column,
     };
 
-    let id = match get("id") {
-        Some(e) => {
-            let ok = e
-                .value
-                .chars()
-                .next()
-                .is_some_and(|c| c.is_ascii_alphabetic())
-                && e.value
-                    .chars()
-                    .all(|c| c.is_ascii_alphanumeric() || c == '_');
-            if !ok {
-                return Err(bad(
-                    e,
-                    format!("`{}` is not a usable id", e.value),
-                    "an id starts with a letter and has only letters, digits and `_`, so prose can write {{ id.f }}",
-                ));
-            }
-            Some(located(e))
-        }
-        None => None,
-    };
+    let id = get("id").map(parse_id).transpose()?;
     let data_entry = required("data", "data: plants.csv")?;
     if data_entry.value.is_empty() {
         return Err(bad(

@@ -136,28 +136,7 @@ pub fn power_spec(entries: &[Entry], fence_line: usize) -> Result<PowerSpec, Spe
         message: format!("this power block has no `{key}`"),
         hint: Some(format!("add a line such as `{example}`")),
     };
-    let id = get("id").map(|e| Located {
-        value: e.value.clone(),
-        line: e.line,
-        column: e.value_column,
-    });
-    if let Some(e) = get("id") {
-        let ok = e
-            .value
-            .chars()
-            .next()
-            .is_some_and(|c| c.is_ascii_alphabetic())
-            && e.value
-                .chars()
-                .all(|c| c.is_ascii_alphanumeric() || c == '_');
-        if !ok {
-            return Err(bad(
-                e,
-                format!("`{}` is not a usable id", e.value),
-                "an id starts with a letter and has only letters, digits and `_`",
-            ));
-        }
-    }
+    let id = get("id").map(super::block::parse_id).transpose()?;
     let effect_entry = get("effect").ok_or_else(|| missing("effect", "effect: f = 0.25"))?;
     let effect = parse_effect(effect_entry)?;
     let groups = match get("groups") {
