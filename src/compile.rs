@@ -408,18 +408,6 @@ pub fn compile(
     })
 }
 
-#[cfg(test)]
-mod tests {
-    #[test]
-    fn civil_dates() {
-        // Reference dates (common practice): the Unix epoch, the start of
-        // 2000 (946684800) and 2024-02-29 (1709164800).
-        assert_eq!(super::civil_date(0), "1970-01-01");
-        assert_eq!(super::civil_date(946_684_800), "2000-01-01");
-        assert_eq!(super::civil_date(1_709_164_800), "2024-02-29");
-    }
-}
-
 /// Reads a document from disk and compiles it: with `cache`, unchanged blocks
 /// come from that folder; with `confine`, data are read only from inside the
 /// document's folder. The one entry point the commands share.
@@ -460,5 +448,17 @@ pub fn build_file(
         ),
         (None, false) => compile(&display, &bytes, &disk, format),
         (None, true) => compile(&display, &bytes, &Confined { inner: disk, base }, format),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn civil_dates() {
+        // Reference dates (common practice): the Unix epoch, the start of
+        // 2000 (946684800) and 2024-02-29 (1709164800).
+        assert_eq!(super::civil_date(0), "1970-01-01");
+        assert_eq!(super::civil_date(946_684_800), "2000-01-01");
+        assert_eq!(super::civil_date(1_709_164_800), "2024-02-29");
     }
 }
