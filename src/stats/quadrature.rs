@@ -63,12 +63,6 @@ pub fn gauss_legendre_16() -> &'static GaussLegendre {
     RULE.get_or_init(|| GaussLegendre::new(16))
 }
 
-/// The 24-point rule, shared.
-pub fn gauss_legendre_24() -> &'static GaussLegendre {
-    static RULE: OnceLock<GaussLegendre> = OnceLock::new();
-    RULE.get_or_init(|| GaussLegendre::new(24))
-}
-
 #[cfg(test)]
 #[path = "quadrature_tests.rs"]
 mod tests;

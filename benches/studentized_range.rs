@@ -1,0 +1,56 @@
+//! Timing of the studentized-range cdf and a 100-level Tukey-Kramer table.
+//!
+//! Run by `bench/studentized_range.sh`, which times scipy on the same grid in
+//! the same run and prints the ratio. Prints one line per measurement:
+//! `name seconds_per_item items`.
+
+use std::hint::black_box;
+use std::time::Instant;
+
+use sheaf::stats::compare::{LevelMean, Method, pairwise};
+use sheaf::stats::ptukey::ptukey_cdf;
+
+/// The grid the script also gives scipy: q, k, ν as a practitioner meets them.
+fn grid() -> Vec<(f64, usize, f64)> {
+    let mut points = Vec::new();
+    for &k in &[2usize, 3, 5, 10, 20, 50, 100] {
+        for &df in &[3.0, 10.0, 30.0, 120.0, 1000.0] {
+            for &q in &[1.0, 2.5, 4.0, 6.0] {
+                points.push((q, k, df));
+            }
+        }
+    }
+    points
+}
+
+fn main() {
+    let points = grid();
+    // Warm up once, then time enough rounds for a stable figure.
+    let mut sink = 0.0;
+    for &(q, k, df) in &points {
+        sink += ptukey_cdf(q, k, df);
+    }
+    let rounds = 5;
+    let start = Instant::now();
+    for _ in 0..rounds {
+        for &(q, k, df) in &points {
+            sink += ptukey_cdf(black_box(q), black_box(k), black_box(df));
+        }
+    }
+    let evaluations = rounds * points.len();
+    let per_eval = start.elapsed().as_secs_f64() / evaluations as f64;
+    println!("ptukey_cdf {per_eval:.3e} {evaluations}");
+
+    // A 100-level one-way layout with unequal n: 4,950 Tukey-Kramer pairs.
+    let levels: Vec<LevelMean> = (0..100)
+        .map(|i| LevelMean {
+            n: 4 + i % 5,
+            mean: 10.0 + 0.03 * i as f64,
+        })
+        .collect();
+    let start = Instant::now();
+    let table = pairwise(black_box(&levels), 0.8, 500.0, 0.05, Method::Tukey);
+    let elapsed = start.elapsed().as_secs_f64();
+    println!("tukey_table_100 {elapsed:.3e} {}", table.pairs.len());
+    black_box(sink);
+}
