@@ -3,7 +3,8 @@
 //!
 //! The integral is taken in t = ln s, where the density of s is a smooth bump
 //! centred at t = 0 with standard deviation 1/√(2ν) for every ν, so panels a
-//! fixed number of standard deviations wide resolve ν = 2 and ν = 1e9 alike.
+//! fixed number of standard deviations wide resolve ν = 2 and ν = 1e9 alike;
+//! a cap on their width in t keeps a steep f resolved too.
 
 use super::quadrature::gauss_legendre_16;
 use super::special::ln_gamma;
@@ -52,8 +53,9 @@ pub fn chi_scale_expectation(df: f64, f: impl Fn(f64) -> f64) -> f64 {
     // Panels eight standard deviations wide near the mode and sixteen in the
     // long left tail of small ν (16 nodes each), but never wider than 0.5 and
     // 1.0 in t: with many means f itself turns steeply within a unit of t.
-    // Against scipy this keeps |Δcdf| below 2e-10 over the test grid
-    // (k = 2..100, ν = 2..∞) at a third of the cost of narrower panels.
+    // For the studentized range this keeps |Δcdf| against scipy below 2e-10
+    // over the test grid (k = 2..100, ν = 2..∞) at about a third of the cost
+    // of panels two standard deviations wide.
     let rule = gauss_legendre_16();
     let mut total = 0.0;
     let mut right = t_hi;
@@ -64,16 +66,21 @@ pub fn chi_scale_expectation(df: f64, f: impl Fn(f64) -> f64) -> f64 {
             (16.0 * sd).min(1.0)
         };
         let left = (right - width).max(t_lo);
+        // f at the panel's leftmost evaluated node (the rule runs left to
+        // right): f is non-decreasing, so it bounds f on everything further left.
+        let mut leftmost_f = None;
         total += rule.integrate(left, right, |t| {
             let ln_weight = shape(t);
             if ln_weight < CUT {
                 0.0
             } else {
-                (mode + ln_weight).exp() * f(t.exp())
+                let value = f(t.exp());
+                leftmost_f.get_or_insert(value);
+                (mode + ln_weight).exp() * value
             }
         });
         // Once f has vanished on the left, nothing more can come.
-        if left < -4.0 * sd && f(left.exp()) < 1e-18 {
+        if left < -4.0 * sd && leftmost_f.unwrap_or(0.0) < 1e-18 {
             break;
         }
         right = left;
