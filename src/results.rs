@@ -48,17 +48,8 @@ pub enum BlockEntry {
 /// they apply, plus `ss_type`, `cells` and estimated marginal means.
 #[derive(Serialize)]
 pub struct FactorialRecord {
-    pub id: String,
-    pub kind: &'static str,
-    pub line: usize,
-    pub data: String,
-    pub response: String,
-    pub factors: Vec<String>,
-    pub n: usize,
-    pub n_excluded: usize,
-    pub excluded: Vec<ExcludedRecord>,
-    pub alpha: f64,
-    pub method: &'static str,
+    #[serde(flatten)]
+    pub head: BlockHead,
     /// 1, 2 or 3.
     pub ss_type: u8,
     pub anova: AnovaRecord,
@@ -164,24 +155,17 @@ fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> Factoria
         })
         .unwrap_or_default();
     FactorialRecord {
-        id: r.id.clone(),
-        kind: "anova",
-        line: r.line,
-        data: r.data.clone(),
-        response: r.response.clone(),
-        factors: r.factors.clone(),
-        n: r.n,
-        n_excluded: r.exclusions.len(),
-        excluded: r
-            .exclusions
-            .iter()
-            .map(|e| ExcludedRecord {
-                line: e.line,
-                reason: e.reason.clone(),
-            })
-            .collect(),
-        alpha: r.alpha,
-        method: "anova",
+        head: BlockHead::new(
+            &r.id,
+            r.line,
+            &r.data,
+            &r.response,
+            r.factors.clone(),
+            r.n,
+            &r.exclusions,
+            r.alpha,
+            "anova",
+        ),
         ss_type: match r.ss_type {
             crate::stats::linear::SsType::I => 1,
             crate::stats::linear::SsType::II => 2,
@@ -330,6 +314,23 @@ pub struct InputRecord {
 
 #[derive(Serialize)]
 pub struct BlockRecord {
+    #[serde(flatten)]
+    pub head: BlockHead,
+    pub anova: AnovaRecord,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub welch: Option<WelchRecord>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub kruskal: Option<KruskalRecord>,
+    pub checks: ChecksRecord,
+    pub groups: Vec<GroupRecord>,
+    pub comparisons: Vec<ComparisonRecord>,
+    pub figures: Vec<FigureRecord>,
+    pub warnings: Vec<String>,
+}
+
+/// The fields every `anova` record opens with, one-factor or factorial.
+#[derive(Serialize)]
+pub struct BlockHead {
     pub id: String,
     pub kind: &'static str,
     pub line: usize,
@@ -342,16 +343,41 @@ pub struct BlockRecord {
     pub alpha: f64,
     /// The omnibus test the block declared: "anova", "welch" or "ranks".
     pub method: &'static str,
-    pub anova: AnovaRecord,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub welch: Option<WelchRecord>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub kruskal: Option<KruskalRecord>,
-    pub checks: ChecksRecord,
-    pub groups: Vec<GroupRecord>,
-    pub comparisons: Vec<ComparisonRecord>,
-    pub figures: Vec<FigureRecord>,
-    pub warnings: Vec<String>,
+}
+
+impl BlockHead {
+    #[allow(clippy::too_many_arguments)]
+    fn new(
+        id: &str,
+        line: usize,
+        data: &str,
+        response: &str,
+        factors: Vec<String>,
+        n: usize,
+        exclusions: &[crate::data::Exclusion],
+        alpha: f64,
+        method: &'static str,
+    ) -> Self {
+        BlockHead {
+            id: id.to_string(),
+            kind: "anova",
+            line,
+            data: data.to_string(),
+            response: response.to_string(),
+            factors,
+            n,
+            n_excluded: exclusions.len(),
+            excluded: exclusions
+                .iter()
+                .map(|e| ExcludedRecord {
+                    line: e.line,
+                    reason: e.reason.clone(),
+                })
+                .collect(),
+            alpha,
+            method,
+        }
+    }
 }
 
 #[derive(Serialize)]
@@ -571,24 +597,17 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
         })
         .collect();
     BlockRecord {
-        id: r.id.clone(),
-        kind: "anova",
-        line: r.line,
-        data: r.data.clone(),
-        response: r.response.clone(),
-        factors: vec![r.factor.clone()],
-        n: r.n,
-        n_excluded: r.exclusions.len(),
-        excluded: r
-            .exclusions
-            .iter()
-            .map(|e| ExcludedRecord {
-                line: e.line,
-                reason: e.reason.clone(),
-            })
-            .collect(),
-        alpha: r.alpha,
-        method: r.method.key(),
+        head: BlockHead::new(
+            &r.id,
+            r.line,
+            &r.data,
+            &r.response,
+            vec![r.factor.clone()],
+            r.n,
+            &r.exclusions,
+            r.alpha,
+            r.method.key(),
+        ),
         welch: r.welch.map(|w| WelchRecord {
             f: finite(w.f),
             df1: w.df1,
