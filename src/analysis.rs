@@ -4,11 +4,12 @@
 
 pub mod factorial;
 
-use crate::data::{
-    DataError, Exclusion, SummaryColumns, SummaryRow, Table, factor_response, prepare, summary_rows,
+use crate::data::scan::{
+    CHUNK_BYTES, ScanSpec, Scanned, ScannedLevel, Source, scan_one_factor, scan_table,
 };
+use crate::data::{DataError, Exclusion, SummaryColumns, SummaryRow, Table, prepare, summary_rows};
 use crate::diag::Diagnostic;
-use crate::doc::block::{AnovaSpec, Omnibus, Order};
+use crate::doc::block::{AnovaSpec, CheckSet, Omnibus, Order};
 use crate::doc::power::{EffectInput, PowerGoal, PowerSpec};
 use crate::doc::{Block, Document};
 use crate::stats::assumptions::{
@@ -235,7 +236,57 @@ pub fn run_power(doc: &Document, block: &Block, spec: &PowerSpec) -> PowerResult
 pub struct Input {
     /// The path as written in the block (relative to the document's folder).
     pub path: String,
-    pub bytes: Vec<u8>,
+    /// SHA-256 of the file, in hex.
+    pub sha256: String,
+    pub size: u64,
+    /// The bytes, unless the file was streamed past (see `data::scan`).
+    pub bytes: Option<Vec<u8>>,
+}
+
+impl Input {
+    pub fn loaded(path: &str, bytes: Vec<u8>) -> Input {
+        Input {
+            path: path.to_string(),
+            sha256: crate::results::sha256_hex(&bytes),
+            size: bytes.len() as u64,
+            bytes: Some(bytes),
+        }
+    }
+}
+
+/// Where a block's data come from.
+pub enum Data<'a> {
+    /// In memory, shared by the blocks that read the file.
+    Loaded(&'a Input),
+    /// A large CSV file, read once in chunks while it is hashed.
+    Stream {
+        path: &'a str,
+        reader: Box<dyn std::io::Read + Send + 'a>,
+    },
+}
+
+/// Whether a block can read its data file as a stream: a one-factor model
+/// on raw observations in a CSV file, in long layout.
+pub fn streams(spec: &AnovaSpec) -> bool {
+    let model = &spec.model.value;
+    model.terms.len() == 1
+        && model.terms[0].factors.len() == 1
+        && spec.summary.is_none()
+        && spec.rows.wide.is_none()
+        && !crate::data::spreadsheet::is_spreadsheet(&spec.data.value)
+}
+
+/// Whether a one-factor block needs every value (checks on residuals,
+/// ranks, figures), or only per-level summaries.
+fn keeps_values(spec: &AnovaSpec) -> bool {
+    spec.checks != CheckSet::Summary
+        || spec.method == Omnibus::Ranks
+        || !spec.plots.kinds.is_empty()
+}
+
+/// Worker threads for reading large files; the results never depend on it.
+fn reader_threads() -> usize {
+    std::thread::available_parallelism().map_or(1, |n| n.get().min(8))
 }
 
 /// Turns a data-file problem into a diagnostic pointing into the data file,
@@ -286,14 +337,15 @@ pub struct RoundingRange {
     pub p_high: f64,
 }
 
-/// Runs a one-factor `anova` block on its data file.
+/// Runs a one-factor `anova` block on its data file. A streamed file comes
+/// back as the `Input` that records it (hash and size, no bytes).
 pub fn run_anova(
     doc: &Document,
     block: &Block,
     spec: &AnovaSpec,
-    input: &Input,
+    data: Data<'_>,
     display_path: &str,
-) -> Result<AnovaResult, Diagnostic> {
+) -> Result<(AnovaResult, Option<Input>), Diagnostic> {
     let formula = &spec.model.value;
     // `compile` sends models with several terms to `factorial::run_factorial`.
     if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
@@ -305,19 +357,73 @@ pub fn run_anova(
     }
     let factor = formula.terms[0].factors[0].clone();
     let response = formula.response.clone();
-    let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
-    let mut sample = match &spec.summary {
-        None => load_raw(
-            doc,
-            block,
-            spec,
-            &table,
-            &factor,
-            &response,
-            input,
-            display_path,
-        )?,
-        Some(columns) => {
+    let fail = |e: DataError| {
+        let model_note = e.message.starts_with("no column named");
+        let d = data_error(doc, block, spec.data.line, display_path, e);
+        if model_note {
+            d.note(format!(
+                "the model is `{}` (line {})",
+                formula_text(&spec.model.value),
+                spec.model.line
+            ))
+        } else {
+            d
+        }
+    };
+    let mut streamed = None;
+    let mut sample = match (&spec.summary, data) {
+        (None, data) => {
+            let scan_spec = ScanSpec {
+                response: &response,
+                factor: &factor,
+                format: &spec.csv,
+                filters: &spec.rows.filters,
+                exclude: &spec.rows.exclude,
+                keep_values: keeps_values(spec),
+            };
+            let (scanned, ruled_out) = match data {
+                Data::Stream { path, reader } => {
+                    let scanned = scan_one_factor(
+                        Source::Stream(reader),
+                        &scan_spec,
+                        CHUNK_BYTES,
+                        reader_threads(),
+                    )
+                    .map_err(fail)?;
+                    streamed = Some(Input {
+                        path: path.to_string(),
+                        sha256: scanned.sha256.clone().unwrap_or_default(),
+                        size: scanned.bytes,
+                        bytes: None,
+                    });
+                    (scanned, Vec::new())
+                }
+                Data::Loaded(input) if streams(spec) => {
+                    let bytes = input.bytes.as_deref().unwrap_or_default();
+                    let scanned = scan_one_factor(
+                        Source::Memory(bytes),
+                        &scan_spec,
+                        CHUNK_BYTES,
+                        reader_threads(),
+                    )
+                    .map_err(fail)?;
+                    (scanned, Vec::new())
+                }
+                Data::Loaded(input) => {
+                    let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
+                    let scanned =
+                        scan_table(&table, &response, &factor, &spec.csv).map_err(fail)?;
+                    (scanned, ruled_out)
+                }
+            };
+            let path = streamed
+                .as_ref()
+                .map_or(spec.data.value.as_str(), |i| i.path.as_str());
+            let mut sample = load_raw(doc, spec, scanned, &factor, path, display_path)?;
+            sample.excluded.extend(ruled_out);
+            sample
+        }
+        (Some(columns), Data::Loaded(input)) => {
             use crate::doc::block::PlotKind;
             if let Some(k) = spec
                 .plots
@@ -336,13 +442,25 @@ pub fn run_anova(
                     )
                     .hint("with `input: summary` only `plot: means` can be drawn"));
             }
-            load_summary(doc, block, spec, columns, &table, &factor, display_path)?
+            let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
+            let mut sample =
+                load_summary(doc, block, spec, columns, &table, &factor, display_path)?;
+            sample.excluded.extend(ruled_out);
+            sample
+        }
+        (Some(_), Data::Stream { .. }) => {
+            return Err(doc.error_at(
+                block.line,
+                None,
+                "internal error: a summary table reached the streaming reader",
+            ));
         }
     };
-    sample.excluded.extend(ruled_out);
     sample.excluded.sort_by_key(|e| e.line);
     apply_labels(&mut sample.names, &spec.labels);
-    analyse(doc, block, spec, sample, factor, response, input)
+    let data_path = spec.data.value.clone();
+    let result = analyse(doc, block, spec, sample, factor, response, &data_path)?;
+    Ok((result, streamed))
 }
 
 /// One plain sentence per kind of exclusion: missing values, `exclude`
@@ -408,7 +526,7 @@ pub(crate) fn read_rows(
     let fail = |e| data_error(doc, block, spec.data.line, display_path, e);
     let table = crate::data::read_table(
         &input.path,
-        &input.bytes,
+        input.bytes.as_deref().unwrap_or_default(),
         &spec.csv,
         spec.sheet.as_deref(),
         spec.range.as_deref(),
@@ -481,58 +599,47 @@ fn too_few_levels(
         .note(format!("data file {display_path}"))
 }
 
-#[allow(clippy::too_many_arguments)]
+/// The levels of a scanned file in design order; levels whose rows all
+/// lacked a response are left out and named.
 fn load_raw(
     doc: &Document,
-    block: &Block,
     spec: &AnovaSpec,
-    table: &Table,
+    scanned: Scanned,
     factor: &str,
-    response: &str,
-    input: &Input,
+    path: &str,
     display_path: &str,
 ) -> Result<Sample, Diagnostic> {
-    let data = factor_response(table, response, factor, &spec.csv).map_err(|e| {
-        data_error(doc, block, spec.data.line, display_path, e).note(format!(
-            "the model is `{}` (line {})",
-            formula_text(&spec.model.value),
-            spec.model.line
-        ))
-    })?;
-    let found: Vec<&str> = data.levels.iter().map(|l| l.name.as_str()).collect();
-    let order = design_order(doc, spec, &found, factor, &input.path)?;
-    let mut warnings = Vec::new();
+    let found: Vec<&str> = scanned.levels.iter().map(|l| l.name.as_str()).collect();
+    let order = design_order(doc, spec, &found, factor, path)?;
+    let mut empty = Vec::new();
     let mut used = Vec::new();
     for &i in &order {
-        let lvl = &data.levels[i];
-        if lvl.offsets.is_empty() {
-            warnings.push(lvl.name.clone());
+        if scanned.levels[i].summary.n == 0 {
+            empty.push(scanned.levels[i].name.clone());
         } else {
             used.push(i);
         }
     }
-    let names: Vec<String> = used.iter().map(|&i| data.levels[i].name.clone()).collect();
+    let names: Vec<String> = used
+        .iter()
+        .map(|&i| scanned.levels[i].name.clone())
+        .collect();
     if used.len() < 2 {
         return Err(too_few_levels(doc, spec, factor, &names, display_path));
     }
+    let keep = keeps_values(spec);
+    let mut levels: Vec<Option<ScannedLevel>> = scanned.levels.into_iter().map(Some).collect();
+    let used: Vec<ScannedLevel> = used.iter().filter_map(|&i| levels[i].take()).collect();
     Ok(Sample {
-        summaries: used
-            .iter()
-            .map(|&i| GroupSummary::from_values(&data.levels[i].offsets))
-            .collect(),
-        raw: Some((
-            used.iter()
-                .map(|&i| data.levels[i].offsets.clone())
-                .collect(),
-            used.iter().map(|&i| data.levels[i].lines.clone()).collect(),
-        )),
+        summaries: used.iter().map(|l| l.summary).collect(),
+        raw: keep.then(|| used.into_iter().map(|l| (l.offsets, l.lines)).unzip()),
         names,
-        origin: data.origin,
-        decimals: data.decimals,
-        excluded: data.excluded,
+        origin: scanned.origin,
+        decimals: scanned.decimals,
+        excluded: scanned.excluded,
         rounding: None,
     }
-    .with_empty_levels(warnings))
+    .with_empty_levels(empty))
 }
 
 impl Sample {
@@ -643,7 +750,7 @@ fn analyse(
     sample: Sample,
     factor: String,
     response: String,
-    input: &Input,
+    data_path: &str,
 ) -> Result<AnovaResult, Diagnostic> {
     let alpha = spec.alpha.unwrap_or(doc.front.alpha);
     let mut warnings = Vec::new();
@@ -683,7 +790,7 @@ fn analyse(
             ));
         }
     }
-    warnings.extend(exclusion_notes(&excluded, &input.path));
+    warnings.extend(exclusion_notes(&excluded, data_path));
     if let Some(r) = rounding {
         warnings.push(format!(
             "These results come from published summaries (n, mean and SD per level). Checks that need the raw observations (Brown-Forsythe, Levene, Shapiro-Wilk, outliers, ranks) could not be done. Rounding the summaries to their printed digits leaves F between {} and {} (p between {} and {}).",
@@ -696,6 +803,10 @@ fn analyse(
 
     let nu = table.df_within as f64;
     let checks = match &raw {
+        _ if spec.checks == CheckSet::Summary => Checks {
+            by_request: true,
+            ..summary_checks(&summaries, true)
+        },
         Some((offsets, lines)) => {
             let offsets: Vec<&[f64]> = offsets.iter().map(Vec::as_slice).collect();
             let lines: Vec<&[usize]> = lines.iter().map(Vec::as_slice).collect();
@@ -706,10 +817,10 @@ fn analyse(
                 origin,
                 &names,
                 &lines,
-                spec.checks,
+                spec.checks.shown(),
             )
         }
-        None => summary_checks(&summaries, spec.checks),
+        None => summary_checks(&summaries, spec.checks.shown()),
     };
     warnings.extend(checks.advice(spec.method, alpha, data_decimals));
 
@@ -853,7 +964,7 @@ fn analyse(
         ci_pooled: pooled,
         id: block.id.clone(),
         line: block.line,
-        data: input.path.clone(),
+        data: data_path.to_string(),
         response,
         factor,
         alpha,
@@ -905,6 +1016,9 @@ pub struct Checks {
     pub outliers: Vec<OutlierRow>,
     /// Only summaries were given, so the raw-data checks could not run.
     pub from_summary: bool,
+    /// The summaries-only set was asked for (`checks: summary`).
+    #[serde(default)]
+    pub by_request: bool,
 }
 
 /// An observation flagged by its studentized residual.
@@ -947,6 +1061,7 @@ fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks {
         balanced: summaries.iter().all(|s| s.n == summaries[0].n),
         outliers: Vec::new(),
         from_summary: true,
+        by_request: false,
     }
 }
 
@@ -988,6 +1103,7 @@ fn assumption_checks(
         balanced: summaries.iter().all(|s| s.n == summaries[0].n),
         outliers: flagged,
         from_summary: false,
+        by_request: false,
     }
 }
 

@@ -2,18 +2,26 @@
 //! Nothing is written here; `output` writes the finished files.
 
 use crate::analysis::factorial::run_factorial;
-use crate::analysis::{BlockResult, Input, run_anova, run_power};
+use crate::analysis::{BlockResult, Data, Input, run_anova, run_power, streams};
 use crate::diag::Diagnostic;
 use crate::doc::{BlockSpec, parse_document};
 use crate::figure::{ImageFormat, draw_all, png};
 use crate::render::{Format, PlacedFigure, render_report};
 use crate::results::{results_json, sha256_hex};
+use std::io::Read;
 use std::path::{Path, PathBuf};
 
 /// Where sheaf reads files from: the disk for the CLI, memory in tests.
 pub trait World {
     /// Reads `path`, which is relative to the document's folder (or absolute).
     fn read(&self, path: &str) -> std::io::Result<Vec<u8>>;
+    /// Opens `path` to be read in chunks, with its size in bytes. Worlds in
+    /// memory hand out their bytes.
+    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
+        let bytes = self.read(path)?;
+        let size = bytes.len() as u64;
+        Ok((Box::new(std::io::Cursor::new(bytes)), size))
+    }
     /// How to show `path` in messages (e.g. joined to the document's folder).
     fn display(&self, path: &str) -> String;
     /// Progress for long work; shown only where someone is watching.
@@ -58,6 +66,16 @@ impl World for DiskWorld {
         std::fs::read(full)
     }
 
+    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
+        let full = self.base.join(path);
+        if full.is_dir() {
+            return Err(std::io::Error::other("it is a folder, not a file"));
+        }
+        let file = std::fs::File::open(full)?;
+        let size = file.metadata()?.len();
+        Ok((Box::new(file), size))
+    }
+
     fn display(&self, path: &str) -> String {
         self.base.join(path).display().to_string()
     }
@@ -98,8 +116,9 @@ fn confinement_error(why: &str) -> std::io::Error {
     )
 }
 
-impl<W: World> World for Confined<W> {
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+impl<W: World> Confined<W> {
+    /// Refuses a path that leaves the document's folder tree.
+    fn check(&self, path: &str) -> std::io::Result<()> {
         let p = Path::new(path);
         if p.is_absolute() || path.starts_with('/') || path.starts_with('\\') || path.contains(':')
         {
@@ -130,7 +149,19 @@ impl<W: World> World for Confined<W> {
                 "a link that points outside the document's folder",
             ));
         }
+        Ok(())
+    }
+}
+
+impl<W: World> World for Confined<W> {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        self.check(path)?;
         self.inner.read(path)
+    }
+
+    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
+        self.check(path)?;
+        self.inner.open(path)
     }
 
     fn display(&self, path: &str) -> String {
@@ -151,7 +182,11 @@ impl<W: World> World for Confined<W> {
 }
 
 /// Inputs above this size (bytes) get progress messages on a terminal.
-const LARGE_INPUT: usize = 20_000_000;
+const LARGE_INPUT: u64 = 20_000_000;
+
+/// One-factor CSV files from this size (bytes) are streamed past rather than
+/// read into memory (see `data::scan`); the numbers are the same either way.
+const STREAM_FROM: u64 = 32 << 20;
 
 /// The block cache's folder inside the output folder.
 pub const CACHE_DIR: &str = ".sheaf-cache";
@@ -166,6 +201,10 @@ pub struct CachedDisk {
 impl World for CachedDisk {
     fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
         self.disk.read(path)
+    }
+
+    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
+        self.disk.open(path)
     }
 
     fn display(&self, path: &str) -> String {
@@ -257,33 +296,75 @@ pub fn compile(
             BlockSpec::Anova(spec) => Some((&spec.data.value, spec.data.line, spec.data.column)),
             BlockSpec::Power(_) => None,
         };
+        let read_error = |e: std::io::Error, path: &str, line: usize, column: usize| {
+            let reason = match e.kind() {
+                std::io::ErrorKind::NotFound => "no such file".to_string(),
+                _ => e.to_string(),
+            };
+            doc.error_at(
+                line,
+                Some(column),
+                format!("cannot read data file `{path}`: {reason}"),
+            )
+            .hint(format!(
+                "paths are relative to the document's folder; looked for {}",
+                world.display(path)
+            ))
+        };
+        // A large one-factor CSV file is read once, in chunks, as it is
+        // hashed. Its block is not cached: the cache key needs the hash,
+        // which costs the same pass.
+        if let BlockSpec::Anova(spec) = &block.spec
+            && streams(spec)
+            && !inputs
+                .iter()
+                .any(|i| i.path == spec.data.value && i.bytes.is_some())
+        {
+            let path = &spec.data.value;
+            let (reader, size) = world
+                .open(path)
+                .map_err(|e| read_error(e, path, spec.data.line, spec.data.column))?;
+            if size >= STREAM_FROM {
+                world.progress(&format!(
+                    "reading {} ({} MB) for block `{}` (line {})",
+                    path,
+                    size / 1_000_000,
+                    block.id,
+                    block.line
+                ));
+                let (result, input) = run_anova(
+                    &doc,
+                    block,
+                    spec,
+                    Data::Stream { path, reader },
+                    &world.display(path),
+                )?;
+                if let Some(input) = input
+                    && !inputs.iter().any(|i| i.path == input.path)
+                {
+                    inputs.push(input);
+                }
+                results.push(BlockResult::Anova(Box::new(result)));
+                recomputed += 1;
+                continue;
+            }
+        }
         let mut input_hash = String::new();
         if let Some((path, line, column)) = path {
-            if !inputs.iter().any(|i| &i.path == path) {
-                let bytes = world.read(path).map_err(|e| {
-                    let reason = match e.kind() {
-                        std::io::ErrorKind::NotFound => "no such file".to_string(),
-                        _ => e.to_string(),
-                    };
-                    doc.error_at(
-                        line,
-                        Some(column),
-                        format!("cannot read data file `{path}`: {reason}"),
-                    )
-                    .hint(format!(
-                        "paths are relative to the document's folder; looked for {}",
-                        world.display(path)
-                    ))
-                })?;
-                inputs.push(Input {
-                    path: path.clone(),
-                    bytes,
-                });
+            if !inputs.iter().any(|i| &i.path == path && i.bytes.is_some()) {
+                let bytes = world
+                    .read(path)
+                    .map_err(|e| read_error(e, path, line, column))?;
+                let input = Input::loaded(path, bytes);
+                match inputs.iter_mut().find(|i| &i.path == path) {
+                    Some(streamed) => *streamed = input,
+                    None => inputs.push(input),
+                }
             }
             input_hash = inputs
                 .iter()
                 .find(|i| &i.path == path)
-                .map_or_else(String::new, |i| sha256_hex(&i.bytes));
+                .map_or_else(String::new, |i| i.sha256.clone());
         }
         // A block's result depends only on its text, its id, its data and the
         // document-wide defaults, so those (and sheaf's version) key the cache.
@@ -308,7 +389,7 @@ pub fn compile(
             results.push(cached);
             continue;
         }
-        if inputs.iter().any(|i| i.bytes.len() > LARGE_INPUT) {
+        if inputs.iter().any(|i| i.size > LARGE_INPUT) {
             world.progress(&format!(
                 "computing block `{}` (line {})",
                 block.id, block.line
@@ -332,13 +413,9 @@ pub fn compile(
                         &world.display(path),
                     )?))
                 } else {
-                    BlockResult::Anova(Box::new(run_anova(
-                        &doc,
-                        block,
-                        spec,
-                        input,
-                        &world.display(path),
-                    )?))
+                    BlockResult::Anova(Box::new(
+                        run_anova(&doc, block, spec, Data::Loaded(input), &world.display(path))?.0,
+                    ))
                 }
             }
         };

@@ -740,8 +740,8 @@ pub fn results_json(
             .iter()
             .map(|i| InputRecord {
                 path: i.path.clone(),
-                sha256: sha256_hex(&i.bytes),
-                bytes: i.bytes.len(),
+                sha256: i.sha256.clone(),
+                bytes: i.size as usize,
             })
             .collect(),
         blocks: blocks

@@ -5,7 +5,7 @@
 use super::{Checks, ComparisonResult, Input, OutlierRow, data_error, summary_checks};
 use crate::data::factorial_response;
 use crate::diag::Diagnostic;
-use crate::doc::block::{AnovaSpec, Omnibus};
+use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
 use crate::doc::{Block, Document};
 use crate::stats::assumptions::{
     Center, OUTLIER_THRESHOLD, bartlett, levene, shapiro_wilk, skewness_kurtosis,
@@ -472,9 +472,12 @@ pub fn run_factorial(
             });
         }
     }
-    let mut checks = summary_checks(&group_summaries, spec.checks);
-    checks.from_summary = false;
-    if replicated {
+    let mut checks = summary_checks(&group_summaries, spec.checks.shown());
+    if spec.checks == CheckSet::Summary {
+        // Only what the cell summaries allow, as asked.
+        checks.by_request = true;
+    } else if replicated {
+        checks.from_summary = false;
         checks.brown_forsythe = levene(&group_refs, Center::Median);
         checks.levene = levene(&group_refs, Center::Mean);
         checks.bartlett = bartlett(&group_summaries);
@@ -495,6 +498,7 @@ pub fn run_factorial(
             .iter()
             .map(|g| GroupSummary::from_values(g))
             .collect();
+        checks.from_summary = false;
         checks.brown_forsythe = levene(&refs, Center::Median);
         checks.levene = levene(&refs, Center::Mean);
         checks.bartlett = bartlett(&sums);
@@ -503,10 +507,12 @@ pub fn run_factorial(
             factor_names[first]
         ));
     }
-    checks.shapiro_wilk = shapiro_wilk(&residuals);
-    checks.skewness = skewness;
-    checks.excess_kurtosis = excess_kurtosis;
-    checks.outliers = outliers;
+    if !checks.by_request {
+        checks.shapiro_wilk = shapiro_wilk(&residuals);
+        checks.skewness = skewness;
+        checks.excess_kurtosis = excess_kurtosis;
+        checks.outliers = outliers;
+    }
     warnings.extend(warnings_note);
     warnings.extend(factorial_advice(&checks, alpha, data.decimals));
 

@@ -1,8 +1,11 @@
 //! An RFC 4180 reader that remembers where every record starts.
 //!
 //! Quoted fields may hold delimiters, doubled quotes and line breaks; a UTF-8
-//! byte-order mark is skipped; CRLF and LF both end records. Each record keeps
-//! the 1-based line on which it starts, so errors can point into the file.
+//! byte-order mark is skipped; CRLF, LF and a lone CR all end records. Each
+//! record keeps the 1-based line on which it starts, so errors can point into
+//! the file. A line ends at LF, CRLF or a lone CR, wherever it stands (even
+//! inside a quoted field), so that a chunked reader can count lines with
+//! [`count_lines`] without parsing.
 
 use std::fmt;
 
@@ -27,122 +30,173 @@ impl fmt::Display for CsvError {
     }
 }
 
+/// Checks that `bytes` are UTF-8; the error names the line of the first bad byte.
+pub fn utf8_text(bytes: &[u8], first_line: usize) -> Result<&str, CsvError> {
+    std::str::from_utf8(bytes).map_err(|e| CsvError {
+        line: first_line + count_lines(&bytes[..e.valid_up_to()]),
+        message: "the file is not valid UTF-8".into(),
+        hint: Some("save the file as UTF-8 (most spreadsheet programs offer 'CSV UTF-8')".into()),
+    })
+}
+
+/// Line ends in `bytes`: each LF, and each CR not followed by LF.
+pub fn count_lines(bytes: &[u8]) -> usize {
+    let lf = bytes.iter().filter(|b| **b == b'\n').count();
+    let lone_cr = memchr::memchr_iter(b'\r', bytes)
+        .filter(|&i| bytes.get(i + 1) != Some(&b'\n'))
+        .count();
+    lf + lone_cr
+}
+
 /// Splits `text` into records. Blank lines between records are skipped.
 pub fn parse_records(bytes: &[u8], delimiter: u8) -> Result<Vec<Record>, CsvError> {
-    let text = match std::str::from_utf8(bytes) {
-        Ok(t) => t,
-        Err(e) => {
-            let line = 1 + bytes[..e.valid_up_to()]
-                .iter()
-                .filter(|b| **b == b'\n')
-                .count();
-            return Err(CsvError {
-                line,
-                message: "the file is not valid UTF-8".into(),
-                hint: Some(
-                    "save the file as UTF-8 (most spreadsheet programs offer 'CSV UTF-8')".into(),
-                ),
-            });
-        }
-    };
+    let text = utf8_text(bytes, 1)?;
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let delimiter = delimiter as char;
-    let mut records = Vec::new();
-    let mut chars = text.chars().peekable();
-    let mut line = 1;
-    let mut fields: Vec<String> = Vec::new();
-    let mut field = String::new();
-    let mut record_line = 1;
-    let mut in_record = false;
-    let mut quoted_field = false;
+    RecordParser::new(text, delimiter, 1).collect()
+}
 
-    while let Some(c) = chars.next() {
-        if !in_record {
-            if c == '\n' || c == '\r' {
-                if c == '\n' {
-                    line += 1;
-                }
-                continue;
-            }
-            in_record = true;
-            record_line = line;
+/// Reads records one at a time from `text`, which starts on `first_line`.
+pub struct RecordParser<'a> {
+    text: &'a str,
+    delimiter: char,
+    pos: usize,
+    line: usize,
+}
+
+impl<'a> RecordParser<'a> {
+    pub fn new(text: &'a str, delimiter: u8, first_line: usize) -> Self {
+        RecordParser {
+            text,
+            delimiter: delimiter as char,
+            pos: 0,
+            line: first_line,
         }
-        match c {
-            '"' if field.is_empty() && !quoted_field => {
-                quoted_field = true;
-                let start_line = line;
-                loop {
-                    match chars.next() {
-                        None => {
-                            return Err(CsvError {
-                                line: start_line,
-                                message: "a quoted field is never closed".into(),
-                                hint: Some("add the closing double quote, or write a literal quote as \"\"".into()),
-                            });
-                        }
-                        Some('"') if chars.peek() == Some(&'"') => {
-                            chars.next();
-                            field.push('"');
-                        }
-                        Some('"') => break,
-                        Some(ch) => {
-                            if ch == '\n' {
-                                line += 1;
+    }
+
+    /// Byte offset of the text not yet read.
+    pub fn offset(&self) -> usize {
+        self.pos
+    }
+
+    /// The line on which the text not yet read starts.
+    pub fn line(&self) -> usize {
+        self.line
+    }
+
+    fn parse_next(&mut self) -> Option<Result<Record, CsvError>> {
+        let rest = &self.text[self.pos..];
+        let mut chars = rest.char_indices().peekable();
+        let mut line = self.line;
+        let mut fields: Vec<String> = Vec::new();
+        let mut field = String::new();
+        let mut record_line = line;
+        let mut in_record = false;
+        let mut quoted_field = false;
+        let delimiter = self.delimiter;
+        let lone_cr = |next: Option<&(usize, char)>| next.map(|n| n.1) != Some('\n');
+
+        while let Some((_, c)) = chars.next() {
+            if !in_record {
+                if c == '\n' || c == '\r' {
+                    if c == '\n' || lone_cr(chars.peek()) {
+                        line += 1;
+                    }
+                    continue;
+                }
+                in_record = true;
+                record_line = line;
+            }
+            match c {
+                '"' if field.is_empty() && !quoted_field => {
+                    quoted_field = true;
+                    let start_line = line;
+                    loop {
+                        match chars.next() {
+                            None => {
+                                return Some(Err(CsvError {
+                                    line: start_line,
+                                    message: "a quoted field is never closed".into(),
+                                    hint: Some("add the closing double quote, or write a literal quote as \"\"".into()),
+                                }));
                             }
-                            field.push(ch);
+                            Some((_, '"')) if chars.peek().map(|n| n.1) == Some('"') => {
+                                chars.next();
+                                field.push('"');
+                            }
+                            Some((_, '"')) => break,
+                            Some((_, ch)) => {
+                                if ch == '\n' || (ch == '\r' && lone_cr(chars.peek())) {
+                                    line += 1;
+                                }
+                                field.push(ch);
+                            }
+                        }
+                    }
+                    // Only a delimiter or a line end may follow the closing quote.
+                    match chars.peek().map(|n| n.1) {
+                        None | Some('\n') | Some('\r') => {}
+                        Some(ch) if ch == delimiter => {}
+                        Some(ch) => {
+                            return Some(Err(CsvError {
+                                line,
+                                message: format!("unexpected `{ch}` after a closing quote"),
+                                hint: Some(
+                                    "quote the whole field, and double any quote inside it".into(),
+                                ),
+                            }));
                         }
                     }
                 }
-                // Only a delimiter or a line end may follow the closing quote.
-                match chars.peek() {
-                    None | Some('\n') | Some('\r') => {}
-                    Some(ch) if *ch == delimiter => {}
-                    Some(ch) => {
-                        return Err(CsvError {
-                            line,
-                            message: format!("unexpected `{ch}` after a closing quote"),
-                            hint: Some(
-                                "quote the whole field, and double any quote inside it".into(),
-                            ),
-                        });
+                c if c == delimiter => {
+                    fields.push(std::mem::take(&mut field));
+                    quoted_field = false;
+                }
+                '\r' | '\n' => {
+                    if c == '\r' && chars.peek().map(|n| n.1) == Some('\n') {
+                        chars.next();
                     }
+                    line += 1;
+                    fields.push(field);
+                    self.pos += chars.peek().map_or(rest.len(), |n| n.0);
+                    self.line = line;
+                    return Some(Ok(Record {
+                        line: record_line,
+                        fields,
+                    }));
                 }
-            }
-            c if c == delimiter => {
-                fields.push(std::mem::take(&mut field));
-                quoted_field = false;
-            }
-            '\r' | '\n' => {
-                if c == '\r' && chars.peek() == Some(&'\n') {
-                    chars.next();
+                '"' => {
+                    return Some(Err(CsvError {
+                        line,
+                        message: "a double quote inside an unquoted field".into(),
+                        hint: Some("quote the whole field and write the quote as \"\"".into()),
+                    }));
                 }
-                line += 1;
-                fields.push(std::mem::take(&mut field));
-                records.push(Record {
-                    line: record_line,
-                    fields: std::mem::take(&mut fields),
-                });
-                in_record = false;
-                quoted_field = false;
+                c => field.push(c),
             }
-            '"' => {
-                return Err(CsvError {
-                    line,
-                    message: "a double quote inside an unquoted field".into(),
-                    hint: Some("quote the whole field and write the quote as \"\"".into()),
-                });
-            }
-            c => field.push(c),
         }
+        self.pos = self.text.len();
+        self.line = line;
+        in_record.then(|| {
+            fields.push(field);
+            Ok(Record {
+                line: record_line,
+                fields,
+            })
+        })
     }
-    if in_record {
-        fields.push(field);
-        records.push(Record {
-            line: record_line,
-            fields,
-        });
+}
+
+impl Iterator for RecordParser<'_> {
+    type Item = Result<Record, CsvError>;
+
+    /// The next record; after an error the parser is exhausted.
+    fn next(&mut self) -> Option<Self::Item> {
+        let next = self.parse_next();
+        if matches!(next, Some(Err(_))) {
+            self.pos = self.text.len();
+        }
+        next
     }
-    Ok(records)
 }
 
 #[cfg(test)]

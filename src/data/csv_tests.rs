@@ -36,3 +36,22 @@ fn unterminated_quote_points_at_its_start() {
 fn empty_trailing_field_is_kept() {
     assert_eq!(fields("a,b\n1,\n"), vec![vec!["a", "b"], vec!["1", ""]]);
 }
+
+#[test]
+fn a_lone_cr_ends_a_line_wherever_it_stands() {
+    // Classic Mac line ends; the count must agree with `count_lines`.
+    let text = b"a,b\r1,2\r\r3,\"x\ry\"\r4,5\r";
+    let recs = parse_records(text, b',').expect("parses");
+    let lines: Vec<usize> = recs.iter().map(|r| r.line).collect();
+    assert_eq!(lines, vec![1, 2, 4, 6]);
+    assert_eq!(count_lines(text), 6);
+}
+
+#[test]
+fn the_parser_reports_where_it_stopped() {
+    let text = "h1,h2\n\n1,2\n";
+    let mut parser = RecordParser::new(text, b',', 1);
+    let head = parser.next().expect("record").expect("parses");
+    assert_eq!(head.fields, vec!["h1", "h2"]);
+    assert_eq!((parser.offset(), parser.line()), (6, 2));
+}

@@ -4,9 +4,10 @@
 
 pub mod csv;
 pub mod decimal;
+pub mod scan;
 pub mod spreadsheet;
 
-use decimal::{Number, parse_number, shift_column};
+use decimal::{parse_number, shift_column};
 
 /// How a CSV file is written.
 #[derive(Debug, Clone, PartialEq)]
@@ -80,6 +81,103 @@ pub struct Table {
     pub rows: Vec<csv::Record>,
 }
 
+/// The header row: column names and the line it is on.
+#[derive(Debug, Clone)]
+pub(crate) struct Header {
+    pub names: Vec<String>,
+    pub line: usize,
+}
+
+impl Header {
+    /// Checks a header record: every column named, no name twice, and a
+    /// hint when a single column suggests the wrong delimiter.
+    pub(crate) fn from_record(head: csv::Record, format: &CsvFormat) -> Result<Header, DataError> {
+        let names: Vec<String> = head.fields.iter().map(|h| h.trim().to_string()).collect();
+        for (i, name) in names.iter().enumerate() {
+            if name.is_empty() {
+                return Err(DataError {
+                    column: Some(i + 1),
+                    ..DataError::at(
+                        head.line,
+                        format!("column {} has no name in the header row", i + 1),
+                    )
+                });
+            }
+            if names[..i].contains(name) {
+                return Err(DataError::at(
+                    head.line,
+                    format!("the header names column `{name}` twice"),
+                ));
+            }
+        }
+        if names.len() == 1
+            && format.delimiter == b','
+            && (names[0].contains(';') || names[0].contains('\t'))
+        {
+            return Err(DataError::at(head.line, "the header has a single column".to_string())
+                .hint("the file looks semicolon- or tab-separated: add `delimiter: semicolon` or `delimiter: tab` to the block"));
+        }
+        Ok(Header {
+            names,
+            line: head.line,
+        })
+    }
+
+    /// Index of a named column, or an error that suggests the nearest name.
+    pub(crate) fn column(&self, name: &str) -> Result<usize, DataError> {
+        if let Some(i) = self.names.iter().position(|h| h == name) {
+            return Ok(i);
+        }
+        let listed = self
+            .names
+            .iter()
+            .map(|h| format!("`{h}`"))
+            .collect::<Vec<_>>()
+            .join(", ");
+        let hint = if let Some(h) = self.names.iter().find(|h| h.eq_ignore_ascii_case(name)) {
+            format!("column names are case-sensitive: did you mean `{h}`?")
+        } else if let Some(near) = crate::diag::nearest(name, self.names.iter().map(String::as_str))
+        {
+            format!("did you mean `{near}`? The columns are {listed}")
+        } else {
+            format!("the columns are {listed}")
+        };
+        Err(DataError::at(self.line, format!("no column named `{name}`")).hint(hint))
+    }
+}
+
+pub(crate) fn empty_file() -> DataError {
+    DataError {
+        line: None,
+        column: None,
+        message: "the file is empty".into(),
+        hint: None,
+    }
+    .hint("a data file needs a header row naming its columns, then one row per observation")
+}
+
+pub(crate) fn width_error(
+    line: usize,
+    found: usize,
+    width: usize,
+    format: &CsvFormat,
+) -> DataError {
+    DataError::at(
+        line,
+        format!("found {found} fields where the header has {width}"),
+    )
+    .hint(if format.delimiter == b',' && !format.decimal_comma {
+        "check for an unquoted comma inside a value (quote the field), or a decimal comma (add `decimal: comma` and `delimiter: semicolon`)"
+    } else {
+        "every row needs one value per header column"
+    })
+}
+
+pub(crate) fn exclude_error(line: usize, header_line: usize, last_line: usize) -> DataError {
+    DataError::at(line, format!("`exclude` names line {line}, which holds no data row"))
+        .hint(format!("data rows are on lines {} to {last_line}; give the line numbers as they appear in the file", header_line + 1))
+}
+
 impl Table {
     /// Parses CSV bytes, checking that every record has the header's width.
     pub fn parse(bytes: &[u8], format: &CsvFormat) -> Result<Table, DataError> {
@@ -90,57 +188,21 @@ impl Table {
             hint: e.hint,
         })?;
         if records.is_empty() {
-            return Err(DataError {
-                line: None,
-                column: None,
-                message: "the file is empty".into(),
-                hint: None,
-            }
-            .hint(
-                "a data file needs a header row naming its columns, then one row per observation",
-            ));
+            return Err(empty_file());
         }
-        let head = records.remove(0);
-        let header: Vec<String> = head.fields.iter().map(|h| h.trim().to_string()).collect();
-        for (i, name) in header.iter().enumerate() {
-            if name.is_empty() {
-                return Err(DataError {
-                    column: Some(i + 1),
-                    ..DataError::at(
-                        head.line,
-                        format!("column {} has no name in the header row", i + 1),
-                    )
-                });
-            }
-            if header[..i].contains(name) {
-                return Err(DataError::at(
-                    head.line,
-                    format!("the header names column `{name}` twice"),
+        let head = Header::from_record(records.remove(0), format)?;
+        for r in &records {
+            if r.fields.len() != head.names.len() {
+                return Err(width_error(
+                    r.line,
+                    r.fields.len(),
+                    head.names.len(),
+                    format,
                 ));
             }
         }
-        if header.len() == 1
-            && format.delimiter == b','
-            && (header[0].contains(';') || header[0].contains('\t'))
-        {
-            return Err(DataError::at(head.line, "the header has a single column".to_string())
-                .hint("the file looks semicolon- or tab-separated: add `delimiter: semicolon` or `delimiter: tab` to the block"));
-        }
-        for r in &records {
-            if r.fields.len() != header.len() {
-                return Err(DataError::at(
-                    r.line,
-                    format!("found {} fields where the header has {}", r.fields.len(), header.len()),
-                )
-                .hint(if format.delimiter == b',' && !format.decimal_comma {
-                    "check for an unquoted comma inside a value (quote the field), or a decimal comma (add `decimal: comma` and `delimiter: semicolon`)"
-                } else {
-                    "every row needs one value per header column"
-                }));
-            }
-        }
         Ok(Table {
-            header,
+            header: head.names,
             header_line: head.line,
             rows: records,
         })
@@ -148,25 +210,11 @@ impl Table {
 
     /// Index of a named column, or an error that suggests the nearest name.
     pub fn column(&self, name: &str) -> Result<usize, DataError> {
-        if let Some(i) = self.header.iter().position(|h| h == name) {
-            return Ok(i);
+        Header {
+            names: self.header.clone(),
+            line: self.header_line,
         }
-        let listed = self
-            .header
-            .iter()
-            .map(|h| format!("`{h}`"))
-            .collect::<Vec<_>>()
-            .join(", ");
-        let hint = if let Some(h) = self.header.iter().find(|h| h.eq_ignore_ascii_case(name)) {
-            format!("column names are case-sensitive: did you mean `{h}`?")
-        } else if let Some(near) =
-            crate::diag::nearest(name, self.header.iter().map(String::as_str))
-        {
-            format!("did you mean `{near}`? The columns are {listed}")
-        } else {
-            format!("the columns are {listed}")
-        };
-        Err(DataError::at(self.header_line, format!("no column named `{name}`")).hint(hint))
+        .column(name)
     }
 }
 
@@ -198,97 +246,28 @@ pub struct FactorResponse {
     pub excluded: Vec<Exclusion>,
 }
 
-/// Extracts `response` split by `factor` from a table.
+/// Extracts `response` split by `factor` from a table, with the same
+/// per-row rules as the streaming reader (`scan`).
 pub fn factor_response(
     table: &Table,
     response: &str,
     factor: &str,
     format: &CsvFormat,
 ) -> Result<FactorResponse, DataError> {
-    let yi = table.column(response)?;
-    let fi = table.column(factor)?;
-    let is_missing = |cell: &str| {
-        let t = cell.trim();
-        format.missing.iter().any(|m| m.eq_ignore_ascii_case(t))
-    };
-    let mut numbers: Vec<Number> = Vec::with_capacity(table.rows.len());
-    let mut keys: Vec<(usize, usize)> = Vec::with_capacity(table.rows.len());
-    let mut names: Vec<String> = Vec::new();
-    let mut excluded = Vec::new();
-    for row in &table.rows {
-        let (y, g) = (&row.fields[yi], row.fields[fi].trim());
-        if is_missing(g) {
-            excluded.push(Exclusion {
-                line: row.line,
-                reason: format!("`{factor}` is missing"),
-            });
-            continue;
-        }
-        // A level is registered even when its response is missing, so that a
-        // level with no usable rows is reported rather than silently lost.
-        let level = match names.iter().position(|n| n == g) {
-            Some(i) => i,
-            None => {
-                names.push(g.to_string());
-                names.len() - 1
-            }
-        };
-        if is_missing(y) {
-            excluded.push(Exclusion {
-                line: row.line,
-                reason: format!("`{response}` is missing"),
-            });
-            continue;
-        }
-        let text = if format.decimal_comma {
-            y.trim().replace(',', ".")
-        } else {
-            y.trim().to_string()
-        };
-        let Some(number) = parse_number(&text) else {
-            let lowered = text.to_ascii_lowercase();
-            let non_finite =
-                ["inf", "+inf", "-inf", "infinity", "-infinity"].contains(&lowered.as_str());
-            let hint = if non_finite {
-                "infinite values cannot enter an analysis of variance; correct or remove the row"
-                    .to_string()
-            } else if !format.decimal_comma && y.contains(',') {
-                "for a decimal comma add `decimal: comma` to the block".to_string()
-            } else {
-                format!(
-                    "write a number, or one of the missing-value markers {}",
-                    quote_list(&format.missing)
-                )
-            };
-            return Err(DataError {
-                line: Some(row.line),
-                column: Some(yi + 1),
-                message: format!("`{response}` must be a number, found `{}`", y.trim()),
-                hint: Some(hint),
-            });
-        };
-        numbers.push(number);
-        keys.push((level, row.line));
-    }
-    let decimals = numbers.iter().map(|n| n.decimals()).max().unwrap_or(0);
-    let (origin, offsets) = shift_column(&numbers);
-    let mut levels: Vec<LevelData> = names
-        .into_iter()
-        .map(|name| LevelData {
-            name,
-            offsets: Vec::new(),
-            lines: Vec::new(),
-        })
-        .collect();
-    for ((level, line), offset) in keys.into_iter().zip(offsets) {
-        levels[level].offsets.push(offset);
-        levels[level].lines.push(line);
-    }
+    let scanned = scan::scan_table(table, response, factor, format)?;
     Ok(FactorResponse {
-        levels,
-        origin,
-        decimals,
-        excluded,
+        levels: scanned
+            .levels
+            .into_iter()
+            .map(|l| LevelData {
+                name: l.name,
+                offsets: l.offsets,
+                lines: l.lines,
+            })
+            .collect(),
+        origin: scanned.origin,
+        decimals: scanned.decimals,
+        excluded: scanned.excluded,
     })
 }
 
@@ -519,7 +498,7 @@ pub struct RowRules {
 }
 
 impl Filter {
-    fn keeps(&self, cell: &str) -> bool {
+    pub(crate) fn keeps(&self, cell: &str) -> bool {
         let cell = cell.trim();
         let numbers = (
             parse_number(cell).map(|n| n.to_f64()),
@@ -538,7 +517,7 @@ impl Filter {
         }
     }
 
-    fn text(&self) -> String {
+    pub(crate) fn text(&self) -> String {
         format!("{} {} {}", self.column, self.op, self.value)
     }
 }
@@ -571,8 +550,7 @@ pub fn prepare(table: Table, rules: &RowRules) -> Result<(Table, Vec<Exclusion>)
     let last_line = table.rows.last().map_or(0, |r| r.line);
     for (line, _) in &rules.exclude {
         if !table.rows.iter().any(|r| r.line == *line) {
-            return Err(DataError::at(*line, format!("`exclude` names line {line}, which holds no data row"))
-                .hint(format!("data rows are on lines {} to {last_line}; give the line numbers as they appear in the file", table.header_line + 1)));
+            return Err(exclude_error(*line, table.header_line, last_line));
         }
     }
     let mut excluded = Vec::new();
@@ -606,7 +584,7 @@ pub fn prepare(table: Table, rules: &RowRules) -> Result<(Table, Vec<Exclusion>)
     Ok((table, excluded))
 }
 
-fn quote_list(items: &[String]) -> String {
+pub(crate) fn quote_list(items: &[String]) -> String {
     items
         .iter()
         .map(|m| format!("`{m}`"))

@@ -142,6 +142,26 @@ pub struct Show {
     pub pairs: bool,
 }
 
+/// `checks`: which assumption checks a block computes, and whether the
+/// table is shown.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CheckSet {
+    /// Every check, shown (the default).
+    All,
+    /// Every check, in the results file only.
+    Hidden,
+    /// Only what per-level summaries allow (Bartlett, the SD ratio): no raw
+    /// value is kept, so a large file is read in memory proportional to its
+    /// number of levels.
+    Summary,
+}
+
+impl CheckSet {
+    pub fn shown(self) -> bool {
+        self != CheckSet::Hidden
+    }
+}
+
 /// A checked `anova` block.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AnovaSpec {
@@ -160,8 +180,8 @@ pub struct AnovaSpec {
     pub order: Order,
     pub show: Show,
     pub method: Omnibus,
-    /// Show the assumption-check table (they are computed either way).
-    pub checks: bool,
+    /// Which assumption checks are computed and whether they are shown.
+    pub checks: CheckSet,
     /// The control level for Dunnett's comparisons.
     pub control: Option<Located<String>>,
     pub sides: Sides,
@@ -595,15 +615,16 @@ pub fn anova_spec(
         }
     };
     let checks = match get("checks") {
-        None => true,
+        None => CheckSet::All,
         Some(e) => match e.value.to_ascii_lowercase().as_str() {
-            "all" | "yes" | "show" => true,
-            "none" | "no" | "hide" => false,
+            "all" | "yes" | "show" => CheckSet::All,
+            "none" | "no" | "hide" => CheckSet::Hidden,
+            "summary" => CheckSet::Summary,
             _ => {
                 return Err(bad(
                     e,
                     format!("unknown `checks` value `{}`", e.value),
-                    "write `all` (the default) or `none` to hide the table; the checks stay in the results file",
+                    "write `all` (the default), `none` to hide the table (the checks stay in the results file), or `summary` for only the checks per-level summaries allow",
                 ));
             }
         },

@@ -315,7 +315,7 @@ pub fn render_report(
         css => Value::from_safe_string(template_source("report.css").to_string()),
         cautions => CAUTIONS.to_vec(),
         document => to_value(DocumentView { name: document_name.to_string(), sha256: sha256_hex(document_bytes) }),
-        inputs => to_value(inputs.iter().map(|i| InputView { path: i.path.clone(), bytes: i.bytes.len(), sha256: sha256_hex(&i.bytes) }).collect::<Vec<_>>()),
+        inputs => to_value(inputs.iter().map(|i| InputView { path: i.path.clone(), bytes: i.size as usize, sha256: i.sha256.clone() }).collect::<Vec<_>>()),
         choices => results.iter().map(choices_of).collect::<Vec<_>>(),
         results_name => results_name,
     };

@@ -439,7 +439,13 @@ fn checks_table_of(
             text("–"),
             text(""),
             text("–"),
-            text("not defined for these data"),
+            text(if c.by_request {
+                "not computed (`checks: summary`)"
+            } else if c.from_summary {
+                "needs the raw observations"
+            } else {
+                "not defined for these data"
+            }),
         ]),
     };
     ftest(
@@ -492,12 +498,15 @@ fn checks_table_of(
                 ShapiroWilkSkip::TooFew => "not computed: fewer than 3 residuals",
                 ShapiroWilkSkip::TooMany => "not computed: more than 5,000 residuals",
                 ShapiroWilkSkip::NoSpread => "not computed: the residuals have no spread",
+                ShapiroWilkSkip::Summary if c.by_request => "not computed (`checks: summary`)",
                 ShapiroWilkSkip::Summary => "not possible from summary statistics",
             }),
         ]),
     }
     let moment_note = |normal: &str| {
-        if c.from_summary {
+        if c.by_request {
+            "not computed (`checks: summary`)".to_string()
+        } else if c.from_summary {
             "needs the raw observations".to_string()
         } else {
             normal.to_string()
@@ -520,7 +529,9 @@ fn checks_table_of(
         text(""),
         text(moment_note("0 for a normal distribution")),
     ]);
-    let outliers = if c.from_summary {
+    let outliers = if c.by_request {
+        "Outlying observations were not looked for (`checks: summary`).".to_string()
+    } else if c.from_summary {
         "Outlying observations cannot be looked for in summary statistics.".to_string()
     } else if c.outliers.is_empty() {
         format!(

@@ -1,0 +1,892 @@
+//! One pass over a CSV file for a one-factor analysis, in chunks, on every
+//! core, in memory proportional to the number of levels.
+//!
+//! The bytes are cut into chunks of about [`CHUNK_BYTES`] at record ends
+//! (never inside a quoted field). A producer reads (and, for a stream,
+//! hashes) the chunks; workers turn each chunk into per-level summaries,
+//! and optionally the values themselves; the caller's thread merges the
+//! chunk results strictly in file order. Chunk boundaries depend only on the
+//! bytes and the chunk size, and the merge order is fixed, so every number is
+//! the same whatever the number of threads.
+//!
+//! The per-row rules (`exclude`, `where`, missing values, the level, the
+//! response) live in [`RowAccumulator`], which the in-memory table path
+//! shares, so both paths read a row the same way.
+
+use super::csv::{CsvError, RecordParser, count_lines, utf8_text};
+use super::decimal::{Number, parse_number, parse_plain};
+use super::{CsvFormat, DataError, Exclusion, Filter, Header, quote_list};
+use crate::stats::oneway::GroupSummary;
+use sha2::{Digest, Sha256};
+use std::collections::{BTreeMap, HashMap};
+use std::hash::{BuildHasherDefault, Hasher};
+use std::io::Read;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{Mutex, mpsc};
+
+/// Target chunk size. Small enough that two workers and a short queue stay
+/// well under 100 MiB, large enough that per-chunk overhead is negligible.
+pub const CHUNK_BYTES: usize = 4 << 20;
+
+/// What a one-factor scan reads, and what it keeps.
+#[derive(Debug, Clone)]
+pub struct ScanSpec<'a> {
+    pub response: &'a str,
+    pub factor: &'a str,
+    pub format: &'a CsvFormat,
+    pub filters: &'a [Filter],
+    /// Data lines to leave out, each with its reason.
+    pub exclude: &'a [(usize, String)],
+    /// Keep every value and its line (checks, ranks, plots need them);
+    /// otherwise only per-level summaries are kept.
+    pub keep_values: bool,
+}
+
+/// Where the bytes come from.
+pub enum Source<'a> {
+    Memory(&'a [u8]),
+    /// Read in chunks and hashed on the way (SHA-256).
+    Stream(Box<dyn Read + Send + 'a>),
+}
+
+/// One level as scanned.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScannedLevel {
+    pub name: String,
+    /// n, mean and sum of squares, with the mean as an offset from `origin`.
+    pub summary: GroupSummary,
+    /// Offsets from `origin`, in file order (empty unless values are kept).
+    pub offsets: Vec<f64>,
+    /// The data line of each kept value.
+    pub lines: Vec<usize>,
+}
+
+/// A response column split by one factor, as one pass over the file found it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Scanned {
+    /// Levels in order of first appearance in the file.
+    pub levels: Vec<ScannedLevel>,
+    /// Every offset and mean is relative to this value (see `decimal`).
+    pub origin: f64,
+    /// Most digits after the decimal point among the response values.
+    pub decimals: u32,
+    /// Rows left out, in line order.
+    pub excluded: Vec<Exclusion>,
+    /// SHA-256 of the bytes, in hex, when they were read from a stream.
+    pub sha256: Option<String>,
+    /// Bytes read.
+    pub bytes: u64,
+}
+
+/// Reads a one-factor response from CSV bytes. `threads` workers parse
+/// chunks of `chunk_bytes`; neither changes any number in the result.
+pub fn scan_one_factor(
+    source: Source<'_>,
+    spec: &ScanSpec<'_>,
+    chunk_bytes: usize,
+    threads: usize,
+) -> Result<Scanned, DataError> {
+    let mut chunks = Chunker::new(source, chunk_bytes.max(1));
+    let first = chunks.next_chunk().map_err(io_error)?;
+    let Some(first) = first else {
+        return Err(super::empty_file());
+    };
+    let (plan, start, line) = {
+        let bytes = first.bytes();
+        let bom = if bytes.starts_with(b"\xef\xbb\xbf") {
+            3
+        } else {
+            0
+        };
+        let text = utf8_text(&bytes[bom..], 1).map_err(csv_error)?;
+        let mut parser = RecordParser::new(text, spec.format.delimiter, 1);
+        let head = match parser.next() {
+            None => return Err(super::empty_file()),
+            Some(r) => r.map_err(csv_error)?,
+        };
+        let header = Header::from_record(head, spec.format)?;
+        (
+            RowPlan::new(&header, spec)?,
+            bom + parser.offset(),
+            parser.line(),
+        )
+    };
+    let mut merged = Merged::new(spec.keep_values);
+    let mut plan = plan;
+    // The first chunk alone: its first value becomes the origin of every
+    // later chunk, so all offsets are exact differences from one value.
+    let first = parse_chunk(
+        &Job {
+            start,
+            line,
+            chunk: first,
+        },
+        &plan,
+    )?;
+    plan.origin = first.origin.map(|o| (o, o.to_f64()));
+    merged.add(first)?;
+    let threads = if chunks.at_end() { 1 } else { threads };
+    let mut rest = std::iter::from_fn(|| {
+        let chunk = chunks.next_chunk().transpose()?;
+        let line = chunks.line_of(chunks.lines.len() - 2);
+        Some(chunk.map(|chunk| Job {
+            start: 0,
+            line,
+            chunk,
+        }))
+    });
+    if threads <= 1 {
+        for job in rest.by_ref() {
+            merged.add(parse_chunk(&job.map_err(io_error)?, &plan)?)?;
+        }
+    } else {
+        parallel(rest, &plan, threads, &mut merged)?;
+    }
+    let sha256 = chunks.digest();
+    merged.finish(&plan, spec, sha256, chunks.bytes_read)
+}
+
+/// A run of whole records: borrowed from memory, or read from a stream.
+enum Chunk<'a> {
+    Borrowed(&'a [u8]),
+    Owned(Vec<u8>),
+}
+
+impl Chunk<'_> {
+    fn bytes(&self) -> &[u8] {
+        match self {
+            Chunk::Borrowed(b) => b,
+            Chunk::Owned(v) => v,
+        }
+    }
+}
+
+/// A chunk and where it sits in the file.
+struct Job<'a> {
+    /// Bytes of the chunk already read (the header, in the first chunk).
+    start: usize,
+    /// The line on which `chunk[start..]` begins.
+    line: usize,
+    chunk: Chunk<'a>,
+}
+
+/// Cuts a source into chunks of whole records. A chunk is the first
+/// `chunk_bytes` of what is left, cut back to the last record end; a record
+/// longer than that doubles the window until it fits. The same bytes give
+/// the same chunks whether they are in memory or streamed.
+struct Chunker<'a> {
+    source: Source<'a>,
+    chunk_bytes: usize,
+    /// Memory: the offset of the next chunk.
+    offset: usize,
+    /// Stream: bytes read past the last chunk.
+    carry: Vec<u8>,
+    eof: bool,
+    hasher: Option<Sha256>,
+    bytes_read: u64,
+    /// The first line of each chunk handed out, and of the next one.
+    lines: Vec<usize>,
+}
+
+impl<'a> Chunker<'a> {
+    fn new(source: Source<'a>, chunk_bytes: usize) -> Self {
+        let hasher = matches!(source, Source::Stream(_)).then(Sha256::new);
+        Chunker {
+            source,
+            chunk_bytes,
+            offset: 0,
+            carry: Vec::new(),
+            eof: false,
+            hasher,
+            bytes_read: 0,
+            lines: vec![1],
+        }
+    }
+
+    fn line_of(&self, index: usize) -> usize {
+        self.lines[index]
+    }
+
+    fn at_end(&self) -> bool {
+        match &self.source {
+            Source::Memory(b) => self.offset >= b.len(),
+            Source::Stream(_) => self.eof && self.carry.is_empty(),
+        }
+    }
+
+    fn digest(&mut self) -> Option<String> {
+        self.hasher.take().map(|h| {
+            h.finalize()
+                .iter()
+                .map(|b| format!("{b:02x}"))
+                .collect::<String>()
+        })
+    }
+
+    fn next_chunk(&mut self) -> std::io::Result<Option<Chunk<'a>>> {
+        let chunk = match &mut self.source {
+            Source::Memory(bytes) => {
+                let bytes: &'a [u8] = bytes;
+                let rest = &bytes[self.offset..];
+                if rest.is_empty() {
+                    return Ok(None);
+                }
+                let mut window = self.chunk_bytes;
+                let end = loop {
+                    if window >= rest.len() {
+                        break rest.len();
+                    }
+                    if let Some(end) = record_end(&rest[..window]) {
+                        break end;
+                    }
+                    window *= 2;
+                };
+                self.offset += end;
+                self.bytes_read += end as u64;
+                Chunk::Borrowed(&rest[..end])
+            }
+            Source::Stream(reader) => {
+                let mut buf = std::mem::take(&mut self.carry);
+                let mut window = self.chunk_bytes;
+                let end = loop {
+                    while buf.len() < window && !self.eof {
+                        let have = buf.len();
+                        buf.resize(window, 0);
+                        match reader.read(&mut buf[have..]) {
+                            Ok(0) => {
+                                buf.truncate(have);
+                                self.eof = true;
+                            }
+                            Ok(n) => {
+                                buf.truncate(have + n);
+                                if let Some(h) = &mut self.hasher {
+                                    h.update(&buf[have..have + n]);
+                                }
+                                self.bytes_read += n as u64;
+                            }
+                            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {
+                                buf.truncate(have);
+                            }
+                            Err(e) => return Err(e),
+                        }
+                    }
+                    if buf.is_empty() {
+                        return Ok(None);
+                    }
+                    if buf.len() < window {
+                        // The end of the file closes the last record.
+                        break buf.len();
+                    }
+                    if let Some(end) = record_end(&buf[..window]) {
+                        break end;
+                    }
+                    window *= 2;
+                };
+                let mut rest = Vec::with_capacity(self.chunk_bytes);
+                rest.extend_from_slice(&buf[end..]);
+                buf.truncate(end);
+                self.carry = rest;
+                Chunk::Owned(buf)
+            }
+        };
+        let first = *self.lines.last().unwrap_or(&1);
+        self.lines.push(first + count_lines(chunk.bytes()));
+        Ok(Some(chunk))
+    }
+}
+
+/// Just past the last line feed in `bytes` that is outside quotes (`bytes`
+/// starts outside quotes, at a record's start); `None` if there is none.
+fn record_end(bytes: &[u8]) -> Option<usize> {
+    if memchr::memchr(b'"', bytes).is_none() {
+        return memchr::memrchr(b'\n', bytes).map(|i| i + 1);
+    }
+    // A doubled quote toggles twice, so parity says whether we are inside.
+    let mut inside = false;
+    let mut end = None;
+    for i in memchr::memchr2_iter(b'"', b'\n', bytes) {
+        if bytes[i] == b'"' {
+            inside = !inside;
+        } else if !inside {
+            end = Some(i + 1);
+        }
+    }
+    end
+}
+
+/// A producer thread feeds `threads` workers; this thread merges in order.
+fn parallel<'a>(
+    jobs: impl Iterator<Item = std::io::Result<Job<'a>>> + Send,
+    plan: &RowPlan,
+    threads: usize,
+    merged: &mut Merged,
+) -> Result<(), DataError> {
+    type Outcome = Result<ChunkResult, DataError>;
+    let stop = AtomicBool::new(false);
+    // A short queue bounds the bytes in flight: queued + one per worker.
+    let (job_tx, job_rx) = mpsc::sync_channel::<(usize, std::io::Result<Job<'a>>)>(2);
+    let (out_tx, out_rx) = mpsc::channel::<(usize, Outcome)>();
+    let job_rx = Mutex::new(job_rx);
+    std::thread::scope(|scope| {
+        let stop = &stop;
+        scope.spawn(move || {
+            for (i, job) in jobs.enumerate() {
+                if stop.load(Ordering::Relaxed) || job_tx.send((i, job)).is_err() {
+                    break;
+                }
+            }
+        });
+        for _ in 0..threads {
+            let out_tx = out_tx.clone();
+            let job_rx = &job_rx;
+            scope.spawn(move || {
+                loop {
+                    let next = match job_rx.lock() {
+                        Ok(rx) => rx.recv(),
+                        Err(_) => break,
+                    };
+                    let Ok((i, job)) = next else { break };
+                    if stop.load(Ordering::Relaxed) {
+                        break;
+                    }
+                    let outcome = job
+                        .map_err(io_error)
+                        .and_then(|job| parse_chunk(&job, plan));
+                    if out_tx.send((i, outcome)).is_err() {
+                        break;
+                    }
+                }
+            });
+        }
+        drop(out_tx);
+        let mut waiting: BTreeMap<usize, Outcome> = BTreeMap::new();
+        let mut next = 0;
+        let result = (|| {
+            for (i, outcome) in out_rx.iter() {
+                waiting.insert(i, outcome);
+                while let Some(outcome) = waiting.remove(&next) {
+                    merged.add(outcome?)?;
+                    next += 1;
+                }
+            }
+            Ok(())
+        })();
+        if result.is_err() {
+            // Nothing more is needed: stop the workers, and take queued jobs
+            // until the producer sees the flag and hangs up.
+            stop.store(true, Ordering::Relaxed);
+            drop(out_rx);
+            if let Ok(rx) = job_rx.lock() {
+                while rx.recv().is_ok() {}
+            }
+        }
+        result
+    })
+}
+
+/// Columns and rules resolved against the header.
+struct RowPlan {
+    width: usize,
+    header_line: usize,
+    response: (usize, String),
+    factor: (usize, String),
+    filters: Vec<(usize, Filter)>,
+    exclude: HashMap<usize, String>,
+    format: CsvFormat,
+    keep_values: bool,
+    delimiter: u8,
+    /// The file's origin once known (the first chunk's first value).
+    origin: Option<(Number, f64)>,
+}
+
+impl RowPlan {
+    fn new(header: &Header, spec: &ScanSpec<'_>) -> Result<RowPlan, DataError> {
+        Ok(RowPlan {
+            width: header.names.len(),
+            header_line: header.line,
+            response: (header.column(spec.response)?, spec.response.to_string()),
+            factor: (header.column(spec.factor)?, spec.factor.to_string()),
+            filters: spec
+                .filters
+                .iter()
+                .map(|f| Ok((header.column(&f.column)?, f.clone())))
+                .collect::<Result<_, DataError>>()?,
+            exclude: spec.exclude.iter().cloned().collect(),
+            format: spec.format.clone(),
+            keep_values: spec.keep_values,
+            delimiter: spec.format.delimiter,
+            origin: None,
+        })
+    }
+
+    /// For rows already split into fields (the table path).
+    fn for_table(
+        width: usize,
+        header_line: usize,
+        response: (usize, &str),
+        factor: (usize, &str),
+        format: &CsvFormat,
+    ) -> RowPlan {
+        RowPlan {
+            width,
+            header_line,
+            response: (response.0, response.1.to_string()),
+            factor: (factor.0, factor.1.to_string()),
+            filters: Vec::new(),
+            exclude: HashMap::new(),
+            format: format.clone(),
+            keep_values: true,
+            delimiter: format.delimiter,
+            origin: None,
+        }
+    }
+
+    fn is_missing(&self, cell: &str) -> bool {
+        self.format
+            .missing
+            .iter()
+            .any(|m| m.len() == cell.len() && m.eq_ignore_ascii_case(cell))
+    }
+}
+
+/// A short multiplicative hash for level names (the standard SipHash is
+/// several times slower on 3-byte keys). Only lookups use it; nothing is
+/// ever listed in hash order.
+#[derive(Default)]
+struct ShortHasher(u64);
+
+impl Hasher for ShortHasher {
+    fn write(&mut self, bytes: &[u8]) {
+        for chunk in bytes.chunks(8) {
+            let mut word = [0u8; 8];
+            word[..chunk.len()].copy_from_slice(chunk);
+            self.0 = (self.0.rotate_left(5) ^ u64::from_le_bytes(word))
+                .wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+        }
+    }
+
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type LevelMap = HashMap<Box<str>, usize, BuildHasherDefault<ShortHasher>>;
+
+/// What one chunk held, with lines already absolute.
+struct ChunkResult {
+    names: Vec<String>,
+    summaries: Vec<GroupSummary>,
+    offsets: Vec<Vec<f64>>,
+    lines: Vec<Vec<usize>>,
+    origin: Option<Number>,
+    decimals: u32,
+    excluded: Vec<Exclusion>,
+    exclude_hits: Vec<usize>,
+    last_line: usize,
+}
+
+/// Reads rows of one chunk (or one table): the per-row rules in one place.
+struct RowAccumulator<'p> {
+    plan: &'p RowPlan,
+    index: LevelMap,
+    last: Option<usize>,
+    names: Vec<String>,
+    offsets: Vec<Vec<f64>>,
+    lines: Vec<Vec<usize>>,
+    origin: Option<(Number, f64)>,
+    decimals: u32,
+    excluded: Vec<Exclusion>,
+    exclude_hits: Vec<usize>,
+    last_line: usize,
+}
+
+impl<'p> RowAccumulator<'p> {
+    fn new(plan: &'p RowPlan) -> Self {
+        RowAccumulator {
+            plan,
+            index: LevelMap::default(),
+            last: None,
+            names: Vec::new(),
+            offsets: Vec::new(),
+            lines: Vec::new(),
+            origin: plan.origin,
+            decimals: 0,
+            excluded: Vec::new(),
+            exclude_hits: Vec::new(),
+            last_line: 0,
+        }
+    }
+
+    fn level(&mut self, name: &str) -> usize {
+        // Logged data often come in runs of one level.
+        if let Some(i) = self.last
+            && self.names[i] == name
+        {
+            return i;
+        }
+        let i = match self.index.get(name) {
+            Some(&i) => i,
+            None => {
+                let i = self.names.len();
+                self.names.push(name.to_string());
+                self.index.insert(name.into(), i);
+                self.offsets.push(Vec::new());
+                self.lines.push(Vec::new());
+                i
+            }
+        };
+        self.last = Some(i);
+        i
+    }
+
+    /// One record: `fields` in header order, starting on `line`.
+    fn row(&mut self, fields: &[&str], line: usize) -> Result<(), DataError> {
+        let plan = self.plan;
+        self.last_line = line;
+        if fields.len() != plan.width {
+            return Err(super::width_error(
+                line,
+                fields.len(),
+                plan.width,
+                &plan.format,
+            ));
+        }
+        if !plan.exclude.is_empty()
+            && let Some(reason) = plan.exclude.get(&line)
+        {
+            self.exclude_hits.push(line);
+            self.excluded.push(Exclusion {
+                line,
+                reason: format!("excluded: {reason}"),
+            });
+            return Ok(());
+        }
+        if let Some((_, f)) = plan.filters.iter().find(|(c, f)| !f.keeps(fields[*c])) {
+            self.excluded.push(Exclusion {
+                line,
+                reason: format!("fails `where: {}`", f.text()),
+            });
+            return Ok(());
+        }
+        let (fi, factor) = (&plan.factor.0, &plan.factor.1);
+        let g = fields[*fi].trim();
+        if plan.is_missing(g) {
+            self.excluded.push(Exclusion {
+                line,
+                reason: format!("`{factor}` is missing"),
+            });
+            return Ok(());
+        }
+        // A level is registered even when its response is missing, so that a
+        // level with no usable rows is reported rather than silently lost.
+        let level = self.level(g);
+        let (yi, response) = (plan.response.0, &plan.response.1);
+        let y = fields[yi].trim();
+        if plan.is_missing(y) {
+            self.excluded.push(Exclusion {
+                line,
+                reason: format!("`{response}` is missing"),
+            });
+            return Ok(());
+        }
+        let number = match parse_plain(y, plan.format.decimal_comma) {
+            Some(n) => n,
+            None => response_number(y, &plan.format, response, yi, line)?,
+        };
+        self.decimals = self.decimals.max(number.decimals());
+        let (origin, origin_f64) = *self.origin.get_or_insert((number, number.to_f64()));
+        let offset = offset_from(number, origin, origin_f64);
+        self.offsets[level].push(offset);
+        if plan.keep_values {
+            self.lines[level].push(line);
+        }
+        Ok(())
+    }
+
+    fn finish(self) -> ChunkResult {
+        let summaries = self
+            .offsets
+            .iter()
+            .map(|v| GroupSummary::from_values(v))
+            .collect();
+        let keep = self.plan.keep_values;
+        ChunkResult {
+            names: self.names,
+            summaries,
+            offsets: if keep { self.offsets } else { Vec::new() },
+            lines: if keep { self.lines } else { Vec::new() },
+            origin: self.origin.map(|o| o.0),
+            decimals: self.decimals,
+            excluded: self.excluded,
+            exclude_hits: self.exclude_hits,
+            last_line: self.last_line,
+        }
+    }
+}
+
+/// `number − origin`: exact before the final rounding when both are plain
+/// decimals (see `decimal`), else in f64.
+fn offset_from(number: Number, origin: Number, origin_f64: f64) -> f64 {
+    match (number, origin) {
+        (Number::Exact(d), Number::Exact(o)) => {
+            d.minus(o).unwrap_or_else(|| number.to_f64() - origin_f64)
+        }
+        _ => number.to_f64() - origin_f64,
+    }
+}
+
+/// A response cell that the plain reader refused: a number in another
+/// spelling, or an error that says what was found and what to write.
+fn response_number(
+    y: &str,
+    format: &CsvFormat,
+    response: &str,
+    column: usize,
+    line: usize,
+) -> Result<Number, DataError> {
+    let text = if format.decimal_comma {
+        y.replace(',', ".")
+    } else {
+        y.to_string()
+    };
+    if let Some(n) = parse_number(&text) {
+        return Ok(n);
+    }
+    let lowered = text.to_ascii_lowercase();
+    let non_finite = ["inf", "+inf", "-inf", "infinity", "-infinity"].contains(&lowered.as_str());
+    let hint = if non_finite {
+        "infinite values cannot enter an analysis of variance; correct or remove the row"
+            .to_string()
+    } else if !format.decimal_comma && y.contains(',') {
+        "for a decimal comma add `decimal: comma` to the block".to_string()
+    } else {
+        format!(
+            "write a number, or one of the missing-value markers {}",
+            quote_list(&format.missing)
+        )
+    };
+    Err(DataError {
+        line: Some(line),
+        column: Some(column + 1),
+        message: format!("`{response}` must be a number, found `{y}`"),
+        hint: Some(hint),
+    })
+}
+
+/// Parses one chunk. Plain chunks (no quotes, no lone CR) are split with
+/// memchr; others go through the full RFC 4180 reader.
+fn parse_chunk(job: &Job<'_>, plan: &RowPlan) -> Result<ChunkResult, DataError> {
+    let bytes = &job.chunk.bytes()[job.start..];
+    let text = utf8_text(bytes, job.line).map_err(csv_error)?;
+    let mut acc = RowAccumulator::new(plan);
+    let plain = memchr::memchr(b'"', bytes).is_none()
+        && memchr::memchr_iter(b'\r', bytes).all(|i| bytes.get(i + 1) == Some(&b'\n'));
+    if plain {
+        let delimiter = plan.delimiter;
+        let mut fields: Vec<&str> = Vec::with_capacity(plan.width);
+        let mut line = job.line;
+        let mut start = 0;
+        while start < text.len() {
+            let end = memchr::memchr(b'\n', &bytes[start..]).map_or(text.len(), |i| start + i);
+            let mut record = &text[start..end];
+            if let Some(r) = record.strip_suffix('\r') {
+                record = r;
+            }
+            if !record.is_empty() {
+                fields.clear();
+                let mut from = 0;
+                for i in memchr::memchr_iter(delimiter, record.as_bytes()) {
+                    fields.push(&record[from..i]);
+                    from = i + 1;
+                }
+                fields.push(&record[from..]);
+                acc.row(&fields, line)?;
+            }
+            line += 1;
+            start = end + 1;
+        }
+    } else {
+        for record in RecordParser::new(text, plan.delimiter, job.line) {
+            let record = record.map_err(csv_error)?;
+            let fields: Vec<&str> = record.fields.iter().map(String::as_str).collect();
+            acc.row(&fields, record.line)?;
+        }
+    }
+    Ok(acc.finish())
+}
+
+/// The chunks merged so far, in file order.
+struct Merged {
+    keep_values: bool,
+    index: LevelMap,
+    levels: Vec<ScannedLevel>,
+    origin: Option<(Number, f64)>,
+    decimals: u32,
+    excluded: Vec<Exclusion>,
+    exclude_hits: Vec<usize>,
+    last_line: usize,
+}
+
+impl Merged {
+    fn new(keep_values: bool) -> Self {
+        Merged {
+            keep_values,
+            index: LevelMap::default(),
+            levels: Vec::new(),
+            origin: None,
+            decimals: 0,
+            excluded: Vec::new(),
+            exclude_hits: Vec::new(),
+            last_line: 0,
+        }
+    }
+
+    /// Adds the next chunk. Its offsets are from the file's origin, unless
+    /// the first chunk had no value at all: then they are from the chunk's
+    /// own first value and are moved to the file's origin by one shift.
+    fn add(&mut self, chunk: ChunkResult) -> Result<(), DataError> {
+        let shift = match (chunk.origin, self.origin) {
+            (None, _) => 0.0,
+            (Some(o), None) => {
+                self.origin = Some((o, o.to_f64()));
+                0.0
+            }
+            (Some(o), Some((global, global_f64))) => offset_from(o, global, global_f64),
+        };
+        for (local, name) in chunk.names.into_iter().enumerate() {
+            let g = match self.index.get(name.as_str()) {
+                Some(&g) => g,
+                None => {
+                    self.index.insert(name.as_str().into(), self.levels.len());
+                    self.levels.push(ScannedLevel {
+                        name,
+                        summary: GroupSummary {
+                            n: 0,
+                            mean: f64::NAN,
+                            ss: f64::NAN,
+                        },
+                        offsets: Vec::new(),
+                        lines: Vec::new(),
+                    });
+                    self.levels.len() - 1
+                }
+            };
+            let mut part = chunk.summaries[local];
+            if shift != 0.0 {
+                part.mean += shift;
+            }
+            let level = &mut self.levels[g];
+            level.summary = level.summary.merge(&part);
+            if self.keep_values {
+                if shift != 0.0 {
+                    level
+                        .offsets
+                        .extend(chunk.offsets[local].iter().map(|v| v + shift));
+                } else {
+                    level.offsets.extend_from_slice(&chunk.offsets[local]);
+                }
+                level.lines.extend_from_slice(&chunk.lines[local]);
+            }
+        }
+        self.decimals = self.decimals.max(chunk.decimals);
+        self.excluded.extend(chunk.excluded);
+        self.exclude_hits.extend(chunk.exclude_hits);
+        self.last_line = self.last_line.max(chunk.last_line);
+        Ok(())
+    }
+
+    fn finish(
+        self,
+        plan: &RowPlan,
+        spec: &ScanSpec<'_>,
+        sha256: Option<String>,
+        bytes: u64,
+    ) -> Result<Scanned, DataError> {
+        for (line, _) in spec.exclude {
+            if !self.exclude_hits.contains(line) {
+                return Err(super::exclude_error(
+                    *line,
+                    plan.header_line,
+                    self.last_line,
+                ));
+            }
+        }
+        Ok(Scanned {
+            levels: self.levels,
+            origin: self.origin.map_or(0.0, |o| o.1),
+            decimals: self.decimals,
+            excluded: self.excluded,
+            sha256,
+            bytes,
+        })
+    }
+}
+
+/// Reads `response` split by `factor` from a table (spreadsheets, wide
+/// layouts: rows already chosen by `data::prepare`) with the same per-row
+/// rules as the file reader.
+pub fn scan_table(
+    table: &super::Table,
+    response: &str,
+    factor: &str,
+    format: &CsvFormat,
+) -> Result<Scanned, DataError> {
+    let yi = table.column(response)?;
+    let fi = table.column(factor)?;
+    let plan = RowPlan::for_table(
+        table.header.len(),
+        table.header_line,
+        (yi, response),
+        (fi, factor),
+        format,
+    );
+    let rows = table
+        .rows
+        .iter()
+        .map(|r| (r.line, r.fields.iter().map(String::as_str).collect()));
+    scan_rows(&plan, rows)
+}
+
+/// Reads already-split rows with the same per-row rules; rows are one chunk.
+fn scan_rows<'r>(
+    plan: &RowPlan,
+    rows: impl Iterator<Item = (usize, Vec<&'r str>)>,
+) -> Result<Scanned, DataError> {
+    let mut acc = RowAccumulator::new(plan);
+    for (line, fields) in rows {
+        acc.row(&fields, line)?;
+    }
+    let mut merged = Merged::new(true);
+    merged.add(acc.finish())?;
+    let spec = ScanSpec {
+        response: &plan.response.1,
+        factor: &plan.factor.1,
+        format: &plan.format,
+        filters: &[],
+        exclude: &[],
+        keep_values: true,
+    };
+    merged.finish(plan, &spec, None, 0)
+}
+
+fn csv_error(e: CsvError) -> DataError {
+    DataError {
+        line: Some(e.line),
+        column: None,
+        message: e.message,
+        hint: e.hint,
+    }
+}
+
+fn io_error(e: std::io::Error) -> DataError {
+    DataError {
+        line: None,
+        column: None,
+        message: format!("reading the file failed: {e}"),
+        hint: None,
+    }
+}
+
+#[cfg(test)]
+#[path = "scan_tests.rs"]
+mod tests;
