@@ -4,10 +4,14 @@
 
 use super::dist::f_isf;
 use super::roots::brent;
-use super::special::{inc_beta_pair, ln_gamma};
+use super::special::{inc_beta_pair, ln_beta, ln_gamma};
 
 /// Noncentral F cdf P(F ≤ x; d1, d2, λ) as a Poisson mixture of incomplete
-/// betas, summed outward from the Poisson mode (Lenth 1987, AS 226).
+/// betas, summed outward from the Poisson mode (Lenth 1987, AS 226). One
+/// incomplete beta is evaluated, at the mode; its neighbours follow from
+/// I_x(a + 1, b) = I_x(a, b) − x^a y^b / (a·B(a, b)), whose terms are all
+/// positive, so the absolute error stays at rounding level however many
+/// terms a large λ needs (a million observations give λ in the millions).
 pub fn ncf_cdf(x: f64, d1: f64, d2: f64, nc: f64) -> f64 {
     if x <= 0.0 {
         return 0.0;
@@ -18,36 +22,51 @@ pub fn ncf_cdf(x: f64, d1: f64, d2: f64, nc: f64) -> f64 {
     let half = nc / 2.0;
     let denom = d2 + d1 * x;
     let (bx, by) = (d1 * x / denom, d2 / denom);
-    let term = |j: f64| -> f64 {
-        let log_poisson = if half > 0.0 {
-            -half + j * half.ln() - ln_gamma(j + 1.0)
-        } else if j == 0.0 {
-            0.0
-        } else {
-            f64::NEG_INFINITY
-        };
-        log_poisson.exp() * inc_beta_pair(d1 / 2.0 + j, d2 / 2.0, bx, by).0
-    };
+    let b = d2 / 2.0;
+    let ln_x = if bx > 0.5 { (-by).ln_1p() } else { bx.ln() };
+    let ln_y = if by > 0.5 { (-bx).ln_1p() } else { by.ln() };
     let mode = half.floor();
-    let mut total = term(mode);
-    let mut j = mode - 1.0;
-    while j >= 0.0 {
-        let t = term(j);
+    let a_mode = d1 / 2.0 + mode;
+    let i_mode = inc_beta_pair(a_mode, b, bx, by).0;
+    // x^a y^b / (a·B(a, b)), the step from I_x(a, b) to I_x(a + 1, b).
+    let g_mode = (a_mode * ln_x + b * ln_y - a_mode.ln() - ln_beta(a_mode, b)).exp();
+    let w_mode = if half > 0.0 {
+        (-half + mode * half.ln() - ln_gamma(mode + 1.0)).exp()
+    } else {
+        1.0
+    };
+    let mut total = w_mode * i_mode;
+    if half <= 0.0 {
+        return total.clamp(0.0, 1.0);
+    }
+    // Downward from the mode: I grows by g(a − 1) at each step.
+    let (mut w, mut i, mut g, mut j) = (w_mode, i_mode, g_mode, mode);
+    while j >= 1.0 {
+        let a = d1 / 2.0 + j;
+        g *= a / (bx * (a - 1.0 + b));
+        i = (i + g).min(1.0);
+        w *= j / half;
+        j -= 1.0;
+        let t = w * i;
         total += t;
         if t < 1e-17 * total.max(1e-300) && mode - j > 5.0 {
             break;
         }
-        j -= 1.0;
     }
-    let mut j = mode + 1.0;
+    // Upward: I shrinks by g(a) at each step.
+    let (mut w, mut i, mut g, mut j) = (w_mode, i_mode, g_mode, mode);
     loop {
-        let t = term(j);
+        let a = d1 / 2.0 + j;
+        i = (i - g).max(0.0);
+        g *= bx * (a + b) / (a + 1.0);
+        j += 1.0;
+        w *= half / j;
+        let t = w * i;
         total += t;
         // Poisson weights beyond the mode fall off; stop once negligible.
-        if (t < 1e-17 * total.max(1e-300) && j - mode > 5.0) || j - mode > 100_000.0 {
+        if (t < 1e-17 * total.max(1e-300) && j - mode > 5.0) || j - mode > 1e7 {
             break;
         }
-        j += 1.0;
     }
     total.clamp(0.0, 1.0)
 }
