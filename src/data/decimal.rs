@@ -73,6 +73,16 @@ impl Decimal {
 
     /// self − origin as an f64, computed exactly before the final rounding.
     pub fn minus(self, origin: Decimal) -> Option<f64> {
+        // The usual case (same number of decimals, 64-bit digits) without
+        // 128-bit arithmetic; the same bits as the general route below.
+        if self.scale == origin.scale
+            && (self.scale as usize) < EXACT_POWERS.len()
+            && let (Ok(a), Ok(b)) = (i64::try_from(self.digits), i64::try_from(origin.digits))
+            && let Some(diff) = a.checked_sub(b)
+            && diff.unsigned_abs() <= 1 << 53
+        {
+            return Some(diff as f64 / EXACT_POWERS[self.scale as usize]);
+        }
         let scale = self.scale.max(origin.scale);
         let diff = self.rescale(scale)?.checked_sub(origin.rescale(scale)?)?;
         Some(
@@ -141,6 +151,16 @@ pub fn parse_number(text: &str) -> Option<Number> {
 /// `comma` is set). Returns `None` for anything else, which the caller
 /// then hands to [`parse_number`]; where both accept a text they agree.
 pub fn parse_plain(text: &str, comma: bool) -> Option<Number> {
+    plain_parts(text, comma).map(|(digits, scale)| {
+        Number::Exact(Decimal {
+            digits: i128::from(digits),
+            scale,
+        })
+    })
+}
+
+/// [`parse_plain`] as (digits, scale), for readers that stay in 64 bits.
+pub fn plain_parts(text: &str, comma: bool) -> Option<(i64, u32)> {
     let bytes = text.as_bytes();
     let (negative, body) = match bytes.first()? {
         b'-' => (true, &bytes[1..]),
@@ -167,10 +187,16 @@ pub fn parse_plain(text: &str, comma: bool) -> Option<Number> {
         return None;
     }
     let scale = point.map_or(0, |p| body.len() - p - 1) as u32;
-    Some(Number::Exact(Decimal {
-        digits: i128::from(if negative { -digits } else { digits }),
-        scale,
-    }))
+    Some((if negative { -digits } else { digits }, scale))
+}
+
+/// (a − b) / 10^scale in 64-bit integers, correctly rounded, when the
+/// difference is exact in f64 and 10^scale is too; the same bits as
+/// [`Decimal::minus`].
+pub fn plain_difference(a: i64, b: i64, scale: u32) -> Option<f64> {
+    let diff = a.checked_sub(b)?;
+    let power = EXACT_POWERS.get(scale as usize)?;
+    (diff.unsigned_abs() <= 1 << 53).then(|| diff as f64 / power)
 }
 
 /// Converts a column of numbers to f64 offsets from a common origin.

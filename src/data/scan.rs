@@ -14,7 +14,7 @@
 //! shares, so both paths read a row the same way.
 
 use super::csv::{CsvError, RecordParser, count_lines, utf8_text};
-use super::decimal::{Number, parse_number, parse_plain};
+use super::decimal::{Number, parse_number, plain_difference, plain_parts};
 use super::{CsvFormat, DataError, Exclusion, Filter, Header, quote_list};
 use crate::stats::oneway::GroupSummary;
 use sha2::{Digest, Sha256};
@@ -115,29 +115,51 @@ pub fn scan_one_factor(
     let mut plan = plan;
     // The first chunk alone: its first value becomes the origin of every
     // later chunk, so all offsets are exact differences from one value.
-    let first = parse_chunk(
-        &Job {
-            start,
-            line,
-            chunk: first,
-        },
-        &plan,
-    )?;
-    plan.origin = first.origin.map(|o| (o, o.to_f64()));
-    merged.add(first)?;
+    let first = Job {
+        start,
+        line,
+        relative: false,
+        chunk: first,
+    };
+    let absolute = !plan.exclude.is_empty();
+    let first_end = if absolute {
+        line + chunk_lines(&first.chunk.bytes()[start..])
+    } else {
+        0
+    };
+    let outcome = parse_chunk(&first, &plan);
+    if let Ok(r) = &outcome {
+        plan.origin = r.origin.map(|o| (o, o.to_f64()));
+    }
+    merged.add(outcome, false)?;
     let threads = if chunks.at_end() { 1 } else { threads };
+    // Later chunks count their own lines, and the merge makes them absolute;
+    // only `exclude` (rules by line) needs absolute lines while parsing.
+    let mut next_line = first_end;
     let mut rest = std::iter::from_fn(|| {
-        let chunk = chunks.next_chunk().transpose()?;
-        let line = chunks.line_of(chunks.lines.len() - 2);
-        Some(chunk.map(|chunk| Job {
+        let chunk = match chunks.next_chunk() {
+            Ok(Some(chunk)) => chunk,
+            Ok(None) => return None,
+            Err(e) => return Some(Err(e)),
+        };
+        let line = if absolute {
+            let line = next_line;
+            next_line += chunk_lines(chunk.bytes());
+            line
+        } else {
+            0
+        };
+        Some(Ok(Job {
             start: 0,
             line,
+            relative: !absolute,
             chunk,
         }))
     });
     if threads <= 1 {
         for job in rest.by_ref() {
-            merged.add(parse_chunk(&job.map_err(io_error)?, &plan)?)?;
+            let job = job.map_err(io_error)?;
+            merged.add(parse_chunk(&job, &plan), job.relative)?;
         }
     } else {
         parallel(rest, &plan, threads, &mut merged)?;
@@ -165,9 +187,16 @@ impl Chunk<'_> {
 struct Job<'a> {
     /// Bytes of the chunk already read (the header, in the first chunk).
     start: usize,
-    /// The line on which `chunk[start..]` begins.
+    /// The line on which `chunk[start..]` begins; 0 when `relative`.
     line: usize,
+    /// Lines are counted from the chunk's start; the merge adds its line.
+    relative: bool,
     chunk: Chunk<'a>,
+}
+
+/// Lines in a run of whole records (see `csv::count_lines`).
+fn chunk_lines(bytes: &[u8]) -> usize {
+    count_lines(bytes)
 }
 
 /// Cuts a source into chunks of whole records. A chunk is the first
@@ -184,8 +213,6 @@ struct Chunker<'a> {
     eof: bool,
     hasher: Option<Sha256>,
     bytes_read: u64,
-    /// The first line of each chunk handed out, and of the next one.
-    lines: Vec<usize>,
 }
 
 impl<'a> Chunker<'a> {
@@ -199,12 +226,7 @@ impl<'a> Chunker<'a> {
             eof: false,
             hasher,
             bytes_read: 0,
-            lines: vec![1],
         }
-    }
-
-    fn line_of(&self, index: usize) -> usize {
-        self.lines[index]
     }
 
     fn at_end(&self) -> bool {
@@ -250,25 +272,19 @@ impl<'a> Chunker<'a> {
                 let mut window = self.chunk_bytes;
                 let end = loop {
                     while buf.len() < window && !self.eof {
+                        // read_to_end fills spare capacity without zeroing it.
                         let have = buf.len();
-                        buf.resize(window, 0);
-                        match reader.read(&mut buf[have..]) {
-                            Ok(0) => {
-                                buf.truncate(have);
-                                self.eof = true;
-                            }
-                            Ok(n) => {
-                                buf.truncate(have + n);
-                                if let Some(h) = &mut self.hasher {
-                                    h.update(&buf[have..have + n]);
-                                }
-                                self.bytes_read += n as u64;
-                            }
-                            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {
-                                buf.truncate(have);
-                            }
-                            Err(e) => return Err(e),
+                        buf.reserve(window - have);
+                        let n = (&mut *reader)
+                            .take((window - have) as u64)
+                            .read_to_end(&mut buf)?;
+                        if n == 0 {
+                            self.eof = true;
                         }
+                        if let Some(h) = &mut self.hasher {
+                            h.update(&buf[have..]);
+                        }
+                        self.bytes_read += n as u64;
                     }
                     if buf.is_empty() {
                         return Ok(None);
@@ -289,8 +305,6 @@ impl<'a> Chunker<'a> {
                 Chunk::Owned(buf)
             }
         };
-        let first = *self.lines.last().unwrap_or(&1);
-        self.lines.push(first + count_lines(chunk.bytes()));
         Ok(Some(chunk))
     }
 }
@@ -321,7 +335,7 @@ fn parallel<'a>(
     threads: usize,
     merged: &mut Merged,
 ) -> Result<(), DataError> {
-    type Outcome = Result<ChunkResult, DataError>;
+    type Outcome = (Result<ChunkResult, DataError>, bool);
     let stop = AtomicBool::new(false);
     // A short queue bounds the bytes in flight: queued + one per worker.
     let (job_tx, job_rx) = mpsc::sync_channel::<(usize, std::io::Result<Job<'a>>)>(2);
@@ -349,9 +363,10 @@ fn parallel<'a>(
                     if stop.load(Ordering::Relaxed) {
                         break;
                     }
-                    let outcome = job
-                        .map_err(io_error)
-                        .and_then(|job| parse_chunk(&job, plan));
+                    let outcome = match job {
+                        Ok(job) => (parse_chunk(&job, plan), job.relative),
+                        Err(e) => (Err(io_error(e)), false),
+                    };
                     if out_tx.send((i, outcome)).is_err() {
                         break;
                     }
@@ -364,8 +379,8 @@ fn parallel<'a>(
         let result = (|| {
             for (i, outcome) in out_rx.iter() {
                 waiting.insert(i, outcome);
-                while let Some(outcome) = waiting.remove(&next) {
-                    merged.add(outcome?)?;
+                while let Some((outcome, relative)) = waiting.remove(&next) {
+                    merged.add(outcome, relative)?;
                     next += 1;
                 }
             }
@@ -397,6 +412,37 @@ struct RowPlan {
     delimiter: u8,
     /// The file's origin once known (the first chunk's first value).
     origin: Option<(Number, f64)>,
+    /// Bit n set when a missing-value marker is n bytes long (n < 64).
+    missing_lengths: u64,
+    /// The first bytes of the markers, lowercased.
+    missing_first: [bool; 256],
+}
+
+fn missing_first(format: &CsvFormat) -> [bool; 256] {
+    let mut first = [false; 256];
+    for m in &format.missing {
+        if let Some(&b) = m.as_bytes().first() {
+            first[usize::from(b.to_ascii_lowercase())] = true;
+        }
+    }
+    first
+}
+
+fn missing_lengths(format: &CsvFormat) -> u64 {
+    format.missing.iter().fold(0, |bits, m| {
+        bits | if m.len() < 64 { 1 << m.len() } else { 0 }
+    })
+}
+
+/// `str::trim`, skipping the work when the ends are plainly not blank.
+fn trim(cell: &str) -> &str {
+    let b = cell.as_bytes();
+    let solid = |c: &u8| *c > b' ' && *c < 0x80;
+    if b.first().is_some_and(solid) && b.last().is_some_and(solid) {
+        cell
+    } else {
+        cell.trim()
+    }
 }
 
 impl RowPlan {
@@ -416,6 +462,8 @@ impl RowPlan {
             keep_values: spec.keep_values,
             delimiter: spec.format.delimiter,
             origin: None,
+            missing_lengths: missing_lengths(spec.format),
+            missing_first: missing_first(spec.format),
         })
     }
 
@@ -438,10 +486,21 @@ impl RowPlan {
             keep_values: true,
             delimiter: format.delimiter,
             origin: None,
+            missing_lengths: missing_lengths(format),
+            missing_first: missing_first(format),
         }
     }
 
     fn is_missing(&self, cell: &str) -> bool {
+        // Most cells are longer than every marker: one bit test says so.
+        if cell.len() < 64 && self.missing_lengths & (1 << cell.len()) == 0 {
+            return false;
+        }
+        if let Some(&first) = cell.as_bytes().first()
+            && !self.missing_first[usize::from(first.to_ascii_lowercase())]
+        {
+            return false;
+        }
         self.format
             .missing
             .iter()
@@ -472,6 +531,20 @@ impl Hasher for ShortHasher {
 
 type LevelMap = HashMap<Box<str>, usize, BuildHasherDefault<ShortHasher>>;
 
+/// A level name's first 8 bytes (zero-padded) and its length: equal keys
+/// mean equal names when the names are at most 8 bytes long.
+fn short_key(name: &str) -> (u64, usize) {
+    // A shift loop, not copy_from_slice: a variable-length copy becomes a
+    // call to memcpy, which cost a third of the row time.
+    let b = name.as_bytes();
+    let word = b
+        .iter()
+        .take(8)
+        .enumerate()
+        .fold(0u64, |w, (k, &c)| w | u64::from(c) << (8 * k));
+    (word, b.len())
+}
+
 /// What one chunk held, with lines already absolute.
 struct ChunkResult {
     names: Vec<String>,
@@ -483,21 +556,34 @@ struct ChunkResult {
     excluded: Vec<Exclusion>,
     exclude_hits: Vec<usize>,
     last_line: usize,
+    /// The line just after the chunk, numbered as the chunk's lines are
+    /// (from 0 when they are relative).
+    end_line: usize,
 }
 
 /// Reads rows of one chunk (or one table): the per-row rules in one place.
 struct RowAccumulator<'p> {
     plan: &'p RowPlan,
     index: LevelMap,
-    last: Option<usize>,
+    /// Per level, its first 8 bytes and its length.
+    keys: Vec<(u64, usize)>,
     names: Vec<String>,
     offsets: Vec<Vec<f64>>,
     lines: Vec<Vec<usize>>,
     origin: Option<(Number, f64)>,
+    /// The origin's digits and scale when they fit in 64 bits.
+    plain_origin: Option<(i64, u32)>,
     decimals: u32,
     excluded: Vec<Exclusion>,
     exclude_hits: Vec<usize>,
     last_line: usize,
+}
+
+fn plain_of(n: Number) -> Option<(i64, u32)> {
+    match n {
+        Number::Exact(d) => i64::try_from(d.digits).ok().map(|v| (v, d.scale)),
+        Number::Float(_) => None,
+    }
 }
 
 impl<'p> RowAccumulator<'p> {
@@ -505,11 +591,12 @@ impl<'p> RowAccumulator<'p> {
         RowAccumulator {
             plan,
             index: LevelMap::default(),
-            last: None,
+            keys: Vec::new(),
             names: Vec::new(),
             offsets: Vec::new(),
             lines: Vec::new(),
             origin: plan.origin,
+            plain_origin: plan.origin.and_then(|o| plain_of(o.0)),
             decimals: 0,
             excluded: Vec::new(),
             exclude_hits: Vec::new(),
@@ -518,38 +605,64 @@ impl<'p> RowAccumulator<'p> {
     }
 
     fn level(&mut self, name: &str) -> usize {
-        // Logged data often come in runs of one level.
-        if let Some(i) = self.last
-            && self.names[i] == name
-        {
-            return i;
-        }
-        let i = match self.index.get(name) {
-            Some(&i) => i,
-            None => {
-                let i = self.names.len();
-                self.names.push(name.to_string());
-                self.index.insert(name.into(), i);
-                self.offsets.push(Vec::new());
-                self.lines.push(Vec::new());
-                i
+        let key = short_key(name);
+        // Few levels (the usual case): a scan of 8-byte keys, no hashing.
+        if self.keys.len() <= 32 {
+            for (i, k) in self.keys.iter().enumerate() {
+                if *k == key && (name.len() <= 8 || self.names[i] == name) {
+                    return i;
+                }
             }
-        };
-        self.last = Some(i);
+            if self.keys.len() < 32 {
+                return self.add_level(name, key);
+            }
+        }
+        match self.index.get(name) {
+            Some(&i) => i,
+            None => self.add_level(name, key),
+        }
+    }
+
+    fn add_level(&mut self, name: &str, key: (u64, usize)) -> usize {
+        let i = self.names.len();
+        if self.keys.len() == 32 {
+            // From here on the map answers; it learns the first 32 too.
+            for (j, n) in self.names.iter().enumerate() {
+                self.index.insert(n.as_str().into(), j);
+            }
+        }
+        if self.keys.len() >= 32 {
+            self.index.insert(name.into(), i);
+        }
+        self.keys.push(key);
+        self.names.push(name.to_string());
+        self.offsets.push(Vec::new());
+        self.lines.push(Vec::new());
         i
     }
 
     /// One record: `fields` in header order, starting on `line`.
     fn row(&mut self, fields: &[&str], line: usize) -> Result<(), DataError> {
+        if !self.admit(fields.len(), line)? {
+            return Ok(());
+        }
+        let plan = self.plan;
+        if let Some((_, f)) = plan.filters.iter().find(|(c, f)| !f.keeps(fields[*c])) {
+            self.excluded.push(Exclusion {
+                line,
+                reason: format!("fails `where: {}`", f.text()),
+            });
+            return Ok(());
+        }
+        self.cells(fields[plan.factor.0], fields[plan.response.0], line)
+    }
+
+    /// The width check and `exclude`; false when the row is left out.
+    fn admit(&mut self, width: usize, line: usize) -> Result<bool, DataError> {
         let plan = self.plan;
         self.last_line = line;
-        if fields.len() != plan.width {
-            return Err(super::width_error(
-                line,
-                fields.len(),
-                plan.width,
-                &plan.format,
-            ));
+        if width != plan.width {
+            return Err(super::width_error(line, width, plan.width, &plan.format));
         }
         if !plan.exclude.is_empty()
             && let Some(reason) = plan.exclude.get(&line)
@@ -559,48 +672,85 @@ impl<'p> RowAccumulator<'p> {
                 line,
                 reason: format!("excluded: {reason}"),
             });
-            return Ok(());
+            return Ok(false);
         }
-        if let Some((_, f)) = plan.filters.iter().find(|(c, f)| !f.keeps(fields[*c])) {
-            self.excluded.push(Exclusion {
-                line,
-                reason: format!("fails `where: {}`", f.text()),
-            });
-            return Ok(());
-        }
-        let (fi, factor) = (&plan.factor.0, &plan.factor.1);
-        let g = fields[*fi].trim();
+        Ok(true)
+    }
+
+    /// The factor and response cells of an admitted row.
+    fn cells(
+        &mut self,
+        factor_cell: &str,
+        response_cell: &str,
+        line: usize,
+    ) -> Result<(), DataError> {
+        let plan = self.plan;
+        let g = trim(factor_cell);
         if plan.is_missing(g) {
             self.excluded.push(Exclusion {
                 line,
-                reason: format!("`{factor}` is missing"),
+                reason: format!("`{}` is missing", plan.factor.1),
             });
             return Ok(());
         }
         // A level is registered even when its response is missing, so that a
         // level with no usable rows is reported rather than silently lost.
         let level = self.level(g);
-        let (yi, response) = (plan.response.0, &plan.response.1);
-        let y = fields[yi].trim();
+        let y = trim(response_cell);
         if plan.is_missing(y) {
             self.excluded.push(Exclusion {
                 line,
-                reason: format!("`{response}` is missing"),
+                reason: format!("`{}` is missing", plan.response.1),
             });
             return Ok(());
         }
-        let number = match parse_plain(y, plan.format.decimal_comma) {
-            Some(n) => n,
-            None => response_number(y, &plan.format, response, yi, line)?,
+        let offset = match plain_parts(y, plan.format.decimal_comma) {
+            Some((digits, scale)) => {
+                self.decimals = self.decimals.max(scale);
+                if self.origin.is_none() {
+                    self.set_origin(Number::Exact(super::decimal::Decimal {
+                        digits: i128::from(digits),
+                        scale,
+                    }));
+                }
+                match self.plain_origin {
+                    Some((o, os)) if os == scale => plain_difference(digits, o, scale),
+                    _ => None,
+                }
+                .unwrap_or_else(|| {
+                    self.offset(Number::Exact(super::decimal::Decimal {
+                        digits: i128::from(digits),
+                        scale,
+                    }))
+                })
+            }
+            None => {
+                let number =
+                    response_number(y, &plan.format, &plan.response.1, plan.response.0, line)?;
+                self.decimals = self.decimals.max(number.decimals());
+                if self.origin.is_none() {
+                    self.set_origin(number);
+                }
+                self.offset(number)
+            }
         };
-        self.decimals = self.decimals.max(number.decimals());
-        let (origin, origin_f64) = *self.origin.get_or_insert((number, number.to_f64()));
-        let offset = offset_from(number, origin, origin_f64);
         self.offsets[level].push(offset);
         if plan.keep_values {
             self.lines[level].push(line);
         }
         Ok(())
+    }
+
+    fn set_origin(&mut self, origin: Number) {
+        self.origin = Some((origin, origin.to_f64()));
+        self.plain_origin = plain_of(origin);
+    }
+
+    fn offset(&self, number: Number) -> f64 {
+        match self.origin {
+            Some((origin, origin_f64)) => offset_from(number, origin, origin_f64),
+            None => f64::NAN,
+        }
     }
 
     fn finish(self) -> ChunkResult {
@@ -620,6 +770,7 @@ impl<'p> RowAccumulator<'p> {
             excluded: self.excluded,
             exclude_hits: self.exclude_hits,
             last_line: self.last_line,
+            end_line: 0,
         }
     }
 }
@@ -679,40 +830,129 @@ fn parse_chunk(job: &Job<'_>, plan: &RowPlan) -> Result<ChunkResult, DataError> 
     let bytes = &job.chunk.bytes()[job.start..];
     let text = utf8_text(bytes, job.line).map_err(csv_error)?;
     let mut acc = RowAccumulator::new(plan);
+    let end_line;
     let plain = memchr::memchr(b'"', bytes).is_none()
         && memchr::memchr_iter(b'\r', bytes).all(|i| bytes.get(i + 1) == Some(&b'\n'));
-    if plain {
-        let delimiter = plan.delimiter;
+    if plain && plan.filters.is_empty() {
+        end_line = plain_cells(bytes, text, job.line, plan, &mut acc)?;
+    } else if plain {
         let mut fields: Vec<&str> = Vec::with_capacity(plan.width);
         let mut line = job.line;
-        let mut start = 0;
-        while start < text.len() {
-            let end = memchr::memchr(b'\n', &bytes[start..]).map_or(text.len(), |i| start + i);
-            let mut record = &text[start..end];
-            if let Some(r) = record.strip_suffix('\r') {
-                record = r;
+        let mut from = 0;
+        // A plain loop beats a vectorised search here: fields are short.
+        let delimiter = plan.delimiter;
+        for (i, &b) in bytes.iter().enumerate() {
+            if b != delimiter && b != b'\n' {
+                continue;
             }
-            if !record.is_empty() {
-                fields.clear();
-                let mut from = 0;
-                for i in memchr::memchr_iter(delimiter, record.as_bytes()) {
-                    fields.push(&record[from..i]);
-                    from = i + 1;
-                }
-                fields.push(&record[from..]);
-                acc.row(&fields, line)?;
+            if b == b'\n' {
+                close_record(text, &mut fields, from..i, line, &mut acc)?;
+                line += 1;
+            } else {
+                fields.push(&text[from..i]);
             }
-            line += 1;
-            start = end + 1;
+            from = i + 1;
         }
+        if from < bytes.len() || !fields.is_empty() {
+            close_record(text, &mut fields, from..bytes.len(), line, &mut acc)?;
+        }
+        end_line = line;
     } else {
-        for record in RecordParser::new(text, plan.delimiter, job.line) {
+        let mut parser = RecordParser::new(text, plan.delimiter, job.line);
+        for record in parser.by_ref() {
             let record = record.map_err(csv_error)?;
             let fields: Vec<&str> = record.fields.iter().map(String::as_str).collect();
             acc.row(&fields, record.line)?;
         }
+        end_line = parser.line();
     }
-    Ok(acc.finish())
+    Ok(ChunkResult {
+        end_line,
+        ..acc.finish()
+    })
+}
+
+/// The plain reader without `where` filters: picks out the factor and
+/// response cells as it goes, without collecting fields. Returns the line
+/// after the chunk.
+fn plain_cells(
+    bytes: &[u8],
+    text: &str,
+    first_line: usize,
+    plan: &RowPlan,
+    acc: &mut RowAccumulator<'_>,
+) -> Result<usize, DataError> {
+    let (fi, yi) = (plan.factor.0, plan.response.0);
+    let delimiter = plan.delimiter;
+    let mut line = first_line;
+    let (mut field, mut from) = (0, 0);
+    let (mut g, mut y) = (0..0, 0..0);
+    let mut end_record = |field: usize,
+                          from: usize,
+                          end: usize,
+                          g: &mut std::ops::Range<usize>,
+                          y: &mut std::ops::Range<usize>,
+                          line: usize| {
+        let end = if end > from && bytes[end - 1] == b'\r' {
+            end - 1
+        } else {
+            end
+        };
+        if field == 0 && end == from {
+            return Ok(()); // a blank line
+        }
+        if field == fi {
+            *g = from..end;
+        } else if field == yi {
+            *y = from..end;
+        }
+        if acc.admit(field + 1, line)? {
+            acc.cells(&text[g.clone()], &text[y.clone()], line)?;
+        }
+        Ok::<(), DataError>(())
+    };
+    for (i, &b) in bytes.iter().enumerate() {
+        if b == delimiter {
+            if field == fi {
+                g = from..i;
+            } else if field == yi {
+                y = from..i;
+            }
+            field += 1;
+            from = i + 1;
+        } else if b == b'\n' {
+            end_record(field, from, i, &mut g, &mut y, line)?;
+            line += 1;
+            field = 0;
+            from = i + 1;
+        }
+    }
+    if from < bytes.len() || field > 0 {
+        end_record(field, from, bytes.len(), &mut g, &mut y, line)?;
+    }
+    Ok(line)
+}
+
+/// Ends a record of the plain reader at `last` (its last field); a blank
+/// line is skipped.
+fn close_record<'t>(
+    text: &'t str,
+    fields: &mut Vec<&'t str>,
+    last: std::ops::Range<usize>,
+    line: usize,
+    acc: &mut RowAccumulator<'_>,
+) -> Result<(), DataError> {
+    let end = match text[last.clone()].strip_suffix('\r') {
+        Some(t) => last.start + t.len(),
+        None => last.end,
+    };
+    if fields.is_empty() && end == last.start {
+        return Ok(());
+    }
+    fields.push(&text[last.start..end]);
+    let done = acc.row(fields, line);
+    fields.clear();
+    done
 }
 
 /// The chunks merged so far, in file order.
@@ -725,6 +965,8 @@ struct Merged {
     excluded: Vec<Exclusion>,
     exclude_hits: Vec<usize>,
     last_line: usize,
+    /// The line the next chunk starts on.
+    next_line: usize,
 }
 
 impl Merged {
@@ -738,13 +980,41 @@ impl Merged {
             excluded: Vec::new(),
             exclude_hits: Vec::new(),
             last_line: 0,
+            next_line: 1,
         }
     }
 
-    /// Adds the next chunk. Its offsets are from the file's origin, unless
-    /// the first chunk had no value at all: then they are from the chunk's
-    /// own first value and are moved to the file's origin by one shift.
-    fn add(&mut self, chunk: ChunkResult) -> Result<(), DataError> {
+    /// Adds the next chunk's outcome. A chunk with `relative` lines gets
+    /// the line it starts on; an error is returned with its absolute line.
+    /// Offsets are from the file's origin, unless the first chunk had no
+    /// value at all: then they are from the chunk's own first value and are
+    /// moved to the file's origin by one shift.
+    fn add(
+        &mut self,
+        outcome: Result<ChunkResult, DataError>,
+        relative: bool,
+    ) -> Result<(), DataError> {
+        let base = if relative { self.next_line } else { 0 };
+        let mut chunk = outcome.map_err(|mut e| {
+            if let Some(line) = &mut e.line {
+                *line += base;
+            }
+            e
+        })?;
+        if relative {
+            for e in &mut chunk.excluded {
+                e.line += base;
+            }
+            for lines in &mut chunk.lines {
+                for line in lines.iter_mut() {
+                    *line += base;
+                }
+            }
+            chunk.last_line += base;
+            self.next_line += chunk.end_line;
+        } else {
+            self.next_line = chunk.end_line;
+        }
         let shift = match (chunk.origin, self.origin) {
             (None, _) => 0.0,
             (Some(o), None) => {
@@ -857,7 +1127,7 @@ fn scan_rows<'r>(
         acc.row(&fields, line)?;
     }
     let mut merged = Merged::new(true);
-    merged.add(acc.finish())?;
+    merged.add(Ok(acc.finish()), false)?;
     let spec = ScanSpec {
         response: &plan.response.1,
         factor: &plan.factor.1,
