@@ -1,0 +1,110 @@
+#!/usr/bin/env bash
+# A one-way report on a large CSV file against the cost of reading its bytes
+# and against two general-purpose baselines, all measured in the same run:
+#   (a) cat FILE > /dev/null                       reading the bytes
+#   (b) sheaf build (one-way ANOVA, Tukey-Kramer, `checks: summary`)
+#   (b2) sheaf build with every check (values kept) for comparison
+#   (c) pandas.read_csv + scipy.stats.f_oneway + scipy.stats.tukey_hsd
+#   (d) polars read_csv + group_by aggregation (n, mean, variance)
+# Each is timed as a whole process, best of $REPEAT, with CPU time and peak
+# memory (GNU time). Prints the ratios b/a, c/b and d/b, and F from sheaf and
+# from scipy so that both are seen to compute the same thing.
+# The data are invented: fill weights from 12 filling heads.
+# Usage: bench/large_oneway.sh            (ROWS=20000000 REPEAT=3 by default)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+rows="${ROWS:-20000000}"
+repeat="${REPEAT:-3}"
+cargo build --release -q
+bin="$PWD/target/release/sheaf"
+venv=target/bench-venv
+if ! "$venv/bin/python" -c "import scipy, pandas, polars" 2>/dev/null; then
+  python3 -m venv "$venv"
+  "$venv/bin/pip" install -q scipy pandas polars
+fi
+data="target/bench-data"
+mkdir -p "$data"
+csv="$data/fill-$rows.csv"
+if [ ! -s "$csv" ]; then
+  echo "generating $csv ($rows rows, invented data)"
+  awk -v n="$rows" 'BEGIN { srand(11); print "head,fill_g,shift";
+    for (i = 0; i < n; i++) { h = i % 12;
+      printf "H%02d,%.3f,S%d\n", h, 500 + h * 0.02 + 0.8 * (rand() + rand() + rand() - 1.5), int(i / 1000) % 3 } }' > "$csv.tmp"
+  mv "$csv.tmp" "$csv"
+fi
+name="$(basename "$csv")"
+for checks in summary all; do
+  cat > "$data/report-$checks.md" <<DOC
+# Fill weights by filling head (invented data)
+
+\`\`\`anova
+id: fill
+data: $name
+model: fill_g ~ head
+compare: tukey
+checks: $checks
+\`\`\`
+
+F = {{ fill.f | fixed(4) }}
+DOC
+done
+cat > "$data/pandas_scipy.py" <<'PY'
+import sys
+import pandas as pd
+from scipy.stats import f_oneway, tukey_hsd
+df = pd.read_csv(sys.argv[1])
+groups = [g.to_numpy() for _, g in df.groupby("head", sort=False)["fill_g"]]
+print(f"scipy F = {f_oneway(*groups).statistic:.4f}")
+res = tukey_hsd(*groups)
+print(f"tukey_hsd pairs: {len(groups) * (len(groups) - 1) // 2}, smallest p {res.pvalue.min():.3g}")
+PY
+cat > "$data/polars_agg.py" <<'PY'
+import sys
+import polars as pl
+out = pl.read_csv(sys.argv[1]).group_by("head").agg(
+    pl.len().alias("n"), pl.col("fill_g").mean().alias("mean"), pl.col("fill_g").var().alias("var"))
+print(f"polars levels: {out.height}")
+PY
+
+cat "$csv" > /dev/null # into the page cache for every contender alike
+# best "wall user+sys peakKiB" of $repeat runs of a command; wall time from
+# the nanosecond clock (GNU time rounds to 10 ms, too coarse for cat).
+measure() {
+  local best="" line wall user sys peak start end
+  for _ in $(seq "$repeat"); do
+    start=$(date +%s%N)
+    /usr/bin/time -o "$data/time.out" -f "%U %S %M" "$@" > "$data/last.out" 2>&1
+    end=$(date +%s%N)
+    read -r user sys peak < "$data/time.out"
+    wall=$(awk -v s="$start" -v e="$end" 'BEGIN { printf "%.3f", (e - s) / 1e9 }')
+    line="$wall $(awk -v u="$user" -v s="$sys" 'BEGIN { print u + s }') $peak"
+    if [ -z "$best" ] || awk -v a="$wall" -v b="${best%% *}" 'BEGIN { exit !(a < b) }'; then
+      best="$line"
+    fi
+  done
+  echo "$best"
+}
+a=$(measure sh -c "cat '$csv' > /dev/null")
+b=$(measure "$bin" build "$data/report-summary.md" -o "$data/out-summary")
+sheaf_f=$(grep -o 'F = [0-9.]*' "$data/out-summary/report-summary.html" | head -1)
+b2=$(measure "$bin" build "$data/report-all.md" -o "$data/out-all")
+c=$(measure "$venv/bin/python" "$data/pandas_scipy.py" "$csv")
+scipy_f=$(grep -o 'scipy F = [0-9.]*' "$data/last.out")
+d=$(measure "$venv/bin/python" "$data/polars_agg.py" "$csv")
+
+size=$(stat -c %s "$csv")
+printf '%s: %s rows, %s MB, %s core(s)\n' "$name" "$rows" "$((size / 1000000))" "$(nproc)"
+printf '%-44s %9s %9s %11s\n' "" "wall s" "CPU s" "peak MiB"
+row() {
+  local wall cpu peak
+  read -r wall cpu peak <<< "$2"
+  printf '%-44s %9.3f %9.2f %11.0f\n' "$1" "$wall" "$cpu" "$((peak / 1024))"
+}
+row "(a) cat to /dev/null" "$a"
+row "(b) sheaf build, checks: summary" "$b"
+row "(b2) sheaf build, every check (values kept)" "$b2"
+row "(c) pandas read_csv + f_oneway + tukey_hsd" "$c"
+row "(d) polars read_csv + group_by" "$d"
+ratio() { awk -v x="${1%% *}" -v y="${2%% *}" 'BEGIN { printf "%.2f", x / y }'; }
+echo "b/a = $(ratio "$b" "$a") (target <= 2.5)   c/b = $(ratio "$c" "$b") (target >= 4)   d/b = $(ratio "$d" "$b") (target >= 2.5)"
+echo "sheaf $sheaf_f; $scipy_f"
