@@ -951,8 +951,9 @@ fn plain_cells(
             hits &= hits - 1;
         }
     }
-    for i in bytes.len() - tail..bytes.len() {
-        if bytes[i] == delimiter || bytes[i] == b'\n' {
+    let tail_start = bytes.len() - tail;
+    for (i, &b) in bytes.iter().enumerate().skip(tail_start) {
+        if b == delimiter || b == b'\n' {
             step(i, &mut field, &mut from, &mut g, &mut y, &mut line)?;
         }
     }
