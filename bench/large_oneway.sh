@@ -2,6 +2,7 @@
 # A one-way report on a large CSV file against the cost of reading its bytes
 # and against two general-purpose baselines, all measured in the same run:
 #   (a) cat FILE > /dev/null                       reading the bytes
+#   (a2) sha256sum FILE                            the input hash every build records
 #   (b) sheaf build (one-way ANOVA, Tukey-Kramer, `checks: summary`)
 #   (b2) sheaf build with every check (values kept) for comparison
 #   (c) pandas.read_csv + scipy.stats.f_oneway + scipy.stats.tukey_hsd
@@ -85,6 +86,7 @@ measure() {
   echo "$best"
 }
 a=$(measure sh -c "cat '$csv' > /dev/null")
+a2=$(measure sha256sum "$csv")
 b=$(measure "$bin" build "$data/report-summary.md" -o "$data/out-summary")
 sheaf_f=$(grep -o 'F = [0-9.]*' "$data/out-summary/report-summary.html" | head -1)
 b2=$(measure "$bin" build "$data/report-all.md" -o "$data/out-all")
@@ -101,6 +103,7 @@ row() {
   printf '%-44s %9.3f %9.2f %11.0f\n' "$1" "$wall" "$cpu" "$((peak / 1024))"
 }
 row "(a) cat to /dev/null" "$a"
+row "(a2) sha256sum" "$a2"
 row "(b) sheaf build, checks: summary" "$b"
 row "(b2) sheaf build, every check (values kept)" "$b2"
 row "(c) pandas read_csv + f_oneway + tukey_hsd" "$c"
