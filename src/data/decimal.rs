@@ -190,6 +190,11 @@ pub fn plain_parts(text: &str, comma: bool) -> Option<(i64, u32)> {
     Some((if negative { -digits } else { digits }, scale))
 }
 
+/// 10^scale as an exact f64, for scale ≤ 22.
+pub fn exact_power(scale: u32) -> Option<f64> {
+    EXACT_POWERS.get(scale as usize).copied()
+}
+
 /// (a − b) / 10^scale in 64-bit integers, correctly rounded, when the
 /// difference is exact in f64 and 10^scale is too; the same bits as
 /// [`Decimal::minus`].

@@ -14,7 +14,7 @@
 //! shares, so both paths read a row the same way.
 
 use super::csv::{CsvError, RecordParser, count_lines, utf8_text};
-use super::decimal::{Number, parse_number, plain_difference, plain_parts};
+use super::decimal::{Number, exact_power, parse_number, plain_difference, plain_parts};
 use super::{CsvFormat, DataError, Exclusion, Filter, Header, quote_list};
 use crate::stats::oneway::GroupSummary;
 use sha2::{Digest, Sha256};
@@ -568,8 +568,14 @@ struct RowAccumulator<'p> {
     /// Per level, its first 8 bytes and its length.
     keys: Vec<(u64, usize)>,
     names: Vec<String>,
+    /// Per level: kept values (every value when values are kept, else
+    /// only those outside the exact sums).
     offsets: Vec<Vec<f64>>,
     lines: Vec<Vec<usize>>,
+    /// Per level: exact sums of the values in the origin's decimals.
+    sums: Vec<ExactSums>,
+    /// Per level: values that could not enter the exact sums.
+    inexact: Vec<usize>,
     origin: Option<(Number, f64)>,
     /// The origin's digits and scale when they fit in 64 bits.
     plain_origin: Option<(i64, u32)>,
@@ -595,6 +601,8 @@ impl<'p> RowAccumulator<'p> {
             names: Vec::new(),
             offsets: Vec::new(),
             lines: Vec::new(),
+            sums: Vec::new(),
+            inexact: Vec::new(),
             origin: plan.origin,
             plain_origin: plan.origin.and_then(|o| plain_of(o.0)),
             decimals: 0,
@@ -638,6 +646,8 @@ impl<'p> RowAccumulator<'p> {
         self.names.push(name.to_string());
         self.offsets.push(Vec::new());
         self.lines.push(Vec::new());
+        self.sums.push(ExactSums::default());
+        self.inexact.push(0);
         i
     }
 
@@ -713,6 +723,21 @@ impl<'p> RowAccumulator<'p> {
                         scale,
                     }));
                 }
+                // The usual case: as many decimals as the origin, close to it.
+                if let Some((o, os)) = self.plain_origin
+                    && os == scale
+                    && scale <= ExactSums::MAX_SCALE
+                    && let Some(d) = digits.checked_sub(o)
+                    && d.unsigned_abs() < ExactSums::MAX_UNITS
+                {
+                    self.sums[level].add(d, scale);
+                    if plan.keep_values {
+                        let offset = plain_difference(digits, o, scale).unwrap_or(f64::NAN);
+                        self.offsets[level].push(offset);
+                        self.lines[level].push(line);
+                    }
+                    return Ok(());
+                }
                 match self.plain_origin {
                     Some((o, os)) if os == scale => plain_difference(digits, o, scale),
                     _ => None,
@@ -734,6 +759,7 @@ impl<'p> RowAccumulator<'p> {
                 self.offset(number)
             }
         };
+        self.inexact[level] += 1;
         self.offsets[level].push(offset);
         if plan.keep_values {
             self.lines[level].push(line);
@@ -754,12 +780,18 @@ impl<'p> RowAccumulator<'p> {
     }
 
     fn finish(self) -> ChunkResult {
-        let summaries = self
-            .offsets
-            .iter()
-            .map(|v| GroupSummary::from_values(v))
-            .collect();
         let keep = self.plan.keep_values;
+        let summaries = (0..self.names.len())
+            .map(|l| {
+                let exact = self.sums[l].summary();
+                match (self.inexact[l], keep) {
+                    (0, _) => exact,
+                    // Every value is at hand: summarise them together.
+                    (_, true) => GroupSummary::from_values(&self.offsets[l]),
+                    (_, false) => exact.merge(&GroupSummary::from_values(&self.offsets[l])),
+                }
+            })
+            .collect();
         ChunkResult {
             names: self.names,
             summaries,
@@ -771,6 +803,88 @@ impl<'p> RowAccumulator<'p> {
             exclude_hits: self.exclude_hits,
             last_line: self.last_line,
             end_line: 0,
+        }
+    }
+}
+
+/// Σd and Σd² of values d in units of the origin's last decimal, in exact
+/// integers: the level's mean and sum of squares then come from one exact
+/// expression, n·Σd² − (Σd)², rounded once, with no cancellation at all.
+/// Every 2^20 values the sums are folded into `spilled` (Chan et al.'s
+/// merge), which bounds the integers well inside 128 bits.
+#[derive(Debug, Clone, Copy, Default)]
+struct ExactSums {
+    n: u64,
+    sum: i128,
+    squares: i128,
+    spilled: Option<GroupSummary>,
+    /// The values' decimals (the origin's).
+    scale: u32,
+}
+
+impl ExactSums {
+    /// |d| below 2^40 units, at most 2^20 of them: Σd² < 2^100 and
+    /// n·Σd² < 2^120, (Σd)² < 2^120.
+    const MAX_UNITS: u64 = 1 << 40;
+    const FOLD_AT: u64 = 1 << 20;
+    /// 10^(2·scale) must be exact in f64.
+    const MAX_SCALE: u32 = 11;
+
+    fn add(&mut self, d: i64, scale: u32) {
+        self.scale = scale;
+        let d = i128::from(d);
+        self.n += 1;
+        self.sum += d;
+        self.squares += d * d;
+        if self.n == Self::FOLD_AT {
+            self.fold();
+        }
+    }
+
+    fn fold(&mut self) {
+        let part = self.exact_part(self.scale);
+        self.spilled = Some(match self.spilled {
+            Some(s) => s.merge(&part),
+            None => part,
+        });
+        self.n = 0;
+        self.sum = 0;
+        self.squares = 0;
+    }
+
+    fn exact_part(&self, scale: u32) -> GroupSummary {
+        if self.n == 0 {
+            return GroupSummary {
+                n: 0,
+                mean: f64::NAN,
+                ss: f64::NAN,
+            };
+        }
+        let unit = exact_power(scale).unwrap_or(f64::NAN);
+        let n = self.n as f64;
+        let centred = i128::from(self.n) * self.squares - self.sum * self.sum;
+        // One division when the divisor is an exact integer in f64, so the
+        // result is correctly rounded; else two.
+        let divide = |top: i128, by: f64| {
+            if n * by < 9_007_199_254_740_992.0 {
+                top as f64 / (n * by)
+            } else {
+                top as f64 / n / by
+            }
+        };
+        GroupSummary {
+            n: self.n as usize,
+            mean: divide(self.sum, unit),
+            ss: divide(centred, unit * unit),
+        }
+    }
+
+    /// The summary of every value added, as offsets.
+    fn summary(&self) -> GroupSummary {
+        let rest = self.exact_part(self.scale);
+        match self.spilled {
+            Some(spilled) => spilled.merge(&rest),
+            None => rest,
         }
     }
 }

@@ -98,3 +98,40 @@ fn royston_coefficients_against_the_published_table() {
         }
     }
 }
+
+#[test]
+fn selection_gives_the_sorted_order_statistics() {
+    // Reference: a full sort of the same values (common practice: the
+    // k-th order statistic is the k-th value after sorting).
+    let mut state = 0x2545_f491_4f6c_dd1du64;
+    for n in [1usize, 2, 3, 4, 5, 8, 33, 100] {
+        let values: Vec<f64> = (0..n)
+            .map(|_| {
+                state ^= state << 13;
+                state ^= state >> 7;
+                state ^= state << 17;
+                (state % 17) as f64 - 8.0
+            })
+            .collect();
+        let mut sorted = values.clone();
+        sorted.sort_by(f64::total_cmp);
+        let type7 = |q: f64| {
+            let h = (n - 1) as f64 * q;
+            let lo = h.floor() as usize;
+            let hi = (lo + 1).min(n - 1);
+            sorted[lo] + (h - lo as f64) * (sorted[hi] - sorted[lo])
+        };
+        assert_eq!(
+            quartiles(&values),
+            (type7(0.25), type7(0.5), type7(0.75)),
+            "n = {n}"
+        );
+        let m = n / 2;
+        let expected = if n % 2 == 1 {
+            sorted[m]
+        } else {
+            0.5 * (sorted[m - 1] + sorted[m])
+        };
+        assert_eq!(median(&values), expected, "n = {n}");
+    }
+}
