@@ -9,7 +9,7 @@
 use super::chi_scale::chi_scale_expectation;
 use super::dist::{normal_cdf, normal_sf, t_isf};
 use super::quadrature::gauss_legendre_16;
-use super::roots::brent;
+use super::roots::{brent, brent_known};
 
 const HALF_LN_2PI: f64 = 0.918_938_533_204_672_8;
 /// Beyond this the normal density is below 1e-17: nothing left to integrate.
@@ -82,12 +82,45 @@ pub fn ptukey_sf(q: f64, k: usize, df: f64) -> f64 {
 
 /// The upper-α critical value q_{1−α; k, ν}.
 pub fn qtukey_isf(alpha: f64, k: usize, df: f64) -> f64 {
+    qtukey_isf_near(alpha, k, df, None)
+}
+
+/// [`qtukey_isf`] starting from a nearby value (the critical value at a
+/// neighbouring ν, as for Games-Howell's pairs): a bracket of ±0.1% around
+/// it, widened as needed, costs about half the evaluations of a cold search.
+/// The root is found to 1e-11 relative either way.
+pub fn qtukey_isf_near(alpha: f64, k: usize, df: f64, guess: Option<f64>) -> f64 {
     if !(alpha > 0.0 && alpha < 1.0) || k < 2 || df.is_nan() || df < 1.0 {
         return f64::NAN;
     }
-    // For k = 2 the range is √2·|t|, and q grows with k: a safe lower bracket.
-    let mut lo = (std::f64::consts::SQRT_2 * t_isf(alpha / 2.0, df)).min(1.0);
-    if ptukey_sf(lo, k, df) < alpha {
+    let f = |q: f64| ptukey_sf(q, k, df) - alpha;
+    // Bounds: for k = 2 the range is √2·|t|, and q grows with k; Bonferroni
+    // over the k(k − 1)/2 pairs bounds it above.
+    let pairs = (k * (k - 1)) as f64;
+    let (floor, ceiling) = (
+        std::f64::consts::SQRT_2 * t_isf(alpha / 2.0, df),
+        std::f64::consts::SQRT_2 * t_isf(alpha / pairs, df),
+    );
+    if let Some(g) = guess.filter(|g| g.is_finite() && *g > floor && *g < ceiling) {
+        let mut width = 1e-3 * g;
+        for _ in 0..3 {
+            let (a, b) = ((g - width).max(floor), (g + width).min(ceiling));
+            let (fa, fb) = (f(a), f(b));
+            if fa.signum() != fb.signum() {
+                return brent_known(f, (a, fa), (b, fb), 0.0, 1e-11);
+            }
+            width *= 16.0;
+        }
+    }
+    if floor.is_finite() && ceiling.is_finite() && k > 2 {
+        let (fa, fb) = (f(floor), f(ceiling));
+        if fa > 0.0 && fb < 0.0 {
+            return brent_known(f, (floor, fa), (ceiling, fb), 0.0, 1e-11);
+        }
+    }
+    // A plain search from below (k = 2, or bounds lost to rounding).
+    let mut lo = floor.min(1.0);
+    if !(ptukey_sf(lo, k, df) >= alpha) {
         lo = 1e-3;
     }
     let mut hi = lo.max(1.0) * 2.0;
@@ -95,7 +128,7 @@ pub fn qtukey_isf(alpha: f64, k: usize, df: f64) -> f64 {
         lo = hi;
         hi *= 1.6;
     }
-    brent(|q| ptukey_sf(q, k, df) - alpha, lo, hi, 0.0, 1e-11)
+    brent(f, lo, hi, 0.0, 1e-11)
 }
 
 #[cfg(test)]

@@ -5,8 +5,21 @@
 /// Finds x in [a, b] with f(x) = 0, given f(a) and f(b) of opposite signs.
 /// Stops when the bracket is narrower than `tol_abs + tol_rel·|x|`.
 pub fn brent(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tol_abs: f64, tol_rel: f64) -> f64 {
+    let (fa, fb) = (f(a), f(b));
+    brent_known(f, (a, fa), (b, fb), tol_abs, tol_rel)
+}
+
+/// [`brent`] when f(a) and f(b) are already known (a caller that searched
+/// for the bracket), saving two evaluations of an expensive f.
+pub fn brent_known(
+    mut f: impl FnMut(f64) -> f64,
+    (a, fa): (f64, f64),
+    (b, fb): (f64, f64),
+    tol_abs: f64,
+    tol_rel: f64,
+) -> f64 {
     let (mut a, mut b) = (a, b);
-    let (mut fa, mut fb) = (f(a), f(b));
+    let (mut fa, mut fb) = (fa, fb);
     if fa == 0.0 {
         return a;
     }

@@ -5,7 +5,7 @@
 use super::compare::{Method, Pair, Pairwise};
 use super::dist::f_sf;
 use super::oneway::GroupSummary;
-use super::ptukey::{ptukey_sf, qtukey_isf};
+use super::ptukey::{ptukey_sf, qtukey_isf_near};
 use super::sum::neumaier;
 
 /// Welch's F* with its (fractional) degrees of freedom.
@@ -67,22 +67,18 @@ pub fn games_howell(groups: &[GroupSummary], alpha: f64) -> Pairwise {
             let df =
                 (va + vb).powi(2) / (va * va / (ga.n as f64 - 1.0) + vb * vb / (gb.n as f64 - 1.0));
             let t = diff / se;
-            let (p, half) = if se > 0.0 && df.is_finite() {
-                let q = std::f64::consts::SQRT_2 * t.abs();
-                (
-                    ptukey_sf(q, k, df),
-                    qtukey_isf(alpha, k, df) / std::f64::consts::SQRT_2 * se,
-                )
+            let p = if se > 0.0 && df.is_finite() {
+                ptukey_sf(std::f64::consts::SQRT_2 * t.abs(), k, df)
             } else {
-                (f64::NAN, f64::NAN)
+                f64::NAN
             };
             pairs.push(Pair {
                 a,
                 b,
                 diff,
                 se,
-                lower: diff - half,
-                upper: diff + half,
+                lower: f64::NAN,
+                upper: f64::NAN,
                 statistic: t,
                 p_raw: p,
                 p_adj: p,
@@ -90,6 +86,28 @@ pub fn games_howell(groups: &[GroupSummary], alpha: f64) -> Pairwise {
                 df: Some(df),
             });
         }
+    }
+    // Each pair has its own ν and so its own critical value. Taken in order
+    // of ν, each search starts from the previous answer (a fixed order, so
+    // the digits do not depend on anything but the data).
+    let mut order: Vec<usize> = (0..pairs.len())
+        .filter(|&i| pairs[i].se > 0.0 && pairs[i].df.is_some_and(f64::is_finite))
+        .collect();
+    order.sort_by(|&x, &y| {
+        let (dx, dy) = (pairs[x].df.unwrap_or(0.0), pairs[y].df.unwrap_or(0.0));
+        dx.total_cmp(&dy).then(x.cmp(&y))
+    });
+    let mut previous: Option<(f64, f64)> = None;
+    for i in order {
+        let df = pairs[i].df.unwrap_or(f64::NAN);
+        let q = match previous {
+            Some((d, q)) if d == df => q,
+            _ => qtukey_isf_near(alpha, k, df, previous.map(|p| p.1)),
+        };
+        previous = Some((df, q));
+        let half = q / std::f64::consts::SQRT_2 * pairs[i].se;
+        pairs[i].lower = pairs[i].diff - half;
+        pairs[i].upper = pairs[i].diff + half;
     }
     Pairwise {
         method: Method::GamesHowell,
