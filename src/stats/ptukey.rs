@@ -120,7 +120,7 @@ pub fn qtukey_isf_near(alpha: f64, k: usize, df: f64, guess: Option<f64>) -> f64
     }
     // A plain search from below (k = 2, or bounds lost to rounding).
     let mut lo = floor.min(1.0);
-    if !(ptukey_sf(lo, k, df) >= alpha) {
+    if ptukey_sf(lo, k, df) < alpha || lo.is_nan() {
         lo = 1e-3;
     }
     let mut hi = lo.max(1.0) * 2.0;
