@@ -41,6 +41,56 @@ pub fn csv(data: &[u8]) {
     }
 }
 
+/// The chunked reader against the whole-table reader (differential): on
+/// tiny chunks, from memory with two threads and from a stream with one,
+/// it must accept exactly what the table reader accepts and find the same
+/// levels, values (bit for bit), lines and exclusions. Panics on a mismatch,
+/// which is what the fuzzer looks for.
+pub fn scan(data: &[u8]) {
+    use crate::data::scan::{ScanSpec, Source, scan_one_factor};
+    let format = crate::data::CsvFormat::default();
+    let whole = crate::data::Table::parse(data, &format)
+        .ok()
+        .and_then(|table| {
+            let (y, g) = (table.header.first()?.clone(), table.header.get(1)?.clone());
+            let result = crate::data::factor_response(&table, &y, &g, &format);
+            Some((y, g, result))
+        });
+    let Some((y, g, whole)) = whole else {
+        return;
+    };
+    let spec = ScanSpec {
+        response: &y,
+        factor: &g,
+        format: &format,
+        filters: &[],
+        exclude: &[],
+        keep_values: true,
+    };
+    let runs = [
+        scan_one_factor(Source::Memory(data), &spec, 7, 2),
+        scan_one_factor(Source::Stream(Box::new(data)), &spec, 5, 1),
+    ];
+    for chunked in runs {
+        match (&whole, chunked) {
+            (Ok(w), Ok(c)) => {
+                assert_eq!(w.levels.len(), c.levels.len(), "levels");
+                for (wl, cl) in w.levels.iter().zip(&c.levels) {
+                    assert_eq!(wl.name, cl.name, "level name");
+                    assert_eq!(wl.lines, cl.lines, "lines");
+                    let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+                    assert_eq!(bits(&wl.offsets), bits(&cl.offsets), "offsets");
+                    assert_eq!(wl.offsets.len(), cl.summary.n, "n");
+                }
+                assert_eq!(w.excluded, c.excluded, "exclusions");
+                assert_eq!(w.decimals, c.decimals, "decimals");
+            }
+            (Err(_), Err(_)) => {}
+            (w, c) => panic!("whole-table and chunked readers disagree: {w:?} vs {c:?}"),
+        }
+    }
+}
+
 struct Fixed;
 
 impl World for Fixed {
