@@ -94,8 +94,8 @@ pub struct AnovaResult {
     pub caption: Option<String>,
     pub order: Order,
     pub show: crate::doc::block::Show,
-    /// The observations per level (absolute values), for figures; empty for
-    /// summary input.
+    /// The observations per level (absolute values), for figures; empty
+    /// when the block draws none, and for summary input.
     pub observations: Vec<Vec<f64>>,
     /// Data lines of the observations, parallel to `observations`.
     pub observation_lines: Vec<Vec<usize>>,
@@ -955,6 +955,18 @@ fn analyse(
         .decimals
         .or(doc.front.decimals)
         .unwrap_or((data_decimals + 1).min(6));
+    // Only figures read the observations; without them the result (and the
+    // cache entry) stays small whatever the number of rows.
+    let (observations, observation_lines) = match raw {
+        Some((offsets, lines)) if !spec.plots.kinds.is_empty() => (
+            offsets
+                .into_iter()
+                .map(|g| g.into_iter().map(|y| origin + y).collect())
+                .collect(),
+            lines,
+        ),
+        _ => (Vec::new(), Vec::new()),
+    };
     Ok(AnovaResult {
         method: spec.method,
         checks,
@@ -978,19 +990,8 @@ fn analyse(
         caption: spec.caption.clone(),
         order: spec.order,
         show: spec.show,
-        observations: raw
-            .as_ref()
-            .map(|(offsets, _)| {
-                offsets
-                    .iter()
-                    .map(|g| g.iter().map(|y| origin + y).collect())
-                    .collect()
-            })
-            .unwrap_or_default(),
-        observation_lines: raw
-            .as_ref()
-            .map(|(_, lines)| lines.clone())
-            .unwrap_or_default(),
+        observations,
+        observation_lines,
         plots: spec.plots.clone(),
     })
 }
