@@ -130,6 +130,23 @@ fn ss_name(t: SsType) -> &'static str {
 }
 
 /// Every combination of the given factors' levels, first factor slowest.
+/// The distinct rows of level indices (full cells) in order of first
+/// appearance, and each observation's cell.
+fn full_cells(rows: &[Vec<usize>]) -> (Vec<usize>, Vec<Vec<usize>>) {
+    let mut index: std::collections::HashMap<&[usize], usize> = std::collections::HashMap::new();
+    let mut cells: Vec<Vec<usize>> = Vec::new();
+    let cell_of = rows
+        .iter()
+        .map(|r| {
+            *index.entry(r.as_slice()).or_insert_with(|| {
+                cells.push(r.clone());
+                cells.len() - 1
+            })
+        })
+        .collect();
+    (cell_of, cells)
+}
+
 fn combinations(factors: &[usize], levels: &[usize]) -> Vec<Vec<usize>> {
     let mut out = vec![Vec::new()];
     for &f in factors {
@@ -236,9 +253,12 @@ pub fn run_factorial(
         ));
     }
     let n = data.offsets.len();
+    // Observations that share every factor's level share their design row:
+    // the fit works on these full cells, each weighted by √n (see below).
+    let (cell_of, full_cells) = full_cells(&data.rows);
     let layout = Layout {
         levels: levels.clone(),
-        rows: data.rows.clone(),
+        rows: full_cells.clone(),
     };
     let alpha = spec.alpha.unwrap_or(doc.front.alpha);
     let mut warnings = Vec::new();
@@ -280,9 +300,35 @@ pub fn run_factorial(
             "drop high-order interactions (write the terms with `+` and `:`), or merge rare levels",
         ));
     }
-    let design = design_matrix(&layout, &terms);
+    // XᵀX and Xᵀy depend on the data only through each full cell's n and
+    // mean, so the least squares run on one row per cell, √n·x and √n·ȳ: the
+    // same R, coefficients and Type I effects as one row per observation,
+    // and every residual sum of squares less the within-cell sum, which is
+    // added back. Memory and time follow the number of cells, not of rows.
+    let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); full_cells.len()];
+    for (&c, &y) in cell_of.iter().zip(&data.offsets) {
+        by_cell[c].push(y);
+    }
+    let cell_summaries: Vec<GroupSummary> = by_cell
+        .iter()
+        .map(|v| GroupSummary::from_values(v))
+        .collect();
+    drop(by_cell);
+    let within_cells = neumaier(cell_summaries.iter().map(|c| c.ss));
+    let unweighted = design_matrix(&layout, &terms);
+    let weights: Vec<f64> = cell_summaries.iter().map(|c| (c.n as f64).sqrt()).collect();
+    let design: Vec<Vec<f64>> = unweighted
+        .iter()
+        .map(|col| col.iter().zip(&weights).map(|(x, w)| x * w).collect())
+        .collect();
+    let cell_y: Vec<f64> = cell_summaries
+        .iter()
+        .zip(&weights)
+        .map(|(c, w)| c.mean * w)
+        .collect();
     let ranges = term_columns(&terms, &levels);
-    let full = fit(&design, &data.offsets);
+    let mut full = fit(&design, &cell_y);
+    full.rss += within_cells;
     let residual_df = n - full.rank;
     if residual_df == 0 {
         let has_interaction = terms.iter().any(|t| t.len() > 1);
@@ -308,10 +354,11 @@ pub fn run_factorial(
         .into_iter()
         .filter(|t| !(rank_deficient && *t == SsType::III))
         .map(|t| {
-            (
-                t,
-                sums_of_squares(&design, &data.offsets, &terms, &ranges, t),
-            )
+            (t, {
+                let mut table = sums_of_squares(&design, &cell_y, &terms, &ranges, t);
+                table.rss += within_cells;
+                table
+            })
         })
         .collect();
     let chosen = tables
@@ -411,24 +458,30 @@ pub fn run_factorial(
         .collect();
 
     // Residuals, leverage and checks.
-    let kept_design: Vec<Vec<f64>> = design
+    // Fitted values and leverages are the same for every observation of a
+    // full cell: x'b and x'(XᵀX)⁻¹x with the cell's unweighted design row.
+    let kept_design: Vec<&Vec<f64>> = unweighted
         .iter()
         .zip(&full.kept)
         .filter(|(_, k)| **k)
-        .map(|(c, _)| c.clone())
+        .map(|(c, _)| c)
         .collect();
     let b = full.coefficients();
     let cov = full.unscaled_covariance();
-    let row_of = |i: usize| -> Vec<f64> { kept_design.iter().map(|c| c[i]).collect() };
-    let residuals: Vec<f64> = (0..n)
-        .map(|i| data.offsets[i] - neumaier(row_of(i).iter().zip(&b).map(|(x, b)| x * b)))
+    let row_of = |c: usize| -> Vec<f64> { kept_design.iter().map(|col| col[c]).collect() };
+    let cell_fitted: Vec<f64> = (0..full_cells.len())
+        .map(|c| neumaier(row_of(c).iter().zip(&b).map(|(x, b)| x * b)))
         .collect();
-    let leverage: Vec<f64> = (0..n)
-        .map(|i| {
-            let x = row_of(i);
-            neumaier((0..x.len()).map(|a| x[a] * neumaier((0..x.len()).map(|c| cov[a][c] * x[c]))))
+    let cell_leverage: Vec<f64> = (0..full_cells.len())
+        .map(|c| {
+            let x = row_of(c);
+            neumaier((0..x.len()).map(|a| x[a] * neumaier((0..x.len()).map(|j| cov[a][j] * x[j]))))
         })
         .collect();
+    let residuals: Vec<f64> = (0..n)
+        .map(|i| data.offsets[i] - cell_fitted[cell_of[i]])
+        .collect();
+    let leverage: Vec<f64> = cell_of.iter().map(|&c| cell_leverage[c]).collect();
     // Variance checks on the residuals grouped by treatment cell: within a
     // cell of the full model these are the observations less a constant.
     let cell_groups: Vec<Vec<f64>> = cells
