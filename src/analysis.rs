@@ -265,15 +265,19 @@ pub enum Data<'a> {
     },
 }
 
+/// Whether a block reads raw observations from a CSV file in long layout,
+/// which the chunked reader (`data::scan`) handles.
+pub(crate) fn reads_csv_rows(spec: &AnovaSpec) -> bool {
+    spec.summary.is_none()
+        && spec.rows.wide.is_none()
+        && !crate::data::spreadsheet::is_spreadsheet(&spec.data.value)
+}
+
 /// Whether a block can read its data file as a stream: a one-factor model
 /// on raw observations in a CSV file, in long layout.
 pub fn streams(spec: &AnovaSpec) -> bool {
     let model = &spec.model.value;
-    model.terms.len() == 1
-        && model.terms[0].factors.len() == 1
-        && spec.summary.is_none()
-        && spec.rows.wide.is_none()
-        && !crate::data::spreadsheet::is_spreadsheet(&spec.data.value)
+    model.terms.len() == 1 && model.terms[0].factors.len() == 1 && reads_csv_rows(spec)
 }
 
 /// Whether a one-factor block needs every value (checks on residuals,
@@ -285,7 +289,7 @@ fn keeps_values(spec: &AnovaSpec) -> bool {
 }
 
 /// Worker threads for reading large files; the results never depend on it.
-fn reader_threads() -> usize {
+pub(crate) fn reader_threads() -> usize {
     std::thread::available_parallelism().map_or(1, |n| n.get().min(8))
 }
 
@@ -375,7 +379,7 @@ pub fn run_anova(
         (None, data) => {
             let scan_spec = ScanSpec {
                 response: &response,
-                factor: &factor,
+                factors: &[factor.as_str()],
                 format: &spec.csv,
                 filters: &spec.rows.filters,
                 exclude: &spec.rows.exclude,
@@ -411,8 +415,8 @@ pub fn run_anova(
                 }
                 Data::Loaded(input) => {
                     let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
-                    let scanned =
-                        scan_table(&table, &response, &factor, &spec.csv).map_err(fail)?;
+                    let scanned = scan_table(&table, &response, &[factor.as_str()], &spec.csv)
+                        .map_err(fail)?;
                     (scanned, ruled_out)
                 }
             };

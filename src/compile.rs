@@ -2,7 +2,7 @@
 //! Nothing is written here; `output` writes the finished files.
 
 use crate::analysis::factorial::run_factorial;
-use crate::analysis::{BlockResult, Data, Input, run_anova, run_power, streams};
+use crate::analysis::{BlockResult, Data, Input, reads_csv_rows, run_anova, run_power, streams};
 use crate::diag::Diagnostic;
 use crate::doc::{BlockSpec, parse_document};
 use crate::figure::{ImageFormat, draw_all, png};
@@ -311,11 +311,11 @@ pub fn compile(
                 world.display(path)
             ))
         };
-        // A large one-factor CSV file is read once, in chunks, as it is
+        // A large CSV file in long layout is read once, in chunks, as it is
         // hashed. Its block is not cached: the cache key needs the hash,
         // which costs the same pass.
         if let BlockSpec::Anova(spec) = &block.spec
-            && streams(spec)
+            && reads_csv_rows(spec)
             && !inputs
                 .iter()
                 .any(|i| i.path == spec.data.value && i.bytes.is_some())
@@ -332,19 +332,21 @@ pub fn compile(
                     block.id,
                     block.line
                 ));
-                let (result, input) = run_anova(
-                    &doc,
-                    block,
-                    spec,
-                    Data::Stream { path, reader },
-                    &world.display(path),
-                )?;
+                let data = Data::Stream { path, reader };
+                let display = world.display(path);
+                let (result, input) = if streams(spec) {
+                    let (r, i) = run_anova(&doc, block, spec, data, &display)?;
+                    (BlockResult::Anova(Box::new(r)), i)
+                } else {
+                    let (r, i) = run_factorial(&doc, block, spec, data, &display)?;
+                    (BlockResult::Factorial(Box::new(r)), i)
+                };
                 if let Some(input) = input
                     && !inputs.iter().any(|i| i.path == input.path)
                 {
                     inputs.push(input);
                 }
-                results.push(BlockResult::Anova(Box::new(result)));
+                results.push(result);
                 recomputed += 1;
                 continue;
             }
@@ -405,13 +407,16 @@ pub fn compile(
                     .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
                 let model = &spec.model.value;
                 if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
-                    BlockResult::Factorial(Box::new(run_factorial(
-                        &doc,
-                        block,
-                        spec,
-                        input,
-                        &world.display(path),
-                    )?))
+                    BlockResult::Factorial(Box::new(
+                        run_factorial(
+                            &doc,
+                            block,
+                            spec,
+                            Data::Loaded(input),
+                            &world.display(path),
+                        )?
+                        .0,
+                    ))
                 } else {
                     BlockResult::Anova(Box::new(
                         run_anova(&doc, block, spec, Data::Loaded(input), &world.display(path))?.0,

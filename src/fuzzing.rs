@@ -61,7 +61,7 @@ pub fn scan(data: &[u8]) {
     };
     let spec = ScanSpec {
         response: &y,
-        factor: &g,
+        factors: &[g.as_str()],
         format: &format,
         filters: &[],
         exclude: &[],

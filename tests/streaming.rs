@@ -119,3 +119,13 @@ fn errors_deep_in_a_streamed_file_name_their_line() {
         "{err}"
     );
 }
+
+#[test]
+fn a_streamed_factorial_equals_a_whole_file_one() {
+    let data = logged(20_000);
+    let doc = "# Invented readings\n\n```anova\nid: f\ndata: log.csv\nmodel: reading ~ station + batch\nss: 2\ncompare: none\n```\n";
+    let whole = build(doc, vec![("log.csv", data.clone())], false).expect("whole");
+    let streamed = build(doc, vec![("log.csv", data)], true).expect("streamed");
+    assert_eq!(whole.results, streamed.results);
+    assert_eq!(whole.report, streamed.report);
+}

@@ -2,8 +2,9 @@
 //! categorical factors, fitted by QR, with Type I/II/III sums of squares,
 //! comparisons on estimated marginal means, simple effects and cell means.
 
-use super::{Checks, ComparisonResult, Input, OutlierRow, data_error, summary_checks};
-use crate::data::factorial_response;
+use super::{Checks, ComparisonResult, Data, Input, OutlierRow, data_error, summary_checks};
+use crate::data::scan::{CHUNK_BYTES, ScanSpec, Source, scan_one_factor};
+use crate::data::{factorial_from_scan, factorial_response};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
 use crate::doc::{Block, Document};
@@ -163,9 +164,10 @@ pub fn run_factorial(
     doc: &Document,
     block: &Block,
     spec: &AnovaSpec,
-    input: &Input,
+    data: Data<'_>,
     display_path: &str,
-) -> Result<FactorialResult, Diagnostic> {
+) -> Result<(FactorialResult, Option<Input>), Diagnostic> {
+    let source_data = data;
     let formula = &spec.model.value;
     let model_err = |msg: String, hint: &str| {
         doc.error_at(spec.model.line, Some(spec.model.column), msg)
@@ -233,11 +235,52 @@ pub fn run_factorial(
         .collect();
     let term_names: Vec<String> = formula.terms.iter().map(|t| t.to_string()).collect();
 
-    let (table, ruled_out) = super::read_rows(doc, block, spec, input, display_path)?;
     let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();
-    let mut data = factorial_response(&table, &formula.response, &names, &spec.csv)
-        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
-    data.excluded.extend(ruled_out);
+    let fail = |e| data_error(doc, block, spec.data.line, display_path, e);
+    let mut streamed = None;
+    let mut data = match source_data {
+        // CSV in long layout: the chunked reader, keeping one number and one
+        // line per observation instead of a table of strings.
+        Data::Stream { .. } | Data::Loaded(_) if super::reads_csv_rows(spec) => {
+            let scan_spec = ScanSpec {
+                response: &formula.response,
+                factors: &names,
+                format: &spec.csv,
+                filters: &spec.rows.filters,
+                exclude: &spec.rows.exclude,
+                keep_values: true,
+            };
+            let source = match source_data {
+                Data::Stream { reader, .. } => Source::Stream(reader),
+                Data::Loaded(input) => Source::Memory(input.bytes.as_deref().unwrap_or_default()),
+            };
+            let scanned = scan_one_factor(source, &scan_spec, CHUNK_BYTES, super::reader_threads())
+                .map_err(fail)?;
+            if let Some(sha256) = &scanned.sha256 {
+                streamed = Some(Input {
+                    path: spec.data.value.clone(),
+                    sha256: sha256.clone(),
+                    size: scanned.bytes,
+                    bytes: None,
+                });
+            }
+            factorial_from_scan(scanned, names.len())
+        }
+        Data::Loaded(input) => {
+            let (table, ruled_out) = super::read_rows(doc, block, spec, input, display_path)?;
+            let mut data =
+                factorial_response(&table, &formula.response, &names, &spec.csv).map_err(fail)?;
+            data.excluded.extend(ruled_out);
+            data
+        }
+        Data::Stream { .. } => {
+            return Err(doc.error_at(
+                block.line,
+                None,
+                "internal error: a table layout reached the streaming reader",
+            ));
+        }
+    };
     data.excluded.sort_by_key(|e| e.line);
     for lv in data.levels.iter_mut() {
         super::apply_labels(lv, &spec.labels);
@@ -416,7 +459,7 @@ pub fn run_factorial(
             ss_name(ss_type)
         ));
     }
-    warnings.extend(super::exclusion_notes(&data.excluded, &input.path));
+    warnings.extend(super::exclusion_notes(&data.excluded, &spec.data.value));
     if !empty.is_empty() {
         warnings.push(format!(
             "{} combination(s) of levels have no observations ({}); {}",
@@ -806,10 +849,10 @@ pub fn run_factorial(
         .decimals
         .or(doc.front.decimals)
         .unwrap_or((data.decimals + 1).min(6));
-    Ok(FactorialResult {
+    let result = FactorialResult {
         id: block.id.clone(),
         line: block.line,
-        data: input.path.clone(),
+        data: spec.data.value.clone(),
         response: formula.response.clone(),
         factors: factor_names,
         levels: data.levels,
@@ -844,7 +887,8 @@ pub fn run_factorial(
         rows: data.rows.clone(),
         lines: data.lines.clone(),
         plots: spec.plots.clone(),
-    })
+    };
+    Ok((result, streamed))
 }
 
 /// Plain-language advice for factorial designs, where Welch and rank methods

@@ -254,7 +254,7 @@ pub fn factor_response(
     factor: &str,
     format: &CsvFormat,
 ) -> Result<FactorResponse, DataError> {
-    let scanned = scan::scan_table(table, response, factor, format)?;
+    let scanned = scan::scan_table(table, response, &[factor], format)?;
     Ok(FactorResponse {
         levels: scanned
             .levels
@@ -477,6 +477,58 @@ pub fn factorial_response(
         decimals,
         excluded,
     })
+}
+
+/// Turns a scan over several factors (one level per cell, see
+/// `scan::cell_key`) into one row per observation, in file order. Each
+/// factor's levels come in order of first appearance among the rows with a
+/// response, as `factorial_response` orders them.
+pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialData {
+    let mut cells: Vec<&scan::ScannedLevel> = scanned
+        .levels
+        .iter()
+        .filter(|c| !c.offsets.is_empty())
+        .collect();
+    cells.sort_by_key(|c| c.lines[0]);
+    let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors];
+    let cell_rows: Vec<Vec<usize>> = cells
+        .iter()
+        .map(|c| {
+            scan::cell_levels(&c.name)
+                .into_iter()
+                .zip(levels.iter_mut())
+                .map(
+                    |(name, known)| match known.iter().position(|l| *l == name) {
+                        Some(i) => i,
+                        None => {
+                            known.push(name);
+                            known.len() - 1
+                        }
+                    },
+                )
+                .collect()
+        })
+        .collect();
+    let mut order: Vec<(usize, usize, f64)> = cells
+        .iter()
+        .enumerate()
+        .flat_map(|(k, c)| {
+            c.lines
+                .iter()
+                .zip(&c.offsets)
+                .map(move |(&l, &y)| (l, k, y))
+        })
+        .collect();
+    order.sort_by_key(|o| o.0);
+    FactorialData {
+        levels,
+        rows: order.iter().map(|o| cell_rows[o.1].clone()).collect(),
+        offsets: order.iter().map(|o| o.2).collect(),
+        lines: order.iter().map(|o| o.0).collect(),
+        origin: scanned.origin,
+        decimals: scanned.decimals,
+        excluded: scanned.excluded,
+    }
 }
 
 /// A row condition from `where`: `column op value`.

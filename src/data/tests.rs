@@ -33,3 +33,55 @@ fn decimal_comma() {
     assert_eq!(fr.origin, 4.25);
     assert_eq!(fr.levels[1].offsets[0], -1.75);
 }
+
+#[test]
+fn cell_keys_keep_any_level_text() {
+    let levels = ["3:x", "", "ü:1", "12", "a:b:c"];
+    let key = scan::cell_key(levels.iter().copied());
+    assert_eq!(scan::cell_levels(&key), levels);
+}
+
+#[test]
+fn the_chunked_factorial_reading_matches_the_table_reading() {
+    // Invented: two factors, missing values in each column, quoted levels,
+    // a level first seen on a row whose response is missing.
+    let mut text = String::from("y,a,b\n");
+    for i in 0..300 {
+        let y = if i % 17 == 4 {
+            "NA".to_string()
+        } else {
+            format!("{}.{}", i % 23, i % 7)
+        };
+        let a = if i % 29 == 5 {
+            ""
+        } else {
+            ["a1", "\"a2\"", "a3"][i % 3]
+        };
+        let b = if i == 2 {
+            "late"
+        } else {
+            ["b1", "b2"][(i / 3) % 2]
+        };
+        text.push_str(&format!("{y},{a},{b}\n"));
+    }
+    let format = CsvFormat::default();
+    let table = Table::parse(text.as_bytes(), &format).expect("table");
+    let whole = factorial_response(&table, "y", &["a", "b"], &format).expect("table reading");
+    let spec = scan::ScanSpec {
+        response: "y",
+        factors: &["a", "b"],
+        format: &format,
+        filters: &[],
+        exclude: &[],
+        keep_values: true,
+    };
+    let scanned =
+        scan::scan_one_factor(scan::Source::Memory(text.as_bytes()), &spec, 256, 2).expect("scan");
+    let chunked = factorial_from_scan(scanned, 2);
+    assert_eq!(chunked.levels, whole.levels);
+    assert_eq!(chunked.rows, whole.rows);
+    assert_eq!(chunked.lines, whole.lines);
+    assert_eq!(chunked.offsets, whole.offsets);
+    assert_eq!(chunked.excluded, whole.excluded);
+    assert_eq!(chunked.decimals, whole.decimals);
+}

@@ -36,7 +36,8 @@ pub const CHUNK_BYTES: usize = 4 << 20;
 #[derive(Debug, Clone)]
 pub struct ScanSpec<'a> {
     pub response: &'a str,
-    pub factor: &'a str,
+    /// One factor, or several: then each level is a cell (see `cell_levels`).
+    pub factors: &'a [&'a str],
     pub format: &'a CsvFormat,
     pub filters: &'a [Filter],
     /// Data lines to leave out, each with its reason.
@@ -84,6 +85,8 @@ pub struct Scanned {
 
 /// Reads a one-factor response from CSV bytes. `threads` workers parse
 /// chunks of `chunk_bytes`; neither changes any number in the result.
+pub use rows::{cell_key, cell_levels};
+
 pub fn scan_one_factor(
     source: Source<'_>,
     spec: &ScanSpec<'_>,
@@ -192,16 +195,19 @@ pub fn scan_one_factor(
 pub fn scan_table(
     table: &crate::data::Table,
     response: &str,
-    factor: &str,
+    factors: &[&str],
     format: &CsvFormat,
 ) -> Result<Scanned, DataError> {
     let yi = table.column(response)?;
-    let fi = table.column(factor)?;
+    let columns: Vec<(usize, &str)> = factors
+        .iter()
+        .map(|f| Ok((table.column(f)?, *f)))
+        .collect::<Result<_, DataError>>()?;
     let plan = RowPlan::for_table(
         table.header.len(),
         table.header_line,
         (yi, response),
-        (fi, factor),
+        &columns,
         format,
     );
     let rows = table
@@ -222,9 +228,10 @@ fn scan_rows<'r>(
     }
     let mut merged = Merged::new(true);
     merged.add(Ok(acc.finish()), false)?;
+    let names: Vec<&str> = plan.factors.iter().map(|(_, f)| f.as_str()).collect();
     let spec = ScanSpec {
         response: &plan.response.1,
-        factor: &plan.factor.1,
+        factors: &names,
         format: &plan.format,
         filters: &[],
         exclude: &[],

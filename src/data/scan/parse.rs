@@ -11,7 +11,7 @@ pub(super) fn parse_chunk(job: &Job<'_>, plan: &RowPlan) -> Result<ChunkResult, 
     let end_line;
     let plain = memchr::memchr(b'"', bytes).is_none()
         && memchr::memchr_iter(b'\r', bytes).all(|i| bytes.get(i + 1) == Some(&b'\n'));
-    if plain && plan.filters.is_empty() {
+    if plain && plan.filters.is_empty() && plan.factors.len() == 1 {
         end_line = plain_cells(bytes, text, job.line, plan, &mut acc)?;
     } else if plain {
         let mut fields: Vec<&str> = Vec::with_capacity(plan.width);
@@ -60,7 +60,7 @@ pub(super) fn plain_cells(
     plan: &RowPlan,
     acc: &mut RowAccumulator<'_>,
 ) -> Result<usize, DataError> {
-    let (fi, yi) = (plan.factor.0, plan.response.0);
+    let (fi, yi) = (plan.factors[0].0, plan.response.0);
     let delimiter = plan.delimiter;
     let mut line = first_line;
     let (mut field, mut from) = (0, 0);
@@ -85,7 +85,7 @@ pub(super) fn plain_cells(
             *y = from..end;
         }
         if acc.admit(field + 1, line)? {
-            acc.cells(&text[g.clone()], &text[y.clone()], line)?;
+            acc.cells(&[&text[g.clone()]], &text[y.clone()], line)?;
         }
         Ok::<(), DataError>(())
     };

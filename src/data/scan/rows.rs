@@ -8,7 +8,9 @@ pub(super) struct RowPlan {
     pub(super) width: usize,
     pub(super) header_line: usize,
     pub(super) response: (usize, String),
-    pub(super) factor: (usize, String),
+    /// The factor columns; with more than one, a row's level is its cell,
+    /// keyed by [`cell_key`].
+    pub(super) factors: Vec<(usize, String)>,
     pub(super) filters: Vec<(usize, Filter)>,
     pub(super) exclude: HashMap<usize, String>,
     pub(super) format: CsvFormat,
@@ -38,6 +40,33 @@ pub(super) fn missing_lengths(format: &CsvFormat) -> u64 {
     })
 }
 
+/// The key of a cell of several factors: each level as `<bytes>:<text>`,
+/// so that no level text can be confused with the joints.
+pub fn cell_key<'a>(levels: impl Iterator<Item = &'a str>) -> String {
+    let mut key = String::new();
+    for level in levels {
+        key.push_str(&level.len().to_string());
+        key.push(':');
+        key.push_str(level);
+    }
+    key
+}
+
+/// The levels of a [`cell_key`].
+pub fn cell_levels(mut key: &str) -> Vec<String> {
+    let mut levels = Vec::new();
+    while let Some((len, rest)) = key.split_once(':') {
+        let len: usize = len.parse().unwrap_or(rest.len()).min(rest.len());
+        let end = (0..=len)
+            .rev()
+            .find(|&i| rest.is_char_boundary(i))
+            .unwrap_or(0);
+        levels.push(rest[..end].to_string());
+        key = &rest[end..];
+    }
+    levels
+}
+
 /// `str::trim`, skipping the work when the ends are plainly not blank.
 pub(super) fn trim(cell: &str) -> &str {
     let b = cell.as_bytes();
@@ -55,7 +84,11 @@ impl RowPlan {
             width: header.names.len(),
             header_line: header.line,
             response: (header.column(spec.response)?, spec.response.to_string()),
-            factor: (header.column(spec.factor)?, spec.factor.to_string()),
+            factors: spec
+                .factors
+                .iter()
+                .map(|f| Ok((header.column(f)?, f.to_string())))
+                .collect::<Result<_, DataError>>()?,
             filters: spec
                 .filters
                 .iter()
@@ -76,14 +109,14 @@ impl RowPlan {
         width: usize,
         header_line: usize,
         response: (usize, &str),
-        factor: (usize, &str),
+        factors: &[(usize, &str)],
         format: &CsvFormat,
     ) -> RowPlan {
         RowPlan {
             width,
             header_line,
             response: (response.0, response.1.to_string()),
-            factor: (factor.0, factor.1.to_string()),
+            factors: factors.iter().map(|(c, f)| (*c, f.to_string())).collect(),
             filters: Vec::new(),
             exclude: HashMap::new(),
             format: format.clone(),
@@ -268,7 +301,11 @@ impl<'p> RowAccumulator<'p> {
             });
             return Ok(());
         }
-        self.cells(fields[plan.factor.0], fields[plan.response.0], line)
+        if let [(c, _)] = plan.factors.as_slice() {
+            return self.cells(&[fields[*c]], fields[plan.response.0], line);
+        }
+        let factor_cells: Vec<&str> = plan.factors.iter().map(|(c, _)| fields[*c]).collect();
+        self.cells(&factor_cells, fields[plan.response.0], line)
     }
 
     /// The width check and `exclude`; false when the row is left out.
@@ -299,22 +336,29 @@ impl<'p> RowAccumulator<'p> {
     /// The factor and response cells of an admitted row.
     pub(super) fn cells(
         &mut self,
-        factor_cell: &str,
+        factor_cells: &[&str],
         response_cell: &str,
         line: usize,
     ) -> Result<(), DataError> {
         let plan = self.plan;
-        let g = trim(factor_cell);
-        if plan.is_missing(g) {
-            self.excluded.push(Exclusion {
-                line,
-                reason: format!("`{}` is missing", plan.factor.1),
-            });
-            return Ok(());
+        for (cell, (_, name)) in factor_cells.iter().zip(&plan.factors) {
+            if plan.is_missing(trim(cell)) {
+                self.excluded.push(Exclusion {
+                    line,
+                    reason: format!("`{name}` is missing"),
+                });
+                return Ok(());
+            }
         }
         // A level is registered even when its response is missing, so that a
         // level with no usable rows is reported rather than silently lost.
-        let level = self.level(g);
+        let level = match factor_cells {
+            [g] => self.level(trim(g)),
+            _ => {
+                let key = cell_key(factor_cells.iter().map(|c| trim(c)));
+                self.level(&key)
+            }
+        };
         let y = trim(response_cell);
         if plan.is_missing(y) {
             self.excluded.push(Exclusion {

@@ -7,7 +7,7 @@ use crate::data::{Table, factor_response};
 fn spec<'a>(format: &'a CsvFormat, keep_values: bool) -> ScanSpec<'a> {
     ScanSpec {
         response: "y",
-        factor: "g",
+        factors: &["g"],
         format,
         filters: &[],
         exclude: &[],
