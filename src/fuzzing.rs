@@ -56,6 +56,11 @@ pub fn scan(data: &[u8]) {
             let result = crate::data::factor_response(&table, &y, &g, &format);
             Some((y, g, result))
         });
+    if let Ok(table) = crate::data::Table::parse(data, &format)
+        && table.header.len() >= 3
+    {
+        factorial_scan(data, &table, &format);
+    }
     let Some((y, g, whole)) = whole else {
         return;
     };
@@ -88,6 +93,35 @@ pub fn scan(data: &[u8]) {
             (Err(_), Err(_)) => {}
             (w, c) => panic!("whole-table and chunked readers disagree: {w:?} vs {c:?}"),
         }
+    }
+}
+
+/// The factorial side of [`scan`]: two factors read both ways.
+fn factorial_scan(data: &[u8], table: &crate::data::Table, format: &crate::data::CsvFormat) {
+    use crate::data::scan::{ScanSpec, Source, scan_one_factor};
+    let (y, a, b) = (&table.header[0], &table.header[1], &table.header[2]);
+    let whole = crate::data::factorial_response(table, y, &[a, b], format);
+    let spec = ScanSpec {
+        response: y,
+        factors: &[a.as_str(), b.as_str()],
+        format,
+        filters: &[],
+        exclude: &[],
+        keep_values: true,
+    };
+    let chunked = scan_one_factor(Source::Memory(data), &spec, 6, 2)
+        .map(|s| crate::data::factorial_from_scan(s, 2));
+    match (whole, chunked) {
+        (Ok(w), Ok(c)) => {
+            assert_eq!(w.levels, c.levels, "factorial levels");
+            assert_eq!(w.rows, c.rows, "factorial rows");
+            assert_eq!(w.lines, c.lines, "factorial lines");
+            assert_eq!(w.excluded, c.excluded, "factorial exclusions");
+            let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+            assert_eq!(bits(&w.offsets), bits(&c.offsets), "factorial offsets");
+        }
+        (Err(_), Err(_)) => {}
+        (w, c) => panic!("factorial readings disagree: {w:?} vs {c:?}"),
     }
 }
 

@@ -204,31 +204,6 @@ pub fn plain_difference(a: i64, b: i64, scale: u32) -> Option<f64> {
     (diff.unsigned_abs() <= 1 << 53).then(|| diff as f64 / power)
 }
 
-/// Converts a column of numbers to f64 offsets from a common origin.
-///
-/// Returns (origin as f64, offsets). The origin is the first value; when every
-/// value is an exact decimal the subtraction is exact, otherwise the column
-/// falls back to subtracting in f64.
-pub fn shift_column(values: &[Number]) -> (f64, Vec<f64>) {
-    let Some(first) = values.first() else {
-        return (0.0, Vec::new());
-    };
-    if let Number::Exact(origin) = *first {
-        let exact: Option<Vec<f64>> = values
-            .iter()
-            .map(|v| match v {
-                Number::Exact(d) => d.minus(origin),
-                Number::Float(_) => None,
-            })
-            .collect();
-        if let Some(offsets) = exact {
-            return (origin.to_f64(), offsets);
-        }
-    }
-    let origin = first.to_f64();
-    (origin, values.iter().map(|v| v.to_f64() - origin).collect())
-}
-
 #[cfg(test)]
 #[path = "decimal_tests.rs"]
 mod tests;

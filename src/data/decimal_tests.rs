@@ -33,13 +33,17 @@ fn reads_plain_decimals_exactly() {
 
 #[test]
 fn shifting_keeps_the_digits_a_float_would_lose() {
-    let values: Vec<Number> = ["1000000000000.4", "1000000000000.3", "1000000000000.5"]
+    let exact = |s: &str| match parse_number(s) {
+        Some(Number::Exact(d)) => d,
+        other => panic!("{s}: {other:?}"),
+    };
+    let origin = exact("1000000000000.4");
+    let offsets: Vec<Option<f64>> = ["1000000000000.4", "1000000000000.3", "1000000000000.5"]
         .iter()
-        .map(|s| parse_number(s).expect("number"))
+        .map(|s| exact(s).minus(origin))
         .collect();
-    let (origin, offsets) = shift_column(&values);
-    assert_eq!(origin, 1_000_000_000_000.4);
-    assert_eq!(offsets, vec![0.0, -0.1, 0.1]);
+    assert_eq!(origin.to_f64(), 1_000_000_000_000.4);
+    assert_eq!(offsets, vec![Some(0.0), Some(-0.1), Some(0.1)]);
 }
 
 #[test]

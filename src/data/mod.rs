@@ -7,7 +7,7 @@ pub mod decimal;
 pub mod scan;
 pub mod spreadsheet;
 
-use decimal::{parse_number, shift_column};
+use decimal::parse_number;
 
 /// How a CSV file is written.
 #[derive(Debug, Clone, PartialEq)]
@@ -393,90 +393,16 @@ pub struct FactorialData {
 }
 
 /// Extracts `response` and several factor columns; a row missing any of
-/// them is left out and recorded.
+/// them is left out and recorded. The same per-row rules as the chunked
+/// reader, which this calls with the table's rows as one chunk.
 pub fn factorial_response(
     table: &Table,
     response: &str,
     factors: &[&str],
     format: &CsvFormat,
 ) -> Result<FactorialData, DataError> {
-    let yi = table.column(response)?;
-    let fis: Vec<usize> = factors
-        .iter()
-        .map(|f| table.column(f))
-        .collect::<Result<_, _>>()?;
-    let is_missing = |cell: &str| {
-        format
-            .missing
-            .iter()
-            .any(|m| m.eq_ignore_ascii_case(cell.trim()))
-    };
-    let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors.len()];
-    let mut rows = Vec::new();
-    let mut numbers = Vec::new();
-    let mut lines = Vec::new();
-    let mut excluded = Vec::new();
-    'rows: for row in &table.rows {
-        for (k, &fi) in fis.iter().enumerate() {
-            if is_missing(&row.fields[fi]) {
-                excluded.push(Exclusion {
-                    line: row.line,
-                    reason: format!("`{}` is missing", factors[k]),
-                });
-                continue 'rows;
-            }
-        }
-        let y = &row.fields[yi];
-        if is_missing(y) {
-            excluded.push(Exclusion {
-                line: row.line,
-                reason: format!("`{response}` is missing"),
-            });
-            continue;
-        }
-        let text = if format.decimal_comma {
-            y.trim().replace(',', ".")
-        } else {
-            y.trim().to_string()
-        };
-        let Some(number) = parse_number(&text) else {
-            return Err(DataError {
-                line: Some(row.line),
-                column: Some(yi + 1),
-                message: format!("`{response}` must be a number, found `{}`", y.trim()),
-                hint: Some(format!(
-                    "write a number, or one of the missing-value markers {}",
-                    quote_list(&format.missing)
-                )),
-            });
-        };
-        let mut idx = Vec::with_capacity(fis.len());
-        for (k, &fi) in fis.iter().enumerate() {
-            let name = row.fields[fi].trim();
-            let pos = match levels[k].iter().position(|l| l == name) {
-                Some(p) => p,
-                None => {
-                    levels[k].push(name.to_string());
-                    levels[k].len() - 1
-                }
-            };
-            idx.push(pos);
-        }
-        rows.push(idx);
-        numbers.push(number);
-        lines.push(row.line);
-    }
-    let decimals = numbers.iter().map(|n| n.decimals()).max().unwrap_or(0);
-    let (origin, offsets) = shift_column(&numbers);
-    Ok(FactorialData {
-        levels,
-        rows,
-        offsets,
-        lines,
-        origin,
-        decimals,
-        excluded,
-    })
+    let scanned = scan::scan_table(table, response, factors, format)?;
+    Ok(factorial_from_scan(scanned, factors.len()))
 }
 
 /// Turns a scan over several factors (one level per cell, see
