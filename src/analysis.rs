@@ -288,6 +288,29 @@ fn keeps_values(spec: &AnovaSpec) -> bool {
         || !spec.plots.kinds.is_empty()
 }
 
+/// Reads a block's CSV data with the chunked reader, from memory or from a
+/// stream; a streamed file also comes back as the `Input` that records it.
+pub(crate) fn scan_csv(
+    data: Data<'_>,
+    spec: &ScanSpec<'_>,
+) -> Result<(Scanned, Option<Input>), DataError> {
+    let (source, path) = match data {
+        Data::Loaded(input) => (
+            Source::Memory(input.bytes.as_deref().unwrap_or_default()),
+            None,
+        ),
+        Data::Stream { path, reader } => (Source::Stream(reader), Some(path)),
+    };
+    let scanned = scan_one_factor(source, spec, CHUNK_BYTES, reader_threads())?;
+    let input = path.map(|path| Input {
+        path: path.to_string(),
+        sha256: scanned.sha256.clone().unwrap_or_default(),
+        size: scanned.bytes,
+        bytes: None,
+    });
+    Ok((scanned, input))
+}
+
 /// Worker threads for reading large files; the results never depend on it.
 pub(crate) fn reader_threads() -> usize {
     std::thread::available_parallelism().map_or(1, |n| n.get().min(8))
@@ -386,31 +409,9 @@ pub fn run_anova(
                 keep_values: keeps_values(spec),
             };
             let (scanned, ruled_out) = match data {
-                Data::Stream { path, reader } => {
-                    let scanned = scan_one_factor(
-                        Source::Stream(reader),
-                        &scan_spec,
-                        CHUNK_BYTES,
-                        reader_threads(),
-                    )
-                    .map_err(fail)?;
-                    streamed = Some(Input {
-                        path: path.to_string(),
-                        sha256: scanned.sha256.clone().unwrap_or_default(),
-                        size: scanned.bytes,
-                        bytes: None,
-                    });
-                    (scanned, Vec::new())
-                }
-                Data::Loaded(input) if streams(spec) => {
-                    let bytes = input.bytes.as_deref().unwrap_or_default();
-                    let scanned = scan_one_factor(
-                        Source::Memory(bytes),
-                        &scan_spec,
-                        CHUNK_BYTES,
-                        reader_threads(),
-                    )
-                    .map_err(fail)?;
+                data if streams(spec) => {
+                    let (scanned, input) = scan_csv(data, &scan_spec).map_err(fail)?;
+                    streamed = input;
                     (scanned, Vec::new())
                 }
                 Data::Loaded(input) => {
@@ -418,6 +419,13 @@ pub fn run_anova(
                     let scanned = scan_table(&table, &response, &[factor.as_str()], &spec.csv)
                         .map_err(fail)?;
                     (scanned, ruled_out)
+                }
+                Data::Stream { .. } => {
+                    return Err(doc.error_at(
+                        block.line,
+                        None,
+                        "internal error: a table layout reached the streaming reader",
+                    ));
                 }
             };
             let path = streamed

@@ -3,7 +3,7 @@
 //! comparisons on estimated marginal means, simple effects and cell means.
 
 use super::{Checks, ComparisonResult, Data, Input, OutlierRow, data_error, summary_checks};
-use crate::data::scan::{CHUNK_BYTES, ScanSpec, Source, scan_one_factor};
+use crate::data::scan::ScanSpec;
 use crate::data::{factorial_from_scan, factorial_response};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
@@ -241,7 +241,7 @@ pub fn run_factorial(
     let mut data = match source_data {
         // CSV in long layout: the chunked reader, keeping one number and one
         // line per observation instead of a table of strings.
-        Data::Stream { .. } | Data::Loaded(_) if super::reads_csv_rows(spec) => {
+        data if super::reads_csv_rows(spec) => {
             let scan_spec = ScanSpec {
                 response: &formula.response,
                 factors: &names,
@@ -250,20 +250,8 @@ pub fn run_factorial(
                 exclude: &spec.rows.exclude,
                 keep_values: true,
             };
-            let source = match source_data {
-                Data::Stream { reader, .. } => Source::Stream(reader),
-                Data::Loaded(input) => Source::Memory(input.bytes.as_deref().unwrap_or_default()),
-            };
-            let scanned = scan_one_factor(source, &scan_spec, CHUNK_BYTES, super::reader_threads())
-                .map_err(fail)?;
-            if let Some(sha256) = &scanned.sha256 {
-                streamed = Some(Input {
-                    path: spec.data.value.clone(),
-                    sha256: sha256.clone(),
-                    size: scanned.bytes,
-                    bytes: None,
-                });
-            }
+            let (scanned, input) = super::scan_csv(data, &scan_spec).map_err(fail)?;
+            streamed = input;
             factorial_from_scan(scanned, names.len())
         }
         Data::Loaded(input) => {
