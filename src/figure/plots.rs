@@ -590,6 +590,8 @@ fn figure_id(block: &str, kind: PlotKind) -> String {
 pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
     let spec = &r.plots;
     let y_title = axis_title(spec, &r.response);
+    // Captions name the response as the tables do: its label, else its column.
+    let subject = spec.label.as_deref().unwrap_or(&r.response);
     let letters = r
         .comparison
         .as_ref()
@@ -638,21 +640,21 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                     PlotKind::Box => (
                         format!(
                             "{} by {}: box plots (median, quartiles, whiskers to the most extreme values within 1.5 IQR) with every observation.",
-                            r.response, r.factor
+                            subject, r.factor
                         ),
                         box_plot,
                     ),
                     PlotKind::Strip => (
                         format!(
                             "Every observation of {} by {}, with the level means as bars.",
-                            r.response, r.factor
+                            subject, r.factor
                         ),
                         strip_plot,
                     ),
                     _ => (
                         format!(
                             "Mean {} by {} with {conf} confidence intervals ({ci_kind}); observations in grey.",
-                            r.response, r.factor
+                            subject, r.factor
                         ),
                         means_plot,
                     ),
@@ -703,7 +705,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                 if kind == PlotKind::Residuals {
                     let caption = format!(
                         "Figure {n}. Residuals of {} against fitted values (level means); observations beyond ±3 studentized residuals are labelled with their data line.",
-                        r.response
+                        subject
                     );
                     let desc = format!("{} residuals; {} flagged.", residuals.len(), flags.len());
                     (
@@ -713,7 +715,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                 } else {
                     let caption = format!(
                         "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.",
-                        r.response
+                        subject
                     );
                     let desc = format!("{} residuals against normal quantiles.", residuals.len());
                     (caption.clone(), qq_plot(&id, &caption, &desc, &residuals))
@@ -737,6 +739,8 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
 pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure> {
     let spec = &r.plots;
     let y_title = axis_title(spec, &r.response);
+    // Captions name the response as the tables do: its label, else its column.
+    let subject = spec.label.as_deref().unwrap_or(&r.response);
     let Some(&fa) = r.cell_factors.first() else {
         return Vec::new();
     };
@@ -793,7 +797,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             PlotKind::Box => {
                 let caption = format!(
                     "Figure {n}. {} by {factor}: box plots with every observation.{letters_note}",
-                    r.response
+                    subject
                 );
                 (
                     caption.clone(),
@@ -811,7 +815,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             PlotKind::Strip => {
                 let caption = format!(
                     "Figure {n}. Every observation of {} by {factor}, with means as bars.{letters_note}",
-                    r.response
+                    subject
                 );
                 (
                     caption.clone(),
@@ -829,7 +833,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             PlotKind::Means => {
                 let caption = format!(
                     "Figure {n}. Estimated marginal means of {} by {factor} with {conf} confidence intervals from the model.{letters_note}",
-                    r.response
+                    subject
                 );
                 (
                     caption.clone(),
@@ -875,7 +879,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
                     .collect();
                 let caption = format!(
                     "Figure {n}. Cell means of {}: {factor} on the axis, one line per level of {}, with {conf} confidence intervals (model residual mean square).",
-                    r.response, r.factors[fb]
+                    subject, r.factors[fb]
                 );
                 (
                     caption.clone(),
@@ -905,7 +909,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
                     .collect();
                 let caption = format!(
                     "Figure {n}. Residuals of {} against fitted values; observations beyond ±3 studentized residuals are labelled with their data line.",
-                    r.response
+                    subject
                 );
                 (
                     caption.clone(),
@@ -915,7 +919,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             PlotKind::Qq => {
                 let caption = format!(
                     "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.",
-                    r.response
+                    subject
                 );
                 (
                     caption.clone(),
