@@ -5,7 +5,7 @@
 pub mod factorial;
 
 use crate::data::scan::{
-    CHUNK_BYTES, ScanSpec, Scanned, ScannedLevel, Source, scan_one_factor, scan_table,
+    CHUNK_BYTES, ScanSpec, Scanned, ScannedLevel, Source, scan_file, scan_table,
 };
 use crate::data::{DataError, Exclusion, SummaryColumns, SummaryRow, Table, prepare, summary_rows};
 use crate::diag::Diagnostic;
@@ -301,7 +301,7 @@ pub(crate) fn scan_csv(
         ),
         Data::Stream { path, reader } => (Source::Stream(reader), Some(path)),
     };
-    let scanned = scan_one_factor(source, spec, CHUNK_BYTES, reader_threads())?;
+    let scanned = scan_file(source, spec, CHUNK_BYTES, reader_threads())?;
     let input = path.map(|path| Input {
         path: path.to_string(),
         sha256: scanned.sha256.clone().unwrap_or_default(),

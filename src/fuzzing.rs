@@ -47,7 +47,7 @@ pub fn csv(data: &[u8]) {
 /// levels, values (bit for bit), lines and exclusions. Panics on a mismatch,
 /// which is what the fuzzer looks for.
 pub fn scan(data: &[u8]) {
-    use crate::data::scan::{ScanSpec, Source, scan_one_factor};
+    use crate::data::scan::{ScanSpec, Source, scan_file};
     let format = crate::data::CsvFormat::default();
     let whole = crate::data::Table::parse(data, &format)
         .ok()
@@ -73,8 +73,8 @@ pub fn scan(data: &[u8]) {
         keep_values: true,
     };
     let runs = [
-        scan_one_factor(Source::Memory(data), &spec, 7, 2),
-        scan_one_factor(Source::Stream(Box::new(data)), &spec, 5, 1),
+        scan_file(Source::Memory(data), &spec, 7, 2),
+        scan_file(Source::Stream(Box::new(data)), &spec, 5, 1),
     ];
     for chunked in runs {
         match (&whole, chunked) {
@@ -98,7 +98,7 @@ pub fn scan(data: &[u8]) {
 
 /// The factorial side of [`scan`]: two factors read both ways.
 fn factorial_scan(data: &[u8], table: &crate::data::Table, format: &crate::data::CsvFormat) {
-    use crate::data::scan::{ScanSpec, Source, scan_one_factor};
+    use crate::data::scan::{ScanSpec, Source, scan_file};
     let (y, a, b) = (&table.header[0], &table.header[1], &table.header[2]);
     let whole = crate::data::factorial_response(table, y, &[a, b], format);
     let spec = ScanSpec {
@@ -109,7 +109,7 @@ fn factorial_scan(data: &[u8], table: &crate::data::Table, format: &crate::data:
         exclude: &[],
         keep_values: true,
     };
-    let chunked = scan_one_factor(Source::Memory(data), &spec, 6, 2)
+    let chunked = scan_file(Source::Memory(data), &spec, 6, 2)
         .map(|s| crate::data::factorial_from_scan(s, 2));
     match (whole, chunked) {
         (Ok(w), Ok(c)) => {

@@ -76,7 +76,7 @@ fn the_chunked_factorial_reading_matches_the_table_reading() {
         keep_values: true,
     };
     let scanned =
-        scan::scan_one_factor(scan::Source::Memory(text.as_bytes()), &spec, 256, 2).expect("scan");
+        scan::scan_file(scan::Source::Memory(text.as_bytes()), &spec, 256, 2).expect("scan");
     let chunked = factorial_from_scan(scanned, 2);
     assert_eq!(chunked.levels, whole.levels);
     assert_eq!(chunked.rows, whole.rows);

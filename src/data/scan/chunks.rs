@@ -29,11 +29,6 @@ pub(super) struct Job<'a> {
     pub(super) chunk: Chunk<'a>,
 }
 
-/// Lines in a run of whole records (see `csv::count_lines`).
-pub(super) fn chunk_lines(bytes: &[u8]) -> usize {
-    count_lines(bytes)
-}
-
 /// Cuts a source into chunks of whole records. A chunk is the first
 /// `chunk_bytes` of what is left, cut back to the last record end; a record
 /// longer than that doubles the window until it fits. The same bytes give

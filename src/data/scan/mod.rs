@@ -83,11 +83,12 @@ pub struct Scanned {
     pub bytes: u64,
 }
 
-/// Reads a one-factor response from CSV bytes. `threads` workers parse
-/// chunks of `chunk_bytes`; neither changes any number in the result.
 pub use rows::{cell_key, cell_levels};
 
-pub fn scan_one_factor(
+/// Reads a response split by one factor (or by the cells of several) from
+/// CSV bytes. `threads` workers parse chunks of `chunk_bytes`; neither
+/// changes any number in the result.
+pub fn scan_file(
     source: Source<'_>,
     spec: &ScanSpec<'_>,
     chunk_bytes: usize,
@@ -122,30 +123,23 @@ pub fn scan_one_factor(
     };
     let mut merged = Merged::new(spec.keep_values);
     let mut plan = plan;
-    // The first chunk alone: its first value becomes the origin of every
-    // later chunk, so all offsets are exact differences from one value.
+    let absolute = !plan.exclude.is_empty();
+    let first_end = if absolute {
+        line + count_lines(&first.bytes()[start..])
+    } else {
+        0
+    };
+    let threads = if chunks.at_end() { 1 } else { threads };
     let first = Job {
         start,
         line,
         relative: false,
         chunk: first,
     };
-    let absolute = !plan.exclude.is_empty();
-    let first_end = if absolute {
-        line + chunk_lines(&first.chunk.bytes()[start..])
-    } else {
-        0
-    };
-    let outcome = parse_chunk(&first, &plan);
-    if let Ok(r) = &outcome {
-        plan.origin = r.origin.map(|o| (o, o.to_f64()));
-    }
-    merged.add(outcome, false)?;
-    let threads = if chunks.at_end() { 1 } else { threads };
     // Later chunks count their own lines, and the merge makes them absolute;
     // only `exclude` (rules by line) needs absolute lines while parsing.
     let mut next_line = first_end;
-    let mut rest = std::iter::from_fn(|| {
+    let later = std::iter::from_fn(|| {
         let chunk = match chunks.next_chunk() {
             Ok(Some(chunk)) => chunk,
             Ok(None) => return None,
@@ -153,7 +147,7 @@ pub fn scan_one_factor(
         };
         let line = if absolute {
             let line = next_line;
-            next_line += chunk_lines(chunk.bytes());
+            next_line += count_lines(chunk.bytes());
             line
         } else {
             0
@@ -165,9 +159,10 @@ pub fn scan_one_factor(
             chunk,
         }))
     });
-    // Until some chunk has a value (rare: a file opening with many rows of
-    // missing values) chunks are read one by one, so that every value is
-    // subtracted from the same origin.
+    let mut rest = std::iter::once(Ok(first)).chain(later);
+    // Chunks are read one by one until one has a value (the first, unless
+    // the file opens with many rows of missing values): its first value is
+    // the origin every later chunk subtracts, exactly.
     while plan.origin.is_none() {
         let Some(job) = rest.next() else { break };
         let job = job.map_err(io_error)?;

@@ -46,7 +46,7 @@ fn chunks_and_threads_change_nothing() {
     let table = Table::parse(text.as_bytes(), &format).expect("table");
     let whole = factor_response(&table, "y", "g", &format).expect("reference");
     for (chunk, threads) in [(1 << 20, 1), (64, 1), (64, 3), (200, 2), (1000, 4)] {
-        let got = scan_one_factor(
+        let got = scan_file(
             Source::Memory(text.as_bytes()),
             &spec(&format, true),
             chunk,
@@ -72,7 +72,7 @@ fn chunks_and_threads_change_nothing() {
     }
     // The same chunking gives the same bits with 1 and 4 threads.
     let run = |threads| {
-        scan_one_factor(
+        scan_file(
             Source::Memory(text.as_bytes()),
             &spec(&format, false),
             150,
@@ -87,14 +87,14 @@ fn chunks_and_threads_change_nothing() {
 fn a_stream_reads_like_memory_and_is_hashed() {
     let format = CsvFormat::default();
     let text = awkward_file();
-    let memory = scan_one_factor(
+    let memory = scan_file(
         Source::Memory(text.as_bytes()),
         &spec(&format, false),
         300,
         2,
     )
     .expect("memory");
-    let stream = scan_one_factor(
+    let stream = scan_file(
         Source::Stream(Box::new(std::io::Cursor::new(text.clone().into_bytes()))),
         &spec(&format, false),
         300,
@@ -119,7 +119,7 @@ fn errors_in_later_chunks_name_their_own_line() {
     text.push_str("L1,oops\n");
     text.push_str("L2,1,extra\n");
     for threads in [1, 2] {
-        let err = scan_one_factor(
+        let err = scan_file(
             Source::Memory(text.as_bytes()),
             &spec(&format, true),
             64,
@@ -130,7 +130,7 @@ fn errors_in_later_chunks_name_their_own_line() {
         assert!(err.message.contains("must be a number, found `oops`"));
     }
     let bad_utf8 = [b"g,y\na,1\nb,2\n".as_slice(), b"c,\xff\n"].concat();
-    let err = scan_one_factor(Source::Memory(&bad_utf8), &spec(&format, true), 4, 2).unwrap_err();
+    let err = scan_file(Source::Memory(&bad_utf8), &spec(&format, true), 4, 2).unwrap_err();
     assert_eq!(err.line, Some(4));
 }
 
@@ -139,7 +139,7 @@ fn a_record_longer_than_a_chunk_is_read_whole() {
     let format = CsvFormat::default();
     let long = "x".repeat(5000);
     let text = format!("g,y,note\na,1,{long}\nb,2,\"{long}\n{long}\"\na,3,z\n");
-    let got = scan_one_factor(
+    let got = scan_file(
         Source::Stream(Box::new(std::io::Cursor::new(text.into_bytes()))),
         &spec(&format, true),
         16,
@@ -168,7 +168,7 @@ fn rules_apply_by_absolute_line() {
         exclude: &exclude,
         ..spec(&format, true)
     };
-    let got = scan_one_factor(Source::Memory(text.as_bytes()), &spec, 50, 2).expect("scan");
+    let got = scan_file(Source::Memory(text.as_bytes()), &spec, 50, 2).expect("scan");
     assert!(
         got.excluded
             .iter()
@@ -177,7 +177,7 @@ fn rules_apply_by_absolute_line() {
     let failing = (0..300).filter(|i| i % 17 >= 15 && i + 2 != 250).count();
     assert_eq!(got.excluded.len(), failing + 1);
     let missing = [(999usize, "no such".to_string())];
-    let err = scan_one_factor(
+    let err = scan_file(
         Source::Memory(text.as_bytes()),
         &ScanSpec {
             exclude: &missing,
