@@ -243,6 +243,15 @@ pub struct Built {
     pub warnings: Vec<String>,
 }
 
+/// Records a file read into memory, replacing the record of an earlier
+/// streamed pass over it (same path, same hash).
+fn remember(inputs: &mut Vec<Input>, input: Input) {
+    match inputs.iter_mut().find(|i| i.path == input.path) {
+        Some(earlier) => *earlier = input,
+        None => inputs.push(input),
+    }
+}
+
 /// Compiles a document. `doc_display` names the document in messages;
 /// only its file name appears in the outputs.
 pub fn compile(
@@ -350,6 +359,13 @@ pub fn compile(
                 recomputed += 1;
                 continue;
             }
+            // Small enough to hold: read it from the handle already open.
+            let mut bytes = Vec::with_capacity(size as usize);
+            let mut reader = reader;
+            reader
+                .read_to_end(&mut bytes)
+                .map_err(|e| read_error(e, path, spec.data.line, spec.data.column))?;
+            remember(&mut inputs, Input::loaded(path, bytes));
         }
         let mut input_hash = String::new();
         if let Some((path, line, column)) = path {
@@ -357,11 +373,7 @@ pub fn compile(
                 let bytes = world
                     .read(path)
                     .map_err(|e| read_error(e, path, line, column))?;
-                let input = Input::loaded(path, bytes);
-                match inputs.iter_mut().find(|i| &i.path == path) {
-                    Some(streamed) => *streamed = input,
-                    None => inputs.push(input),
-                }
+                remember(&mut inputs, Input::loaded(path, bytes));
             }
             input_hash = inputs
                 .iter()
