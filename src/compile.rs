@@ -244,7 +244,7 @@ pub struct Built {
 }
 
 /// Records a file read into memory, replacing the record of an earlier
-/// streamed pass over it (same path, same hash).
+/// streamed pass over the same path.
 fn remember(inputs: &mut Vec<Input>, input: Input) {
     match inputs.iter_mut().find(|i| i.path == input.path) {
         Some(earlier) => *earlier = input,
