@@ -8,6 +8,7 @@ pub mod dunnett;
 pub mod effect;
 pub mod letters;
 pub mod linear;
+pub mod normal_table;
 pub mod oneway;
 pub mod ptukey;
 pub mod quadrature;

@@ -7,7 +7,8 @@
 //! no switch to the ν = ∞ limit until ν is infinite.
 
 use super::chi_scale::chi_scale_expectation;
-use super::dist::{normal_cdf, normal_sf, t_isf};
+use super::dist::{normal_sf, t_isf};
+use super::normal_table::NormalTable;
 use super::quadrature::gauss_legendre_16;
 use super::roots::{brent, brent_known};
 
@@ -26,6 +27,7 @@ pub fn range_cdf(w: f64, k: usize) -> f64 {
     }
     let km1 = (k - 1) as i32;
     let rule = gauss_legendre_16();
+    let normal = NormalTable::get();
     // P_R = (2Φ(w/2) − 1)^k + 2k ∫_{w/2}^{∞} φ(x)[Φ(x) − Φ(x − w)]^{k−1} dx,
     // on panels at most 2.5 wide with 16 nodes each (see chi_scale for the
     // measured error against scipy).
@@ -47,9 +49,9 @@ pub fn range_cdf(w: f64, k: usize) -> f64 {
         integral += rule.integrate(a, a + width, |x| {
             // Φ(x) − Φ(x − w) without cancellation when both are near 1.
             let bracket = if x - w >= 0.0 {
-                normal_sf(x - w) - normal_sf(x)
+                normal.sf(x - w) - normal.sf(x)
             } else {
-                normal_cdf(x) - normal_cdf(x - w)
+                normal.cdf(x) - normal.cdf(x - w)
             };
             (-0.5 * x * x - HALF_LN_2PI).exp() * bracket.powi(km1)
         });
