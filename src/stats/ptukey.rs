@@ -133,6 +133,101 @@ pub fn qtukey_isf_near(alpha: f64, k: usize, df: f64, guess: Option<f64>) -> f64
     brent(f, lo, hi, 0.0, 1e-11)
 }
 
+/// Critical values q_{1−α; k, ν} for many ν at once (Games-Howell gives
+/// each pair its own ν). q is smooth in 1/ν, so it is interpolated from a
+/// Chebyshev series through exact values at 33 nodes in 1/ν, then checked at
+/// the 32 points between them against exact values; only if every check
+/// agrees to 1e-11 relative (the tolerance of the exact search itself) is the
+/// series used. Otherwise, or for fewer than 200 values, each is searched
+/// directly, in order of ν, each search starting from the last answer.
+pub fn qtukey_isf_many(alpha: f64, k: usize, dfs: &[f64]) -> Vec<f64> {
+    const NODES: usize = 33;
+    let finite: Vec<f64> = dfs
+        .iter()
+        .copied()
+        .filter(|d| d.is_finite() && *d >= 1.0)
+        .collect();
+    let direct = || {
+        let mut order: Vec<usize> = (0..dfs.len()).collect();
+        order.sort_by(|&a, &b| dfs[a].total_cmp(&dfs[b]).then(a.cmp(&b)));
+        let mut out = vec![f64::NAN; dfs.len()];
+        let mut previous: Option<(f64, f64)> = None;
+        for i in order {
+            let df = dfs[i];
+            let q = match previous {
+                Some((d, q)) if d == df => q,
+                _ => qtukey_isf_near(alpha, k, df, previous.map(|p| p.1)),
+            };
+            previous = Some((df, q));
+            out[i] = q;
+        }
+        out
+    };
+    if finite.len() < 200 {
+        return direct();
+    }
+    let lo = 1.0 / finite.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let hi = 1.0 / finite.iter().copied().fold(f64::INFINITY, f64::min);
+    if hi <= lo || hi.is_nan() || lo.is_nan() {
+        return direct();
+    }
+    // Chebyshev points of the first kind on [lo, hi], in u = 1/ν.
+    let at = |theta: f64| 0.5 * (lo + hi) + 0.5 * (hi - lo) * theta.cos();
+    let nodes: Vec<f64> = (0..NODES)
+        .map(|j| at(std::f64::consts::PI * (j as f64 + 0.5) / NODES as f64))
+        .collect();
+    let mut guess = None;
+    let values: Vec<f64> = nodes
+        .iter()
+        .map(|&u| {
+            let q = qtukey_isf_near(alpha, k, 1.0 / u, guess);
+            guess = Some(q);
+            q
+        })
+        .collect();
+    // Barycentric interpolation through Chebyshev points of the first kind
+    // (Berrut & Trefethen 2004): weights (−1)^j sin θⱼ.
+    let weights: Vec<f64> = (0..NODES)
+        .map(|j| {
+            let theta = std::f64::consts::PI * (j as f64 + 0.5) / NODES as f64;
+            if j % 2 == 0 {
+                theta.sin()
+            } else {
+                -theta.sin()
+            }
+        })
+        .collect();
+    let series = |u: f64| {
+        let (mut top, mut bottom) = (0.0, 0.0);
+        for ((&x, &w), &f) in nodes.iter().zip(&weights).zip(&values) {
+            if u == x {
+                return f;
+            }
+            let c = w / (u - x);
+            top += c * f;
+            bottom += c;
+        }
+        top / bottom
+    };
+    let checks_pass = (0..NODES - 1).all(|j| {
+        let u = at(std::f64::consts::PI * (j as f64 + 1.0) / NODES as f64);
+        let exact = qtukey_isf_near(alpha, k, 1.0 / u, Some(values[j]));
+        (series(u) - exact).abs() <= 1e-11 * exact.abs()
+    });
+    if !checks_pass || values.iter().any(|v| !v.is_finite()) {
+        return direct();
+    }
+    dfs.iter()
+        .map(|&df| {
+            if df.is_finite() && df >= 1.0 {
+                series(1.0 / df)
+            } else {
+                f64::NAN
+            }
+        })
+        .collect()
+}
+
 #[cfg(test)]
 #[path = "ptukey_tests.rs"]
 mod tests;

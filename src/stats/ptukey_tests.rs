@@ -13,3 +13,23 @@ fn two_means_reduce_to_t() {
         }
     }
 }
+
+#[test]
+fn many_quantiles_agree_with_one_at_a_time() {
+    // Reference: the exact search for each ν alone (itself held to scipy
+    // by the grid tests above). Both find the root to 1e-11 relative, so
+    // they may differ by twice that.
+    let dfs: Vec<f64> = (0..300)
+        .map(|i| 2.5 + 1.7 * i as f64 + (i % 7) as f64 * 0.31)
+        .collect();
+    for k in [3usize, 10, 40] {
+        let many = qtukey_isf_many(0.05, k, &dfs);
+        for (&df, &q) in dfs.iter().zip(&many) {
+            let one = qtukey_isf(0.05, k, df);
+            assert!(
+                (q - one).abs() <= 3e-11 * one,
+                "k {k}, ν {df}: {q} vs {one}"
+            );
+        }
+    }
+}

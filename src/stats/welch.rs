@@ -5,7 +5,7 @@
 use super::compare::{Method, Pair, Pairwise};
 use super::dist::f_sf;
 use super::oneway::GroupSummary;
-use super::ptukey::{ptukey_sf, qtukey_isf_near};
+use super::ptukey::{ptukey_sf, qtukey_isf_many};
 use super::sum::neumaier;
 
 /// Welch's F* with its (fractional) degrees of freedom.
@@ -87,27 +87,25 @@ pub fn games_howell(groups: &[GroupSummary], alpha: f64) -> Pairwise {
             });
         }
     }
-    // Each pair has its own ν and so its own critical value. Taken in order
-    // of ν, each search starts from the previous answer (a fixed order, so
-    // the digits do not depend on anything but the data).
-    let mut order: Vec<usize> = (0..pairs.len())
-        .filter(|&i| pairs[i].se > 0.0 && pairs[i].df.is_some_and(f64::is_finite))
+    // Each pair has its own ν and so its own critical value.
+    let usable = |p: &Pair| p.se > 0.0 && p.df.is_some_and(f64::is_finite);
+    let dfs: Vec<f64> = pairs
+        .iter()
+        .map(|p| {
+            if usable(p) {
+                p.df.unwrap_or(f64::NAN)
+            } else {
+                f64::NAN
+            }
+        })
         .collect();
-    order.sort_by(|&x, &y| {
-        let (dx, dy) = (pairs[x].df.unwrap_or(0.0), pairs[y].df.unwrap_or(0.0));
-        dx.total_cmp(&dy).then(x.cmp(&y))
-    });
-    let mut previous: Option<(f64, f64)> = None;
-    for i in order {
-        let df = pairs[i].df.unwrap_or(f64::NAN);
-        let q = match previous {
-            Some((d, q)) if d == df => q,
-            _ => qtukey_isf_near(alpha, k, df, previous.map(|p| p.1)),
-        };
-        previous = Some((df, q));
-        let half = q / std::f64::consts::SQRT_2 * pairs[i].se;
-        pairs[i].lower = pairs[i].diff - half;
-        pairs[i].upper = pairs[i].diff + half;
+    let critical = qtukey_isf_many(alpha, k, &dfs);
+    for (pair, q) in pairs.iter_mut().zip(critical) {
+        if q.is_finite() {
+            let half = q / std::f64::consts::SQRT_2 * pair.se;
+            pair.lower = pair.diff - half;
+            pair.upper = pair.diff + half;
+        }
     }
     Pairwise {
         method: Method::GamesHowell,
