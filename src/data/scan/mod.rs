@@ -1,5 +1,7 @@
-//! One pass over a CSV file for a one-factor analysis, in chunks, on every
-//! core, in memory proportional to the number of levels.
+//! One pass over a CSV file in long layout, in chunks, on every core: a
+//! response split by one factor, or by the cells of several (each cell a
+//! level, see `rows::cell_key`). Without kept values the memory is
+//! proportional to the number of levels.
 //!
 //! The bytes are cut into chunks of about [`CHUNK_BYTES`] at record ends
 //! (never inside a quoted field). A producer reads (and, for a stream,
@@ -32,7 +34,7 @@ use std::sync::{Mutex, mpsc};
 /// well under 100 MiB, large enough that per-chunk overhead is negligible.
 pub const CHUNK_BYTES: usize = 4 << 20;
 
-/// What a one-factor scan reads, and what it keeps.
+/// What a scan reads, and what it keeps.
 #[derive(Debug, Clone)]
 pub struct ScanSpec<'a> {
     pub response: &'a str,
@@ -66,7 +68,8 @@ pub struct ScannedLevel {
     pub lines: Vec<usize>,
 }
 
-/// A response column split by one factor, as one pass over the file found it.
+/// A response column split by one factor (or by cells), as one pass over
+/// the file found it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Scanned {
     /// Levels in order of first appearance in the file.
