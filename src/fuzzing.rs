@@ -114,7 +114,7 @@ fn factorial_scan(data: &[u8], table: &crate::data::Table, format: &crate::data:
     match (whole, chunked) {
         (Ok(w), Ok(c)) => {
             assert_eq!(w.levels, c.levels, "factorial levels");
-            assert_eq!(w.rows, c.rows, "factorial rows");
+            assert_eq!(w.rows(), c.rows(), "factorial rows");
             assert_eq!(w.lines, c.lines, "factorial lines");
             assert_eq!(w.excluded, c.excluded, "factorial exclusions");
             let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();

@@ -430,7 +430,7 @@ fn factorial_cases(checks: &mut Vec<Check>) {
         };
         let layout = Layout {
             levels: data.levels.iter().map(Vec::len).collect(),
-            rows: data.rows,
+            rows: data.rows(),
         };
         let y: Vec<f64> = data.offsets.iter().map(|o| o + data.origin).collect();
         let terms = vec![vec![0], vec![1], vec![0, 1]];

@@ -69,7 +69,7 @@ fn load(case: &Value) -> Loaded {
     Loaded {
         layout: Layout {
             levels: data.levels.iter().map(Vec::len).collect(),
-            rows: data.rows,
+            rows: data.rows(),
         },
         y: data.offsets.iter().map(|o| o + data.origin).collect(),
         terms,

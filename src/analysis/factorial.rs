@@ -131,23 +131,6 @@ fn ss_name(t: SsType) -> &'static str {
 }
 
 /// Every combination of the given factors' levels, first factor slowest.
-/// The distinct rows of level indices (full cells) in order of first
-/// appearance, and each observation's cell.
-fn full_cells(rows: &[Vec<usize>]) -> (Vec<usize>, Vec<Vec<usize>>) {
-    let mut index: std::collections::HashMap<&[usize], usize> = std::collections::HashMap::new();
-    let mut cells: Vec<Vec<usize>> = Vec::new();
-    let cell_of = rows
-        .iter()
-        .map(|r| {
-            *index.entry(r.as_slice()).or_insert_with(|| {
-                cells.push(r.clone());
-                cells.len() - 1
-            })
-        })
-        .collect();
-    (cell_of, cells)
-}
-
 fn combinations(factors: &[usize], levels: &[usize]) -> Vec<Vec<usize>> {
     let mut out = vec![Vec::new()];
     for &f in factors {
@@ -286,7 +269,7 @@ pub fn run_factorial(
     let n = data.offsets.len();
     // Observations that share every factor's level share their design row:
     // the fit works on these full cells, each weighted by √n (see below).
-    let (cell_of, full_cells) = full_cells(&data.rows);
+    let (cell_of, full_cells) = (&data.cell_of, &data.cells);
     let layout = Layout {
         levels: levels.clone(),
         rows: full_cells.clone(),
@@ -299,7 +282,7 @@ pub fn run_factorial(
     for t in terms.iter().filter(|t| t.len() > 1) {
         for combo in combinations(t, &levels) {
             let present = data
-                .rows
+                .cells
                 .iter()
                 .any(|r| t.iter().zip(&combo).all(|(&f, &l)| r[f] == l));
             if !present {
@@ -471,12 +454,9 @@ pub fn run_factorial(
     let cells: Vec<CellRow> = combinations(&treatment, &levels)
         .into_iter()
         .map(|combo| {
-            let values: Vec<f64> = data
-                .rows
-                .iter()
-                .zip(&data.offsets)
-                .filter(|(r, _)| in_cell(r, &combo))
-                .map(|(_, y)| *y)
+            let values: Vec<f64> = (0..n)
+                .filter(|&i| in_cell(data.row(i), &combo))
+                .map(|i| data.offsets[i])
                 .collect();
             let s = GroupSummary::from_values(&values);
             CellRow {
@@ -520,7 +500,7 @@ pub fn run_factorial(
         .filter(|c| c.n > 0)
         .map(|c| {
             (0..n)
-                .filter(|&i| in_cell(&data.rows[i], &c.levels))
+                .filter(|&i| in_cell(data.row(i), &c.levels))
                 .map(|i| residuals[i])
                 .collect()
         })
@@ -542,7 +522,8 @@ pub fn run_factorial(
         let r = residuals[i] / (mse * (1.0 - h)).sqrt();
         let t = r * ((nu - 1.0) / (nu - r * r)).max(0.0).sqrt();
         if t.abs() > OUTLIER_THRESHOLD {
-            let label = data.rows[i]
+            let label = data
+                .row(i)
                 .iter()
                 .enumerate()
                 .map(|(f, &l)| data.levels[f][l].clone())
@@ -572,7 +553,7 @@ pub fn run_factorial(
         let by_level: Vec<Vec<f64>> = (0..levels[first])
             .map(|l| {
                 (0..n)
-                    .filter(|&i| data.rows[i][first] == l)
+                    .filter(|&i| data.row(i)[first] == l)
                     .map(|i| residuals[i])
                     .collect()
             })
@@ -696,8 +677,8 @@ pub fn run_factorial(
                         estimates.push(emm(&fixed));
                     }
                     let count = |l: usize| {
-                        data.rows
-                            .iter()
+                        (0..n)
+                            .map(|i| data.row(i))
                             .filter(|r| {
                                 r[f] == l
                                     && match (within, slice) {
@@ -837,6 +818,24 @@ pub fn run_factorial(
         .decimals
         .or(doc.front.decimals)
         .unwrap_or((data.decimals + 1).min(6));
+    // Only figures read the observations; without them the result (and the
+    // cache entry) stays small whatever the number of rows.
+    let (values, fitted, per_row_residuals, observation_rows, lines) =
+        if spec.plots.kinds.is_empty() {
+            Default::default()
+        } else {
+            (
+                data.offsets.iter().map(|y| data.origin + y).collect(),
+                data.offsets
+                    .iter()
+                    .zip(&residuals)
+                    .map(|(y, e)| data.origin + y - e)
+                    .collect(),
+                residuals.clone(),
+                data.rows(),
+                data.lines.clone(),
+            )
+        };
     let result = FactorialResult {
         id: block.id.clone(),
         line: block.line,
@@ -864,16 +863,11 @@ pub fn run_factorial(
         caption: spec.caption.clone(),
         order: spec.order,
         show: spec.show,
-        values: data.offsets.iter().map(|y| data.origin + y).collect(),
-        fitted: data
-            .offsets
-            .iter()
-            .zip(&residuals)
-            .map(|(y, e)| data.origin + y - e)
-            .collect(),
-        residuals: residuals.clone(),
-        rows: data.rows.clone(),
-        lines: data.lines.clone(),
+        values,
+        fitted,
+        residuals: per_row_residuals,
+        rows: observation_rows,
+        lines,
         plots: spec.plots.clone(),
     };
     Ok((result, streamed))

@@ -376,13 +376,18 @@ pub fn summary_rows(
     Ok(rows)
 }
 
-/// A response with several crossed factors, one row per observation.
+/// A response with several crossed factors, one row per observation. Rows
+/// with the same levels share one entry of `cells`, so a row costs one
+/// index, one value and one line however many factors there are.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FactorialData {
     /// Per factor, its levels in order of first appearance.
     pub levels: Vec<Vec<String>>,
-    /// Per observation, each factor's level index.
-    pub rows: Vec<Vec<usize>>,
+    /// The distinct combinations of level indices (full cells), in order of
+    /// first appearance.
+    pub cells: Vec<Vec<usize>>,
+    /// Per observation, its cell.
+    pub cell_of: Vec<usize>,
     /// Per observation, the response as an offset from `origin`.
     pub offsets: Vec<f64>,
     /// Per observation, its data line.
@@ -390,6 +395,21 @@ pub struct FactorialData {
     pub origin: f64,
     pub decimals: u32,
     pub excluded: Vec<Exclusion>,
+}
+
+impl FactorialData {
+    /// Observation i's level index for each factor.
+    pub fn row(&self, i: usize) -> &[usize] {
+        &self.cells[self.cell_of[i]]
+    }
+
+    /// Every observation's levels, one vector each (for small layouts).
+    pub fn rows(&self) -> Vec<Vec<usize>> {
+        self.cell_of
+            .iter()
+            .map(|&c| self.cells[c].clone())
+            .collect()
+    }
 }
 
 /// Extracts `response` and several factor columns; a row missing any of
@@ -448,7 +468,8 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialD
     order.sort_by_key(|o| o.0);
     FactorialData {
         levels,
-        rows: order.iter().map(|o| cell_rows[o.1].clone()).collect(),
+        cells: cell_rows,
+        cell_of: order.iter().map(|o| o.1).collect(),
         offsets: order.iter().map(|o| o.2).collect(),
         lines: order.iter().map(|o| o.0).collect(),
         origin: scanned.origin,
