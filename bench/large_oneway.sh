@@ -5,6 +5,7 @@
 #   (a2) sha256sum FILE                            the input hash every build records
 #   (b) sheaf build (one-way ANOVA, Tukey-Kramer, `checks: summary`)
 #   (b2) sheaf build with every check (values kept) for comparison
+#   (b3) sheaf build of a two-factor model (head × shift) with every check
 #   (c) pandas.read_csv + scipy.stats.f_oneway + scipy.stats.tukey_hsd
 #   (d) polars read_csv + group_by aggregation (n, mean, variance)
 # Each is timed as a whole process, best of $REPEAT, with CPU time and peak
@@ -49,6 +50,16 @@ checks: $checks
 F = {{ fill.f | fixed(4) }}
 DOC
 done
+cat > "$data/report-factorial.md" <<DOC
+# Fill weights by filling head and shift (invented data)
+
+\`\`\`anova
+id: fill
+data: $name
+model: fill_g ~ head * shift
+compare: tukey
+\`\`\`
+DOC
 cat > "$data/pandas_scipy.py" <<'PY'
 import sys
 import pandas as pd
@@ -90,6 +101,7 @@ a2=$(measure sha256sum "$csv")
 b=$(measure "$bin" build "$data/report-summary.md" -o "$data/out-summary")
 sheaf_f=$(grep -o 'F = [0-9.]*' "$data/out-summary/report-summary.html" | head -1)
 b2=$(measure "$bin" build "$data/report-all.md" -o "$data/out-all")
+b3=$(measure "$bin" build "$data/report-factorial.md" -o "$data/out-factorial")
 c=$(measure "$venv/bin/python" "$data/pandas_scipy.py" "$csv")
 scipy_f=$(grep -o 'scipy F = [0-9.]*' "$data/last.out")
 d=$(measure "$venv/bin/python" "$data/polars_agg.py" "$csv")
@@ -106,6 +118,7 @@ row "(a) cat to /dev/null" "$a"
 row "(a2) sha256sum" "$a2"
 row "(b) sheaf build, checks: summary" "$b"
 row "(b2) sheaf build, every check (values kept)" "$b2"
+row "(b3) sheaf build, head × shift, every check" "$b3"
 row "(c) pandas read_csv + f_oneway + tukey_hsd" "$c"
 row "(d) polars read_csv + group_by" "$d"
 ratio() { awk -v x="${1%% *}" -v y="${2%% *}" 'BEGIN { printf "%.2f", x / y }'; }

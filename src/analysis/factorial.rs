@@ -451,14 +451,26 @@ pub fn run_factorial(
     let treatment: Vec<usize> = (0..levels.len()).filter(|f| !blocks.contains(f)).collect();
     let in_cell =
         |row: &[usize], combo: &[usize]| treatment.iter().zip(combo).all(|(&f, &l)| row[f] == l);
-    let cells: Vec<CellRow> = combinations(&treatment, &levels)
+    let combos = combinations(&treatment, &levels);
+    // Each full cell lies in one treatment cell: group rows in one pass.
+    let treatment_of: Vec<usize> = full_cells
+        .iter()
+        .map(|r| combos.iter().position(|c| in_cell(r, c)).unwrap_or(0))
+        .collect();
+    let n_combos = combos.len();
+    let group_rows = |value: &dyn Fn(usize) -> f64| {
+        let mut groups: Vec<Vec<f64>> = vec![Vec::new(); n_combos];
+        for (i, &c) in cell_of.iter().enumerate() {
+            groups[treatment_of[c]].push(value(i));
+        }
+        groups
+    };
+    let by_treatment = group_rows(&|i| data.offsets[i]);
+    let cells: Vec<CellRow> = combos
         .into_iter()
-        .map(|combo| {
-            let values: Vec<f64> = (0..n)
-                .filter(|&i| in_cell(data.row(i), &combo))
-                .map(|i| data.offsets[i])
-                .collect();
-            let s = GroupSummary::from_values(&values);
+        .zip(&by_treatment)
+        .map(|(combo, values)| {
+            let s = GroupSummary::from_values(values);
             CellRow {
                 levels: combo,
                 n: s.n,
@@ -492,18 +504,12 @@ pub fn run_factorial(
     let residuals: Vec<f64> = (0..n)
         .map(|i| data.offsets[i] - cell_fitted[cell_of[i]])
         .collect();
-    let leverage: Vec<f64> = cell_of.iter().map(|&c| cell_leverage[c]).collect();
+    drop(by_treatment);
     // Variance checks on the residuals grouped by treatment cell: within a
     // cell of the full model these are the observations less a constant.
-    let cell_groups: Vec<Vec<f64>> = cells
-        .iter()
-        .filter(|c| c.n > 0)
-        .map(|c| {
-            (0..n)
-                .filter(|&i| in_cell(data.row(i), &c.levels))
-                .map(|i| residuals[i])
-                .collect()
-        })
+    let cell_groups: Vec<Vec<f64>> = group_rows(&|i| residuals[i])
+        .into_iter()
+        .filter(|g| !g.is_empty())
         .collect();
     let group_refs: Vec<&[f64]> = cell_groups.iter().map(Vec::as_slice).collect();
     let group_summaries: Vec<GroupSummary> = cell_groups
@@ -515,7 +521,7 @@ pub fn run_factorial(
     let mut warnings_note: Vec<String> = Vec::new();
     let mut outliers = Vec::new();
     for i in 0..n {
-        let h = leverage[i];
+        let h = cell_leverage[cell_of[i]];
         if h >= 1.0 - 1e-12 || residual_df < 2 {
             continue;
         }
@@ -550,14 +556,10 @@ pub fn run_factorial(
         // Unreplicated cells (blocks): compare the spread of the residuals
         // across the levels of the first treatment factor instead.
         let first = treatment.first().copied().unwrap_or(0);
-        let by_level: Vec<Vec<f64>> = (0..levels[first])
-            .map(|l| {
-                (0..n)
-                    .filter(|&i| data.row(i)[first] == l)
-                    .map(|i| residuals[i])
-                    .collect()
-            })
-            .collect();
+        let mut by_level: Vec<Vec<f64>> = vec![Vec::new(); levels[first]];
+        for (i, &c) in cell_of.iter().enumerate() {
+            by_level[full_cells[c][first]].push(residuals[i]);
+        }
         let refs: Vec<&[f64]> = by_level.iter().map(Vec::as_slice).collect();
         let sums: Vec<GroupSummary> = by_level
             .iter()
@@ -676,17 +678,21 @@ pub fn run_factorial(
                         }
                         estimates.push(emm(&fixed));
                     }
+                    // Observations at level l (within the slice): summed over
+                    // the full cells, each holding cell_summaries[c].n rows.
                     let count = |l: usize| {
-                        (0..n)
-                            .map(|i| data.row(i))
-                            .filter(|r| {
+                        full_cells
+                            .iter()
+                            .zip(&cell_summaries)
+                            .filter(|(r, _)| {
                                 r[f] == l
                                     && match (within, slice) {
                                         (Some(w), Some(s)) => r[w] == s,
                                         _ => true,
                                     }
                             })
-                            .count()
+                            .map(|(_, c)| c.n)
+                            .sum::<usize>()
                     };
                     let means: Vec<EmmRow> = estimates
                         .iter()
