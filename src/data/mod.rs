@@ -455,23 +455,36 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialD
                 .collect()
         })
         .collect();
-    let mut order: Vec<(usize, usize, f64)> = cells
+    // Each cell's rows are in file order already: merge the cells by line
+    // (a heap over the cells), writing each row once.
+    let total: usize = cells.iter().map(|c| c.lines.len()).sum();
+    let (mut cell_of, mut offsets, mut lines) = (
+        Vec::with_capacity(total),
+        Vec::with_capacity(total),
+        Vec::with_capacity(total),
+    );
+    let mut next = vec![0usize; cells.len()];
+    let mut heap: std::collections::BinaryHeap<std::cmp::Reverse<(usize, usize)>> = cells
         .iter()
         .enumerate()
-        .flat_map(|(k, c)| {
-            c.lines
-                .iter()
-                .zip(&c.offsets)
-                .map(move |(&l, &y)| (l, k, y))
-        })
+        .map(|(k, c)| std::cmp::Reverse((c.lines[0], k)))
         .collect();
-    order.sort_by_key(|o| o.0);
+    while let Some(std::cmp::Reverse((line, k))) = heap.pop() {
+        let j = next[k];
+        cell_of.push(k);
+        offsets.push(cells[k].offsets[j]);
+        lines.push(line);
+        next[k] += 1;
+        if let Some(&following) = cells[k].lines.get(j + 1) {
+            heap.push(std::cmp::Reverse((following, k)));
+        }
+    }
     FactorialData {
         levels,
         cells: cell_rows,
-        cell_of: order.iter().map(|o| o.1).collect(),
-        offsets: order.iter().map(|o| o.2).collect(),
-        lines: order.iter().map(|o| o.0).collect(),
+        cell_of,
+        offsets,
+        lines,
         origin: scanned.origin,
         decimals: scanned.decimals,
         excluded: scanned.excluded,
