@@ -218,32 +218,11 @@ impl Table {
     }
 }
 
-/// One level of the factor: its observations as offsets from the column origin.
-#[derive(Debug, Clone, PartialEq)]
-pub struct LevelData {
-    pub name: String,
-    pub offsets: Vec<f64>,
-    /// File line of each observation, for diagnostics that name rows.
-    pub lines: Vec<usize>,
-}
-
 /// A row left out of the analysis, and why.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Exclusion {
     pub line: usize,
     pub reason: String,
-}
-
-/// A response column split by one factor.
-#[derive(Debug, Clone, PartialEq)]
-pub struct FactorResponse {
-    /// Levels in order of first appearance in the file.
-    pub levels: Vec<LevelData>,
-    /// Every offset is relative to this value (see `decimal`).
-    pub origin: f64,
-    /// Most digits after the decimal point among the response values.
-    pub decimals: u32,
-    pub excluded: Vec<Exclusion>,
 }
 
 /// Extracts `response` split by `factor` from a table, with the same
@@ -253,22 +232,8 @@ pub fn factor_response(
     response: &str,
     factor: &str,
     format: &CsvFormat,
-) -> Result<FactorResponse, DataError> {
-    let scanned = scan::scan_table(table, response, &[factor], format)?;
-    Ok(FactorResponse {
-        levels: scanned
-            .levels
-            .into_iter()
-            .map(|l| LevelData {
-                name: l.name,
-                offsets: l.offsets,
-                lines: l.lines,
-            })
-            .collect(),
-        origin: scanned.origin,
-        decimals: scanned.decimals,
-        excluded: scanned.excluded,
-    })
+) -> Result<scan::Scanned, DataError> {
+    scan::scan_table(table, response, &[factor], format)
 }
 
 /// Which columns of a summary table hold n, the mean and the spread.
