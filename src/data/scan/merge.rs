@@ -33,9 +33,8 @@ impl Merged {
 
     /// Adds the next chunk's outcome. A chunk with `relative` lines gets
     /// the line it starts on; an error is returned with its absolute line.
-    /// Offsets are from the file's origin, unless the first chunk had no
-    /// value at all: then they are from the chunk's own first value and are
-    /// moved to the file's origin by one shift.
+    /// Every chunk's offsets are from the file's origin: `scan_file` reads
+    /// chunks one by one until the first value fixes it.
     pub(super) fn add(
         &mut self,
         outcome: Result<ChunkResult, DataError>,
@@ -62,14 +61,9 @@ impl Merged {
         } else {
             self.next_line = chunk.end_line;
         }
-        let shift = match (chunk.origin, self.origin) {
-            (None, _) => 0.0,
-            (Some(o), None) => {
-                self.origin = Some((o, o.to_f64()));
-                0.0
-            }
-            (Some(o), Some((global, global_f64))) => offset_from(o, global, global_f64),
-        };
+        if self.origin.is_none() {
+            self.origin = chunk.origin.map(|o| (o, o.to_f64()));
+        }
         for (local, name) in chunk.names.into_iter().enumerate() {
             let g = match self.index.get(name.as_str()) {
                 Some(&g) => g,
@@ -88,20 +82,10 @@ impl Merged {
                     self.levels.len() - 1
                 }
             };
-            let mut part = chunk.summaries[local];
-            if shift != 0.0 {
-                part.mean += shift;
-            }
             let level = &mut self.levels[g];
-            level.summary = level.summary.merge(&part);
+            level.summary = level.summary.merge(&chunk.summaries[local]);
             if self.keep_values {
-                if shift != 0.0 {
-                    level
-                        .offsets
-                        .extend(chunk.offsets[local].iter().map(|v| v + shift));
-                } else {
-                    level.offsets.extend_from_slice(&chunk.offsets[local]);
-                }
+                level.offsets.extend_from_slice(&chunk.offsets[local]);
                 level.lines.extend_from_slice(&chunk.lines[local]);
             }
         }
