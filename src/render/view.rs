@@ -381,7 +381,9 @@ fn kruskal_table(r: &AnovaResult, number: usize) -> TableView {
         Some(c) => format!("Table {number}. {c}"),
         None => format!(
             "Table {number}. Kruskal-Wallis test of {} by {} (N = {}).",
-            r.response, r.factor, r.table.n
+            measure(&r.response, &r.plots),
+            r.factor,
+            r.table.n
         ),
     };
     TableView {
@@ -1040,7 +1042,7 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             &r.checks,
             id,
             r.alpha,
-            &format!("{} by {factors_text}", r.response),
+            &format!("{} by {factors_text}", measure(&r.response, &r.plots)),
             numbers.next(),
         ));
     }
@@ -1096,7 +1098,10 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             tables.push(TableView {
                 number,
                 id: format!("{id}-means-{}{}", fam.term, fam.within.as_ref().map_or(String::new(), |w| format!("-{w}"))),
-                caption: format!("Table {number}. {kind} of {} by {what}{slice}.", r.response),
+                caption: format!(
+                    "Table {number}. {kind} of {} by {what}{slice}.",
+                    measure(&r.response, &r.plots)
+                ),
                 columns: vec![col(what.clone(), false), col("n", true), col("Mean", true), col("SE", true), col(format!("{conf} CI"), true), col("Letters", false)],
                 rows,
                 footnotes: vec![
@@ -1265,7 +1270,7 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
         id: format!("{}-cells", r.id),
         caption: format!(
             "Table {number}. Cell means of {} by {}.",
-            r.response,
+            measure(&r.response, &r.plots),
             cf.iter()
                 .map(|&f| r.factors[f].as_str())
                 .collect::<Vec<_>>()
