@@ -11,6 +11,8 @@ use super::special::ln_gamma;
 
 const LN_2: f64 = std::f64::consts::LN_2;
 const HALF_LN_2PI: f64 = 0.918_938_533_204_672_8;
+/// What the outer integral may leave out on the left: 1e-17 in probability.
+const NEGLIGIBLE: f64 = 1e-17;
 
 /// ln of the density of t = ln s at its mode t = 0, where s = √(χ²_ν/ν).
 ///
@@ -50,38 +52,51 @@ pub fn chi_scale_expectation(df: f64, f: impl Fn(f64) -> f64) -> f64 {
     while shape(t_lo) > CUT && t_lo > -60.0 {
         t_lo -= sd;
     }
-    // Panels eight standard deviations wide near the mode and sixteen in the
+    // Panels six standard deviations wide near the mode and sixteen in the
     // long left tail of small ν (16 nodes each), but never wider than 0.5 and
     // 1.0 in t: with many means f itself turns steeply within a unit of t.
-    // For the studentized range this keeps |Δcdf| against scipy below 2e-10
-    // over the test grid (k = 2..100, ν = 2..∞) at about a third of the cost
-    // of panels two standard deviations wide.
+    // For the studentized range this keeps |Δcdf| within 3e-12 of the same
+    // integral on panels one standard deviation wide with 20 nodes each, over
+    // k = 2..100, ν = 1..1e7, q = 0.5..20 (eight standard deviations gave
+    // 1.4e-10 at ν = 1e7).
     let rule = gauss_legendre_16();
     let mut total = 0.0;
     let mut right = t_hi;
     while right > t_lo {
         let width = if right > -4.0 * sd {
-            (8.0 * sd).min(0.5)
+            (6.0 * sd).min(0.5)
         } else {
             (16.0 * sd).min(1.0)
         };
         let left = (right - width).max(t_lo);
-        // f at the panel's leftmost evaluated node (the rule runs left to
-        // right): f is non-decreasing, so it bounds f on everything further left.
-        let mut leftmost_f = None;
+        // f and the weight at the panel's leftmost evaluated node (the rule
+        // runs left to right). f is non-decreasing, so f(t_l) bounds it on
+        // everything further left; left of the mode ln g rises at least at
+        // the rate ν(1 − e^{2t_l}) there, so ∫_{−∞}^{t_l} g·f is at most
+        // f(t_l)·g(t_l)/(ν(1 − e^{2t_l})), and also at most f(t_l).
+        let mut leftmost = None;
         total += rule.integrate(left, right, |t| {
             let ln_weight = shape(t);
             if ln_weight < CUT {
                 0.0
             } else {
                 let value = f(t.exp());
-                leftmost_f.get_or_insert(value);
-                (mode + ln_weight).exp() * value
+                let weight = (mode + ln_weight).exp();
+                leftmost.get_or_insert((t, value, weight));
+                weight * value
             }
         });
-        // Once f has vanished on the left, nothing more can come.
-        if left < -4.0 * sd && leftmost_f.unwrap_or(0.0) < 1e-18 {
-            break;
+        // Once nothing more can come from the left, stop.
+        if let Some((t, value, weight)) = leftmost {
+            let rate = -df * (2.0 * t).exp_m1();
+            let rest = if t < 0.0 {
+                value * (weight / rate).min(1.0)
+            } else {
+                value
+            };
+            if rest < NEGLIGIBLE {
+                break;
+            }
         }
         right = left;
     }
