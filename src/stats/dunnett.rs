@@ -49,7 +49,7 @@ pub fn dunnett_cdf(d: f64, lambdas: &[f64], df: f64, sides: Sides) -> f64 {
         }
         total
     };
-    chi_scale_expectation(df, |s| normal_part(d * s))
+    chi_scale_expectation(df, lambdas.len() + 1, |s| normal_part(d * s))
 }
 
 /// Dunnett's comparisons of each treatment with `control`, pooled MSE on ν df.

@@ -113,7 +113,7 @@ pub fn ptukey_cdf(q: f64, k: usize, df: f64) -> f64 {
     if df.is_infinite() {
         return range_cdf(q, k);
     }
-    chi_scale_expectation(df, |s| range_cdf(q * s, k))
+    chi_scale_expectation(df, k, |s| range_cdf(q * s, k))
 }
 
 /// P(Q > q): the p-value of a studentized range statistic.
