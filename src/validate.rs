@@ -120,6 +120,7 @@ const NIST: [(&str, &str); 11] = [
 ];
 const NIST_CERTIFIED: &str = include_str!("../tests/data/nist/certified.json");
 const DISTRIBUTIONS: &str = include_str!("../tests/reference/distributions.json");
+const PTUKEY_MPMATH: &str = include_str!("../tests/reference/ptukey_mpmath.json");
 const ONEWAY: &str = include_str!("../tests/reference/oneway.json");
 const ROBUST: &str = include_str!("../tests/reference/robust.json");
 const FACTORIAL: &str = include_str!("../tests/reference/factorial.json");
@@ -285,6 +286,21 @@ fn distributions(checks: &mut Vec<Check>) {
             got,
             num(&r["cdf"]),
             Bar::MaxAbs { diff: 1e-8 },
+        ));
+    }
+    let fx: Value = serde_json::from_str(PTUKEY_MPMATH).unwrap_or(Value::Null);
+    for r in fx["ptukey_cdf"].as_array().into_iter().flatten() {
+        let k = r["k"].as_u64().unwrap_or(2) as usize;
+        let got = ptukey_cdf(num(&r["q"]), k, num(&r["df"]));
+        checks.push(Check::new(
+            format!(
+                "studentized range cdf, q = {}, k = {k}, df = {}",
+                r["q"], r["df"]
+            ),
+            "mpmath quadrature at 20 digits",
+            got,
+            num(&r["cdf"]),
+            Bar::MaxAbs { diff: 1e-11 },
         ));
     }
 }
