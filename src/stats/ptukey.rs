@@ -7,7 +7,7 @@
 //! no switch to the ν = ∞ limit until ν is infinite.
 
 use super::chi_scale::chi_scale_expectation;
-use super::dist::{normal_sf, t_isf};
+use super::dist::{normal_sf, t_isf, t_sf};
 use super::normal_table::NormalTable;
 use super::quadrature::gauss_legendre_16;
 use super::roots::{brent, brent_known};
@@ -110,6 +110,9 @@ pub fn ptukey_cdf(q: f64, k: usize, df: f64) -> f64 {
     if q.is_infinite() {
         return 1.0;
     }
+    if k == 2 {
+        return 1.0 - two_means_sf(q, df);
+    }
     if df.is_infinite() {
         return range_cdf(q, k);
     }
@@ -118,7 +121,16 @@ pub fn ptukey_cdf(q: f64, k: usize, df: f64) -> f64 {
 
 /// P(Q > q): the p-value of a studentized range statistic.
 pub fn ptukey_sf(q: f64, k: usize, df: f64) -> f64 {
+    if k == 2 && q > 0.0 {
+        return two_means_sf(q, df);
+    }
     (1.0 - ptukey_cdf(q, k, df)).max(0.0)
+}
+
+/// With two means the studentized range is √2·|t| exactly (METHODS 6.8), so
+/// P(Q > q) = 2·P(T > q/√2) in closed form, accurate even in the far tail.
+fn two_means_sf(q: f64, df: f64) -> f64 {
+    (2.0 * t_sf(q * std::f64::consts::FRAC_1_SQRT_2, df)).min(1.0)
 }
 
 /// The upper-α critical value q_{1−α; k, ν}.
