@@ -9,7 +9,8 @@
 
 use super::chi_scale::chi_scale_expectation;
 use super::compare::{Method, Pair, Pairwise};
-use super::dist::{normal_cdf, normal_pdf, t_sf};
+use super::dist::t_sf;
+use super::normal_table::NormalTable;
 use super::quadrature::gauss_legendre_16;
 use super::roots::brent;
 
@@ -30,6 +31,9 @@ pub fn dunnett_cdf(d: f64, lambdas: &[f64], df: f64, sides: Sides) -> f64 {
         return 0.0;
     }
     let rule = gauss_legendre_16();
+    // Φ and φ from the table (a few ulps): the product runs over every
+    // treatment at every node of both integrals.
+    let normal = NormalTable::get();
     let scales: Vec<(f64, f64)> = lambdas.iter().map(|&l| (l, (1.0 - l * l).sqrt())).collect();
     let normal_part = |x: f64| -> f64 {
         // ∫ φ(z) Πᵢ [...] dz over [−8.5, 8.5] on panels 0.5 wide.
@@ -37,11 +41,20 @@ pub fn dunnett_cdf(d: f64, lambdas: &[f64], df: f64, sides: Sides) -> f64 {
         for p in 0..34 {
             let a = -8.5 + 0.5 * p as f64;
             total += rule.integrate(a, a + 0.5, |z| {
-                let mut prod = normal_pdf(z);
+                let mut prod = normal.pdf(z);
                 for &(l, s) in &scales {
+                    let upper = (l * z + x) / s;
                     prod *= match sides {
-                        Sides::Two => normal_cdf((l * z + x) / s) - normal_cdf((l * z - x) / s),
-                        _ => normal_cdf((l * z + x) / s),
+                        Sides::Two => {
+                            // Φ(upper) − Φ(lower) without cancellation near 1.
+                            let lower = (l * z - x) / s;
+                            if lower >= 0.0 {
+                                normal.sf(lower) - normal.sf(upper)
+                            } else {
+                                normal.cdf(upper) - normal.cdf(lower)
+                            }
+                        }
+                        _ => normal.cdf(upper),
                     };
                 }
                 prod
