@@ -268,41 +268,37 @@ fn distributions(checks: &mut Vec<Check>) {
             Bar::MinLre { lre: 9.0 },
         ));
     }
-    for r in fx["ptukey_cdf"]
+    let scipy_rows = fx["ptukey_cdf"]
         .as_array()
         .into_iter()
         .flatten()
-        .filter(|r| r["k"].as_u64().unwrap_or(0) <= 20 && num(&r["q"]) >= 2.0)
-    {
-        let k = r["k"].as_u64().unwrap_or(2) as usize;
-        let df = r["df"].as_f64().unwrap_or(f64::INFINITY);
-        let got = ptukey_cdf(num(&r["q"]), k, df);
-        checks.push(Check::new(
-            format!(
-                "studentized range cdf, q = {}, k = {k}, df = {}",
-                r["q"], r["df"]
-            ),
-            "scipy.stats.studentized_range.cdf",
-            got,
-            num(&r["cdf"]),
-            Bar::MaxAbs { diff: 1e-8 },
-        ));
+        .filter(|r| r["k"].as_u64().unwrap_or(0) <= 20 && num(&r["q"]) >= 2.0);
+    let scipy = "scipy.stats.studentized_range.cdf";
+    for r in scipy_rows {
+        checks.push(ptukey_check(r, scipy, Bar::MaxAbs { diff: 1e-8 }));
     }
     let fx: Value = serde_json::from_str(PTUKEY_MPMATH).unwrap_or(Value::Null);
     for r in fx["ptukey_cdf"].as_array().into_iter().flatten() {
-        let k = r["k"].as_u64().unwrap_or(2) as usize;
-        let got = ptukey_cdf(num(&r["q"]), k, num(&r["df"]));
-        checks.push(Check::new(
-            format!(
-                "studentized range cdf, q = {}, k = {k}, df = {}",
-                r["q"], r["df"]
-            ),
-            "mpmath quadrature at 20 digits",
-            got,
-            num(&r["cdf"]),
-            Bar::MaxAbs { diff: 1e-11 },
-        ));
+        let mpmath = "mpmath quadrature at 20 digits";
+        checks.push(ptukey_check(r, mpmath, Bar::MaxAbs { diff: 1e-11 }));
     }
+}
+
+/// One studentized-range cdf check from a fixture row {q, k, df, cdf}
+/// (df null for infinity).
+fn ptukey_check(r: &Value, source: &str, bar: Bar) -> Check {
+    let k = r["k"].as_u64().unwrap_or(2) as usize;
+    let df = r["df"].as_f64().unwrap_or(f64::INFINITY);
+    Check::new(
+        format!(
+            "studentized range cdf, q = {}, k = {k}, df = {}",
+            r["q"], r["df"]
+        ),
+        source,
+        ptukey_cdf(num(&r["q"]), k, df),
+        num(&r["cdf"]),
+        bar,
+    )
 }
 
 fn oneway_cases(checks: &mut Vec<Check>) {

@@ -71,27 +71,27 @@ fn t_and_f_critical_values_match_scipy_up_to_ten_million_df() {
     }
 }
 
-#[test]
-fn studentized_range_cdf_matches_scipy_on_a_grid() {
-    // Source: scipy.stats.studentized_range.cdf over k = 2..100, ν = 2..∞,
-    // q = 0.5..12. The bar is 1e-8 absolute everywhere.
-    let fx = fixture();
+/// The largest |ptukey_cdf − reference| over a fixture's `ptukey_cdf` rows,
+/// with the row where it occurs.
+fn worst_ptukey_error(fixture: &Value) -> (f64, String) {
     let mut worst = (0.0f64, String::new());
-    for r in rows(&fx, "ptukey_cdf") {
+    for r in rows(fixture, "ptukey_cdf") {
         let k = r["k"].as_u64().expect("k") as usize;
-        let got = ptukey_cdf(f(r, "q"), k, f(r, "df"));
-        let err = (got - f(r, "cdf")).abs();
+        let err = (ptukey_cdf(f(r, "q"), k, f(r, "df")) - f(r, "cdf")).abs();
         if err > worst.0 {
             worst = (err, r.to_string());
         }
     }
-    println!("worst |Δcdf| = {:.2e} at {}", worst.0, worst.1);
-    assert!(
-        worst.0 < 1e-8,
-        "worst |Δcdf| = {:.3e} at {}",
-        worst.0,
-        worst.1
-    );
+    worst
+}
+
+#[test]
+fn studentized_range_cdf_matches_scipy_on_a_grid() {
+    // Source: scipy.stats.studentized_range.cdf over k = 2..100, ν = 2..∞,
+    // q = 0.5..12. The bar is 1e-8 absolute everywhere.
+    let (err, at) = worst_ptukey_error(&fixture());
+    println!("worst |Δcdf| against scipy = {err:.2e} at {at}");
+    assert!(err < 1e-8, "worst |Δcdf| = {err:.3e} at {at}");
 }
 
 #[test]
@@ -102,25 +102,9 @@ fn studentized_range_cdf_matches_mpmath_at_twenty_digits() {
     // denser rule); scipy's own quadrature cannot check it that closely.
     let fx: Value =
         serde_json::from_str(include_str!("reference/ptukey_mpmath.json")).expect("fixture");
-    let mut worst = (0.0f64, String::new());
-    for r in rows(&fx, "ptukey_cdf") {
-        let k = r["k"].as_u64().expect("k") as usize;
-        let got = ptukey_cdf(f(r, "q"), k, f(r, "df"));
-        let err = (got - f(r, "cdf")).abs();
-        if err > worst.0 {
-            worst = (err, r.to_string());
-        }
-    }
-    println!(
-        "worst |Δcdf| against mpmath = {:.2e} at {}",
-        worst.0, worst.1
-    );
-    assert!(
-        worst.0 < 1e-11,
-        "worst |Δcdf| = {:.3e} at {}",
-        worst.0,
-        worst.1
-    );
+    let (err, at) = worst_ptukey_error(&fx);
+    println!("worst |Δcdf| against mpmath = {err:.2e} at {at}");
+    assert!(err < 1e-11, "worst |Δcdf| = {err:.3e} at {at}");
 }
 
 #[test]

@@ -31,7 +31,7 @@ pub fn range_cdf(w: f64, k: usize) -> f64 {
     let normal = NormalTable::get();
     // P_R = (2Φ(w/2) − 1)^k + 2k ∫_{w/2}^{∞} φ(x)·B(x)^{k−1} dx with
     // B(x) = Φ(x) − Φ(x − w), by 16-point Gauss-Legendre panels (see
-    // chi_scale for the measured error against scipy).
+    // chi_scale for the measured error).
     let tail = normal_sf(half);
     let peak = 1.0 - 2.0 * tail;
     let central = power(peak, k);
