@@ -31,6 +31,25 @@ fn ln_density_at_mode(df: f64) -> f64 {
     }
 }
 
+/// e^x − 1 − x without cancellation near 0 (its Taylor series there). With
+/// huge ν the log density is ν times this at |x| ~ 1/√ν: the difference
+/// e^x − 1 − x taken directly would lose every digit.
+fn exp_m1_minus_x(x: f64) -> f64 {
+    if x.abs() >= 0.1 {
+        // Cancellation costs at most a factor 2/|x| ≤ 20 in relative error.
+        return x.exp_m1() - x;
+    }
+    // x²/2! + x³/3! + … ; at |x| < 0.1 the terms after x¹² are below 1e-22
+    // of the first.
+    let mut term = 0.5 * x * x;
+    let mut sum = term;
+    for n in 3..=12 {
+        term *= x / n as f64;
+        sum += term;
+    }
+    sum
+}
+
 /// E[f(s)] for s = √(χ²_ν/ν), where f is non-decreasing with values in
 /// [0, 1] (a probability that grows with s) and rises about as steeply in
 /// ln s as the cdf of the range of `means` normals. ν may be fractional;
@@ -40,8 +59,8 @@ pub fn chi_scale_expectation(df: f64, means: usize, f: impl Fn(f64) -> f64) -> f
         return f(1.0);
     }
     let mode = ln_density_at_mode(df);
-    // ln g(t) − ln g(0) = ν·t − (ν/2)·(e^{2t} − 1)
-    let shape = |t: f64| df * t - 0.5 * df * (2.0 * t).exp_m1();
+    // ln g(t) − ln g(0) = ν·t − (ν/2)·(e^{2t} − 1) = −(ν/2)·(e^{2t} − 1 − 2t)
+    let shape = |t: f64| -0.5 * df * exp_m1_minus_x(2.0 * t);
     let sd = 1.0 / (2.0 * df).sqrt();
     // Mass beyond a log-density drop of 46 is below 1e-20.
     const CUT: f64 = -46.0;

@@ -42,3 +42,50 @@ fn many_quantiles_agree_with_one_at_a_time() {
         }
     }
 }
+
+#[test]
+fn extreme_arguments_stay_probabilities_and_monotone_in_q() {
+    // Property (METHODS 6.8): for any k and ν the cdf is a probability and
+    // does not decrease in q. Covers the table's edges (|x| near 9), the
+    // inner and outer stopping bounds, fractional and huge ν, many means.
+    let qs = [
+        1e-6, 0.01, 0.3, 1.0, 2.0, 3.5, 5.0, 7.0, 10.0, 17.0, 18.0, 40.0, 1e3,
+    ];
+    for &k in &[3usize, 7, 100, 1000, 10_000] {
+        for &df in &[1.0, 1.5, 2.0, 7.3, 1e3, 1e9, 1e300, f64::INFINITY] {
+            let mut last = 0.0;
+            for &q in &qs {
+                let p = ptukey_cdf(q, k, df);
+                assert!((0.0..=1.0).contains(&p), "k {k} ν {df} q {q}: {p}");
+                // Quadrature noise may wiggle the last digits: 1e-12.
+                assert!(p >= last - 1e-12, "k {k} ν {df} q {q}: {p} < {last}");
+                last = p;
+            }
+        }
+    }
+}
+
+#[test]
+fn huge_error_df_approach_the_infinite_limit() {
+    // Property: as ν → ∞ the studentized range tends to the range of k
+    // normals; at ν = 1e300 the two agree to the quadrature's own accuracy
+    // (1e-11). This once looped forever: the chi density's log, taken as
+    // ν·t − (ν/2)(e^{2t} − 1), lost every digit to cancellation.
+    for &k in &[3usize, 10, 50] {
+        for &q in &[2.0, 3.5, 5.0] {
+            let (huge, limit) = (ptukey_cdf(q, k, 1e300), ptukey_cdf(q, k, f64::INFINITY));
+            assert!(
+                (huge - limit).abs() < 1e-11,
+                "k {k} q {q}: {huge} vs {limit}"
+            );
+        }
+        let (huge, limit) = (
+            qtukey_isf(0.05, k, 1e300),
+            qtukey_isf(0.05, k, f64::INFINITY),
+        );
+        assert!(
+            (huge / limit - 1.0).abs() < 1e-9,
+            "k {k}: {huge} vs {limit}"
+        );
+    }
+}
