@@ -2,9 +2,12 @@
 //! Cohen's f, a confidence interval for partial η² by inverting the
 //! noncentral F (Steiger 2004), and one-way power (METHODS 3.16, 3.18).
 
-use super::dist::f_isf;
+use super::dist::{f_cdf, f_isf};
 use super::roots::brent;
 use super::special::{inc_beta_pair, ln_beta, ln_gamma};
+
+/// λ/2 beyond which `ncf_cdf` uses Patnaik's approximation.
+const PATNAIK_FROM: f64 = 1e7;
 
 /// Noncentral F cdf P(F ≤ x; d1, d2, λ) as a Poisson mixture of incomplete
 /// betas, summed outward from the Poisson mode (Lenth 1987, AS 226). One
@@ -20,6 +23,17 @@ pub fn ncf_cdf(x: f64, d1: f64, d2: f64, nc: f64) -> f64 {
         return 1.0;
     }
     let half = nc / 2.0;
+    if half > PATNAIK_FROM {
+        // The series needs a few √λ terms each way; beyond here that is too
+        // many (and beyond 2^53 the term index stops changing in f64). The
+        // numerator χ²_{d1}(λ) is then c·χ²_ν with the same mean and variance
+        // (Patnaik 1949, Biometrika 36:202-232), c = (d1 + 2λ)/(d1 + λ) and
+        // ν = (d1 + λ)²/(d1 + 2λ); its error shrinks like 1/√λ, far below
+        // what an interval for partial η² is printed to at such λ.
+        let c = (d1 + 2.0 * nc) / (d1 + nc);
+        let nu = (d1 + nc) * (d1 + nc) / (d1 + 2.0 * nc);
+        return f_cdf(x * d1 / (c * nu), nu, d2);
+    }
     let denom = d2 + d1 * x;
     let (bx, by) = (d1 * x / denom, d2 / denom);
     let b = d2 / 2.0;

@@ -40,3 +40,21 @@ fn cohen_power_table() {
     // Computed (METHODS 6.7): k = 3, n = 10, f = 0.25 → 0.19514.
     assert!((one_way_power(3, 10, 0.25, 0.05) - 0.19514).abs() < 5e-6);
 }
+
+#[test]
+fn huge_noncentrality_uses_the_two_moment_approximation() {
+    // Source: scipy.stats.ncf.cdf 1.17.1 (Boost's series): at λ = 1.5e8,
+    // x = 5e7, d = (3, 1e9): 0.49996737780231626; at λ = 4.1e7, x = 1e7,
+    // d = (4, 500): 0.33977615558472757. Patnaik's error shrinks like 1/√λ
+    // (measured 4.9e-6 and 8.3e-13 here): bar 1e-3. A huge λ (summary
+    // input with n = 1e20) once made the series loop forever; it must now
+    // return at once.
+    let p = ncf_cdf(5e7, 3.0, 1e9, 1.5e8);
+    println!("Δ at λ = 1.5e8: {:.1e}", p - 0.499_967_377_802_316_26);
+    assert!((p - 0.499_967_377_802_316_26).abs() < 1e-3, "{p}");
+    let p = ncf_cdf(1e7, 4.0, 500.0, 4.1e7);
+    println!("Δ at λ = 4.1e7: {:.1e}", p - 0.339_776_155_584_727_57);
+    assert!((p - 0.339_776_155_584_727_57).abs() < 1e-3, "{p}");
+    let p = ncf_cdf(1e20, 2.0, 3e20, 2e20);
+    assert!((0.0..=1.0).contains(&p), "{p}");
+}
