@@ -10,7 +10,7 @@
 //! (9/64)¹⁰/10! ≈ 8e-16 of the value. What remains is rounding: a few ulps
 //! of the value (times about 1 + x² far out, from the conditioning of Φ
 //! itself). The density comes from the same polynomial's derivative. The
-//! table is 576 steps of ten coefficients, 46 KiB, read in order by
+//! table is 576 steps of ten coefficients, 45 KiB, read in order by
 //! quadrature sweeps.
 //! Beyond ±9, Φ differs from 0 or 1 by less than 1.2e-19.
 //! tests: stats::normal_table::tests compares it with `dist::normal_cdf`.

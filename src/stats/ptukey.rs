@@ -12,7 +12,7 @@ use super::normal_table::NormalTable;
 use super::quadrature::gauss_legendre_16;
 use super::roots::{brent, brent_known};
 
-/// Beyond this the normal density is below 1e-17: nothing left to integrate.
+/// Beyond this the normal tail holds below 1e-17: nothing left to integrate.
 const NORMAL_EDGE: f64 = 8.5;
 /// What the inner integral may leave out, in probability: 1e-17, far below
 /// the cdf's own rounding.
