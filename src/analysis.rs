@@ -485,36 +485,85 @@ pub(crate) fn exclusion_notes(excluded: &[Exclusion], path: &str) -> Vec<String>
             format!("by the document ({})", e.reason)
         }
     };
-    let mut kinds: Vec<String> = Vec::new();
+    // One pass: the lines of each kind, kinds in order of first appearance.
+    let mut kinds: Vec<(String, Vec<usize>)> = Vec::new();
     for e in excluded {
         let k = kind(e);
-        if !kinds.contains(&k) {
-            kinds.push(k);
+        match kinds.iter_mut().find(|(name, _)| *name == k) {
+            Some((_, lines)) => lines.push(e.line),
+            None => kinds.push((k, vec![e.line])),
         }
     }
     kinds
         .into_iter()
-        .map(|k| {
-            let mut lines: Vec<usize> = excluded
-                .iter()
-                .filter(|e| kind(e) == k)
-                .map(|e| e.line)
-                .collect();
+        .map(|(k, mut lines)| {
             lines.dedup();
             let count = lines.len();
-            let shown: Vec<String> = lines.iter().take(12).map(|l| l.to_string()).collect();
-            let more = if count > 12 { ", …" } else { "" };
-            let (rows, were, line_word) = if count == 1 {
-                ("row", "was", "line")
+            let (rows, were) = if count == 1 {
+                ("row", "was")
             } else {
-                ("rows", "were", "lines")
+                ("rows", "were")
             };
             format!(
-                "{count} {rows} of {path} {were} left out {k} ({line_word} {}{more}).",
-                shown.join(", ")
+                "{} {rows} of {path} {were} left out {k} ({}).",
+                crate::render::format::count(count),
+                line_ranges(&lines)
             )
         })
         .collect()
+}
+
+/// How many runs of consecutive lines an exclusion note names before it
+/// summarises the rest (the results file keeps every line).
+const EXCLUSION_RUNS_LISTED: usize = 24;
+
+/// "line 7", "lines 3, 5–9 and 12", or the first runs and a count of the
+/// rest: runs of consecutive lines are written as ranges.
+pub(crate) fn line_ranges(lines: &[usize]) -> String {
+    let mut runs: Vec<(usize, usize)> = Vec::new();
+    for &line in lines {
+        match runs.last_mut() {
+            Some((_, end)) if line == *end + 1 => *end = line,
+            _ => runs.push((line, line)),
+        }
+    }
+    // Two neighbours read better as two lines than as a range.
+    let runs: Vec<(usize, usize)> = runs
+        .into_iter()
+        .flat_map(|(a, b)| {
+            if b == a + 1 {
+                vec![(a, a), (b, b)]
+            } else {
+                vec![(a, b)]
+            }
+        })
+        .collect();
+    let text = |&(a, b): &(usize, usize)| {
+        if a == b {
+            a.to_string()
+        } else {
+            format!("{a}–{b}")
+        }
+    };
+    let word = if lines.len() == 1 { "line" } else { "lines" };
+    let shown: Vec<String> = runs.iter().take(EXCLUSION_RUNS_LISTED).map(text).collect();
+    if runs.len() <= EXCLUSION_RUNS_LISTED {
+        let listed = match shown.split_last() {
+            Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
+            _ => shown.join(""),
+        };
+        return format!("{word} {listed}");
+    }
+    let rest: usize = runs[EXCLUSION_RUNS_LISTED..]
+        .iter()
+        .map(|(a, b)| b - a + 1)
+        .sum();
+    format!(
+        "lines {}, and {} more up to line {}; the results file lists every line",
+        shown.join(", "),
+        crate::render::format::count(rest),
+        runs.last().map_or(0, |r| r.1)
+    )
 }
 
 /// Renames levels for display (`labels`); names not listed stay as they are.
@@ -1026,6 +1075,9 @@ pub struct Checks {
     /// Largest over smallest level SD.
     pub sd_ratio: f64,
     pub balanced: bool,
+    /// How many observations are beyond the outlier threshold in all.
+    pub outlier_count: usize,
+    /// The most extreme of them (at most `OUTLIERS_KEPT`), in data order.
     pub outliers: Vec<OutlierRow>,
     /// Only summaries were given, so the raw-data checks could not run.
     pub from_summary: bool,
@@ -1072,6 +1124,7 @@ fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks {
         excess_kurtosis: f64::NAN,
         sd_ratio,
         balanced: summaries.iter().all(|s| s.n == summaries[0].n),
+        outlier_count: 0,
         outliers: Vec::new(),
         from_summary: true,
         by_request: false,
@@ -1095,7 +1148,9 @@ fn assumption_checks(
     let (skewness, excess_kurtosis) = skewness_kurtosis(&residuals);
     let sd_ratio = sd_ratio(summaries);
     let means: Vec<f64> = summaries.iter().map(|s| s.mean).collect();
-    let flagged = outliers(offsets, &means, table.ms_within, table.df_within)
+    let found = outliers(offsets, &means, table.ms_within, table.df_within);
+    let mut flagged: Vec<OutlierRow> = found
+        .most_extreme
         .into_iter()
         .map(|o| OutlierRow {
             line: lines[o.level][o.index],
@@ -1104,6 +1159,7 @@ fn assumption_checks(
             studentized_residual: o.studentized,
         })
         .collect();
+    flagged.sort_by_key(|o| o.line);
     Checks {
         shown,
         brown_forsythe: levene(offsets, Center::Median),
@@ -1114,6 +1170,7 @@ fn assumption_checks(
         excess_kurtosis,
         sd_ratio,
         balanced: summaries.iter().all(|s| s.n == summaries[0].n),
+        outlier_count: found.total,
         outliers: flagged,
         from_summary: false,
         by_request: false,
@@ -1135,8 +1192,8 @@ impl Checks {
                 ));
             } else if self.sd_ratio > 2.0 && !self.balanced {
                 out.push(format!(
-                    "The largest level SD is {:.1} times the smallest, with unequal group sizes; the F test can mislead there. Consider `method: welch`.",
-                    self.sd_ratio
+                    "The largest level SD is {} times the smallest, with unequal group sizes; the F test can mislead there. Consider `method: welch`.",
+                    crate::render::format::fixed(self.sd_ratio, 1)
                 ));
             }
         }
@@ -1144,8 +1201,8 @@ impl Checks {
             if let Ok(sw) = self.shapiro_wilk.as_ref() {
                 if sw.p < alpha {
                     out.push(format!(
-                        "The residuals depart from a normal distribution (Shapiro-Wilk W = {:.3}, {}). Look at how they depart; consider a transformation of the response, or `method: ranks` (Kruskal-Wallis with Dunn's comparisons).",
-                        sw.w,
+                        "The residuals depart from a normal distribution (Shapiro-Wilk W = {}, {}). Look at how they depart; consider a transformation of the response, or `method: ranks` (Kruskal-Wallis with Dunn's comparisons).",
+                        crate::render::format::fixed(sw.w, 3),
                         p3(sw.p)
                     ));
                 }
@@ -1154,17 +1211,64 @@ impl Checks {
         if let Err(ShapiroWilkSkip::TooMany) = self.shapiro_wilk {
             out.push("Shapiro-Wilk is not computed above 5,000 residuals (outside the range of Royston's approximation); judge normality from skewness, kurtosis and a Q-Q plot.".into());
         }
-        for o in &self.outliers {
-            out.push(format!(
-                "The observation on line {} (level `{}`, value {}) has a studentized residual of {:.2}, beyond ±{OUTLIER_THRESHOLD}; check it against the records. Flagging excludes nothing.",
+        out.extend(self.outlier_advice(decimals));
+        out
+    }
+
+    /// One note per flagged observation when there are few; otherwise one
+    /// note with the count and the most extreme few, so that the advice
+    /// (printed on the terminal and boxed in the report) never grows with
+    /// the number of rows.
+    pub fn outlier_advice(&self, decimals: u32) -> Vec<String> {
+        let describe = |o: &OutlierRow| {
+            format!(
+                "line {} (level `{}`, value {}, studentized residual {})",
                 o.line,
                 o.level,
                 crate::render::format::fixed(o.value, decimals),
-                o.studentized_residual
-            ));
+                crate::render::format::fixed(o.studentized_residual, 2)
+            )
+        };
+        if self.outlier_count <= OUTLIERS_LISTED {
+            return self
+                .outliers
+                .iter()
+                .map(|o| {
+                    format!(
+                        "The observation on {} is beyond ±{OUTLIER_THRESHOLD}; check it against the records. Flagging excludes nothing.",
+                        describe(o)
+                    )
+                })
+                .collect();
         }
-        out
+        let worst: Vec<String> = most_extreme(&self.outliers, OUTLIERS_LISTED)
+            .into_iter()
+            .map(describe)
+            .collect();
+        vec![format!(
+            "{} observations have a studentized residual beyond ±{OUTLIER_THRESHOLD}; the {OUTLIERS_LISTED} most extreme are on {}. Check them against the records; the results file lists the {} most extreme. Flagging excludes nothing; with this many, look at the distribution of the residuals (a transformation of the response, or `method: ranks`) rather than at single observations.",
+            crate::render::format::count(self.outlier_count),
+            worst.join("; "),
+            self.outliers.len()
+        )]
     }
+}
+
+/// How many flagged observations reports and the terminal name one by one.
+pub const OUTLIERS_LISTED: usize = 5;
+
+/// The `k` flagged observations with the largest |studentized residual|,
+/// most extreme first (ties in data order).
+pub fn most_extreme(rows: &[OutlierRow], k: usize) -> Vec<&OutlierRow> {
+    let mut sorted: Vec<&OutlierRow> = rows.iter().collect();
+    sorted.sort_by(|a, b| {
+        b.studentized_residual
+            .abs()
+            .total_cmp(&a.studentized_residual.abs())
+            .then(a.line.cmp(&b.line))
+    });
+    sorted.truncate(k);
+    sorted
 }
 
 /// Runs the chosen comparison procedure and derives its letters.

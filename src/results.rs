@@ -473,6 +473,9 @@ pub struct ChecksRecord {
     pub excess_kurtosis: Option<f64>,
     /// |externally studentized residual| above which observations are listed.
     pub outlier_threshold: f64,
+    /// How many observations are beyond the threshold in all.
+    pub outlier_count: usize,
+    /// The most extreme of them (at most 100), in data order.
     pub outliers: Vec<OutlierRecord>,
 }
 
@@ -698,6 +701,7 @@ fn checks_record(c: &crate::analysis::Checks) -> ChecksRecord {
         skewness: finite(c.skewness),
         excess_kurtosis: finite(c.excess_kurtosis),
         outlier_threshold: crate::stats::assumptions::OUTLIER_THRESHOLD,
+        outlier_count: c.outlier_count,
         outliers: c
             .outliers
             .iter()

@@ -790,11 +790,9 @@ fn hostile_and_extreme_inputs() {
         .args(["build", "report.md", "-o", "out"])
         .output()
         .expect("runs");
-    assert!(
-        String::from_utf8_lossy(&o.stderr).contains(
-            "2 rows of plants.csv were left out because a value was missing (lines 8, 9)"
-        )
-    );
+    assert!(String::from_utf8_lossy(&o.stderr).contains(
+        "2 rows of plants.csv were left out because a value was missing (lines 8 and 9)"
+    ));
 
     let long_line = "x".repeat(2_000_000);
     let cases = vec![

@@ -9,11 +9,13 @@ use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
 use crate::doc::{Block, Document};
 use crate::stats::assumptions::{
-    Center, OUTLIER_THRESHOLD, bartlett, levene, shapiro_wilk, skewness_kurtosis,
+    Center, OUTLIER_THRESHOLD, OUTLIERS_KEPT, bartlett, externally_studentized, levene,
+    shapiro_wilk, skewness_kurtosis,
 };
 use crate::stats::compare::{Method, pairwise_with_se};
 use crate::stats::dist::{f_isf, f_sf, t_isf};
 use crate::stats::effect::noncentrality_interval;
+use crate::stats::extremes::Extremes;
 use crate::stats::letters::compact_letters;
 use crate::stats::linear::{
     Layout, SsTable, SsType, TermFactors, design_matrix, fit, grid_average, sums_of_squares,
@@ -519,30 +521,36 @@ pub fn run_factorial(
     let replicated = cell_groups.iter().all(|g| g.len() >= 2);
     let (skewness, excess_kurtosis) = skewness_kurtosis(&residuals);
     let mut warnings_note: Vec<String> = Vec::new();
-    let mut outliers = Vec::new();
+    // Only the most extreme are kept with their labels; the rest are counted.
+    let mut flagged = Extremes::new(OUTLIERS_KEPT);
     for i in 0..n {
         let h = cell_leverage[cell_of[i]];
         if h >= 1.0 - 1e-12 || residual_df < 2 {
             continue;
         }
-        let r = residuals[i] / (mse * (1.0 - h)).sqrt();
-        let t = r * ((nu - 1.0) / (nu - r * r)).max(0.0).sqrt();
+        let t = externally_studentized(residuals[i], mse, h, nu);
         if t.abs() > OUTLIER_THRESHOLD {
-            let label = data
+            flagged.offer(t.abs(), (i, t));
+        }
+    }
+    let outlier_count = flagged.total();
+    let mut outliers: Vec<OutlierRow> = flagged
+        .into_most_extreme_first()
+        .into_iter()
+        .map(|(i, t)| OutlierRow {
+            line: data.lines[i],
+            level: data
                 .row(i)
                 .iter()
                 .enumerate()
                 .map(|(f, &l)| data.levels[f][l].clone())
                 .collect::<Vec<_>>()
-                .join(" × ");
-            outliers.push(OutlierRow {
-                line: data.lines[i],
-                level: label,
-                value: data.origin + data.offsets[i],
-                studentized_residual: t,
-            });
-        }
-    }
+                .join(" × "),
+            value: data.origin + data.offsets[i],
+            studentized_residual: t,
+        })
+        .collect();
+    outliers.sort_by_key(|o| o.line);
     let mut checks = summary_checks(&group_summaries, spec.checks.shown());
     if spec.checks == CheckSet::Summary {
         // Only what the cell summaries allow, as asked.
@@ -578,6 +586,7 @@ pub fn run_factorial(
         checks.shapiro_wilk = shapiro_wilk(&residuals);
         checks.skewness = skewness;
         checks.excess_kurtosis = excess_kurtosis;
+        checks.outlier_count = outlier_count;
         checks.outliers = outliers;
     }
     warnings.extend(warnings_note);
@@ -893,18 +902,13 @@ fn factorial_advice(checks: &Checks, alpha: f64, decimals: u32) -> Vec<String> {
     if let Ok(sw) = checks.shapiro_wilk.as_ref() {
         if sw.p < alpha {
             out.push(format!(
-                "The residuals depart from a normal distribution (Shapiro-Wilk W = {:.3}, {}); look at how they depart and consider a transformation of the response.",
-                sw.w,
+                "The residuals depart from a normal distribution (Shapiro-Wilk W = {}, {}); look at how they depart and consider a transformation of the response.",
+                crate::render::format::fixed(sw.w, 3),
                 p3(sw.p)
             ));
         }
     }
-    out.extend(
-        checks
-            .advice(Omnibus::Ranks, alpha, decimals)
-            .into_iter()
-            .filter(|w| w.starts_with("The observation on line")),
-    );
+    out.extend(checks.outlier_advice(decimals));
     out
 }
 

@@ -6,6 +6,7 @@
 //! ("Color Universal Design"), and series also differ by marker shape, so
 //! figures stay readable in greyscale and in print.
 
+pub mod dense;
 pub mod plots;
 
 use crate::analysis::BlockResult;

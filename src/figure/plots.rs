@@ -1,7 +1,7 @@
 //! The plot kinds: box, strip and means plots with letters, interaction
 //! plots, and residual diagnostics (residuals against fitted, normal Q-Q).
 
-use super::{Figure, PALETTE, Scale, Svg, nice_ticks, text_width, tick_label};
+use super::{Figure, PALETTE, Scale, Svg, dense, nice_ticks, text_width, tick_label};
 use crate::analysis::AnovaResult;
 use crate::analysis::factorial::FactorialResult;
 use crate::doc::block::{PlotKind, PlotSpec};
@@ -179,6 +179,11 @@ fn letters_at(svg: &mut Svg, x: f64, y_px: f64, letters: Option<&str>) {
     }
 }
 
+/// Observations over all groups of a categorical figure.
+fn observations(groups: &[Group]) -> usize {
+    groups.iter().map(|g| g.values.len()).sum()
+}
+
 fn range(groups: &[Group]) -> (f64, f64) {
     let mut lo = f64::INFINITY;
     let mut hi = f64::NEG_INFINITY;
@@ -207,6 +212,7 @@ fn box_plot(
     let (lo, hi) = range(groups);
     let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
     let half = (frame.slot(groups.len()) * 0.22).min(28.0);
+    let many = dense::summarised(observations(groups));
     for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
         let colour = PALETTE[0];
         if g.values.len() >= 2 {
@@ -255,9 +261,11 @@ fn box_plot(
             );
             svg.line(x - half, y(median), x + half, y(median), INK, 2.0, None);
         }
-        for (j, v) in g.values.iter().enumerate() {
-            let jx = x + jitter(i, j) * half * 1.4;
-            svg.marker(jx, frame.y.map(*v), 2.6, 0, "#ffffff", INK, "point");
+        if !many {
+            for (j, v) in g.values.iter().enumerate() {
+                let jx = x + jitter(i, j) * half * 1.4;
+                svg.marker(jx, frame.y.map(*v), 2.6, 0, "#ffffff", INK, "point");
+            }
         }
         let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
         letters_at(&mut svg, x, frame.y.map(top), g.letters);
@@ -281,17 +289,28 @@ fn strip_plot(
     let (lo, hi) = range(groups);
     let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
     let half = (frame.slot(groups.len()) * 0.25).min(30.0);
+    let many = dense::summarised(observations(groups));
+    let values: Vec<&[f64]> = groups.iter().map(|g| g.values).collect();
+    let largest = if many {
+        dense::largest_bin(&values, &frame.y)
+    } else {
+        0
+    };
     for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
-        for (j, v) in g.values.iter().enumerate() {
-            svg.marker(
-                x + jitter(i, j) * half * 1.6,
-                frame.y.map(*v),
-                3.0,
-                0,
-                PALETTE[0],
-                "#ffffff",
-                "point",
-            );
+        if many {
+            dense::binned_strip(&mut svg, &frame.y, x, half, g.values, largest, "#9cc3e0");
+        } else {
+            for (j, v) in g.values.iter().enumerate() {
+                svg.marker(
+                    x + jitter(i, j) * half * 1.6,
+                    frame.y.map(*v),
+                    3.0,
+                    0,
+                    PALETTE[0],
+                    "#ffffff",
+                    "point",
+                );
+            }
         }
         if g.mean.is_finite() {
             svg.line(
@@ -324,9 +343,12 @@ fn means_plot(
     let (lo, hi) = range(groups);
     let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
     let half = (frame.slot(groups.len()) * 0.3).min(34.0);
+    let many = dense::summarised(observations(groups));
     for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
-        // Faint observations behind the summary, so the spread stays visible.
-        for (j, v) in g.values.iter().enumerate() {
+        // Faint observations behind the summary, so the spread stays visible
+        // (unless there are too many to see one by one).
+        let faint = if many { &[][..] } else { g.values };
+        for (j, v) in faint.iter().enumerate() {
             svg.marker(
                 x + half * 0.9 + jitter(i, j) * 8.0,
                 frame.y.map(*v),
@@ -458,7 +480,15 @@ fn residual_plot(
     let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
     let (x, y) = scatter_frame(&mut svg, fitted, residuals, "Fitted value", "Residual");
     svg.line(x.p0, y.map(0.0), x.p1, y.map(0.0), MUTED, 1.0, Some("4 3"));
-    for (i, (f, e)) in fitted.iter().zip(residuals).enumerate() {
+    if dense::summarised(residuals.len()) {
+        dense::density_grid(&mut svg, &x, &y, fitted, residuals);
+    }
+    let each = if dense::summarised(residuals.len()) {
+        0
+    } else {
+        residuals.len()
+    };
+    for (i, (f, e)) in fitted.iter().zip(residuals).take(each).enumerate() {
         // Points that share a fitted value (one-way) are spread slightly.
         svg.marker(
             x.map(*f) + jitter(7, i) * 6.0,
@@ -493,14 +523,18 @@ fn qq_plot(id: &str, title: &str, desc: &str, residuals: &[f64]) -> String {
         .collect();
     sorted.sort_by(f64::total_cmp);
     let n = sorted.len() as f64;
-    let theoretical: Vec<f64> = (1..=sorted.len())
-        .map(|i| -normal_isf((i as f64 - 0.375) / (n + 0.25)))
+    // Every order statistic, or a bounded selection of them on large data.
+    let ranks = dense::qq_ranks(sorted.len());
+    let theoretical: Vec<f64> = ranks
+        .iter()
+        .map(|&r| -normal_isf((r as f64 + 1.0 - 0.375) / (n + 0.25)))
         .collect();
+    let sample: Vec<f64> = ranks.iter().map(|&r| sorted[r]).collect();
     let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
     let (x, y) = scatter_frame(
         &mut svg,
         &theoretical,
-        &sorted,
+        &sample,
         "Normal quantile",
         "Residual",
     );
@@ -520,7 +554,7 @@ fn qq_plot(id: &str, title: &str, desc: &str, residuals: &[f64]) -> String {
             Some("4 3"),
         );
     }
-    for (t, v) in theoretical.iter().zip(&sorted) {
+    for (t, v) in theoretical.iter().zip(&sample) {
         svg.marker(x.map(*t), y.map(*v), 2.8, 0, PALETTE[0], "#ffffff", "point");
     }
     svg.finish()
@@ -582,6 +616,66 @@ fn interaction_plot(
     svg.finish()
 }
 
+/// The caption's sentence for a figure drawn as a summary (empty otherwise).
+fn dense_note(kind: PlotKind, observations: usize) -> String {
+    if !dense::summarised(observations) {
+        return String::new();
+    }
+    let what = match kind {
+        PlotKind::Box => "boxes and whiskers only",
+        PlotKind::Strip => {
+            "each level's observations are drawn as a binned density, each bar as wide as the count in its bin"
+        }
+        PlotKind::Means => "the observations behind the means are left out",
+        PlotKind::Residuals => {
+            "each cell of a grid is shaded by the number of observations in it (logarithmic scale)"
+        }
+        PlotKind::Qq => {
+            return dense::caption_note(
+                observations,
+                &format!(
+                    "the {0} smallest and {0} largest residuals are drawn with evenly spaced order statistics between them",
+                    dense::QQ_TAIL
+                ),
+            );
+        }
+        PlotKind::Interaction => return String::new(),
+    };
+    dense::caption_note(observations, what)
+}
+
+/// Points of a residual plot to label: (index into `lines`, "line N") for
+/// the flagged observations, in one pass over the lines. A summarised plot
+/// labels none: its labels would pile up on the few drawn cells, and the
+/// checks table names the most extreme.
+fn flagged_points(
+    checks: &crate::analysis::Checks,
+    lines: &[usize],
+    summarised: bool,
+) -> Vec<(usize, String)> {
+    if summarised {
+        return Vec::new();
+    }
+    let mut wanted: std::collections::BTreeSet<usize> =
+        checks.outliers.iter().map(|o| o.line).collect();
+    // A line labels its first observation only (a wide row holds several).
+    lines
+        .iter()
+        .enumerate()
+        .filter(|(_, l)| wanted.remove(l))
+        .map(|(i, l)| (i, format!("line {l}")))
+        .collect()
+}
+
+/// How a residual plot's caption says where flagged observations are.
+fn residual_flags_phrase(summarised: bool) -> &'static str {
+    if summarised {
+        "; observations beyond ±3 studentized residuals are counted, and the most extreme named, under the assumption checks"
+    } else {
+        "; observations beyond ±3 studentized residuals are labelled with their data line"
+    }
+}
+
 fn figure_id(block: &str, kind: PlotKind) -> String {
     format!("{block}-{}", kind.key())
 }
@@ -630,31 +724,44 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
         .map(|l| fixed(l.mean, r.decimals))
         .collect::<Vec<_>>()
         .join(", ");
+    let observations: usize = r.observations.iter().map(Vec::len).sum();
+    let many = dense::summarised(observations);
     let mut out = Vec::new();
     for &kind in &spec.kinds {
         let id = figure_id(&r.id, kind);
         let n = *number;
+        let note = dense_note(kind, observations);
         let (caption, svg) = match kind {
             PlotKind::Box | PlotKind::Strip | PlotKind::Means => {
                 let (what, draw): (String, CategoricalPlot) = match kind {
                     PlotKind::Box => (
                         format!(
-                            "{} by {}: box plots (median, quartiles, whiskers to the most extreme values within 1.5 IQR) with every observation.",
-                            subject, r.factor
+                            "{} by {}: box plots (median, quartiles, whiskers to the most extreme values within 1.5 IQR){}.{note}",
+                            subject,
+                            r.factor,
+                            if many { "" } else { " with every observation" }
                         ),
                         box_plot,
                     ),
                     PlotKind::Strip => (
                         format!(
-                            "Every observation of {} by {}, with the level means as bars.",
-                            subject, r.factor
+                            "{} of {} by {}, with the level means as bars.{note}",
+                            if many {
+                                "Observations"
+                            } else {
+                                "Every observation"
+                            },
+                            subject,
+                            r.factor
                         ),
                         strip_plot,
                     ),
                     _ => (
                         format!(
-                            "Mean {} by {} with {conf} confidence intervals ({ci_kind}); observations in grey.",
-                            subject, r.factor
+                            "Mean {} by {} with {conf} confidence intervals ({ci_kind}){}.{note}",
+                            subject,
+                            r.factor,
+                            if many { "" } else { "; observations in grey" }
                         ),
                         means_plot,
                     ),
@@ -691,21 +798,12 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                         lines.push(r.observation_lines[i][j]);
                     }
                 }
-                let flags: Vec<(usize, String)> = r
-                    .checks
-                    .outliers
-                    .iter()
-                    .filter_map(|o| {
-                        lines
-                            .iter()
-                            .position(|l| *l == o.line)
-                            .map(|i| (i, format!("line {}", o.line)))
-                    })
-                    .collect();
+                let flags = flagged_points(&r.checks, &lines, many);
                 if kind == PlotKind::Residuals {
                     let caption = format!(
-                        "Figure {n}. Residuals of {} against fitted values (level means); observations beyond ±3 studentized residuals are labelled with their data line.",
-                        subject
+                        "Figure {n}. Residuals of {} against fitted values (level means){}.{note}",
+                        subject,
+                        residual_flags_phrase(many)
                     );
                     let desc = format!("{} residuals; {} flagged.", residuals.len(), flags.len());
                     (
@@ -714,7 +812,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                     )
                 } else {
                     let caption = format!(
-                        "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.",
+                        "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.{note}",
                         subject
                     );
                     let desc = format!("{} residuals against normal quantiles.", residuals.len());
@@ -788,16 +886,19 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             f.comparison.alpha
         )
     });
+    let many = dense::summarised(r.values.len());
     let mut out = Vec::new();
     for &kind in &spec.kinds {
         let id = figure_id(&r.id, kind);
         let n = *number;
+        let note = dense_note(kind, r.values.len());
         let factor = &r.factors[fa];
         let (caption, svg) = match kind {
             PlotKind::Box => {
                 let caption = format!(
-                    "Figure {n}. {} by {factor}: box plots with every observation.{letters_note}",
-                    subject
+                    "Figure {n}. {} by {factor}: box plots{}.{note}{letters_note}",
+                    subject,
+                    if many { "" } else { " with every observation" }
                 );
                 (
                     caption.clone(),
@@ -814,7 +915,12 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             }
             PlotKind::Strip => {
                 let caption = format!(
-                    "Figure {n}. Every observation of {} by {factor}, with means as bars.{letters_note}",
+                    "Figure {n}. {} of {} by {factor}, with means as bars.{note}{letters_note}",
+                    if many {
+                        "Observations"
+                    } else {
+                        "Every observation"
+                    },
                     subject
                 );
                 (
@@ -896,20 +1002,11 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
                 )
             }
             PlotKind::Residuals => {
-                let flags: Vec<(usize, String)> = r
-                    .checks
-                    .outliers
-                    .iter()
-                    .filter_map(|o| {
-                        r.lines
-                            .iter()
-                            .position(|l| *l == o.line)
-                            .map(|i| (i, format!("line {}", o.line)))
-                    })
-                    .collect();
+                let flags = flagged_points(&r.checks, &r.lines, many);
                 let caption = format!(
-                    "Figure {n}. Residuals of {} against fitted values; observations beyond ±3 studentized residuals are labelled with their data line.",
-                    subject
+                    "Figure {n}. Residuals of {} against fitted values{}.{note}",
+                    subject,
+                    residual_flags_phrase(many)
                 );
                 (
                     caption.clone(),
@@ -918,7 +1015,7 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             }
             PlotKind::Qq => {
                 let caption = format!(
-                    "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.",
+                    "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.{note}",
                     subject
                 );
                 (

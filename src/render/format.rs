@@ -1,14 +1,21 @@
 //! The one number policy for everything a reader sees (METHODS 4.2).
 //!
-//! Rounding rule: a number is rounded from its exact binary value to the
-//! nearest decimal (ties cannot occur in binary, so 2.675, stored as
-//! 2.67499999…, prints as 2.67). The results file keeps full precision.
+//! Rounding rule, the same in tables, prose and figures: a number is first
+//! read as a decimal of 15 significant digits (the precision a binary double
+//! carries, so 1643.8 / 4, stored as 410.94999…, reads as 410.95), and that
+//! decimal is rounded half away from zero (410.95 → 411.0, 2.675 → 2.68,
+//! −0.125 → −0.13), the rule readers apply when they check a number by hand.
+//! The results file keeps full precision.
 
 /// Placeholder for a value that does not exist (for example F with no
 /// residual degrees of freedom).
 pub const NOT_AVAILABLE: &str = "–";
 
-/// `x` with exactly `decimals` digits after the point; "-0.00" prints as "0.00".
+/// Significant digits a number is read to before it is rounded for display.
+const READ_DIGITS: usize = 15;
+
+/// `x` with exactly `decimals` digits after the point, rounded by the module's
+/// rule; "-0.00" prints as "0.00".
 pub fn fixed(x: f64, decimals: u32) -> String {
     if x.is_nan() {
         return NOT_AVAILABLE.to_string();
@@ -16,12 +23,85 @@ pub fn fixed(x: f64, decimals: u32) -> String {
     if x.is_infinite() {
         return if x > 0.0 { "∞".into() } else { "-∞".into() };
     }
-    let s = format!("{:.*}", decimals as usize, x);
-    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
-        s[1..].to_string()
-    } else {
-        s
+    let digits = rounded_digits(x.abs(), decimals as usize);
+    // `digits` holds the integer part followed by `decimals` fraction digits.
+    let split = digits.len() - decimals as usize;
+    let mut out = String::with_capacity(digits.len() + 2);
+    if x < 0.0 && digits.iter().any(|&d| d != 0) {
+        out.push('-');
     }
+    out.extend(digits[..split].iter().map(|d| char::from(b'0' + d)));
+    if decimals > 0 {
+        out.push('.');
+        out.extend(digits[split..].iter().map(|d| char::from(b'0' + d)));
+    }
+    out
+}
+
+/// The decimal digits of `magnitude` (finite, ≥ 0) read to [`READ_DIGITS`]
+/// significant digits and rounded half away from zero to `decimals` places:
+/// at least one integer digit, then exactly `decimals` fraction digits.
+fn rounded_digits(magnitude: f64, decimals: usize) -> Vec<u8> {
+    // "d.dddddddddddddde±x": the leading digit, 14 more, the exponent.
+    let sci = format!("{:.*e}", READ_DIGITS - 1, magnitude);
+    let (mantissa, exponent) = sci.split_once('e').unwrap_or((&sci, "0"));
+    let exponent: i64 = exponent.parse().unwrap_or(0);
+    let read: Vec<u8> = mantissa
+        .bytes()
+        .filter(u8::is_ascii_digit)
+        .map(|b| b - b'0')
+        .collect();
+    // Place of digit i is 10^(exponent − i); keep places ≥ 10^(−decimals).
+    let keep = exponent + decimals as i64 + 1;
+    let mut kept: Vec<u8> = if keep <= 0 {
+        Vec::new()
+    } else {
+        (0..keep as usize)
+            .map(|i| read.get(i).copied().unwrap_or(0))
+            .collect()
+    };
+    let first_dropped = if keep < 0 {
+        0
+    } else {
+        read.get(keep as usize).copied().unwrap_or(0)
+    };
+    if first_dropped >= 5 && round_up(&mut kept) {
+        kept.insert(0, 1);
+    }
+    // Pad to at least one integer digit plus the fraction.
+    let width = decimals + 1;
+    if kept.len() < width {
+        let mut padded = vec![0; width - kept.len()];
+        padded.extend(kept);
+        kept = padded;
+    }
+    kept
+}
+
+/// Adds one in the last place; true when the carry runs off the front.
+fn round_up(digits: &mut [u8]) -> bool {
+    for d in digits.iter_mut().rev() {
+        if *d == 9 {
+            *d = 0;
+        } else {
+            *d += 1;
+            return false;
+        }
+    }
+    true
+}
+
+/// A count of things, with thousands separated by commas ("260,000").
+pub fn count(n: usize) -> String {
+    let digits = n.to_string();
+    let mut out = String::with_capacity(digits.len() + digits.len() / 3);
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
 }
 
 /// A p-value: three decimals, "< 0.001" below 0.001 and "> 0.999" above 0.999.

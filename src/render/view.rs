@@ -76,6 +76,45 @@ fn col(label: impl Into<String>, numeric: bool) -> Column {
     }
 }
 
+/// The checks table's note on flagged observations: each line when there are
+/// few, else the count and the most extreme few (the report never lists a
+/// number of lines that grows with the data).
+fn outlier_sentence(c: &crate::analysis::Checks) -> String {
+    use crate::analysis::{OUTLIERS_LISTED, most_extreme};
+    let threshold = crate::stats::assumptions::OUTLIER_THRESHOLD;
+    if c.outlier_count <= OUTLIERS_LISTED {
+        let lines: Vec<String> = c.outliers.iter().map(|o| o.line.to_string()).collect();
+        let (observations, lines_word) = if lines.len() == 1 {
+            ("One observation has", "data line")
+        } else {
+            ("Observations have", "data lines")
+        };
+        return format!(
+            "{observations} an externally studentized residual beyond ±{threshold} (flagged, not excluded): {lines_word} {}.",
+            join_words(&lines)
+        );
+    }
+    let worst: Vec<String> = most_extreme(&c.outliers, OUTLIERS_LISTED)
+        .iter()
+        .map(|o| o.line.to_string())
+        .collect();
+    format!(
+        "{} observations have an externally studentized residual beyond ±{threshold} (flagged, not excluded); the {OUTLIERS_LISTED} most extreme are on data lines {}, and the results file lists the {} most extreme.",
+        crate::render::format::count(c.outlier_count),
+        join_words(&worst),
+        c.outliers.len()
+    )
+}
+
+/// "a", "a and b", "a, b and c".
+fn join_words(items: &[String]) -> String {
+    match items {
+        [] => String::new(),
+        [one] => one.clone(),
+        [rest @ .., last] => format!("{} and {last}", rest.join(", ")),
+    }
+}
+
 /// "95%" for α = 0.05, "97.5%" for α = 0.025.
 pub fn confidence_label(alpha: f64) -> String {
     let pct = (1.0 - alpha) * 100.0;
@@ -541,12 +580,7 @@ fn checks_table_of(
             crate::stats::assumptions::OUTLIER_THRESHOLD
         )
     } else {
-        let lines: Vec<String> = c.outliers.iter().map(|o| o.line.to_string()).collect();
-        format!(
-            "Observations with an externally studentized residual beyond ±{} (flagged, not excluded): data line(s) {}.",
-            crate::stats::assumptions::OUTLIER_THRESHOLD,
-            lines.join(", ")
-        )
+        outlier_sentence(c)
     };
     TableView {
         number,

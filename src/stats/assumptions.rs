@@ -3,6 +3,7 @@
 //! skewness, excess kurtosis) and outlying observations (METHODS 3.13, 3.14).
 
 use super::dist::{chi2_sf, normal_isf, normal_sf, t_sf};
+use super::extremes::Extremes;
 use super::oneway::{GroupSummary, one_way};
 use super::sum::neumaier;
 
@@ -300,39 +301,61 @@ pub struct Outlier {
 /// (METHODS 4.4: flag, never exclude).
 pub const OUTLIER_THRESHOLD: f64 = 3.0;
 
+/// How many flagged observations are kept for reports and the results file;
+/// the count of all of them is kept beside (a large skewed file can flag
+/// hundreds of thousands, and nothing a reader sees may grow with the rows).
+pub const OUTLIERS_KEPT: usize = 100;
+
+/// Flagged observations: how many in all, and the most extreme of them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Flagged {
+    pub total: usize,
+    /// At most [`OUTLIERS_KEPT`], most extreme first (ties in data order).
+    pub most_extreme: Vec<Outlier>,
+}
+
 /// Externally studentized residuals of a one-way model: each observation's
 /// residual divided by an error estimate that leaves it out,
 /// tᵢ = rᵢ √((ν − 1)/(ν − rᵢ²)) with rᵢ = eᵢ/√(MSE(1 − 1/nⱼ)). Levels of one
 /// observation have no studentized residual.
-pub fn outliers(groups: &[&[f64]], means: &[f64], mse: f64, df: usize) -> Vec<Outlier> {
+pub fn outliers(groups: &[&[f64]], means: &[f64], mse: f64, df: usize) -> Flagged {
     let n_total: usize = groups.iter().map(|g| g.len()).sum();
     let nu = df as f64;
-    let mut out = Vec::new();
-    if df < 2 || !crate::stats::is_positive(mse) {
-        return out;
-    }
-    for (level, (g, mean)) in groups.iter().zip(means).enumerate() {
-        if g.len() < 2 {
-            continue;
-        }
-        let leverage = 1.0 / g.len() as f64;
-        for (index, y) in g.iter().enumerate() {
-            let e = y - mean;
-            let r = e / (mse * (1.0 - leverage)).sqrt();
-            let t = r * ((nu - 1.0) / (nu - r * r)).max(0.0).sqrt();
-            if t.abs() > OUTLIER_THRESHOLD {
-                let p = (2.0 * t_sf(t.abs(), nu - 1.0) * n_total as f64).min(1.0);
-                out.push(Outlier {
-                    level,
-                    index,
-                    residual: e,
-                    studentized: t,
-                    p_bonferroni: p,
-                });
+    let mut kept = Extremes::new(OUTLIERS_KEPT);
+    if df >= 2 && crate::stats::is_positive(mse) {
+        for (level, (g, mean)) in groups.iter().zip(means).enumerate() {
+            if g.len() < 2 {
+                continue;
+            }
+            let leverage = 1.0 / g.len() as f64;
+            for (index, y) in g.iter().enumerate() {
+                let e = y - mean;
+                let t = externally_studentized(e, mse, leverage, nu);
+                if t.abs() > OUTLIER_THRESHOLD {
+                    let p = (2.0 * t_sf(t.abs(), nu - 1.0) * n_total as f64).min(1.0);
+                    let outlier = Outlier {
+                        level,
+                        index,
+                        residual: e,
+                        studentized: t,
+                        p_bonferroni: p,
+                    };
+                    kept.offer(t.abs(), outlier);
+                }
             }
         }
     }
-    out
+    Flagged {
+        total: kept.total(),
+        most_extreme: kept.into_most_extreme_first(),
+    }
+}
+
+/// The externally studentized residual of a residual `e` with leverage `h`,
+/// given the mean square error and its df ν.
+pub fn externally_studentized(e: f64, mse: f64, h: f64, nu: f64) -> f64 {
+    let r = e / (mse * (1.0 - h)).sqrt();
+    r * ((nu - 1.0) / (nu - r * r)).max(0.0).sqrt()
 }
 
 #[cfg(test)]

@@ -6,6 +6,7 @@ pub mod compare;
 pub mod dist;
 pub mod dunnett;
 pub mod effect;
+pub mod extremes;
 pub mod letters;
 pub mod linear;
 pub mod normal_table;
