@@ -92,7 +92,9 @@ fn where_and_exclude_leave_rows_out_with_their_reasons() {
     );
     let text = b["warnings"].to_string();
     assert!(
-        text.contains("left out by the document (excluded: seedlings mislabelled) (lines 2 and 13)"),
+        text.contains(
+            "left out by the document (excluded: seedlings mislabelled) (lines 2 and 13)"
+        ),
         "{text}"
     );
 }

@@ -144,6 +144,42 @@ fn combinations(factors: &[usize], levels: &[usize]) -> Vec<Vec<usize>> {
     out
 }
 
+/// A model term none of whose contrasts is estimable after the terms before
+/// it, and the earlier term that alone already determines it, if one does.
+struct Confounded {
+    term: usize,
+    with: Option<usize>,
+}
+
+/// Terms wholly aliased with earlier terms, in model order. `design` holds
+/// one row per observed combination of levels (weights do not change which
+/// columns are aliased); `ranges` are the terms' columns.
+fn confounded_terms(design: &[Vec<f64>], ranges: &[std::ops::Range<usize>]) -> Vec<Confounded> {
+    let rows = design.first().map_or(0, Vec::len);
+    let zeros = vec![0.0; rows];
+    let all = fit(design, &zeros);
+    let mut out = Vec::new();
+    for (i, range) in ranges.iter().enumerate() {
+        if range.is_empty() || range.clone().any(|c| all.kept[c]) {
+            continue;
+        }
+        // Which single earlier term already spans it: fit the intercept,
+        // that term and this one, and see whether this one adds nothing.
+        let with = (0..i).find(|&j| {
+            let cols: Vec<Vec<f64>> = std::iter::once(0)
+                .chain(ranges[j].clone())
+                .chain(range.clone())
+                .map(|c| design[c].clone())
+                .collect();
+            let own = 1 + ranges[j].len();
+            let pair = fit(&cols, &zeros);
+            pair.kept[own..].iter().all(|k| !k)
+        });
+        out.push(Confounded { term: i, with });
+    }
+    out
+}
+
 /// Runs a factorial `anova` block.
 pub fn run_factorial(
     doc: &Document,
@@ -213,12 +249,12 @@ pub fn run_factorial(
             })
             .collect::<Result<_, _>>()?,
     };
-    let terms: Vec<TermFactors> = formula
+    let mut terms: Vec<TermFactors> = formula
         .terms
         .iter()
         .map(|t| t.factors.iter().filter_map(|f| index_of(f)).collect())
         .collect();
-    let term_names: Vec<String> = formula.terms.iter().map(|t| t.to_string()).collect();
+    let mut term_names: Vec<String> = formula.terms.iter().map(|t| t.to_string()).collect();
 
     let names: Vec<&str> = factor_names.iter().map(String::as_str).collect();
     let fail = |e| data_error(doc, block, spec.data.line, display_path, e);
@@ -278,6 +314,36 @@ pub fn run_factorial(
     };
     let alpha = spec.alpha.unwrap_or(doc.front.alpha);
     let mut warnings = Vec::new();
+
+    // A term confounded with an earlier main effect (the classical layout:
+    // a factorial's highest interaction given up to blocks) has no contrast
+    // left to test; the usual analysis leaves it in that factor's sum of
+    // squares and says so.
+    for c in confounded_terms(
+        &design_matrix(&layout, &terms),
+        &term_columns(&terms, &levels),
+    )
+    .into_iter()
+    .rev()
+    {
+        let Some(with) = c.with.filter(|&j| terms[j].len() == 1) else {
+            let hint = "check that the factors really cross (each combination of levels occurs), or remove the term";
+            return Err(model_err(
+                format!(
+                    "the term `{}` is not estimable: every one of its contrasts is determined by the terms before it ({})",
+                    term_names[c.term],
+                    term_names[..c.term].join(", ")
+                ),
+                hint,
+            ));
+        };
+        warnings.push(format!(
+            "`{0}` is confounded with `{1}`: each level of `{1}` holds only level combinations on one side of the `{0}` contrast, so that contrast is part of the differences among levels of `{1}`. It cannot be tested from these data; as in the usual analysis of a confounded design it is left out of the model and its degrees of freedom stay with `{1}`.",
+            term_names[c.term], term_names[with]
+        ));
+        terms.remove(c.term);
+        term_names.remove(c.term);
+    }
 
     // Cells of every interaction term that have no observation.
     let mut empty: Vec<String> = Vec::new();
@@ -362,8 +428,18 @@ pub fn run_factorial(
     let ss_type = spec.ss_type.as_ref().map_or(SsType::III, |l| l.value);
     if rank_deficient && ss_type == SsType::III {
         let at = spec.ss_type.as_ref().map_or(spec.model.line, |l| l.line);
+        let why = if empty.is_empty() {
+            "some of the model's contrasts are aliased with others (the design confounds part of a term)".to_string()
+        } else {
+            let cells = if empty.len() == 1 {
+                "cell has"
+            } else {
+                "cells have"
+            };
+            format!("{} {cells} no data ({})", empty.len(), empty.join("; "))
+        };
         return Err(doc
-            .error_at(at, None, format!("Type III sums of squares are not estimable: {} cell(s) have no data ({})", empty.len(), empty.join("; ")))
+            .error_at(at, None, format!("Type III sums of squares are not estimable: {why}"))
             .hint("use `ss: 2` (each term adjusted for the terms that do not contain it), or drop the interaction from the model"));
     }
     let tables: Vec<(SsType, SsTable)> = [SsType::I, SsType::II, SsType::III]
