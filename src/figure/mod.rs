@@ -58,12 +58,35 @@ fn unreachable_font() -> ! {
     std::process::abort()
 }
 
-/// Width in pixels of `text` at `size` px in the bundled font.
+/// The most characters of one text a figure draws; longer texts (level names
+/// can be anything a data file holds) end in "…". Tables keep the full text.
+/// Laying out text costs more than linear time in its length in the PNG
+/// renderer (a 100,000-character name took a minute), and no axis can show
+/// more than this anyway.
+pub const FIGURE_TEXT_CHARS: usize = 60;
+
+/// `text` as a figure draws it: whole, or cut to [`FIGURE_TEXT_CHARS`] with
+/// a closing ellipsis.
+pub fn figure_text(text: &str) -> std::borrow::Cow<'_, str> {
+    match text.char_indices().nth(FIGURE_TEXT_CHARS) {
+        None => std::borrow::Cow::Borrowed(text),
+        Some(_) => {
+            let cut = text
+                .char_indices()
+                .nth(FIGURE_TEXT_CHARS - 1)
+                .map_or(text.len(), |(i, _)| i);
+            std::borrow::Cow::Owned(format!("{}…", &text[..cut]))
+        }
+    }
+}
+
+/// Width in pixels of `text` at `size` px in the bundled font, as a figure
+/// draws it (see [`figure_text`]).
 pub fn text_width(text: &str, size: f32) -> f32 {
     let f = font().as_scaled(PxScale::from(size));
     let mut width = 0.0;
     let mut last = None;
-    for c in text.chars() {
+    for c in figure_text(text).chars() {
         let g = f.glyph_id(c);
         if let Some(prev) = last {
             width += f.kern(prev, g);
@@ -285,7 +308,7 @@ impl Svg {
             c(x),
             c(y),
             c(size),
-            xml_escape(text)
+            xml_escape(&figure_text(text))
         );
     }
 

@@ -31,3 +31,19 @@ fn scales_invert() {
     };
     assert!((s.unmap(s.map(3.7)) - 3.7).abs() < 1e-12);
 }
+
+#[test]
+fn figure_texts_are_cut_to_a_bounded_length() {
+    assert_eq!(figure_text("short"), "short");
+    let exact: String = "é".repeat(FIGURE_TEXT_CHARS);
+    assert_eq!(figure_text(&exact), exact.as_str());
+    let long: String = "ü".repeat(1_000_000);
+    let shown = figure_text(&long);
+    assert_eq!(shown.chars().count(), FIGURE_TEXT_CHARS);
+    assert!(shown.ends_with('…'));
+    // Measuring and drawing use the cut text, so layout sees what is drawn.
+    assert_eq!(text_width(&long, 11.0), text_width(&shown, 11.0));
+    let mut svg = Svg::new("t", 10.0, 10.0, "t", "t");
+    svg.text(0.0, 0.0, &long, "start", 11.0, None, "xtick");
+    assert!(svg.out.len() < 1000);
+}
