@@ -234,11 +234,7 @@ fn main() -> ExitCode {
         },
         Command::Validate { out } => {
             let v = sheaf::validate::run();
-            for c in &v.checks {
-                let mark = if c.pass { "pass" } else { "FAIL" };
-                println!("{mark}  {:<48} {}", c.name, c.detail());
-            }
-            println!("{} passed, {} failed", v.passed(), v.failed());
+            print!("{}", sheaf::validate::text(&v));
             if let Some(dir) = out {
                 match sheaf::validate::write(&v, &dir) {
                     Ok(paths) => {

@@ -246,6 +246,23 @@ fn a_failed_build_is_reported_once_and_fixing_the_data_rebuilds() {
     assert_eq!(w.count(waiting), 2, "{:?}", w.lines());
 }
 
+#[test]
+fn an_erroneous_document_is_reported_once_per_edit() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    study(p);
+    let broken = "```anova\nid: t\ndata: d.csv\nmodle: y ~ g\n```\n";
+    std::fs::write(p.join("report.md"), broken).expect("doc");
+    let w = Watch::start(p, &["--short-errors"]);
+    let waiting = "waiting for a change";
+    assert!(w.wait_count(waiting, 1), "{:?}", w.lines());
+    std::fs::write(p.join("report.md"), broken.replace("modle", "mdoel")).expect("edit");
+    assert!(w.wait_count(waiting, 2), "{:?}", w.lines());
+    std::thread::sleep(Duration::from_secs(2));
+    assert_eq!(w.count(waiting), 2, "{:?}", w.lines());
+    assert_eq!(w.count("report.md:4:1"), 2, "{:?}", w.lines());
+}
+
 /// DNS rebinding: a page from another site whose name now points at
 /// 127.0.0.1 sends that name as Host. Only 127.0.0.1:<port> and
 /// localhost:<port> are answered.
