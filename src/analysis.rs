@@ -1197,16 +1197,15 @@ impl Checks {
                 ));
             }
         }
-        if method != Omnibus::Ranks {
-            if let Ok(sw) = self.shapiro_wilk.as_ref() {
-                if sw.p < alpha {
-                    out.push(format!(
+        if method != Omnibus::Ranks
+            && let Ok(sw) = self.shapiro_wilk.as_ref()
+            && sw.p < alpha
+        {
+            out.push(format!(
                         "The residuals depart from a normal distribution (Shapiro-Wilk W = {}, {}). Look at how they depart; consider a transformation of the response, or `method: ranks` (Kruskal-Wallis with Dunn's comparisons).",
                         crate::render::format::fixed(sw.w, 3),
                         p3(sw.p)
                     ));
-                }
-            }
         }
         if let Err(ShapiroWilkSkip::TooMany) = self.shapiro_wilk {
             out.push("Shapiro-Wilk is not computed above 5,000 residuals (outside the range of Royston's approximation); judge normality from skewness, kurtosis and a Q-Q plot.".into());

@@ -33,11 +33,11 @@ pub fn document(data: &[u8]) {
 /// CSV files: the reader, then a one-factor and a two-factor extraction.
 pub fn csv(data: &[u8]) {
     let format = crate::data::CsvFormat::default();
-    if let Ok(table) = crate::data::Table::parse(data, &format) {
-        if let (Some(a), Some(b)) = (table.header.first().cloned(), table.header.get(1).cloned()) {
-            let _ = crate::data::factor_response(&table, &a, &b, &format);
-            let _ = crate::data::factorial_response(&table, &a, &[b.as_str()], &format);
-        }
+    if let Ok(table) = crate::data::Table::parse(data, &format)
+        && let (Some(a), Some(b)) = (table.header.first().cloned(), table.header.get(1).cloned())
+    {
+        let _ = crate::data::factor_response(&table, &a, &b, &format);
+        let _ = crate::data::factorial_response(&table, &a, &[b.as_str()], &format);
     }
 }
 

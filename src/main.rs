@@ -13,11 +13,16 @@ use sheaf::render::Format;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+/// Shown under every subcommand's help.
+const SYNTAX: &str = "The document syntax (front matter, `anova` and `power` blocks, {{ }} \
+expressions) is described in README.md, section \"A document\".";
+
 #[derive(Parser)]
 #[command(
     name = "sheaf",
     version,
-    about = "Compile a Markdown document with analysis blocks into a reproducible statistical report"
+    about = "Compile a Markdown document with analysis blocks into a reproducible statistical report",
+    after_help = SYNTAX
 )]
 struct Cli {
     #[command(subcommand)]
@@ -25,54 +30,72 @@ struct Cli {
     /// Print errors as one line each (file:line:col: error: message).
     #[arg(long, global = true)]
     short_errors: bool,
-    /// Read data only from inside the document's folder: no absolute paths,
-    /// no `..` escapes, no symbolic links out (for untrusted documents).
-    #[arg(long, global = true)]
-    confine: bool,
 }
 
 #[derive(Subcommand)]
 enum Command {
-    /// Build the report and its results file.
+    /// Build the report and its results file from a document and its data.
+    #[command(after_help = SYNTAX)]
     Build {
-        /// The Markdown document.
+        /// The Markdown document to compile.
         document: PathBuf,
-        /// Output folder (created if needed).
+        /// Output folder for the report, results file and figures (created if needed).
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
         /// Report format.
         #[arg(long = "to", value_enum, default_value_t = To::Html)]
         to: To,
+        /// Read data only from inside the document's folder: no absolute paths,
+        /// no `..` escapes, no symbolic links out (for untrusted documents).
+        #[arg(long)]
+        confine: bool,
     },
     /// Check that the report in DIR is exactly what the sources produce now.
+    #[command(after_help = SYNTAX)]
     Verify {
+        /// The Markdown document the report was built from.
         document: PathBuf,
+        /// The output folder holding the report and results file to check.
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
         /// The format the report was built in.
         #[arg(long = "to", value_enum, default_value_t = To::Html)]
         to: To,
+        /// Read data only from inside the document's folder: no absolute paths,
+        /// no `..` escapes, no symbolic links out (for untrusted documents).
+        #[arg(long)]
+        confine: bool,
     },
     /// Rebuild whenever the document or its data change; optionally serve the report.
+    #[command(after_help = SYNTAX)]
     Watch {
+        /// The Markdown document to compile and follow.
         document: PathBuf,
+        /// Output folder for the report, results file and figures (created if needed).
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
+        /// Report format.
         #[arg(long = "to", value_enum, default_value_t = To::Html)]
         to: To,
-        /// Serve the report on 127.0.0.1 and reload the page after each rebuild.
+        /// Serve the output folder on 127.0.0.1 and reload the page after each rebuild.
         #[arg(long)]
         serve: bool,
-        /// Port for --serve.
+        /// Port for --serve (0 picks a free one).
         #[arg(long, default_value_t = sheaf::watch::DEFAULT_PORT)]
         port: u16,
+        /// Read data only from inside the document's folder: no absolute paths,
+        /// no `..` escapes, no symbolic links out (for untrusted documents).
+        #[arg(long)]
+        confine: bool,
     },
     /// Start a new study folder from a small invented example.
+    #[command(after_help = SYNTAX)]
     New {
         /// The folder to create (must not exist, or be empty).
         folder: PathBuf,
     },
     /// Run the built-in accuracy suite and write a validation report.
+    #[command(after_help = SYNTAX)]
     Validate {
         /// Where to write validation.html and validation.results.json.
         #[arg(short = 'o', long = "out", value_name = "DIR")]
@@ -80,9 +103,12 @@ enum Command {
     },
 }
 
+/// The report format.
 #[derive(Clone, Copy, ValueEnum)]
 enum To {
+    /// One self-contained HTML file.
     Html,
+    /// Markdown, with figures as separate files.
     Md,
 }
 
@@ -107,9 +133,13 @@ fn report(d: &Diagnostic, short: bool) -> ExitCode {
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let short = cli.short_errors;
-    let confine = cli.confine;
     match cli.command {
-        Command::Build { document, out, to } => {
+        Command::Build {
+            document,
+            out,
+            to,
+            confine,
+        } => {
             let built =
                 match build_file(&document, to.format(), Some(&out.join(CACHE_DIR)), confine) {
                     Ok(b) => b,
@@ -135,7 +165,12 @@ fn main() -> ExitCode {
                 Err(d) => report(&d, short),
             }
         }
-        Command::Verify { document, out, to } => {
+        Command::Verify {
+            document,
+            out,
+            to,
+            confine,
+        } => {
             // verify recomputes everything: it never trusts the cache.
             let built = match build_file(&document, to.format(), None, confine) {
                 Ok(b) => b,
@@ -168,6 +203,7 @@ fn main() -> ExitCode {
             to,
             serve,
             port,
+            confine,
         } => {
             let opts = sheaf::watch::WatchOptions {
                 document,
@@ -198,11 +234,7 @@ fn main() -> ExitCode {
         },
         Command::Validate { out } => {
             let v = sheaf::validate::run();
-            for c in &v.checks {
-                let mark = if c.pass { "pass" } else { "FAIL" };
-                println!("{mark}  {:<48} {}", c.name, c.detail());
-            }
-            println!("{} passed, {} failed", v.passed(), v.failed());
+            print!("{}", sheaf::validate::text(&v));
             if let Some(dir) = out {
                 match sheaf::validate::write(&v, &dir) {
                     Ok(paths) => {

@@ -21,6 +21,9 @@ use serde::Serialize;
 use serde_json::Value;
 use std::path::{Path, PathBuf};
 
+mod report;
+pub use report::text;
+
 /// The git revision sheaf was built from ("unknown" outside a git checkout).
 pub const REVISION: &str = env!("SHEAF_GIT_REVISION");
 
@@ -36,9 +39,65 @@ pub enum Bar {
     Exact,
 }
 
+/// What part of sheaf a check covers; the report is grouped and summarised
+/// by area, in this order.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Area {
+    NistAnova,
+    TAndF,
+    StudentizedRange,
+    OneWayComparisons,
+    AssumptionsAndRobust,
+    Factorial,
+    Dunnett,
+    Power,
+}
+
+impl Area {
+    pub const ALL: [Area; 8] = [
+        Area::NistAnova,
+        Area::TAndF,
+        Area::StudentizedRange,
+        Area::OneWayComparisons,
+        Area::AssumptionsAndRobust,
+        Area::Factorial,
+        Area::Dunnett,
+        Area::Power,
+    ];
+
+    pub fn title(self) -> &'static str {
+        match self {
+            Area::NistAnova => "One-way ANOVA, NIST StRD datasets",
+            Area::TAndF => "t and F distributions",
+            Area::StudentizedRange => "Studentized range distribution",
+            Area::OneWayComparisons => "One-way ANOVA and pairwise comparisons",
+            Area::AssumptionsAndRobust => "Assumption checks, Welch and rank tests",
+            Area::Factorial => "Factorial sums of squares (Types I, II, III)",
+            Area::Dunnett => "Dunnett's procedure",
+            Area::Power => "Power and sample size",
+        }
+    }
+
+    /// The anchor of the area's section in the HTML report.
+    pub fn key(self) -> &'static str {
+        match self {
+            Area::NistAnova => "nist-anova",
+            Area::TAndF => "t-and-f",
+            Area::StudentizedRange => "studentized-range",
+            Area::OneWayComparisons => "one-way-comparisons",
+            Area::AssumptionsAndRobust => "assumptions-and-robust",
+            Area::Factorial => "factorial",
+            Area::Dunnett => "dunnett",
+            Area::Power => "power",
+        }
+    }
+}
+
 /// One check.
 #[derive(Debug, Clone, Serialize)]
 pub struct Check {
+    pub area: Area,
     pub name: String,
     pub source: String,
     pub value: f64,
@@ -50,7 +109,14 @@ pub struct Check {
 }
 
 impl Check {
-    fn new(name: impl Into<String>, source: &str, value: f64, reference: f64, bar: Bar) -> Self {
+    fn new(
+        area: Area,
+        name: impl Into<String>,
+        source: &str,
+        value: f64,
+        reference: f64,
+        bar: Bar,
+    ) -> Self {
         let lre = if value == reference {
             15.0
         } else {
@@ -62,6 +128,7 @@ impl Check {
             Bar::Exact => value == reference,
         };
         Check {
+            area,
             name: name.into(),
             source: source.to_string(),
             value,
@@ -72,16 +139,23 @@ impl Check {
         }
     }
 
-    /// "value vs reference (LRE 14.2, bar ≥ 9)".
-    pub fn detail(&self) -> String {
-        let bar = match self.bar {
+    /// The bar as text: "LRE ≥ 9", "|Δ| ≤ 1e-8" or "exact".
+    pub fn bar_text(&self) -> String {
+        match self.bar {
             Bar::MinLre { lre } => format!("LRE ≥ {lre}"),
             Bar::MaxAbs { diff } => format!("|Δ| ≤ {diff:e}"),
             Bar::Exact => "exact".to_string(),
-        };
+        }
+    }
+
+    /// "value vs reference (LRE 14.2; LRE ≥ 9)".
+    pub fn detail(&self) -> String {
         format!(
-            "{:.10e} vs {:.10e} (LRE {:.1}; {bar})",
-            self.value, self.reference, self.lre
+            "{:.10e} vs {:.10e} (LRE {:.1}; {})",
+            self.value,
+            self.reference,
+            self.lre,
+            self.bar_text()
         )
     }
 }
@@ -92,7 +166,21 @@ pub struct Validation {
     pub sheaf: String,
     pub revision: String,
     pub platform: String,
+    /// The day of the run (YYYY-MM-DD, UTC): `SOURCE_DATE_EPOCH` when set,
+    /// else the clock; `None` when SOURCE_DATE_EPOCH is not a whole number.
+    pub date: Option<String>,
+    /// Grouped by area, in `Area::ALL` order.
     pub checks: Vec<Check>,
+}
+
+/// The checks of one area, counted.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct AreaSummary {
+    pub area: Area,
+    pub checks: usize,
+    pub passed: usize,
+    /// The lowest log relative error among the area's checks.
+    pub worst_lre: f64,
 }
 
 impl Validation {
@@ -103,6 +191,37 @@ impl Validation {
     pub fn failed(&self) -> usize {
         self.checks.len() - self.passed()
     }
+
+    /// One line per area that has checks, in `Area::ALL` order.
+    pub fn summary(&self) -> Vec<AreaSummary> {
+        Area::ALL
+            .iter()
+            .filter_map(|&area| {
+                let of_area = || self.checks.iter().filter(move |c| c.area == area);
+                let checks = of_area().count();
+                (checks > 0).then(|| AreaSummary {
+                    area,
+                    checks,
+                    passed: of_area().filter(|c| c.pass).count(),
+                    worst_lre: of_area().map(|c| c.lre).fold(f64::INFINITY, f64::min),
+                })
+            })
+            .collect()
+    }
+}
+
+/// The day of the run; see `Validation::date`. Validation output records
+/// when this installation was checked, so it may read the clock; builds of
+/// reports never do.
+fn run_date() -> Option<String> {
+    let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
+        Ok(v) => v.trim().parse::<i64>().ok()?,
+        Err(_) => std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .ok()?
+            .as_secs() as i64,
+    };
+    Some(crate::compile::civil_date(seconds))
 }
 
 const NIST: [(&str, &str); 11] = [
@@ -156,10 +275,13 @@ pub fn run() -> Validation {
     robust_cases(&mut checks);
     factorial_cases(&mut checks);
     published(&mut checks);
+    // Stable: within an area the checks keep the order they were run in.
+    checks.sort_by_key(|c| c.area);
     Validation {
         sheaf: crate::VERSION.to_string(),
         revision: REVISION.to_string(),
         platform: format!("{}-{}", std::env::consts::ARCH, std::env::consts::OS),
+        date: run_date(),
         checks,
     }
 }
@@ -180,6 +302,7 @@ fn nist(checks: &mut Vec<Check>) {
             .and_then(|t| factor_response(&t, "value", "group", &format).ok())
         else {
             checks.push(Check::new(
+                Area::NistAnova,
                 format!("{name}: data readable"),
                 source,
                 0.0,
@@ -199,6 +322,7 @@ fn nist(checks: &mut Vec<Check>) {
         };
         let lre9 = Bar::MinLre { lre: 9.0 };
         checks.push(Check::new(
+            Area::NistAnova,
             format!("{name}: between-groups SS"),
             source,
             t.ss_between,
@@ -206,6 +330,7 @@ fn nist(checks: &mut Vec<Check>) {
             lre9,
         ));
         checks.push(Check::new(
+            Area::NistAnova,
             format!("{name}: within-groups SS"),
             source,
             t.ss_within,
@@ -213,6 +338,7 @@ fn nist(checks: &mut Vec<Check>) {
             lre9,
         ));
         checks.push(Check::new(
+            Area::NistAnova,
             format!("{name}: between-groups MS"),
             source,
             t.ms_between,
@@ -220,6 +346,7 @@ fn nist(checks: &mut Vec<Check>) {
             lre9,
         ));
         checks.push(Check::new(
+            Area::NistAnova,
             format!("{name}: within-groups MS"),
             source,
             t.ms_within,
@@ -227,6 +354,7 @@ fn nist(checks: &mut Vec<Check>) {
             lre9,
         ));
         checks.push(Check::new(
+            Area::NistAnova,
             format!("{name}: F"),
             source,
             t.f,
@@ -246,6 +374,7 @@ fn distributions(checks: &mut Vec<Check>) {
     {
         let got = t_isf(num(&r["p"]), num(&r["df"]));
         checks.push(Check::new(
+            Area::TAndF,
             format!("t critical value, df = {}", r["df"]),
             "scipy.stats.t.isf",
             got,
@@ -261,6 +390,7 @@ fn distributions(checks: &mut Vec<Check>) {
     {
         let got = f_isf(num(&r["p"]), num(&r["d1"]), num(&r["d2"]));
         checks.push(Check::new(
+            Area::TAndF,
             format!("F critical value, df = ({}, {})", r["d1"], r["d2"]),
             "scipy.stats.f.isf",
             got,
@@ -290,6 +420,7 @@ fn ptukey_check(r: &Value, source: &str, bar: Bar) -> Check {
     let k = r["k"].as_u64().unwrap_or(2) as usize;
     let df = r["df"].as_f64().unwrap_or(f64::INFINITY);
     Check::new(
+        Area::StudentizedRange,
         format!(
             "studentized range cdf, q = {}, k = {k}, df = {}",
             r["q"], r["df"]
@@ -319,6 +450,7 @@ fn oneway_cases(checks: &mut Vec<Check>) {
     };
     let src = "statsmodels anova_lm";
     checks.push(Check::new(
+        Area::OneWayComparisons,
         "PlantGrowth one-way F",
         src,
         t.f,
@@ -326,6 +458,7 @@ fn oneway_cases(checks: &mut Vec<Check>) {
         Bar::MinLre { lre: 9.0 },
     ));
     checks.push(Check::new(
+        Area::OneWayComparisons,
         "PlantGrowth one-way p",
         src,
         t.p,
@@ -366,6 +499,7 @@ fn oneway_cases(checks: &mut Vec<Check>) {
             .zip(case["comparisons"][key].as_array().into_iter().flatten())
         {
             checks.push(Check::new(
+                Area::OneWayComparisons,
                 format!("PlantGrowth {key} p, {} − {}", r["a"], r["b"]),
                 src,
                 p.p_adj,
@@ -396,6 +530,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
             .collect();
         if let Some(bf) = levene(&refs, Center::Median) {
             checks.push(Check::new(
+                Area::AssumptionsAndRobust,
                 format!("{name} Brown-Forsythe F"),
                 "scipy.stats.levene",
                 bf.statistic,
@@ -405,6 +540,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
         }
         if let Ok(w) = welch_anova(&s) {
             checks.push(Check::new(
+                Area::AssumptionsAndRobust,
                 format!("{name} Welch F"),
                 "pingouin.welch_anova",
                 w.f,
@@ -414,6 +550,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
         }
         if let Some(kw) = kruskal_wallis(&refs) {
             checks.push(Check::new(
+                Area::AssumptionsAndRobust,
                 format!("{name} Kruskal-Wallis H"),
                 "scipy.stats.kruskal",
                 kw.h,
@@ -456,6 +593,7 @@ fn factorial_cases(checks: &mut Vec<Check>) {
                 .zip(case["tables"][key].as_array().into_iter().flatten())
             {
                 checks.push(Check::new(
+                    Area::Factorial,
                     format!("{name} Type {key} SS, term {}", got.df),
                     "statsmodels anova_lm (sum-to-zero coding)",
                     got.ss,
@@ -479,6 +617,7 @@ fn published(checks: &mut Vec<Check>) {
     let fam = dunnett(&levels, 0, 1.3805233, 12.0, 0.05, Sides::Two);
     let src = "Dunnett (1955) data; deterministic reference quadrature";
     checks.push(Check::new(
+        Area::Dunnett,
         "Dunnett adjusted p, drug A",
         src,
         fam.pairs[0].p_adj,
@@ -486,6 +625,7 @@ fn published(checks: &mut Vec<Check>) {
         Bar::MaxAbs { diff: 1e-6 },
     ));
     checks.push(Check::new(
+        Area::Dunnett,
         "Dunnett adjusted p, drug B",
         src,
         fam.pairs[1].p_adj,
@@ -493,6 +633,7 @@ fn published(checks: &mut Vec<Check>) {
         Bar::MaxAbs { diff: 1e-6 },
     ));
     checks.push(Check::new(
+        Area::Dunnett,
         "Dunnett critical value",
         src,
         fam.critical,
@@ -506,6 +647,7 @@ fn published(checks: &mut Vec<Check>) {
         (5, f64::INFINITY, 3.858),
     ] {
         checks.push(Check::new(
+            Area::StudentizedRange,
             format!("q(0.95; {k}, {df})"),
             "Harter (1960) table",
             qtukey_isf(0.05, k, df),
@@ -517,6 +659,7 @@ fn published(checks: &mut Vec<Check>) {
     for (k, f, n) in [(4, 0.25, 45.0), (4, 0.10, 274.0), (2, 0.25, 64.0)] {
         let got = one_way_sample_size(k, f, 0.05, 0.8).map_or(f64::NAN, |(n, _)| n as f64);
         checks.push(Check::new(
+            Area::Power,
             format!("n per group, k = {k}, f = {f}"),
             "Cohen (1988) power tables",
             got,
@@ -529,42 +672,9 @@ fn published(checks: &mut Vec<Check>) {
 /// Writes validation.html and validation.results.json into `dir`.
 pub fn write(v: &Validation, dir: &Path) -> Result<Vec<PathBuf>, Diagnostic> {
     let json = serde_json::to_vec_pretty(v).unwrap_or_default();
-    let mut html = String::new();
-    html.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>sheaf validation</title>\n<style>\n");
-    html.push_str(include_str!("../templates/report.css"));
-    html.push_str("\ntd.fail { color: #b00020; font-weight: 600; }\n</style>\n</head>\n<body>\n<main>\n<h1 class=\"title\">sheaf validation report</h1>\n");
-    let e = crate::render::html_escape;
-    html.push_str(&format!(
-        "<p>sheaf {} (revision <code>{}</code>) on {}: {} checks passed, {} failed. Each check compares a value computed by this installation with a certified or reference value from the named outside source; LRE is the log relative error.</p>\n",
-        e(&v.sheaf),
-        e(&v.revision),
-        e(&v.platform),
-        v.passed(),
-        v.failed()
-    ));
-    html.push_str("<table>\n<thead><tr><th>Check</th><th>Source</th><th class=\"num\">Value</th><th class=\"num\">Reference</th><th class=\"num\">LRE</th><th>Bar</th><th>Result</th></tr></thead>\n<tbody>\n");
-    for c in &v.checks {
-        let bar = match c.bar {
-            Bar::MinLre { lre } => format!("LRE ≥ {lre}"),
-            Bar::MaxAbs { diff } => format!("|Δ| ≤ {diff:e}"),
-            Bar::Exact => "exact".into(),
-        };
-        html.push_str(&format!(
-            "<tr><td>{}</td><td>{}</td><td class=\"num\">{:.12e}</td><td class=\"num\">{:.12e}</td><td class=\"num\">{:.1}</td><td>{}</td><td{}>{}</td></tr>\n",
-            e(&c.name),
-            e(&c.source),
-            c.value,
-            c.reference,
-            c.lre,
-            e(&bar),
-            if c.pass { "" } else { " class=\"fail\"" },
-            if c.pass { "pass" } else { "FAIL" }
-        ));
-    }
-    html.push_str("</tbody>\n</table>\n<p>This report is generated by <code>sheaf validate</code>; it is evidence that this installation reproduces published and reference values. It does not by itself make any use of the software compliant with regulations: that depends on the intended use, the procedures around it and a qualified review.</p>\n</main>\n</body>\n</html>\n");
     let built = crate::compile::Built {
         report_name: "validation.html".into(),
-        report: html.into_bytes(),
+        report: report::html(v).into_bytes(),
         results_name: "validation.results.json".into(),
         results: json,
         files: Vec::new(),
@@ -575,3 +685,7 @@ pub fn write(v: &Validation, dir: &Path) -> Result<Vec<PathBuf>, Diagnostic> {
     };
     crate::output::write_outputs(dir, &built)
 }
+
+#[cfg(test)]
+#[path = "validate_tests.rs"]
+mod tests;

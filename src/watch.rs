@@ -3,12 +3,16 @@
 //! after each rebuild. The report files themselves stay script-free: the
 //! reload snippet is added only to pages as they are served.
 
+mod inputs;
+pub mod server;
+
 use crate::compile::{Built, CACHE_DIR, build_file};
 use crate::diag::Diagnostic;
 use crate::output::write_outputs;
 use crate::render::Format;
+use inputs::Inputs;
 use notify::{RecursiveMode, Watcher};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::sync::Arc;
 use std::sync::atomic::{AtomicU64, Ordering};
 use std::sync::mpsc;
@@ -18,59 +22,35 @@ use std::time::{Duration, Instant};
 /// unassigned range).
 pub const DEFAULT_PORT: u16 = 7357;
 
+/// Editors save in several steps: a rebuild waits until no event has come
+/// for this long, but never longer than `MAX_SETTLE` in all.
+const SETTLE: Duration = Duration::from_millis(150);
+const MAX_SETTLE: Duration = Duration::from_secs(2);
+
 /// What to watch and where to serve.
 pub struct WatchOptions {
     pub document: PathBuf,
     pub out: PathBuf,
     pub format: Format,
+    /// The port for `--serve` (0: any free port); `None` serves nothing.
     pub serve: Option<u16>,
     pub short_errors: bool,
     pub confine: bool,
 }
 
-/// The files a build read: the document and every data file it names.
-fn inputs_of(document: &Path, built: Option<&Built>) -> Vec<PathBuf> {
-    let mut files = vec![document.to_path_buf()];
-    if let Some(b) = built {
-        let base = document.parent().map(PathBuf::from).unwrap_or_default();
-        if let Ok(v) = serde_json::from_slice::<serde_json::Value>(&b.results) {
-            for i in v["inputs"].as_array().into_iter().flatten() {
-                if let Some(p) = i["path"].as_str() {
-                    files.push(base.join(p));
-                }
-            }
-        }
-    }
-    files
-}
-
-/// One build and write; prints a one-line status. Returns what it read.
-fn rebuild(opts: &WatchOptions, version: &AtomicU64) -> Vec<PathBuf> {
+/// One build and write; prints a one-line status. Returns what to follow
+/// next: what the build read, with the content it read.
+fn rebuild(opts: &WatchOptions, version: &AtomicU64, before: &Inputs) -> Inputs {
     let start = Instant::now();
-    match build_file(
-        &opts.document,
-        opts.format,
-        Some(&opts.out.join(CACHE_DIR)),
-        opts.confine,
-    )
-    .and_then(|b| write_outputs(&opts.out, &b).map(|_| b))
-    {
+    let cache = opts.out.join(CACHE_DIR);
+    let outcome = build_file(&opts.document, opts.format, Some(&cache), opts.confine)
+        .and_then(|b| write_outputs(&opts.out, &b).map(|_| b));
+    match outcome {
         Ok(b) => {
-            crate::output::write_cache(&opts.out.join(CACHE_DIR), &b.cache_entries);
+            crate::output::write_cache(&cache, &b.cache_entries);
             let n = version.fetch_add(1, Ordering::SeqCst) + 1;
-            eprintln!(
-                "[{n}] rebuilt {} in {:.2} s ({} of {} block(s) computed){}",
-                opts.out.join(&b.report_name).display(),
-                start.elapsed().as_secs_f64(),
-                b.recomputed,
-                b.blocks,
-                if b.warnings.is_empty() {
-                    String::new()
-                } else {
-                    format!(" ({} warning(s))", b.warnings.len())
-                }
-            );
-            inputs_of(&opts.document, Some(&b))
+            eprintln!("[{n}] {}", status_line(opts, &b, start.elapsed()));
+            Inputs::after_build(&opts.document, Some(&b), None, before)
         }
         Err(d) => {
             if opts.short_errors {
@@ -79,7 +59,42 @@ fn rebuild(opts: &WatchOptions, version: &AtomicU64) -> Vec<PathBuf> {
                 eprint!("{d}");
             }
             eprintln!("waiting for a change; the last good report stays in place");
-            inputs_of(&opts.document, None)
+            let file = d.place.as_ref().map(|p| PathBuf::from(&p.file));
+            Inputs::after_build(&opts.document, None, file.as_deref(), before)
+        }
+    }
+}
+
+fn status_line(opts: &WatchOptions, b: &Built, took: Duration) -> String {
+    let warnings = match b.warnings.len() {
+        0 => String::new(),
+        1 => " (1 warning)".to_string(),
+        n => format!(" ({n} warnings)"),
+    };
+    format!(
+        "rebuilt {} in {:.2} s ({} of {} blocks computed){warnings}",
+        opts.out.join(&b.report_name).display(),
+        took.as_secs_f64(),
+        b.recomputed,
+        b.blocks,
+    )
+}
+
+/// The report's file name, served at `/`.
+fn report_name(opts: &WatchOptions) -> String {
+    let stem = opts
+        .document
+        .file_stem()
+        .map_or_else(|| "report".into(), |s| s.to_string_lossy().into_owned());
+    format!("{stem}.{}", opts.format.extension())
+}
+
+/// Adds a watch on every folder of `inputs` not watched yet.
+fn watch_folders(inputs: &Inputs, watcher: &mut impl Watcher, watched: &mut Vec<PathBuf>) {
+    for folder in inputs.folders() {
+        if !watched.contains(&folder) && watcher.watch(&folder, RecursiveMode::NonRecursive).is_ok()
+        {
+            watched.push(folder);
         }
     }
 }
@@ -87,129 +102,38 @@ fn rebuild(opts: &WatchOptions, version: &AtomicU64) -> Vec<PathBuf> {
 /// Watches and rebuilds until the process is stopped.
 pub fn run(opts: WatchOptions) -> Result<(), Diagnostic> {
     let version = Arc::new(AtomicU64::new(0));
-    let mut watched = rebuild(&opts, &version);
+    let mut inputs = rebuild(&opts, &version, &Inputs::default());
     if let Some(port) = opts.serve {
-        let server = tiny_http::Server::http(("127.0.0.1", port)).map_err(|e| {
-            Diagnostic::new(format!("cannot serve on 127.0.0.1:{port}: {e}"))
-                .hint("choose another port with --port")
-        })?;
-        let out = opts.out.clone();
-        let report = format!(
-            "{}.{}",
-            opts.document
-                .file_stem()
-                .map_or_else(|| "report".into(), |s| s.to_string_lossy().into_owned()),
-            opts.format.extension()
-        );
-        let v = Arc::clone(&version);
-        std::thread::spawn(move || serve(server, &out, &report, &v));
+        let site = server::Site {
+            out: opts.out.clone(),
+            report: report_name(&opts),
+            version: Arc::clone(&version),
+        };
+        let port = server::start(port, site)?;
         eprintln!("serving on http://127.0.0.1:{port}/");
     }
     let (tx, rx) = mpsc::channel();
     let mut watcher = notify::recommended_watcher(tx)
         .map_err(|e| Diagnostic::new(format!("cannot watch files: {e}")))?;
-    let mut dirs: Vec<PathBuf> = Vec::new();
-    let mut watch_dirs = |files: &[PathBuf], watcher: &mut notify::RecommendedWatcher| {
-        for f in files {
-            let dir = f
-                .parent()
-                .filter(|d| !d.as_os_str().is_empty())
-                .map_or_else(|| PathBuf::from("."), Path::to_path_buf);
-            if !dirs.contains(&dir) && watcher.watch(&dir, RecursiveMode::NonRecursive).is_ok() {
-                dirs.push(dir);
-            }
-        }
-    };
-    watch_dirs(&watched, &mut watcher);
-    let same = |a: &Path, b: &Path| {
-        a.file_name() == b.file_name() && a.canonicalize().ok() == b.canonicalize().ok()
-    };
+    let mut watched: Vec<PathBuf> = Vec::new();
+    watch_folders(&inputs, &mut watcher, &mut watched);
     loop {
         let Ok(event) = rx.recv() else { return Ok(()) };
-        let relevant = |e: &notify::Result<notify::Event>| {
-            e.as_ref().is_ok_and(|ev| {
-                ev.paths.iter().any(|p| {
-                    watched
-                        .iter()
-                        .any(|w| same(p, w) || p.file_name() == w.file_name())
-                })
-            })
-        };
-        if !relevant(&event) {
+        let mut touched = inputs.touched_by(&event);
+        if touched.is_empty() {
             continue;
         }
-        // Editors write in several steps: wait for the burst to settle.
-        while rx.recv_timeout(Duration::from_millis(150)).is_ok() {}
-        watched = rebuild(&opts, &version);
-        watch_dirs(&watched, &mut watcher);
-    }
-}
-
-const RELOAD: &str = "<script>/* added by sheaf watch --serve; not part of the report */(function(){var v=null;setInterval(function(){fetch('/__sheaf/version').then(function(r){return r.text()}).then(function(t){if(v===null){v=t}else if(t!==v){location.reload()}}).catch(function(){})},700)})();</script>";
-
-fn content_type(name: &str) -> &'static str {
-    match name.rsplit('.').next() {
-        Some("html") => "text/html; charset=utf-8",
-        Some("svg") => "image/svg+xml",
-        Some("png") => "image/png",
-        Some("json") => "application/json",
-        Some("md") => "text/markdown; charset=utf-8",
-        _ => "application/octet-stream",
-    }
-}
-
-fn respond(request: tiny_http::Request, status: u16, body: Vec<u8>, kind: &str) {
-    let mut response = tiny_http::Response::from_data(body).with_status_code(status);
-    if let Ok(h) = tiny_http::Header::from_bytes(&b"Content-Type"[..], kind.as_bytes()) {
-        response = response.with_header(h);
-    }
-    if let Ok(h) = tiny_http::Header::from_bytes(&b"Cache-Control"[..], &b"no-store"[..]) {
-        response = response.with_header(h);
-    }
-    let _ = request.respond(response);
-}
-
-/// Serves the output folder; only plain file names inside it are served.
-fn serve(server: tiny_http::Server, out: &Path, report: &str, version: &AtomicU64) {
-    for request in server.incoming_requests() {
-        let url = request
-            .url()
-            .split('?')
-            .next()
-            .unwrap_or("/")
-            .trim_start_matches('/')
-            .to_string();
-        if url == "__sheaf/version" {
-            respond(
-                request,
-                200,
-                version.load(Ordering::SeqCst).to_string().into_bytes(),
-                "text/plain",
-            );
-            continue;
-        }
-        let name = if url.is_empty() {
-            report.to_string()
-        } else {
-            url
-        };
-        if name.contains('/') || name.contains('\\') || name.starts_with('.') {
-            respond(request, 404, b"not found".to_vec(), "text/plain");
-            continue;
-        }
-        match std::fs::read(out.join(&name)) {
-            Ok(mut bytes) => {
-                if name.ends_with(".html") {
-                    let text = String::from_utf8_lossy(&bytes).replacen(
-                        "</body>",
-                        &format!("{RELOAD}\n</body>"),
-                        1,
-                    );
-                    bytes = text.into_bytes();
-                }
-                respond(request, 200, bytes, content_type(&name));
+        let settle_until = Instant::now() + MAX_SETTLE;
+        while Instant::now() < settle_until {
+            match rx.recv_timeout(SETTLE) {
+                Ok(event) => touched.extend(inputs.touched_by(&event)),
+                Err(_) => break,
             }
-            Err(_) => respond(request, 404, b"not found".to_vec(), "text/plain"),
         }
+        if !inputs.content_changed(&touched) {
+            continue;
+        }
+        inputs = rebuild(&opts, &version, &inputs);
+        watch_folders(&inputs, &mut watcher, &mut watched);
     }
 }

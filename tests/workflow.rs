@@ -115,10 +115,17 @@ fn new_scaffolds_a_study_that_builds_and_never_overwrites() {
 #[test]
 fn validate_passes_and_writes_its_report() {
     let dir = tempfile::tempdir().expect("temp dir");
-    let v = sheaf(dir.path(), &["validate", "-o", "validation"]);
+    let v = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["validate", "-o", "validation"])
+        .env("SOURCE_DATE_EPOCH", "1700000000")
+        .output()
+        .expect("runs");
     let stdout = String::from_utf8_lossy(&v.stdout);
     assert_eq!(v.status.code(), Some(0), "{stdout}");
     assert!(stdout.contains(" passed, 0 failed"));
+    // 1700000000 s after the epoch is 2023-11-14 22:13:20 UTC.
+    assert!(stdout.contains("run on 2023-11-14"), "{stdout}");
     let json: serde_json::Value = serde_json::from_slice(
         &std::fs::read(dir.path().join("validation/validation.results.json")).expect("json"),
     )
@@ -131,7 +138,39 @@ fn validate_passes_and_writes_its_report() {
             .any(|c| c["source"] == "NIST StRD ANOVA certified values")
     );
     assert!(json["revision"].is_string() && json["platform"].is_string());
+    assert_eq!(json["date"], "2023-11-14");
     let html =
         std::fs::read_to_string(dir.path().join("validation/validation.html")).expect("html");
     assert!(html.contains("SmLs09: F"));
+    assert!(html.contains("run on 2023-11-14"));
+    // The summary opens the page, and each area's counts are its table's
+    // rows and the results file's checks of that area.
+    assert!(html.find("Summary by area") < html.find("<section"));
+    let mut total = 0;
+    for row in html.split("<tr data-area=\"").skip(1) {
+        let key = row.split('"').next().expect("key");
+        let numbers: Vec<usize> = row
+            .split("<td class=\"num\">")
+            .skip(1)
+            .take(2)
+            .map(|t| t.split('<').next().expect("cell").parse().expect("count"))
+            .collect();
+        let (count, passed) = (numbers[0], numbers[1]);
+        assert_eq!(count, passed, "{key}: every check passes");
+        let section = html
+            .split(&format!("<section id=\"{key}\">"))
+            .nth(1)
+            .and_then(|s| s.split("</section>").next())
+            .expect("section");
+        assert_eq!(
+            section.matches("<tr>").count() - 1,
+            count,
+            "{key}: table rows"
+        );
+        let area = key.replace('-', "_");
+        let in_json = checks.iter().filter(|c| c["area"] == area.as_str()).count();
+        assert_eq!(in_json, count, "{key}: results file");
+        total += count;
+    }
+    assert_eq!(total, checks.len());
 }

@@ -975,14 +975,14 @@ fn factorial_advice(checks: &Checks, alpha: f64, decimals: u32) -> Vec<String> {
             p3(bf.p)
         ));
     }
-    if let Ok(sw) = checks.shapiro_wilk.as_ref() {
-        if sw.p < alpha {
-            out.push(format!(
+    if let Ok(sw) = checks.shapiro_wilk.as_ref()
+        && sw.p < alpha
+    {
+        out.push(format!(
                 "The residuals depart from a normal distribution (Shapiro-Wilk W = {}, {}); look at how they depart and consider a transformation of the response.",
                 crate::render::format::fixed(sw.w, 3),
                 p3(sw.p)
             ));
-        }
     }
     out.extend(checks.outlier_advice(decimals));
     out

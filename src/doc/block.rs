@@ -561,14 +561,14 @@ pub fn anova_spec(
         .map(parse_yes_no)
         .transpose()?
         .unwrap_or(true);
-    if let Some(e) = get("protected") {
-        if compare != Some(Method::Lsd) {
-            return Err(bad(
-                e,
-                "`protected` applies only to `compare: lsd`".into(),
-                "remove it, or choose `compare: lsd`",
-            ));
-        }
+    if let Some(e) = get("protected")
+        && compare != Some(Method::Lsd)
+    {
+        return Err(bad(
+            e,
+            "`protected` applies only to `compare: lsd`".into(),
+            "remove it, or choose `compare: lsd`",
+        ));
     }
     let order = match get("order") {
         None => Order::Mean,
@@ -639,14 +639,14 @@ pub fn anova_spec(
             hint: Some("add `control: <level>`, the level every treatment is compared with".into()),
         });
     }
-    if let Some(e) = get("control") {
-        if compare != Some(Method::Dunnett) {
-            return Err(bad(
-                e,
-                "`control` applies only to `compare: dunnett`".into(),
-                "remove it, or choose `compare: dunnett`",
-            ));
-        }
+    if let Some(e) = get("control")
+        && compare != Some(Method::Dunnett)
+    {
+        return Err(bad(
+            e,
+            "`control` applies only to `compare: dunnett`".into(),
+            "remove it, or choose `compare: dunnett`",
+        ));
     }
     let sides = match get("sides") {
         None => Sides::Two,
@@ -707,14 +707,14 @@ pub fn anova_spec(
             ));
         }
     };
-    if summary.is_none() {
-        if let Some(e) = get("columns") {
-            return Err(bad(
-                e,
-                "`columns` applies only to `input: summary`".into(),
-                "add `input: summary`, or remove `columns`",
-            ));
-        }
+    if summary.is_none()
+        && let Some(e) = get("columns")
+    {
+        return Err(bad(
+            e,
+            "`columns` applies only to `input: summary`".into(),
+            "add `input: summary`, or remove `columns`",
+        ));
     }
     let ss_type = match get("ss") {
         None => None,

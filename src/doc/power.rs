@@ -158,17 +158,17 @@ pub fn power_spec(entries: &[Entry], fence_line: usize) -> Result<PowerSpec, Spe
             EffectInput::CohensF(_) => return Err(missing("groups", "groups: 4")),
         },
     };
-    if let (EffectInput::Means { means, .. }, Some(e)) = (&effect, get("groups")) {
-        if means.len() != groups {
-            return Err(bad(
-                e,
-                format!(
-                    "`groups` is {groups} but the effect lists {} means",
-                    means.len()
-                ),
-                "give one expected mean per group",
-            ));
-        }
+    if let (EffectInput::Means { means, .. }, Some(e)) = (&effect, get("groups"))
+        && means.len() != groups
+    {
+        return Err(bad(
+            e,
+            format!(
+                "`groups` is {groups} but the effect lists {} means",
+                means.len()
+            ),
+            "give one expected mean per group",
+        ));
     }
     let alpha = get("alpha").map(parse_alpha).transpose()?;
     let goal = match (get("power"), get("n")) {

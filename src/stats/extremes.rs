@@ -64,10 +64,10 @@ impl<T> Extremes<T> {
         self.offered += 1;
         if self.heap.len() < self.capacity {
             self.heap.push(kept);
-        } else if let Some(mut top) = self.heap.peek_mut() {
-            if kept < *top {
-                *top = kept;
-            }
+        } else if let Some(mut top) = self.heap.peek_mut()
+            && kept < *top
+        {
+            *top = kept;
         }
     }
 

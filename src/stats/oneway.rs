@@ -123,12 +123,12 @@ pub fn one_way(
     let ms_between = ss_between / df_between as f64;
     let mut warnings = Vec::new();
     let ss_total = ss_between + ss_within;
-    if let Some(direct) = total_ss {
-        if (direct - ss_total).abs() > 1e-9 * direct.max(f64::MIN_POSITIVE) {
-            warnings.push(format!(
+    if let Some(direct) = total_ss
+        && (direct - ss_total).abs() > 1e-9 * direct.max(f64::MIN_POSITIVE)
+    {
+        warnings.push(format!(
                 "self-check: the total sum of squares computed directly ({direct:e}) differs from between + within ({ss_total:e}) by more than 1e-9 relative"
             ));
-        }
     }
     let (ms_within, f, p, f_crit);
     if df_within == 0 {
