@@ -126,7 +126,6 @@ fn main() -> ExitCode {
             }
             match write_outputs(&out, &built) {
                 Ok(paths) => {
-                    sheaf::output::write_cache(&out.join(CACHE_DIR), &built.cache_entries);
                     for p in paths {
                         eprintln!("wrote {}", p.display());
                     }

@@ -56,7 +56,6 @@ fn rebuild(opts: &WatchOptions, version: &AtomicU64) -> Vec<PathBuf> {
     .and_then(|b| write_outputs(&opts.out, &b).map(|_| b))
     {
         Ok(b) => {
-            crate::output::write_cache(&opts.out.join(CACHE_DIR), &b.cache_entries);
             let n = version.fetch_add(1, Ordering::SeqCst) + 1;
             eprintln!(
                 "[{n}] rebuilt {} in {:.2} s ({} of {} block(s) computed){}",
