@@ -265,15 +265,10 @@ fn remember(inputs: &mut Vec<Input>, input: Input) {
     }
 }
 
-/// Compiles a document. `doc_display` names the document in messages;
-/// only its file name appears in the outputs.
-pub fn compile(
-    doc_display: &str,
-    doc_bytes: &[u8],
-    world: &dyn World,
-    format: Format,
-) -> Result<Built, Diagnostic> {
-    let file_name = Path::new(doc_display).file_name().map_or_else(
+/// The document's file name and the stem its outputs are named after
+/// (`report.md` → `report`, giving `report.html`, `report.results.json`).
+pub fn names_of(document: &Path) -> (String, String) {
+    let file_name = document.file_name().map_or_else(
         || "report.md".to_string(),
         |n| n.to_string_lossy().into_owned(),
     );
@@ -282,6 +277,18 @@ pub fn compile(
         .or_else(|| file_name.strip_suffix(".markdown"))
         .unwrap_or(&file_name)
         .to_string();
+    (file_name, stem)
+}
+
+/// Compiles a document. `doc_display` names the document in messages;
+/// only its file name appears in the outputs.
+pub fn compile(
+    doc_display: &str,
+    doc_bytes: &[u8],
+    world: &dyn World,
+    format: Format,
+) -> Result<Built, Diagnostic> {
+    let (file_name, stem) = names_of(Path::new(doc_display));
     let source = String::from_utf8(doc_bytes.to_vec()).map_err(|e| {
         let line = 1 + doc_bytes[..e.utf8_error().valid_up_to()]
             .iter()
@@ -508,7 +515,7 @@ pub fn compile(
         report_name: format!("{stem}.{}", format.extension()),
         report: report.into_bytes(),
         results_name,
-        results: results_json(&file_name, doc_bytes, &inputs, &results, &placed),
+        results: results_json(&file_name, doc_bytes, format, &inputs, &results, &placed),
         files,
         recomputed,
         cache_entries,

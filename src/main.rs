@@ -49,9 +49,10 @@ enum Command {
         document: PathBuf,
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
-        /// The format the report was built in.
-        #[arg(long = "to", value_enum, default_value_t = To::Html)]
-        to: To,
+        /// The format the report was built in (default: the one its results
+        /// file records).
+        #[arg(long = "to", value_enum)]
+        to: Option<To>,
     },
     /// Rebuild whenever the document or its data change; optionally serve the report.
     Watch {
@@ -135,28 +136,30 @@ fn main() -> ExitCode {
             }
         }
         Command::Verify { document, out, to } => {
+            let format = to
+                .map(To::format)
+                .or_else(|| sheaf::verify::format_on_disk(&document, &out))
+                .unwrap_or(Format::Html);
             // verify recomputes everything: it never trusts the cache.
-            let built = match build_file(&document, to.format(), None, confine) {
+            let built = match build_file(&document, format, None, confine) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };
-            let drift = sheaf::verify::verify(&built, &out);
+            let drift = match sheaf::verify::verify(&built, &out) {
+                Ok(drift) => drift,
+                Err(d) => return report(&d, short),
+            };
+            let report_path = out.join(&built.report_name);
             if drift.is_clean() {
-                eprintln!(
-                    "{} is up to date with its sources",
-                    out.join(&built.report_name).display()
-                );
+                eprintln!("{} is up to date with its sources", report_path.display());
+                eprint!("{}", drift.account());
                 ExitCode::SUCCESS
             } else {
-                eprintln!(
-                    "{} has drifted from its sources:",
-                    out.join(&built.report_name).display()
-                );
+                eprintln!("{} has drifted from its sources:", report_path.display());
                 eprint!("{}", drift.account());
                 eprintln!(
-                    "rebuild with `sheaf build {} -o {}` and review the changes",
-                    document.display(),
-                    out.display()
+                    "rebuild with `{}` and review the changes",
+                    sheaf::verify::rebuild_command(&document, &out, format, confine)
                 );
                 ExitCode::from(1)
             }

@@ -109,9 +109,9 @@ fn prepare(dir: &Path, own: &Path, built: &Built) -> Result<(), Diagnostic> {
     Ok(())
 }
 
-/// Writes the `.gitignore` of sheaf's folder when it is missing or different
-/// (under the lock: a concurrent build may be cleaning up).
-fn write_gitignore(own: &Path) -> Result<(), Diagnostic> {
+/// Writes the `.gitignore` of sheaf's folder (through the staging folder)
+/// when it is missing or different.
+fn write_gitignore(own: &Path, staging: &Path) -> Result<(), Diagnostic> {
     let ignore = own.join(".gitignore");
     let current = open_regular(&ignore).ok().and_then(|f| {
         let mut text = String::new();
@@ -119,27 +119,21 @@ fn write_gitignore(own: &Path) -> Result<(), Diagnostic> {
         Some(text)
     });
     if current.as_deref() != Some(cache::GITIGNORE) {
-        let mut file = tempfile::Builder::new()
-            .prefix(".gitignore-")
-            .tempfile_in(own)
-            .map_err(|e| io_error(own, "write in", e))?;
-        file.write_all(cache::GITIGNORE.as_bytes())
-            .map_err(|e| io_error(&ignore, "write", e))?;
-        file.persist(&ignore)
-            .map_err(|e| io_error(&ignore, "write", e.error))?;
+        let staged = stage(staging, ".gitignore", cache::GITIGNORE.as_bytes())?;
+        fs::rename(staged, &ignore).map_err(|e| io_error(&ignore, "write", e))?;
     }
     Ok(())
 }
 
-/// Removes what a killed build left in sheaf's folder: staging folders and
-/// half-written `.gitignore` files. Links are removed as links.
+/// Removes what a killed build left in sheaf's folder: staging folders.
+/// Links are removed as links.
 fn remove_leftovers(own: &Path) {
     let Ok(listing) = fs::read_dir(own) else {
         return;
     };
     for item in listing.flatten() {
         let name = item.file_name().to_string_lossy().into_owned();
-        if !name.starts_with(STAGING_PREFIX) && !name.starts_with(".gitignore-") {
+        if !name.starts_with(STAGING_PREFIX) {
             continue;
         }
         let path = item.path();
@@ -152,12 +146,25 @@ fn remove_leftovers(own: &Path) {
 }
 
 /// Earlier versions wrote `.<name>.tmp` beside each output; a killed build
-/// of theirs may have left one (or a link planted at that name).
-fn remove_old_temporaries(dir: &Path, names: &[&str]) {
-    for name in names {
-        let path = dir.join(format!(".{name}.tmp"));
-        if fs::symlink_metadata(&path).is_ok_and(|m| !m.is_dir()) {
-            let _ = fs::remove_file(path);
+/// of theirs may have left some (or a link planted at such a name). Removes
+/// those of this document's outputs (`.<stem>.….tmp`, `.<stem>-….tmp`).
+fn remove_old_temporaries(dir: &Path, built: &Built) {
+    let stem = built
+        .results_name
+        .strip_suffix(".results.json")
+        .unwrap_or(&built.results_name);
+    let Ok(listing) = fs::read_dir(dir) else {
+        return;
+    };
+    for item in listing.flatten() {
+        let name = item.file_name().to_string_lossy().into_owned();
+        let ours = name
+            .strip_prefix('.')
+            .and_then(|n| n.strip_suffix(".tmp"))
+            .and_then(|n| n.strip_prefix(stem))
+            .is_some_and(|rest| rest.starts_with(['.', '-']));
+        if ours && item.file_type().is_ok_and(|t| !t.is_dir()) {
+            let _ = fs::remove_file(item.path());
         }
     }
 }
@@ -207,8 +214,7 @@ pub fn write_outputs(dir: &Path, built: &Built) -> Result<Vec<PathBuf>, Diagnost
     prepare(dir, &own, built)?;
     let _lock = FolderLock::exclusive(&own, dir)?;
     remove_leftovers(&own);
-    remove_old_temporaries(dir, &names);
-    write_gitignore(&own)?;
+    remove_old_temporaries(dir, built);
     let staging = tempfile::Builder::new()
         .prefix(STAGING_PREFIX)
         .tempdir_in(&own)
@@ -217,6 +223,7 @@ pub fn write_outputs(dir: &Path, built: &Built) -> Result<Vec<PathBuf>, Diagnost
     for (name, bytes) in &files {
         staged.push((stage(staging.path(), name, bytes)?, dir.join(name)));
     }
+    write_gitignore(&own, staging.path())?;
     sync_dir(staging.path());
     let mut written = Vec::with_capacity(staged.len());
     for (from, to) in staged {
