@@ -185,9 +185,9 @@ pub fn verify(built: &Built, dir: &Path) -> Result<Drift, Diagnostic> {
     for (name, bytes) in &fresh {
         match read_output(&dir.join(name)) {
             OnDisk::Missing => drift.missing.push(name.clone()),
-            OnDisk::NotAFile(why) => drift
-                .edited
-                .push(format!("{name}: cannot be read as a file sheaf wrote ({why})")),
+            OnDisk::NotAFile(why) => drift.edited.push(format!(
+                "{name}: cannot be read as a file sheaf wrote ({why})"
+            )),
             OnDisk::Bytes(old) => disk.push((name, bytes, old)),
         }
     }
@@ -223,7 +223,9 @@ pub fn verify(built: &Built, dir: &Path) -> Result<Drift, Diagnostic> {
         && old.as_slice() != *fresh
         && !explained
     {
-        drift.text.push(format!("{manifest} differs from a fresh build's"));
+        drift
+            .text
+            .push(format!("{manifest} differs from a fresh build's"));
     }
     truncate(&mut drift.fields);
     truncate(&mut drift.numbers);
@@ -297,14 +299,14 @@ fn compare_inputs(old: &Value, new: &Value, edited: bool, drift: &mut Drift) {
     for (path, (hash, bytes)) in &now {
         match was.get(path) {
             None => lines.push(format!("{path}: new input")),
-            Some((h, _)) if h != hash => lines.push(format!(
-                "{path}: SHA-256 {} → {}",
-                short(h),
-                short(hash)
-            )),
-            Some((_, b)) if b != bytes => {
-                lines.push(format!("{path}: size {} → {} bytes", compact(b), compact(bytes)))
+            Some((h, _)) if h != hash => {
+                lines.push(format!("{path}: SHA-256 {} → {}", short(h), short(hash)))
             }
+            Some((_, b)) if b != bytes => lines.push(format!(
+                "{path}: size {} → {} bytes",
+                compact(b),
+                compact(bytes)
+            )),
             _ => {}
         }
     }
@@ -437,10 +439,9 @@ fn compare_text(name: &str, old: &[u8], fresh: &[u8], drift: &mut Drift) {
         );
         if x != y {
             let (was, now) = excerpts(x, y);
-            drift.text.push(format!(
-                "{name} line {}: was `{was}`, now `{now}`",
-                i + 1
-            ));
+            drift
+                .text
+                .push(format!("{name} line {}: was `{was}`, now `{now}`", i + 1));
             shown += 1;
             if shown == 3 {
                 drift.text.push(format!("{name}: further lines differ"));
@@ -489,7 +490,10 @@ mod tests {
     fn excerpts_show_the_first_difference() {
         let prefix = "x".repeat(200);
         let (was, now) = excerpts(&format!("{prefix}A tail"), &format!("{prefix}B tail"));
-        assert!(was.contains("A tail") && now.contains("B tail"), "{was} / {now}");
+        assert!(
+            was.contains("A tail") && now.contains("B tail"),
+            "{was} / {now}"
+        );
         assert!(was.starts_with('…') && now.starts_with('…'));
         let (was, now) = excerpts("short a", "short b");
         assert_eq!((was.as_str(), now.as_str()), ("short a", "short b"));
@@ -513,6 +517,9 @@ mod tests {
             Format::Markdown,
             true,
         );
-        assert_eq!(c, "sheaf build 'my study/report.md' -o out --to md --confine");
+        assert_eq!(
+            c,
+            "sheaf build 'my study/report.md' -o out --to md --confine"
+        );
     }
 }

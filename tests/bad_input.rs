@@ -394,12 +394,48 @@ fn no_output_ever_replaces_an_input() {
     // (what, data file name, output folder, format, the file named in the error)
     let cases = [
         ("the document itself", "plants.csv", ".", "md", "report.md"),
-        ("the document, through ./", "plants.csv", "./", "md", "report.md"),
-        ("a data file named like the results file", "report.results.json", ".", "html", "report.results.json"),
-        ("a data file named like the manifest", "report.sha256", ".", "html", "report.sha256"),
-        ("a data file named like a figure", "report-growth-box.svg", ".", "md", "report-growth-box.svg"),
-        ("a data file named like the report", "report.html", ".", "html", "report.html"),
-        ("a data file in sheaf's own folder", ".sheaf-cache/plants.csv", ".", "html", "plants.csv"),
+        (
+            "the document, through ./",
+            "plants.csv",
+            "./",
+            "md",
+            "report.md",
+        ),
+        (
+            "a data file named like the results file",
+            "report.results.json",
+            ".",
+            "html",
+            "report.results.json",
+        ),
+        (
+            "a data file named like the manifest",
+            "report.sha256",
+            ".",
+            "html",
+            "report.sha256",
+        ),
+        (
+            "a data file named like a figure",
+            "report-growth-box.svg",
+            ".",
+            "md",
+            "report-growth-box.svg",
+        ),
+        (
+            "a data file named like the report",
+            "report.html",
+            ".",
+            "html",
+            "report.html",
+        ),
+        (
+            "a data file in sheaf's own folder",
+            ".sheaf-cache/plants.csv",
+            ".",
+            "html",
+            "plants.csv",
+        ),
     ];
     for (what, data, out, to, named) in cases {
         let dir = tempfile::tempdir().expect("temp dir");
@@ -438,7 +474,10 @@ fn no_output_ever_replaces_an_input() {
             .output()
             .expect("runs");
         assert_eq!(output.status.code(), Some(1));
-        assert_eq!(std::fs::read_to_string(p.join("plants.csv")).expect("data"), PLANTS);
+        assert_eq!(
+            std::fs::read_to_string(p.join("plants.csv")).expect("data"),
+            PLANTS
+        );
     }
     // The same folder without a clash builds (HTML beside its document).
     let dir = tempfile::tempdir().expect("temp dir");
@@ -449,7 +488,11 @@ fn no_output_ever_replaces_an_input() {
         .args(["build", "report.md", "-o", "."])
         .output()
         .expect("runs");
-    assert!(output.status.success(), "{}", String::from_utf8_lossy(&output.stderr));
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
 }
 
 #[test]

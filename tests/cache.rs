@@ -106,8 +106,11 @@ fn the_cache_keeps_only_what_the_last_build_used_and_is_ignored_by_git() {
     assert_eq!(first.len(), 2, "{first:?}");
     // Five versions of the data: the cache still holds one entry per block.
     for last in 8..13 {
-        std::fs::write(p.join("a.csv"), format!("y,g\n1,a\n2,a\n3,a\n4,b\n5,b\n{last},b\n"))
-            .expect("edit");
+        std::fs::write(
+            p.join("a.csv"),
+            format!("y,g\n1,a\n2,a\n3,a\n4,b\n5,b\n{last},b\n"),
+        )
+        .expect("edit");
         assert_eq!(build(p, "out").1, 1);
         assert_eq!(entries(p).len(), 2, "{:?}", entries(p));
     }
@@ -122,8 +125,11 @@ fn leftovers_of_a_killed_build_are_removed_by_the_next() {
     let dir = tempfile::tempdir().expect("temp dir");
     let p = dir.path();
     std::fs::write(p.join("a.csv"), "y,g\n1,a\n2,a\n3,a\n4,b\n5,b\n7,b\n").expect("a");
-    std::fs::write(p.join("report.md"), "```anova\ndata: a.csv\nmodel: y ~ g\n```\n")
-        .expect("doc");
+    std::fs::write(
+        p.join("report.md"),
+        "```anova\ndata: a.csv\nmodel: y ~ g\n```\n",
+    )
+    .expect("doc");
     // What a build killed while staging leaves (this version's staging
     // folder with a half-written file, and an older version's temporary
     // files), and an entry's temporary file from an older version.
@@ -131,7 +137,11 @@ fn leftovers_of_a_killed_build_are_removed_by_the_next() {
     std::fs::create_dir_all(&staging).expect("staging");
     std::fs::write(staging.join("report.html"), "<html>half").expect("half");
     std::fs::write(p.join("out/.report.html.tmp"), "half").expect("old tmp");
-    std::fs::write(p.join(format!("out/.sheaf-cache/.{}.tmp", "ab".repeat(32))), "x").expect("t");
+    std::fs::write(
+        p.join(format!("out/.sheaf-cache/.{}.tmp", "ab".repeat(32))),
+        "x",
+    )
+    .expect("t");
     build(p, "out");
     let mut left: Vec<String> = std::fs::read_dir(p.join("out"))
         .expect("out")
@@ -175,7 +185,8 @@ impl sheaf::compile::World for Planted {
     }
 }
 
-const STUDY_DOC: &str = "# T\n\n```anova\nid: first\ndata: a.csv\nmodel: y ~ g\n```\n\nF = {{ first.f | fixed(3) }}.\n";
+const STUDY_DOC: &str =
+    "# T\n\n```anova\nid: first\ndata: a.csv\nmodel: y ~ g\n```\n\nF = {{ first.f | fixed(3) }}.\n";
 const STUDY_DATA: &str = "y,g\n1.5,a\n2.25,a\n3,a\n4,b\n5.5,b\n7,b\n";
 
 fn build_with(entry: Option<(String, Vec<u8>)>) -> sheaf::compile::Built {
@@ -229,7 +240,10 @@ fn every_damaged_cache_entry_is_a_miss_and_changes_nothing() {
 #[test]
 fn an_entry_of_another_schema_version_revision_or_key_is_a_miss() {
     let (cold, key, entry) = cold();
-    let newline = entry.iter().position(|&b| b == b'\n').expect("checksum line");
+    let newline = entry
+        .iter()
+        .position(|&b| b == b'\n')
+        .expect("checksum line");
     let body = &entry[newline + 1..];
     // Re-sealed with a correct checksum, so only the header can refuse it.
     let reseal = |from: &str, to: &str| -> Vec<u8> {
@@ -237,7 +251,11 @@ fn an_entry_of_another_schema_version_revision_or_key_is_a_miss() {
         let head_len = text.find("\n\n").expect("header") + 2;
         let mut changed = body[..head_len].to_vec();
         let replaced = String::from_utf8_lossy(&changed).replacen(from, to, 1);
-        assert_ne!(replaced.as_bytes(), changed.as_slice(), "{from} is in the header");
+        assert_ne!(
+            replaced.as_bytes(),
+            changed.as_slice(),
+            "{from} is in the header"
+        );
         changed = replaced.into_bytes();
         changed.extend_from_slice(&body[head_len..]);
         let mut out = format!("{}\n", sheaf::results::sha256_hex(&changed)).into_bytes();

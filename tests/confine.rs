@@ -177,7 +177,15 @@ fn links_planted_in_an_output_folder_are_never_followed() {
     symlink(&victim, out.join("report-growth-box.svg")).expect("plant");
     let (code, err) = sheaf(
         p,
-        &["build", "doc/report.md", "-o", "doc/out", "--to", "md", "--confine"],
+        &[
+            "build",
+            "doc/report.md",
+            "-o",
+            "doc/out",
+            "--to",
+            "md",
+            "--confine",
+        ],
     );
     assert_eq!(code, Some(0), "{err}");
     victim_intact(p);
@@ -192,9 +200,15 @@ fn links_planted_in_an_output_folder_are_never_followed() {
             symlink(&victim, entry.path()).expect("plant entry");
         }
     }
-    let (code, err) = sheaf(p, &["build", "doc/report.md", "-o", "doc/out", "--to", "md"]);
+    let (code, err) = sheaf(
+        p,
+        &["build", "doc/report.md", "-o", "doc/out", "--to", "md"],
+    );
     assert_eq!(code, Some(0), "{err}");
-    assert!(err.contains("1 computed"), "a linked entry is a miss: {err}");
+    assert!(
+        err.contains("1 computed"),
+        "a linked entry is a miss: {err}"
+    );
     victim_intact(p);
 }
 
@@ -237,4 +251,23 @@ fn a_linked_output_or_cache_folder_is_refused() {
     assert_eq!(code, Some(1), "{err}");
     assert!(err.contains("cannot lock"), "{err}");
     victim_intact(p);
+}
+
+#[test]
+fn confined_builds_read_no_cache() {
+    let dir = study();
+    let p = dir.path();
+    let args = ["build", "doc/report.md", "-o", "doc/out", "--confine"];
+    for _ in 0..2 {
+        let (code, err) = sheaf(p, &args);
+        assert_eq!(code, Some(0), "{err}");
+        assert!(
+            err.contains("1 computed, 0 from the cache"),
+            "an entry found in an unread folder is not trusted: {err}"
+        );
+    }
+    // The same folder without --confine uses the entry the builds left.
+    let (code, err) = sheaf(p, &["build", "doc/report.md", "-o", "doc/out"]);
+    assert_eq!(code, Some(0), "{err}");
+    assert!(err.contains("0 computed, 1 from the cache"), "{err}");
 }

@@ -148,7 +148,11 @@ fn verify(p: &Path, out: &str, extra: &[&str]) -> (Option<i32>, String) {
 fn verify_catches_every_edit_of_the_results_file() {
     let dir = study();
     let p = dir.path();
-    assert!(sheaf(p, &["build", "report.md", "-o", "out"]).status.success());
+    assert!(
+        sheaf(p, &["build", "report.md", "-o", "out"])
+            .status
+            .success()
+    );
     let path = p.join("out/report.results.json");
     let original = std::fs::read_to_string(&path).expect("results");
     let version = format!("\"sheaf\": \"{}\"", env!("CARGO_PKG_VERSION"));
@@ -171,7 +175,11 @@ fn verify_catches_every_edit_of_the_results_file() {
         ),
         (
             "the document's name",
-            original.replacen("\"document\": \"report.md\"", "\"document\": \"other.md\"", 1),
+            original.replacen(
+                "\"document\": \"report.md\"",
+                "\"document\": \"other.md\"",
+                1,
+            ),
             "file: document: \"other.md\" → \"report.md\"",
         ),
         (
@@ -190,14 +198,21 @@ fn verify_catches_every_edit_of_the_results_file() {
         std::fs::write(&path, &edited).expect("edit");
         let (code, text) = verify(p, "out", &[]);
         assert_eq!(code, Some(1), "{what}: {text}");
-        assert!(text.contains("edited after sheaf wrote them:"), "{what}: {text}");
+        assert!(
+            text.contains("edited after sheaf wrote them:"),
+            "{what}: {text}"
+        );
         assert!(text.contains(expect), "{what}: {text}");
         assert!(!text.contains("inputs changed:"), "{what}: {text}");
     }
     // A tampered input hash is an edit of the results file, not a changed input.
     let hash_at = original.find("\"sha256\": \"").expect("a hash") + 11;
     let mut tampered = original.clone();
-    let flipped = if &original[hash_at..=hash_at] == "0" { "1" } else { "0" };
+    let flipped = if &original[hash_at..=hash_at] == "0" {
+        "1"
+    } else {
+        "0"
+    };
     tampered.replace_range(hash_at..=hash_at, flipped);
     std::fs::write(&path, &tampered).expect("tamper");
     let (code, text) = verify(p, "out", &[]);
@@ -216,7 +231,11 @@ fn verify_catches_every_edit_of_the_results_file() {
 fn verify_knows_the_format_and_its_advice_works() {
     let dir = study();
     let p = dir.path();
-    assert!(sheaf(p, &["build", "report.md", "-o", "md", "--to", "md"]).status.success());
+    assert!(
+        sheaf(p, &["build", "report.md", "-o", "md", "--to", "md"])
+            .status
+            .success()
+    );
     // No --to: the results file says Markdown.
     let (code, text) = verify(p, "md", &[]);
     assert_eq!(code, Some(0), "{text}");
@@ -225,7 +244,10 @@ fn verify_knows_the_format_and_its_advice_works() {
     std::fs::write(p.join("plants.csv"), data.replace("6.31", "6.91")).expect("edit");
     let (code, text) = verify(p, "md", &[]);
     assert_eq!(code, Some(1), "{text}");
-    assert!(text.contains("`sheaf build report.md -o md --to md`"), "{text}");
+    assert!(
+        text.contains("`sheaf build report.md -o md --to md`"),
+        "{text}"
+    );
     assert!(!text.contains("missing outputs"), "{text}");
     let rebuilt = sheaf(p, &["build", "report.md", "-o", "md", "--to", "md"]);
     assert!(rebuilt.status.success());
@@ -240,7 +262,11 @@ fn verify_shows_where_a_line_changed_and_notes_other_files() {
     let doc = std::fs::read_to_string(p.join("report.md")).expect("doc");
     let long = format!("{doc}\n{} the end of a long line.\n", "Words ".repeat(40));
     std::fs::write(p.join("report.md"), &long).expect("doc");
-    assert!(sheaf(p, &["build", "report.md", "-o", "out", "--to", "md"]).status.success());
+    assert!(
+        sheaf(p, &["build", "report.md", "-o", "out", "--to", "md"])
+            .status
+            .success()
+    );
     let report = std::fs::read_to_string(p.join("out/report.md")).expect("report");
     std::fs::write(
         p.join("out/report.md"),
@@ -253,7 +279,10 @@ fn verify_shows_where_a_line_changed_and_notes_other_files() {
         text.contains("the end of a long line") && text.contains("the END of a long line"),
         "both excerpts show the change: {text}"
     );
-    assert!(text.contains("report.md: its SHA-256 is not the one"), "{text}");
+    assert!(
+        text.contains("report.md: its SHA-256 is not the one"),
+        "{text}"
+    );
     std::fs::write(p.join("out/report.md"), &report).expect("restore");
 
     // A file the build does not write is worth a line, not a failure.
@@ -271,6 +300,9 @@ fn verify_shows_where_a_line_changed_and_notes_other_files() {
         std::os::unix::fs::symlink(p.join("report.md"), p.join("out/report.md")).expect("link");
         let (code, text) = verify(p, "out", &[]);
         assert_eq!(code, Some(1), "{text}");
-        assert!(text.contains("cannot be read as a file sheaf wrote"), "{text}");
+        assert!(
+            text.contains("cannot be read as a file sheaf wrote"),
+            "{text}"
+        );
     }
 }

@@ -60,23 +60,26 @@ pub fn check_confined(dir: &Path, root: &Path) -> Result<(), Diagnostic> {
             "the output folder {shown} is a symbolic link, which --confine does not follow"
         )));
     }
-    let root = or_here(root).canonicalize().map_err(|e| {
-        Diagnostic::new(format!("cannot resolve the document's folder: {e}"))
-    })?;
+    let root = or_here(root)
+        .canonicalize()
+        .map_err(|e| Diagnostic::new(format!("cannot resolve the document's folder: {e}")))?;
     let mut existing = or_here(dir).to_path_buf();
     while fs::symlink_metadata(&existing).is_err() {
         // A missing last component must be a plain name (`..` of a
         // missing folder cannot be resolved).
-        if !matches!(existing.components().next_back(), Some(Component::Normal(_))) {
+        if !matches!(
+            existing.components().next_back(),
+            Some(Component::Normal(_))
+        ) {
             return Err(refuse(format!(
                 "the output folder {shown} leaves the document's folder"
             )));
         }
         existing = or_here(existing.parent().unwrap_or(Path::new(""))).to_path_buf();
     }
-    let resolved = existing.canonicalize().map_err(|e| {
-        Diagnostic::new(format!("cannot resolve the output folder {shown}: {e}"))
-    })?;
+    let resolved = existing
+        .canonicalize()
+        .map_err(|e| Diagnostic::new(format!("cannot resolve the output folder {shown}: {e}")))?;
     if !resolved.starts_with(&root) {
         return Err(refuse(format!(
             "the output folder {shown} is outside the document's folder"
