@@ -25,8 +25,9 @@ struct Cli {
     /// Print errors as one line each (file:line:col: error: message).
     #[arg(long, global = true)]
     short_errors: bool,
-    /// Read data only from inside the document's folder: no absolute paths,
-    /// no `..` escapes, no symbolic links out (for untrusted documents).
+    /// Read data and write outputs only inside the document's folder: no
+    /// absolute paths, no `..` escapes, no symbolic links out, no cache
+    /// read (for untrusted documents).
     #[arg(long, global = true)]
     confine: bool,
 }
