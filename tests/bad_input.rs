@@ -496,6 +496,42 @@ fn no_output_ever_replaces_an_input() {
 }
 
 #[test]
+fn watch_never_replaces_its_own_document() {
+    use std::io::BufRead;
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    std::fs::write(p.join("plants.csv"), PLANTS).expect("data");
+    let doc = doc_with(GOOD_BLOCK);
+    std::fs::write(p.join("report.md"), &doc).expect("doc");
+    let mut child = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(p)
+        .args(["watch", "report.md", "-o", ".", "--to", "md"])
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .expect("runs");
+    let stderr = child.stderr.take().expect("stderr");
+    // The first build's message; the watcher then waits for a change.
+    let mut seen = String::new();
+    for line in std::io::BufReader::new(stderr)
+        .lines()
+        .map_while(Result::ok)
+    {
+        seen.push_str(&line);
+        seen.push('\n');
+        if line.contains("waiting for a change") || line.contains("rebuilt") {
+            break;
+        }
+    }
+    let _ = child.kill();
+    let _ = child.wait();
+    assert!(seen.contains("refusing to write"), "{seen}");
+    assert_eq!(
+        std::fs::read_to_string(p.join("report.md")).expect("doc"),
+        doc
+    );
+}
+
+#[test]
 fn robust_method_keys_are_checked() {
     let cases = vec![
         case(
