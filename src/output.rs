@@ -228,8 +228,8 @@ pub fn write_outputs(dir: &Path, built: &Built) -> Result<Vec<PathBuf>, Diagnost
     let mut written = Vec::with_capacity(staged.len());
     for (from, to) in staged {
         fs::rename(&from, &to).map_err(|e| {
-            io_error(&to, "replace", e).hint(
-                "the folder now mixes files of two builds (its manifest says which); build again",
+            Diagnostic::new(format!("cannot replace {}: {e}", to.display())).hint(
+                "the folder may now mix files of two builds (its manifest shows which); build again",
             )
         })?;
         written.push(to);
