@@ -42,12 +42,17 @@ pub fn is_entry_name(name: &str) -> bool {
 
 /// The bytes of a cache entry holding `result` under `key`.
 pub fn seal(key: &str, result: &BlockResult) -> Option<Vec<u8>> {
-    let payload = postcard::to_allocvec(result).ok()?;
+    Some(seal_payload(key, &postcard::to_allocvec(result).ok()?))
+}
+
+/// An entry around already serialized bytes (the fuzz target uses it to
+/// reach the decoder with arbitrary payloads).
+pub fn seal_payload(key: &str, payload: &[u8]) -> Vec<u8> {
     let mut body = header(key).into_bytes();
-    body.extend_from_slice(&payload);
+    body.extend_from_slice(payload);
     let mut entry = format!("{}\n", sha256_hex(&body)).into_bytes();
     entry.extend_from_slice(&body);
-    Some(entry)
+    entry
 }
 
 /// The block result in an entry read for `key`, or `None` when anything
