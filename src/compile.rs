@@ -168,8 +168,10 @@ impl<W: World> World for Confined<W> {
         self.inner.display(path)
     }
 
-    fn cache_get(&self, key: &str) -> Option<Vec<u8>> {
-        self.inner.cache_get(key)
+    /// None: a cache found in a folder nobody has read could have been
+    /// written by anyone, and its checksums catch damage, not forgery.
+    fn cache_get(&self, _key: &str) -> Option<Vec<u8>> {
+        None
     }
 
     fn today(&self) -> Option<String> {
@@ -192,7 +194,8 @@ const STREAM_FROM: u64 = 32 << 20;
 pub const CACHE_DIR: &str = ".sheaf-cache";
 
 /// Files on disk with a block cache: results of unchanged blocks are reused.
-/// The cache is safe to delete and never changes the output.
+/// The cache is safe to delete and never changes the output: an entry that
+/// does not verify is a miss (see `cache`).
 pub struct CachedDisk {
     pub disk: DiskWorld,
     pub cache: PathBuf,
@@ -212,7 +215,7 @@ impl World for CachedDisk {
     }
 
     fn cache_get(&self, key: &str) -> Option<Vec<u8>> {
-        std::fs::read(self.cache.join(key)).ok()
+        crate::cache::read(&self.cache, key)
     }
 
     fn today(&self) -> Option<String> {
@@ -225,7 +228,7 @@ impl World for CachedDisk {
 }
 
 /// The finished outputs of a build.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Default)]
 pub struct Built {
     pub report_name: String,
     pub report: Vec<u8>,
@@ -238,6 +241,16 @@ pub struct Built {
     /// Results of the blocks computed afresh, to store in the cache once the
     /// build has been written (a failed build writes nothing, cache included).
     pub cache_entries: Vec<(String, Vec<u8>)>,
+    /// The cache key of every cacheable block of this build (from the cache
+    /// or computed); the writer drops all other entries.
+    pub cache_keys: Vec<String>,
+    /// Every file the build read, which no output may replace: `compile`
+    /// lists data paths relative to the document's folder, `build_file`
+    /// turns them into paths on disk and adds the document.
+    pub sources: Vec<PathBuf>,
+    /// The document's folder when built under `--confine`: outputs must
+    /// then stay inside it too.
+    pub confined_to: Option<PathBuf>,
     pub blocks: usize,
     /// Warnings to show on the terminal (they are in the report too).
     pub warnings: Vec<String>,
@@ -252,15 +265,10 @@ fn remember(inputs: &mut Vec<Input>, input: Input) {
     }
 }
 
-/// Compiles a document. `doc_display` names the document in messages;
-/// only its file name appears in the outputs.
-pub fn compile(
-    doc_display: &str,
-    doc_bytes: &[u8],
-    world: &dyn World,
-    format: Format,
-) -> Result<Built, Diagnostic> {
-    let file_name = Path::new(doc_display).file_name().map_or_else(
+/// The document's file name and the stem its outputs are named after
+/// (`report.md` → `report`, giving `report.html`, `report.results.json`).
+pub fn names_of(document: &Path) -> (String, String) {
+    let file_name = document.file_name().map_or_else(
         || "report.md".to_string(),
         |n| n.to_string_lossy().into_owned(),
     );
@@ -269,6 +277,18 @@ pub fn compile(
         .or_else(|| file_name.strip_suffix(".markdown"))
         .unwrap_or(&file_name)
         .to_string();
+    (file_name, stem)
+}
+
+/// Compiles a document. `doc_display` names the document in messages;
+/// only its file name appears in the outputs.
+pub fn compile(
+    doc_display: &str,
+    doc_bytes: &[u8],
+    world: &dyn World,
+    format: Format,
+) -> Result<Built, Diagnostic> {
+    let (file_name, stem) = names_of(Path::new(doc_display));
     let source = String::from_utf8(doc_bytes.to_vec()).map_err(|e| {
         let line = 1 + doc_bytes[..e.utf8_error().valid_up_to()]
             .iter()
@@ -300,6 +320,7 @@ pub fn compile(
     let mut results: Vec<BlockResult> = Vec::with_capacity(doc.blocks.len());
     let mut recomputed = 0;
     let mut cache_entries = Vec::new();
+    let mut cache_keys = Vec::new();
     for block in &doc.blocks {
         let path = match &block.spec {
             BlockSpec::Anova(spec) => Some((&spec.data.value, spec.data.line, spec.data.column)),
@@ -395,9 +416,10 @@ pub fn compile(
             )
             .as_bytes(),
         );
+        cache_keys.push(key.clone());
         if let Some(mut cached) = world
             .cache_get(&key)
-            .and_then(|b| postcard::from_bytes::<BlockResult>(&b).ok())
+            .and_then(|entry| crate::cache::open(&key, &entry))
         {
             cached.set_line(block.line);
             results.push(cached);
@@ -437,8 +459,8 @@ pub fn compile(
             }
         };
         recomputed += 1;
-        if let Ok(bytes) = postcard::to_allocvec(&result) {
-            cache_entries.push((key, bytes));
+        if let Some(entry) = crate::cache::seal(&key, &result) {
+            cache_entries.push((key, entry));
         }
         results.push(result);
     }
@@ -493,10 +515,13 @@ pub fn compile(
         report_name: format!("{stem}.{}", format.extension()),
         report: report.into_bytes(),
         results_name,
-        results: results_json(&file_name, doc_bytes, &inputs, &results, &placed),
+        results: results_json(&file_name, doc_bytes, format, &inputs, &results, &placed),
         files,
         recomputed,
         cache_entries,
+        cache_keys,
+        sources: inputs.iter().map(|i| PathBuf::from(&i.path)).collect(),
+        confined_to: None,
         blocks: doc.blocks.len(),
         warnings,
     })
@@ -518,7 +543,7 @@ pub fn build_file(
     })?;
     let base = document.parent().map(PathBuf::from).unwrap_or_default();
     let disk = DiskWorld { base: base.clone() };
-    match (cache, confine) {
+    let mut built = match (cache, confine) {
         (Some(dir), false) => compile(
             &display,
             &bytes,
@@ -528,21 +553,24 @@ pub fn build_file(
             },
             format,
         ),
-        (Some(dir), true) => compile(
+        // Confined builds read no cache (see `Confined::cache_get`).
+        (_, true) => compile(
             &display,
             &bytes,
             &Confined {
-                inner: CachedDisk {
-                    disk,
-                    cache: dir.to_path_buf(),
-                },
-                base,
+                inner: disk,
+                base: base.clone(),
             },
             format,
         ),
         (None, false) => compile(&display, &bytes, &disk, format),
-        (None, true) => compile(&display, &bytes, &Confined { inner: disk, base }, format),
-    }
+    }?;
+    let data = std::mem::take(&mut built.sources);
+    built.sources = std::iter::once(document.to_path_buf())
+        .chain(data.iter().map(|p| base.join(p)))
+        .collect();
+    built.confined_to = confine.then_some(base);
+    Ok(built)
 }
 
 #[cfg(test)]

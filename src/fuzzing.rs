@@ -145,3 +145,12 @@ pub fn expand(data: &[u8]) {
     let _ = compile("fuzz.md", data, &Fixed, Format::Html);
     let _ = compile("fuzz.md", data, &Fixed, Format::Markdown);
 }
+
+/// Block-cache entries: arbitrary bytes as an entry, and as the payload of
+/// an entry with a valid checksum and header (which only a forger could
+/// write), must open as a miss or a result, never panic.
+pub fn cache_entry(data: &[u8]) {
+    let key = "0".repeat(64);
+    let _ = crate::cache::open(&key, data);
+    let _ = crate::cache::open(&key, &crate::cache::seal_payload(&key, data));
+}

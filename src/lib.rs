@@ -11,13 +11,14 @@
 //! 5. [`render`]: view models, templates and Markdown to HTML;
 //! 6. [`results`]: the JSON results file, a documented contract;
 //!
-//! and [`output`] writes the files atomically.
+//! and [`output`] writes the files as one set, keeping the block [`cache`].
 
 // Diagnostics are returned by value on the (cold) error path; boxing them
 // would only add noise at every call site.
 #![allow(clippy::result_large_err)]
 
 pub mod analysis;
+pub mod cache;
 pub mod compile;
 pub mod data;
 pub mod diag;

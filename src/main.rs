@@ -46,7 +46,8 @@ enum Command {
         #[arg(long = "to", value_enum, default_value_t = To::Html)]
         to: To,
         /// Read data only from inside the document's folder: no absolute paths,
-        /// no `..` escapes, no symbolic links out (for untrusted documents).
+        /// no `..` escapes, no symbolic links out, no cache read (for untrusted
+        /// documents); outputs must resolve inside it too.
         #[arg(long)]
         confine: bool,
     },
@@ -58,11 +59,13 @@ enum Command {
         /// The output folder holding the report and results file to check.
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
-        /// The format the report was built in.
-        #[arg(long = "to", value_enum, default_value_t = To::Html)]
-        to: To,
+        /// The format the report was built in (default: the one its results
+        /// file records).
+        #[arg(long = "to", value_enum)]
+        to: Option<To>,
         /// Read data only from inside the document's folder: no absolute paths,
-        /// no `..` escapes, no symbolic links out (for untrusted documents).
+        /// no `..` escapes, no symbolic links out, no cache read (for untrusted
+        /// documents).
         #[arg(long)]
         confine: bool,
     },
@@ -84,7 +87,8 @@ enum Command {
         #[arg(long, default_value_t = sheaf::watch::DEFAULT_PORT)]
         port: u16,
         /// Read data only from inside the document's folder: no absolute paths,
-        /// no `..` escapes, no symbolic links out (for untrusted documents).
+        /// no `..` escapes, no symbolic links out, no cache read (for untrusted
+        /// documents); outputs must resolve inside it too.
         #[arg(long)]
         confine: bool,
     },
@@ -156,7 +160,6 @@ fn main() -> ExitCode {
             }
             match write_outputs(&out, &built) {
                 Ok(paths) => {
-                    sheaf::output::write_cache(&out.join(CACHE_DIR), &built.cache_entries);
                     for p in paths {
                         eprintln!("wrote {}", p.display());
                     }
@@ -171,28 +174,30 @@ fn main() -> ExitCode {
             to,
             confine,
         } => {
+            let format = to
+                .map(To::format)
+                .or_else(|| sheaf::verify::format_on_disk(&document, &out))
+                .unwrap_or(Format::Html);
             // verify recomputes everything: it never trusts the cache.
-            let built = match build_file(&document, to.format(), None, confine) {
+            let built = match build_file(&document, format, None, confine) {
                 Ok(b) => b,
                 Err(d) => return report(&d, short),
             };
-            let drift = sheaf::verify::verify(&built, &out);
+            let drift = match sheaf::verify::verify(&built, &out) {
+                Ok(drift) => drift,
+                Err(d) => return report(&d, short),
+            };
+            let report_path = out.join(&built.report_name);
             if drift.is_clean() {
-                eprintln!(
-                    "{} is up to date with its sources",
-                    out.join(&built.report_name).display()
-                );
+                eprintln!("{} is up to date with its sources", report_path.display());
+                eprint!("{}", drift.account());
                 ExitCode::SUCCESS
             } else {
-                eprintln!(
-                    "{} has drifted from its sources:",
-                    out.join(&built.report_name).display()
-                );
+                eprintln!("{} has drifted from its sources:", report_path.display());
                 eprint!("{}", drift.account());
                 eprintln!(
-                    "rebuild with `sheaf build {} -o {}` and review the changes",
-                    document.display(),
-                    out.display()
+                    "rebuild with `{}` and review the changes",
+                    sheaf::verify::rebuild_command(&document, &out, format, confine)
                 );
                 ExitCode::from(1)
             }

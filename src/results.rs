@@ -31,6 +31,8 @@ pub struct ResultsFile {
     pub schema: u32,
     pub document: String,
     pub document_sha256: String,
+    /// The report's format, `html` or `md` (what `verify` rebuilds).
+    pub format: String,
     pub inputs: Vec<InputRecord>,
     pub blocks: Vec<BlockEntry>,
 }
@@ -719,6 +721,7 @@ fn checks_record(c: &crate::analysis::Checks) -> ChecksRecord {
 pub fn results_json(
     document: &str,
     document_bytes: &[u8],
+    format: crate::render::Format,
     inputs: &[Input],
     blocks: &[BlockResult],
     figures: &[Vec<crate::render::PlacedFigure>],
@@ -740,6 +743,7 @@ pub fn results_json(
         schema: SCHEMA_VERSION,
         document: document.to_string(),
         document_sha256: sha256_hex(document_bytes),
+        format: format.extension().to_string(),
         inputs: inputs
             .iter()
             .map(|i| InputRecord {

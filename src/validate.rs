@@ -677,11 +677,7 @@ pub fn write(v: &Validation, dir: &Path) -> Result<Vec<PathBuf>, Diagnostic> {
         report: report::html(v).into_bytes(),
         results_name: "validation.results.json".into(),
         results: json,
-        files: Vec::new(),
-        recomputed: 0,
-        cache_entries: Vec::new(),
-        blocks: 0,
-        warnings: Vec::new(),
+        ..Default::default()
     };
     crate::output::write_outputs(dir, &built)
 }

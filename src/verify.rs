@@ -1,9 +1,17 @@
 //! `sheaf verify`: is the report on disk exactly what its sources produce
 //! now? Compares a fresh in-memory build with the files in the output folder
-//! and explains any drift: changed inputs, changed numbers, changed text.
+//! byte for byte, and explains any difference: outputs edited after sheaf
+//! wrote them (their manifest says so), changed inputs, changed numbers,
+//! changed fields, changed text.
 
-use crate::compile::Built;
+use crate::compile::{Built, CACHE_DIR};
+use crate::diag::Diagnostic;
+use crate::output::{FolderLock, STAGING_PREFIX, manifest_name, open_regular, outputs};
+use crate::render::Format;
+use crate::results::sha256_hex;
 use serde_json::Value;
+use std::collections::BTreeMap;
+use std::io::Read;
 use std::path::Path;
 
 /// What differs between the files on disk and a fresh build.
@@ -11,26 +19,37 @@ use std::path::Path;
 pub struct Drift {
     /// Output files absent from the folder.
     pub missing: Vec<String>,
-    /// Inputs whose hash differs from the one recorded (or new/removed ones).
+    /// Outputs that do not match the manifest written with them: edited
+    /// after sheaf wrote them, or left by an interrupted build.
+    pub edited: Vec<String>,
+    /// Inputs whose hash or size differs from the one recorded (or new/removed ones).
     pub inputs: Vec<String>,
     /// The document itself changed.
     pub document: Option<String>,
-    /// Numbers and fields of the results file that changed: `block: path: old → new`.
+    /// Fields of the results file outside the blocks (sheaf version, schema,
+    /// document name, format, layout) that differ.
+    pub fields: Vec<String>,
+    /// Numbers and fields of the blocks that changed: `block: path: old → new`.
     pub numbers: Vec<String>,
     /// Lines of the report (or other outputs) that changed.
     pub text: Vec<String>,
+    /// Files in the folder this build does not write; worth a line, but not
+    /// a drift (several documents may share a folder).
+    pub unexpected: Vec<String>,
 }
 
 impl Drift {
     pub fn is_clean(&self) -> bool {
         self.missing.is_empty()
+            && self.edited.is_empty()
             && self.inputs.is_empty()
             && self.document.is_none()
+            && self.fields.is_empty()
             && self.numbers.is_empty()
             && self.text.is_empty()
     }
 
-    /// A short, readable account for the terminal.
+    /// A short, readable account for the terminal (notes included).
     pub fn account(&self) -> String {
         let mut out = String::new();
         let mut section = |title: &str, items: &[String]| {
@@ -45,12 +64,18 @@ impl Drift {
             }
         };
         section("missing outputs:", &self.missing);
+        section("edited after sheaf wrote them:", &self.edited);
         if let Some(d) = &self.document {
             section("document changed:", std::slice::from_ref(d));
         }
         section("inputs changed:", &self.inputs);
+        section("results file fields changed:", &self.fields);
         section("numbers changed:", &self.numbers);
         section("text changed:", &self.text);
+        section(
+            "note: other files in the folder (not written by this build):",
+            &self.unexpected,
+        );
         out
     }
 }
@@ -58,30 +83,187 @@ impl Drift {
 /// How many changed numbers and lines to list before summarising.
 const LIST_LIMIT: usize = 20;
 
-/// Compares a fresh build with the files in `dir`.
-pub fn verify(built: &Built, dir: &Path) -> Drift {
-    let mut drift = Drift::default();
-    let mut outputs: Vec<(&str, &[u8])> = vec![
-        (&built.report_name, &built.report),
-        (&built.results_name, &built.results),
-    ];
-    outputs.extend(built.files.iter().map(|(n, b)| (n.as_str(), b.as_slice())));
-    for (name, fresh) in &outputs {
-        match std::fs::read(dir.join(name)) {
-            Err(_) => drift.missing.push((*name).to_string()),
-            Ok(old) if old.as_slice() == *fresh => {}
-            Ok(old) => {
-                if *name == built.results_name {
-                    compare_results(&old, fresh, &mut drift);
-                } else {
-                    compare_text(name, &old, fresh, &mut drift);
-                }
+/// The format the report in `out` was built in, as its results file
+/// records it (or, for results files without the field, the report present).
+pub fn format_on_disk(document: &Path, out: &Path) -> Option<Format> {
+    #[derive(serde::Deserialize)]
+    struct Head {
+        format: Option<String>,
+    }
+    let (_, stem) = crate::compile::names_of(document);
+    let recorded = open_regular(&out.join(format!("{stem}.results.json")))
+        .ok()
+        .and_then(|f| serde_json::from_reader::<_, Head>(std::io::BufReader::new(f)).ok())
+        .and_then(|h| h.format);
+    match recorded.as_deref() {
+        Some("html") => Some(Format::Html),
+        Some("md") => Some(Format::Markdown),
+        _ if out.join(format!("{stem}.html")).is_file() => Some(Format::Html),
+        _ if out.join(format!("{stem}.md")).is_file() => Some(Format::Markdown),
+        _ => None,
+    }
+}
+
+/// A path as a shell word: quoted when it holds anything but plain characters.
+fn shell_word(text: &str) -> String {
+    let plain = |c: char| c.is_ascii_alphanumeric() || "/._-+,:@%=".contains(c);
+    if !text.is_empty() && text.chars().all(plain) {
+        text.to_string()
+    } else {
+        format!("'{}'", text.replace('\'', "'\\''"))
+    }
+}
+
+/// The command that rebuilds what `verify` checked, as it was asked.
+pub fn rebuild_command(document: &Path, out: &Path, format: Format, confine: bool) -> String {
+    let mut command = format!(
+        "sheaf build {} -o {}",
+        shell_word(&document.display().to_string()),
+        shell_word(&out.display().to_string())
+    );
+    if format == Format::Markdown {
+        command.push_str(" --to md");
+    }
+    if confine {
+        command.push_str(" --confine");
+    }
+    command
+}
+
+/// An output read from disk: its bytes, or why it cannot be used.
+enum OnDisk {
+    Missing,
+    NotAFile(String),
+    Bytes(Vec<u8>),
+}
+
+fn read_output(path: &Path) -> OnDisk {
+    match open_regular(path) {
+        Ok(mut f) => {
+            let mut bytes = Vec::new();
+            match f.read_to_end(&mut bytes) {
+                Ok(_) => OnDisk::Bytes(bytes),
+                Err(e) => OnDisk::NotAFile(e.to_string()),
             }
         }
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => OnDisk::Missing,
+        Err(e) => OnDisk::NotAFile(e.to_string()),
     }
+}
+
+/// The name → SHA-256 lines of a manifest (`sha256sum` format).
+fn parse_manifest(bytes: &[u8]) -> BTreeMap<String, String> {
+    String::from_utf8_lossy(bytes)
+        .lines()
+        .filter_map(|line| {
+            let (escaped, line) = match line.strip_prefix('\\') {
+                Some(rest) => (true, rest),
+                None => (false, line),
+            };
+            let (hash, name) = line.split_once("  ")?;
+            let name = if escaped {
+                name.replace("\\n", "\n").replace("\\\\", "\\")
+            } else {
+                name.to_string()
+            };
+            Some((name, hash.to_string()))
+        })
+        .collect()
+}
+
+/// Compares a fresh build with the files in `dir`, holding the folder's
+/// reader lock so that a concurrent build's commit is never seen half done.
+pub fn verify(built: &Built, dir: &Path) -> Result<Drift, Diagnostic> {
+    if let Some(root) = &built.confined_to {
+        crate::output::check_confined(dir, root)?;
+    }
+    let _lock = FolderLock::shared(&dir.join(CACHE_DIR));
+    let fresh = outputs(built);
+    let manifest = manifest_name(built);
+    let mut drift = Drift::default();
+    let mut disk: Vec<(&str, &[u8], Vec<u8>)> = Vec::new();
+    for (name, bytes) in &fresh {
+        match read_output(&dir.join(name)) {
+            OnDisk::Missing => drift.missing.push(name.clone()),
+            OnDisk::NotAFile(why) => drift.edited.push(format!(
+                "{name}: cannot be read as a file sheaf wrote ({why})"
+            )),
+            OnDisk::Bytes(old) => disk.push((name, bytes, old)),
+        }
+    }
+    let recorded = disk
+        .iter()
+        .find(|(n, _, _)| *n == manifest)
+        .map(|(_, _, old)| parse_manifest(old))
+        .unwrap_or_default();
+    let mut results_edited = false;
+    for (name, _, old) in &disk {
+        if let Some(hash) = recorded.get(*name)
+            && *hash != sha256_hex(old)
+        {
+            drift.edited.push(format!(
+                "{name}: its SHA-256 is not the one {manifest} records (edited by hand, or left by an interrupted build)"
+            ));
+            results_edited |= *name == built.results_name;
+        }
+    }
+    let mut explained = false;
+    for (name, fresh, old) in &disk {
+        if old.as_slice() == *fresh || *name == manifest {
+            continue;
+        }
+        explained = true;
+        if *name == built.results_name {
+            compare_results(old, fresh, results_edited, &mut drift);
+        } else {
+            compare_text(name, old, fresh, &mut drift);
+        }
+    }
+    if let Some((_, fresh, old)) = disk.iter().find(|(n, _, _)| *n == manifest)
+        && old.as_slice() != *fresh
+        && !explained
+    {
+        drift
+            .text
+            .push(format!("{manifest} differs from a fresh build's"));
+    }
+    truncate(&mut drift.fields);
     truncate(&mut drift.numbers);
     truncate(&mut drift.text);
-    drift
+    drift.unexpected = unexpected_files(built, dir, &fresh);
+    Ok(drift)
+}
+
+/// Files in `dir` that this build does not write and did not read, and
+/// staging folders an interrupted build left in sheaf's own folder.
+fn unexpected_files(built: &Built, dir: &Path, fresh: &[(String, Vec<u8>)]) -> Vec<String> {
+    let mut found = Vec::new();
+    for item in std::fs::read_dir(dir).into_iter().flatten().flatten() {
+        let name = item.file_name().to_string_lossy().into_owned();
+        let ours = name == CACHE_DIR || fresh.iter().any(|(n, _)| *n == name);
+        let read = built
+            .sources
+            .iter()
+            .any(|s| same_file::is_same_file(item.path(), s).unwrap_or(false));
+        if !ours && !read {
+            found.push(name);
+        }
+    }
+    for item in std::fs::read_dir(dir.join(CACHE_DIR))
+        .into_iter()
+        .flatten()
+        .flatten()
+    {
+        let name = item.file_name().to_string_lossy().into_owned();
+        if name.starts_with(STAGING_PREFIX) {
+            found.push(format!(
+                "{CACHE_DIR}/{name} (left by an interrupted build; the next build removes it)"
+            ));
+        }
+    }
+    found.sort();
+    truncate(&mut found);
+    found
 }
 
 fn truncate(items: &mut Vec<String>) {
@@ -92,17 +274,68 @@ fn truncate(items: &mut Vec<String>) {
     }
 }
 
-fn compare_results(old: &[u8], fresh: &[u8], drift: &mut Drift) {
+/// path → (sha256, bytes) of a results file's inputs.
+fn inputs_of(v: &Value) -> BTreeMap<String, (Value, Value)> {
+    v["inputs"]
+        .as_array()
+        .map(|a| {
+            a.iter()
+                .map(|i| {
+                    (
+                        i["path"].as_str().unwrap_or("").to_string(),
+                        (i["sha256"].clone(), i["bytes"].clone()),
+                    )
+                })
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// Inputs added, removed, or with another hash or size. When the results
+/// file was edited, a differing record says so rather than blaming the input.
+fn compare_inputs(old: &Value, new: &Value, edited: bool, drift: &mut Drift) {
+    let (was, now) = (inputs_of(old), inputs_of(new));
+    let mut lines = Vec::new();
+    for (path, (hash, bytes)) in &now {
+        match was.get(path) {
+            None => lines.push(format!("{path}: new input")),
+            Some((h, _)) if h != hash => {
+                lines.push(format!("{path}: SHA-256 {} → {}", short(h), short(hash)))
+            }
+            Some((_, b)) if b != bytes => lines.push(format!(
+                "{path}: size {} → {} bytes",
+                compact(b),
+                compact(bytes)
+            )),
+            _ => {}
+        }
+    }
+    for path in was.keys().filter(|p| !now.contains_key(*p)) {
+        lines.push(format!("{path}: no longer read"));
+    }
+    if edited {
+        drift.fields.extend(
+            lines
+                .into_iter()
+                .map(|l| format!("inputs: {l} (as recorded in the edited file)")),
+        );
+    } else {
+        drift.inputs.extend(lines);
+    }
+}
+
+fn compare_results(old: &[u8], fresh: &[u8], edited: bool, drift: &mut Drift) {
     let (Ok(old), Ok(new)) = (
         serde_json::from_slice::<Value>(old),
         serde_json::from_slice::<Value>(fresh),
     ) else {
         drift
-            .text
+            .fields
             .push("the results file on disk is not valid JSON".into());
         return;
     };
-    if old["document_sha256"] != new["document_sha256"] {
+    let before = (drift.fields.len(), drift.inputs.len(), drift.numbers.len());
+    if old["document_sha256"] != new["document_sha256"] && !edited {
         drift.document = Some(format!(
             "{} (SHA-256 {} → {})",
             new["document"].as_str().unwrap_or("document"),
@@ -110,75 +343,70 @@ fn compare_results(old: &[u8], fresh: &[u8], drift: &mut Drift) {
             short(&new["document_sha256"])
         ));
     }
-    let hashes = |v: &Value| -> Vec<(String, String)> {
-        v["inputs"]
-            .as_array()
-            .map(|a| {
-                a.iter()
-                    .map(|i| {
-                        (
-                            i["path"].as_str().unwrap_or("").to_string(),
-                            i["sha256"].as_str().unwrap_or("").to_string(),
-                        )
-                    })
-                    .collect()
-            })
-            .unwrap_or_default()
+    let top = |v: &Value| -> Value {
+        let mut v = v.clone();
+        if let Some(map) = v.as_object_mut() {
+            map.remove("blocks");
+            map.remove("inputs");
+            if !edited {
+                map.remove("document_sha256");
+            }
+        }
+        v
     };
-    let (was, now) = (hashes(&old), hashes(&new));
-    for (path, hash) in &now {
-        match was.iter().find(|(p, _)| p == path) {
-            None => drift.inputs.push(format!("{path}: new input")),
-            Some((_, h)) if h != hash => drift.inputs.push(format!(
-                "{path}: SHA-256 {} → {}",
-                &h[..h.len().min(12)],
-                &hash[..hash.len().min(12)]
-            )),
-            _ => {}
-        }
-    }
-    for (path, _) in &was {
-        if !now.iter().any(|(p, _)| p == path) {
-            drift.inputs.push(format!("{path}: no longer read"));
-        }
-    }
+    diff_values("file", "", &top(&old), &top(&new), &mut drift.fields);
+    compare_inputs(&old, &new, edited, drift);
     let old_blocks = old["blocks"].as_array().cloned().unwrap_or_default();
-    for block in new["blocks"].as_array().cloned().unwrap_or_default() {
+    let new_blocks = new["blocks"].as_array().cloned().unwrap_or_default();
+    for block in &new_blocks {
         let id = block["id"].as_str().unwrap_or("?").to_string();
         match old_blocks.iter().find(|b| b["id"] == block["id"]) {
             None => drift.numbers.push(format!("{id}: new block")),
-            Some(prev) => diff_values(&id, "", prev, &block, &mut drift.numbers),
+            Some(prev) => diff_values(&id, "", prev, block, &mut drift.numbers),
         }
     }
     for prev in &old_blocks {
-        if !new["blocks"]
-            .as_array()
-            .is_some_and(|a| a.iter().any(|b| b["id"] == prev["id"]))
-        {
+        if !new_blocks.iter().any(|b| b["id"] == prev["id"]) {
             drift.numbers.push(format!(
                 "{}: block removed",
                 prev["id"].as_str().unwrap_or("?")
             ));
         }
     }
+    let after = (drift.fields.len(), drift.inputs.len(), drift.numbers.len());
+    if before == after && drift.document.is_none() {
+        drift.fields.push(
+            "the file differs from a fresh build's in layout only (spacing, order or escapes), not in any value"
+                .into(),
+        );
+    }
 }
 
 fn short(v: &Value) -> String {
     v.as_str()
-        .map_or_else(|| "?".into(), |s| s[..s.len().min(12)].to_string())
+        .map_or_else(|| compact(v), |s| s.chars().take(12).collect())
 }
 
-/// Records every leaf that differs, with its path inside the block.
+/// Records every leaf that differs, with its path inside the block; a field
+/// present on one side only is a difference too.
 fn diff_values(id: &str, path: &str, old: &Value, new: &Value, out: &mut Vec<String>) {
+    let join = |k: &str| {
+        if path.is_empty() {
+            k.to_string()
+        } else {
+            format!("{path}.{k}")
+        }
+    };
     match (old, new) {
         (Value::Object(a), Value::Object(b)) => {
             for (k, v) in b {
-                let p = if path.is_empty() {
-                    k.clone()
-                } else {
-                    format!("{path}.{k}")
-                };
-                diff_values(id, &p, a.get(k).unwrap_or(&Value::Null), v, out);
+                match a.get(k) {
+                    Some(w) => diff_values(id, &join(k), w, v, out),
+                    None => out.push(format!("{id}: {}: absent → {}", join(k), compact(v))),
+                }
+            }
+            for (k, w) in a.iter().filter(|(k, _)| !b.contains_key(*k)) {
+                out.push(format!("{id}: {}: {} → absent", join(k), compact(w)));
             }
         }
         (Value::Array(a), Value::Array(b)) if a.len() == b.len() => {
@@ -210,12 +438,10 @@ fn compare_text(name: &str, old: &[u8], fresh: &[u8], drift: &mut Drift) {
             b.get(i).copied().unwrap_or(""),
         );
         if x != y {
-            drift.text.push(format!(
-                "{name} line {}: was `{}`, now `{}`",
-                i + 1,
-                clip(x),
-                clip(y)
-            ));
+            let (was, now) = excerpts(x, y);
+            drift
+                .text
+                .push(format!("{name} line {}: was `{was}`, now `{now}`", i + 1));
             shown += 1;
             if shown == 3 {
                 drift.text.push(format!("{name}: further lines differ"));
@@ -230,11 +456,70 @@ fn compare_text(name: &str, old: &[u8], fresh: &[u8], drift: &mut Drift) {
     }
 }
 
-fn clip(s: &str) -> String {
-    let t = s.trim();
-    if t.chars().count() > 70 {
-        format!("{}…", t.chars().take(70).collect::<String>())
-    } else {
-        t.to_string()
+/// Characters shown of a changed line, and how many of them come before the
+/// first difference.
+const EXCERPT: usize = 70;
+const BEFORE_CHANGE: usize = 30;
+
+/// Excerpts of two differing lines, cut at the same place so that the first
+/// differing character is in view in both (about 30 characters in).
+pub fn excerpts(was: &str, now: &str) -> (String, String) {
+    let (a, b): (Vec<char>, Vec<char>) = (was.chars().collect(), now.chars().collect());
+    let first = a.iter().zip(&b).take_while(|(x, y)| x == y).count();
+    let start = first.saturating_sub(BEFORE_CHANGE);
+    let cut = |line: &[char]| {
+        let end = line.len().min(start + EXCERPT);
+        let mut s = String::new();
+        if start > 0 {
+            s.push('…');
+        }
+        s.extend(line.get(start..end).unwrap_or(&[]));
+        if end < line.len() {
+            s.push('…');
+        }
+        s
+    };
+    (cut(&a), cut(&b))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn excerpts_show_the_first_difference() {
+        let prefix = "x".repeat(200);
+        let (was, now) = excerpts(&format!("{prefix}A tail"), &format!("{prefix}B tail"));
+        assert!(
+            was.contains("A tail") && now.contains("B tail"),
+            "{was} / {now}"
+        );
+        assert!(was.starts_with('…') && now.starts_with('…'));
+        let (was, now) = excerpts("short a", "short b");
+        assert_eq!((was.as_str(), now.as_str()), ("short a", "short b"));
+        // A change only in spacing stays visible (nothing is trimmed).
+        let (was, now) = excerpts("a  b", "a b");
+        assert_ne!(was, now);
+    }
+
+    #[test]
+    fn manifests_read_back_what_sha256sum_writes() {
+        let m = parse_manifest(b"abc  report.html\n\\def  a\\nb\\\\c\n");
+        assert_eq!(m.get("report.html").map(String::as_str), Some("abc"));
+        assert_eq!(m.get("a\nb\\c").map(String::as_str), Some("def"));
+    }
+
+    #[test]
+    fn rebuild_commands_say_the_format_and_quote_paths() {
+        let c = rebuild_command(
+            Path::new("my study/report.md"),
+            Path::new("out"),
+            Format::Markdown,
+            true,
+        );
+        assert_eq!(
+            c,
+            "sheaf build 'my study/report.md' -o out --to md --confine"
+        );
     }
 }

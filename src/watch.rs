@@ -47,7 +47,6 @@ fn rebuild(opts: &WatchOptions, version: &AtomicU64, before: &Inputs) -> Inputs 
         .and_then(|b| write_outputs(&opts.out, &b).map(|_| b));
     match outcome {
         Ok(b) => {
-            crate::output::write_cache(&cache, &b.cache_entries);
             let n = version.fetch_add(1, Ordering::SeqCst) + 1;
             eprintln!("[{n}] {}", status_line(opts, &b, start.elapsed()));
             Inputs::after_build(&opts.document, Some(&b), None, before)

@@ -373,6 +373,164 @@ fn a_missing_document_exits_with_one() {
     assert!(!Path::new(&dir.path().join("out")).exists());
 }
 
+/// Every file in `dir` (not in sub-folders) with its bytes, sorted.
+fn snapshot(dir: &Path) -> Vec<(String, Vec<u8>)> {
+    let mut files: Vec<(String, Vec<u8>)> = std::fs::read_dir(dir)
+        .expect("folder")
+        .flatten()
+        .filter(|e| e.path().is_file())
+        .map(|e| {
+            let bytes = std::fs::read(e.path()).expect("read");
+            (e.file_name().to_string_lossy().into_owned(), bytes)
+        })
+        .collect();
+    files.sort();
+    files
+}
+
+#[test]
+fn no_output_ever_replaces_an_input() {
+    let block = "id: growth\ndata: DATA\nmodel: weight ~ group\nplot: box\n";
+    // (what, data file name, output folder, format, the file named in the error)
+    let cases = [
+        ("the document itself", "plants.csv", ".", "md", "report.md"),
+        (
+            "the document, through ./",
+            "plants.csv",
+            "./",
+            "md",
+            "report.md",
+        ),
+        (
+            "a data file named like the results file",
+            "report.results.json",
+            ".",
+            "html",
+            "report.results.json",
+        ),
+        (
+            "a data file named like the manifest",
+            "report.sha256",
+            ".",
+            "html",
+            "report.sha256",
+        ),
+        (
+            "a data file named like a figure",
+            "report-growth-box.svg",
+            ".",
+            "md",
+            "report-growth-box.svg",
+        ),
+        (
+            "a data file named like the report",
+            "report.html",
+            ".",
+            "html",
+            "report.html",
+        ),
+        (
+            "a data file in sheaf's own folder",
+            ".sheaf-cache/plants.csv",
+            ".",
+            "html",
+            "plants.csv",
+        ),
+    ];
+    for (what, data, out, to, named) in cases {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let p = dir.path();
+        std::fs::create_dir_all(p.join(".sheaf-cache")).expect("cache");
+        std::fs::write(p.join(data), PLANTS).expect("data");
+        std::fs::write(p.join("report.md"), doc_with(&block.replace("DATA", data))).expect("doc");
+        let before = snapshot(p);
+        let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+            .current_dir(p)
+            .args(["build", "report.md", "-o", out, "--to", to])
+            .output()
+            .expect("runs");
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(1), "{what}: {stderr}");
+        assert!(
+            stderr.contains("refusing to write") && stderr.contains(named),
+            "{what}: {stderr}"
+        );
+        assert!(stderr.contains("nothing was written"), "{what}: {stderr}");
+        assert_eq!(snapshot(p), before, "{what}: a file changed");
+    }
+    // A data file reached through a link at an output's name is refused too.
+    #[cfg(unix)]
+    {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let p = dir.path();
+        std::fs::create_dir(p.join("out")).expect("out");
+        std::fs::write(p.join("plants.csv"), PLANTS).expect("data");
+        std::os::unix::fs::symlink(p.join("plants.csv"), p.join("out/report.results.json"))
+            .expect("link");
+        std::fs::write(p.join("report.md"), doc_with(GOOD_BLOCK)).expect("doc");
+        let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+            .current_dir(p)
+            .args(["build", "report.md", "-o", "out"])
+            .output()
+            .expect("runs");
+        assert_eq!(output.status.code(), Some(1));
+        assert_eq!(
+            std::fs::read_to_string(p.join("plants.csv")).expect("data"),
+            PLANTS
+        );
+    }
+    // The same folder without a clash builds (HTML beside its document).
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("plants.csv"), PLANTS).expect("data");
+    std::fs::write(dir.path().join("report.md"), doc_with(GOOD_BLOCK)).expect("doc");
+    let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["build", "report.md", "-o", "."])
+        .output()
+        .expect("runs");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+}
+
+#[test]
+fn watch_never_replaces_its_own_document() {
+    use std::io::BufRead;
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    std::fs::write(p.join("plants.csv"), PLANTS).expect("data");
+    let doc = doc_with(GOOD_BLOCK);
+    std::fs::write(p.join("report.md"), &doc).expect("doc");
+    let mut child = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(p)
+        .args(["watch", "report.md", "-o", ".", "--to", "md"])
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .expect("runs");
+    let stderr = child.stderr.take().expect("stderr");
+    // The first build's message; the watcher then waits for a change.
+    let mut seen = String::new();
+    for line in std::io::BufReader::new(stderr)
+        .lines()
+        .map_while(Result::ok)
+    {
+        seen.push_str(&line);
+        seen.push('\n');
+        if line.contains("waiting for a change") || line.contains("rebuilt") {
+            break;
+        }
+    }
+    let _ = child.kill();
+    let _ = child.wait();
+    assert!(seen.contains("refusing to write"), "{seen}");
+    assert_eq!(
+        std::fs::read_to_string(p.join("report.md")).expect("doc"),
+        doc
+    );
+}
+
 #[test]
 fn robust_method_keys_are_checked() {
     let cases = vec![

@@ -174,3 +174,174 @@ fn validate_passes_and_writes_its_report() {
     }
     assert_eq!(total, checks.len());
 }
+
+/// Runs `verify` on `out` and returns (exit code, stderr).
+fn verify(p: &Path, out: &str, extra: &[&str]) -> (Option<i32>, String) {
+    let mut args = vec!["verify", "report.md", "-o", out];
+    args.extend_from_slice(extra);
+    let o = sheaf(p, &args);
+    (o.status.code(), stderr(&o))
+}
+
+#[test]
+fn verify_catches_every_edit_of_the_results_file() {
+    let dir = study();
+    let p = dir.path();
+    assert!(
+        sheaf(p, &["build", "report.md", "-o", "out"])
+            .status
+            .success()
+    );
+    let path = p.join("out/report.results.json");
+    let original = std::fs::read_to_string(&path).expect("results");
+    let version = format!("\"sheaf\": \"{}\"", env!("CARGO_PKG_VERSION"));
+    let bytes_field = original
+        .lines()
+        .find(|l| l.contains("\"bytes\":"))
+        .expect("an input size")
+        .trim()
+        .to_string();
+    let edits: Vec<(&str, String, &str)> = vec![
+        (
+            "whitespace only",
+            original.replacen("{\n", "{\n ", 1),
+            "in layout only",
+        ),
+        (
+            "an added field",
+            original.replacen("{\n", "{\n  \"extra\": 1,\n", 1),
+            "file: extra: 1 → absent",
+        ),
+        (
+            "the document's name",
+            original.replacen(
+                "\"document\": \"report.md\"",
+                "\"document\": \"other.md\"",
+                1,
+            ),
+            "file: document: \"other.md\" → \"report.md\"",
+        ),
+        (
+            "sheaf's version",
+            original.replacen(&version, "\"sheaf\": \"0.0.9\"", 1),
+            "file: sheaf: \"0.0.9\"",
+        ),
+        (
+            "an input's size",
+            original.replacen(&bytes_field, "\"bytes\": 1", 1),
+            "plants.csv: size 1 →",
+        ),
+    ];
+    for (what, edited, expect) in edits {
+        assert_ne!(edited, original, "{what}: the edit applies");
+        std::fs::write(&path, &edited).expect("edit");
+        let (code, text) = verify(p, "out", &[]);
+        assert_eq!(code, Some(1), "{what}: {text}");
+        assert!(
+            text.contains("edited after sheaf wrote them:"),
+            "{what}: {text}"
+        );
+        assert!(text.contains(expect), "{what}: {text}");
+        assert!(!text.contains("inputs changed:"), "{what}: {text}");
+    }
+    // A tampered input hash is an edit of the results file, not a changed input.
+    let hash_at = original.find("\"sha256\": \"").expect("a hash") + 11;
+    let mut tampered = original.clone();
+    let flipped = if &original[hash_at..=hash_at] == "0" {
+        "1"
+    } else {
+        "0"
+    };
+    tampered.replace_range(hash_at..=hash_at, flipped);
+    std::fs::write(&path, &tampered).expect("tamper");
+    let (code, text) = verify(p, "out", &[]);
+    assert_eq!(code, Some(1), "{text}");
+    assert!(
+        text.contains("report.results.json: its SHA-256 is not the one report.sha256 records"),
+        "{text}"
+    );
+    assert!(!text.contains("inputs changed:"), "{text}");
+    std::fs::write(&path, &original).expect("restore");
+    let (code, text) = verify(p, "out", &[]);
+    assert_eq!(code, Some(0), "{text}");
+}
+
+#[test]
+fn verify_knows_the_format_and_its_advice_works() {
+    let dir = study();
+    let p = dir.path();
+    assert!(
+        sheaf(p, &["build", "report.md", "-o", "md", "--to", "md"])
+            .status
+            .success()
+    );
+    // No --to: the results file says Markdown.
+    let (code, text) = verify(p, "md", &[]);
+    assert_eq!(code, Some(0), "{text}");
+    // After a data change the advice names --to md, and following it works.
+    let data = std::fs::read_to_string(p.join("plants.csv")).expect("data");
+    std::fs::write(p.join("plants.csv"), data.replace("6.31", "6.91")).expect("edit");
+    let (code, text) = verify(p, "md", &[]);
+    assert_eq!(code, Some(1), "{text}");
+    assert!(
+        text.contains("`sheaf build report.md -o md --to md`"),
+        "{text}"
+    );
+    assert!(!text.contains("missing outputs"), "{text}");
+    let rebuilt = sheaf(p, &["build", "report.md", "-o", "md", "--to", "md"]);
+    assert!(rebuilt.status.success());
+    assert_eq!(verify(p, "md", &[]).0, Some(0));
+    assert!(!p.join("md/report.html").exists());
+}
+
+#[test]
+fn verify_shows_where_a_line_changed_and_notes_other_files() {
+    let dir = study();
+    let p = dir.path();
+    let doc = std::fs::read_to_string(p.join("report.md")).expect("doc");
+    let long = format!("{doc}\n{} the end of a long line.\n", "Words ".repeat(40));
+    std::fs::write(p.join("report.md"), &long).expect("doc");
+    assert!(
+        sheaf(p, &["build", "report.md", "-o", "out", "--to", "md"])
+            .status
+            .success()
+    );
+    let report = std::fs::read_to_string(p.join("out/report.md")).expect("report");
+    std::fs::write(
+        p.join("out/report.md"),
+        report.replace("the end of a long line", "the END of a long line"),
+    )
+    .expect("hand edit");
+    let (code, text) = verify(p, "out", &[]);
+    assert_eq!(code, Some(1), "{text}");
+    assert!(
+        text.contains("the end of a long line") && text.contains("the END of a long line"),
+        "both excerpts show the change: {text}"
+    );
+    assert!(
+        text.contains("report.md: its SHA-256 is not the one"),
+        "{text}"
+    );
+    std::fs::write(p.join("out/report.md"), &report).expect("restore");
+
+    // A file the build does not write is worth a line, not a failure.
+    std::fs::write(p.join("out/stale-figure.svg"), "<svg/>").expect("stray");
+    let (code, text) = verify(p, "out", &[]);
+    assert_eq!(code, Some(0), "{text}");
+    assert!(
+        text.contains("not written by this build") && text.contains("stale-figure.svg"),
+        "{text}"
+    );
+    // A link in place of an output is never read through.
+    #[cfg(unix)]
+    {
+        std::fs::remove_file(p.join("out/report.md")).expect("rm");
+        std::os::unix::fs::symlink(p.join("report.md"), p.join("out/report.md")).expect("link");
+        let (code, text) = verify(p, "out", &[]);
+        assert_eq!(code, Some(1), "{text}");
+        assert!(
+            text.contains("cannot be read as a file sheaf wrote"),
+            "{text}"
+        );
+    }
+}
