@@ -89,6 +89,9 @@ pub struct AnovaResult {
     pub levels: Vec<LevelResult>,
     pub comparison: Option<ComparisonResult>,
     pub warnings: Vec<String>,
+    /// Notes the author acknowledged (`acknowledge`, planned exclusions):
+    /// listed in the provenance section rather than boxed.
+    pub acknowledged: Vec<String>,
     /// Decimals for means, SDs, SEs, intervals and differences.
     pub decimals: u32,
     pub caption: Option<String>,
@@ -854,11 +857,10 @@ fn analyse(
     warnings.extend(exclusion_notes(&excluded, data_path));
     if let Some(r) = rounding {
         warnings.push(format!(
-            "These results come from published summaries (n, mean and SD per level). Checks that need the raw observations (Brown-Forsythe, Levene, Shapiro-Wilk, outliers, ranks) could not be done. Rounding the summaries to their printed digits leaves F between {} and {} (p between {} and {}).",
+            "These results come from published summaries (n, mean and SD per level). Checks that need the raw observations (Brown-Forsythe, Levene, Shapiro-Wilk, outliers, ranks) could not be done. Rounding the summaries to their printed digits leaves F between {} and {} ({}).",
             crate::render::format::fixed(r.f_low, 2),
             crate::render::format::fixed(r.f_high, 2),
-            crate::render::format::p_value(r.p_low),
-            crate::render::format::p_value(r.p_high)
+            p_range(r.p_low, r.p_high)
         ));
     }
 
@@ -1028,6 +1030,7 @@ fn analyse(
         ),
         _ => (Vec::new(), Vec::new()),
     };
+    let (warnings, acknowledged) = split_acknowledged(warnings, &spec.acknowledge);
     Ok(AnovaResult {
         method: spec.method,
         checks,
@@ -1047,6 +1050,7 @@ fn analyse(
         levels,
         comparison,
         warnings,
+        acknowledged,
         decimals,
         caption: spec.caption.clone(),
         order: spec.order,
@@ -1177,7 +1181,84 @@ fn assumption_checks(
     }
 }
 
+/// The kind of a "check before use" note (a key of `NOTE_KINDS`), or
+/// `planned` for rows the document itself left out; `None` for notes that
+/// cannot be acknowledged.
+pub fn note_kind(text: &str) -> Option<&'static str> {
+    let starts = |p: &str| text.starts_with(p);
+    let has = |p: &str| text.contains(p);
+    Some(if has(" left out by the document (") {
+        "planned"
+    } else if has(" left out because a value was missing") {
+        "missing"
+    } else if starts("The data are unbalanced") {
+        "unbalanced"
+    } else if starts("The level variances differ")
+        || starts("The variances differ")
+        || starts("Levene's mean-centred test")
+        || starts("The largest level SD")
+    {
+        "variances"
+    } else if starts("The residuals depart") || starts("Shapiro-Wilk is not computed") {
+        "normality"
+    } else if starts("The observation on line")
+        || has(" observations have a studentized residual beyond")
+    {
+        "outliers"
+    } else if has(" interaction is significant at") {
+        "interaction"
+    } else if has(" of levels has no observations") || has(" of levels have no observations") {
+        "empty-cells"
+    } else if has("has a single observation") || starts("Some levels have fewer than five") {
+        "small-levels"
+    } else if starts("These results come from published summaries") {
+        "summary"
+    } else {
+        return None;
+    })
+}
+
+/// Splits notes into those still to check and those the author acknowledged
+/// (listed kinds, and planned exclusions always).
+pub(crate) fn split_acknowledged(
+    notes: Vec<String>,
+    kinds: &[String],
+) -> (Vec<String>, Vec<String>) {
+    notes.into_iter().partition(|n| match note_kind(n) {
+        Some("planned") => false,
+        Some(k) => !kinds.iter().any(|a| a == k),
+        None => true,
+    })
+}
+
+/// "p between 0.012 and 0.031", or one phrase when both ends print alike
+/// ("p < 0.001 throughout").
+pub(crate) fn p_range(low: f64, high: f64) -> String {
+    let (a, b) = (
+        crate::render::format::p_value(low),
+        crate::render::format::p_value(high),
+    );
+    if a == b {
+        format!("{} throughout", crate::render::format::p_phrase(low))
+    } else {
+        format!("p between {a} and {b}")
+    }
+}
+
 impl Checks {
+    /// When only the mean-centred Levene test rejects equal variances: say so,
+    /// with both p-values, and what that means for the F tests.
+    pub fn levene_only_note(&self, alpha: f64) -> Option<String> {
+        let p3 = crate::render::format::p_phrase;
+        let levene = self.levene.filter(|t| t.p < alpha)?;
+        let bf = self.brown_forsythe.filter(|t| t.p >= alpha)?;
+        Some(format!(
+            "Levene's mean-centred test finds unequal variances ({}), but the median-centred Brown-Forsythe test, which is less swayed by skewed or heavy-tailed data, does not ({}): the evidence against equal variances is weak. Compare the spread of the groups before relying on the pooled error mean square.",
+            p3(levene.p),
+            p3(bf.p)
+        ))
+    }
+
     /// Plain-language advice when a check fails at α, naming the key that
     /// switches to the alternative. The declared method is never changed.
     /// `decimals` is the data's own precision, for quoting values.
@@ -1189,6 +1270,10 @@ impl Checks {
                 out.push(format!(
                     "The level variances differ (Brown-Forsythe {}). The F test and pooled comparisons assume equal variances; consider `method: welch` (Welch's ANOVA with Games-Howell comparisons).",
                     p3(bf.p)
+                ));
+            } else if let Some(text) = self.levene_only_note(alpha) {
+                out.push(format!(
+                    "{text} If in doubt, `method: welch` gives Welch's ANOVA with Games-Howell comparisons."
                 ));
             } else if self.sd_ratio > 2.0 && !self.balanced {
                 out.push(format!(

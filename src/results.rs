@@ -1,6 +1,6 @@
 //! The results file `<stem>.results.json`: a documented contract that other
-//! tools and checks read. Field names here are stable; new fields may be
-//! added, none renamed.
+//! tools and checks read. Field names here are stable: new fields may be
+//! added, and a renamed field raises `SCHEMA_VERSION` (README lists the changes).
 //!
 //! Numbers are written in shortest round-trip form (serde_json uses `ryu`).
 //! A value that is not finite is written as `null`, and the block's
@@ -13,7 +13,11 @@ use serde::ser::{SerializeMap, Serializer};
 use sha2::{Digest, Sha256};
 
 /// Version of this file's layout; raised when a field changes meaning.
-pub const SCHEMA_VERSION: u32 = 1;
+pub const SCHEMA_VERSION: u32 = 2;
+
+/// `not_tested` of a blocking factor's term.
+const BLOCK_REASON: &str =
+    "blocking factor: blocks are not randomized, so an F test of them is not valid";
 
 /// Lowercase hex SHA-256 of some bytes.
 pub fn sha256_hex(bytes: &[u8]) -> String {
@@ -62,6 +66,8 @@ pub struct FactorialRecord {
     pub comparisons: Vec<ComparisonRecord>,
     pub figures: Vec<FigureRecord>,
     pub warnings: Vec<String>,
+    /// Notes the author acknowledged (`acknowledge`, planned exclusions).
+    pub acknowledged: Vec<String>,
 }
 
 #[derive(Serialize)]
@@ -184,7 +190,8 @@ fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> Factoria
                     ms: finite(t.ms),
                     f: finite(t.f),
                     p: finite(t.p),
-                    f_crit: finite(t.f_crit),
+                    critical_f: finite(t.critical_f),
+                    not_tested: t.is_block.then_some(BLOCK_REASON),
                     effect: Some(EffectRecord {
                         eta_sq: None,
                         partial_eta_sq: finite(t.partial_eta_sq),
@@ -229,6 +236,7 @@ fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> Factoria
         comparisons,
         figures: Vec::new(),
         warnings: r.warnings.clone(),
+        acknowledged: r.acknowledged.clone(),
     }
 }
 
@@ -328,6 +336,8 @@ pub struct BlockRecord {
     pub comparisons: Vec<ComparisonRecord>,
     pub figures: Vec<FigureRecord>,
     pub warnings: Vec<String>,
+    /// Notes the author acknowledged (`acknowledge`, planned exclusions).
+    pub acknowledged: Vec<String>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -404,7 +414,11 @@ pub struct TermRecord {
     pub ms: Option<f64>,
     pub f: Option<f64>,
     pub p: Option<f64>,
-    pub f_crit: Option<f64>,
+    /// The F a test of this term must exceed at α (schema 1 called it `f_crit`).
+    pub critical_f: Option<f64>,
+    /// Why F, p and the effect size are null: set for blocking factors.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub not_tested: Option<&'static str>,
     pub effect: Option<EffectRecord>,
 }
 
@@ -633,7 +647,8 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
                 ms: finite(t.ms_between),
                 f: finite(t.f),
                 p: finite(t.p),
-                f_crit: finite(t.f_crit),
+                critical_f: finite(t.f_crit),
+                not_tested: None,
                 effect: r.effect.map(|e| EffectRecord {
                     eta_sq: finite(e.eta_sq),
                     partial_eta_sq: finite(e.partial_eta_sq),
@@ -677,6 +692,7 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
         comparisons,
         figures: Vec::new(),
         warnings: r.warnings.clone(),
+        acknowledged: r.acknowledged.clone(),
     }
 }
 

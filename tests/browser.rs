@@ -1,6 +1,7 @@
 //! The demo report in a real browser: headless Chromium (Debian's package,
 //! installed by .ci/run) renders it, nothing overflows the page width at
-//! 1280 px or at print width, table rows are kept whole when printing, and
+//! 1280 px, 700 px or a phone's 390 px (tables scroll in their own boxes),
+//! nor at print width, table rows are kept whole when printing, and
 //! the PDF has the expected number of pages. Without Chromium the test says
 //! so and skips; CI always installs it.
 //!
@@ -46,8 +47,15 @@ fn instrumented(html: &str) -> String {
 window.addEventListener('load', function () {
   var w = document.documentElement.clientWidth, wide = [];
   document.querySelectorAll('main *').forEach(function (e) {
+    // Content inside a table's own scroll box may be wider than the page.
+    var box = e.parentElement && e.parentElement.closest('.table-scroll');
+    if (box) return;
     var r = e.getBoundingClientRect();
     if (r.width > 0 && r.right > w + 1) wide.push(e.tagName + (e.id ? '#' + e.id : ''));
+  });
+  if (document.documentElement.scrollWidth > w + 1) wide.push('page scrolls sideways');
+  document.querySelectorAll('table').forEach(function (t) {
+    if (!t.parentElement.classList.contains('table-scroll') && t.getBoundingClientRect().right > w + 1) wide.push('unboxed table');
   });
   var rows = 0, splittable = 0;
   document.querySelectorAll('tr').forEach(function (tr) { rows++; });
@@ -133,7 +141,9 @@ fn the_demo_report_renders_fits_and_prints() {
         .filter(|p| u32::from(p[0]) + u32::from(p[1]) + u32::from(p[2]) < 300)
         .count();
     assert!(dark > 10_000, "the page looks blank ({dark} dark pixels)");
-    for width in ["1280", "700"] {
+    // 390 px is a phone held upright: tables scroll in their own boxes and
+    // the page itself never scrolls sideways.
+    for width in ["1280", "700", "390"] {
         let o = run(
             &browser,
             &profile,
@@ -168,6 +178,10 @@ fn the_demo_report_renders_fits_and_prints() {
     println!("PDF: {pages} pages");
     // The demo holds 24 tables and 6 figures: between 8 and 40 A4/letter pages.
     assert!((8..=40).contains(&pages), "{pages} pages");
+    // A4 by default (595 × 842 pt), with page numbers and the running title
+    // in the page margin.
+    assert!(text.contains("MediaBox [0 0 594.9"), "the PDF is not A4");
+    assert!(html.contains("size: A4;") && html.contains("counter(pages)"));
     assert!(
         html.contains("tr { break-inside: avoid; }"),
         "print CSS keeps table rows whole"

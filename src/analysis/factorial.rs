@@ -29,6 +29,9 @@ use crate::stats::sum::neumaier;
 const MAX_DESIGN_COLUMNS: usize = 2_000;
 const MAX_GRID_CELLS: f64 = 1_000_000.0;
 
+/// Why a blocking factor's row shows no F, p or effect size.
+pub const BLOCK_NOT_TESTED: &str = "Blocks are reported (SS, df, MS) but not tested: blocks are not randomized, so an F for them is not a valid test (Montgomery, ch. 4). Their sum of squares is what the blocking removed from the error.";
+
 /// One row of the factorial ANOVA table.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct TermRow {
@@ -40,11 +43,13 @@ pub struct TermRow {
     pub ms: f64,
     pub f: f64,
     pub p: f64,
-    pub f_crit: f64,
+    pub critical_f: f64,
     pub partial_eta_sq: f64,
     pub partial_omega_sq: f64,
     pub partial_eta_sq_ci: (f64, f64),
-    /// A declared blocking factor: reported, never compared.
+    /// A declared blocking factor: its SS, df and MS are reported, but its
+    /// F, p, critical value and effect size are not (all NaN): blocks are
+    /// not randomized, so their F is no valid test.
     pub is_block: bool,
 }
 
@@ -106,6 +111,8 @@ pub struct FactorialResult {
     pub families: Vec<Family>,
     pub checks: Checks,
     pub warnings: Vec<String>,
+    /// Notes the author acknowledged, listed in the provenance section.
+    pub acknowledged: Vec<String>,
     pub decimals: u32,
     pub caption: Option<String>,
     pub order: crate::doc::block::Order,
@@ -298,8 +305,9 @@ pub fn run_factorial(
     if let Some(f) = levels.iter().position(|&l| l < 2) {
         return Err(model_err(
             format!(
-                "`{}` has {} level(s) with data; a factor needs two or more",
-                factor_names[f], levels[f]
+                "`{}` has {} with data; a factor needs two or more",
+                factor_names[f],
+                crate::render::view::count(levels[f], "level", "levels")
             ),
             "check the factor column and the missing-value markers",
         ));
@@ -481,22 +489,35 @@ pub fn run_factorial(
         .map(|(i, t)| {
             let df = t.df as f64;
             let ms = t.ss / df;
-            let f = ms / mse;
-            let (lo, hi) = noncentrality_interval(f, df, nu, 1.0 - alpha);
-            let to_eta = |lambda: f64| lambda / (lambda + df + nu + 1.0);
-            TermRow {
+            let is_block = terms[i].len() == 1 && blocks.contains(&terms[i][0]);
+            let row = TermRow {
                 name: term_names[i].clone(),
                 factors: terms[i].clone(),
                 df: t.df,
                 ss: t.ss,
                 ms,
+                f: f64::NAN,
+                p: f64::NAN,
+                critical_f: f64::NAN,
+                partial_eta_sq: f64::NAN,
+                partial_omega_sq: f64::NAN,
+                partial_eta_sq_ci: (f64::NAN, f64::NAN),
+                is_block,
+            };
+            if is_block {
+                return row;
+            }
+            let f = ms / mse;
+            let (lo, hi) = noncentrality_interval(f, df, nu, 1.0 - alpha);
+            let to_eta = |lambda: f64| lambda / (lambda + df + nu + 1.0);
+            TermRow {
                 f,
                 p: f_sf(f, df, nu),
-                f_crit: f_isf(alpha, df, nu),
+                critical_f: f_isf(alpha, df, nu),
                 partial_eta_sq: t.ss / (t.ss + full.rss),
                 partial_omega_sq: df * (ms - mse) / (df * ms + (n as f64 - df) * mse),
                 partial_eta_sq_ci: (to_eta(lo), to_eta(hi)),
-                is_block: terms[i].len() == 1 && blocks.contains(&terms[i][0]),
+                ..row
             }
         })
         .collect();
@@ -511,8 +532,9 @@ pub fn run_factorial(
     warnings.extend(super::exclusion_notes(&data.excluded, &spec.data.value));
     if !empty.is_empty() {
         warnings.push(format!(
-            "{} combination(s) of levels have no observations ({}); {}",
-            empty.len(),
+            "{} of levels {} no observations ({}); {}",
+            crate::render::view::count(empty.len(), "combination", "combinations"),
+            if empty.len() == 1 { "has" } else { "have" },
             empty.join("; "),
             if rank_deficient {
                 "the interaction is estimated only from the cells with data, and marginal means cannot be estimated"
@@ -520,9 +542,6 @@ pub fn run_factorial(
                 "the additive model estimates them from the other cells"
             }
         ));
-    }
-    if rows.iter().any(|r| r.is_block) {
-        warnings.push("Blocks are reported but not tested for their own sake: blocks are not randomized, so their F is not a valid test (Montgomery, ch. 4).".into());
     }
 
     // Observed cells over the treatment factors (blocks left out).
@@ -927,6 +946,7 @@ pub fn run_factorial(
                 data.lines.clone(),
             )
         };
+    let (warnings, acknowledged) = super::split_acknowledged(warnings, &spec.acknowledge);
     let result = FactorialResult {
         id: block.id.clone(),
         line: block.line,
@@ -950,6 +970,7 @@ pub fn run_factorial(
         families,
         checks,
         warnings,
+        acknowledged,
         decimals,
         caption: spec.caption.clone(),
         order: spec.order,
@@ -973,6 +994,10 @@ fn factorial_advice(checks: &Checks, alpha: f64, decimals: u32) -> Vec<String> {
         out.push(format!(
             "The variances differ (Brown-Forsythe {}). F tests in factorial designs tolerate this best with equal cell sizes; consider a variance-stabilizing transformation of the response (logarithm or square root for counts and yields).",
             p3(bf.p)
+        ));
+    } else if let Some(text) = checks.levene_only_note(alpha) {
+        out.push(format!(
+            "{text} F tests in factorial designs are robust to moderate differences when the cells are of equal size; with unequal cells, or if the spread grows with the mean, consider a variance-stabilizing transformation of the response."
         ));
     }
     if let Ok(sw) = checks.shapiro_wilk.as_ref()

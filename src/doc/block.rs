@@ -13,7 +13,7 @@ use crate::stats::linear::SsType;
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 
 /// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 36] = [
+pub const ANOVA_KEYS: [&str; 39] = [
     "id",
     "data",
     "model",
@@ -50,6 +50,33 @@ pub const ANOVA_KEYS: [&str; 36] = [
     "labels",
     "sheet",
     "range",
+    "acknowledge",
+    "names",
+    "x_axis",
+];
+
+/// Kinds of "check before use" note an author can acknowledge with
+/// `acknowledge:`, and what each covers. Planned exclusions (`where`,
+/// `exclude`) count as acknowledged without being listed.
+pub const NOTE_KINDS: [(&str, &str); 9] = [
+    ("missing", "rows left out because a value was missing"),
+    ("unbalanced", "unbalanced data: the SS types differ"),
+    ("variances", "unequal variances among levels or cells"),
+    (
+        "normality",
+        "residuals that depart from a normal distribution",
+    ),
+    (
+        "outliers",
+        "observations flagged beyond ±3 studentized residuals",
+    ),
+    (
+        "interaction",
+        "a significant interaction under main-effect comparisons",
+    ),
+    ("empty-cells", "combinations of levels without observations"),
+    ("small-levels", "levels with one or few observations"),
+    ("summary", "results computed from published summaries"),
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -123,6 +150,22 @@ pub struct PlotSpec {
     pub unit: Option<String>,
     /// A horizontal reference line.
     pub reference: Option<f64>,
+    /// Display names for the response and factors (`names`): (column, as shown).
+    #[serde(default)]
+    pub names: Vec<(String, String)>,
+    /// The factor on the x axis of interaction plots (`x_axis`).
+    #[serde(default)]
+    pub x_axis: Option<String>,
+}
+
+impl PlotSpec {
+    /// A factor's or the response's name as the report shows it.
+    pub fn display<'a>(&'a self, column: &'a str) -> &'a str {
+        self.names
+            .iter()
+            .find(|(c, _)| c == column)
+            .map_or(column, |(_, shown)| shown.as_str())
+    }
 }
 
 /// Row order of the level-means table.
@@ -207,6 +250,8 @@ pub struct AnovaSpec {
     /// Spreadsheet input: the sheet (default the first) and a cell range.
     pub sheet: Option<String>,
     pub range: Option<String>,
+    /// Kinds of note (from `NOTE_KINDS`) the author has dealt with.
+    pub acknowledge: Vec<String>,
 }
 
 /// A problem with one key, at its line and column.
@@ -765,6 +810,8 @@ pub fn anova_spec(
         label: get("label").map(|e| e.value.clone()),
         unit: get("unit").map(|e| e.value.clone()),
         reference: None,
+        names: Vec::new(),
+        x_axis: None,
     };
     if let Some(e) = get("plot") {
         for item in list(&e.value) {
@@ -900,6 +947,61 @@ pub fn anova_spec(
             labels.push((from.trim().to_string(), to.trim().to_string()));
         }
     }
+    let mut acknowledge = Vec::new();
+    if let Some(e) = get("acknowledge") {
+        for kind in list(&e.value) {
+            if !NOTE_KINDS.iter().any(|(k, _)| *k == kind) {
+                let known: Vec<&str> = NOTE_KINDS.iter().map(|(k, _)| *k).collect();
+                let hint = match crate::diag::nearest(&kind, known.iter().copied()) {
+                    Some(k) => format!("did you mean `{k}`? (kinds: {})", known.join(", ")),
+                    None => format!("the kinds are {}", known.join(", ")),
+                };
+                return Err(bad(e, format!("`{kind}` is not a kind of note"), hint));
+            }
+            acknowledge.push(kind);
+        }
+    }
+    let mut names = Vec::new();
+    if let Some(e) = get("names") {
+        for part in list(&e.value) {
+            let Some((from, to)) = part.split_once('=') else {
+                return Err(bad(
+                    e,
+                    format!("expected `column = display name`, found `{part}`"),
+                    "for example `names: n_rate = Nitrogen rate, variety = Variety`",
+                ));
+            };
+            let from = from.trim();
+            if from != formula.response && !formula.factors().contains(&from) {
+                return Err(bad(
+                    e,
+                    format!("`{from}` is neither the response nor a factor of the model"),
+                    format!(
+                        "name columns of the model: {}",
+                        std::iter::once(formula.response.as_str())
+                            .chain(formula.factors())
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                ));
+            }
+            names.push((from.to_string(), to.trim().to_string()));
+        }
+    }
+    plots.names = names;
+    if let Some(e) = get("x_axis") {
+        if factor_count < 2 || !formula.factors().contains(&e.value.as_str()) {
+            return Err(bad(
+                e,
+                format!(
+                    "`x_axis` must name a factor of a model with two or more factors, found `{}`",
+                    e.value
+                ),
+                format!("the factors are {}", formula.factors().join(", ")),
+            ));
+        }
+        plots.x_axis = Some(e.value.clone());
+    }
     for key in ["sheet", "range"] {
         if let (Some(e), false) = (
             get(key),
@@ -913,6 +1015,7 @@ pub fn anova_spec(
         }
     }
     Ok(AnovaSpec {
+        acknowledge,
         sheet: get("sheet").map(|e| e.value.clone()),
         range: get("range").map(|e| e.value.clone()),
         rows,

@@ -24,8 +24,27 @@ use power::{PowerSpec, power_spec};
 use std::ops::Range;
 
 /// Keys accepted in the front matter.
-pub const FRONT_MATTER_KEYS: [&str; 6] =
-    ["title", "author", "date", "alpha", "decimals", "compare"];
+pub const FRONT_MATTER_KEYS: [&str; 10] = [
+    "title", "author", "date", "alpha", "decimals", "compare", "figures", "dpi", "paper",
+    "contents",
+];
+
+/// Page size of the printed HTML report.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+pub enum Paper {
+    A4,
+    Letter,
+}
+
+impl Paper {
+    /// The CSS `@page` size.
+    pub fn css(self) -> &'static str {
+        match self {
+            Paper::A4 => "A4",
+            Paper::Letter => "letter",
+        }
+    }
+}
 
 /// Document-wide settings.
 #[derive(Debug, Clone, PartialEq)]
@@ -38,6 +57,10 @@ pub struct FrontMatter {
     pub compare: Option<Method>,
     /// How Markdown output delivers figures: SVG files, or PNG at a resolution.
     pub figures: crate::figure::ImageFormat,
+    /// Page size when the HTML report is printed.
+    pub paper: Paper,
+    /// A table of contents and lists of tables and figures after the title.
+    pub contents: bool,
 }
 
 impl Default for FrontMatter {
@@ -50,6 +73,8 @@ impl Default for FrontMatter {
             decimals: None,
             compare: Some(Method::Tukey),
             figures: crate::figure::ImageFormat::Svg,
+            paper: Paper::A4,
+            contents: false,
         }
     }
 }
@@ -254,6 +279,36 @@ fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagno
                 };
             }
             "dpi" => {}
+            "paper" => {
+                f.paper = match e.value.to_ascii_lowercase().as_str() {
+                    "a4" => Paper::A4,
+                    "letter" => Paper::Letter,
+                    _ => {
+                        return Err(doc
+                            .error_at(
+                                e.line,
+                                Some(e.value_column),
+                                format!("unknown paper size `{}`", e.value),
+                            )
+                            .hint("write `a4` (the default) or `letter`"));
+                    }
+                };
+            }
+            "contents" => {
+                f.contents = match e.value.to_ascii_lowercase().as_str() {
+                    "yes" => true,
+                    "no" => false,
+                    _ => {
+                        return Err(doc
+                            .error_at(
+                                e.line,
+                                Some(e.value_column),
+                                format!("`contents` takes `yes` or `no`, found `{}`", e.value),
+                            )
+                            .hint("`contents: yes` adds a table of contents and lists of tables and figures"));
+                    }
+                };
+            }
             other => {
                 let mut d = doc.error_at(
                     e.line,

@@ -45,7 +45,10 @@ fn jitter(level: usize, index: usize) -> f64 {
 }
 
 fn axis_title(spec: &PlotSpec, response: &str) -> String {
-    let label = spec.label.clone().unwrap_or_else(|| response.to_string());
+    let label = spec
+        .label
+        .clone()
+        .unwrap_or_else(|| spec.display(response).to_string());
     match &spec.unit {
         Some(u) => format!("{label} ({u})"),
         None => label,
@@ -95,11 +98,10 @@ impl Frame {
             .iter()
             .map(|l| text_width(l, TICK_SIZE as f32) as f64)
             .fold(0.0, f64::max);
-        let rotate = widest > slot - 6.0;
-        let label_space = if rotate {
-            (widest * 0.5).min(90.0) + 14.0
-        } else {
-            18.0
+        let angle = tick_angle(widest, slot);
+        let label_space = match angle {
+            Some(a) => (widest * (-a).to_radians().sin()).min(110.0) + 14.0,
+            None => 18.0,
         };
         let bottom = HEIGHT - 20.0 - label_space;
         let top = 30.0;
@@ -123,14 +125,14 @@ impl Frame {
             .map(|i| left + slot * (i as f64 + 0.5))
             .collect();
         for (x, label) in centres.iter().zip(labels) {
-            if rotate {
+            if let Some(a) = angle {
                 svg.text(
-                    *x,
-                    bottom + 14.0,
+                    *x + TICK_SIZE * 0.3,
+                    bottom + 12.0,
                     label,
                     "end",
                     TICK_SIZE,
-                    Some(-30.0),
+                    Some(a),
                     "xtick",
                 );
             } else {
@@ -173,9 +175,40 @@ impl Frame {
     }
 }
 
-fn letters_at(svg: &mut Svg, x: f64, y_px: f64, letters: Option<&str>) {
+/// Letter groups above a level. When the letters are wider than the level's
+/// slot (many levels, many groups) they are set vertically, reading upwards,
+/// so that neighbours never collide.
+fn letters_at(svg: &mut Svg, x: f64, y_px: f64, letters: Option<&str>, slot: f64) {
     if let Some(l) = letters.filter(|l| !l.is_empty()) {
-        svg.text(x, y_px - 8.0, l, "middle", LETTER_SIZE, None, "letters");
+        if text_width(l, LETTER_SIZE as f32) as f64 > slot - 2.0 {
+            let x = x + LETTER_SIZE * 0.35;
+            svg.text(
+                x,
+                y_px - 6.0,
+                l,
+                "start",
+                LETTER_SIZE,
+                Some(-90.0),
+                "letters",
+            );
+        } else {
+            svg.text(x, y_px - 8.0, l, "middle", LETTER_SIZE, None, "letters");
+        }
+    }
+}
+
+/// The angle of x tick labels: level, or tilted just enough that neighbouring
+/// labels (one slot apart) clear each other by a line height.
+fn tick_angle(widest: f64, slot: f64) -> Option<f64> {
+    let clearance = TICK_SIZE + 2.0;
+    if widest <= slot - 6.0 {
+        None
+    } else if slot * 0.5 >= clearance {
+        Some(-30.0)
+    } else if slot * std::f64::consts::FRAC_1_SQRT_2 >= clearance {
+        Some(-45.0)
+    } else {
+        Some(-90.0)
     }
 }
 
@@ -268,7 +301,13 @@ fn box_plot(
             }
         }
         let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        letters_at(&mut svg, x, frame.y.map(top), g.letters);
+        letters_at(
+            &mut svg,
+            x,
+            frame.y.map(top),
+            g.letters,
+            frame.slot(groups.len()),
+        );
     }
     let _ = frame.top;
     let _ = frame.bottom;
@@ -324,7 +363,13 @@ fn strip_plot(
             );
         }
         let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        letters_at(&mut svg, x, frame.y.map(top), g.letters);
+        letters_at(
+            &mut svg,
+            x,
+            frame.y.map(top),
+            g.letters,
+            frame.slot(groups.len()),
+        );
     }
     svg.finish()
 }
@@ -367,7 +412,13 @@ fn means_plot(
         }
         svg.marker(x, frame.y.map(g.mean), 4.5, 0, PALETTE[0], INK, "mean");
         let top = if g.ci.1.is_finite() { g.ci.1 } else { g.mean };
-        letters_at(&mut svg, x, frame.y.map(top), g.letters);
+        letters_at(
+            &mut svg,
+            x,
+            frame.y.map(top),
+            g.letters,
+            frame.slot(groups.len()),
+        );
     }
     svg.finish()
 }
@@ -568,8 +619,7 @@ fn interaction_plot(
     desc: &str,
     x_labels: &[&str],
     series: &[Series],
-    y_title: &str,
-    x_title: &str,
+    (y_title, x_title, legend_title): (&str, &str, &str),
     reference: Option<f64>,
 ) -> String {
     let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
@@ -586,6 +636,11 @@ fn interaction_plot(
         }
     }
     let (frame, xs) = Frame::categorical(&mut svg, x_labels, lo, hi, y_title, x_title, reference);
+    let legend_width = series
+        .iter()
+        .map(|(name, _)| text_width(name, TICK_SIZE as f32) as f64 + 14.0)
+        .chain([text_width(legend_title, TICK_SIZE as f32) as f64])
+        .fold(60.0, f64::max);
     let dodge = (frame.slot(x_labels.len()) * 0.08).min(8.0);
     let offset = |s: usize| (s as f64 - (series.len() as f64 - 1.0) / 2.0) * dodge;
     for (s, (name, pts)) in series.iter().enumerate() {
@@ -607,12 +662,21 @@ fn interaction_plot(
             }
             svg.marker(px, frame.y.map(*m), 4.0, s, colour, INK, "mean");
         }
-        // Legend, top right, one row per series.
-        let ly = frame.top - 14.0 + 14.0 * s as f64;
-        let lx = frame.x1 - 90.0;
+        // Legend, top right, one row per series under the factor's name.
+        let ly = frame.top + 14.0 * s as f64;
+        let lx = frame.x1 - legend_width;
         svg.marker(lx, ly - 4.0, 4.0, s, colour, INK, "legend");
         svg.text(lx + 10.0, ly, name, "start", TICK_SIZE, None, "legend");
     }
+    svg.text(
+        frame.x1 - legend_width - 4.0,
+        frame.top - 14.0,
+        legend_title,
+        "start",
+        TICK_SIZE,
+        None,
+        "legend-title",
+    );
     svg.finish()
 }
 
@@ -685,7 +749,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
     let spec = &r.plots;
     let y_title = axis_title(spec, &r.response);
     // Captions name the response as the tables do: its label, else its column.
-    let subject = spec.label.as_deref().unwrap_or(&r.response);
+    let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
     let letters = r
         .comparison
         .as_ref()
@@ -738,7 +802,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                         format!(
                             "{} by {}: box plots (median, quartiles, whiskers to the most extreme values within 1.5 IQR){}.{note}",
                             subject,
-                            r.factor,
+                            spec.display(&r.factor),
                             if many { "" } else { " with every observation" }
                         ),
                         box_plot,
@@ -752,15 +816,15 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                                 "Every observation"
                             },
                             subject,
-                            r.factor
+                            spec.display(&r.factor)
                         ),
                         strip_plot,
                     ),
                     _ => (
                         format!(
-                            "Mean {} by {} with {conf} confidence intervals ({ci_kind}){}.{note}",
+                            "Means of {} by {} with {conf} confidence intervals ({ci_kind}){}.{note}",
                             subject,
-                            r.factor,
+                            spec.display(&r.factor),
                             if many { "" } else { "; observations in grey" }
                         ),
                         means_plot,
@@ -776,7 +840,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
                         &desc,
                         &groups,
                         &y_title,
-                        &r.factor,
+                        spec.display(&r.factor),
                         spec.reference,
                     ),
                 )
@@ -836,12 +900,76 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
 /// The figures of a factorial block.
 pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure> {
     let spec = &r.plots;
-    let y_title = axis_title(spec, &r.response);
-    // Captions name the response as the tables do: its label, else its column.
-    let subject = spec.label.as_deref().unwrap_or(&r.response);
-    let Some(&fa) = r.cell_factors.first() else {
+    let Some(&first) = r.cell_factors.first() else {
         return Vec::new();
     };
+    // Box, strip and means plots are drawn for every compared main effect
+    // (the first keeps the plain id `<block>-<kind>`, the others add
+    // `-<factor>`); without comparisons, for the first treatment factor.
+    let mut compared: Vec<usize> = Vec::new();
+    for fam in &r.families {
+        if let Some(f) = r.factors.iter().position(|f| *f == fam.term)
+            && !compared.contains(&f)
+        {
+            compared.push(f);
+        }
+    }
+    if compared.is_empty() {
+        compared.push(first);
+    }
+    let mut out = Vec::new();
+    for &kind in &spec.kinds {
+        let drawn: Vec<(Option<usize>, String)> = match kind {
+            PlotKind::Box | PlotKind::Strip | PlotKind::Means => compared
+                .iter()
+                .enumerate()
+                .map(|(i, &f)| {
+                    let id = figure_id(&r.id, kind);
+                    (
+                        Some(f),
+                        if i == 0 {
+                            id
+                        } else {
+                            format!("{id}-{}", r.factors[f])
+                        },
+                    )
+                })
+                .collect(),
+            _ => vec![(None, figure_id(&r.id, kind))],
+        };
+        for (factor, id) in drawn {
+            let n = *number;
+            let made = match factor {
+                Some(f) => Some(factor_figure(r, kind, f, &id, n)),
+                None => model_figure(r, kind, &id, n),
+            };
+            if let Some((caption, svg)) = made {
+                *number += 1;
+                out.push(Figure {
+                    id,
+                    kind: kind.key(),
+                    number: n,
+                    caption,
+                    svg,
+                });
+            }
+        }
+    }
+    out
+}
+
+/// Box, strip or means plot of the response by one factor of a factorial
+/// model, with that factor's letters when its main effect was compared.
+fn factor_figure(
+    r: &FactorialResult,
+    kind: PlotKind,
+    fa: usize,
+    id: &str,
+    n: usize,
+) -> (String, String) {
+    let spec = &r.plots;
+    let y_title = axis_title(spec, &r.response);
+    let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
     let fam = r
         .families
         .iter()
@@ -886,154 +1014,133 @@ pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure>
             f.comparison.alpha
         )
     });
+    let factor = spec.display(&r.factors[fa]);
     let many = dense::summarised(r.values.len());
-    let mut out = Vec::new();
-    for &kind in &spec.kinds {
-        let id = figure_id(&r.id, kind);
-        let n = *number;
-        let note = dense_note(kind, r.values.len());
-        let factor = &r.factors[fa];
-        let (caption, svg) = match kind {
-            PlotKind::Box => {
-                let caption = format!(
-                    "Figure {n}. {} by {factor}: box plots{}.{note}{letters_note}",
-                    subject,
-                    if many { "" } else { " with every observation" }
-                );
-                (
-                    caption.clone(),
-                    box_plot(
-                        &id,
-                        &caption,
-                        &caption,
-                        &groups,
-                        &y_title,
-                        factor,
-                        spec.reference,
-                    ),
-                )
-            }
-            PlotKind::Strip => {
-                let caption = format!(
-                    "Figure {n}. {} of {} by {factor}, with means as bars.{note}{letters_note}",
-                    if many {
-                        "Observations"
-                    } else {
-                        "Every observation"
-                    },
-                    subject
-                );
-                (
-                    caption.clone(),
-                    strip_plot(
-                        &id,
-                        &caption,
-                        &caption,
-                        &groups,
-                        &y_title,
-                        factor,
-                        spec.reference,
-                    ),
-                )
-            }
-            PlotKind::Means => {
-                let caption = format!(
-                    "Figure {n}. Estimated marginal means of {} by {factor} with {conf} confidence intervals from the model.{letters_note}",
-                    subject
-                );
-                (
-                    caption.clone(),
-                    means_plot(
-                        &id,
-                        &caption,
-                        &caption,
-                        &groups,
-                        &y_title,
-                        factor,
-                        spec.reference,
-                    ),
-                )
-            }
-            PlotKind::Interaction => {
-                let Some(&fb) = r.cell_factors.get(1) else {
-                    continue;
-                };
-                let x_labels: Vec<&str> = r.levels[fa].iter().map(String::as_str).collect();
-                let series: Vec<Series> = r.levels[fb]
-                    .iter()
-                    .enumerate()
-                    .map(|(b, name)| {
-                        let pts = (0..r.levels[fa].len())
-                            .map(|a| {
-                                let v: Vec<f64> = r
-                                    .rows
-                                    .iter()
-                                    .zip(&r.values)
-                                    .filter(|(row, _)| row[fa] == a && row[fb] == b)
-                                    .map(|(_, v)| *v)
-                                    .collect();
-                                if v.is_empty() {
-                                    return (f64::NAN, f64::NAN, f64::NAN);
-                                }
-                                let m = v.iter().sum::<f64>() / v.len() as f64;
-                                let se = (r.mse / v.len() as f64).sqrt();
-                                (m, m - t * se, m + t * se)
-                            })
-                            .collect();
-                        (name.clone(), pts)
-                    })
-                    .collect();
-                let caption = format!(
-                    "Figure {n}. Cell means of {}: {factor} on the axis, one line per level of {}, with {conf} confidence intervals (model residual mean square).",
-                    subject, r.factors[fb]
-                );
-                (
-                    caption.clone(),
-                    interaction_plot(
-                        &id,
-                        &caption,
-                        &caption,
-                        &x_labels,
-                        &series,
-                        &y_title,
-                        factor,
-                        spec.reference,
-                    ),
-                )
-            }
-            PlotKind::Residuals => {
-                let flags = flagged_points(&r.checks, &r.lines, many);
-                let caption = format!(
-                    "Figure {n}. Residuals of {} against fitted values{}.{note}",
-                    subject,
-                    residual_flags_phrase(many)
-                );
-                (
-                    caption.clone(),
-                    residual_plot(&id, &caption, &caption, &r.fitted, &r.residuals, &flags),
-                )
-            }
-            PlotKind::Qq => {
-                let caption = format!(
-                    "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.{note}",
-                    subject
-                );
-                (
-                    caption.clone(),
-                    qq_plot(&id, &caption, &caption, &r.residuals),
-                )
-            }
-        };
-        *number += 1;
-        out.push(Figure {
-            id,
-            kind: kind.key(),
-            number: n,
-            caption,
-            svg,
-        });
-    }
-    out
+    let note = dense_note(kind, r.values.len());
+    let (what, draw): (String, PlotFn) = match kind {
+        PlotKind::Box => (
+            format!(
+                "{subject} by {factor}: box plots{}.{note}",
+                if many { "" } else { " with every observation" }
+            ),
+            box_plot,
+        ),
+        PlotKind::Strip => (
+            format!(
+                "{} of {subject} by {factor}, with means as bars.{note}",
+                if many {
+                    "Observations"
+                } else {
+                    "Every observation"
+                }
+            ),
+            strip_plot,
+        ),
+        _ => (
+            format!(
+                "Estimated marginal means of {subject} by {factor} with {conf} confidence intervals from the model."
+            ),
+            means_plot,
+        ),
+    };
+    let caption = format!("Figure {n}. {what}{letters_note}");
+    let svg = draw(
+        id,
+        &caption,
+        &caption,
+        &groups,
+        &y_title,
+        factor,
+        spec.reference,
+    );
+    (caption, svg)
+}
+
+type PlotFn = fn(&str, &str, &str, &[Group], &str, &str, Option<f64>) -> String;
+
+/// The figures of a factorial model drawn once: interaction, residuals, Q-Q.
+fn model_figure(
+    r: &FactorialResult,
+    kind: PlotKind,
+    id: &str,
+    n: usize,
+) -> Option<(String, String)> {
+    let spec = &r.plots;
+    let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
+    let conf = crate::render::view::confidence_label(r.alpha);
+    let t = t_isf(r.alpha / 2.0, r.residual_df as f64);
+    Some(match kind {
+        PlotKind::Interaction => {
+            // The x axis: `x_axis` when given, else the first treatment
+            // factor; one line per level of the next treatment factor.
+            let fa = spec
+                .x_axis
+                .as_ref()
+                .and_then(|x| r.factors.iter().position(|f| f == x))
+                .filter(|f| r.cell_factors.contains(f))
+                .unwrap_or(r.cell_factors[0]);
+            let fb = *r.cell_factors.iter().find(|&&f| f != fa)?;
+            let x_labels: Vec<&str> = r.levels[fa].iter().map(String::as_str).collect();
+            let series: Vec<Series> = r.levels[fb]
+                .iter()
+                .enumerate()
+                .map(|(b, name)| {
+                    let pts = (0..r.levels[fa].len())
+                        .map(|a| {
+                            let v: Vec<f64> = r
+                                .rows
+                                .iter()
+                                .zip(&r.values)
+                                .filter(|(row, _)| row[fa] == a && row[fb] == b)
+                                .map(|(_, v)| *v)
+                                .collect();
+                            if v.is_empty() {
+                                return (f64::NAN, f64::NAN, f64::NAN);
+                            }
+                            let m = v.iter().sum::<f64>() / v.len() as f64;
+                            let se = (r.mse / v.len() as f64).sqrt();
+                            (m, m - t * se, m + t * se)
+                        })
+                        .collect();
+                    (name.clone(), pts)
+                })
+                .collect();
+            let (x_name, line_name) = (spec.display(&r.factors[fa]), spec.display(&r.factors[fb]));
+            let caption = format!(
+                "Figure {n}. Cell means of {subject}: {x_name} on the axis, one line per level of {line_name}, with {conf} confidence intervals (model residual mean square)."
+            );
+            let svg = interaction_plot(
+                id,
+                &caption,
+                &caption,
+                &x_labels,
+                &series,
+                (&axis_title(spec, &r.response), x_name, line_name),
+                spec.reference,
+            );
+            (caption, svg)
+        }
+        PlotKind::Residuals => {
+            let many = dense::summarised(r.residuals.len());
+            let flags = flagged_points(&r.checks, &r.lines, many);
+            let caption = format!(
+                "Figure {n}. Residuals of {subject} against fitted values{}.{}",
+                residual_flags_phrase(many),
+                dense_note(kind, r.residuals.len())
+            );
+            let svg = residual_plot(id, &caption, &caption, &r.fitted, &r.residuals, &flags);
+            (caption, svg)
+        }
+        PlotKind::Qq => {
+            let caption = format!(
+                "Figure {n}. Normal Q-Q plot of the residuals of {subject} (Blom positions), with a line through the quartiles.{}",
+                dense_note(kind, r.residuals.len())
+            );
+            let svg = qq_plot(id, &caption, &caption, &r.residuals);
+            (caption, svg)
+        }
+        _ => return None,
+    })
 }
 
 /// The power curve of a `power` block: power against n per group, with the

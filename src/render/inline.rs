@@ -22,9 +22,11 @@ struct TermContext {
     df2: usize,
     ss: f64,
     ms: f64,
-    f: f64,
-    p: f64,
-    f_crit: f64,
+    /// None for a blocking factor, which is reported but not tested.
+    f: Option<f64>,
+    p: Option<f64>,
+    critical_f: Option<f64>,
+    not_tested: Option<&'static str>,
     effect: Option<EffectContext>,
 }
 
@@ -90,7 +92,7 @@ struct BlockContext {
     p: f64,
     df1: usize,
     df2: usize,
-    f_crit: f64,
+    critical_f: f64,
     r_squared: f64,
     n: usize,
     n_excluded: usize,
@@ -111,6 +113,34 @@ struct BlockContext {
     pairs: Vec<PairContext>,
 }
 
+/// The assumption checks of a one-factor or factorial block.
+fn checks_context(c: &crate::analysis::Checks) -> ChecksContext {
+    let ftest = |t: &crate::stats::assumptions::FTest| TestContext {
+        statistic: t.statistic,
+        df1: t.df1,
+        df2: t.df2,
+        f: t.statistic,
+        p: t.p,
+    };
+    ChecksContext {
+        brown_forsythe: c.brown_forsythe.as_ref().map(ftest),
+        levene: c.levene.as_ref().map(ftest),
+        bartlett: c.bartlett.map(|b| {
+            [("statistic", b.statistic), ("df", b.df), ("p", b.p)]
+                .into_iter()
+                .collect()
+        }),
+        shapiro_wilk: c.shapiro_wilk.ok().map(|s| {
+            [("w", s.w), ("p", s.p), ("n", s.n as f64)]
+                .into_iter()
+                .collect()
+        }),
+        skewness: c.skewness,
+        excess_kurtosis: c.excess_kurtosis,
+        outliers: c.outliers.len(),
+    }
+}
+
 fn block_context(r: &AnovaResult) -> BlockContext {
     let t = &r.table;
     let mut terms = BTreeMap::new();
@@ -122,9 +152,10 @@ fn block_context(r: &AnovaResult) -> BlockContext {
             df2: t.df_within,
             ss: t.ss_between,
             ms: t.ms_between,
-            f: t.f,
-            p: t.p,
-            f_crit: t.f_crit,
+            f: Some(t.f),
+            p: Some(t.p),
+            critical_f: Some(t.f_crit),
+            not_tested: None,
             effect: r.effect.map(|e| EffectContext {
                 eta_sq: e.eta_sq,
                 partial_eta_sq: e.partial_eta_sq,
@@ -135,14 +166,6 @@ fn block_context(r: &AnovaResult) -> BlockContext {
             }),
         },
     );
-    let ftest = |t: &crate::stats::assumptions::FTest| TestContext {
-        statistic: t.statistic,
-        df1: t.df1,
-        df2: t.df2,
-        f: t.statistic,
-        p: t.p,
-    };
-    let c = &r.checks;
     let letters_of = |i: usize| {
         r.comparison
             .as_ref()
@@ -153,7 +176,7 @@ fn block_context(r: &AnovaResult) -> BlockContext {
         p: t.p,
         df1: t.df_between,
         df2: t.df_within,
-        f_crit: t.f_crit,
+        critical_f: t.f_crit,
         r_squared: t.r_squared,
         n: t.n,
         n_excluded: r.exclusions.len(),
@@ -172,23 +195,7 @@ fn block_context(r: &AnovaResult) -> BlockContext {
             .kruskal
             .as_ref()
             .map(|k| [("h", k.h), ("df", k.df), ("p", k.p)].into_iter().collect()),
-        checks: ChecksContext {
-            brown_forsythe: c.brown_forsythe.as_ref().map(ftest),
-            levene: c.levene.as_ref().map(ftest),
-            bartlett: c.bartlett.map(|b| {
-                [("statistic", b.statistic), ("df", b.df), ("p", b.p)]
-                    .into_iter()
-                    .collect()
-            }),
-            shapiro_wilk: c.shapiro_wilk.ok().map(|s| {
-                [("w", s.w), ("p", s.p), ("n", s.n as f64)]
-                    .into_iter()
-                    .collect()
-            }),
-            skewness: c.skewness,
-            excess_kurtosis: c.excess_kurtosis,
-            outliers: c.outliers.len(),
-        },
+        checks: checks_context(&r.checks),
         terms,
         residual: [
             ("df", t.df_within as f64),
@@ -259,6 +266,7 @@ struct FactorialContext {
     response: String,
     ss_type: u8,
     r_squared: f64,
+    checks: ChecksContext,
     terms: BTreeMap<String, TermContext>,
     residual: BTreeMap<&'static str, f64>,
     total: BTreeMap<&'static str, f64>,
@@ -279,10 +287,13 @@ fn factorial_context(r: &crate::analysis::factorial::FactorialResult) -> Factori
                     df2: r.residual_df,
                     ss: t.ss,
                     ms: t.ms,
-                    f: t.f,
-                    p: t.p,
-                    f_crit: t.f_crit,
-                    effect: Some(EffectContext {
+                    f: (!t.is_block).then_some(t.f),
+                    p: (!t.is_block).then_some(t.p),
+                    critical_f: (!t.is_block).then_some(t.critical_f),
+                    not_tested: t
+                        .is_block
+                        .then_some("a blocking factor is reported but not tested"),
+                    effect: (!t.is_block).then(|| EffectContext {
                         eta_sq: t.partial_eta_sq,
                         partial_eta_sq: t.partial_eta_sq,
                         omega_sq: t.partial_omega_sq,
@@ -329,6 +340,7 @@ fn factorial_context(r: &crate::analysis::factorial::FactorialResult) -> Factori
             crate::stats::linear::SsType::III => 3,
         },
         r_squared: r.r_squared,
+        checks: checks_context(&r.checks),
         terms,
         residual: [
             ("df", r.residual_df as f64),
@@ -556,8 +568,8 @@ fn unknown_name_error(
         };
     }
     doc.error_at(line, Some(col), format!("`{}` names something the block `{head}` does not have", e.source)).hint(
-        "a block has f, p, df1, df2, f_crit, r_squared, n, n_excluded, alpha, response, factor, method, \
-         terms.<factor>.<f|p|df|df1|df2|ss|ms|f_crit>, residual.<df|ss|ms>, \
+        "a block has f, p, df1, df2, critical_f, r_squared, n, n_excluded, alpha, response, factor, method, \
+         terms.<factor>.<f|p|df|df1|df2|ss|ms|critical_f>, residual.<df|ss|ms>, \
          groups.<level>.<n|mean|sd|se|ci_lower|ci_upper|letters>, letters.<level> and pairs",
     )
 }

@@ -125,6 +125,9 @@ fn environment() -> Environment<'static> {
         minijinja::escape_formatter(out, state, value)
     });
     env.add_filter("code_spans", code_spans);
+    env.add_filter("css_string", |text: String| {
+        Value::from_safe_string(css_string(&text))
+    });
     for (name, _) in TEMPLATES {
         // The templates are ours and fixed at compile time; a syntax error is
         // caught by every test that renders a report.
@@ -158,6 +161,28 @@ fn code_spans(state: &minijinja::State, text: String) -> Value {
         }
     }
     Value::from_safe_string(out)
+}
+
+/// A quoted CSS string for the page header: quotes, backslashes, line
+/// breaks and `<` (which could end the `<style>` element) as CSS escapes.
+pub fn css_string(text: &str) -> String {
+    let mut out = String::with_capacity(text.len() + 2);
+    out.push('"');
+    for c in text.chars() {
+        match c {
+            '"' | '\\' => {
+                out.push('\\');
+                out.push(c);
+            }
+            '<' => out.push_str("\\3c "),
+            '>' => out.push_str("\\3e "),
+            '&' => out.push_str("\\26 "),
+            c if c.is_control() => out.push(' '),
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
 }
 
 /// Escapes text for HTML element content and attribute values.
@@ -200,6 +225,28 @@ struct FrontView {
     title: Option<String>,
     author: Option<String>,
     date: Option<String>,
+}
+
+/// One line of the table of contents or of the lists of tables and figures.
+#[derive(Serialize)]
+struct ContentsEntry {
+    level: u8,
+    id: String,
+    text: String,
+}
+
+#[derive(Serialize)]
+struct ContentsView {
+    headings: Vec<ContentsEntry>,
+    tables: Vec<ContentsEntry>,
+    figures: Vec<ContentsEntry>,
+}
+
+/// A block's acknowledged notes, for the provenance section.
+#[derive(Serialize)]
+struct AcknowledgedView {
+    id: String,
+    notes: Vec<String>,
 }
 
 /// Marker standing for block `i` in the prose while it goes through the
@@ -275,7 +322,10 @@ pub fn render_report(
     // The body with expressions and blocks replaced, front matter dropped.
     let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
     for (e, v) in doc.expressions.iter().zip(&values) {
-        edits.push((e.range.clone(), markdown_escape(v)));
+        edits.push((
+            e.range.clone(),
+            markdown_escape(&view::typographic_minus(v)),
+        ));
     }
     for (i, b) in doc.blocks.iter().enumerate() {
         let replacement = match format {
@@ -294,10 +344,31 @@ pub fn render_report(
     }
     body.push_str(&doc.source[pos..]);
 
-    let content = match format {
-        Format::Html => prose_html(&body, &fragments),
-        Format::Markdown => body.trim().to_string(),
+    let (content, headings) = match format {
+        Format::Html => prose_html(&body, &fragments, doc.front.contents),
+        Format::Markdown => (body.trim().to_string(), Vec::new()),
     };
+    let contents = (doc.front.contents && format == Format::Html).then(|| ContentsView {
+        headings,
+        tables: views
+            .iter()
+            .flat_map(|v| &v.tables)
+            .map(|t| ContentsEntry {
+                level: 0,
+                id: t.id.clone(),
+                text: t.caption.clone(),
+            })
+            .collect(),
+        figures: figures
+            .iter()
+            .flatten()
+            .map(|p| ContentsEntry {
+                level: 0,
+                id: p.figure.id.clone(),
+                text: p.figure.caption.clone(),
+            })
+            .collect(),
+    });
     let title = doc
         .front
         .title
@@ -318,6 +389,16 @@ pub fn render_report(
         inputs => to_value(inputs.iter().map(|i| InputView { path: i.path.clone(), bytes: i.size as usize, sha256: i.sha256.clone() }).collect::<Vec<_>>()),
         choices => results.iter().map(choices_of).collect::<Vec<_>>(),
         results_name => results_name,
+        paper => doc.front.paper.css(),
+        acknowledged => to_value(results.iter().filter_map(|r| {
+            let notes = match r {
+                BlockResult::Anova(a) => &a.acknowledged,
+                BlockResult::Factorial(f) => &f.acknowledged,
+                BlockResult::Power(_) => return None,
+            };
+            (!notes.is_empty()).then(|| AcknowledgedView { id: r.id().to_string(), notes: notes.clone() })
+        }).collect::<Vec<_>>()),
+        contents => contents.map(to_value),
     };
     let name = if format == Format::Html {
         "report.html"
@@ -349,12 +430,12 @@ fn choices_of(r: &BlockResult) -> String {
                     format!("{} pairs", c.method.title())
                 });
             format!(
-                "`{}` (line {}): {method}; {compare}; α = {}; {} observation(s) used, {} row(s) left out.",
+                "`{}` (line {}): {method}; {compare}; α = {}; {} used, {} left out.",
                 a.id,
                 a.line,
                 a.alpha,
-                a.n,
-                a.exclusions.len()
+                view::count(a.n, "observation", "observations"),
+                view::count(a.exclusions.len(), "row", "rows")
             )
         }
         BlockResult::Factorial(f) => {
@@ -370,13 +451,13 @@ fn choices_of(r: &BlockResult) -> String {
                     format!("{} on marginal means", c.comparison.method.title())
                 });
             format!(
-                "`{}` (line {}): linear model of {} with {ss} sums of squares (sum-to-zero coding); {compare}; α = {}; {} observation(s) used, {} row(s) left out.",
+                "`{}` (line {}): linear model of {} with {ss} sums of squares (sum-to-zero coding); {compare}; α = {}; {} used, {} left out.",
                 f.id,
                 f.line,
                 f.factors.join(", "),
                 f.alpha,
-                f.n,
-                f.exclusions.len()
+                view::count(f.n, "observation", "observations"),
+                view::count(f.exclusions.len(), "row", "rows")
             )
         }
         BlockResult::Power(p) => format!(
@@ -406,19 +487,62 @@ fn tidy_markdown(text: &str) -> String {
 }
 
 /// Markdown to HTML. Raw HTML written in the document is shown as text (a
-/// report carries no scripts); block markers become the blocks' HTML.
-fn prose_html(body: &str, fragments: &[String]) -> String {
+/// report carries no scripts); block markers become the blocks' HTML. With
+/// `number_headings`, level 2 and 3 headings get ids (`section-1`, …) and are
+/// returned for the table of contents.
+fn prose_html(
+    body: &str,
+    fragments: &[String],
+    number_headings: bool,
+) -> (String, Vec<ContentsEntry>) {
+    use pulldown_cmark::{HeadingLevel, Tag, TagEnd};
     let markers: Vec<String> = (0..fragments.len()).map(marker).collect();
-    let events = Parser::new_ext(body, markdown_options()).map(|event| match event {
-        Event::Html(h) | Event::InlineHtml(h) => match markers.iter().position(|m| h.trim() == m) {
-            Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
-            None => Event::Text(h),
-        },
-        other => other,
-    });
+    let mut headings: Vec<ContentsEntry> = Vec::new();
+    let mut open: Option<usize> = None;
+    let mut events = Vec::new();
+    for event in Parser::new_ext(body, markdown_options()) {
+        let event = match event {
+            Event::Html(h) | Event::InlineHtml(h) => {
+                match markers.iter().position(|m| h.trim() == m) {
+                    Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
+                    None => Event::Text(h),
+                }
+            }
+            Event::Start(Tag::Heading {
+                level,
+                id,
+                classes,
+                attrs,
+            }) if number_headings && matches!(level, HeadingLevel::H2 | HeadingLevel::H3) => {
+                let anchor = format!("section-{}", headings.len() + 1);
+                headings.push(ContentsEntry {
+                    level: if level == HeadingLevel::H2 { 2 } else { 3 },
+                    id: id.map_or_else(|| anchor.clone(), |i| i.to_string()),
+                    text: String::new(),
+                });
+                open = Some(headings.len() - 1);
+                let id = headings[headings.len() - 1].id.clone();
+                Event::Start(Tag::Heading {
+                    level,
+                    id: Some(CowStr::from(id)),
+                    classes,
+                    attrs,
+                })
+            }
+            Event::End(TagEnd::Heading(l)) => {
+                open = None;
+                Event::End(TagEnd::Heading(l))
+            }
+            other => other,
+        };
+        if let (Some(i), Event::Text(t) | Event::Code(t)) = (open, &event) {
+            headings[i].text.push_str(t);
+        }
+        events.push(event);
+    }
     let mut html = String::with_capacity(body.len() * 2);
-    pulldown_cmark::html::push_html(&mut html, events);
-    html
+    pulldown_cmark::html::push_html(&mut html, events.into_iter());
+    (html, headings)
 }
 
 #[cfg(test)]

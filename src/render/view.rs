@@ -4,7 +4,7 @@
 use super::format::{
     column_decimals, df_text, effect_size, f_stat, fixed, p_phrase, p_value, significant,
 };
-use crate::analysis::factorial::{FactorialResult, term_label};
+use crate::analysis::factorial::FactorialResult;
 use crate::analysis::{AnovaResult, ComparisonResult, PowerResult};
 use crate::doc::block::{Omnibus, Order};
 use crate::stats::assumptions::ShapiroWilkSkip;
@@ -115,6 +115,65 @@ fn join_words(items: &[String]) -> String {
     }
 }
 
+/// Writes the minus sign of negative numbers as U+2212 (−), as typeset text
+/// does; a hyphen between words (`peat-perlite`) is left alone. A `-` counts as
+/// a minus when it starts the text or follows a space, `(` or `[`, and a digit
+/// or `∞` follows it. The results file keeps ASCII.
+pub fn typographic_minus(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 4);
+    let mut prev: Option<char> = None;
+    let mut chars = s.chars().peekable();
+    while let Some(c) = chars.next() {
+        let starts_number = chars
+            .peek()
+            .is_some_and(|n| n.is_ascii_digit() || *n == '∞' || *n == '.');
+        let after_gap = prev.is_none_or(|p| p == ' ' || p == '(' || p == '[' || p == '\u{a0}');
+        if c == '-' && starts_number && after_gap {
+            out.push('\u{2212}');
+        } else {
+            out.push(c);
+        }
+        prev = Some(c);
+    }
+    out
+}
+
+/// The view as printed: minus signs in numeric cells and footnotes.
+fn typeset(mut v: BlockView) -> BlockView {
+    for t in &mut v.tables {
+        for row in &mut t.rows {
+            for (c, column) in row.iter_mut().zip(&t.columns) {
+                if column.numeric {
+                    c.text = typographic_minus(&c.text);
+                }
+            }
+        }
+        for f in &mut t.footnotes {
+            *f = typographic_minus(f);
+        }
+    }
+    v
+}
+
+/// Decimals for a column of effect sizes: two, or three when any value is
+/// below 0.1 (METHODS 4.2), so that a column never mixes 0.32 and 0.032.
+fn effect_decimals(values: impl IntoIterator<Item = f64>) -> u32 {
+    if values.into_iter().any(|x| x.is_finite() && x.abs() < 0.1) {
+        3
+    } else {
+        2
+    }
+}
+
+/// A count with its noun: "1 row", "3 rows".
+pub fn count(n: usize, one: &str, many: &str) -> String {
+    if n == 1 {
+        format!("1 {one}")
+    } else {
+        format!("{} {many}", crate::render::format::count(n))
+    }
+}
+
 /// "95%" for α = 0.05, "97.5%" for α = 0.025.
 pub fn confidence_label(alpha: f64) -> String {
     let pct = (1.0 - alpha) * 100.0;
@@ -170,14 +229,14 @@ pub fn block_view(r: &AnovaResult, next_table: &mut usize) -> BlockView {
             tables.push(pairs_table(r, c, numbers.next()));
         }
     }
-    BlockView {
+    typeset(BlockView {
         figures: Vec::new(),
         id: r.id.clone(),
         lead: None,
         tables,
         notes,
         warnings: r.warnings.clone(),
-    }
+    })
 }
 
 /// A `power` block: the answer as a sentence, and power over a range of n.
@@ -253,29 +312,29 @@ pub fn power_view(r: &PowerResult, next_table: &mut usize) -> BlockView {
             ],
         });
     }
-    BlockView {
+    typeset(BlockView {
         figures: Vec::new(),
         id: r.id.clone(),
         lead: Some(lead),
         tables,
         notes: Vec::new(),
         warnings: r.warnings.clone(),
-    }
+    })
 }
 
 fn anova_table(r: &AnovaResult, number: usize) -> TableView {
     let (t, id) = (&r.table, &r.id);
-    // SS to five significant digits of the total, MS to four of the
-    // largest mean square, each column on one number of decimals.
+    // SS and MS to five significant digits of the total SS: one number of
+    // decimals for both columns.
     let ss_dec = column_decimals(&[t.ss_total], 5);
-    let ms_dec = column_decimals(&[t.ms_between, t.ms_within], 4);
+    let ms_dec = ss_dec;
     let term = |q: &str| format!("{id}.anova.terms.{}.{q}", r.factor);
     let eta = r
         .effect
         .map_or_else(|| "".to_string(), |e| effect_size(e.partial_eta_sq));
     let rows = vec![
         vec![
-            text(r.factor.clone()),
+            text(r.plots.display(&r.factor)),
             cell(t.df_between.to_string(), term("df")),
             cell(fixed(t.ss_between, ss_dec), term("ss")),
             cell(fixed(t.ms_between, ms_dec), term("ms")),
@@ -313,7 +372,7 @@ fn anova_table(r: &AnovaResult, number: usize) -> TableView {
         None => format!(
             "Table {number}. Analysis of variance of {} by {} (N = {}).",
             measure(&r.response, &r.plots),
-            r.factor,
+            r.plots.display(&r.factor),
             t.n
         ),
     };
@@ -326,12 +385,13 @@ fn anova_table(r: &AnovaResult, number: usize) -> TableView {
         fixed(t.r_squared, 3)
     )];
     if let Some(e) = r.effect {
+        let eta_dec = effect_decimals([e.eta_sq, e.partial_eta_sq_ci.0, e.partial_eta_sq_ci.1]);
         footnotes.push(format!(
             "Effect size: η² = {} (partial η², here the same; {} CI {} to {}, from the noncentral F), ω² = {}, Cohen's f = {}.",
-            effect_size(e.eta_sq),
+            fixed(e.eta_sq, eta_dec),
             confidence_label(1.0 - e.level),
-            effect_size(e.partial_eta_sq_ci.0),
-            effect_size(e.partial_eta_sq_ci.1),
+            fixed(e.partial_eta_sq_ci.0, eta_dec),
+            fixed(e.partial_eta_sq_ci.1, eta_dec),
             effect_size(e.omega_sq),
             effect_size(e.cohens_f)
         ));
@@ -361,7 +421,7 @@ fn welch_table(r: &AnovaResult, number: usize) -> TableView {
         .iter()
         .map(|w| {
             vec![
-                text(r.factor.clone()),
+                text(r.plots.display(&r.factor)),
                 cell(f_stat(w.f), format!("{id}.welch.f")),
                 cell(df_text(w.df1), format!("{id}.welch.df1")),
                 cell(fixed(w.df2, 2), format!("{id}.welch.df2")),
@@ -374,7 +434,7 @@ fn welch_table(r: &AnovaResult, number: usize) -> TableView {
         None => format!(
             "Table {number}. Welch's analysis of variance of {} by {} (N = {}), not assuming equal variances.",
             measure(&r.response, &r.plots),
-            r.factor,
+            r.plots.display(&r.factor),
             r.table.n
         ),
     };
@@ -384,7 +444,7 @@ fn welch_table(r: &AnovaResult, number: usize) -> TableView {
         caption,
         columns: vec![
             col("Source", false),
-            col("F*", true),
+            col("Welch's F", true),
             col("df₁", true),
             col("df₂", true),
             col("p", true),
@@ -409,7 +469,7 @@ fn kruskal_table(r: &AnovaResult, number: usize) -> TableView {
         .iter()
         .map(|k| {
             vec![
-                text(r.factor.clone()),
+                text(r.plots.display(&r.factor)),
                 cell(fixed(k.h, 2), format!("{id}.kruskal.h")),
                 cell(df_text(k.df), format!("{id}.kruskal.df")),
                 cell(p_value(k.p), format!("{id}.kruskal.p")),
@@ -421,7 +481,7 @@ fn kruskal_table(r: &AnovaResult, number: usize) -> TableView {
         None => format!(
             "Table {number}. Kruskal-Wallis test of {} by {} (N = {}).",
             measure(&r.response, &r.plots),
-            r.factor,
+            r.plots.display(&r.factor),
             r.table.n
         ),
     };
@@ -442,7 +502,11 @@ fn checks_table(r: &AnovaResult, number: usize) -> TableView {
         &r.checks,
         &r.id,
         r.alpha,
-        &format!("{} by {}", measure(&r.response, &r.plots), r.factor),
+        &format!(
+            "{} by {}",
+            measure(&r.response, &r.plots),
+            r.plots.display(&r.factor)
+        ),
         number,
     )
 }
@@ -674,7 +738,7 @@ fn means_table(r: &AnovaResult, number: usize) -> TableView {
         })
         .collect();
     let mut columns = vec![
-        col(r.factor.clone(), false),
+        col(r.plots.display(&r.factor), false),
         col("n", true),
         col("Mean", true),
         col("SD", true),
@@ -709,7 +773,7 @@ fn means_table(r: &AnovaResult, number: usize) -> TableView {
         caption: format!(
             "Table {number}. Means of {} by {}.",
             measure(&r.response, &r.plots),
-            r.factor
+            r.plots.display(&r.factor)
         ),
         columns,
         rows,
@@ -750,7 +814,7 @@ fn ranks_table(r: &AnovaResult, number: usize) -> TableView {
         })
         .collect();
     let mut columns = vec![
-        col(r.factor.clone(), false),
+        col(r.plots.display(&r.factor), false),
         col("n", true),
         col("Median", true),
         col("Quartiles", true),
@@ -768,7 +832,7 @@ fn ranks_table(r: &AnovaResult, number: usize) -> TableView {
         caption: format!(
             "Table {number}. Medians and ranks of {} by {}.",
             measure(&r.response, &r.plots),
-            r.factor
+            r.plots.display(&r.factor)
         ),
         columns,
         rows,
@@ -811,9 +875,17 @@ fn pairs_table(r: &AnovaResult, c: &ComparisonResult, number: usize) -> TableVie
                 .collect(),
         )
     } else {
+        // A one-sided Dunnett bound is one number under a header naming it.
+        let (interval_label, one_sided) = match (c.method, c.sides) {
+            (Method::Dunnett, Sides::Greater) => (format!("{conf} lower bound"), true),
+            (Method::Dunnett, Sides::Less) => (format!("{conf} upper bound"), true),
+            _ => (format!("{conf} CI"), false),
+        };
         let interval =
             |p: &crate::stats::compare::Pair| match (p.lower.is_finite(), p.upper.is_finite()) {
                 (true, true) => format!("{} to {}", fixed(p.lower, d), fixed(p.upper, d)),
+                (true, false) if one_sided => fixed(p.lower, d),
+                (false, true) if one_sided => fixed(p.upper, d),
                 (true, false) => format!("above {}", fixed(p.lower, d)),
                 (false, true) => format!("below {}", fixed(p.upper, d)),
                 _ => "–".into(),
@@ -822,7 +894,7 @@ fn pairs_table(r: &AnovaResult, c: &ComparisonResult, number: usize) -> TableVie
             col("Comparison", false),
             col("Difference", true),
             col("SE", true),
-            col(format!("{conf} CI"), true),
+            col(interval_label, true),
         ];
         if c.method == Method::GamesHowell {
             columns.push(col("df", true));
@@ -859,7 +931,10 @@ fn pairs_table(r: &AnovaResult, c: &ComparisonResult, number: usize) -> TableVie
     };
     let what = match c.method {
         Method::Dunnett => "treatment–control comparisons".to_string(),
-        _ => format!("pairwise comparisons of {} levels", r.factor),
+        _ => format!(
+            "pairwise comparisons of {} levels",
+            r.plots.display(&r.factor)
+        ),
     };
     let se_note = match c.method {
         Method::GamesHowell => {
@@ -893,9 +968,21 @@ fn pairs_table(r: &AnovaResult, c: &ComparisonResult, number: usize) -> TableVie
     }
 }
 
-/// The response as captions name it: its label (or column name) and unit.
+/// A term for people, with display names: `Wool × Tension`.
+fn shown_term(plots: &crate::doc::block::PlotSpec, name: &str) -> String {
+    name.split(':')
+        .map(|f| plots.display(f))
+        .collect::<Vec<_>>()
+        .join(" × ")
+}
+
+/// The response as captions name it: its label (or display name, or column
+/// name) and unit.
 fn measure(response: &str, plots: &crate::doc::block::PlotSpec) -> String {
-    let name = plots.label.clone().unwrap_or_else(|| response.to_string());
+    let name = plots
+        .label
+        .clone()
+        .unwrap_or_else(|| plots.display(response).to_string());
     match &plots.unit {
         Some(u) => format!("{name} ({u})"),
         None => name,
@@ -942,41 +1029,45 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
     let id = &r.id;
     let d = r.decimals;
     let conf = confidence_label(r.alpha);
-    let factors_text = match r.factors.len() {
-        2 => r.factors.join(" and "),
-        n => format!("{} and {}", r.factors[..n - 1].join(", "), r.factors[n - 1]),
+    let shown: Vec<&str> = r.factors.iter().map(|f| r.plots.display(f)).collect();
+    let factors_text = match shown.len() {
+        2 => shown.join(" and "),
+        n => format!("{} and {}", shown[..n - 1].join(", "), shown[n - 1]),
     };
     let mut tables = Vec::new();
     if r.show.anova {
         let number = numbers.next();
+        // SS and MS share one number of decimals (five significant digits
+        // of the total SS), so sums and mean squares line up and compare.
         let ss_dec = column_decimals(&[r.total_ss], 5);
-        let ms_dec = column_decimals(
-            &r.terms
-                .iter()
-                .map(|t| t.ms)
-                .chain([r.mse])
-                .collect::<Vec<_>>(),
-            4,
-        );
+        let ms_dec = ss_dec;
+        let eta_dec = effect_decimals(r.terms.iter().map(|t| t.partial_eta_sq));
         let mut rows: Vec<Vec<Cell>> = r
             .terms
             .iter()
             .map(|t| {
                 let k = |q: &str| format!("{id}.anova.terms.{}.{q}", t.name);
                 let label = if t.is_block {
-                    format!("{} (block)", term_label(&t.name))
+                    format!("{} (block)", shown_term(&r.plots, &t.name))
                 } else {
-                    term_label(&t.name)
+                    shown_term(&r.plots, &t.name)
                 };
-                vec![
+                let mut row = vec![
                     text(label),
                     cell(t.df.to_string(), k("df")),
                     cell(fixed(t.ss, ss_dec), k("ss")),
                     cell(fixed(t.ms, ms_dec), k("ms")),
-                    cell(f_stat(t.f), k("f")),
-                    cell(p_value(t.p), k("p")),
-                    cell(effect_size(t.partial_eta_sq), k("effect.partial_eta_sq")),
-                ]
+                ];
+                if t.is_block {
+                    row.extend([text("not tested"), text(""), text("")]);
+                } else {
+                    row.extend([
+                        cell(f_stat(t.f), k("f")),
+                        cell(p_value(t.p), k("p")),
+                        cell(fixed(t.partial_eta_sq, eta_dec), k("effect.partial_eta_sq")),
+                    ]);
+                }
+                row
             })
             .collect();
         rows.push(vec![
@@ -1015,16 +1106,17 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
                 r.n
             ),
         };
-        let crits: Vec<String> = r
-            .terms
-            .iter()
+        let tested = || r.terms.iter().filter(|t| !t.is_block);
+        let ci_dec =
+            effect_decimals(tested().flat_map(|t| [t.partial_eta_sq_ci.0, t.partial_eta_sq_ci.1]));
+        let crits: Vec<String> = tested()
             .map(|t| {
                 format!(
                     "{} F({}, {}) = {}",
-                    term_label(&t.name),
+                    shown_term(&r.plots, &t.name),
                     t.df,
                     r.residual_df,
-                    fixed(t.f_crit, 3)
+                    fixed(t.critical_f, 3)
                 )
             })
             .collect();
@@ -1037,19 +1129,21 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             ),
             format!(
                 "η² is partial η² = SS/(SS + SS residual); {conf} intervals for it from the noncentral F: {}.",
-                r.terms
-                    .iter()
+                tested()
                     .map(|t| format!(
                         "{} {} to {}",
-                        term_label(&t.name),
-                        effect_size(t.partial_eta_sq_ci.0),
-                        effect_size(t.partial_eta_sq_ci.1)
+                        shown_term(&r.plots, &t.name),
+                        fixed(t.partial_eta_sq_ci.0, ci_dec),
+                        fixed(t.partial_eta_sq_ci.1, ci_dec)
                     ))
                     .collect::<Vec<_>>()
                     .join("; ")
             ),
             "All factors are fixed effects; every F uses the residual mean square.".to_string(),
         ];
+        if r.terms.iter().any(|t| t.is_block) {
+            footnotes.push(crate::analysis::factorial::BLOCK_NOT_TESTED.to_string());
+        }
         if r.types_agree {
             footnotes
                 .push("The design is balanced: Types I, II and III sums of squares agree.".into());
@@ -1089,11 +1183,14 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
         let slice = fam
             .within
             .as_ref()
-            .map_or(String::new(), |w| format!(" at {w}"));
+            .map_or(String::new(), |w| match w.split_once('=') {
+                Some((factor, level)) => format!(" at {} = {level}", r.plots.display(factor)),
+                None => format!(" at {w}"),
+            });
         let what = if fam.term == "cells" {
             "cell".to_string()
         } else {
-            fam.term.clone()
+            r.plots.display(&fam.term).to_string()
         };
         if r.show.means {
             let number = numbers.next();
@@ -1212,14 +1309,14 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             });
         }
     }
-    BlockView {
+    typeset(BlockView {
         figures: Vec::new(),
         id: id.clone(),
         lead: None,
         tables,
         notes,
         warnings: r.warnings.clone(),
-    }
+    })
 }
 
 /// Observed cell means: rows by the first factor and columns by the second
@@ -1255,7 +1352,11 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
     let (columns, rows) = if cf.len() == 2 {
         let (fa, fb) = (cf[0], cf[1]);
         let mut columns = vec![col(
-            format!("{} \\ {}", r.factors[fa], r.factors[fb]),
+            format!(
+                "{} \\ {}",
+                r.plots.display(&r.factors[fa]),
+                r.plots.display(&r.factors[fb])
+            ),
             false,
         )];
         columns.extend(r.levels[fb].iter().map(|l| col(l.clone(), true)));
@@ -1273,7 +1374,7 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
     } else {
         let mut columns: Vec<Column> = cf
             .iter()
-            .map(|&f| col(r.factors[f].clone(), false))
+            .map(|&f| col(r.plots.display(&r.factors[f]), false))
             .collect();
         columns.push(col("Mean (n)", true));
         let rows = r
@@ -1306,7 +1407,7 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
             "Table {number}. Cell means of {} by {}.",
             measure(&r.response, &r.plots),
             cf.iter()
-                .map(|&f| r.factors[f].as_str())
+                .map(|&f| r.plots.display(&r.factors[f]))
                 .collect::<Vec<_>>()
                 .join(" and ")
         ),
