@@ -4,6 +4,7 @@
 
 pub mod factorial;
 
+use crate::data::decimal::Number;
 use crate::data::scan::{
     CHUNK_BYTES, ScanSpec, Scanned, ScannedLevel, Source, scan_file, scan_table,
 };
@@ -692,7 +693,21 @@ fn load_summary(
             spread
         }
     };
-    let origin = rows[order[0]].mean;
+    // Means relative to the first one, subtracted as exact decimals (as the
+    // raw path subtracts its origin): parsed as f64, means near 1e8 would
+    // already have lost their last digits (METHODS 2.2).
+    let origin_exact = rows[order[0]].mean_exact;
+    let origin = origin_exact.to_f64();
+    let offsets: Vec<f64> = rows
+        .iter()
+        .map(|r| {
+            match (r.mean_exact, origin_exact) {
+                (Number::Exact(mean), Number::Exact(first)) => mean.minus(first),
+                _ => None,
+            }
+            .unwrap_or(r.mean - origin)
+        })
+        .collect();
     let summaries_at = |shift_mean: &dyn Fn(usize) -> f64, shift_sd: f64| -> Vec<GroupSummary> {
         order
             .iter()
@@ -701,7 +716,7 @@ fn load_summary(
                 let sd = (to_sd(r, r.spread) + shift_sd * to_sd(r, r.spread_half_unit)).max(0.0);
                 GroupSummary {
                     n: r.n,
-                    mean: r.mean - origin + shift_mean(i),
+                    mean: offsets[i] + shift_mean(i),
                     ss: (r.n as f64 - 1.0) * sd * sd,
                 }
             })
@@ -715,7 +730,7 @@ fn load_summary(
     let grand = summaries.iter().map(|s| s.n as f64 * s.mean).sum::<f64>() / n_total;
     let away = |i: usize| {
         let r = &rows[i];
-        if r.mean - origin >= grand {
+        if offsets[i] >= grand {
             r.mean_half_unit
         } else {
             -r.mean_half_unit
@@ -723,7 +738,7 @@ fn load_summary(
     };
     let toward = |i: usize| {
         let r = &rows[i];
-        let d = r.mean - origin - grand;
+        let d = offsets[i] - grand;
         -d.signum() * r.mean_half_unit.min(d.abs())
     };
     let f_of = |g: &[GroupSummary]| {
