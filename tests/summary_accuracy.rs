@@ -202,3 +202,74 @@ fn a_shift_of_the_means_moves_no_statistic() {
         }
     }
 }
+
+#[test]
+fn cell_contrasts_near_1e8_are_exact_decimals() {
+    // Invented data: a 2 × 2 layout near 1e8 whose cell means are exact
+    // decimals (100000001.2, 100000001.7, 100000000.9, 100000001.5). Every
+    // difference of two cell means is then a short decimal (hand
+    // computation); parsed and averaged at the magnitude of 1e8 it carried
+    // errors near 1e-8. Bar 1e-12: the differences are O(1) and are formed
+    // from offsets held exactly.
+    let rows = [
+        ("a1", "b1", ["100000001.1", "100000001.3", "100000001.2"]),
+        ("a1", "b2", ["100000001.5", "100000001.7", "100000001.9"]),
+        ("a2", "b1", ["100000000.8", "100000000.9", "100000001.0"]),
+        ("a2", "b2", ["100000001.4", "100000001.4", "100000001.7"]),
+    ];
+    let tenths = [
+        ("a1 × b1", 12),
+        ("a1 × b2", 17),
+        ("a2 × b1", 9),
+        ("a2 × b2", 15),
+    ];
+    let mut csv = String::from("a,b,y\n");
+    for (a, b, ys) in rows {
+        for y in ys {
+            csv.push_str(&format!("{a},{b},{y}\n"));
+        }
+    }
+    struct Raw(String);
+    impl World for Raw {
+        fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+            if path == "d.csv" {
+                Ok(self.0.as_bytes().to_vec())
+            } else {
+                Err(std::io::Error::from(std::io::ErrorKind::NotFound))
+            }
+        }
+        fn display(&self, path: &str) -> String {
+            path.to_string()
+        }
+    }
+    let doc = "```anova\nid: t\ndata: d.csv\nmodel: y ~ a * b\ncells: yes\ncompare: tukey\n```\n";
+    let built = compile("report.md", doc.as_bytes(), &Raw(csv), Format::Markdown)
+        .unwrap_or_else(|d| panic!("build failed:\n{d}"));
+    let results: Value = serde_json::from_slice(&built.results).expect("results parse");
+    let family = results["blocks"][0]["comparisons"]
+        .as_array()
+        .expect("families")
+        .iter()
+        .find(|f| f["term"] == "cells")
+        .expect("cells family")
+        .clone();
+    let tenth = |label: &Value| {
+        tenths
+            .iter()
+            .find(|(l, _)| label == *l)
+            .unwrap_or_else(|| panic!("label {label}"))
+            .1
+    };
+    let pairs = family["pairs"].as_array().expect("pairs");
+    assert_eq!(pairs.len(), 6);
+    for p in pairs {
+        let exact = f64::from(tenth(&p["a"]) - tenth(&p["b"])) / 10.0;
+        let got = num(&p["diff"]);
+        assert!(
+            (got - exact).abs() < 1e-12,
+            "{} − {}: {got} vs {exact}",
+            p["a"],
+            p["b"]
+        );
+    }
+}
