@@ -19,7 +19,7 @@ use crate::stats::assumptions::{
 };
 use crate::stats::compare::{LevelMean, Method, Pair, pairwise};
 use crate::stats::dist::t_isf;
-use crate::stats::dunnett::{Sides, dunnett};
+use crate::stats::dunnett::{DUNNETT_MIN_ALPHA, Sides, dunnett};
 use crate::stats::effect::{EffectSizes, one_way_effects};
 use crate::stats::effect::{one_way_power, one_way_sample_size};
 use crate::stats::letters::{compact_letters, letter_count};
@@ -1239,6 +1239,15 @@ fn compare_levels(
                     },
                 );
             };
+            if alpha < DUNNETT_MIN_ALPHA {
+                return Err(doc
+                    .error_at(
+                        c.line,
+                        Some(c.column),
+                        format!("Dunnett's critical value is accurate only for alpha of at least {DUNNETT_MIN_ALPHA:e}; alpha here is {alpha:e}"),
+                    )
+                    .hint("its tail is found as 1 − cdf, which cannot resolve a smaller alpha: use a larger alpha, or `compare: tukey`, whose tail is computed directly down to 1e-300"));
+            }
             control = Some(ci);
             let pairs: Vec<(usize, f64)> = summaries.iter().map(|s| (s.n, s.mean)).collect();
             dunnett(&pairs, ci, table.ms_within, nu, alpha, spec.sides)
