@@ -19,9 +19,11 @@ pub enum EffectInput {
         sd: f64,
         /// Each mean less the first, subtracted as exact decimals: means
         /// near 1e8 parsed as f64 would already have lost the digits that
-        /// separate them (see `data::decimal`).
+        /// separate them (see `data::decimal`). Boxed: the block result
+        /// that holds this stays small.
         #[serde(skip)]
-        deviations: Vec<f64>,
+        #[allow(clippy::box_collection)]
+        deviations: Option<Box<Vec<f64>>>,
     },
 }
 
@@ -58,10 +60,9 @@ impl EffectInput {
             } => {
                 // f is invariant to a common shift; the exact deviations
                 // keep it exact wherever the means were plain decimals.
-                let values = if deviations.len() == means.len() {
-                    deviations
-                } else {
-                    means
+                let values = match deviations {
+                    Some(d) if d.len() == means.len() => d,
+                    _ => means,
                 };
                 let k = values.len() as f64;
                 let m = values.iter().sum::<f64>() / k;
@@ -136,7 +137,7 @@ fn parse_effect(e: &Entry) -> Result<EffectInput, SpecError> {
         if means.len() < 2 {
             return Err(bad(e, "give at least two expected means".into(), hint));
         }
-        let deviations = exact_deviations(means_text).unwrap_or_default();
+        let deviations = exact_deviations(means_text).map(Box::new);
         return Ok(EffectInput::Means {
             means,
             sd,

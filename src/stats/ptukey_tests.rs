@@ -113,3 +113,26 @@ fn the_direct_tail_with_two_means_matches_t_far_out() {
     }
     eprintln!("worst relative error {worst:e}");
 }
+
+#[test]
+fn the_direct_tail_meets_one_minus_cdf_where_both_hold() {
+    // Reference: 1 − cdf from the separate cdf integral (its own split, the
+    // normal table, absolute error below 1e-12 against mpmath), at q where
+    // p is near 5e-3: there that is under 2e-10 relative, so the two
+    // integrals must agree to 1e-9 relative over k = 3..100, ν = 2..∞.
+    let mut worst: f64 = 0.0;
+    for &k in &[3usize, 5, 10, 20, 50, 100] {
+        for &df in &[2.0, 5.0, 24.0, 120.0, 1e4, f64::INFINITY] {
+            let q = qtukey_isf(5e-3, k, df);
+            let direct = direct_ln_sf(q, k, df).exp();
+            let complement = 1.0 - ptukey_cdf(q, k, df);
+            let rel = (direct / complement - 1.0).abs();
+            worst = worst.max(rel);
+            assert!(
+                rel < 1e-9,
+                "k {k} ν {df} q {q}: {direct:e} vs {complement:e}"
+            );
+        }
+    }
+    eprintln!("worst relative difference {worst:e}");
+}
