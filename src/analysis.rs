@@ -4,6 +4,7 @@
 
 pub mod factorial;
 
+use crate::data::decimal::Number;
 use crate::data::scan::{
     CHUNK_BYTES, ScanSpec, Scanned, ScannedLevel, Source, scan_file, scan_table,
 };
@@ -18,7 +19,7 @@ use crate::stats::assumptions::{
 };
 use crate::stats::compare::{LevelMean, Method, Pair, pairwise};
 use crate::stats::dist::t_isf;
-use crate::stats::dunnett::{Sides, dunnett};
+use crate::stats::dunnett::{DUNNETT_MIN_ALPHA, Sides, dunnett};
 use crate::stats::effect::{EffectSizes, one_way_effects};
 use crate::stats::effect::{one_way_power, one_way_sample_size};
 use crate::stats::letters::{compact_letters, letter_count};
@@ -744,7 +745,21 @@ fn load_summary(
             spread
         }
     };
-    let origin = rows[order[0]].mean;
+    // Means relative to the first one, subtracted as exact decimals (as the
+    // raw path subtracts its origin): parsed as f64, means near 1e8 would
+    // already have lost their last digits (METHODS 2.2).
+    let origin_exact = rows[order[0]].mean_exact;
+    let origin = origin_exact.to_f64();
+    let offsets: Vec<f64> = rows
+        .iter()
+        .map(|r| {
+            match (r.mean_exact, origin_exact) {
+                (Number::Exact(mean), Number::Exact(first)) => mean.minus(first),
+                _ => None,
+            }
+            .unwrap_or(r.mean - origin)
+        })
+        .collect();
     let summaries_at = |shift_mean: &dyn Fn(usize) -> f64, shift_sd: f64| -> Vec<GroupSummary> {
         order
             .iter()
@@ -753,7 +768,7 @@ fn load_summary(
                 let sd = (to_sd(r, r.spread) + shift_sd * to_sd(r, r.spread_half_unit)).max(0.0);
                 GroupSummary {
                     n: r.n,
-                    mean: r.mean - origin + shift_mean(i),
+                    mean: offsets[i] + shift_mean(i),
                     ss: (r.n as f64 - 1.0) * sd * sd,
                 }
             })
@@ -767,7 +782,7 @@ fn load_summary(
     let grand = summaries.iter().map(|s| s.n as f64 * s.mean).sum::<f64>() / n_total;
     let away = |i: usize| {
         let r = &rows[i];
-        if r.mean - origin >= grand {
+        if offsets[i] >= grand {
             r.mean_half_unit
         } else {
             -r.mean_half_unit
@@ -775,7 +790,7 @@ fn load_summary(
     };
     let toward = |i: usize| {
         let r = &rows[i];
-        let d = r.mean - origin - grand;
+        let d = offsets[i] - grand;
         -d.signum() * r.mean_half_unit.min(d.abs())
     };
     let f_of = |g: &[GroupSummary]| {
@@ -1412,6 +1427,15 @@ fn compare_levels(
                     },
                 );
             };
+            if alpha < DUNNETT_MIN_ALPHA {
+                return Err(doc
+                    .error_at(
+                        c.line,
+                        Some(c.column),
+                        format!("Dunnett's critical value is accurate only for alpha of at least {DUNNETT_MIN_ALPHA:e}; alpha here is {alpha:e}"),
+                    )
+                    .hint("its tail is found as 1 − cdf, which cannot resolve a smaller alpha: use a larger alpha, or `compare: tukey`, whose tail is computed directly down to 1e-300"));
+            }
             control = Some(ci);
             let pairs: Vec<(usize, f64)> = summaries.iter().map(|s| (s.n, s.mean)).collect();
             dunnett(&pairs, ci, table.ms_within, nu, alpha, spec.sides)

@@ -285,7 +285,7 @@ pub struct PowerPointRecord {
 /// The record of one `power` block.
 pub fn power_record(r: &PowerResult) -> PowerRecord {
     let (means, sd) = match &r.effect {
-        EffectInput::Means { means, sd } => (Some(means.clone()), Some(*sd)),
+        EffectInput::Means { means, sd, .. } => (Some(means.clone()), Some(*sd)),
         EffectInput::CohensF(_) => (None, None),
     };
     PowerRecord {

@@ -14,7 +14,7 @@ use crate::stats::dunnett::{Sides, dunnett};
 use crate::stats::effect::one_way_sample_size;
 use crate::stats::linear::{Layout, SsType, design_matrix, sums_of_squares, term_columns};
 use crate::stats::oneway::{GroupSummary, one_way, total_sum_of_squares};
-use crate::stats::ptukey::{ptukey_cdf, qtukey_isf};
+use crate::stats::ptukey::{ptukey_cdf, ptukey_sf, qtukey_isf};
 use crate::stats::ranks::kruskal_wallis;
 use crate::stats::welch::welch_anova;
 use serde::Serialize;
@@ -240,6 +240,7 @@ const NIST: [(&str, &str); 11] = [
 const NIST_CERTIFIED: &str = include_str!("../tests/data/nist/certified.json");
 const DISTRIBUTIONS: &str = include_str!("../tests/reference/distributions.json");
 const PTUKEY_MPMATH: &str = include_str!("../tests/reference/ptukey_mpmath.json");
+const PTUKEY_TAIL_MPMATH: &str = include_str!("../tests/reference/ptukey_tail_mpmath.json");
 const ONEWAY: &str = include_str!("../tests/reference/oneway.json");
 const ROBUST: &str = include_str!("../tests/reference/robust.json");
 const FACTORIAL: &str = include_str!("../tests/reference/factorial.json");
@@ -411,6 +412,26 @@ fn distributions(checks: &mut Vec<Check>) {
     for r in fx["ptukey_cdf"].as_array().into_iter().flatten() {
         let mpmath = "mpmath quadrature at 20 digits";
         checks.push(ptukey_check(r, mpmath, Bar::MaxAbs { diff: 1e-11 }));
+    }
+    let fx: Value = serde_json::from_str(PTUKEY_TAIL_MPMATH).unwrap_or(Value::Null);
+    for r in fx["ptukey_sf"].as_array().into_iter().flatten() {
+        let k = r["k"].as_u64().unwrap_or(2) as usize;
+        let df = r["df"].as_f64().unwrap_or(f64::INFINITY);
+        let want: f64 = r["sf"]
+            .as_str()
+            .and_then(|t| t.parse().ok())
+            .unwrap_or(f64::NAN);
+        checks.push(Check::new(
+            Area::StudentizedRange,
+            format!(
+                "studentized range upper tail, q = {}, k = {k}, df = {}",
+                r["q"], r["df"]
+            ),
+            "mpmath quadrature at 30 digits",
+            ptukey_sf(num(&r["q"]), k, df),
+            want,
+            Bar::MinLre { lre: 9.0 },
+        ));
     }
 }
 

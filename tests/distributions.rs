@@ -4,7 +4,7 @@
 
 use serde_json::Value;
 use sheaf::stats::dist::{f_isf, f_sf, t_isf, t_sf};
-use sheaf::stats::ptukey::{ptukey_cdf, qtukey_isf};
+use sheaf::stats::ptukey::{ptukey_cdf, ptukey_sf, qtukey_isf};
 
 fn fixture() -> Value {
     let text = include_str!("reference/distributions.json");
@@ -196,4 +196,57 @@ fn studentized_range_with_two_means_at_huge_df_is_the_t_identity() {
             assert!((got - want).abs() < 1e-9, "q {q} df {df}: {got} vs {want}");
         }
     }
+}
+
+/// The far-tail points of tests/reference/ptukey_tail_mpmath.json as
+/// (q, k, ν, sf); ν = ∞ is written "inf".
+fn tail_points() -> Vec<(f64, usize, f64, f64)> {
+    let fx: Value =
+        serde_json::from_str(include_str!("reference/ptukey_tail_mpmath.json")).expect("fixture");
+    rows(&fx, "ptukey_sf")
+        .iter()
+        .map(|r| {
+            let df = r["df"].as_f64().unwrap_or(f64::INFINITY);
+            let sf: f64 = r["sf"].as_str().expect("digits").parse().expect("number");
+            (f(r, "q"), r["k"].as_u64().expect("k") as usize, df, sf)
+        })
+        .collect()
+}
+
+#[test]
+fn studentized_range_tail_matches_mpmath_down_to_1e_minus_300() {
+    // Source: tests/reference/ptukey_tail_mpmath.py, the range's upper tail
+    // integrated over the chi scale by mpmath at 30 digits, p from 4e-5 to
+    // 1.5e-295 (k = 2 to 100, ν = 7.5 to 120). Bar 1e-9 relative (issue contract
+    // and METHODS 2.1); 1 − cdf missed it by orders of magnitude here.
+    let mut worst: f64 = 0.0;
+    for (q, k, df, want) in tail_points() {
+        let got = ptukey_sf(q, k, df);
+        let rel = (got / want - 1.0).abs();
+        worst = worst.max(rel);
+        assert!(
+            rel < 1e-9,
+            "q {q} k {k} ν {df}: {got:e} vs {want:e} ({rel:.1e})"
+        );
+    }
+    println!("worst relative error against mpmath: {worst:.1e}");
+}
+
+#[test]
+fn studentized_range_quantiles_invert_the_far_tail() {
+    // Source: the same mpmath points read backwards: the critical value at
+    // α = P(Q > q) is q. Bar 1e-9 relative: the root is searched to 1e-11 and
+    // the tail is within 1e-9 relative, which moves q by much less.
+    for (q, k, df, alpha) in tail_points() {
+        let got = qtukey_isf(alpha, k, df);
+        assert!(
+            (got / q - 1.0).abs() < 1e-9,
+            "α {alpha:e} k {k} ν {df}: {got} vs {q}"
+        );
+    }
+    // Source: scipy.stats.studentized_range.isf(1e-10, 4, 24) = 16.7157, as
+    // quoted to four decimals in the issue report (the 1 − cdf root gave
+    // 16.7139, and stopped at 22.28 for every α ≤ 1e-15).
+    let q = qtukey_isf(1e-10, 4, 24.0);
+    assert!((q - 16.7157).abs() < 5e-5, "{q}");
 }

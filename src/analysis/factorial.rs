@@ -60,6 +60,11 @@ pub struct CellRow {
     pub n: usize,
     pub mean: f64,
     pub sd: f64,
+    /// The mean less the data's origin, as computed from the offsets: cell
+    /// contrasts taken from `mean` would carry the rounding of the origin's
+    /// magnitude (1e-8 near 1e8).
+    #[serde(skip)]
+    pub offset: f64,
 }
 
 /// An estimated marginal (or cell) mean.
@@ -573,6 +578,7 @@ pub fn run_factorial(
                 n: s.n,
                 mean: data.origin + s.mean,
                 sd: s.variance().sqrt(),
+                offset: s.mean,
             }
         })
         .collect();
@@ -889,7 +895,7 @@ pub fn run_factorial(
                     }
                 })
                 .collect();
-            let offsets: Vec<f64> = present.iter().map(|c| c.mean - data.origin).collect();
+            let offsets: Vec<f64> = present.iter().map(|c| c.offset).collect();
             let fam = pairwise_with_se(
                 &offsets,
                 |a, bb| (mse * (1.0 / present[a].n as f64 + 1.0 / present[bb].n as f64)).sqrt(),

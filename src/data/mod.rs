@@ -7,7 +7,7 @@ pub mod decimal;
 pub mod scan;
 pub mod spreadsheet;
 
-use decimal::parse_number;
+use decimal::{Number, parse_number};
 
 /// How a CSV file is written.
 #[derive(Debug, Clone, PartialEq)]
@@ -252,6 +252,9 @@ pub struct SummaryRow {
     pub level: String,
     pub n: usize,
     pub mean: f64,
+    /// The mean as written: exact when a plain decimal, so that means near
+    /// 1e8 keep the digits that separate them (see `decimal`).
+    pub mean_exact: Number,
     pub spread: f64,
     /// Half a unit in the last printed digit of the mean and of the spread.
     pub mean_half_unit: f64,
@@ -271,7 +274,7 @@ pub fn summary_rows(
     let ni = table.column(&columns.n)?;
     let mi = table.column(&columns.mean)?;
     let si = table.column(&columns.spread)?;
-    let read = |row: &csv::Record, i: usize, what: &str| -> Result<(f64, u32), DataError> {
+    let read = |row: &csv::Record, i: usize, what: &str| -> Result<Number, DataError> {
         let raw = row.fields[i].trim();
         let text = if format.decimal_comma {
             raw.replace(',', ".")
@@ -286,7 +289,7 @@ pub fn summary_rows(
                 message: format!("the {what} must be a number, found `{raw}`"),
                 hint: Some("a summary table needs a value in every cell: one row per level".into()),
             })?;
-        Ok((number.to_f64(), number.decimals()))
+        Ok(number)
     };
     let mut rows: Vec<SummaryRow> = Vec::with_capacity(table.rows.len());
     for row in &table.rows {
@@ -306,7 +309,7 @@ pub fn summary_rows(
                 )),
             );
         }
-        let (n, _) = read(row, ni, "n")?;
+        let n = read(row, ni, "n")?.to_f64();
         if n.fract() != 0.0 || n < 1.0 {
             return Err(DataError {
                 column: Some(ni + 1),
@@ -319,8 +322,10 @@ pub fn summary_rows(
                 )
             });
         }
-        let (mean, mean_decimals) = read(row, mi, "mean")?;
-        let (spread, spread_decimals) = read(row, si, "spread (SD or SE)")?;
+        let mean_exact = read(row, mi, "mean")?;
+        let (mean, mean_decimals) = (mean_exact.to_f64(), mean_exact.decimals());
+        let spread_number = read(row, si, "spread (SD or SE)")?;
+        let (spread, spread_decimals) = (spread_number.to_f64(), spread_number.decimals());
         if spread < 0.0 {
             return Err(DataError {
                 column: Some(si + 1),
@@ -331,6 +336,7 @@ pub fn summary_rows(
             level,
             n: n as usize,
             mean,
+            mean_exact,
             spread,
             mean_half_unit: 0.5 * 10f64.powi(-(mean_decimals as i32)),
             spread_half_unit: 0.5 * 10f64.powi(-(spread_decimals as i32)),

@@ -4,6 +4,7 @@
 
 use super::block::{Located, SpecError, parse_alpha};
 use super::keyvalue::Entry;
+use crate::data::decimal::{Decimal, Number, parse_number};
 
 /// Every key a `power` block accepts.
 pub const POWER_KEYS: [&str; 7] = ["id", "groups", "effect", "alpha", "power", "n", "caption"];
@@ -16,6 +17,13 @@ pub enum EffectInput {
     Means {
         means: Vec<f64>,
         sd: f64,
+        /// Each mean less the first, subtracted as exact decimals: means
+        /// near 1e8 parsed as f64 would already have lost the digits that
+        /// separate them (see `data::decimal`). Boxed: the block result
+        /// that holds this stays small.
+        #[serde(skip)]
+        #[allow(clippy::box_collection)]
+        deviations: Option<Box<Vec<f64>>>,
     },
 }
 
@@ -45,10 +53,20 @@ impl EffectInput {
     pub fn cohens_f(&self) -> f64 {
         match self {
             EffectInput::CohensF(f) => *f,
-            EffectInput::Means { means, sd } => {
-                let k = means.len() as f64;
-                let m = means.iter().sum::<f64>() / k;
-                (means.iter().map(|x| (x - m) * (x - m)).sum::<f64>() / k).sqrt() / sd
+            EffectInput::Means {
+                means,
+                sd,
+                deviations,
+            } => {
+                // f is invariant to a common shift; the exact deviations
+                // keep it exact wherever the means were plain decimals.
+                let values = match deviations {
+                    Some(d) if d.len() == means.len() => d,
+                    _ => means,
+                };
+                let k = values.len() as f64;
+                let m = values.iter().sum::<f64>() / k;
+                (values.iter().map(|x| (x - m) * (x - m)).sum::<f64>() / k).sqrt() / sd
             }
         }
     }
@@ -65,6 +83,21 @@ fn bad(e: &Entry, message: String, hint: &str) -> SpecError {
 
 fn number(text: &str) -> Option<f64> {
     text.trim().parse::<f64>().ok().filter(|v| v.is_finite())
+}
+
+/// Each listed mean less the first, exact before the final rounding; `None`
+/// unless every mean is a plain decimal.
+fn exact_deviations(means_text: &str) -> Option<Vec<f64>> {
+    let exact: Option<Vec<Decimal>> = means_text
+        .split(',')
+        .map(|t| match parse_number(t) {
+            Some(Number::Exact(d)) => Some(d),
+            _ => None,
+        })
+        .collect();
+    let exact = exact?;
+    let first = *exact.first()?;
+    exact.iter().map(|d| d.minus(first)).collect()
 }
 
 /// Reads `f = 0.25`, `0.25`, or `means = 20, 22, 23, 25 and sd = 3`.
@@ -104,7 +137,12 @@ fn parse_effect(e: &Entry) -> Result<EffectInput, SpecError> {
         if means.len() < 2 {
             return Err(bad(e, "give at least two expected means".into(), hint));
         }
-        return Ok(EffectInput::Means { means, sd });
+        let deviations = exact_deviations(means_text).map(Box::new);
+        return Ok(EffectInput::Means {
+            means,
+            sd,
+            deviations,
+        });
     }
     let f_text = after("f").unwrap_or(v);
     match number(f_text) {

@@ -244,7 +244,7 @@ pub fn power_view(r: &PowerResult, next_table: &mut usize) -> BlockView {
     let mut numbers = Numbering(next_table);
     let effect = match &r.effect {
         crate::doc::power::EffectInput::CohensF(f) => format!("Cohen's f = {}", significant(*f, 3)),
-        crate::doc::power::EffectInput::Means { means, sd } => format!(
+        crate::doc::power::EffectInput::Means { means, sd, .. } => format!(
             "expected means {} with a common SD of {} (Cohen's f = {})",
             means
                 .iter()

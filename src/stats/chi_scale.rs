@@ -7,6 +7,7 @@
 //! a cap on their width in t keeps a steep f resolved too.
 
 use super::quadrature::gauss_legendre_16;
+use super::range_tail::{integrate_bump, maximise};
 use super::special::ln_gamma;
 
 const LN_2: f64 = std::f64::consts::LN_2;
@@ -128,4 +129,39 @@ pub fn chi_scale_expectation(df: f64, means: usize, f: impl Fn(f64) -> f64) -> f
         right = left;
     }
     total.clamp(0.0, 1.0)
+}
+
+/// ln E[f(s)] for s = √(χ²_ν/ν), given ln f for a non-increasing f (a
+/// survival probability), keeping its relative accuracy however small the
+/// expectation is. ν = ∞ gives ln f(1).
+///
+/// The integrand in t = ln s, ln g(t) + ln f(eᵗ), is a single bump: ln g
+/// rises at rate ν to its mode at t = 0 and ln f falls, so its peak lies at or
+/// left of 0 (far left when f is a far tail and ν small, where the tail of
+/// s near 0 dominates). It is integrated around that peak, scaled to one
+/// there, on panels as wide as the peak (its log curves by about
+/// 2ν·e^{2t} + `curvature`(t) there, `curvature` being ln f's own bend).
+pub fn chi_scale_ln_tail_expectation(
+    df: f64,
+    ln_f: impl Fn(f64) -> f64,
+    curvature: impl Fn(f64) -> f64,
+    start: f64,
+) -> f64 {
+    if df.is_infinite() {
+        return ln_f(1.0);
+    }
+    let mode = ln_density_at_mode(df);
+    let ln_integrand = |t: f64| mode - 0.5 * df * exp_m1_minus_x(2.0 * t) + ln_f(t.exp());
+    let top = maximise(ln_integrand, start.min(-1.0) - 1.0, 0.25);
+    let height = ln_integrand(top);
+    let bend = 2.0 * df * (2.0 * top).exp() + curvature(top);
+    let width = (1.0 / bend.sqrt()).min(0.5);
+    let total = integrate_bump(
+        |t| (ln_integrand(t) - height).exp(),
+        ln_integrand,
+        height,
+        top,
+        width,
+    );
+    height + total.ln()
 }

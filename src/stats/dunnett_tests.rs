@@ -78,3 +78,30 @@ fn one_treatment_is_the_t_test() {
     assert!((fam.critical - crate::stats::dist::t_isf(0.025, 10.0)).abs() < 1e-8);
     assert!((fam.pairs[0].p_adj - 2.0 * t_sf(t.abs(), 10.0)).abs() < 1e-15);
 }
+
+#[test]
+fn one_treatment_gives_the_t_quantile_down_to_the_smallest_alpha() {
+    // Source: with m = 1 Dunnett's statistic is Student's t (METHODS 3.10),
+    // so the two-sided critical value is t_{1−α/2; ν}. Bar 2e-9 relative:
+    // what the root on cdf = 1 − α reaches at DUNNETT_MIN_ALPHA. The search bracket once stopped at d = 50, so ν = 3 at
+    // small α gave no value at all. (At ν = 1 the cdf's outer integral does
+    // not reach α = 1e-3; the README lists this limit.)
+    for &df in &[3.0, 10.0, 30.0] {
+        for &alpha in &[0.05, 1e-3, 1e-4, DUNNETT_MIN_ALPHA] {
+            let d = dunnett(&[(5, 0.0), (5, 1.0)], 0, 1.0, df, alpha, Sides::Two).critical;
+            let t = crate::stats::dist::t_isf(alpha / 2.0, df);
+            assert!((d / t - 1.0).abs() < 2e-9, "ν {df} α {alpha}: {d} vs {t}");
+        }
+    }
+    // Many treatments at ν = 1: Bonferroni puts the value above 50.
+    let levels: Vec<(usize, f64)> = (0..6).map(|i| (3, i as f64)).collect();
+    let d = dunnett(&levels, 0, 1.0, 1.0, 0.05, Sides::Two).critical;
+    let (floor, ceiling) = (
+        crate::stats::dist::t_isf(0.025, 1.0),
+        crate::stats::dist::t_isf(0.005, 1.0),
+    );
+    assert!(
+        d > floor && d < ceiling,
+        "{d} not within ({floor}, {ceiling})"
+    );
+}

@@ -13,6 +13,7 @@ pub mod normal_table;
 pub mod oneway;
 pub mod ptukey;
 pub mod quadrature;
+pub mod range_tail;
 pub mod ranks;
 pub mod roots;
 pub mod special;
