@@ -4,6 +4,7 @@
 
 pub mod csv;
 pub mod decimal;
+pub mod levels;
 pub mod scan;
 pub mod spreadsheet;
 
