@@ -333,9 +333,9 @@ fn data_error(
         }
         .map_or_else(|| "the first sheet".to_string(), |s| format!("sheet `{s}`"));
         let place = match (e.line, e.column) {
-            (Some(row), Some(column)) => format!(
-                "{display_path}, {sheet}, row {row}, column {column} of the table"
-            ),
+            (Some(row), Some(column)) => {
+                format!("{display_path}, {sheet}, row {row}, column {column} of the table")
+            }
             (Some(row), None) => format!("{display_path}, {sheet}, row {row}"),
             _ => display_path.to_string(),
         };
@@ -820,7 +820,10 @@ fn analyse(
         }
     }
     let first_lines: Vec<usize> = match &raw {
-        Some((_, lines)) => lines.iter().map(|l| l.first().copied().unwrap_or(0)).collect(),
+        Some((_, lines)) => lines
+            .iter()
+            .map(|l| l.first().copied().unwrap_or(0))
+            .collect(),
         None => vec![0; names.len()],
     };
     let named: Vec<(&str, usize)> = names.iter().map(String::as_str).zip(first_lines).collect();

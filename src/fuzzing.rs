@@ -86,8 +86,8 @@ pub fn spreadsheet(data: &[u8]) {
 /// its `<sheetData>` element.
 pub fn minimal_workbook(sheet_data: &str) -> Option<Vec<u8>> {
     use std::io::Write;
-    let options = zip::write::SimpleFileOptions::default()
-        .compression_method(zip::CompressionMethod::Stored);
+    let options =
+        zip::write::SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
     let mut zip = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
     let parts = [
         ("xl/workbook.xml", r#"<workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets><sheet name="data" sheetId="1" r:id="rId1"/></sheets></workbook>"#.to_string()),

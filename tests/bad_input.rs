@@ -955,13 +955,37 @@ fn values_beyond_the_analysable_range_are_refused_where_they_stand() {
 #[test]
 fn binary_files_are_named_for_what_they_are() {
     let cases: Vec<(&str, &[u8], &str)> = vec![
-        ("parquet", b"PAR1\x15\x04\x15\x80\x01", "the file is a Parquet file, not CSV text"),
-        ("gzip", b"\x1f\x8b\x08\x00\x00\x00", "the file is gzip-compressed, not CSV text"),
-        ("zip", b"PK\x03\x04\x14\x00\x06\x00", "the file is a zip archive"),
-        ("pdf", b"%PDF-1.7\n%\xe2\xe3\n", "the file is a PDF document"),
-        ("sqlite", b"SQLite format 3\x00\x10\x00", "the file is an SQLite database"),
+        (
+            "parquet",
+            b"PAR1\x15\x04\x15\x80\x01",
+            "the file is a Parquet file, not CSV text",
+        ),
+        (
+            "gzip",
+            b"\x1f\x8b\x08\x00\x00\x00",
+            "the file is gzip-compressed, not CSV text",
+        ),
+        (
+            "zip",
+            b"PK\x03\x04\x14\x00\x06\x00",
+            "the file is a zip archive",
+        ),
+        (
+            "pdf",
+            b"%PDF-1.7\n%\xe2\xe3\n",
+            "the file is a PDF document",
+        ),
+        (
+            "sqlite",
+            b"SQLite format 3\x00\x10\x00",
+            "the file is an SQLite database",
+        ),
         ("utf-16", b"\xff\xfew\x00e\x00", "the file is UTF-16 text"),
-        ("nul in the header", b"weight\x00\x00,group\n1,a\n", "binary data (a NUL byte in the header)"),
+        (
+            "nul in the header",
+            b"weight\x00\x00,group\n1,a\n",
+            "binary data (a NUL byte in the header)",
+        ),
     ];
     for (name, bytes, want) in cases {
         let (code, err) = build_with(&doc_with(GOOD_BLOCK), bytes);
@@ -1016,7 +1040,8 @@ fn only_regular_files_are_read() {
 #[test]
 fn suspicious_levels_are_warned_about() {
     // Case variants of one level.
-    let data = b"weight,group\n4.1,Control\n4.3,Control\n5.2,trt\n5.0,trt\n4.2,control\n4.4,control\n";
+    let data =
+        b"weight,group\n4.1,Control\n4.3,Control\n5.2,trt\n5.0,trt\n4.2,control\n4.4,control\n";
     let (code, err) = build_with(&doc_with(GOOD_BLOCK), data);
     assert_eq!(code, Some(0), "{err}");
     assert!(
@@ -1041,12 +1066,22 @@ fn suspicious_levels_are_warned_about() {
 fn block_labels_reused_within_replicates_are_explained() {
     // Three replicates of three incomplete blocks of two plots, the blocks
     // numbered 1-3 afresh in each replicate (invented data).
-    let layout = [[(1, 2), (3, 4), (5, 6)], [(1, 3), (2, 5), (4, 6)], [(1, 4), (2, 6), (3, 5)]];
+    let layout = [
+        [(1, 2), (3, 4), (5, 6)],
+        [(1, 3), (2, 5), (4, 6)],
+        [(1, 4), (2, 6), (3, 5)],
+    ];
     let mut data = String::from("rep,iblock,trt,y\n");
     for (r, blocks) in layout.iter().enumerate() {
         for (b, (t1, t2)) in blocks.iter().enumerate() {
             for (k, t) in [t1, t2].iter().enumerate() {
-                data.push_str(&format!("{},{},t{t},{}.{}\n", r + 1, b + 1, 10 + *t, (r + b + k) % 10));
+                data.push_str(&format!(
+                    "{},{},t{t},{}.{}\n",
+                    r + 1,
+                    b + 1,
+                    10 + *t,
+                    (r + b + k) % 10
+                ));
             }
         }
     }
@@ -1054,8 +1089,9 @@ fn block_labels_reused_within_replicates_are_explained() {
     let (code, err) = build_with(doc, data.as_bytes());
     assert_eq!(code, Some(0), "{err}");
     assert!(
-        err.contains("every level of `iblock` occurs in every level of `rep`, with several plots each")
-            && err.contains("Write the nested term `rep:iblock`"),
+        err.contains(
+            "every level of `iblock` occurs in every level of `rep`, with several plots each"
+        ) && err.contains("Write the nested term `rep:iblock`"),
         "{err}"
     );
     // With the nested term written, nothing to say.
@@ -1084,5 +1120,8 @@ fn partly_unreplicated_cells_are_described_as_they_are() {
         err.contains("1 of the 6 treatment cells hold a single observation"),
         "{err}"
     );
-    assert!(!err.contains("With one observation per treatment cell"), "{err}");
+    assert!(
+        !err.contains("With one observation per treatment cell"),
+        "{err}"
+    );
 }

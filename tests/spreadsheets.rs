@@ -50,7 +50,10 @@ fn xlsx_and_ods_match_the_csv() {
         err.message
     );
     let place = err.place.expect("a place").file;
-    assert!(place.ends_with("sheet `weights`, row 4, column 3 of the table"), "{place}");
+    assert!(
+        place.ends_with("sheet `weights`, row 4, column 3 of the table"),
+        "{place}"
+    );
 }
 
 #[test]
@@ -78,7 +81,9 @@ fn a_missing_sheet_is_named_with_the_choices() {
 /// `<si>` entries are written by `strings` in pieces (so that a huge part
 /// never sits in memory). Built here with the zip crate, so the hostile
 /// cases need no committed binaries.
-fn workbook(sheet_data: &str, strings: Option<&dyn Fn(&mut dyn std::io::Write)>) -> Vec<u8> {
+type WriteStrings<'a> = &'a dyn Fn(&mut dyn std::io::Write);
+
+fn workbook(sheet_data: &str, strings: Option<WriteStrings<'_>>) -> Vec<u8> {
     use std::io::Write;
     use zip::write::SimpleFileOptions;
     let mut zip = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
@@ -147,7 +152,7 @@ fn plant_rows(top: usize) -> String {
 }
 
 /// Builds a document reading `book.xlsx` with `keys`; the error, if any.
-fn build_workbook(book: &[u8], keys: &str) -> Result<Value, sheaf::diag::Diagnostic> {
+fn build_workbook(book: &[u8], keys: &str) -> Result<Value, Box<sheaf::diag::Diagnostic>> {
     let dir = tempfile::tempdir().expect("temp dir");
     std::fs::write(dir.path().join("book.xlsx"), book).expect("write");
     let doc = format!("```anova\nid: t\ndata: book.xlsx\n{keys}model: weight ~ group\n```\n");
@@ -160,12 +165,13 @@ fn build_workbook(book: &[u8], keys: &str) -> Result<Value, sheaf::diag::Diagnos
         Format::Markdown,
     )
     .map(|built| serde_json::from_slice(&built.results).expect("json"))
+    .map_err(Box::new)
 }
 
 fn refused(book: &[u8], keys: &str) -> sheaf::diag::Diagnostic {
     match build_workbook(book, keys) {
         Ok(_) => panic!("expected a refusal for {keys:?}"),
-        Err(d) => d,
+        Err(d) => *d,
     }
 }
 
@@ -173,17 +179,26 @@ fn refused(book: &[u8], keys: &str) -> sheaf::diag::Diagnostic {
 fn the_built_workbook_reads_like_the_csv_it_holds() {
     // The hostile cases below start from this workbook; it must read.
     let results = build_workbook(&workbook(&plant_rows(1), None), "").expect("reads");
-    assert_eq!(results["blocks"][0]["groups"].as_array().map(Vec::len), Some(2));
+    assert_eq!(
+        results["blocks"][0]["groups"].as_array().map(Vec::len),
+        Some(2)
+    );
 }
 
 #[test]
 fn a_stray_cell_at_the_last_row_and_column_is_refused_before_allocating() {
     // The used area would be A1:XFD1048576, 17 billion cells (calamine lays
     // it out densely: hundreds of GB). Refused from the sparse cells.
-    let sheet = format!("{}<row r=\"1048576\">{}</row>", plant_rows(1), number_cell("XFD1048576", "1"));
+    let sheet = format!(
+        "{}<row r=\"1048576\">{}</row>",
+        plant_rows(1),
+        number_cell("XFD1048576", "1")
+    );
     let d = refused(&workbook(&sheet, None), "");
     assert!(
-        d.message.contains("the used area A1:XFD1048576 of sheet `data` spans 1048576 rows × 16384 columns"),
+        d.message.contains(
+            "the used area A1:XFD1048576 of sheet `data` spans 1048576 rows × 16384 columns"
+        ),
         "{d}"
     );
     assert!(d.hints.iter().any(|h| h.contains("range:")), "{d}");
@@ -195,8 +210,14 @@ fn a_stray_cell_at_the_last_row_and_column_is_refused_before_allocating() {
 fn huge_or_impossible_ranges_are_refused_with_the_sheet() {
     let book = workbook(&plant_rows(1), None);
     for (range, want) in [
-        ("A1:XFD1048576", "the range A1:XFD1048576 of sheet `data` spans 1048576 rows × 16384 columns"),
-        ("A1:ZZZ99999999", "reaches beyond the last cell a sheet can have"),
+        (
+            "A1:XFD1048576",
+            "the range A1:XFD1048576 of sheet `data` spans 1048576 rows × 16384 columns",
+        ),
+        (
+            "A1:ZZZ99999999",
+            "reaches beyond the last cell a sheet can have",
+        ),
         ("B2:A1", "runs backwards"),
     ] {
         let d = refused(&book, &format!("range: {range}\n"));
@@ -207,7 +228,7 @@ fn huge_or_impossible_ranges_are_refused_with_the_sheet() {
 #[test]
 fn shared_strings_that_unpack_beyond_the_limit_are_refused() {
     // 300 MiB of one repeated string compress to well under 1 MiB.
-    let write: &dyn Fn(&mut dyn std::io::Write) = &|w| {
+    let write: WriteStrings<'_> = &|w| {
         let piece = format!("<si><t>{}</t></si>", "a".repeat(1 << 20));
         for _ in 0..300 {
             w.write_all(piece.as_bytes()).expect("write");
@@ -217,7 +238,8 @@ fn shared_strings_that_unpack_beyond_the_limit_are_refused() {
     assert!(book.len() < 4 << 20, "{} bytes", book.len());
     let d = refused(&book, "");
     assert!(
-        d.message.contains("the workbook unpacks to more than 256 MiB")
+        d.message
+            .contains("the workbook unpacks to more than 256 MiB")
             && d.message.contains("xl/sharedStrings.xml"),
         "{d}"
     );
@@ -236,10 +258,14 @@ fn formula_errors_and_unstored_results_name_their_cell() {
         d.message == "cell A4 of sheet `data` holds the formula error `#DIV/0!`, not a value",
         "{d}"
     );
-    assert!(d.hints.iter().any(|h| h.contains("correct the formula")), "{d}");
     assert!(
-        d.place.is_some_and(|p| p.file.ends_with("book.xlsx, the first sheet, row 4, column 1 of the table")),
+        d.hints.iter().any(|h| h.contains("correct the formula")),
+        "{d}"
     );
+    assert!(d.place.is_some_and(|p| {
+        p.file
+            .ends_with("book.xlsx, the first sheet, row 4, column 1 of the table")
+    }),);
     // A formula whose result was never stored (no <v>).
     let sheet = plant_rows(1).replace(&number_cell("A6", "6.5"), r#"<c r="A6"><f>A5*2</f></c>"#);
     let d = refused(&workbook(&sheet, None), "");
@@ -248,11 +274,7 @@ fn formula_errors_and_unstored_results_name_their_cell() {
         "cell A6 of sheet `data` holds a formula whose result was never stored in the file"
     );
     // An error cell in a column the block does not use is no obstacle.
-    let sheet = plant_rows(1).replacen(
-        "</row>",
-        r#"<c r="C1" t="e"><v>#REF!</v></c></row>"#,
-        1,
-    );
+    let sheet = plant_rows(1).replacen("</row>", r#"<c r="C1" t="e"><v>#REF!</v></c></row>"#, 1);
     assert!(build_workbook(&workbook(&sheet, None), "").is_ok());
 }
 
@@ -266,7 +288,9 @@ fn a_header_below_a_title_gets_a_range_hint() {
     let d = refused(&workbook(&sheet, None), "");
     assert!(d.message.contains("no column named `weight`"), "{d}");
     assert!(
-        d.hints.iter().any(|h| h.contains("`weight` stands in row 3") && h.contains("range: A3:")),
+        d.hints
+            .iter()
+            .any(|h| h.contains("`weight` stands in row 3") && h.contains("range: A3:")),
         "{d}"
     );
     assert!(build_workbook(&workbook(&sheet, None), "range: A3:B11\n").is_ok());

@@ -986,7 +986,11 @@ fn make_family(
 /// Spelling variants among each factor's levels, and numeric treatment
 /// factors with many levels for the rows (blocks are often numbered, so
 /// they are not held to the second check).
-fn factor_level_warnings(data: &crate::data::FactorialData, names: &[String], blocks: &[usize]) -> Vec<String> {
+fn factor_level_warnings(
+    data: &crate::data::FactorialData,
+    names: &[String],
+    blocks: &[usize],
+) -> Vec<String> {
     let mut first: Vec<Vec<usize>> = data.levels.iter().map(|l| vec![0; l.len()]).collect();
     for (i, &line) in data.lines.iter().enumerate() {
         for (f, &l) in data.row(i).iter().enumerate() {
@@ -1002,7 +1006,8 @@ fn factor_level_warnings(data: &crate::data::FactorialData, names: &[String], bl
             .map(String::as_str)
             .zip(first[f].iter().copied())
             .collect();
-        let found = crate::data::levels::level_warnings(names[f].as_str(), &named, data.lines.len());
+        let found =
+            crate::data::levels::level_warnings(names[f].as_str(), &named, data.lines.len());
         warnings.extend(
             found
                 .into_iter()
@@ -1025,7 +1030,10 @@ fn reused_block_labels(
 ) -> Option<String> {
     for &outer in blocks {
         for &inner in blocks.iter().filter(|&&b| b != outer) {
-            if terms.iter().any(|t| t.contains(&outer) && t.contains(&inner)) {
+            if terms
+                .iter()
+                .any(|t| t.contains(&outer) && t.contains(&inner))
+            {
                 continue;
             }
             let (a, b) = (data.levels[outer].len(), data.levels[inner].len());

@@ -82,7 +82,12 @@ mod tests {
     fn case_and_spacing_variants_are_named_with_their_lines() {
         let w = level_warnings(
             "group",
-            &[("Control", 2), ("dose A", 3), ("control", 9), ("Dose  a", 11)],
+            &[
+                ("Control", 2),
+                ("dose A", 3),
+                ("control", 9),
+                ("Dose  a", 11),
+            ],
             12,
         );
         assert_eq!(w.len(), 2, "{w:?}");

@@ -97,7 +97,6 @@ pub struct CellProblem {
     pub hint: String,
 }
 
-
 /// The header row: column names and the line it is on.
 #[derive(Debug, Clone)]
 pub(crate) struct Header {

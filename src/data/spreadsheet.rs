@@ -196,9 +196,7 @@ fn sheet_cells(book: &mut Sheets<Cursor<&[u8]>>, name: &str) -> Result<Cells, Da
             let (row, col) = cell.get_position();
             if cells.len() as u64 >= MAX_CELLS {
                 return Err(error(
-                    format!(
-                        "sheet `{name}` has more than {MAX_CELLS} cells with content"
-                    ),
+                    format!("sheet `{name}` has more than {MAX_CELLS} cells with content"),
                     "export the sheet as CSV, which is read in chunks whatever its size",
                 ));
             }
@@ -262,7 +260,9 @@ fn requested_area(r: &str, sheet: &str) -> Result<Area, DataError> {
     }
     if end.0 >= SHEET_ROWS || end.1 >= SHEET_COLUMNS {
         return Err(error(
-            format!("the range `{r}` of sheet `{sheet}` reaches beyond the last cell a sheet can have (XFD1048576)"),
+            format!(
+                "the range `{r}` of sheet `{sheet}` reaches beyond the last cell a sheet can have (XFD1048576)"
+            ),
             "give the cells that hold the table, e.g. `range: A1:D200`",
         ));
     }
@@ -399,7 +399,10 @@ fn lay_out(mut cells: Cells, area: Area, sheet: &str) -> Result<Table, DataError
             line: Some(header_row as usize + 1),
             column: Some(i + 1),
             message: format!("column {} has no name in the header row", i + 1),
-            hint: Some("name every column of the header row, or give the table's cells with `range:`".into()),
+            hint: Some(
+                "name every column of the header row, or give the table's cells with `range:`"
+                    .into(),
+            ),
         });
     }
     let mut rows: Vec<Record> = Vec::new();
@@ -466,7 +469,12 @@ mod tests {
 
     #[test]
     fn cell_names_invert_references() {
-        for (text, row, col) in [("A1", 0, 0), ("Z9", 8, 25), ("AA10", 9, 26), ("XFD1048576", 1_048_575, 16_383)] {
+        for (text, row, col) in [
+            ("A1", 0, 0),
+            ("Z9", 8, 25),
+            ("AA10", 9, 26),
+            ("XFD1048576", 1_048_575, 16_383),
+        ] {
             assert_eq!(super::cell_name(row, col), text);
             assert_eq!(super::cell_ref(text), Some((row as u32, col as u32)));
         }
