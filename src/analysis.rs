@@ -329,7 +329,24 @@ fn data_error(
     display_path: &str,
     e: DataError,
 ) -> Diagnostic {
-    let mut d = Diagnostic::new(e.message).at(display_path, e.line, e.column);
+    let mut d = if crate::data::spreadsheet::is_spreadsheet(display_path) {
+        // A workbook has rows and cells, not lines: name them, with the sheet.
+        let sheet = match &block.spec {
+            crate::doc::BlockSpec::Anova(spec) => spec.sheet.as_deref(),
+            _ => None,
+        }
+        .map_or_else(|| "the first sheet".to_string(), |s| format!("sheet `{s}`"));
+        let place = match (e.line, e.column) {
+            (Some(row), Some(column)) => {
+                format!("{display_path}, {sheet}, row {row}, column {column} of the table")
+            }
+            (Some(row), None) => format!("{display_path}, {sheet}, row {row}"),
+            _ => display_path.to_string(),
+        };
+        Diagnostic::new(e.message).at(&place, None, None)
+    } else {
+        Diagnostic::new(e.message).at(display_path, e.line, e.column)
+    };
     if let Some(h) = e.hint {
         d = d.hint(h);
     }
@@ -869,6 +886,16 @@ fn analyse(
             ));
         }
     }
+    let first_lines: Vec<usize> = match &raw {
+        Some((_, lines)) => lines
+            .iter()
+            .map(|l| l.first().copied().unwrap_or(0))
+            .collect(),
+        None => vec![0; names.len()],
+    };
+    let named: Vec<(&str, usize)> = names.iter().map(String::as_str).zip(first_lines).collect();
+    let rows = summaries.iter().map(|s| s.n).sum();
+    warnings.extend(crate::data::levels::level_warnings(&factor, &named, rows));
     warnings.extend(exclusion_notes(&excluded, data_path));
     if let Some(r) = rounding {
         warnings.push(format!(

@@ -52,6 +52,57 @@ pub fn civil_date(unix_seconds: i64) -> String {
     format!("{year:04}-{month:02}-{day:02}")
 }
 
+/// Most bytes of a file read into memory whole (the document, spreadsheets,
+/// CSV files in wide layout or summary tables); CSV files in long layout
+/// are read in chunks whatever their size.
+pub const MAX_WHOLE_FILE: u64 = 1 << 30;
+
+/// Opens `path` (links resolved) only if it is a regular file: a named pipe
+/// would block forever and a device such as /dev/zero never ends. The type
+/// is checked before opening (opening a pipe already blocks) and again on
+/// the open handle.
+pub fn open_regular(path: &Path) -> std::io::Result<(std::fs::File, u64)> {
+    let not_regular = |m: &std::fs::Metadata| {
+        let what = if m.is_dir() {
+            "it is a folder, not a file"
+        } else {
+            "it is not a regular file (a pipe, socket or device)"
+        };
+        Err(std::io::Error::other(what))
+    };
+    let meta = std::fs::metadata(path)?;
+    if !meta.is_file() {
+        return not_regular(&meta);
+    }
+    let file = std::fs::File::open(path)?;
+    let meta = file.metadata()?;
+    if !meta.is_file() {
+        return not_regular(&meta);
+    }
+    Ok((file, meta.len()))
+}
+
+/// Reads a regular file whole, refusing one larger than `limit` bytes; the
+/// read itself stops past the limit, whatever the size said.
+pub fn read_regular(path: &Path, limit: u64) -> std::io::Result<Vec<u8>> {
+    let (file, size) = open_regular(path)?;
+    let too_large = || {
+        std::io::Error::other(format!(
+            "it is larger than {} MiB, the most sheaf reads whole",
+            limit >> 20
+        ))
+    };
+    if size > limit {
+        return Err(too_large());
+    }
+    let mut bytes = Vec::with_capacity(size as usize);
+    file.take(limit + 1).read_to_end(&mut bytes)?;
+    if bytes.len() as u64 > limit {
+        return Err(too_large());
+    }
+    Ok(bytes)
+}
+
 /// Files on disk, relative to a document's folder.
 pub struct DiskWorld {
     pub base: PathBuf,
@@ -59,20 +110,11 @@ pub struct DiskWorld {
 
 impl World for DiskWorld {
     fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
-        let full = self.base.join(path);
-        if full.is_dir() {
-            return Err(std::io::Error::other("it is a folder, not a file"));
-        }
-        std::fs::read(full)
+        read_regular(&self.base.join(path), MAX_WHOLE_FILE)
     }
 
     fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        let full = self.base.join(path);
-        if full.is_dir() {
-            return Err(std::io::Error::other("it is a folder, not a file"));
-        }
-        let file = std::fs::File::open(full)?;
-        let size = file.metadata()?.len();
+        let (file, size) = open_regular(&self.base.join(path))?;
         Ok((Box::new(file), size))
     }
 
@@ -537,7 +579,7 @@ pub fn build_file(
     confine: bool,
 ) -> Result<Built, Diagnostic> {
     let display = document.display().to_string();
-    let bytes = std::fs::read(document).map_err(|e| {
+    let bytes = read_regular(document, MAX_WHOLE_FILE).map_err(|e| {
         Diagnostic::new(format!("cannot read {display}: {e}"))
             .hint("give the path of a Markdown document")
     })?;

@@ -31,14 +31,74 @@ pub fn document(data: &[u8]) {
 }
 
 /// CSV files: the reader, then a one-factor and a two-factor extraction.
+/// Whatever the values, an accepted response gives finite summaries (values
+/// beyond the analysable range are refused, never turned into inf or NaN),
+/// and the level checks run on the levels found.
 pub fn csv(data: &[u8]) {
     let format = crate::data::CsvFormat::default();
     if let Ok(table) = crate::data::Table::parse(data, &format)
         && let (Some(a), Some(b)) = (table.header.first().cloned(), table.header.get(1).cloned())
     {
-        let _ = crate::data::factor_response(&table, &a, &b, &format);
+        if let Ok(scanned) = crate::data::factor_response(&table, &a, &b, &format) {
+            for level in scanned.levels.iter().filter(|l| l.summary.n > 0) {
+                assert!(
+                    level.summary.mean.is_finite() && level.summary.ss.is_finite(),
+                    "non-finite summary for level {:?}: {:?}",
+                    level.name,
+                    level.summary
+                );
+            }
+            let named: Vec<(&str, usize)> = scanned
+                .levels
+                .iter()
+                .map(|l| (l.name.as_str(), l.lines.first().copied().unwrap_or(0)))
+                .collect();
+            let _ = crate::data::levels::level_warnings(&b, &named, table.rows.len());
+        }
         let _ = crate::data::factorial_response(&table, &a, &[b.as_str()], &format);
     }
+}
+
+/// Workbooks: the bytes as a workbook file, then as the sheet data of a
+/// minimal Office Open XML workbook, with a `range` taken from the first
+/// line. Neither may panic or allocate beyond the documented limits (run
+/// the fuzzer with a memory cap, see DEVELOPERS.md).
+pub fn spreadsheet(data: &[u8]) {
+    use crate::data::spreadsheet::read_sheet;
+    let _ = read_sheet(data, None, None);
+    let Ok(text) = std::str::from_utf8(data) else {
+        return;
+    };
+    let (range, sheet_data) = text.split_once('\n').unwrap_or(("", text));
+    let Some(book) = minimal_workbook(sheet_data) else {
+        return;
+    };
+    let range = (!range.trim().is_empty()).then_some(range.trim());
+    if let Ok(table) = read_sheet(&book, None, range)
+        && let (Some(y), Some(g)) = (table.header.first(), table.header.get(1))
+    {
+        let format = crate::data::CsvFormat::default();
+        let _ = crate::data::factor_response(&table, y, g, &format);
+    }
+}
+
+/// A one-sheet workbook (sheet `data`) around `sheet_data`, the content of
+/// its `<sheetData>` element.
+pub fn minimal_workbook(sheet_data: &str) -> Option<Vec<u8>> {
+    use std::io::Write;
+    let options =
+        zip::write::SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+    let mut zip = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    let parts = [
+        ("xl/workbook.xml", r#"<workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets><sheet name="data" sheetId="1" r:id="rId1"/></sheets></workbook>"#.to_string()),
+        ("xl/_rels/workbook.xml.rels", r#"<Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet1.xml"/></Relationships>"#.to_string()),
+        ("xl/worksheets/sheet1.xml", format!(r#"<worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>{sheet_data}</sheetData></worksheet>"#)),
+    ];
+    for (name, text) in parts {
+        zip.start_file(name, options).ok()?;
+        zip.write_all(text.as_bytes()).ok()?;
+    }
+    Some(zip.finish().ok()?.into_inner())
 }
 
 /// The chunked reader against the whole-table reader (differential): on

@@ -1026,3 +1026,258 @@ fn models_that_would_explode_are_refused() {
         run_case(c);
     }
 }
+
+/// Builds `document` with `data` as plants.csv; the exit code and stderr.
+fn build_with(document: &str, data: &[u8]) -> (Option<i32>, String) {
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("report.md"), document).expect("doc");
+    std::fs::write(dir.path().join("plants.csv"), data).expect("data");
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(dir.path())
+        .args(["build", "report.md", "-o", "out"])
+        .output()
+        .expect("runs");
+    (
+        o.status.code(),
+        String::from_utf8_lossy(&o.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn values_beyond_the_analysable_range_are_refused_where_they_stand() {
+    let many_digits = format!("0.{}", "1234567890".repeat(30));
+    let cases = vec![
+        with_data(
+            case(
+                "magnitude 1e200",
+                doc_with(GOOD_BLOCK),
+                vec![
+                    "`weight` = `1e200` cannot be analysed",
+                    "beyond the range sheaf can analyse",
+                    "plants.csv:2:1",
+                ],
+            ),
+            b"weight,group\n1e200,a\n1e200,a\n2e200,b\n3e200,b\n",
+        ),
+        with_data(
+            case(
+                "magnitude 1e-250",
+                doc_with(GOOD_BLOCK),
+                vec!["beyond the range sheaf can analyse", "plants.csv:2:1"],
+            ),
+            b"weight,group\n1e-250,a\n2e-250,a\n3e-250,b\n4e-250,b\n",
+        ),
+        with_data(
+            case(
+                "a 301-digit integer",
+                doc_with(GOOD_BLOCK),
+                vec!["beyond the range sheaf can analyse", "plants.csv:2:1"],
+            ),
+            format!("weight,group\n1{},a\n2,a\n3,b\n4,b\n", "0".repeat(300)).as_bytes(),
+        ),
+        with_data(
+            case(
+                "three hundred significant digits",
+                doc_with(GOOD_BLOCK),
+                vec!["301 significant digits", "plants.csv:2:1"],
+            ),
+            format!("weight,group\n{many_digits}1,a\n{many_digits}2,a\n{many_digits}3,b\n{many_digits}4,b\n").as_bytes(),
+        ),
+        with_data(
+            case(
+                "summary n of 2^64 - 1",
+                doc_with("data: plants.csv\nmodel: weight ~ group\ninput: summary\n"),
+                vec![
+                    "n = 18446744073709551615 is beyond the 1000000000000 observations",
+                    "plants.csv:2:2",
+                ],
+            ),
+            b"group,n,mean,sd\na,18446744073709551615,1.0,0.5\nb,3,2.0,0.5\n",
+        ),
+        with_data(
+            case(
+                "summary mean of 1e300",
+                doc_with("data: plants.csv\nmodel: weight ~ group\ninput: summary\n"),
+                vec!["the mean `1e300` cannot be analysed", "plants.csv:3:3"],
+            ),
+            b"group,n,mean,sd\na,3,1.0,0.5\nb,3,1e300,0.5\n",
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
+}
+
+#[test]
+fn binary_files_are_named_for_what_they_are() {
+    let cases: Vec<(&str, &[u8], &str)> = vec![
+        (
+            "parquet",
+            b"PAR1\x15\x04\x15\x80\x01",
+            "the file is a Parquet file, not CSV text",
+        ),
+        (
+            "gzip",
+            b"\x1f\x8b\x08\x00\x00\x00",
+            "the file is gzip-compressed, not CSV text",
+        ),
+        (
+            "zip",
+            b"PK\x03\x04\x14\x00\x06\x00",
+            "the file is a zip archive",
+        ),
+        (
+            "pdf",
+            b"%PDF-1.7\n%\xe2\xe3\n",
+            "the file is a PDF document",
+        ),
+        (
+            "sqlite",
+            b"SQLite format 3\x00\x10\x00",
+            "the file is an SQLite database",
+        ),
+        ("utf-16", b"\xff\xfew\x00e\x00", "the file is UTF-16 text"),
+        (
+            "nul in the header",
+            b"weight\x00\x00,group\n1,a\n",
+            "binary data (a NUL byte in the header)",
+        ),
+    ];
+    for (name, bytes, want) in cases {
+        let (code, err) = build_with(&doc_with(GOOD_BLOCK), bytes);
+        assert_eq!(code, Some(1), "{name}: {err}");
+        assert!(err.contains(want), "{name}: expected `{want}` in\n{err}");
+        if name != "utf-16" {
+            assert!(!err.contains("CSV UTF-8"), "{name}: {err}");
+        }
+    }
+}
+
+#[test]
+fn a_wide_header_is_read_in_linear_time() {
+    // 300,000 columns took minutes when each name was compared with every
+    // earlier one; now the header is checked with a set. The build must
+    // get as far as the missing column (no timing asserted).
+    let mut header: Vec<String> = (0..300_000).map(|i| format!("c{i}")).collect();
+    header.push("c17".into());
+    let data = format!("{}\n", header.join(","));
+    let (code, err) = build_with(&doc_with(GOOD_BLOCK), data.as_bytes());
+    assert_eq!(code, Some(1), "{err}");
+    assert!(err.contains("the header names column `c17` twice"), "{err}");
+}
+
+#[cfg(unix)]
+#[test]
+fn only_regular_files_are_read() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let fifo = dir.path().join("pipe.csv");
+    let made = Command::new("mkfifo").arg(&fifo).status();
+    let doc = |path: &str| doc_with(&format!("id: g\ndata: {path}\nmodel: weight ~ group\n"));
+    let mut paths = vec!["/dev/zero".to_string()];
+    if made.is_ok_and(|s| s.success()) {
+        paths.push("pipe.csv".into());
+    }
+    for path in paths {
+        std::fs::write(dir.path().join("report.md"), doc(&path)).expect("doc");
+        let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+            .current_dir(dir.path())
+            .args(["build", "report.md", "-o", "out"])
+            .output()
+            .expect("runs");
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{path}: {err}");
+        assert!(
+            err.contains("it is not a regular file (a pipe, socket or device)"),
+            "{path}: {err}"
+        );
+    }
+}
+
+#[test]
+fn suspicious_levels_are_warned_about() {
+    // Case variants of one level.
+    let data =
+        b"weight,group\n4.1,Control\n4.3,Control\n5.2,trt\n5.0,trt\n4.2,control\n4.4,control\n";
+    let (code, err) = build_with(&doc_with(GOOD_BLOCK), data);
+    assert_eq!(code, Some(0), "{err}");
+    assert!(
+        err.contains("warning: report.md:3 (block `growth`): levels `Control` (first on line 2) and `control` (first on line 6) of `group` differ only in case or spacing"),
+        "{err}"
+    );
+    // A measured covariate (initial weight) read as a factor: 10 distinct
+    // numbers among 12 rows.
+    let mut data = String::from("weight,group\n");
+    for i in 0..12 {
+        data.push_str(&format!("{}.{},{}\n", 40 + i % 5, i, 20 + i % 10));
+    }
+    let (code, err) = build_with(&doc_with(GOOD_BLOCK), data.as_bytes());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(
+        err.contains("`group` is used as a factor, but its values are all numbers and it has 10 distinct levels for 12 observations"),
+        "{err}"
+    );
+}
+
+#[test]
+fn block_labels_reused_within_replicates_are_explained() {
+    // Three replicates of three incomplete blocks of two plots, the blocks
+    // numbered 1-3 afresh in each replicate (invented data).
+    let layout = [
+        [(1, 2), (3, 4), (5, 6)],
+        [(1, 3), (2, 5), (4, 6)],
+        [(1, 4), (2, 6), (3, 5)],
+    ];
+    let mut data = String::from("rep,iblock,trt,y\n");
+    for (r, blocks) in layout.iter().enumerate() {
+        for (b, (t1, t2)) in blocks.iter().enumerate() {
+            for (k, t) in [t1, t2].iter().enumerate() {
+                data.push_str(&format!(
+                    "{},{},t{t},{}.{}\n",
+                    r + 1,
+                    b + 1,
+                    10 + *t,
+                    (r + b + k) % 10
+                ));
+            }
+        }
+    }
+    let doc = "# Trial\n\n```anova\nid: ib\ndata: plants.csv\nmodel: y ~ rep + iblock + trt\nblock: rep, iblock\n```\n";
+    let (code, err) = build_with(doc, data.as_bytes());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(
+        err.contains(
+            "every level of `iblock` occurs in every level of `rep`, with several plots each"
+        ) && err.contains("Write the nested term `rep:iblock`"),
+        "{err}"
+    );
+    // With the nested term written, nothing to say.
+    let doc = doc.replace("rep + iblock + trt", "rep + rep:iblock + trt");
+    let (code, err) = build_with(&doc, data.as_bytes());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(!err.contains("every level of `iblock`"), "{err}");
+}
+
+#[test]
+fn partly_unreplicated_cells_are_described_as_they_are() {
+    // 2 × 3 factorial, two plots per cell except one (invented data).
+    let mut data = String::from("a,b,y\n");
+    for a in 0..2 {
+        for b in 0..3 {
+            let plots = if (a, b) == (1, 2) { 1 } else { 2 };
+            for k in 0..plots {
+                data.push_str(&format!("a{a},b{b},{}.{}\n", 10 + a + b, 3 * k + a + b));
+            }
+        }
+    }
+    let doc = "# Trial\n\n```anova\nid: f\ndata: plants.csv\nmodel: y ~ a * b\n```\n";
+    let (code, err) = build_with(doc, data.as_bytes());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(
+        err.contains("1 of the 6 treatment cells hold a single observation"),
+        "{err}"
+    );
+    assert!(
+        !err.contains("With one observation per treatment cell"),
+        "{err}"
+    );
+}

@@ -317,6 +317,13 @@ pub fn run_factorial(
             "check the factor column and the missing-value markers",
         ));
     }
+    let reused = reused_block_labels(&data, &blocks, &factor_names, &terms);
+    // From here on a model error also explains block labels reused within
+    // another block factor, the usual cause when blocks are nested.
+    let model_err = |msg: String, hint: &str| match &reused {
+        Some(note) => model_err(msg, hint).hint(note.clone()),
+        None => model_err(msg, hint),
+    };
     let n = data.offsets.len();
     // Observations that share every factor's level share their design row:
     // the fit works on these full cells, each weighted by √n (see below).
@@ -453,7 +460,11 @@ pub fn run_factorial(
         };
         return Err(doc
             .error_at(at, None, format!("Type III sums of squares are not estimable: {why}"))
-            .hint("use `ss: 2` (each term adjusted for the terms that do not contain it), or drop the interaction from the model"));
+            .hint("use `ss: 2` (each term adjusted for the terms that do not contain it), or drop the interaction from the model"))
+            .map_err(|d: Diagnostic| match &reused {
+                Some(note) => d.hint(note.clone()),
+                None => d,
+            });
     }
     let tables: Vec<(SsType, SsTable)> = [SsType::I, SsType::II, SsType::III]
         .into_iter()
@@ -535,6 +546,8 @@ pub fn run_factorial(
         ));
     }
     warnings.extend(super::exclusion_notes(&data.excluded, &spec.data.value));
+    warnings.extend(factor_level_warnings(&data, &factor_names, &blocks));
+    warnings.extend(reused.clone());
     if !empty.is_empty() {
         warnings.push(format!(
             "{} of levels {} no observations ({}); {}",
@@ -678,10 +691,19 @@ pub fn run_factorial(
         checks.brown_forsythe = levene(&refs, Center::Median);
         checks.levene = levene(&refs, Center::Mean);
         checks.bartlett = bartlett(&sums);
-        warnings_note.push(format!(
-            "With one observation per treatment cell, the variance checks compare the residuals' spread across the levels of `{}`.",
-            factor_names[first]
-        ));
+        let single = cell_groups.iter().filter(|g| g.len() < 2).count();
+        warnings_note.push(if single == cell_groups.len() {
+            format!(
+                "With one observation per treatment cell, the variance checks compare the residuals' spread across the levels of `{}`.",
+                factor_names[first]
+            )
+        } else {
+            format!(
+                "{single} of the {} treatment cells hold a single observation, so the variance checks cannot compare every cell's spread; they compare the residuals' spread across the levels of `{}` instead.",
+                cell_groups.len(),
+                factor_names[first]
+            )
+        });
     }
     if !checks.by_request {
         checks.shapiro_wilk = shapiro_wilk(&residuals);
@@ -1070,4 +1092,74 @@ fn make_family(
             notes,
         },
     }
+}
+
+/// Spelling variants among each factor's levels, and numeric treatment
+/// factors with many levels for the rows (blocks are often numbered, so
+/// they are not held to the second check).
+fn factor_level_warnings(
+    data: &crate::data::FactorialData,
+    names: &[String],
+    blocks: &[usize],
+) -> Vec<String> {
+    let mut first: Vec<Vec<usize>> = data.levels.iter().map(|l| vec![0; l.len()]).collect();
+    for (i, &line) in data.lines.iter().enumerate() {
+        for (f, &l) in data.row(i).iter().enumerate() {
+            if first[f][l] == 0 {
+                first[f][l] = line;
+            }
+        }
+    }
+    let mut warnings = Vec::new();
+    for (f, levels) in data.levels.iter().enumerate() {
+        let named: Vec<(&str, usize)> = levels
+            .iter()
+            .map(String::as_str)
+            .zip(first[f].iter().copied())
+            .collect();
+        let found =
+            crate::data::levels::level_warnings(names[f].as_str(), &named, data.lines.len());
+        warnings.extend(
+            found
+                .into_iter()
+                .filter(|w| !blocks.contains(&f) || w.starts_with("levels ")),
+        );
+    }
+    warnings
+}
+
+/// Block factors whose labels look reused within another block factor
+/// (`iblock` 1 of `rep` 1 and `iblock` 1 of `rep` 2 being different blocks):
+/// every combination of the two occurs and holds several observations,
+/// which incomplete blocks numbered afresh in each replicate give. Read as
+/// crossed factors, such blocks are analysed wrongly.
+fn reused_block_labels(
+    data: &crate::data::FactorialData,
+    blocks: &[usize],
+    names: &[String],
+    terms: &[Vec<usize>],
+) -> Option<String> {
+    for &outer in blocks {
+        for &inner in blocks.iter().filter(|&&b| b != outer) {
+            if terms
+                .iter()
+                .any(|t| t.contains(&outer) && t.contains(&inner))
+            {
+                continue;
+            }
+            let (a, b) = (data.levels[outer].len(), data.levels[inner].len());
+            let mut counts = vec![0usize; a * b];
+            for i in 0..data.lines.len() {
+                let row = data.row(i);
+                counts[row[outer] * b + row[inner]] += 1;
+            }
+            if counts.iter().all(|&c| c >= 2) && a * b <= data.cells.len() {
+                let (o, n) = (&names[outer], &names[inner]);
+                return Some(format!(
+                    "every level of `{n}` occurs in every level of `{o}`, with several plots each: if `{n}` is numbered afresh within each `{o}` (so `{n}` 1 of `{o}` 1 and `{n}` 1 of `{o}` 2 are different blocks), the blocks are nested and the model reads them as crossed. Write the nested term `{o}:{n}` in the model in place of `{n}`, or give every block a label of its own (e.g. 1-1, 2-1)"
+                ));
+            }
+        }
+    }
+    None
 }

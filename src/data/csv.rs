@@ -39,6 +39,101 @@ pub fn utf8_text(bytes: &[u8], first_line: usize) -> Result<&str, CsvError> {
     })
 }
 
+/// File signatures (leading bytes) of common formats that are not CSV text,
+/// with what to call them and what to do.
+const SIGNATURES: [(&[u8], &str, &str); 14] = [
+    (
+        b"PAR1",
+        "a Parquet file",
+        "export the table as CSV (UTF-8) from the program that wrote it",
+    ),
+    (
+        b"PK\x03\x04",
+        "a zip archive (an .xlsx, .xlsm or .ods workbook is one)",
+        "a workbook is read as a spreadsheet when its name ends in .xlsx, .xlsm or .ods; otherwise unpack the archive",
+    ),
+    (
+        b"PK\x05\x06",
+        "an empty zip archive",
+        "point `data` at the CSV file itself",
+    ),
+    (
+        b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1",
+        "a compound document (the format of .xls workbooks)",
+        "a workbook is read as a spreadsheet when its name ends in .xls; otherwise export the table as CSV",
+    ),
+    (
+        b"\x1f\x8b",
+        "gzip-compressed",
+        "decompress it first (e.g. `gunzip`), then point `data` at the CSV file",
+    ),
+    (
+        b"\xfd7zXZ\x00",
+        "xz-compressed",
+        "decompress it first, then point `data` at the CSV file",
+    ),
+    (
+        b"\x28\xb5\x2f\xfd",
+        "zstd-compressed",
+        "decompress it first, then point `data` at the CSV file",
+    ),
+    (
+        b"7z\xbc\xaf\x27\x1c",
+        "a 7z archive",
+        "unpack it first, then point `data` at the CSV file",
+    ),
+    (
+        b"%PDF-",
+        "a PDF document",
+        "tables in a PDF must be exported or retyped as CSV",
+    ),
+    (
+        b"SQLite format 3\x00",
+        "an SQLite database",
+        "export the table as CSV (e.g. `sqlite3 -csv -header`)",
+    ),
+    (
+        b"ARROW1",
+        "an Arrow IPC (Feather) file",
+        "export the table as CSV (UTF-8) from the program that wrote it",
+    ),
+    (
+        b"\x89HDF",
+        "an HDF5 file",
+        "export the table as CSV (UTF-8) from the program that wrote it",
+    ),
+    (b"\x89PNG", "a PNG image", "point `data` at the CSV file"),
+    (
+        b"\xff\xd8\xff",
+        "a JPEG image",
+        "point `data` at the CSV file",
+    ),
+];
+
+/// Refuses a file that is plainly not CSV text, saying what it is: a
+/// known format by its leading bytes, UTF-16 text by its byte-order mark.
+/// No signature holds a line feed, so the first chunk of a chunked read
+/// holds the whole signature, as the whole file does.
+pub fn not_text(bytes: &[u8]) -> Result<(), CsvError> {
+    let refuse = |what: String, hint: &str| {
+        Err(CsvError {
+            line: 1,
+            message: format!("the file is {what}, not CSV text"),
+            hint: Some(hint.to_string()),
+        })
+    };
+    if let Some((_, what, hint)) = SIGNATURES.iter().find(|(sig, _, _)| bytes.starts_with(sig)) {
+        return refuse(what.to_string(), hint);
+    }
+    if bytes.starts_with(b"\xff\xfe") || bytes.starts_with(b"\xfe\xff") {
+        return refuse(
+            "UTF-16 text".into(),
+            "save the file as UTF-8 (most spreadsheet programs offer 'CSV UTF-8')",
+        );
+    }
+    Ok(())
+}
+
 /// Line ends in `bytes`: each LF, and each CR not followed by LF.
 pub fn count_lines(bytes: &[u8]) -> usize {
     let lf = bytes.iter().filter(|b| **b == b'\n').count();
@@ -50,6 +145,7 @@ pub fn count_lines(bytes: &[u8]) -> usize {
 
 /// Splits `text` into records. Blank lines between records are skipped.
 pub fn parse_records(bytes: &[u8], delimiter: u8) -> Result<Vec<Record>, CsvError> {
+    not_text(bytes)?;
     let text = utf8_text(bytes, 1)?;
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     RecordParser::new(text, delimiter, 1).collect()

@@ -204,6 +204,39 @@ pub fn plain_difference(a: i64, b: i64, scale: u32) -> Option<f64> {
     (diff.unsigned_abs() <= 1 << 53).then(|| diff as f64 / power)
 }
 
+/// Largest magnitude analysed: squares and sums of squares of values and
+/// their differences stay far inside the range of f64 (about 1.8e308).
+pub const MAX_MAGNITUDE: f64 = 1e100;
+/// Smallest non-zero magnitude analysed: squares of differences stay far
+/// above the f64 underflow (about 2.2e-308).
+pub const MIN_MAGNITUDE: f64 = 1e-100;
+/// Most significant digits a number written without an exponent may carry
+/// when it cannot be held exactly (more than 36 digits or 30 decimals):
+/// beyond 17 an f64 would merge values that differ in the later digits.
+const MAX_ROUNDED_DIGITS: usize = 17;
+
+/// Why a parsed number cannot enter an analysis, if it cannot: a magnitude
+/// beyond [`MIN_MAGNITUDE`]..[`MAX_MAGNITUDE`], or more digits than are kept.
+pub fn beyond_range(text: &str, number: Number) -> Option<String> {
+    let v = number.to_f64().abs();
+    if v != 0.0 && !(MIN_MAGNITUDE..=MAX_MAGNITUDE).contains(&v) {
+        return Some(
+            "its magnitude is beyond the range sheaf can analyse (1e-100 to 1e100, or 0)".into(),
+        );
+    }
+    let plain = !text.contains(['e', 'E']);
+    if plain && matches!(number, Number::Float(_)) {
+        let digits: String = text.chars().filter(char::is_ascii_digit).collect();
+        let significant = digits.trim_start_matches('0').trim_end_matches('0').len();
+        if significant > MAX_ROUNDED_DIGITS {
+            return Some(format!(
+                "it has {significant} significant digits; sheaf keeps up to 36 digits with up to 30 decimals exactly, and otherwise 17"
+            ));
+        }
+    }
+    None
+}
+
 #[cfg(test)]
 #[path = "decimal_tests.rs"]
 mod tests;

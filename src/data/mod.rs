@@ -4,6 +4,7 @@
 
 pub mod csv;
 pub mod decimal;
+pub mod levels;
 pub mod scan;
 pub mod spreadsheet;
 
@@ -79,6 +80,21 @@ pub struct Table {
     pub header: Vec<String>,
     pub header_line: usize,
     pub rows: Vec<csv::Record>,
+    /// Cells that hold no usable value (spreadsheet formula errors, formulas
+    /// without a stored result): an error once an analysis uses one.
+    pub problems: Vec<CellProblem>,
+    /// The sheet, for a table read from a spreadsheet.
+    pub sheet: Option<String>,
+}
+
+/// A cell that holds no usable value, and what to do about it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CellProblem {
+    pub line: usize,
+    /// Zero-based column in the table.
+    pub column: usize,
+    pub message: String,
+    pub hint: String,
 }
 
 /// The header row: column names and the line it is on.
@@ -92,7 +108,15 @@ impl Header {
     /// Checks a header record: every column named, no name twice, and a
     /// hint when a single column suggests the wrong delimiter.
     pub(crate) fn from_record(head: csv::Record, format: &CsvFormat) -> Result<Header, DataError> {
+        if head.fields.iter().any(|f| f.contains('\0')) {
+            return Err(DataError::at(
+                head.line,
+                "the file holds binary data (a NUL byte in the header), not CSV text",
+            )
+            .hint("point `data` at a CSV file, or export the table as CSV (UTF-8) from the program that wrote it"));
+        }
         let names: Vec<String> = head.fields.iter().map(|h| h.trim().to_string()).collect();
+        let mut seen = std::collections::HashSet::with_capacity(names.len());
         for (i, name) in names.iter().enumerate() {
             if name.is_empty() {
                 return Err(DataError {
@@ -103,7 +127,7 @@ impl Header {
                     )
                 });
             }
-            if names[..i].contains(name) {
+            if !seen.insert(name.as_str()) {
                 return Err(DataError::at(
                     head.line,
                     format!("the header names column `{name}` twice"),
@@ -205,16 +229,64 @@ impl Table {
             header: head.names,
             header_line: head.line,
             rows: records,
+            problems: Vec::new(),
+            sheet: None,
         })
     }
 
-    /// Index of a named column, or an error that suggests the nearest name.
+    /// Index of a named column, or an error that suggests the nearest name
+    /// (and, in a spreadsheet, the row where that name stands if the table
+    /// starts lower than the row read as its header).
     pub fn column(&self, name: &str) -> Result<usize, DataError> {
-        Header {
+        if let Some(i) = self.header.iter().position(|h| h == name) {
+            return Ok(i);
+        }
+        let error = Header {
             names: self.header.clone(),
             line: self.header_line,
         }
         .column(name)
+        .err()
+        .unwrap_or_else(|| DataError::at(self.header_line, format!("no column named `{name}`")));
+        match (&self.sheet, self.lower_header(name)) {
+            (Some(sheet), Some(line)) => Err(error.hint(format!(
+                "sheet `{sheet}` is read from row {} as its header, but `{name}` stands in row {line}: give the table's cells with `range:` starting on that row (e.g. `range: A{line}:D200`)",
+                self.header_line
+            ))),
+            (Some(sheet), None) => Err(error.hint(format!(
+                "the header is read from row {} of sheet `{sheet}`, the first row with content; if the table starts lower, give its cells with `range:`",
+                self.header_line
+            ))),
+            _ => Err(error),
+        }
+    }
+
+    /// The first of the leading rows (a title block is short) holding a
+    /// cell equal to `name`.
+    fn lower_header(&self, name: &str) -> Option<usize> {
+        self.rows
+            .iter()
+            .take(50)
+            .find(|r| r.fields.iter().any(|f| f.trim() == name))
+            .map(|r| r.line)
+    }
+
+    /// The first unusable cell (see [`CellProblem`]) in `columns` of a row
+    /// still in the table, as an error.
+    pub fn check_cells(&self, columns: &[usize]) -> Result<(), DataError> {
+        for p in &self.problems {
+            if columns.contains(&p.column)
+                && self.rows.binary_search_by_key(&p.line, |r| r.line).is_ok()
+            {
+                return Err(DataError {
+                    line: Some(p.line),
+                    column: Some(p.column + 1),
+                    message: p.message.clone(),
+                    hint: Some(p.hint.clone()),
+                });
+            }
+        }
+        Ok(())
     }
 }
 
@@ -263,6 +335,10 @@ pub struct SummaryRow {
     pub line: usize,
 }
 
+/// Most observations one summary row may count: 10^12 (a count is exact in
+/// f64 far beyond, and no study has more); larger counts are typing errors.
+pub const MAX_SUMMARY_N: f64 = 1e12;
+
 /// Reads a summary table: one row per level with n, mean and SD (or SE).
 pub fn summary_rows(
     table: &Table,
@@ -274,6 +350,7 @@ pub fn summary_rows(
     let ni = table.column(&columns.n)?;
     let mi = table.column(&columns.mean)?;
     let si = table.column(&columns.spread)?;
+    table.check_cells(&[li, ni, mi, si])?;
     let read = |row: &csv::Record, i: usize, what: &str| -> Result<Number, DataError> {
         let raw = row.fields[i].trim();
         let text = if format.decimal_comma {
@@ -289,6 +366,14 @@ pub fn summary_rows(
                 message: format!("the {what} must be a number, found `{raw}`"),
                 hint: Some("a summary table needs a value in every cell: one row per level".into()),
             })?;
+        if let Some(why) = decimal::beyond_range(&text, number) {
+            return Err(DataError {
+                line: Some(row.line),
+                column: Some(i + 1),
+                message: format!("the {what} `{raw}` cannot be analysed: {why}"),
+                hint: Some("rescale the column (e.g. write it in other units)".into()),
+            });
+        }
         Ok(number)
     };
     let mut rows: Vec<SummaryRow> = Vec::with_capacity(table.rows.len());
@@ -310,6 +395,20 @@ pub fn summary_rows(
             );
         }
         let n = read(row, ni, "n")?.to_f64();
+        if n > MAX_SUMMARY_N {
+            return Err(DataError {
+                column: Some(ni + 1),
+                ..DataError::at(
+                    row.line,
+                    format!(
+                        "n = {} is beyond the {} observations a summary row may count",
+                        row.fields[ni].trim(),
+                        MAX_SUMMARY_N
+                    ),
+                )
+            }
+            .hint("check the n column: it holds the number of observations behind each mean"));
+        }
         if n.fract() != 0.0 || n < 1.0 {
             return Err(DataError {
                 column: Some(ni + 1),
@@ -523,6 +622,12 @@ pub fn prepare(table: Table, rules: &RowRules) -> Result<(Table, Vec<Exclusion>)
             header: vec![factor.clone(), response.clone()],
             header_line: table.header_line,
             rows,
+            // Every cell of a wide table is a response.
+            problems: std::mem::take(&mut table.problems)
+                .into_iter()
+                .map(|p| CellProblem { column: 1, ..p })
+                .collect(),
+            sheet: table.sheet.take(),
         };
     }
     let columns: Vec<usize> = rules

@@ -107,6 +107,9 @@ pub fn scan_file(
             return Err(crate::data::empty_file());
         };
         let bytes = chunk.bytes();
+        if bom {
+            super::csv::not_text(bytes).map_err(csv_error)?;
+        }
         let skip = if bom && bytes.starts_with(b"\xef\xbb\xbf") {
             3
         } else {
@@ -201,6 +204,10 @@ pub fn scan_table(
         .iter()
         .map(|f| Ok((table.column(f)?, *f)))
         .collect::<Result<_, DataError>>()?;
+    let used: Vec<usize> = std::iter::once(yi)
+        .chain(columns.iter().map(|(c, _)| *c))
+        .collect();
+    table.check_cells(&used)?;
     let plan = RowPlan::for_table(
         table.header.len(),
         table.header_line,

@@ -553,6 +553,15 @@ pub(super) fn offset_from(number: Number, origin: Number, origin_f64: f64) -> f6
     }
 }
 
+/// A cell's text for a message: at most 40 characters.
+pub(crate) fn short(text: &str) -> String {
+    if text.chars().count() > 40 {
+        format!("{}…", text.chars().take(40).collect::<String>())
+    } else {
+        text.to_string()
+    }
+}
+
 /// A response cell that the plain reader refused: a number in another
 /// spelling, or an error that says what was found and what to write.
 pub(super) fn response_number(
@@ -568,7 +577,17 @@ pub(super) fn response_number(
         y.to_string()
     };
     if let Some(n) = parse_number(&text) {
-        return Ok(n);
+        return match crate::data::decimal::beyond_range(&text, n) {
+            None => Ok(n),
+            Some(why) => Err(DataError {
+                line: Some(line),
+                column: Some(column + 1),
+                message: format!("`{response}` = `{}` cannot be analysed: {why}", short(y)),
+                hint: Some(
+                    "rescale the column (e.g. write it in other units) or round it to the digits that were measured".into(),
+                ),
+            }),
+        };
     }
     let lowered = text.to_ascii_lowercase();
     let non_finite = ["inf", "+inf", "-inf", "infinity", "-infinity"].contains(&lowered.as_str());
@@ -586,7 +605,7 @@ pub(super) fn response_number(
     Err(DataError {
         line: Some(line),
         column: Some(column + 1),
-        message: format!("`{response}` must be a number, found `{y}`"),
+        message: format!("`{response}` must be a number, found `{}`", short(y)),
         hint: Some(hint),
     })
 }
