@@ -23,7 +23,7 @@ use crate::doc::markdown::markdown_options;
 use crate::results::sha256_hex;
 use minijinja::value::Value;
 use minijinja::{AutoEscape, Environment};
-use pulldown_cmark::{CowStr, Event, Parser};
+use pulldown_cmark::{CowStr, Event, LinkType, Parser, Tag, TagEnd};
 use serde::Serialize;
 
 /// Output format of the report.
@@ -203,10 +203,15 @@ struct FrontView {
 }
 
 /// Marker standing for block `i` in the prose while it goes through the
-/// Markdown parser; replaced by the block's HTML afterwards.
+/// Markdown parser; replaced by the block's HTML afterwards. Only a marker
+/// at an offset where sheaf put one counts: the same text written in the
+/// document is shown as text like any other raw HTML.
 fn marker(i: usize) -> String {
     format!("<!-- sheaf-block-{i} -->")
 }
+
+/// A block marker in the body: its byte offset and the block's index.
+type MarkerAt = (usize, usize);
 
 /// Renders the report. The document's name and bytes (as read, for its
 /// hash) and the results file's name appear in the provenance note.
@@ -273,30 +278,34 @@ pub fn render_report(
     }
 
     // The body with expressions and blocks replaced, front matter dropped.
-    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
+    let mut edits: Vec<(std::ops::Range<usize>, String, Option<usize>)> = Vec::new();
     for (e, v) in doc.expressions.iter().zip(&values) {
-        edits.push((e.range.clone(), markdown_escape(v)));
+        edits.push((e.range.clone(), markdown_escape(v), None));
     }
     for (i, b) in doc.blocks.iter().enumerate() {
         let replacement = match format {
             Format::Html => format!("{}\n", marker(i)),
             Format::Markdown => fragments[i].clone(),
         };
-        edits.push((b.range.clone(), replacement));
+        edits.push((b.range.clone(), replacement, Some(i)));
     }
-    edits.sort_by_key(|(r, _)| r.start);
+    edits.sort_by_key(|(r, _, _)| r.start);
     let mut body = String::with_capacity(doc.source.len());
+    let mut markers: Vec<MarkerAt> = Vec::new();
     let mut pos = doc.body_start;
-    for (range, text) in edits {
+    for (range, text, block) in edits {
         body.push_str(&doc.source[pos..range.start]);
+        if let Some(i) = block {
+            markers.push((body.len(), i));
+        }
         body.push_str(&text);
         pos = range.end;
     }
     body.push_str(&doc.source[pos..]);
 
     let content = match format {
-        Format::Html => prose_html(&body, &fragments),
-        Format::Markdown => body.trim().to_string(),
+        Format::Html => prose_html(&body, &fragments, &markers),
+        Format::Markdown => inert_links_markdown(&body).trim().to_string(),
     };
     let title = doc
         .front
@@ -406,19 +415,147 @@ fn tidy_markdown(text: &str) -> String {
 }
 
 /// Markdown to HTML. Raw HTML written in the document is shown as text (a
-/// report carries no scripts); block markers become the blocks' HTML.
-fn prose_html(body: &str, fragments: &[String]) -> String {
-    let markers: Vec<String> = (0..fragments.len()).map(marker).collect();
-    let events = Parser::new_ext(body, markdown_options()).map(|event| match event {
-        Event::Html(h) | Event::InlineHtml(h) => match markers.iter().position(|m| h.trim() == m) {
-            Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
-            None => Event::Text(h),
-        },
-        other => other,
-    });
+/// report carries no scripts), links and images whose target could run
+/// script become their text, and block markers (at the offsets in
+/// `markers`) become the blocks' HTML.
+fn prose_html(body: &str, fragments: &[String], markers: &[MarkerAt]) -> String {
+    let mut open_links: Vec<bool> = Vec::new();
+    let events = Parser::new_ext(body, markdown_options())
+        .into_offset_iter()
+        .filter_map(|(event, range)| match event {
+            Event::Html(h) | Event::InlineHtml(h) => {
+                let block = markers
+                    .binary_search_by_key(&range.start, |(at, _)| *at)
+                    .ok()
+                    .map(|k| markers[k].1)
+                    .filter(|&i| h.trim() == marker(i));
+                Some(match block {
+                    Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
+                    None => Event::Text(h),
+                })
+            }
+            Event::Start(Tag::Link {
+                link_type,
+                ref dest_url,
+                ..
+            })
+            | Event::Start(Tag::Image {
+                link_type,
+                ref dest_url,
+                ..
+            }) => {
+                let live = link_type == LinkType::Email || safe_url(dest_url);
+                open_links.push(live);
+                live.then_some(event)
+            }
+            Event::End(TagEnd::Link | TagEnd::Image) => {
+                open_links.pop().unwrap_or(true).then_some(event)
+            }
+            other => Some(other),
+        });
     let mut html = String::with_capacity(body.len() * 2);
     pulldown_cmark::html::push_html(&mut html, events);
     html
+}
+
+/// Markdown output copies prose as written, except links and images whose
+/// target could run script: those become their text, escaped.
+fn inert_links_markdown(body: &str) -> String {
+    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
+    // The outermost unsafe link being read: its range and its text so far.
+    let mut current: Option<(std::ops::Range<usize>, String, usize)> = None;
+    for (event, range) in Parser::new_ext(body, markdown_options()).into_offset_iter() {
+        match (&mut current, event) {
+            (
+                None,
+                Event::Start(
+                    Tag::Link {
+                        link_type,
+                        dest_url,
+                        ..
+                    }
+                    | Tag::Image {
+                        link_type,
+                        dest_url,
+                        ..
+                    },
+                ),
+            ) if link_type != LinkType::Email && !safe_url(&dest_url) => {
+                current = Some((range, String::new(), 0));
+            }
+            (Some((_, _, depth)), Event::Start(Tag::Link { .. } | Tag::Image { .. })) => {
+                *depth += 1;
+            }
+            (Some((_, text, _)), Event::Text(t) | Event::Code(t)) => text.push_str(&t),
+            (Some((_, _, depth)), Event::End(TagEnd::Link | TagEnd::Image)) => {
+                if *depth > 0 {
+                    *depth -= 1;
+                } else if let Some((range, text, _)) = current.take() {
+                    edits.push((range, markdown_escape(&text)));
+                }
+            }
+            _ => {}
+        }
+    }
+    let mut out = String::with_capacity(body.len());
+    let mut pos = 0;
+    for (range, text) in edits {
+        out.push_str(&body[pos..range.start]);
+        out.push_str(&text);
+        pos = range.end;
+    }
+    out.push_str(&body[pos..]);
+    out
+}
+
+/// Whether a link target may stay live: relative URLs, `#fragment`, and the
+/// schemes http, https and mailto. Checked as a browser reads it (tabs and
+/// newlines dropped, surrounding spaces and control characters trimmed) and
+/// also after percent-decoding, so that no spelling of another scheme
+/// (`javascript:`, `data:`, `vbscript:`, any case) passes; entities were
+/// already decoded by the Markdown parser.
+pub(crate) fn safe_url(url: &str) -> bool {
+    let cleaned: String = url
+        .chars()
+        .filter(|c| !matches!(c, '\t' | '\n' | '\r'))
+        .collect();
+    let trim = |s: &str| {
+        s.trim_matches(|c: char| c.is_whitespace() || c.is_control())
+            .to_string()
+    };
+    [trim(&cleaned), trim(&percent_decode(&cleaned))]
+        .iter()
+        .all(|u| match u.find([':', '/', '?', '#']) {
+            Some(i) if u[i..].starts_with(':') => matches!(
+                u[..i].to_ascii_lowercase().as_str(),
+                "http" | "https" | "mailto"
+            ),
+            _ => true,
+        })
+}
+
+/// `%XX` sequences decoded (invalid ones left as they are).
+fn percent_decode(text: &str) -> String {
+    let bytes = text.as_bytes();
+    let mut out = Vec::with_capacity(bytes.len());
+    let mut i = 0;
+    while i < bytes.len() {
+        let hex = bytes
+            .get(i + 1..i + 3)
+            .and_then(|h| std::str::from_utf8(h).ok())
+            .and_then(|h| u8::from_str_radix(h, 16).ok());
+        match (bytes[i], hex) {
+            (b'%', Some(b)) => {
+                out.push(b);
+                i += 3;
+            }
+            (b, _) => {
+                out.push(b);
+                i += 1;
+            }
+        }
+    }
+    String::from_utf8_lossy(&out).into_owned()
 }
 
 #[cfg(test)]
