@@ -10,13 +10,14 @@ type Target = fn(&[u8]);
 #[test]
 fn every_corpus_input_is_handled_without_a_panic() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fuzz/corpus");
-    let targets: [(&str, Target); 6] = [
+    let targets: [(&str, Target); 7] = [
         ("block_parser", sheaf::fuzzing::block_parser),
         ("formula", sheaf::fuzzing::formula),
         ("document", sheaf::fuzzing::document),
         ("csv", sheaf::fuzzing::csv),
         ("expand", sheaf::fuzzing::expand),
         ("scan", sheaf::fuzzing::scan),
+        ("expression", sheaf::fuzzing::expression),
     ];
     let mut replayed = 0;
     for (name, run) in targets {

@@ -41,7 +41,7 @@ struct TermContext {
     ms: f64,
     f: f64,
     p: f64,
-    f_crit: f64,
+    f_critical: f64,
     effect: Option<EffectContext>,
     /// "F(2, 27) = 4.85, p = 0.016".
     statement: String,
@@ -55,7 +55,7 @@ impl TermContext {
         ms: f64,
         f: f64,
         p: f64,
-        f_crit: f64,
+        f_critical: f64,
         effect: Option<EffectContext>,
     ) -> Self {
         TermContext {
@@ -66,7 +66,7 @@ impl TermContext {
             ms,
             f,
             p,
-            f_crit,
+            f_critical,
             effect,
             statement: f_statement(df as f64, df2 as f64, f, p),
         }
@@ -179,7 +179,7 @@ struct BlockContext {
     p: f64,
     df1: usize,
     df2: usize,
-    f_crit: f64,
+    f_critical: f64,
     r_squared: f64,
     n: usize,
     n_excluded: usize,
@@ -241,7 +241,7 @@ fn block_context(r: &AnovaResult) -> BlockContext {
         p: t.p,
         df1: t.df_between,
         df2: t.df_within,
-        f_crit: t.f_crit,
+        f_critical: t.f_crit,
         r_squared: t.r_squared,
         n: t.n,
         n_excluded: r.exclusions.len(),
@@ -733,8 +733,8 @@ fn unknown_name_error(
         return d.hint(hint);
     }
     d.hint(
-        "a block has f, p, df1, df2, f_crit, r_squared, n, n_excluded, alpha, response, factor, method, \
-         statement, terms.<factor>.<f|p|df|df1|df2|ss|ms|f_crit|statement>, residual.<df|ss|ms>, \
+        "a block has f, p, df1, df2, f_critical, r_squared, n, n_excluded, alpha, response, factor, method, \
+         statement, terms.<factor>.<f|p|df|df1|df2|ss|ms|f_critical|statement>, residual.<df|ss|ms>, \
          groups.<level>.<n|mean|sd|se|ci_lower|ci_upper|letters>, letters.<level> and pairs",
     )
 }
