@@ -490,6 +490,8 @@ pub fn run_anova(
         }
     };
     sample.excluded.sort_by_key(|e| e.line);
+    let names: Vec<&str> = sample.names.iter().map(String::as_str).collect();
+    check_labels(doc, spec, &names)?;
     apply_labels(&mut sample.names, &spec.labels);
     let data_path = spec.data.value.clone();
     let result = analyse(doc, block, spec, sample, factor, response, &data_path)?;
@@ -587,6 +589,66 @@ pub(crate) fn line_ranges(lines: &[usize]) -> String {
     )
 }
 
+/// Every level named in `labels` must be a level with data: a misspelt name
+/// would otherwise leave its level unrenamed without a word.
+pub(crate) fn check_labels(
+    doc: &Document,
+    spec: &AnovaSpec,
+    levels: &[&str],
+) -> Result<(), Diagnostic> {
+    let Some((line, column)) = spec.labels_at else {
+        return Ok(());
+    };
+    let Some((from, _)) = spec
+        .labels
+        .iter()
+        .find(|(from, _)| !levels.contains(&from.as_str()))
+    else {
+        return Ok(());
+    };
+    let at = list_item_column(doc, line, column, |item| {
+        item.split_once('=').is_some_and(|(f, _)| f.trim() == from)
+    });
+    let known = levels
+        .iter()
+        .map(|l| format!("`{l}`"))
+        .collect::<Vec<_>>()
+        .join(", ");
+    let d = doc.error_at(
+        line,
+        Some(at),
+        format!("`labels` renames `{from}`, which is not a level with data"),
+    );
+    Err(match crate::diag::nearest(from, levels.iter().copied()) {
+        Some(n) => d.hint(format!("did you mean `{n}`? The levels are {known}")),
+        None => d.hint(format!("the levels are {known}")),
+    })
+}
+
+/// The 1-based column of the first item of a comma-separated value that
+/// `is_item` accepts, on a document line whose value starts at `value_column`;
+/// the value's own column when none does.
+fn list_item_column(
+    doc: &Document,
+    line: usize,
+    value_column: usize,
+    is_item: impl Fn(&str) -> bool,
+) -> usize {
+    let text = doc.lines.line_text(&doc.source, line);
+    let Some((start, _)) = text.char_indices().nth(value_column.saturating_sub(1)) else {
+        return value_column;
+    };
+    let mut offset = start;
+    for part in text[start..].split(',') {
+        if is_item(part.trim()) {
+            let lead = part.len() - part.trim_start().len();
+            return 1 + text[..offset + lead].chars().count();
+        }
+        offset += part.len() + 1;
+    }
+    value_column
+}
+
 /// Renames levels for display (`labels`); names not listed stay as they are.
 pub(crate) fn apply_labels(names: &mut [String], labels: &[(String, String)]) {
     for n in names.iter_mut() {
@@ -636,9 +698,10 @@ fn design_order(
         .join(", ");
     for name in &listed.value {
         if !found.contains(&name.as_str()) {
+            let column = list_item_column(doc, listed.line, listed.column, |item| item == name);
             let d = doc.error_at(
                 listed.line,
-                Some(listed.column),
+                Some(column),
                 format!("level `{name}` does not occur in column `{factor}` of {path}"),
             );
             return Err(match crate::diag::nearest(name, found.iter().copied()) {

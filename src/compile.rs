@@ -332,9 +332,12 @@ pub fn compile(
 ) -> Result<Built, Diagnostic> {
     let (file_name, stem) = names_of(Path::new(doc_display));
     let source = String::from_utf8(doc_bytes.to_vec()).map_err(|e| {
-        let line = 1 + doc_bytes[..e.utf8_error().valid_up_to()]
+        // Line ends as the document stage counts them: LF, CRLF or a lone CR.
+        let before = &doc_bytes[..e.utf8_error().valid_up_to()];
+        let line = 1 + before
             .iter()
-            .filter(|b| **b == b'\n')
+            .enumerate()
+            .filter(|&(i, b)| *b == b'\n' || (*b == b'\r' && doc_bytes.get(i + 1) != Some(&b'\n')))
             .count();
         Diagnostic::new("the document is not valid UTF-8")
             .at(doc_display, Some(line), None)

@@ -199,6 +199,27 @@ impl World for Fixed {
     }
 }
 
+/// The analysis part of [`expression`]'s document: every block kind and
+/// method, so that expressions can reach every context.
+const EXPRESSION_BLOCKS: &str = "```anova\nid: a\ndata: d.csv\nmodel: y ~ g\n```\n\n\
+```anova\nid: w\ndata: d.csv\nmodel: y ~ g\nmethod: welch\n```\n\n\
+```anova\nid: k\ndata: d.csv\nmodel: y ~ g\nmethod: ranks\n```\n\n\
+```anova\nid: f\ndata: d.csv\nmodel: y ~ g * h\n```\n\n\
+```power\nid: p\ngroups: 3\neffect: f = 0.4\npower: 0.8\n```\n\n";
+
+/// Prose expressions: the input is the text of one `{{ … }}` expression,
+/// evaluated against blocks of every kind in both output formats. Run with
+/// a memory cap (`-malloc_limit_mb`) so that an unbounded allocation is a
+/// finding, not just a slow input.
+pub fn expression(data: &[u8]) {
+    let Ok(text) = std::str::from_utf8(data) else {
+        return;
+    };
+    let doc = format!("{EXPRESSION_BLOCKS}Quoted: {{{{ {text} }}}}\n");
+    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Html);
+    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Markdown);
+}
+
 /// Template expansion and the whole pipeline: the input is a document whose
 /// blocks all read the same small data file.
 pub fn expand(data: &[u8]) {

@@ -286,7 +286,8 @@ fn cases() -> Vec<Case> {
             vec![
                 "level `trt3` does not occur in column `group`",
                 "did you mean `trt1`?",
-                "report.md:7:9",
+                // The caret points at the misspelt level, not the list's start.
+                "report.md:7:21",
             ],
         ),
         case(
@@ -1280,4 +1281,98 @@ fn partly_unreplicated_cells_are_described_as_they_are() {
         !err.contains("With one observation per treatment cell"),
         "{err}"
     );
+}
+
+/// Prose: unclosed fences, unbounded expressions, line ends, and the
+/// document-side messages about levels, labels and `where`.
+#[test]
+fn prose_and_level_mistakes_are_reported_at_their_place() {
+    let cases = vec![
+        case(
+            "an unclosed analysis block",
+            format!("# Trial\n\n```anova\n{GOOD_BLOCK}\nThe results follow.\n"),
+            vec![
+                "the `anova` block opened here is never closed",
+                "report.md:3:1",
+                "end the block with a line holding only ```",
+            ],
+        ),
+        case(
+            "an unclosed code fence swallowing a block",
+            format!("# Trial\n\n~~~python\nx = 1\n\n{}", doc_with(GOOD_BLOCK)),
+            vec![
+                "the code fence opened here is never closed",
+                "report.md:3:1",
+            ],
+        ),
+        case(
+            "string repetition in prose",
+            format!(
+                "{}\nSee {{{{ \"x\" * 1000000000 }}}}.\n",
+                doc_with(GOOD_BLOCK)
+            ),
+            vec![
+                "needs more work than prose expressions may do",
+                "report.md:9:5",
+            ],
+        ),
+        case(
+            "a huge format width in prose",
+            format!(
+                "{}\n{{{{ \"%999999999s\" | format(growth.f) }}}}\n",
+                doc_with(GOOD_BLOCK)
+            ),
+            vec!["report.md:9:1"],
+        ),
+        case(
+            "a long expression result",
+            format!("{}\n{{{{ \"ab\" * 6000 }}}}\n", doc_with(GOOD_BLOCK)),
+            vec![
+                "gives 12000 bytes of text; an expression may give at most 10000",
+                "report.md:9:1",
+            ],
+        ),
+        case(
+            "a level name with spaces in prose",
+            format!(
+                "{}\n{{{{ growth.groups.peat moss.mean }}}}\n",
+                doc_with(GOOD_BLOCK)
+            ),
+            vec!["report.md:9:1", "growth.groups[\"peat moss\"].mean"],
+        ),
+        case(
+            "an error after lone-CR line ends",
+            format!("{}\n{{{{ growht.f }}}}\n", doc_with(GOOD_BLOCK)).replace('\n', "\r"),
+            vec![
+                "`growht` is not the id of an analysis block",
+                "report.md:9:1",
+                "did you mean `growth`?",
+            ],
+        ),
+        case(
+            "labels for a level that does not exist",
+            doc_with(&format!(
+                "{GOOD_BLOCK}labels: ctrl = Control, trt3 = Treatment 3\n"
+            )),
+            vec![
+                "`labels` renames `trt3`, which is not a level with data",
+                "report.md:7:25",
+                "did you mean `trt1`?",
+            ],
+        ),
+        case(
+            "or in where",
+            doc_with(&format!(
+                "{GOOD_BLOCK}where: group == ctrl or group == trt1\n"
+            )),
+            vec![
+                "`or` is not supported",
+                "report.md:7",
+                "`!=` joined by `and`",
+            ],
+        ),
+    ];
+    for c in &cases {
+        run_case(c);
+    }
 }

@@ -303,6 +303,8 @@ pub fn run_factorial(
         }
     };
     data.excluded.sort_by_key(|e| e.line);
+    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
+    super::check_labels(doc, spec, &all_levels)?;
     for lv in data.levels.iter_mut() {
         super::apply_labels(lv, &spec.labels);
     }

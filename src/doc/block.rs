@@ -247,6 +247,8 @@ pub struct AnovaSpec {
     pub rows: RowRules,
     /// Display names for levels: (as in the data, as shown).
     pub labels: Vec<(String, String)>,
+    /// Where `labels` was written (line and value column), for messages.
+    pub labels_at: Option<(usize, usize)>,
     /// Spreadsheet input: the sheet (default the first) and a cell range.
     pub sheet: Option<String>,
     pub range: Option<String>,
@@ -425,6 +427,16 @@ fn list(value: &str) -> Vec<String> {
         .map(|s| s.trim().to_string())
         .filter(|s| !s.is_empty())
         .collect()
+}
+
+/// Whether a `where` condition joins two comparisons with `or` (a value that
+/// is itself the word "or", as in `state == or`, is not a join).
+fn joins_with_or(part: &str) -> bool {
+    let lower = part.to_ascii_lowercase();
+    let is_comparison = |s: &str| ["==", "!=", "<", ">"].iter().any(|op| s.contains(op));
+    lower
+        .match_indices(" or ")
+        .any(|(i, _)| is_comparison(&lower[..i]) && is_comparison(&lower[i + 4..]))
 }
 
 /// Checks an `anova` block's entries. `fence_line` is the opening fence's line.
@@ -882,6 +894,15 @@ pub fn anova_spec(
     if let Some(e) = get("where") {
         for part in e.value.split(" and ") {
             let part = part.trim();
+            if joins_with_or(part) {
+                return Err(bad(
+                    e,
+                    format!(
+                        "`where` joins conditions with `and` only; `or` is not supported (in `{part}`)"
+                    ),
+                    "for `site == a or site == b`, leave out the other values with `!=` joined by `and` (`site != c and site != d`), or mark the rows to keep in a column of the data and write `where: keep == yes`",
+                ));
+            }
             let op = ["==", "!=", "<=", ">=", "<", ">"]
                 .into_iter()
                 .find(|op| part.contains(op))
@@ -1020,6 +1041,7 @@ pub fn anova_spec(
         range: get("range").map(|e| e.value.clone()),
         rows,
         labels,
+        labels_at: get("labels").map(|e| (e.line, e.value_column)),
         plots,
         ss_type,
         compare_terms: named_list("compare_term"),

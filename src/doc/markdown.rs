@@ -24,13 +24,25 @@ pub struct FencedBlock {
     pub nested: bool,
 }
 
+/// A fenced code block that runs to the end of the document because its
+/// closing fence is missing.
+#[derive(Debug, Clone, PartialEq)]
+pub struct UnclosedFence {
+    /// Byte offset of the opening fence.
+    pub offset: usize,
+    /// The opening fence's first info word (empty for a bare fence).
+    pub kind: String,
+}
+
 /// What the scan found.
 #[derive(Debug, Clone, Default)]
 pub struct Scan {
     pub blocks: Vec<FencedBlock>,
     /// Byte ranges of every code block and code span, where template syntax
-    /// is literal text.
+    /// is literal text, in document order.
     pub code: Vec<Range<usize>>,
+    /// The first fenced code block whose closing fence is missing, if any.
+    pub unclosed: Option<UnclosedFence>,
 }
 
 /// Scans `text[start..]` (the body after any front matter); ranges are
@@ -55,6 +67,12 @@ pub fn scan(text: &str, start: usize, is_block_kind: impl Fn(&str) -> bool) -> S
                 out.code.push(range.clone());
                 if let CodeBlockKind::Fenced(info) = kind {
                     let word = info.split_whitespace().next().unwrap_or("").to_string();
+                    if out.unclosed.is_none() && !fence_is_closed(text, &range) {
+                        out.unclosed = Some(UnclosedFence {
+                            offset: range.start,
+                            kind: word.clone(),
+                        });
+                    }
                     if is_block_kind(&word) {
                         current = Some((word, range));
                         body_text.clear();
@@ -88,6 +106,29 @@ pub fn scan(text: &str, start: usize, is_block_kind: impl Fn(&str) -> bool) -> S
     out
 }
 
+/// Whether a fenced code block (its byte range, fences included) ends with a
+/// closing fence. Without one the block silently swallows the rest of the
+/// document, or of the list or quote holding it, when that ends the document.
+fn fence_is_closed(text: &str, range: &Range<usize>) -> bool {
+    let block = &text[range.clone()];
+    let strip = |line: &str| {
+        line.trim_start_matches(|c: char| c == '>' || c.is_whitespace())
+            .to_string()
+    };
+    let opening = strip(block.lines().next().unwrap_or(""));
+    let Some(fence_char) = opening.chars().next().filter(|c| *c == '`' || *c == '~') else {
+        return true;
+    };
+    let fence_len = opening.chars().take_while(|c| *c == fence_char).count();
+    let last = block.lines().skip(1).last().map(strip);
+    let closes = last.is_some_and(|l| {
+        let run = l.chars().take_while(|c| *c == fence_char).count();
+        run >= fence_len && l[run..].trim().is_empty()
+    });
+    // A block ended early by its container (a list item that stops) is closed.
+    closes || !text[range.end..].trim().is_empty()
+}
+
 /// A `{{ … }}` expression in prose.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Expression {
@@ -110,28 +151,45 @@ pub fn find_expressions(
     start: usize,
     skip: &[Range<usize>],
 ) -> Result<Vec<Expression>, UnclosedExpression> {
+    // `skip` is searched with a cursor that only moves forward, and the end
+    // of the current paragraph is found once per paragraph, so the scan is
+    // linear in the text however many expressions a paragraph holds.
+    let mut skip: Vec<&Range<usize>> = skip.iter().collect();
+    skip.sort_by_key(|r| r.start);
+    let mut next_skip = 0;
+    let mut paragraph_end = start;
     let mut out = Vec::new();
     let mut pos = start;
     while let Some(found) = text[pos..].find("{{") {
         let open = pos + found;
-        if let Some(r) = skip.iter().find(|r| r.contains(&open)) {
+        while next_skip < skip.len() && skip[next_skip].end <= open {
+            next_skip += 1;
+        }
+        if let Some(r) = skip[next_skip..]
+            .iter()
+            .take_while(|r| r.start <= open)
+            .find(|r| r.contains(&open))
+        {
             pos = r.end.max(open + 2);
             continue;
         }
         // An expression ends at the first `}}`; it may not run past a blank line.
-        let rest = &text[open + 2..];
-        let close = rest.find("}}");
-        let paragraph_end = rest.find("\n\n").unwrap_or(rest.len());
+        if paragraph_end < open + 2 {
+            paragraph_end = text[open + 2..]
+                .find("\n\n")
+                .map_or(text.len(), |i| open + 2 + i);
+        }
+        let close = text[open + 2..paragraph_end].find("}}");
         match close {
-            Some(c) if c < paragraph_end => {
+            Some(c) => {
                 let end = open + 2 + c + 2;
                 out.push(Expression {
                     range: open..end,
-                    source: rest[..c].trim().to_string(),
+                    source: text[open + 2..open + 2 + c].trim().to_string(),
                 });
                 pos = end;
             }
-            _ => return Err(UnclosedExpression { offset: open }),
+            None => return Err(UnclosedExpression { offset: open }),
         }
     }
     Ok(out)

@@ -36,3 +36,36 @@ fn nested_blocks_are_flagged() {
     let s = scan(text, 0, |k| k == "anova");
     assert!(s.blocks[0].nested);
 }
+
+#[test]
+fn unclosed_fences_are_found() {
+    let text = "Intro\n\n```anova\nid: a\n\nSome prose.\n";
+    let s = scan(text, 0, |k| k == "anova");
+    assert_eq!(
+        s.unclosed,
+        Some(UnclosedFence {
+            offset: 7,
+            kind: "anova".into()
+        })
+    );
+    let closed = "```anova\nid: a\n```\n\n~~~~\ncode\n~~~~~\n\n- x\n  ```\n  y\n- z\n";
+    assert_eq!(scan(closed, 0, |k| k == "anova").unclosed, None);
+    let short = "````anova\nid: a\n```\n";
+    assert!(scan(short, 0, |k| k == "anova").unclosed.is_some());
+}
+
+/// A paragraph of many expressions and code spans: every one found, in
+/// order (the scan is linear, so this stays quick at any size).
+#[test]
+fn long_paragraphs_of_expressions() {
+    let n = 40_000;
+    let text: String = (0..n)
+        .map(|i| format!("{{{{ a.f }}}} `{{{{ {i} }}}}` "))
+        .collect();
+    let s = scan(&text, 0, |_| false);
+    assert_eq!(s.code.len(), n);
+    let e = find_expressions(&text, 0, &s.code).expect("closed");
+    assert_eq!(e.len(), n);
+    assert!(e.windows(2).all(|w| w[0].range.end <= w[1].range.start));
+    assert!(e.iter().all(|x| x.source == "a.f"));
+}

@@ -159,8 +159,27 @@ impl Document {
     }
 }
 
+/// Turns every lone carriage return (old Mac line ends) into a line feed,
+/// leaving CRLF alone. The replacement is byte for byte, so offsets do not
+/// move, and from here on every line end contains a line feed: line numbers,
+/// blocks and expressions are found the same way for LF, CRLF, CR and mixed.
+fn normalize_lone_cr(source: String) -> String {
+    if !source.contains('\r') {
+        return source;
+    }
+    let mut bytes = source.into_bytes();
+    for i in 0..bytes.len() {
+        if bytes[i] == b'\r' && bytes.get(i + 1) != Some(&b'\n') {
+            bytes[i] = b'\n';
+        }
+    }
+    // Only an ASCII byte was replaced by another, so the text is still UTF-8.
+    String::from_utf8(bytes).unwrap_or_default()
+}
+
 /// Parses and checks a document. `name` is used only in messages.
 pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic> {
+    let source = normalize_lone_cr(source);
     let lines = LineIndex::new(&source);
     let mut doc = Document {
         name: name.to_string(),
@@ -179,6 +198,9 @@ pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic
     };
 
     let found = scan(&doc.source, body_start, |k| BLOCK_KINDS.contains(&k));
+    if let Some(u) = &found.unclosed {
+        return Err(unclosed_fence_error(&doc, u));
+    }
     let mut blocks = Vec::new();
     for (i, fenced) in found.blocks.iter().enumerate() {
         let line = doc.lines.line(fenced.range.start);
@@ -229,6 +251,25 @@ pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic
     })?;
     doc.blocks = blocks;
     Ok(doc)
+}
+
+/// A fence whose closing line is missing: it would swallow the rest of the
+/// document (prose, and any blocks after it) as code.
+fn unclosed_fence_error(doc: &Document, u: &markdown::UnclosedFence) -> Diagnostic {
+    let line = doc.lines.line(u.offset);
+    let what = if BLOCK_KINDS.contains(&u.kind.as_str()) {
+        format!("the `{}` block opened here is never closed", u.kind)
+    } else {
+        "the code fence opened here is never closed".to_string()
+    };
+    let fence = doc.lines.line_text(&doc.source, line).trim_start();
+    let marks: String = fence
+        .chars()
+        .take_while(|c| *c == '`' || *c == '~')
+        .collect();
+    doc.error_at(line, Some(1), what).hint(format!(
+        "end the block with a line holding only {marks}; without it everything after line {line} is read as part of the block"
+    ))
 }
 
 /// Returns the front-matter entries and where the body starts.

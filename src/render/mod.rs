@@ -23,7 +23,7 @@ use crate::doc::markdown::markdown_options;
 use crate::results::sha256_hex;
 use minijinja::value::Value;
 use minijinja::{AutoEscape, Environment};
-use pulldown_cmark::{CowStr, Event, Parser};
+use pulldown_cmark::{CowStr, Event, LinkType, Parser, Tag, TagEnd};
 use serde::Serialize;
 
 /// Output format of the report.
@@ -250,10 +250,15 @@ struct AcknowledgedView {
 }
 
 /// Marker standing for block `i` in the prose while it goes through the
-/// Markdown parser; replaced by the block's HTML afterwards.
+/// Markdown parser; replaced by the block's HTML afterwards. Only a marker
+/// at an offset where sheaf put one counts: the same text written in the
+/// document is shown as text like any other raw HTML.
 fn marker(i: usize) -> String {
     format!("<!-- sheaf-block-{i} -->")
 }
+
+/// A block marker in the body: its byte offset and the block's index.
+type MarkerAt = (usize, usize);
 
 /// Renders the report. The document's name and bytes (as read, for its
 /// hash) and the results file's name appear in the provenance note.
@@ -320,11 +325,12 @@ pub fn render_report(
     }
 
     // The body with expressions and blocks replaced, front matter dropped.
-    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
+    let mut edits: Vec<(std::ops::Range<usize>, String, Option<usize>)> = Vec::new();
     for (e, v) in doc.expressions.iter().zip(&values) {
         edits.push((
             e.range.clone(),
             markdown_escape(&view::typographic_minus(v)),
+            None,
         ));
     }
     for (i, b) in doc.blocks.iter().enumerate() {
@@ -332,21 +338,25 @@ pub fn render_report(
             Format::Html => format!("{}\n", marker(i)),
             Format::Markdown => fragments[i].clone(),
         };
-        edits.push((b.range.clone(), replacement));
+        edits.push((b.range.clone(), replacement, Some(i)));
     }
-    edits.sort_by_key(|(r, _)| r.start);
+    edits.sort_by_key(|(r, _, _)| r.start);
     let mut body = String::with_capacity(doc.source.len());
+    let mut markers: Vec<MarkerAt> = Vec::new();
     let mut pos = doc.body_start;
-    for (range, text) in edits {
+    for (range, text, block) in edits {
         body.push_str(&doc.source[pos..range.start]);
+        if let Some(i) = block {
+            markers.push((body.len(), i));
+        }
         body.push_str(&text);
         pos = range.end;
     }
     body.push_str(&doc.source[pos..]);
 
     let (content, headings) = match format {
-        Format::Html => prose_html(&body, &fragments, doc.front.contents),
-        Format::Markdown => (body.trim().to_string(), Vec::new()),
+        Format::Html => prose_html(&body, &fragments, &markers, doc.front.contents),
+        Format::Markdown => (inert_links_markdown(&body).trim().to_string(), Vec::new()),
     };
     let contents = (doc.front.contents && format == Format::Html).then(|| ContentsView {
         headings,
@@ -487,26 +497,57 @@ fn tidy_markdown(text: &str) -> String {
 }
 
 /// Markdown to HTML. Raw HTML written in the document is shown as text (a
-/// report carries no scripts); block markers become the blocks' HTML. With
-/// `number_headings`, level 2 and 3 headings get ids (`section-1`, …) and are
-/// returned for the table of contents.
+/// report carries no scripts), links and images whose target could run
+/// script become their text, and block markers (at the offsets in
+/// `markers`) become the blocks' HTML. With `number_headings`, level 2 and 3
+/// headings get ids (`section-1`, …) and are returned for the table of
+/// contents.
 fn prose_html(
     body: &str,
     fragments: &[String],
+    markers: &[MarkerAt],
     number_headings: bool,
 ) -> (String, Vec<ContentsEntry>) {
-    use pulldown_cmark::{HeadingLevel, Tag, TagEnd};
-    let markers: Vec<String> = (0..fragments.len()).map(marker).collect();
+    use pulldown_cmark::HeadingLevel;
     let mut headings: Vec<ContentsEntry> = Vec::new();
     let mut open: Option<usize> = None;
+    let mut open_links: Vec<bool> = Vec::new();
     let mut events = Vec::new();
-    for event in Parser::new_ext(body, markdown_options()) {
+    for (event, range) in Parser::new_ext(body, markdown_options()).into_offset_iter() {
         let event = match event {
             Event::Html(h) | Event::InlineHtml(h) => {
-                match markers.iter().position(|m| h.trim() == m) {
+                let block = markers
+                    .binary_search_by_key(&range.start, |(at, _)| *at)
+                    .ok()
+                    .map(|k| markers[k].1)
+                    .filter(|&i| h.trim() == marker(i));
+                match block {
                     Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
                     None => Event::Text(h),
                 }
+            }
+            Event::Start(Tag::Link {
+                link_type,
+                ref dest_url,
+                ..
+            })
+            | Event::Start(Tag::Image {
+                link_type,
+                ref dest_url,
+                ..
+            }) => {
+                let live = link_type == LinkType::Email || safe_url(dest_url);
+                open_links.push(live);
+                if !live {
+                    continue;
+                }
+                event
+            }
+            Event::End(TagEnd::Link | TagEnd::Image) => {
+                if !open_links.pop().unwrap_or(true) {
+                    continue;
+                }
+                event
             }
             Event::Start(Tag::Heading {
                 level,
@@ -543,6 +584,106 @@ fn prose_html(
     let mut html = String::with_capacity(body.len() * 2);
     pulldown_cmark::html::push_html(&mut html, events.into_iter());
     (html, headings)
+}
+
+/// Markdown output copies prose as written, except links and images whose
+/// target could run script: those become their text, escaped.
+fn inert_links_markdown(body: &str) -> String {
+    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
+    // The outermost unsafe link being read: its range and its text so far.
+    let mut current: Option<(std::ops::Range<usize>, String, usize)> = None;
+    for (event, range) in Parser::new_ext(body, markdown_options()).into_offset_iter() {
+        match (&mut current, event) {
+            (
+                None,
+                Event::Start(
+                    Tag::Link {
+                        link_type,
+                        dest_url,
+                        ..
+                    }
+                    | Tag::Image {
+                        link_type,
+                        dest_url,
+                        ..
+                    },
+                ),
+            ) if link_type != LinkType::Email && !safe_url(&dest_url) => {
+                current = Some((range, String::new(), 0));
+            }
+            (Some((_, _, depth)), Event::Start(Tag::Link { .. } | Tag::Image { .. })) => {
+                *depth += 1;
+            }
+            (Some((_, text, _)), Event::Text(t) | Event::Code(t)) => text.push_str(&t),
+            (Some((_, _, depth)), Event::End(TagEnd::Link | TagEnd::Image)) => {
+                if *depth > 0 {
+                    *depth -= 1;
+                } else if let Some((range, text, _)) = current.take() {
+                    edits.push((range, markdown_escape(&text)));
+                }
+            }
+            _ => {}
+        }
+    }
+    let mut out = String::with_capacity(body.len());
+    let mut pos = 0;
+    for (range, text) in edits {
+        out.push_str(&body[pos..range.start]);
+        out.push_str(&text);
+        pos = range.end;
+    }
+    out.push_str(&body[pos..]);
+    out
+}
+
+/// Whether a link target may stay live: relative URLs, `#fragment`, and the
+/// schemes http, https and mailto. Checked as a browser reads it (tabs and
+/// newlines dropped, surrounding spaces and control characters trimmed) and
+/// also after percent-decoding, so that no spelling of another scheme
+/// (`javascript:`, `data:`, `vbscript:`, any case) passes; entities were
+/// already decoded by the Markdown parser.
+pub(crate) fn safe_url(url: &str) -> bool {
+    let cleaned: String = url
+        .chars()
+        .filter(|c| !matches!(c, '\t' | '\n' | '\r'))
+        .collect();
+    let trim = |s: &str| {
+        s.trim_matches(|c: char| c.is_whitespace() || c.is_control())
+            .to_string()
+    };
+    [trim(&cleaned), trim(&percent_decode(&cleaned))]
+        .iter()
+        .all(|u| match u.find([':', '/', '?', '#']) {
+            Some(i) if u[i..].starts_with(':') => matches!(
+                u[..i].to_ascii_lowercase().as_str(),
+                "http" | "https" | "mailto"
+            ),
+            _ => true,
+        })
+}
+
+/// `%XX` sequences decoded (invalid ones left as they are).
+fn percent_decode(text: &str) -> String {
+    let bytes = text.as_bytes();
+    let mut out = Vec::with_capacity(bytes.len());
+    let mut i = 0;
+    while i < bytes.len() {
+        let hex = bytes
+            .get(i + 1..i + 3)
+            .and_then(|h| std::str::from_utf8(h).ok())
+            .and_then(|h| u8::from_str_radix(h, 16).ok());
+        match (bytes[i], hex) {
+            (b'%', Some(b)) => {
+                out.push(b);
+                i += 3;
+            }
+            (b, _) => {
+                out.push(b);
+                i += 1;
+            }
+        }
+    }
+    String::from_utf8_lossy(&out).into_owned()
 }
 
 #[cfg(test)]

@@ -527,38 +527,39 @@ fn checks_table_of(
         }
     };
     let mut rows = Vec::new();
-    let mut ftest = |name: &str, key: &str, t: &Option<crate::stats::assumptions::FTest>| match t {
-        Some(t) => rows.push(vec![
-            text(name),
-            cell(f_stat(t.statistic), format!("{id}.checks.{key}.statistic")),
-            text(format!("{}, {}", df_text(t.df1), df_text(t.df2))),
-            cell(p_value(t.p), format!("{id}.checks.{key}.p")),
-            text(reading(
-                t.p,
-                "variances differ",
-                "no evidence of unequal variances",
-            )),
-        ]),
-        None => rows.push(vec![
-            text(name),
-            text("–"),
-            text(""),
-            text("–"),
-            text(if c.by_request {
-                "not computed (`checks: summary`)"
-            } else if c.from_summary {
-                "needs the raw observations"
-            } else {
-                "not defined for these data"
-            }),
-        ]),
-    };
-    ftest(
+    let mut variance_test =
+        |name: &str, key: &str, t: &Option<crate::stats::assumptions::FTest>| match t {
+            Some(t) => rows.push(vec![
+                text(name),
+                cell(f_stat(t.statistic), format!("{id}.checks.{key}.statistic")),
+                text(format!("{}, {}", df_text(t.df1), df_text(t.df2))),
+                cell(p_value(t.p), format!("{id}.checks.{key}.p")),
+                text(reading(
+                    t.p,
+                    "variances differ",
+                    "no evidence of unequal variances",
+                )),
+            ]),
+            None => rows.push(vec![
+                text(name),
+                text("–"),
+                text(""),
+                text("–"),
+                text(if c.by_request {
+                    "not computed (`checks: summary`)"
+                } else if c.from_summary {
+                    "needs the raw observations"
+                } else {
+                    "not defined for these data"
+                }),
+            ]),
+        };
+    variance_test(
         "Brown-Forsythe (median-centred)",
         "brown_forsythe",
         &c.brown_forsythe,
     );
-    ftest("Levene (mean-centred)", "levene", &c.levene);
+    variance_test("Levene (mean-centred)", "levene", &c.levene);
     match c.bartlett {
         Some(b) => rows.push(vec![
             text("Bartlett"),

@@ -1,0 +1,166 @@
+//! Prose expressions end to end: how values read, the `statement` filter,
+//! the bounds on an expression's work and text, and documents at scale.
+
+use sheaf::compile::{World, compile};
+use sheaf::render::Format;
+
+/// Dried plant weights (Dobson 1983, as in tests/cases/plant-growth): three
+/// levels of ten.
+const PLANTS: &str = include_str!("cases/plant-growth/plants.csv");
+
+struct Memory;
+
+impl World for Memory {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        match path {
+            "plants.csv" => Ok(PLANTS.as_bytes().to_vec()),
+            _ => Err(std::io::Error::new(std::io::ErrorKind::NotFound, path)),
+        }
+    }
+    fn display(&self, path: &str) -> String {
+        path.to_string()
+    }
+}
+
+const BLOCKS: &str = "```anova\nid: g\ndata: plants.csv\nmodel: weight ~ group\n```\n\n\
+```anova\nid: w\ndata: plants.csv\nmodel: weight ~ group\nmethod: welch\n```\n\n\
+```anova\nid: k\ndata: plants.csv\nmodel: weight ~ group\nmethod: ranks\n```\n\n\
+```power\nid: plan\ngroups: 3\neffect: f = 0.4\npower: 0.8\n```\n\n";
+
+/// The Markdown report of BLOCKS followed by `prose`.
+fn prose(prose: &str) -> Result<String, Box<sheaf::diag::Diagnostic>> {
+    let doc = format!("{BLOCKS}{prose}\n");
+    let built =
+        compile("report.md", doc.as_bytes(), &Memory, Format::Markdown).map_err(Box::new)?;
+    Ok(String::from_utf8(built.report).expect("utf-8"))
+}
+
+fn error(text: &str) -> sheaf::diag::Diagnostic {
+    *prose(text).expect_err("refused")
+}
+
+#[test]
+fn whole_numbers_read_as_integers_and_booleans_as_yes_no() {
+    // 30 plants in 3 groups: residual df 27 (common practice: N - k).
+    let md = prose(
+        "R{{ g.residual.df }} D{{ g.df2 }} T{{ g.df1 + 0.0 }} N{{ g.checks.shapiro_wilk.n }} \
+         S{{ g.pairs[0].significant }} B{{ 1 > 2 }} H{{ g.f | round(2) }}",
+    )
+    .expect("builds");
+    for want in ["R27 ", "D27 ", "T2 ", "N30 ", "Bno ", "H4.85"] {
+        assert!(md.contains(want), "`{want}` in {md}");
+    }
+    // trt1 against trt2 is the one significant Tukey pair (METHODS 6.4);
+    // the first pair in table order is ctrl against trt1, not significant.
+    assert!(md.contains("Sno "), "{md}");
+}
+
+#[test]
+fn statement_prints_every_test() {
+    // Values as printed in the golden cases (plant-growth, robust-methods style).
+    let md = prose(
+        "A: {{ g | statement }}. B: {{ g.terms.group | statement }}. \
+         C: {{ w | statement }}. D: {{ w.welch | statement }}. E: {{ k.kruskal | statement }}. \
+         F: {{ k | statement }}. G: {{ g.checks.levene | statement }}. \
+         H: {{ g.checks.bartlett | statement }}. I: {{ g.checks.shapiro_wilk | statement }}. \
+         J: {{ g.terms.group.statement }}.",
+    )
+    .expect("builds");
+    assert!(md.contains("A: F(2, 27) = 4.85, p = 0.016."), "{md}");
+    assert!(md.contains("B: F(2, 27) = 4.85, p = 0.016."), "{md}");
+    assert!(md.contains("C: Welch's F(2, "), "{md}");
+    assert!(md.contains("D: Welch's F(2, "), "{md}");
+    assert!(md.contains("E: H(2) = "), "{md}");
+    assert!(md.contains("F: H(2) = "), "{md}");
+    assert!(md.contains("G: F(2, 27) = "), "{md}");
+    assert!(md.contains("H: χ²(2) = "), "{md}");
+    assert!(md.contains("I: W = 0."), "{md}");
+    assert!(md.contains("J: F(2, 27) = 4.85, p = 0.016."), "{md}");
+    let e = error("{{ plan | statement }}");
+    assert!(e.message.contains("`statement` prints a test"), "{e:?}");
+    let e = error("{{ g.f | statement }}");
+    assert!(e.message.contains("`statement` prints a test"), "{e:?}");
+}
+
+/// Expressions that would allocate or compute without bound are refused at
+/// their line and column, whatever engine feature they use.
+#[test]
+fn unbounded_expressions_are_refused_at_their_place() {
+    for expr in [
+        r#""x" * 1000000000"#,
+        r#""x" * 100000 * 100000"#,
+        r#"range(100000) | join("abcdefgh" * 100)"#,
+        r#""%999999999s" | format("a")"#,
+        r#""%.999999999f" | format(1.5)"#,
+        "range(100000) | sort(reverse=true) | sort | sort(reverse=true) | sort | sort(reverse=true) | list | length",
+        "(range(100000) | list) * 100",
+        r#""ab" | indent(999999999)"#,
+    ] {
+        let e = error(&format!("Intro line.\n\nSee {{{{ {expr} }}}} here."));
+        let place = e.place.as_ref().expect("placed");
+        assert_eq!(
+            (place.line, place.column),
+            (Some(30), Some(5)),
+            "{expr}: {e:?}"
+        );
+    }
+    let e = error(r#"Text {{ "ab" * 6000 }}"#);
+    assert!(
+        e.message
+            .contains("gives 12000 bytes of text; an expression may give at most 10000"),
+        "{e:?}"
+    );
+    let e = error(r#"{{ "x" * 1000000000 }}"#);
+    assert!(
+        e.message
+            .contains("needs more work than prose expressions may do"),
+        "{e:?}"
+    );
+}
+
+/// Many expressions, each within its own bound, still meet the document's.
+#[test]
+fn the_document_has_one_budget_for_all_expressions() {
+    // 6 MB of text each, at least 94,000 units (64 bytes a unit): within an
+    // expression's 200,000, and 400 of them far beyond the document's.
+    let heavy = r#"{{ ("x" * 6000000) | length }} "#;
+    let e = error(&heavy.repeat(400));
+    assert!(e.message.contains("needs more work"), "{e:?}");
+    assert!(prose(&heavy.repeat(2)).is_ok());
+}
+
+/// A paragraph of 40,000 expressions: every one expanded, in order.
+#[test]
+fn forty_thousand_expressions_in_one_paragraph() {
+    let para: String = (0..40_000)
+        .map(|i| format!("<{i}:{{{{ g.df1 + {i} }}}}> "))
+        .collect();
+    let md = prose(&para).expect("builds");
+    // Every expansion, in order (the escaped `<` of the Markdown output aside).
+    let mut from = 0;
+    for i in 0..40_000 {
+        let want = format!("{i}:{}>", i + 2);
+        let at = md[from..]
+            .find(&want)
+            .unwrap_or_else(|| panic!("{want} missing"));
+        from += at + want.len();
+    }
+}
+
+#[test]
+fn level_names_with_spaces_get_the_bracket_form() {
+    let e = error("{{ g.groups.peat moss.mean }}");
+    assert!(
+        e.hints
+            .iter()
+            .any(|h| h.contains(r#"g.groups["peat moss"].mean"#)),
+        "{e:?}"
+    );
+    let e = error("{{ g.groups.peat-perlite.mean | fixed(2) }}");
+    assert!(
+        e.hints
+            .iter()
+            .any(|h| h.contains(r#"g.groups["peat-perlite"].mean"#)),
+        "{e:?}"
+    );
+}
