@@ -164,3 +164,18 @@ fn level_names_with_spaces_get_the_bracket_form() {
         "{e:?}"
     );
 }
+
+#[test]
+fn round_and_fixed_follow_the_one_rounding_rule() {
+    // 1643.8 / 4 is exactly 410.95; its double is 410.9499…. The report's
+    // rule reads it as 410.95 and rounds half away from zero, in `fixed` and
+    // in `round` alike (the template engine's own `round` would give 410.9).
+    let md = prose(
+        "A{{ (1643.8 / 4) | fixed(1) }} B{{ (1643.8 / 4) | round(1) }} C{{ 455.125 | round(2) }} \
+         D{{ -2.5 | round }} E{{ 2.675 | fixed(2) }}",
+    )
+    .expect("builds");
+    for want in ["A411.0 ", "B411 ", "C455.13 ", "D−3 ", "E2.68"] {
+        assert!(md.contains(want), "`{want}` in {md}");
+    }
+}

@@ -547,6 +547,15 @@ fn environment(fuel_used: Arc<AtomicU64>) -> Environment<'static> {
             Ok(significant(number(&v, "sig")?, d.unwrap_or(3).clamp(1, 15)))
         },
     );
+    // `round` follows the report's one rounding rule (render::format), not
+    // the template engine's binary rounding: 410.95 | round(1) is 411.0.
+    env.add_filter(
+        "round",
+        |v: Value, d: Option<u32>| -> Result<Value, minijinja::Error> {
+            let text = fixed(number(&v, "round")?, d.unwrap_or(0).min(12));
+            Ok(Value::from(text.parse::<f64>().unwrap_or(f64::NAN)))
+        },
+    );
     env.add_filter("statement", statement);
     env.add_filter(
         FUEL_PROBE,
