@@ -295,3 +295,38 @@ fn a_header_below_a_title_gets_a_range_hint() {
     );
     assert!(build_workbook(&workbook(&sheet, None), "range: A3:B11\n").is_ok());
 }
+
+/// A cell reference longer than any worksheet's (found by the `spreadsheet`
+/// fuzz target): the spreadsheet library accumulates it in 32 bits and
+/// overflows, so sheaf refuses the part before the library reads it.
+#[test]
+fn an_overlong_cell_reference_is_refused_before_it_is_read() {
+    let columns = "X".repeat(40);
+    for reference in [
+        format!("{columns}1"),
+        "A99999999".into(),
+        "XFE1".into(),
+        "A0".into(),
+    ] {
+        let sheet = format!(
+            r#"<row r="1"><c r="A1" t="inlineStr"><is><t>y</t></is></c><c r="{reference}"><v>2</v></c></row>"#
+        );
+        let book = sheaf::fuzzing::minimal_workbook(&sheet).expect("workbook");
+        let err = sheaf::data::spreadsheet::read_sheet(&book, None, None)
+            .err()
+            .unwrap_or_else(|| panic!("{reference} was accepted"));
+        assert!(
+            err.message.contains("is not a cell of a worksheet"),
+            "{reference}: {}",
+            err.message
+        );
+    }
+    // The largest legal references still read.
+    let sheet =
+        r#"<row r="1"><c r="A1"><v>1</v></c></row><row r="2"><c r="xfd2"><v>2</v></c></row>"#;
+    let book = sheaf::fuzzing::minimal_workbook(sheet).expect("workbook");
+    let refused = sheaf::data::spreadsheet::read_sheet(&book, None, None)
+        .err()
+        .is_some_and(|e| e.message.contains("is not a cell of a worksheet"));
+    assert!(!refused);
+}

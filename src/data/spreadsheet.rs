@@ -150,11 +150,23 @@ fn check_unpacked(bytes: &[u8]) -> Result<(), DataError> {
         let name = part.name().to_string();
         let declared = part.size();
         let budget = MAX_UNPACKED_BYTES - total;
+        let is_sheet = name.starts_with("xl/worksheets/") && name.ends_with(".xml");
+        let mut references = ReferenceCheck::default();
         let inflated = if declared > budget {
             declared
+        } else if is_sheet {
+            std::io::copy(&mut part.take(budget + 1), &mut references).unwrap_or(0)
         } else {
             std::io::copy(&mut part.take(budget + 1), &mut std::io::sink()).unwrap_or(0)
         };
+        if let Some(bad) = references.bad {
+            return Err(error(
+                format!(
+                    "the sheet part `{name}` holds the cell reference `{bad}`, which is not a cell of a worksheet"
+                ),
+                "a worksheet has columns A to XFD and rows 1 to 1048576; the file is damaged or was not written by a spreadsheet program: save it again, or export the sheet as CSV",
+            ));
+        }
         total += inflated.min(budget + 1);
         if total > MAX_UNPACKED_BYTES {
             return Err(error(
@@ -172,6 +184,71 @@ fn check_unpacked(bytes: &[u8]) -> Result<(), DataError> {
         }
     }
     Ok(())
+}
+
+/// Checks, while a sheet part inflates, that every `r="…"` attribute (cells
+/// and rows) is a reference a worksheet can hold. The spreadsheet library
+/// accumulates an overlong reference in 32 bits, which overflows (a panic in
+/// checked builds, a wrong cell otherwise); refusing it first is cheaper than
+/// trusting it.
+#[derive(Default)]
+struct ReferenceCheck {
+    /// How much of ` r="` has been matched, then 4 while inside the value.
+    matched: usize,
+    value: Vec<u8>,
+    bad: Option<String>,
+}
+
+impl ReferenceCheck {
+    const OPEN: &'static [u8] = b" r=\"";
+
+    fn finish_value(&mut self) {
+        let v = &self.value;
+        let letters = v.iter().take_while(|b| b.is_ascii_alphabetic()).count();
+        let digits = &v[letters..];
+        let column_ok =
+            letters <= 3 && (letters < 3 || v[..3].to_ascii_uppercase().as_slice() <= &b"XFD"[..]);
+        let row_ok = !digits.is_empty()
+            && digits.len() <= 7
+            && digits.iter().all(u8::is_ascii_digit)
+            && std::str::from_utf8(digits)
+                .ok()
+                .and_then(|d| d.parse::<u32>().ok())
+                .is_some_and(|r| (1..=1_048_576).contains(&r));
+        if !(column_ok && row_ok) && self.bad.is_none() {
+            let shown: String = String::from_utf8_lossy(v).chars().take(40).collect();
+            self.bad = Some(shown);
+        }
+        self.value.clear();
+    }
+}
+
+impl std::io::Write for ReferenceCheck {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        for &b in buf {
+            if self.matched == Self::OPEN.len() {
+                if b == b'"' {
+                    self.finish_value();
+                    self.matched = 0;
+                } else if self.value.len() <= 16 {
+                    self.value.push(b);
+                } else {
+                    // Longer than any reference: judge what was read.
+                    self.finish_value();
+                    self.matched = 0;
+                }
+            } else if b == Self::OPEN[self.matched] {
+                self.matched += 1;
+            } else {
+                self.matched = usize::from(b == Self::OPEN[0]);
+            }
+        }
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> std::io::Result<()> {
+        Ok(())
+    }
 }
 
 /// The cells with content of one sheet, sparsely, as (row, column, text).
