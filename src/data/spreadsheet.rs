@@ -450,7 +450,7 @@ fn lay_out(mut cells: Cells, area: Area, sheet: &str) -> Result<Table, DataError
     let header_row = area.start.0;
     let head: Vec<(u32, String)> = cells
         .iter()
-        .filter(|(r, _, _)| *r == header_row)
+        .filter(|(r, c, _)| *r == header_row && area.contains(*r, *c))
         .filter_map(|(_, c, t)| match t {
             CellText::Text(s) if !s.trim().is_empty() => Some((*c - area.start.1, s.clone())),
             _ => None,
@@ -485,8 +485,12 @@ fn lay_out(mut cells: Cells, area: Area, sheet: &str) -> Result<Table, DataError
     let mut rows: Vec<Record> = Vec::new();
     let mut problems = Vec::new();
     for (r, c, text) in cells {
+        // Cells outside the area read (beside a `range`) are not the table's.
+        if r == header_row || !area.contains(r, c) {
+            continue;
+        }
         let col = (c - area.start.1) as usize;
-        if r == header_row || col >= width {
+        if col >= width {
             continue;
         }
         let line = r as usize + 1;
