@@ -10,170 +10,31 @@ use crate::data::scan::{
 };
 use crate::data::{DataError, Exclusion, SummaryColumns, SummaryRow, Table, prepare, summary_rows};
 use crate::diag::Diagnostic;
-use crate::doc::block::{AnovaSpec, CheckSet, Omnibus, Order};
+use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
 use crate::doc::power::{EffectInput, PowerGoal, PowerSpec};
 use crate::doc::{Block, Document};
-use crate::stats::assumptions::{
-    Center, ChiSquareTest, FTest, OUTLIER_THRESHOLD, ShapiroWilk, ShapiroWilkSkip, bartlett,
-    levene, outliers, quartiles, shapiro_wilk, skewness_kurtosis,
+use crate::outcome::{
+    AnovaResult, Checks, ComparisonResult, LevelResult, OUTLIERS_LISTED, OutlierRow, PowerResult,
+    most_extreme,
 };
-use crate::stats::compare::{LevelMean, Method, Pair, pairwise};
+use crate::provenance::Input;
+use crate::stats::assumptions::{
+    Center, OUTLIER_THRESHOLD, ShapiroWilkSkip, bartlett, levene, outliers, quartiles,
+    shapiro_wilk, skewness_kurtosis,
+};
+use crate::stats::compare::{LevelMean, Method, pairwise};
 use crate::stats::dist::t_isf;
 use crate::stats::dunnett::{DUNNETT_MIN_ALPHA, Sides, dunnett};
-use crate::stats::effect::{EffectSizes, one_way_effects};
+use crate::stats::effect::one_way_effects;
 use crate::stats::effect::{one_way_power, one_way_sample_size};
 use crate::stats::letters::{compact_letters, letter_count};
 use crate::stats::oneway::{GroupSummary, OneWay, OneWayError, one_way, total_sum_of_squares};
 use crate::stats::ranks::{KruskalWallis, dunn, kruskal_wallis};
-use crate::stats::welch::{WelchAnova, games_howell, welch_anova};
-
-/// Summary of one level of the factor.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct LevelResult {
-    pub name: String,
-    pub n: usize,
-    pub mean: f64,
-    /// Sample SD (n − 1 divisor); NaN for n = 1.
-    pub sd: f64,
-    /// Standard error of the mean: √(MSE/n) pooled, or s/√n under Welch.
-    pub se: f64,
-    /// Confidence interval for the mean: pooled MSE on ν error df, or the
-    /// level's own SD under Welch (see `AnovaResult::ci_pooled`).
-    pub ci_lower: f64,
-    pub ci_upper: f64,
-    pub median: f64,
-    /// First and third quartiles (linear interpolation, "type 7").
-    pub q1: f64,
-    pub q3: f64,
-}
-
-/// One pairwise family with its letters.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct ComparisonResult {
-    pub method: Method,
-    pub alpha: f64,
-    pub pairs: Vec<Pair>,
-    /// Letters per level, in level order; empty for Dunnett (many-to-one).
-    pub letters: Vec<String>,
-    /// The t or q critical value behind the intervals.
-    pub critical: f64,
-    /// Dunnett's control level (index into the levels).
-    pub control: Option<usize>,
-    /// Dunnett's sidedness.
-    pub sides: Sides,
-    /// True when Fisher's protection withheld all declarations (F not significant).
-    pub withheld: bool,
-    /// Plain-language notes on the procedure (protection, interval choice).
-    pub notes: Vec<String>,
-}
-
-/// Everything computed for one `anova` block.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct AnovaResult {
-    pub method: Omnibus,
-    pub checks: Checks,
-    pub welch: Option<WelchAnova>,
-    pub kruskal: Option<KruskalWallis>,
-    pub effect: Option<EffectSizes>,
-    /// True when SEs and intervals use the pooled MSE; false for per-level SDs.
-    pub ci_pooled: bool,
-    pub id: String,
-    pub line: usize,
-    pub data: String,
-    pub response: String,
-    pub factor: String,
-    pub alpha: f64,
-    pub n: usize,
-    pub exclusions: Vec<Exclusion>,
-    pub table: OneWay,
-    /// Levels that entered the analysis, in design order.
-    pub levels: Vec<LevelResult>,
-    pub comparison: Option<ComparisonResult>,
-    pub warnings: Vec<String>,
-    /// Notes the author acknowledged (`acknowledge`, planned exclusions):
-    /// listed in the provenance section rather than boxed.
-    pub acknowledged: Vec<String>,
-    /// Decimals for means, SDs, SEs, intervals and differences.
-    pub decimals: u32,
-    pub caption: Option<String>,
-    pub order: Order,
-    pub show: crate::doc::block::Show,
-    /// The observations per level (absolute values), for figures; empty
-    /// when the block draws none, and for summary input.
-    pub observations: Vec<Vec<f64>>,
-    /// Data lines of the observations, parallel to `observations`.
-    pub observation_lines: Vec<Vec<usize>>,
-    /// Figures asked for with `plot`, with their axis settings.
-    pub plots: crate::doc::block::PlotSpec,
-}
+use crate::stats::welch::{games_howell, welch_anova};
 
 /// Above this many levels pairwise comparisons are skipped with a warning
 /// (200 levels are 19,900 pairs, each with its own studentized-range tail).
 pub const MAX_COMPARED_LEVELS: usize = 200;
-
-/// The result of any analysis block.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub enum BlockResult {
-    Anova(Box<AnovaResult>),
-    Factorial(Box<factorial::FactorialResult>),
-    Power(PowerResult),
-}
-
-impl BlockResult {
-    pub fn id(&self) -> &str {
-        match self {
-            BlockResult::Anova(r) => &r.id,
-            BlockResult::Factorial(r) => &r.id,
-            BlockResult::Power(r) => &r.id,
-        }
-    }
-
-    pub fn line(&self) -> usize {
-        match self {
-            BlockResult::Anova(r) => r.line,
-            BlockResult::Factorial(r) => r.line,
-            BlockResult::Power(r) => r.line,
-        }
-    }
-
-    /// Moves a (cached) result to the block's current line.
-    pub fn set_line(&mut self, line: usize) {
-        match self {
-            BlockResult::Anova(r) => r.line = line,
-            BlockResult::Factorial(r) => r.line = line,
-            BlockResult::Power(r) => r.line = line,
-        }
-    }
-
-    pub fn warnings(&self) -> &[String] {
-        match self {
-            BlockResult::Anova(r) => &r.warnings,
-            BlockResult::Factorial(r) => &r.warnings,
-            BlockResult::Power(r) => &r.warnings,
-        }
-    }
-}
-
-/// A planned one-way experiment: the power at n per group, or the n for a power.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct PowerResult {
-    pub id: String,
-    pub line: usize,
-    pub groups: usize,
-    pub effect: EffectInput,
-    pub cohens_f: f64,
-    pub alpha: f64,
-    /// The target power when solving for n.
-    pub target: Option<f64>,
-    /// n per group: the answer when solving for n, else the input.
-    pub n_per_group: Option<usize>,
-    /// Power at `n_per_group`.
-    pub power: f64,
-    /// Power over a range of n per group, for the table.
-    pub curve: Vec<(usize, f64)>,
-    pub caption: Option<String>,
-    pub warnings: Vec<String>,
-}
 
 /// Runs a `power` block (no data needed).
 pub fn run_power(doc: &Document, block: &Block, spec: &PowerSpec) -> PowerResult {
@@ -232,29 +93,6 @@ pub fn run_power(doc: &Document, block: &Block, spec: &PowerSpec) -> PowerResult
         curve,
         caption: spec.caption.clone(),
         warnings,
-    }
-}
-
-/// A data file as read for the build.
-#[derive(Debug, Clone)]
-pub struct Input {
-    /// The path as written in the block (relative to the document's folder).
-    pub path: String,
-    /// SHA-256 of the file, in hex.
-    pub sha256: String,
-    pub size: u64,
-    /// The bytes, unless the file was streamed past (see `data::scan`).
-    pub bytes: Option<Vec<u8>>,
-}
-
-impl Input {
-    pub fn loaded(path: &str, bytes: Vec<u8>) -> Input {
-        Input {
-            path: path.to_string(),
-            sha256: crate::results::sha256_hex(&bytes),
-            size: bytes.len() as u64,
-            bytes: Some(bytes),
-        }
     }
 }
 
@@ -529,7 +367,7 @@ pub(crate) fn exclusion_notes(excluded: &[Exclusion], path: &str) -> Vec<String>
             };
             format!(
                 "{} {rows} of {path} {were} left out {k} ({}).",
-                crate::render::format::count(count),
+                crate::format::count(count),
                 line_ranges(&lines)
             )
         })
@@ -584,7 +422,7 @@ pub(crate) fn line_ranges(lines: &[usize]) -> String {
     format!(
         "lines {}, and {} more up to line {}; the results file lists every line",
         shown.join(", "),
-        crate::render::format::count(rest),
+        crate::format::count(rest),
         runs.last().map_or(0, |r| r.1)
     )
 }
@@ -963,8 +801,8 @@ fn analyse(
     if let Some(r) = rounding {
         warnings.push(format!(
             "These results come from published summaries (n, mean and SD per level). Checks that need the raw observations (Brown-Forsythe, Levene, Shapiro-Wilk, outliers, ranks) could not be done. Rounding the summaries to their printed digits leaves F between {} and {} ({}).",
-            crate::render::format::fixed(r.f_low, 2),
-            crate::render::format::fixed(r.f_high, 2),
+            crate::format::fixed(r.f_low, 2),
+            crate::format::fixed(r.f_high, 2),
             p_range(r.p_low, r.p_high)
         ));
     }
@@ -1171,39 +1009,6 @@ fn formula_text(f: &crate::doc::formula::Formula) -> String {
     format!("{} ~ {}", f.response, terms.join(" + "))
 }
 
-/// Assumption checks of one block (computed always; shown unless `checks: none`).
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct Checks {
-    pub shown: bool,
-    pub brown_forsythe: Option<FTest>,
-    pub levene: Option<FTest>,
-    pub bartlett: Option<ChiSquareTest>,
-    pub shapiro_wilk: Result<ShapiroWilk, ShapiroWilkSkip>,
-    pub skewness: f64,
-    pub excess_kurtosis: f64,
-    /// Largest over smallest level SD.
-    pub sd_ratio: f64,
-    pub balanced: bool,
-    /// How many observations are beyond the outlier threshold in all.
-    pub outlier_count: usize,
-    /// The most extreme of them (at most `OUTLIERS_KEPT`), in data order.
-    pub outliers: Vec<OutlierRow>,
-    /// Only summaries were given, so the raw-data checks could not run.
-    pub from_summary: bool,
-    /// The summaries-only set was asked for (`checks: summary`).
-    #[serde(default)]
-    pub by_request: bool,
-}
-
-/// An observation flagged by its studentized residual.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct OutlierRow {
-    pub line: usize,
-    pub level: String,
-    pub value: f64,
-    pub studentized_residual: f64,
-}
-
 /// Largest over smallest level SD (NaN when a level has none or no spread).
 fn sd_ratio(summaries: &[GroupSummary]) -> f64 {
     let sds: Vec<f64> = summaries
@@ -1339,12 +1144,9 @@ pub(crate) fn split_acknowledged(
 /// "p between 0.012 and 0.031", or one phrase when both ends print alike
 /// ("p < 0.001 throughout").
 pub(crate) fn p_range(low: f64, high: f64) -> String {
-    let (a, b) = (
-        crate::render::format::p_value(low),
-        crate::render::format::p_value(high),
-    );
+    let (a, b) = (crate::format::p_value(low), crate::format::p_value(high));
     if a == b {
-        format!("{} throughout", crate::render::format::p_phrase(low))
+        format!("{} throughout", crate::format::p_phrase(low))
     } else {
         format!("p between {a} and {b}")
     }
@@ -1354,7 +1156,7 @@ impl Checks {
     /// When only the mean-centred Levene test rejects equal variances: say so,
     /// with both p-values, and what that means for the F tests.
     pub fn levene_only_note(&self, alpha: f64) -> Option<String> {
-        let p3 = crate::render::format::p_phrase;
+        let p3 = crate::format::p_phrase;
         let levene = self.levene.filter(|t| t.p < alpha)?;
         let bf = self.brown_forsythe.filter(|t| t.p >= alpha)?;
         Some(format!(
@@ -1369,7 +1171,7 @@ impl Checks {
     /// `decimals` is the data's own precision, for quoting values.
     pub fn advice(&self, method: Omnibus, alpha: f64, decimals: u32) -> Vec<String> {
         let mut out = Vec::new();
-        let p3 = crate::render::format::p_phrase;
+        let p3 = crate::format::p_phrase;
         if method == Omnibus::Anova {
             if let Some(bf) = self.brown_forsythe.filter(|t| t.p < alpha) {
                 out.push(format!(
@@ -1383,7 +1185,7 @@ impl Checks {
             } else if self.sd_ratio > 2.0 && !self.balanced {
                 out.push(format!(
                     "The largest level SD is {} times the smallest, with unequal group sizes; the F test can mislead there. Consider `method: welch`.",
-                    crate::render::format::fixed(self.sd_ratio, 1)
+                    crate::format::fixed(self.sd_ratio, 1)
                 ));
             }
         }
@@ -1393,7 +1195,7 @@ impl Checks {
         {
             out.push(format!(
                         "The residuals depart from a normal distribution (Shapiro-Wilk W = {}, {}). Look at how they depart; consider a transformation of the response, or `method: ranks` (Kruskal-Wallis with Dunn's comparisons).",
-                        crate::render::format::fixed(sw.w, 3),
+                        crate::format::fixed(sw.w, 3),
                         p3(sw.p)
                     ));
         }
@@ -1414,8 +1216,8 @@ impl Checks {
                 "line {} (level `{}`, value {}, studentized residual {})",
                 o.line,
                 o.level,
-                crate::render::format::fixed(o.value, decimals),
-                crate::render::format::fixed(o.studentized_residual, 2)
+                crate::format::fixed(o.value, decimals),
+                crate::format::fixed(o.studentized_residual, 2)
             )
         };
         if self.outlier_count <= OUTLIERS_LISTED {
@@ -1436,28 +1238,11 @@ impl Checks {
             .collect();
         vec![format!(
             "{} observations have a studentized residual beyond ±{OUTLIER_THRESHOLD}; the {OUTLIERS_LISTED} most extreme are on {}. Check them against the records; the results file lists the {} most extreme. Flagging excludes nothing; with this many, look at the distribution of the residuals (a transformation of the response, or `method: ranks`) rather than at single observations.",
-            crate::render::format::count(self.outlier_count),
+            crate::format::count(self.outlier_count),
             worst.join("; "),
             self.outliers.len()
         )]
     }
-}
-
-/// How many flagged observations reports and the terminal name one by one.
-pub const OUTLIERS_LISTED: usize = 5;
-
-/// The `k` flagged observations with the largest |studentized residual|,
-/// most extreme first (ties in data order).
-pub fn most_extreme(rows: &[OutlierRow], k: usize) -> Vec<&OutlierRow> {
-    let mut sorted: Vec<&OutlierRow> = rows.iter().collect();
-    sorted.sort_by(|a, b| {
-        b.studentized_residual
-            .abs()
-            .total_cmp(&a.studentized_residual.abs())
-            .then(a.line.cmp(&b.line))
-    });
-    sorted.truncate(k);
-    sorted
 }
 
 /// Runs the chosen comparison procedure and derives its letters.

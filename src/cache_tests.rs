@@ -1,7 +1,7 @@
 //! Unit tests for the block cache's sealed entries.
 
 use super::*;
-use crate::analysis::BlockResult;
+use crate::outcome::BlockResult;
 
 fn power_result() -> Option<BlockResult> {
     let doc = crate::doc::parse_document(
@@ -23,10 +23,10 @@ fn an_entry_opens_only_under_its_own_key() {
     let key = "a".repeat(64);
     let result = power_result().expect("a power block");
     let entry = seal(&key, &result).expect("sealed");
-    assert!(open(&key, &entry).is_some());
-    assert!(open(&"b".repeat(64), &entry).is_none());
-    assert!(open(&key, &entry[..entry.len() - 1]).is_none());
-    assert!(open(&key, b"").is_none());
+    assert!(open::<BlockResult>(&key, &entry).is_some());
+    assert!(open::<BlockResult>(&"b".repeat(64), &entry).is_none());
+    assert!(open::<BlockResult>(&key, &entry[..entry.len() - 1]).is_none());
+    assert!(open::<BlockResult>(&key, b"").is_none());
 }
 
 #[test]

@@ -2,228 +2,22 @@
 //! Nothing is written here; `output` writes the finished files.
 
 use crate::analysis::factorial::run_factorial;
-use crate::analysis::{BlockResult, Data, Input, reads_csv_rows, run_anova, run_power, streams};
+use crate::analysis::{Data, reads_csv_rows, run_anova, run_power, streams};
+pub use crate::cache::{CACHE_DIR, CachedDisk};
 use crate::diag::Diagnostic;
+use crate::doc::ImageFormat;
 use crate::doc::{BlockSpec, parse_document};
-use crate::figure::{ImageFormat, draw_all, png};
-use crate::render::{Format, PlacedFigure, render_report};
-use crate::results::{results_json, sha256_hex};
+use crate::figure::PlacedFigure;
+use crate::figure::{draw_all, png};
+use crate::outcome::BlockResult;
+use crate::provenance::{Input, sha256_hex};
+use crate::render::{Format, render_report};
+use crate::results::results_json;
+pub use crate::world::{
+    Confined, DiskWorld, MAX_WHOLE_FILE, World, civil_date, open_regular, read_regular,
+};
 use std::io::Read;
 use std::path::{Path, PathBuf};
-
-/// Where sheaf reads files from: the disk for the CLI, memory in tests.
-pub trait World {
-    /// Reads `path`, which is relative to the document's folder (or absolute).
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>>;
-    /// Opens `path` to be read in chunks, with its size in bytes. Worlds in
-    /// memory hand out their bytes.
-    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        let bytes = self.read(path)?;
-        let size = bytes.len() as u64;
-        Ok((Box::new(std::io::Cursor::new(bytes)), size))
-    }
-    /// How to show `path` in messages (e.g. joined to the document's folder).
-    fn display(&self, path: &str) -> String;
-    /// Progress for long work; shown only where someone is watching.
-    fn progress(&self, _message: &str) {}
-    /// A cached block result, if this world keeps a cache.
-    fn cache_get(&self, _key: &str) -> Option<Vec<u8>> {
-        None
-    }
-    /// Today's date (YYYY-MM-DD) for `date: today`; `None` where no clock is
-    /// available (tests). The only clock sheaf ever reads.
-    fn today(&self) -> Option<String> {
-        None
-    }
-}
-
-/// YYYY-MM-DD of a Unix time (UTC), by the civil-from-days algorithm
-/// (Hinnant, "chrono-Compatible Low-Level Date Algorithms").
-pub fn civil_date(unix_seconds: i64) -> String {
-    let z = unix_seconds.div_euclid(86_400) + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let day = doy - (153 * mp + 2) / 5 + 1;
-    let month = if mp < 10 { mp + 3 } else { mp - 9 };
-    let year = yoe + era * 400 + i64::from(month <= 2);
-    format!("{year:04}-{month:02}-{day:02}")
-}
-
-/// Most bytes of a file read into memory whole (the document, spreadsheets,
-/// CSV files in wide layout or summary tables); CSV files in long layout
-/// are read in chunks whatever their size.
-pub const MAX_WHOLE_FILE: u64 = 1 << 30;
-
-/// Opens `path` (links resolved) only if it is a regular file: a named pipe
-/// would block forever and a device such as /dev/zero never ends. The type
-/// is checked before opening (opening a pipe already blocks) and again on
-/// the open handle.
-pub fn open_regular(path: &Path) -> std::io::Result<(std::fs::File, u64)> {
-    let not_regular = |m: &std::fs::Metadata| {
-        let what = if m.is_dir() {
-            "it is a folder, not a file"
-        } else {
-            "it is not a regular file (a pipe, socket or device)"
-        };
-        Err(std::io::Error::other(what))
-    };
-    let meta = std::fs::metadata(path)?;
-    if !meta.is_file() {
-        return not_regular(&meta);
-    }
-    let file = std::fs::File::open(path)?;
-    let meta = file.metadata()?;
-    if !meta.is_file() {
-        return not_regular(&meta);
-    }
-    Ok((file, meta.len()))
-}
-
-/// Reads a regular file whole, refusing one larger than `limit` bytes; the
-/// read itself stops past the limit, whatever the size said.
-pub fn read_regular(path: &Path, limit: u64) -> std::io::Result<Vec<u8>> {
-    let (file, size) = open_regular(path)?;
-    let too_large = || {
-        std::io::Error::other(format!(
-            "it is larger than {} MiB, the most sheaf reads whole",
-            limit >> 20
-        ))
-    };
-    if size > limit {
-        return Err(too_large());
-    }
-    let mut bytes = Vec::with_capacity(size as usize);
-    file.take(limit + 1).read_to_end(&mut bytes)?;
-    if bytes.len() as u64 > limit {
-        return Err(too_large());
-    }
-    Ok(bytes)
-}
-
-/// Files on disk, relative to a document's folder.
-pub struct DiskWorld {
-    pub base: PathBuf,
-}
-
-impl World for DiskWorld {
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
-        read_regular(&self.base.join(path), MAX_WHOLE_FILE)
-    }
-
-    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        let (file, size) = open_regular(&self.base.join(path))?;
-        Ok((Box::new(file), size))
-    }
-
-    fn display(&self, path: &str) -> String {
-        self.base.join(path).display().to_string()
-    }
-
-    /// On a terminal only, so logs and CI output stay clean.
-    fn progress(&self, message: &str) {
-        use std::io::IsTerminal;
-        if std::io::stderr().is_terminal() {
-            eprintln!("{message}");
-        }
-    }
-
-    /// `SOURCE_DATE_EPOCH` when set (reproducible builds), else the system clock.
-    fn today(&self) -> Option<String> {
-        let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
-            Ok(v) => v.trim().parse::<i64>().ok()?,
-            Err(_) => std::time::SystemTime::now()
-                .duration_since(std::time::UNIX_EPOCH)
-                .ok()?
-                .as_secs() as i64,
-        };
-        Some(civil_date(seconds))
-    }
-}
-
-/// Files on disk, confined to the document's folder tree (`--confine`): no
-/// absolute paths, no `..` that leaves the folder, no symbolic link that
-/// points outside it. For CI systems that build documents nobody has read.
-pub struct Confined<W: World> {
-    pub inner: W,
-    pub base: PathBuf,
-}
-
-fn confinement_error(why: &str) -> std::io::Error {
-    std::io::Error::new(
-        std::io::ErrorKind::PermissionDenied,
-        format!("{why} (--confine keeps data inside the document's folder)"),
-    )
-}
-
-impl<W: World> Confined<W> {
-    /// Refuses a path that leaves the document's folder tree.
-    fn check(&self, path: &str) -> std::io::Result<()> {
-        let p = Path::new(path);
-        if p.is_absolute() || path.starts_with('/') || path.starts_with('\\') || path.contains(':')
-        {
-            return Err(confinement_error("an absolute path"));
-        }
-        let mut depth: i32 = 0;
-        for c in p.components() {
-            match c {
-                std::path::Component::ParentDir => depth -= 1,
-                std::path::Component::Normal(_) => depth += 1,
-                _ => {}
-            }
-            if depth < 0 {
-                return Err(confinement_error(
-                    "a path that leaves the document's folder",
-                ));
-            }
-        }
-        let base = if self.base.as_os_str().is_empty() {
-            Path::new(".")
-        } else {
-            self.base.as_path()
-        };
-        let root = base.canonicalize()?;
-        let full = base.join(p).canonicalize()?;
-        if !full.starts_with(&root) {
-            return Err(confinement_error(
-                "a link that points outside the document's folder",
-            ));
-        }
-        Ok(())
-    }
-}
-
-impl<W: World> World for Confined<W> {
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
-        self.check(path)?;
-        self.inner.read(path)
-    }
-
-    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        self.check(path)?;
-        self.inner.open(path)
-    }
-
-    fn display(&self, path: &str) -> String {
-        self.inner.display(path)
-    }
-
-    /// None: a cache found in a folder nobody has read could have been
-    /// written by anyone, and its checksums catch damage, not forgery.
-    fn cache_get(&self, _key: &str) -> Option<Vec<u8>> {
-        None
-    }
-
-    fn today(&self) -> Option<String> {
-        self.inner.today()
-    }
-
-    fn progress(&self, message: &str) {
-        self.inner.progress(message)
-    }
-}
 
 /// Inputs above this size (bytes) get progress messages on a terminal.
 const LARGE_INPUT: u64 = 20_000_000;
@@ -231,43 +25,6 @@ const LARGE_INPUT: u64 = 20_000_000;
 /// One-factor CSV files from this size (bytes) are streamed past rather than
 /// read into memory (see `data::scan`); the numbers are the same either way.
 const STREAM_FROM: u64 = 32 << 20;
-
-/// The block cache's folder inside the output folder.
-pub const CACHE_DIR: &str = ".sheaf-cache";
-
-/// Files on disk with a block cache: results of unchanged blocks are reused.
-/// The cache is safe to delete and never changes the output: an entry that
-/// does not verify is a miss (see `cache`).
-pub struct CachedDisk {
-    pub disk: DiskWorld,
-    pub cache: PathBuf,
-}
-
-impl World for CachedDisk {
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
-        self.disk.read(path)
-    }
-
-    fn open(&self, path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        self.disk.open(path)
-    }
-
-    fn display(&self, path: &str) -> String {
-        self.disk.display(path)
-    }
-
-    fn cache_get(&self, key: &str) -> Option<Vec<u8>> {
-        crate::cache::read(&self.cache, key)
-    }
-
-    fn today(&self) -> Option<String> {
-        self.disk.today()
-    }
-
-    fn progress(&self, message: &str) {
-        self.disk.progress(message)
-    }
-}
 
 /// The finished outputs of a build.
 #[derive(Debug, Clone, Default)]
@@ -464,7 +221,7 @@ pub fn compile(
         cache_keys.push(key.clone());
         if let Some(mut cached) = world
             .cache_get(&key)
-            .and_then(|entry| crate::cache::open(&key, &entry))
+            .and_then(|entry| crate::cache::open::<BlockResult>(&key, &entry))
         {
             cached.set_line(block.line);
             results.push(cached);
@@ -560,7 +317,14 @@ pub fn compile(
         report_name: format!("{stem}.{}", format.extension()),
         report: report.into_bytes(),
         results_name,
-        results: results_json(&file_name, doc_bytes, format, &inputs, &results, &placed),
+        results: results_json(
+            &file_name,
+            doc_bytes,
+            format.extension(),
+            &inputs,
+            &results,
+            &placed,
+        ),
         files,
         recomputed,
         cache_entries,

@@ -232,6 +232,9 @@ pub fn expand(data: &[u8]) {
 /// write), must open as a miss or a result, never panic.
 pub fn cache_entry(data: &[u8]) {
     let key = "0".repeat(64);
-    let _ = crate::cache::open(&key, data);
-    let _ = crate::cache::open(&key, &crate::cache::seal_payload(&key, data));
+    let _ = crate::cache::open::<crate::outcome::BlockResult>(&key, data);
+    let _ = crate::cache::open::<crate::outcome::BlockResult>(
+        &key,
+        &crate::cache::seal_payload::<crate::outcome::BlockResult>(&key, data),
+    );
 }

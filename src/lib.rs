@@ -23,10 +23,14 @@ pub mod compile;
 pub mod data;
 pub mod diag;
 pub mod doc;
+pub mod escape;
 pub mod figure;
+pub mod format;
 #[doc(hidden)]
 pub mod fuzzing;
+pub mod outcome;
 pub mod output;
+pub mod provenance;
 pub mod render;
 pub mod results;
 pub mod scaffold;
@@ -35,6 +39,7 @@ pub mod stats;
 pub mod validate;
 pub mod verify;
 pub mod watch;
+pub mod world;
 
 /// sheaf's version, printed in every report and results file.
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");

@@ -15,13 +15,14 @@
 mod guard;
 mod lock;
 
-pub use guard::{check_confined, is_real_dir, open_regular};
+pub use crate::world::{is_real_dir, open_own};
+pub use guard::check_confined;
 pub use lock::{FolderLock, LOCK_FILE, LOCK_WAIT};
 
 use crate::cache;
 use crate::compile::{Built, CACHE_DIR};
 use crate::diag::Diagnostic;
-use crate::results::sha256_hex;
+use crate::provenance::sha256_hex;
 use std::fs::{self, OpenOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -113,7 +114,7 @@ fn prepare(dir: &Path, own: &Path, built: &Built) -> Result<(), Diagnostic> {
 /// when it is missing or different.
 fn write_gitignore(own: &Path, staging: &Path) -> Result<(), Diagnostic> {
     let ignore = own.join(".gitignore");
-    let current = open_regular(&ignore).ok().and_then(|f| {
+    let current = open_own(&ignore).ok().and_then(|f| {
         let mut text = String::new();
         std::io::Read::read_to_string(&mut std::io::Read::take(f, 4096), &mut text).ok()?;
         Some(text)

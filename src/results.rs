@@ -6,11 +6,11 @@
 //! A value that is not finite is written as `null`, and the block's
 //! `warnings` say why.
 
-use crate::analysis::{AnovaResult, BlockResult, Input, PowerResult};
 use crate::doc::power::EffectInput;
+use crate::outcome::{AnovaResult, BlockResult, PowerResult};
+use crate::provenance::{Input, sha256_hex};
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
-use sha2::{Digest, Sha256};
 
 /// Version of this file's layout; raised when a field changes meaning.
 pub const SCHEMA_VERSION: u32 = 2;
@@ -18,12 +18,6 @@ pub const SCHEMA_VERSION: u32 = 2;
 /// `not_tested` of a blocking factor's term.
 const BLOCK_REASON: &str =
     "blocking factor: blocks are not randomized, so an F test of them is not valid";
-
-/// Lowercase hex SHA-256 of some bytes.
-pub fn sha256_hex(bytes: &[u8]) -> String {
-    let digest = Sha256::digest(bytes);
-    digest.iter().map(|b| format!("{b:02x}")).collect()
-}
 
 fn finite(x: f64) -> Option<f64> {
     x.is_finite().then_some(x)
@@ -88,7 +82,7 @@ pub struct MeanRecord {
     pub ci_upper: Option<f64>,
 }
 
-fn factorial_record(r: &crate::analysis::factorial::FactorialResult) -> FactorialRecord {
+fn factorial_record(r: &crate::outcome::FactorialResult) -> FactorialRecord {
     let comparisons: Vec<ComparisonRecord> = r
         .families
         .iter()
@@ -696,7 +690,7 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
     }
 }
 
-fn checks_record(c: &crate::analysis::Checks) -> ChecksRecord {
+fn checks_record(c: &crate::outcome::Checks) -> ChecksRecord {
     let f = |t: &crate::stats::assumptions::FTest| FTestRecord {
         statistic: finite(t.statistic),
         df1: t.df1,
@@ -737,10 +731,10 @@ fn checks_record(c: &crate::analysis::Checks) -> ChecksRecord {
 pub fn results_json(
     document: &str,
     document_bytes: &[u8],
-    format: crate::render::Format,
+    format: &str,
     inputs: &[Input],
     blocks: &[BlockResult],
-    figures: &[Vec<crate::render::PlacedFigure>],
+    figures: &[Vec<crate::figure::PlacedFigure>],
 ) -> Vec<u8> {
     let figure_records = |i: usize| -> Vec<FigureRecord> {
         figures.get(i).map_or_else(Vec::new, |figs| {
@@ -759,7 +753,7 @@ pub fn results_json(
         schema: SCHEMA_VERSION,
         document: document.to_string(),
         document_sha256: sha256_hex(document_bytes),
-        format: format.extension().to_string(),
+        format: format.to_string(),
         inputs: inputs
             .iter()
             .map(|i| InputRecord {

@@ -69,7 +69,7 @@ fn the_page_opens_with_the_summary_and_its_counts_match_the_tables() {
         assert_eq!(rows_between(&html, &section, "</section>") - 1, s.checks);
         let row = format!(
             "<tr data-area=\"{key}\"><td><a href=\"#{key}\">{}</a></td><td class=\"num\">{}</td><td class=\"num\">{}</td>",
-            crate::render::html_escape(s.area.title()),
+            crate::escape::html_escape(s.area.title()),
             s.checks,
             s.passed,
             key = s.area.key(),

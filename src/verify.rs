@@ -6,9 +6,9 @@
 
 use crate::compile::{Built, CACHE_DIR};
 use crate::diag::Diagnostic;
-use crate::output::{FolderLock, STAGING_PREFIX, manifest_name, open_regular, outputs};
+use crate::output::{FolderLock, STAGING_PREFIX, manifest_name, open_own, outputs};
+use crate::provenance::sha256_hex;
 use crate::render::Format;
-use crate::results::sha256_hex;
 use serde_json::Value;
 use std::collections::BTreeMap;
 use std::io::Read;
@@ -91,7 +91,7 @@ pub fn format_on_disk(document: &Path, out: &Path) -> Option<Format> {
         format: Option<String>,
     }
     let (_, stem) = crate::compile::names_of(document);
-    let recorded = open_regular(&out.join(format!("{stem}.results.json")))
+    let recorded = open_own(&out.join(format!("{stem}.results.json")))
         .ok()
         .and_then(|f| serde_json::from_reader::<_, Head>(std::io::BufReader::new(f)).ok())
         .and_then(|h| h.format);
@@ -138,7 +138,7 @@ enum OnDisk {
 }
 
 fn read_output(path: &Path) -> OnDisk {
-    match open_regular(path) {
+    match open_own(path) {
         Ok(mut f) => {
             let mut bytes = Vec::new();
             match f.read_to_end(&mut bytes) {

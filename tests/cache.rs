@@ -258,11 +258,14 @@ fn an_entry_of_another_schema_version_revision_or_key_is_a_miss() {
         );
         changed = replaced.into_bytes();
         changed.extend_from_slice(&body[head_len..]);
-        let mut out = format!("{}\n", sheaf::results::sha256_hex(&changed)).into_bytes();
+        let mut out = format!("{}\n", sheaf::provenance::sha256_hex(&changed)).into_bytes();
         out.extend_from_slice(&changed);
         out
     };
-    let schema = format!("schema {}\n", sheaf::results::SCHEMA_VERSION);
+    let schema = format!(
+        "schema {}\n",
+        <sheaf::outcome::BlockResult as sheaf::cache::Cacheable>::SCHEMA
+    );
     let version = format!("sheaf {}\n", sheaf::VERSION);
     let revision = format!("revision {}\n", sheaf::cache::REVISION);
     let other_key = format!("key {}\n", "0".repeat(64));

@@ -243,7 +243,7 @@ fn negative_numbers_use_the_minus_sign_in_reports_and_ascii_in_results() {
     }
     // Level names keep their hyphens.
     assert_eq!(
-        sheaf::render::view::typographic_minus("peat-perlite −x -1.5 (-2) 3-4"),
+        sheaf::format::typographic_minus("peat-perlite −x -1.5 (-2) 3-4"),
         "peat-perlite −x \u{2212}1.5 (\u{2212}2) 3-4"
     );
 }

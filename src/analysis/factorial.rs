@@ -2,12 +2,15 @@
 //! categorical factors, fitted by QR, with Type I/II/III sums of squares,
 //! comparisons on estimated marginal means, simple effects and cell means.
 
-use super::{Checks, ComparisonResult, Data, Input, OutlierRow, data_error, summary_checks};
+use crate::analysis::{Data, data_error, summary_checks};
 use crate::data::scan::ScanSpec;
 use crate::data::{factorial_from_scan, factorial_response};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
 use crate::doc::{Block, Document};
+use crate::outcome::{CellRow, EmmRow, FactorialResult, Family, TermRow, term_label};
+use crate::outcome::{Checks, ComparisonResult, OutlierRow};
+use crate::provenance::Input;
 use crate::stats::assumptions::{
     Center, OUTLIER_THRESHOLD, OUTLIERS_KEPT, bartlett, externally_studentized, levene,
     shapiro_wilk, skewness_kurtosis,
@@ -28,113 +31,6 @@ use crate::stats::sum::neumaier;
 /// memory and finishes in seconds.
 const MAX_DESIGN_COLUMNS: usize = 2_000;
 const MAX_GRID_CELLS: f64 = 1_000_000.0;
-
-/// Why a blocking factor's row shows no F, p or effect size.
-pub const BLOCK_NOT_TESTED: &str = "Blocks are reported (SS, df, MS) but not tested: blocks are not randomized, so an F for them is not a valid test (Montgomery, ch. 4). Their sum of squares is what the blocking removed from the error.";
-
-/// One row of the factorial ANOVA table.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct TermRow {
-    /// Factor names joined by `:` (`wool:tension`).
-    pub name: String,
-    pub factors: Vec<usize>,
-    pub df: usize,
-    pub ss: f64,
-    pub ms: f64,
-    pub f: f64,
-    pub p: f64,
-    pub critical_f: f64,
-    pub partial_eta_sq: f64,
-    pub partial_omega_sq: f64,
-    pub partial_eta_sq_ci: (f64, f64),
-    /// A declared blocking factor: its SS, df and MS are reported, but its
-    /// F, p, critical value and effect size are not (all NaN): blocks are
-    /// not randomized, so their F is no valid test.
-    pub is_block: bool,
-}
-
-/// Observed data in one cell (one combination of the treatment factors' levels).
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct CellRow {
-    pub levels: Vec<usize>,
-    pub n: usize,
-    pub mean: f64,
-    pub sd: f64,
-    /// The mean less the data's origin, as computed from the offsets: cell
-    /// contrasts taken from `mean` would carry the rounding of the origin's
-    /// magnitude (1e-8 near 1e8).
-    #[serde(skip)]
-    pub offset: f64,
-}
-
-/// An estimated marginal (or cell) mean.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct EmmRow {
-    pub label: String,
-    pub n: usize,
-    pub mean: f64,
-    pub se: f64,
-    pub ci_lower: f64,
-    pub ci_upper: f64,
-}
-
-/// One family of comparisons: a main effect, a slice of one (`within`), or all cells.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct Family {
-    /// The compared factor's name, or `cells`.
-    pub term: String,
-    /// `Some("B=level")` for simple effects.
-    pub within: Option<String>,
-    pub means: Vec<EmmRow>,
-    pub comparison: ComparisonResult,
-}
-
-/// Everything computed for a factorial `anova` block.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct FactorialResult {
-    pub id: String,
-    pub line: usize,
-    pub data: String,
-    pub response: String,
-    pub factors: Vec<String>,
-    pub levels: Vec<Vec<String>>,
-    pub alpha: f64,
-    pub ss_type: SsType,
-    /// False when the three SS types give different tables (unbalanced data).
-    pub types_agree: bool,
-    pub terms: Vec<TermRow>,
-    pub residual_df: usize,
-    pub residual_ss: f64,
-    pub mse: f64,
-    pub total_ss: f64,
-    pub r_squared: f64,
-    pub n: usize,
-    pub exclusions: Vec<crate::data::Exclusion>,
-    pub cells: Vec<CellRow>,
-    /// The factors a cell's `levels` refer to: every factor but the blocks.
-    pub cell_factors: Vec<usize>,
-    pub families: Vec<Family>,
-    pub checks: Checks,
-    pub warnings: Vec<String>,
-    /// Notes the author acknowledged, listed in the provenance section.
-    pub acknowledged: Vec<String>,
-    pub decimals: u32,
-    pub caption: Option<String>,
-    pub order: crate::doc::block::Order,
-    pub show: crate::doc::block::Show,
-    /// Per observation: factor levels, value, fitted value, residual, data line (for figures).
-    pub rows: Vec<Vec<usize>>,
-    pub values: Vec<f64>,
-    pub fitted: Vec<f64>,
-    pub residuals: Vec<f64>,
-    pub lines: Vec<usize>,
-    pub plots: crate::doc::block::PlotSpec,
-}
-
-/// Term label for people: `wool × tension`.
-pub fn term_label(name: &str) -> String {
-    name.replace(':', " × ")
-}
 
 fn ss_name(t: SsType) -> &'static str {
     match t {
@@ -314,7 +210,7 @@ pub fn run_factorial(
             format!(
                 "`{}` has {} with data; a factor needs two or more",
                 factor_names[f],
-                crate::render::view::count(levels[f], "level", "levels")
+                crate::format::counted(levels[f], "level", "levels")
             ),
             "check the factor column and the missing-value markers",
         ));
@@ -553,7 +449,7 @@ pub fn run_factorial(
     if !empty.is_empty() {
         warnings.push(format!(
             "{} of levels {} no observations ({}); {}",
-            crate::render::view::count(empty.len(), "combination", "combinations"),
+            crate::format::counted(empty.len(), "combination", "combinations"),
             if empty.len() == 1 { "has" } else { "have" },
             empty.join("; "),
             if rank_deficient {
@@ -1018,7 +914,7 @@ pub fn run_factorial(
 /// Plain-language advice for factorial designs, where Welch and rank methods
 /// are not available: the remedy offered is a transformation.
 fn factorial_advice(checks: &Checks, alpha: f64, decimals: u32) -> Vec<String> {
-    let p3 = crate::render::format::p_phrase;
+    let p3 = crate::format::p_phrase;
     let mut out = Vec::new();
     if let Some(bf) = checks.brown_forsythe.filter(|t| t.p < alpha) {
         out.push(format!(
@@ -1035,7 +931,7 @@ fn factorial_advice(checks: &Checks, alpha: f64, decimals: u32) -> Vec<String> {
     {
         out.push(format!(
                 "The residuals depart from a normal distribution (Shapiro-Wilk W = {}, {}); look at how they depart and consider a transformation of the response.",
-                crate::render::format::fixed(sw.w, 3),
+                crate::format::fixed(sw.w, 3),
                 p3(sw.p)
             ));
     }

@@ -23,6 +23,13 @@ use markdown::{Expression, find_expressions, scan};
 use power::{PowerSpec, power_spec};
 use std::ops::Range;
 
+/// How figures are delivered in Markdown output.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ImageFormat {
+    Svg,
+    Png { dpi: u32 },
+}
+
 /// Keys accepted in the front matter.
 pub const FRONT_MATTER_KEYS: [&str; 10] = [
     "title", "author", "date", "alpha", "decimals", "compare", "figures", "dpi", "paper",
@@ -56,7 +63,7 @@ pub struct FrontMatter {
     pub decimals: Option<u32>,
     pub compare: Option<Method>,
     /// How Markdown output delivers figures: SVG files, or PNG at a resolution.
-    pub figures: crate::figure::ImageFormat,
+    pub figures: ImageFormat,
     /// Page size when the HTML report is printed.
     pub paper: Paper,
     /// A table of contents and lists of tables and figures after the title.
@@ -72,7 +79,7 @@ impl Default for FrontMatter {
             alpha: 0.05,
             decimals: None,
             compare: Some(Method::Tukey),
-            figures: crate::figure::ImageFormat::Svg,
+            figures: ImageFormat::Svg,
             paper: Paper::A4,
             contents: false,
         }
@@ -306,8 +313,8 @@ fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagno
             "compare" => f.compare = parse_compare(e).map_err(|x| doc.spec_error(x))?,
             "figures" => {
                 f.figures = match e.value.to_ascii_lowercase().as_str() {
-                    "svg" => crate::figure::ImageFormat::Svg,
-                    "png" => crate::figure::ImageFormat::Png { dpi: 150 },
+                    "svg" => ImageFormat::Svg,
+                    "png" => ImageFormat::Png { dpi: 150 },
                     _ => {
                         return Err(doc
                             .error_at(
@@ -384,10 +391,8 @@ fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagno
             }
         };
         match f.figures {
-            crate::figure::ImageFormat::Png { .. } => {
-                f.figures = crate::figure::ImageFormat::Png { dpi }
-            }
-            crate::figure::ImageFormat::Svg => {
+            ImageFormat::Png { .. } => f.figures = ImageFormat::Png { dpi },
+            ImageFormat::Svg => {
                 return Err(doc
                     .error_at(
                         e.line,

@@ -33,8 +33,8 @@ pub fn summarised(n: usize) -> bool {
 pub fn caption_note(n: usize, what: &str) -> String {
     format!(
         " With {} observations (more than {}), individual points are not drawn: {what}.",
-        crate::render::format::count(n),
-        crate::render::format::count(POINT_LIMIT)
+        crate::format::count(n),
+        crate::format::count(POINT_LIMIT)
     )
 }
 

@@ -9,7 +9,8 @@
 pub mod dense;
 pub mod plots;
 
-use crate::analysis::BlockResult;
+use crate::escape::xml_escape;
+use crate::outcome::BlockResult;
 use ab_glyph::{Font, FontRef, PxScale, ScaleFont};
 use std::fmt::Write as _;
 use std::sync::OnceLock;
@@ -24,6 +25,13 @@ pub const PALETTE: [&str; 7] = [
     "#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F0E442",
 ];
 
+/// A figure and, for Markdown output, the file it is written to.
+#[derive(Debug, Clone)]
+pub struct PlacedFigure {
+    pub figure: Figure,
+    pub file: Option<String>,
+}
+
 /// A drawn figure.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Figure {
@@ -34,13 +42,6 @@ pub struct Figure {
     pub number: usize,
     pub caption: String,
     pub svg: String,
-}
-
-/// How figures are delivered in Markdown output.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum ImageFormat {
-    Svg,
-    Png { dpi: u32 },
 }
 
 fn font() -> &'static FontRef<'static> {
@@ -97,11 +98,6 @@ pub fn text_width(text: &str, size: f32) -> f32 {
     width
 }
 
-/// Escapes text for SVG (XML) content and attributes.
-pub fn xml_escape(text: &str) -> String {
-    crate::render::html_escape(text)
-}
-
 /// Fixed two-decimal coordinates: short, and identical on every platform.
 pub fn c(v: f64) -> String {
     let s = format!("{v:.2}");
@@ -143,7 +139,7 @@ pub fn tick_label(v: f64, step: f64) -> String {
     } else {
         (-step.log10().floor()) as u32
     };
-    crate::render::format::fixed(v, decimals)
+    crate::format::fixed(v, decimals)
 }
 
 /// A linear map from data values to pixels.

@@ -2,10 +2,10 @@
 //! plots, and residual diagnostics (residuals against fitted, normal Q-Q).
 
 use super::{Figure, PALETTE, Scale, Svg, dense, nice_ticks, text_width, tick_label};
-use crate::analysis::AnovaResult;
-use crate::analysis::factorial::FactorialResult;
 use crate::doc::block::{PlotKind, PlotSpec};
-use crate::render::format::fixed;
+use crate::format::fixed;
+use crate::outcome::AnovaResult;
+use crate::outcome::FactorialResult;
 use crate::stats::assumptions::quartiles;
 use crate::stats::dist::{normal_isf, t_isf};
 
@@ -713,7 +713,7 @@ fn dense_note(kind: PlotKind, observations: usize) -> String {
 /// labels none: its labels would pile up on the few drawn cells, and the
 /// checks table names the most extreme.
 fn flagged_points(
-    checks: &crate::analysis::Checks,
+    checks: &crate::outcome::Checks,
     lines: &[usize],
     summarised: bool,
 ) -> Vec<(usize, String)> {
@@ -770,7 +770,7 @@ pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
     let letters_note = letters.as_ref().map_or(String::new(), |(_, m, a)| {
         format!(" Levels sharing a letter do not differ significantly ({m}, α = {a}).")
     });
-    let conf = crate::render::view::confidence_label(r.alpha);
+    let conf = crate::format::confidence_label(r.alpha);
     let ci_kind = if r.ci_pooled {
         "pooled"
     } else {
@@ -1006,7 +1006,7 @@ fn factor_figure(
             }
         })
         .collect();
-    let conf = crate::render::view::confidence_label(r.alpha);
+    let conf = crate::format::confidence_label(r.alpha);
     let letters_note = fam.map_or(String::new(), |f| {
         format!(
             " Levels sharing a letter do not differ significantly ({}, α = {}).",
@@ -1067,7 +1067,7 @@ fn model_figure(
 ) -> Option<(String, String)> {
     let spec = &r.plots;
     let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
-    let conf = crate::render::view::confidence_label(r.alpha);
+    let conf = crate::format::confidence_label(r.alpha);
     let t = t_isf(r.alpha / 2.0, r.residual_df as f64);
     Some(match kind {
         PlotKind::Interaction => {
@@ -1145,7 +1145,7 @@ fn model_figure(
 
 /// The power curve of a `power` block: power against n per group, with the
 /// target (or the given n) marked.
-pub fn power_figures(r: &crate::analysis::PowerResult, number: &mut usize) -> Vec<Figure> {
+pub fn power_figures(r: &crate::outcome::PowerResult, number: &mut usize) -> Vec<Figure> {
     if r.curve.len() < 2 {
         return Vec::new();
     }
@@ -1161,7 +1161,7 @@ pub fn power_figures(r: &crate::analysis::PowerResult, number: &mut usize) -> Ve
     let caption = format!(
         "Figure {n}. Power of the one-way F test against observations per group ({} groups, Cohen's f = {}, α = {}).",
         r.groups,
-        crate::render::format::significant(r.cohens_f, 3),
+        crate::format::significant(r.cohens_f, 3),
         r.alpha
     );
     let mut svg = Svg::new(&id, WIDTH, HEIGHT, &caption, &caption);

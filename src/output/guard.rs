@@ -4,37 +4,8 @@
 //! lie inside the document's folder tree.
 
 use crate::diag::Diagnostic;
-use std::fs::{self, File, OpenOptions};
+use std::fs;
 use std::path::{Component, Path, PathBuf};
-
-/// Whether `path` is a folder itself, not a link to one.
-pub fn is_real_dir(path: &Path) -> bool {
-    fs::symlink_metadata(path).is_ok_and(|m| m.is_dir())
-}
-
-/// Opens options without following a link at the last component, and
-/// without blocking on a FIFO (where the platform allows saying so).
-pub fn no_follow(options: &mut OpenOptions) -> &mut OpenOptions {
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::OpenOptionsExt;
-        options.custom_flags(libc::O_NOFOLLOW | libc::O_NONBLOCK);
-    }
-    options
-}
-
-/// Opens `path` for reading only if it is a regular file reached without a
-/// symbolic link at its last component.
-pub fn open_regular(path: &Path) -> std::io::Result<File> {
-    if fs::symlink_metadata(path)?.file_type().is_symlink() {
-        return Err(std::io::Error::other("it is a symbolic link"));
-    }
-    let file = no_follow(OpenOptions::new().read(true)).open(path)?;
-    if !file.metadata()?.is_file() {
-        return Err(std::io::Error::other("it is not a regular file"));
-    }
-    Ok(file)
-}
 
 fn refuse(message: String) -> Diagnostic {
     Diagnostic::new(message)

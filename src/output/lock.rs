@@ -3,8 +3,8 @@
 //! half replaced by a concurrent build. The lock file lives in sheaf's own
 //! folder and is never removed (removing a lock file races with its users).
 
-use super::guard::no_follow;
 use crate::diag::Diagnostic;
+use crate::world::no_follow;
 use std::fs::{File, OpenOptions};
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -74,7 +74,7 @@ impl FolderLock {
     /// Takes the reader's lock when the folder has one; `None` when it has
     /// none (no build of this version wrote there) or it cannot be had.
     pub fn shared(own: &Path) -> Option<FolderLock> {
-        let file = super::guard::open_regular(&own.join(LOCK_FILE)).ok()?;
+        let file = crate::world::open_own(&own.join(LOCK_FILE)).ok()?;
         wait_for(&file, true)
             .ok()?
             .then_some(FolderLock { _file: file })

@@ -1,12 +1,12 @@
 //! Prose expressions: `{{ growth.f | round(2) }}` evaluated by minijinja in
 //! strict mode against the blocks' results, with sheaf's own filters.
 
-use super::format::{df_text, f_statement, fixed, p_phrase, p_value, significant};
 use super::to_value;
-use crate::analysis::{AnovaResult, BlockResult, PowerResult};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::markdown::Expression;
+use crate::format::{df_text, f_statement, fixed, p_phrase, p_value, significant};
+use crate::outcome::{AnovaResult, BlockResult, PowerResult};
 use minijinja::value::{Value, ValueKind};
 use minijinja::{Environment, ErrorKind, UndefinedBehavior};
 use serde::Serialize;
@@ -222,7 +222,7 @@ struct BlockContext {
 }
 
 /// The assumption checks as prose sees them (one-factor and factorial blocks).
-fn checks_context(c: &crate::analysis::Checks) -> ChecksContext {
+fn checks_context(c: &crate::outcome::Checks) -> ChecksContext {
     let check_test = |t: &crate::stats::assumptions::FTest| TestContext {
         statistic: t.statistic,
         df1: t.df1,
@@ -394,7 +394,7 @@ struct FactorialContext {
     checks: ChecksContext,
 }
 
-fn factorial_context(r: &crate::analysis::factorial::FactorialResult) -> FactorialContext {
+fn factorial_context(r: &crate::outcome::FactorialResult) -> FactorialContext {
     let terms = r
         .terms
         .iter()

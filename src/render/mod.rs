@@ -4,23 +4,18 @@
 //! (for the `code_spans` filter); Markdown escaping in `markdown_escape`.
 //! Nowhere else.
 
-pub mod format;
 pub mod inline;
 pub mod view;
 
-use crate::analysis::{BlockResult, Input};
-use crate::figure::Figure;
+use crate::figure::PlacedFigure;
+use crate::outcome::BlockResult;
+use crate::provenance::Input;
 
-/// A figure and, for Markdown output, the file it is written to.
-#[derive(Debug, Clone)]
-pub struct PlacedFigure {
-    pub figure: Figure,
-    pub file: Option<String>,
-}
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::markdown::markdown_options;
-use crate::results::sha256_hex;
+use crate::escape::{css_string, html_escape, markdown_escape};
+use crate::provenance::sha256_hex;
 use minijinja::value::Value;
 use minijinja::{AutoEscape, Environment};
 use pulldown_cmark::{CowStr, Event, LinkType, Parser, Tag, TagEnd};
@@ -64,36 +59,6 @@ fn template_source(name: &str) -> &'static str {
         .iter()
         .find(|(n, _)| *n == name)
         .map_or("", |(_, s)| s)
-}
-
-/// Escapes text for inline Markdown: punctuation that could start markup is
-/// backslash-escaped; `<` only where it could open a tag.
-pub fn markdown_escape(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    let mut chars = text.chars().peekable();
-    while let Some(c) = chars.next() {
-        match c {
-            '\\' | '`' | '*' | '_' | '[' | ']' | '|' | '~' | '#' | '!' => {
-                out.push('\\');
-                out.push(c);
-            }
-            '<' if chars
-                .peek()
-                .is_some_and(|n| n.is_ascii_alphabetic() || matches!(n, '/' | '!' | '?')) =>
-            {
-                out.push_str("\\<")
-            }
-            '&' if chars
-                .peek()
-                .is_some_and(|n| n.is_ascii_alphanumeric() || *n == '#') =>
-            {
-                out.push_str("\\&")
-            }
-            '\n' | '\r' => out.push(' '),
-            _ => out.push(c),
-        }
-    }
-    out
 }
 
 /// A serializable view as a template value.
@@ -161,44 +126,6 @@ fn code_spans(state: &minijinja::State, text: String) -> Value {
         }
     }
     Value::from_safe_string(out)
-}
-
-/// A quoted CSS string for the page header: quotes, backslashes, line
-/// breaks and `<` (which could end the `<style>` element) as CSS escapes.
-pub fn css_string(text: &str) -> String {
-    let mut out = String::with_capacity(text.len() + 2);
-    out.push('"');
-    for c in text.chars() {
-        match c {
-            '"' | '\\' => {
-                out.push('\\');
-                out.push(c);
-            }
-            '<' => out.push_str("\\3c "),
-            '>' => out.push_str("\\3e "),
-            '&' => out.push_str("\\26 "),
-            c if c.is_control() => out.push(' '),
-            c => out.push(c),
-        }
-    }
-    out.push('"');
-    out
-}
-
-/// Escapes text for HTML element content and attribute values.
-pub fn html_escape(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#x27;"),
-            _ => out.push(c),
-        }
-    }
-    out
 }
 
 fn render(env: &Environment<'_>, name: &str, ctx: Value) -> Result<String, Diagnostic> {
@@ -329,7 +256,7 @@ pub fn render_report(
     for (e, v) in doc.expressions.iter().zip(&values) {
         edits.push((
             e.range.clone(),
-            markdown_escape(&view::typographic_minus(v)),
+            markdown_escape(&crate::format::typographic_minus(v)),
             None,
         ));
     }
@@ -444,8 +371,8 @@ fn choices_of(r: &BlockResult) -> String {
                 a.id,
                 a.line,
                 a.alpha,
-                view::count(a.n, "observation", "observations"),
-                view::count(a.exclusions.len(), "row", "rows")
+                crate::format::counted(a.n, "observation", "observations"),
+                crate::format::counted(a.exclusions.len(), "row", "rows")
             )
         }
         BlockResult::Factorial(f) => {
@@ -466,8 +393,8 @@ fn choices_of(r: &BlockResult) -> String {
                 f.line,
                 f.factors.join(", "),
                 f.alpha,
-                view::count(f.n, "observation", "observations"),
-                view::count(f.exclusions.len(), "row", "rows")
+                crate::format::counted(f.n, "observation", "observations"),
+                crate::format::counted(f.exclusions.len(), "row", "rows")
             )
         }
         BlockResult::Power(p) => format!(

@@ -1,12 +1,13 @@
 //! The view model: every number of a block formatted once, as strings, with
 //! the results-file key it came from. Templates only lay these out.
 
-use super::format::{
-    column_decimals, df_text, effect_size, f_stat, fixed, p_phrase, p_value, significant,
-};
-use crate::analysis::factorial::FactorialResult;
-use crate::analysis::{AnovaResult, ComparisonResult, PowerResult};
 use crate::doc::block::{Omnibus, Order};
+use crate::format::{
+    alpha_text, column_decimals, confidence_label, df_text, effect_size, f_stat, fixed, p_phrase,
+    p_value, significant, typographic_minus,
+};
+use crate::outcome::FactorialResult;
+use crate::outcome::{AnovaResult, ComparisonResult, PowerResult};
 use crate::stats::assumptions::ShapiroWilkSkip;
 use crate::stats::compare::Method;
 use crate::stats::dunnett::Sides;
@@ -79,8 +80,8 @@ fn col(label: impl Into<String>, numeric: bool) -> Column {
 /// The checks table's note on flagged observations: each line when there are
 /// few, else the count and the most extreme few (the report never lists a
 /// number of lines that grows with the data).
-fn outlier_sentence(c: &crate::analysis::Checks) -> String {
-    use crate::analysis::{OUTLIERS_LISTED, most_extreme};
+fn outlier_sentence(c: &crate::outcome::Checks) -> String {
+    use crate::outcome::{OUTLIERS_LISTED, most_extreme};
     let threshold = crate::stats::assumptions::OUTLIER_THRESHOLD;
     if c.outlier_count <= OUTLIERS_LISTED {
         let lines: Vec<String> = c.outliers.iter().map(|o| o.line.to_string()).collect();
@@ -100,7 +101,7 @@ fn outlier_sentence(c: &crate::analysis::Checks) -> String {
         .collect();
     format!(
         "{} observations have an externally studentized residual beyond ±{threshold} (flagged, not excluded); the {OUTLIERS_LISTED} most extreme are on data lines {}, and the results file lists the {} most extreme.",
-        crate::render::format::count(c.outlier_count),
+        crate::format::count(c.outlier_count),
         join_words(&worst),
         c.outliers.len()
     )
@@ -113,29 +114,6 @@ fn join_words(items: &[String]) -> String {
         [one] => one.clone(),
         [rest @ .., last] => format!("{} and {last}", rest.join(", ")),
     }
-}
-
-/// Writes the minus sign of negative numbers as U+2212 (−), as typeset text
-/// does; a hyphen between words (`peat-perlite`) is left alone. A `-` counts as
-/// a minus when it starts the text or follows a space, `(` or `[`, and a digit
-/// or `∞` follows it. The results file keeps ASCII.
-pub fn typographic_minus(s: &str) -> String {
-    let mut out = String::with_capacity(s.len() + 4);
-    let mut prev: Option<char> = None;
-    let mut chars = s.chars().peekable();
-    while let Some(c) = chars.next() {
-        let starts_number = chars
-            .peek()
-            .is_some_and(|n| n.is_ascii_digit() || *n == '∞' || *n == '.');
-        let after_gap = prev.is_none_or(|p| p == ' ' || p == '(' || p == '[' || p == '\u{a0}');
-        if c == '-' && starts_number && after_gap {
-            out.push('\u{2212}');
-        } else {
-            out.push(c);
-        }
-        prev = Some(c);
-    }
-    out
 }
 
 /// The view as printed: minus signs in numeric cells and footnotes.
@@ -163,31 +141,6 @@ fn effect_decimals(values: impl IntoIterator<Item = f64>) -> u32 {
     } else {
         2
     }
-}
-
-/// A count with its noun: "1 row", "3 rows".
-pub fn count(n: usize, one: &str, many: &str) -> String {
-    if n == 1 {
-        format!("1 {one}")
-    } else {
-        format!("{} {many}", crate::render::format::count(n))
-    }
-}
-
-/// "95%" for α = 0.05, "97.5%" for α = 0.025.
-pub fn confidence_label(alpha: f64) -> String {
-    let pct = (1.0 - alpha) * 100.0;
-    let rounded = (pct * 1000.0).round() / 1000.0;
-    if rounded.fract() == 0.0 {
-        format!("{rounded:.0}%")
-    } else {
-        format!("{rounded}%")
-    }
-}
-
-/// Formats α as written in captions: 0.05 → "0.05".
-pub fn alpha_text(alpha: f64) -> String {
-    format!("{alpha}")
 }
 
 /// Numbers tables through the document.
@@ -452,7 +405,7 @@ fn welch_table(r: &AnovaResult, number: usize) -> TableView {
         rows,
         footnotes: vec![format!(
             "Welch (1951). The classical F test, for comparison: {}.",
-            super::format::f_statement(
+            crate::format::f_statement(
                 r.table.df_between as f64,
                 r.table.df_within as f64,
                 r.table.f,
@@ -513,7 +466,7 @@ fn checks_table(r: &AnovaResult, number: usize) -> TableView {
 
 /// The assumption-check table; `subject` reads like "weight by group".
 fn checks_table_of(
-    c: &crate::analysis::Checks,
+    c: &crate::outcome::Checks,
     id: &str,
     a: f64,
     subject: &str,
@@ -1006,7 +959,7 @@ pub fn omnibus_statement(r: &AnovaResult) -> String {
     match (r.method, &r.welch, &r.kruskal) {
         (Omnibus::Welch, Some(w), _) => format!(
             "Welch's {}",
-            super::format::f_statement(w.df1, w.df2, w.f, w.p)
+            crate::format::f_statement(w.df1, w.df2, w.f, w.p)
         ),
         (Omnibus::Ranks, _, Some(k)) => format!(
             "H({}) = {}, {}",
@@ -1014,7 +967,7 @@ pub fn omnibus_statement(r: &AnovaResult) -> String {
             fixed(k.h, 2),
             p_phrase(k.p)
         ),
-        _ => super::format::f_statement(
+        _ => crate::format::f_statement(
             r.table.df_between as f64,
             r.table.df_within as f64,
             r.table.f,
@@ -1143,7 +1096,7 @@ pub fn factorial_view(r: &FactorialResult, next_table: &mut usize) -> BlockView 
             "All factors are fixed effects; every F uses the residual mean square.".to_string(),
         ];
         if r.terms.iter().any(|t| t.is_block) {
-            footnotes.push(crate::analysis::factorial::BLOCK_NOT_TESTED.to_string());
+            footnotes.push(crate::outcome::BLOCK_NOT_TESTED.to_string());
         }
         if r.types_agree {
             footnotes
@@ -1327,7 +1280,7 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
     let d = r.decimals;
     let cf = &r.cell_factors;
     let cell_letters = r.families.iter().find(|f| f.term == "cells");
-    let letters_of = |c: &crate::analysis::factorial::CellRow| -> String {
+    let letters_of = |c: &crate::outcome::CellRow| -> String {
         let label = cf
             .iter()
             .zip(&c.levels)
@@ -1343,7 +1296,7 @@ fn cell_table(r: &FactorialResult, number: usize) -> TableView {
             })
             .unwrap_or_default()
     };
-    let show = |c: &crate::analysis::factorial::CellRow| {
+    let show = |c: &crate::outcome::CellRow| {
         if c.n == 0 {
             "no data".to_string()
         } else {

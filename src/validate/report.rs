@@ -3,7 +3,7 @@
 //! terminal text. The checks themselves are in `validate.rs`.
 
 use super::{AreaSummary, Check, Validation};
-use crate::render::html_escape as e;
+use crate::escape::html_escape as e;
 
 /// Styles added to the report stylesheet: a wider page, tables that scroll
 /// inside their own box on a narrow screen, and a check column that wraps

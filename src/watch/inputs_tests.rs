@@ -45,7 +45,10 @@ fn the_hash_is_the_sha256_of_the_content() {
     // Larger than one read, so the pieces are joined correctly.
     let bytes: Vec<u8> = (0..200_000u32).map(|i| (i % 251) as u8).collect();
     std::fs::write(&p, &bytes).expect("write");
-    assert_eq!(content_hash(&p), Some(crate::results::sha256_hex(&bytes)));
+    assert_eq!(
+        content_hash(&p),
+        Some(crate::provenance::sha256_hex(&bytes))
+    );
     assert_eq!(content_hash(&dir.path().join("missing.csv")), None);
     assert_eq!(content_hash(dir.path()), None, "a folder is not hashed");
 }

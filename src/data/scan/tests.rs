@@ -104,7 +104,7 @@ fn a_stream_reads_like_memory_and_is_hashed() {
     assert_eq!(memory.levels, stream.levels);
     assert_eq!(
         stream.sha256.as_deref(),
-        Some(crate::results::sha256_hex(text.as_bytes()).as_str())
+        Some(crate::provenance::sha256_hex(text.as_bytes()).as_str())
     );
     assert_eq!(stream.bytes, text.len() as u64);
 }

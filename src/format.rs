@@ -189,6 +189,54 @@ pub fn df_text(df: f64) -> String {
     }
 }
 
+/// Writes the minus sign of negative numbers as U+2212 (−), as typeset text
+/// does; a hyphen between words (`peat-perlite`) is left alone. A `-` counts as
+/// a minus when it starts the text or follows a space, `(` or `[`, and a digit
+/// or `∞` follows it. The results file keeps ASCII.
+pub fn typographic_minus(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 4);
+    let mut prev: Option<char> = None;
+    let mut chars = s.chars().peekable();
+    while let Some(c) = chars.next() {
+        let starts_number = chars
+            .peek()
+            .is_some_and(|n| n.is_ascii_digit() || *n == '∞' || *n == '.');
+        let after_gap = prev.is_none_or(|p| p == ' ' || p == '(' || p == '[' || p == '\u{a0}');
+        if c == '-' && starts_number && after_gap {
+            out.push('\u{2212}');
+        } else {
+            out.push(c);
+        }
+        prev = Some(c);
+    }
+    out
+}
+
+/// A count with its noun: "1 row", "3 rows".
+pub fn counted(n: usize, one: &str, many: &str) -> String {
+    if n == 1 {
+        format!("1 {one}")
+    } else {
+        format!("{} {many}", count(n))
+    }
+}
+
+/// "95%" for α = 0.05, "97.5%" for α = 0.025.
+pub fn confidence_label(alpha: f64) -> String {
+    let pct = (1.0 - alpha) * 100.0;
+    let rounded = (pct * 1000.0).round() / 1000.0;
+    if rounded.fract() == 0.0 {
+        format!("{rounded:.0}%")
+    } else {
+        format!("{rounded}%")
+    }
+}
+
+/// Formats α as written in captions: 0.05 → "0.05".
+pub fn alpha_text(alpha: f64) -> String {
+    format!("{alpha}")
+}
+
 #[cfg(test)]
 #[path = "format_tests.rs"]
 mod tests;

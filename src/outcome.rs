@@ -1,0 +1,66 @@
+//! The outcome of every analysis block: what engines produce and what every
+//! projection (tables, prose, the results file, figures) reads. It imports
+//! no engine and no output.
+
+mod checks;
+mod comparison;
+mod factorial;
+mod one_way;
+mod power;
+
+pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, most_extreme};
+pub use comparison::ComparisonResult;
+pub use factorial::{
+    BLOCK_NOT_TESTED, CellRow, EmmRow, FactorialResult, Family, TermRow, term_label,
+};
+pub use one_way::{AnovaResult, LevelResult};
+pub use power::PowerResult;
+
+/// The result of any analysis block.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub enum BlockResult {
+    Anova(Box<AnovaResult>),
+    Factorial(Box<FactorialResult>),
+    Power(PowerResult),
+}
+
+impl BlockResult {
+    pub fn id(&self) -> &str {
+        match self {
+            BlockResult::Anova(r) => &r.id,
+            BlockResult::Factorial(r) => &r.id,
+            BlockResult::Power(r) => &r.id,
+        }
+    }
+
+    pub fn line(&self) -> usize {
+        match self {
+            BlockResult::Anova(r) => r.line,
+            BlockResult::Factorial(r) => r.line,
+            BlockResult::Power(r) => r.line,
+        }
+    }
+
+    /// Moves a (cached) result to the block's current line.
+    pub fn set_line(&mut self, line: usize) {
+        match self {
+            BlockResult::Anova(r) => r.line = line,
+            BlockResult::Factorial(r) => r.line = line,
+            BlockResult::Power(r) => r.line = line,
+        }
+    }
+
+    pub fn warnings(&self) -> &[String] {
+        match self {
+            BlockResult::Anova(r) => &r.warnings,
+            BlockResult::Factorial(r) => &r.warnings,
+            BlockResult::Power(r) => &r.warnings,
+        }
+    }
+}
+
+/// The layout number of a cached outcome; raise it whenever any type of
+/// this module changes shape, so that older cache entries become misses.
+impl crate::cache::Cacheable for BlockResult {
+    const SCHEMA: u32 = 3;
+}

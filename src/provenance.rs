@@ -1,0 +1,33 @@
+//! Provenance: the SHA-256 of every input, recorded in each results file
+//! and report so that a reader can check which data produced them.
+
+use sha2::{Digest, Sha256};
+
+/// Lowercase hex SHA-256 of some bytes.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    let digest = Sha256::digest(bytes);
+    digest.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// A data file as read for the build.
+#[derive(Debug, Clone)]
+pub struct Input {
+    /// The path as written in the block (relative to the document's folder).
+    pub path: String,
+    /// SHA-256 of the file, in hex.
+    pub sha256: String,
+    pub size: u64,
+    /// The bytes, unless the file was streamed past (see `data::scan`).
+    pub bytes: Option<Vec<u8>>,
+}
+
+impl Input {
+    pub fn loaded(path: &str, bytes: Vec<u8>) -> Input {
+        Input {
+            path: path.to_string(),
+            sha256: sha256_hex(&bytes),
+            size: bytes.len() as u64,
+            bytes: Some(bytes),
+        }
+    }
+}
