@@ -5,6 +5,8 @@
 mod checks;
 mod comparison;
 mod factorial;
+pub mod linear;
+mod linear_from;
 mod one_way;
 mod power;
 
@@ -13,6 +15,7 @@ pub use comparison::ComparisonResult;
 pub use factorial::{
     BLOCK_NOT_TESTED, CellRow, EmmRow, FactorialResult, Family, TermRow, term_label,
 };
+pub use linear_from::RESIDUAL;
 pub use one_way::{AnovaResult, LevelResult};
 pub use power::PowerResult;
 
@@ -47,6 +50,15 @@ impl BlockResult {
             BlockResult::Anova(r) => r.line = line,
             BlockResult::Factorial(r) => r.line = line,
             BlockResult::Power(r) => r.line = line,
+        }
+    }
+
+    /// A linear block's outcome, the form every projection reads.
+    pub fn linear(&self) -> Option<linear::LinearOutcome> {
+        match self {
+            BlockResult::Anova(r) => Some(linear::LinearOutcome::from(r.as_ref())),
+            BlockResult::Factorial(r) => Some(linear::LinearOutcome::from(r.as_ref())),
+            BlockResult::Power(_) => None,
         }
     }
 
