@@ -41,11 +41,82 @@ fn comparison(c: &ComparisonResult, df: f64) -> Comparison {
     }
 }
 
+/// The level means of a one-factor block as its factor's family.
+fn one_way_family(r: &AnovaResult, residual_df: f64) -> Family {
+    Family {
+        term: r.factor.clone(),
+        within: None,
+        estimates: r
+            .levels
+            .iter()
+            .map(|l| Estimate {
+                label: l.name.clone(),
+                n: l.n,
+                mean: l.mean,
+                se: l.se,
+                ci_lower: l.ci_lower,
+                ci_upper: l.ci_upper,
+            })
+            .collect(),
+        comparison: r.comparison.as_ref().map(|c| comparison(c, residual_df)),
+    }
+}
+
+/// Every observation of a one-factor block, level by level; the fitted
+/// value is the level's mean.
+fn one_way_observations(r: &AnovaResult) -> Vec<Observation> {
+    r.observations
+        .iter()
+        .zip(&r.observation_lines)
+        .enumerate()
+        .flat_map(|(i, (values, lines))| {
+            let mean = r.levels.get(i).map_or(f64::NAN, |l| l.mean);
+            values
+                .iter()
+                .zip(lines)
+                .map(move |(&value, &line)| Observation {
+                    levels: vec![i],
+                    value,
+                    fitted: mean,
+                    residual: value - mean,
+                    line,
+                })
+        })
+        .collect()
+}
+
+/// The factor's test in a one-factor ANOVA table.
+fn one_way_term(r: &AnovaResult, residual_df: f64) -> TermTest {
+    let t = &r.table;
+    TermTest {
+        name: r.factor.clone(),
+        factors: vec![0],
+        df: t.df_between,
+        ss: t.ss_between,
+        ms: t.ms_between,
+        f: t.f,
+        p: t.p,
+        critical_f: t.f_crit,
+        stratum: 0,
+        denominator_df: residual_df,
+        tested: true,
+        effect: r.effect.map(|e| TermEffect {
+            eta_sq: Some(e.eta_sq),
+            partial_eta_sq: e.partial_eta_sq,
+            omega_sq: e.omega_sq,
+            cohens_f: e.cohens_f,
+            partial_eta_sq_ci: e.partial_eta_sq_ci,
+            ci_level: e.level,
+        }),
+    }
+}
+
 impl From<&AnovaResult> for LinearOutcome {
     fn from(r: &AnovaResult) -> Self {
         let t = &r.table;
         let residual_df = t.df_within as f64;
-        let levels: Vec<LevelSummary> = r
+        let family = one_way_family(r, residual_df);
+        let levels = r
             .levels
             .iter()
             .map(|l| LevelSummary {
@@ -59,42 +130,6 @@ impl From<&AnovaResult> for LinearOutcome {
                 median: l.median,
                 q1: l.q1,
                 q3: l.q3,
-            })
-            .collect();
-        let family = Family {
-            term: r.factor.clone(),
-            within: None,
-            estimates: r
-                .levels
-                .iter()
-                .map(|l| Estimate {
-                    label: l.name.clone(),
-                    n: l.n,
-                    mean: l.mean,
-                    se: l.se,
-                    ci_lower: l.ci_lower,
-                    ci_upper: l.ci_upper,
-                })
-                .collect(),
-            comparison: r.comparison.as_ref().map(|c| comparison(c, residual_df)),
-        };
-        let observations = r
-            .observations
-            .iter()
-            .zip(&r.observation_lines)
-            .enumerate()
-            .flat_map(|(i, (values, lines))| {
-                let mean = r.levels.get(i).map_or(f64::NAN, |l| l.mean);
-                values
-                    .iter()
-                    .zip(lines)
-                    .map(move |(&value, &line)| Observation {
-                        levels: vec![i],
-                        value,
-                        fitted: mean,
-                        residual: value - mean,
-                        line,
-                    })
             })
             .collect();
         LinearOutcome {
@@ -119,27 +154,7 @@ impl From<&AnovaResult> for LinearOutcome {
                 ss: t.ss_within,
                 ms: t.ms_within,
             }],
-            terms: vec![TermTest {
-                name: r.factor.clone(),
-                factors: vec![0],
-                df: t.df_between,
-                ss: t.ss_between,
-                ms: t.ms_between,
-                f: t.f,
-                p: t.p,
-                critical_f: t.f_crit,
-                stratum: 0,
-                denominator_df: residual_df,
-                tested: true,
-                effect: r.effect.map(|e| TermEffect {
-                    eta_sq: Some(e.eta_sq),
-                    partial_eta_sq: e.partial_eta_sq,
-                    omega_sq: e.omega_sq,
-                    cohens_f: e.cohens_f,
-                    partial_eta_sq_ci: e.partial_eta_sq_ci,
-                    ci_level: e.level,
-                }),
-            }],
+            terms: vec![one_way_term(r, residual_df)],
             total_df: t.n.saturating_sub(1),
             total_ss: t.ss_total,
             r_squared: t.r_squared,
@@ -162,7 +177,7 @@ impl From<&AnovaResult> for LinearOutcome {
                 show: r.show,
                 plots: r.plots.clone(),
             },
-            observations,
+            observations: one_way_observations(r),
         }
     }
 }
