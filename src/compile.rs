@@ -5,10 +5,9 @@ use crate::analysis::factorial::run_factorial;
 use crate::analysis::{Data, reads_csv_rows, run_anova, run_power, streams};
 pub use crate::cache::{CACHE_DIR, CachedDisk};
 use crate::diag::Diagnostic;
-use crate::doc::ImageFormat;
 use crate::doc::{BlockSpec, parse_document};
 use crate::figure::PlacedFigure;
-use crate::figure::{draw_all, png};
+use crate::figure::draw_all;
 use crate::outcome::BlockResult;
 use crate::provenance::{Input, sha256_hex};
 use crate::render::{Format, render_report};
@@ -273,21 +272,17 @@ pub fn compile(
     for figs in draw_all(&results) {
         let mut block = Vec::with_capacity(figs.len());
         for figure in figs {
-            let file = match (format, doc.front.figures) {
-                (Format::Html, _) => None,
-                (Format::Markdown, ImageFormat::Svg) => {
-                    let name = format!("{stem}-{}.svg", figure.id);
-                    files.push((name.clone(), figure.svg.clone().into_bytes()));
-                    Some(name)
-                }
-                (Format::Markdown, ImageFormat::Png { dpi }) => {
-                    let name = format!("{stem}-{}.png", figure.id);
-                    let bytes = png(&figure.svg, dpi).map_err(|e| {
-                        Diagnostic::new(format!("internal error drawing {}: {e}", figure.id))
-                    })?;
+            let file = match format
+                .writer()
+                .figure_file(&stem, &figure, doc.front.figures)
+                .map_err(|e| {
+                    Diagnostic::new(format!("internal error drawing {}: {e}", figure.id))
+                })? {
+                Some((name, bytes)) => {
                     files.push((name.clone(), bytes));
                     Some(name)
                 }
+                None => None,
             };
             block.push(PlacedFigure { figure, file });
         }

@@ -5,11 +5,11 @@
 // Diagnostics travel by value on the cold error path, as in the library.
 #![allow(clippy::result_large_err)]
 
-use clap::{Parser, Subcommand, ValueEnum};
+use clap::{Parser, Subcommand};
 use sheaf::compile::{CACHE_DIR, build_file};
 use sheaf::diag::Diagnostic;
 use sheaf::output::write_outputs;
-use sheaf::render::Format;
+use sheaf::render::{FORMATS, Format};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -43,8 +43,8 @@ enum Command {
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
         /// Report format.
-        #[arg(long = "to", value_enum, default_value_t = To::Html)]
-        to: To,
+        #[arg(long = "to", value_parser = format_parser(), default_value = "html")]
+        to: Format,
         /// Read data only from inside the document's folder: no absolute paths,
         /// no `..` escapes, no symbolic links out, no cache read (for untrusted
         /// documents); outputs must resolve inside it too.
@@ -61,8 +61,8 @@ enum Command {
         out: PathBuf,
         /// The format the report was built in (default: the one its results
         /// file records).
-        #[arg(long = "to", value_enum)]
-        to: Option<To>,
+        #[arg(long = "to", value_parser = format_parser())]
+        to: Option<Format>,
         /// Read data only from inside the document's folder: no absolute paths,
         /// no `..` escapes, no symbolic links out, no cache read (for untrusted
         /// documents).
@@ -78,8 +78,8 @@ enum Command {
         #[arg(short = 'o', long = "out", value_name = "DIR")]
         out: PathBuf,
         /// Report format.
-        #[arg(long = "to", value_enum, default_value_t = To::Html)]
-        to: To,
+        #[arg(long = "to", value_parser = format_parser(), default_value = "html")]
+        to: Format,
         /// Serve the output folder on 127.0.0.1 and reload the page after each rebuild.
         #[arg(long)]
         serve: bool,
@@ -107,22 +107,14 @@ enum Command {
     },
 }
 
-/// The report format.
-#[derive(Clone, Copy, ValueEnum)]
-enum To {
-    /// One self-contained HTML file.
-    Html,
-    /// Markdown, with figures as separate files.
-    Md,
-}
-
-impl To {
-    fn format(self) -> Format {
-        match self {
-            To::Html => Format::Html,
-            To::Md => Format::Markdown,
-        }
-    }
+/// `--to`: the registered output formats, each with its writer's help.
+fn format_parser() -> impl clap::builder::TypedValueParser<Value = Format> {
+    use clap::builder::TypedValueParser;
+    let names = FORMATS
+        .iter()
+        .map(|f| clap::builder::PossibleValue::new(f.name()).help(f.writer().help()));
+    clap::builder::PossibleValuesParser::new(names)
+        .map(|name| Format::named(&name).unwrap_or(FORMATS[0]))
 }
 
 fn report(d: &Diagnostic, short: bool) -> ExitCode {
@@ -144,11 +136,10 @@ fn main() -> ExitCode {
             to,
             confine,
         } => {
-            let built =
-                match build_file(&document, to.format(), Some(&out.join(CACHE_DIR)), confine) {
-                    Ok(b) => b,
-                    Err(d) => return report(&d, short),
-                };
+            let built = match build_file(&document, to, Some(&out.join(CACHE_DIR)), confine) {
+                Ok(b) => b,
+                Err(d) => return report(&d, short),
+            };
             eprintln!(
                 "{} block(s): {} computed, {} from the cache",
                 built.blocks,
@@ -175,7 +166,6 @@ fn main() -> ExitCode {
             confine,
         } => {
             let format = to
-                .map(To::format)
                 .or_else(|| sheaf::verify::format_on_disk(&document, &out))
                 .unwrap_or(Format::Html);
             // verify recomputes everything: it never trusts the cache.
@@ -213,7 +203,7 @@ fn main() -> ExitCode {
             let opts = sheaf::watch::WatchOptions {
                 document,
                 out,
-                format: to.format(),
+                format: to,
                 serve: serve.then_some(port),
                 short_errors: short,
                 confine,

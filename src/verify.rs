@@ -8,7 +8,7 @@ use crate::compile::{Built, CACHE_DIR};
 use crate::diag::Diagnostic;
 use crate::output::{FolderLock, STAGING_PREFIX, manifest_name, open_own, outputs};
 use crate::provenance::sha256_hex;
-use crate::render::Format;
+use crate::render::{FORMATS, Format};
 use serde_json::Value;
 use std::collections::BTreeMap;
 use std::io::Read;
@@ -95,13 +95,12 @@ pub fn format_on_disk(document: &Path, out: &Path) -> Option<Format> {
         .ok()
         .and_then(|f| serde_json::from_reader::<_, Head>(std::io::BufReader::new(f)).ok())
         .and_then(|h| h.format);
-    match recorded.as_deref() {
-        Some("html") => Some(Format::Html),
-        Some("md") => Some(Format::Markdown),
-        _ if out.join(format!("{stem}.html")).is_file() => Some(Format::Html),
-        _ if out.join(format!("{stem}.md")).is_file() => Some(Format::Markdown),
-        _ => None,
-    }
+    recorded.as_deref().and_then(Format::named).or_else(|| {
+        FORMATS
+            .iter()
+            .copied()
+            .find(|f| out.join(format!("{stem}.{}", f.extension())).is_file())
+    })
 }
 
 /// A path as a shell word: quoted when it holds anything but plain characters.
@@ -121,8 +120,8 @@ pub fn rebuild_command(document: &Path, out: &Path, format: Format, confine: boo
         shell_word(&document.display().to_string()),
         shell_word(&out.display().to_string())
     );
-    if format == Format::Markdown {
-        command.push_str(" --to md");
+    if format != FORMATS[0] {
+        command.push_str(&format!(" --to {}", format.name()));
     }
     if confine {
         command.push_str(" --confine");

@@ -47,11 +47,12 @@ fn every_case_matches_its_expected_output() {
             let built = build(&dir, format);
             // The results file differs between formats only in figure file
             // names; keep one expected copy per format.
-            let results_name = match format {
-                Format::Html => built.results_name.clone(),
-                Format::Markdown => built
+            let results_name = if format == Format::Html {
+                built.results_name.clone()
+            } else {
+                built
                     .results_name
-                    .replace(".results.json", ".md.results.json"),
+                    .replace(".results.json", ".md.results.json")
             };
             let mut outputs = vec![
                 (&built.report_name, &built.report),

@@ -1,7 +1,7 @@
 //! Prose expressions: `{{ growth.f | round(2) }}` evaluated by minijinja in
 //! strict mode against the blocks' results, with sheaf's own filters.
 
-use super::to_value;
+use super::templates::to_value;
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::markdown::Expression;

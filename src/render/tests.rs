@@ -1,6 +1,9 @@
 //! Unit tests for `render`.
 
-use super::*;
+use super::html::prose_html;
+use super::links::safe_url;
+use super::markdown::inert_links_markdown;
+use crate::escape::{css_string, markdown_escape};
 
 #[test]
 fn markdown_escape_keeps_numbers_readable() {

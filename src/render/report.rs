@@ -1,0 +1,248 @@
+//! The report before it is written: every block's view, the prose with its
+//! expressions evaluated, the figures and the provenance, in no format yet.
+//! Writers (`html`, `markdown`) read it.
+
+use super::templates::{template_source, to_value};
+use super::view::BlockView;
+use super::{CAUTIONS, choices_of, inline, view};
+use crate::diag::Diagnostic;
+use crate::doc::Document;
+use crate::escape::markdown_escape;
+use crate::figure::PlacedFigure;
+use crate::outcome::BlockResult;
+use crate::provenance::{Input, sha256_hex};
+use minijinja::value::Value;
+use serde::Serialize;
+
+#[derive(Serialize)]
+struct InputView {
+    path: String,
+    bytes: usize,
+    sha256: String,
+}
+
+#[derive(Serialize)]
+struct DocumentView {
+    name: String,
+    sha256: String,
+}
+
+#[derive(Serialize)]
+struct FrontView {
+    title: Option<String>,
+    author: Option<String>,
+    date: Option<String>,
+}
+
+/// One line of the table of contents or of the lists of tables and figures.
+#[derive(Serialize)]
+pub(crate) struct ContentsEntry {
+    pub(crate) level: u8,
+    pub(crate) id: String,
+    pub(crate) text: String,
+}
+
+#[derive(Serialize)]
+pub(crate) struct ContentsView {
+    headings: Vec<ContentsEntry>,
+    tables: Vec<ContentsEntry>,
+    figures: Vec<ContentsEntry>,
+}
+
+/// A block's acknowledged notes, for the provenance section.
+#[derive(Serialize)]
+struct AcknowledgedView {
+    id: String,
+    notes: Vec<String>,
+}
+
+/// Everything a writer needs, in no particular format.
+pub struct Report<'a> {
+    pub doc: &'a Document,
+    pub results: &'a [BlockResult],
+    pub figures: &'a [Vec<PlacedFigure>],
+    pub inputs: &'a [Input],
+    /// The document's name and bytes (as read, for its hash).
+    pub document: (&'a str, &'a [u8]),
+    pub results_name: &'a str,
+    /// One view per block, with its figures, tables numbered through the document.
+    pub views: Vec<BlockView>,
+    /// The value of each prose expression, in document order.
+    pub values: Vec<String>,
+}
+
+/// A block marker in the body: its byte offset and the block's index.
+pub(crate) type MarkerAt = (usize, usize);
+
+impl<'a> Report<'a> {
+    /// Builds the views (which number the tables prose may refer to) and
+    /// evaluates the prose expressions.
+    pub fn assemble(
+        doc: &'a Document,
+        results: &'a [BlockResult],
+        figures: &'a [Vec<PlacedFigure>],
+        inputs: &'a [Input],
+        document: (&'a str, &'a [u8]),
+        results_name: &'a str,
+        figures_inline: bool,
+    ) -> Result<Report<'a>, Diagnostic> {
+        let mut next_table = 1;
+        let mut views = Vec::with_capacity(results.len());
+        for (r, figs) in results.iter().zip(figures) {
+            let mut v = match r {
+                BlockResult::Anova(r) => view::block_view(r, &mut next_table),
+                BlockResult::Factorial(r) => view::factorial_view(r, &mut next_table),
+                BlockResult::Power(r) => view::power_view(r, &mut next_table),
+            };
+            v.figures = figs
+                .iter()
+                .map(|p| view::FigureView {
+                    id: p.figure.id.clone(),
+                    caption: p.figure.caption.clone(),
+                    svg: figures_inline.then(|| p.figure.svg.clone()),
+                    file: p.file.clone(),
+                })
+                .collect();
+            views.push(v);
+        }
+        let mut numbers: Vec<(String, String)> = Vec::new();
+        for v in &views {
+            for t in &v.tables {
+                numbers.push((t.id.clone(), format!("Table {}", t.number)));
+            }
+        }
+        for p in figures.iter().flatten() {
+            numbers.push((p.figure.id.clone(), format!("Figure {}", p.figure.number)));
+        }
+        let values = inline::evaluate(doc, results, &doc.expressions, &numbers)?;
+        Ok(Report {
+            doc,
+            results,
+            figures,
+            inputs,
+            document,
+            results_name,
+            views,
+            values,
+        })
+    }
+
+    /// The template context of one block.
+    pub fn block_context(&self, view: &BlockView) -> Value {
+        minijinja::context! { block => to_value(view) }
+    }
+
+    /// The body (front matter dropped) with expressions replaced by their
+    /// values and each block by `block(i)`; with the offset of each block.
+    pub fn body_with(&self, block: impl Fn(usize) -> String) -> (String, Vec<MarkerAt>) {
+        let doc = self.doc;
+        let mut edits: Vec<(std::ops::Range<usize>, String, Option<usize>)> = Vec::new();
+        for (e, v) in doc.expressions.iter().zip(&self.values) {
+            edits.push((
+                e.range.clone(),
+                markdown_escape(&crate::format::typographic_minus(v)),
+                None,
+            ));
+        }
+        for (i, b) in doc.blocks.iter().enumerate() {
+            edits.push((b.range.clone(), block(i), Some(i)));
+        }
+        edits.sort_by_key(|(r, _, _)| r.start);
+        let mut body = String::with_capacity(doc.source.len());
+        let mut markers: Vec<MarkerAt> = Vec::new();
+        let mut pos = doc.body_start;
+        for (range, text, block) in edits {
+            body.push_str(&doc.source[pos..range.start]);
+            if let Some(i) = block {
+                markers.push((body.len(), i));
+            }
+            body.push_str(&text);
+            pos = range.end;
+        }
+        body.push_str(&doc.source[pos..]);
+        (body, markers)
+    }
+
+    /// The lists of sections, tables and figures for the table of contents.
+    pub(crate) fn contents(&self, headings: Vec<ContentsEntry>) -> ContentsView {
+        let entry = |id: &str, text: &str| ContentsEntry {
+            level: 0,
+            id: id.to_string(),
+            text: text.to_string(),
+        };
+        ContentsView {
+            headings,
+            tables: self
+                .views
+                .iter()
+                .flat_map(|v| &v.tables)
+                .map(|t| entry(&t.id, &t.caption))
+                .collect(),
+            figures: self
+                .figures
+                .iter()
+                .flatten()
+                .map(|p| entry(&p.figure.id, &p.figure.caption))
+                .collect(),
+        }
+    }
+
+    /// The report template's context around the written `content`.
+    pub(crate) fn context(&self, content: String, contents: Option<ContentsView>) -> Value {
+        let (document_name, document_bytes) = self.document;
+        let front = &self.doc.front;
+        let title = front
+            .title
+            .clone()
+            .unwrap_or_else(|| document_name.trim_end_matches(".md").to_string());
+        let inputs: Vec<InputView> = self
+            .inputs
+            .iter()
+            .map(|i| InputView {
+                path: i.path.clone(),
+                bytes: i.size as usize,
+                sha256: i.sha256.clone(),
+            })
+            .collect();
+        minijinja::context! {
+            version => crate::VERSION,
+            title => title,
+            front => to_value(FrontView {
+                title: front.title.clone(),
+                author: front.author.clone(),
+                date: front.date.clone(),
+            }),
+            content => Value::from_safe_string(content),
+            css => Value::from_safe_string(template_source("report.css").to_string()),
+            cautions => CAUTIONS.to_vec(),
+            document => to_value(DocumentView {
+                name: document_name.to_string(),
+                sha256: sha256_hex(document_bytes),
+            }),
+            inputs => to_value(inputs),
+            choices => self.results.iter().map(choices_of).collect::<Vec<_>>(),
+            results_name => self.results_name,
+            paper => front.paper.css(),
+            acknowledged => to_value(self.acknowledged()),
+            contents => contents.map(to_value),
+        }
+    }
+
+    /// Each block's acknowledged notes, for the provenance section.
+    fn acknowledged(&self) -> Vec<AcknowledgedView> {
+        self.results
+            .iter()
+            .filter_map(|r| {
+                let notes = match r {
+                    BlockResult::Anova(a) => &a.acknowledged,
+                    BlockResult::Factorial(f) => &f.acknowledged,
+                    BlockResult::Power(_) => return None,
+                };
+                (!notes.is_empty()).then(|| AcknowledgedView {
+                    id: r.id().to_string(),
+                    notes: notes.clone(),
+                })
+            })
+            .collect()
+    }
+}

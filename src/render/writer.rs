@@ -1,0 +1,80 @@
+//! Output formats: each is one writer (one file) registered in `FORMATS`.
+//! A writer turns the format-independent `Report` into the report's text
+//! and says where figures go.
+
+use super::report::Report;
+use super::{html, markdown};
+use crate::diag::Diagnostic;
+use crate::doc::ImageFormat;
+use crate::figure::Figure;
+
+/// An output format of the report.
+pub trait Writer: Sync {
+    /// The name `--to` takes and the results file records.
+    fn name(&self) -> &'static str;
+    /// The report file's extension.
+    fn extension(&self) -> &'static str;
+    /// One sentence for `--to`'s help.
+    fn help(&self) -> &'static str;
+    /// Whether the report holds its figures (else they are files beside it).
+    fn figures_inline(&self) -> bool;
+    /// A figure's file beside the report (name and bytes), or `None` where
+    /// the report holds the figure itself.
+    fn figure_file(
+        &self,
+        stem: &str,
+        figure: &Figure,
+        images: ImageFormat,
+    ) -> Result<Option<(String, Vec<u8>)>, String>;
+    /// The report's text.
+    fn write(&self, report: &Report) -> Result<String, Diagnostic>;
+}
+
+/// An output format: a handle on its registered writer.
+#[derive(Clone, Copy)]
+pub struct Format(&'static dyn Writer);
+
+// The formats are named like the values of an enum, which is how call sites
+// read them.
+#[allow(non_upper_case_globals)]
+impl Format {
+    pub const Html: Format = Format(&html::Html);
+    pub const Markdown: Format = Format(&markdown::Markdown);
+}
+
+/// Every output format, in the order `--to` lists them. A new format is a
+/// writer in its own file and one line here.
+pub const FORMATS: &[Format] = &[Format::Html, Format::Markdown];
+
+impl Format {
+    /// The format `--to` or a results file names.
+    pub fn named(name: &str) -> Option<Format> {
+        FORMATS.iter().copied().find(|f| f.name() == name)
+    }
+
+    pub fn name(self) -> &'static str {
+        self.0.name()
+    }
+
+    pub fn extension(self) -> &'static str {
+        self.0.extension()
+    }
+
+    pub fn writer(self) -> &'static dyn Writer {
+        self.0
+    }
+}
+
+impl PartialEq for Format {
+    fn eq(&self, other: &Format) -> bool {
+        self.name() == other.name()
+    }
+}
+
+impl Eq for Format {}
+
+impl std::fmt::Debug for Format {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.name())
+    }
+}
