@@ -871,8 +871,16 @@ fn check_checks(p: &mut Problems, at: &str, c: &Checks) {
 }
 
 /// README: in a factorial block `groups` holds the first family's means (none without
-/// comparisons).
+/// comparisons) with `sd`, `median`, `q1` and `q3` null, and no term has an `eta_sq`.
 fn check_factorial_groups(p: &mut Problems, at: &str, b: &AnovaBlock) {
+    let no_spread = b
+        .groups
+        .iter()
+        .all(|g| g.sd.is_none() && g.median.is_none() && g.q1.is_none() && g.q3.is_none());
+    p.require(no_spread, at, "a marginal mean has sd, median or quartiles");
+    let no_eta =
+        (b.anova.terms.iter()).all(|t| t.effect.as_ref().is_none_or(|e| e.eta_sq.is_none()));
+    p.require(no_eta, at, "a factorial term has eta_sq");
     let first = b.comparisons.first().and_then(|c| c.means.as_ref());
     let first: &[Mean] = first.map_or(&[], |m| m.as_slice());
     let same = b.groups.len() == first.len()
