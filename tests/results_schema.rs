@@ -1,0 +1,1249 @@
+//! The results file as another program reads it. The structs below are written from README.md
+//! ("The results file" and the sections it refers to), not taken from the crate: every
+//! documented field is required, unknown fields are refused, a field may be `null` only where
+//! README says so, and may be absent only where README says it appears in some records only.
+//! Every golden results file (tests/cases/*/expected/*.results.json, both the HTML and the
+//! Markdown variant) must read into them, so a field that is renamed, vanishes or appears
+//! without being documented fails here; then the invariants README states are checked.
+
+use serde::{Deserialize, Deserializer};
+use sha2::{Digest, Sha256};
+use std::collections::BTreeMap;
+use std::fmt::Display;
+use std::path::{Path, PathBuf};
+
+/// The consumer's view of the results file, field by field as README documents it.
+#[allow(dead_code)] // every field is read so that it must exist; not all are checked further
+mod contract {
+    use super::{nullable, present};
+    use serde::Deserialize;
+    use std::collections::BTreeMap;
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct ResultsFile {
+        pub sheaf: String,
+        pub schema: u64,
+        pub document: String,
+        pub document_sha256: String,
+        pub format: Format,
+        pub inputs: Vec<Input>,
+        pub blocks: Vec<Block>,
+    }
+
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum Format {
+        Html,
+        Md,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Input {
+        pub path: String,
+        pub sha256: String,
+        pub bytes: u64,
+    }
+
+    /// A block's record; its `kind` says which.
+    #[derive(Deserialize)]
+    #[serde(tag = "kind", rename_all = "lowercase")]
+    pub enum Block {
+        Anova(Box<AnovaBlock>),
+        Power(Box<PowerBlock>),
+    }
+
+    /// One-factor and factorial `anova` blocks share a kind; factorial ones add `ss_type` and
+    /// `cells` (and `means` in each comparison), one-factor ones may add `welch` or `kruskal`.
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct AnovaBlock {
+        pub id: String,
+        pub line: u64,
+        pub data: String,
+        pub response: String,
+        pub factors: Vec<String>,
+        pub n: u64,
+        pub n_excluded: u64,
+        pub excluded: Vec<Excluded>,
+        pub alpha: f64,
+        pub method: Omnibus,
+        #[serde(default, deserialize_with = "present")]
+        pub ss_type: Option<u8>,
+        pub anova: Anova,
+        #[serde(default, deserialize_with = "present")]
+        pub welch: Option<Welch>,
+        #[serde(default, deserialize_with = "present")]
+        pub kruskal: Option<Kruskal>,
+        pub checks: Checks,
+        pub groups: Vec<Group>,
+        #[serde(default, deserialize_with = "present")]
+        pub cells: Option<Vec<Cell>>,
+        pub comparisons: Vec<Comparison>,
+        pub figures: Vec<Figure>,
+        pub warnings: Vec<String>,
+        pub acknowledged: Vec<String>,
+    }
+
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum Omnibus {
+        Anova,
+        Welch,
+        Ranks,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Excluded {
+        pub line: u64,
+        pub reason: String,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Anova {
+        pub terms: Vec<Term>,
+        pub residual: Residual,
+        pub total: Total,
+        #[serde(deserialize_with = "nullable")]
+        pub r_squared: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Term {
+        pub term: String,
+        pub df: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub ss: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ms: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub f: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub critical_f: Option<f64>,
+        /// Blocking factors only.
+        #[serde(default, deserialize_with = "present")]
+        pub not_tested: Option<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub effect: Option<Effect>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Effect {
+        #[serde(deserialize_with = "nullable")]
+        pub eta_sq: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub partial_eta_sq: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub omega_sq: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub cohens_f: Option<f64>,
+        pub partial_eta_sq_ci: [Option<f64>; 2],
+        pub ci_level: f64,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Residual {
+        pub df: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub ss: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ms: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Total {
+        pub df: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub ss: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Welch {
+        #[serde(deserialize_with = "nullable")]
+        pub f: Option<f64>,
+        pub df1: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub df2: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Kruskal {
+        #[serde(deserialize_with = "nullable")]
+        pub h: Option<f64>,
+        pub df: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+    }
+
+    /// A check that cannot be computed is `null`.
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Checks {
+        #[serde(deserialize_with = "nullable")]
+        pub brown_forsythe: Option<FTest>,
+        #[serde(deserialize_with = "nullable")]
+        pub levene: Option<FTest>,
+        #[serde(deserialize_with = "nullable")]
+        pub bartlett: Option<ChiSquare>,
+        #[serde(deserialize_with = "nullable")]
+        pub shapiro_wilk: Option<ShapiroWilk>,
+        #[serde(deserialize_with = "nullable")]
+        pub skewness: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub excess_kurtosis: Option<f64>,
+        pub outlier_threshold: f64,
+        pub outlier_count: u64,
+        pub outliers: Vec<Outlier>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct FTest {
+        #[serde(deserialize_with = "nullable")]
+        pub statistic: Option<f64>,
+        pub df1: f64,
+        pub df2: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct ChiSquare {
+        #[serde(deserialize_with = "nullable")]
+        pub statistic: Option<f64>,
+        pub df: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct ShapiroWilk {
+        #[serde(deserialize_with = "nullable")]
+        pub w: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        pub n: u64,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Outlier {
+        pub line: u64,
+        pub level: String,
+        #[serde(deserialize_with = "nullable")]
+        pub value: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub studentized_residual: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Group {
+        pub level: String,
+        pub n: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub mean: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub sd: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub se: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_upper: Option<f64>,
+        pub ci_error: CiError,
+        #[serde(deserialize_with = "nullable")]
+        pub median: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub q1: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub q3: Option<f64>,
+    }
+
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum CiError {
+        Pooled,
+        Level,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Cell {
+        /// Factor → level.
+        pub levels: BTreeMap<String, String>,
+        pub n: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub mean: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Comparison {
+        pub term: String,
+        #[serde(deserialize_with = "nullable")]
+        pub within: Option<String>,
+        pub method: Procedure,
+        pub alpha: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub critical_value: Option<f64>,
+        /// Dunnett only.
+        #[serde(default, deserialize_with = "present")]
+        pub control: Option<String>,
+        /// Dunnett only.
+        #[serde(default, deserialize_with = "present")]
+        pub sides: Option<Sides>,
+        /// Factorial blocks only.
+        #[serde(default, deserialize_with = "present")]
+        pub means: Option<Vec<Mean>>,
+        pub pairs: Vec<Pair>,
+        /// Level → letters.
+        pub letters: BTreeMap<String, String>,
+    }
+
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    #[serde(rename_all = "kebab-case")]
+    pub enum Procedure {
+        Lsd,
+        Tukey,
+        Bonferroni,
+        Sidak,
+        Holm,
+        Scheffe,
+        Dunnett,
+        GamesHowell,
+        Dunn,
+    }
+
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    #[serde(rename_all = "kebab-case")]
+    pub enum Sides {
+        TwoSided,
+        Greater,
+        Less,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Mean {
+        pub level: String,
+        pub n: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub mean: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub se: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_upper: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Pair {
+        pub a: String,
+        pub b: String,
+        #[serde(deserialize_with = "nullable")]
+        pub diff: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub se: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_adj: Option<f64>,
+        pub significant: bool,
+        /// Games-Howell only.
+        #[serde(default, deserialize_with = "present")]
+        pub df: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Figure {
+        pub id: String,
+        pub kind: FigureKind,
+        #[serde(deserialize_with = "nullable")]
+        pub file: Option<String>,
+        pub sha256: String,
+    }
+
+    /// The `plot` kinds of an `anova` block, and a `power` block's curve.
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum FigureKind {
+        Box,
+        Means,
+        Strip,
+        Interaction,
+        Residuals,
+        Qq,
+        Power,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct PowerBlock {
+        pub id: String,
+        pub line: u64,
+        pub groups: u64,
+        pub effect: PowerEffect,
+        pub alpha: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub target_power: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub n_per_group: Option<u64>,
+        #[serde(deserialize_with = "nullable")]
+        pub power: Option<f64>,
+        pub curve: Vec<PowerPoint>,
+        pub figures: Vec<Figure>,
+        pub warnings: Vec<String>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct PowerEffect {
+        pub cohens_f: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub means: Option<Vec<f64>>,
+        #[serde(deserialize_with = "nullable")]
+        pub sd: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct PowerPoint {
+        pub n_per_group: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub power: Option<f64>,
+    }
+}
+
+use contract::*;
+
+/// A field that must be present and may be `null`. (A plain `Option` field may also be left
+/// out, which would let a vanished field pass.)
+fn nullable<'de, D: Deserializer<'de>, T: Deserialize<'de>>(d: D) -> Result<Option<T>, D::Error> {
+    Option::<T>::deserialize(d)
+}
+
+/// A field that some records have and others leave out, never `null` when present.
+fn present<'de, D: Deserializer<'de>, T: Deserialize<'de>>(d: D) -> Result<Option<T>, D::Error> {
+    T::deserialize(d).map(Some)
+}
+
+/// The `schema` README documents.
+const SCHEMA: u64 = 2;
+
+/// README: "`outliers`, the 100 most extreme of them".
+const MAX_LISTED_OUTLIERS: usize = 100;
+
+/// Reads a results file into the contract's structs. The message names the file, serde's
+/// complaint (the field) with its line and column, and the block it lies in: a block is read
+/// whole before its `kind` is known, so serde's position there is the block's end.
+fn read_results(name: &str, text: &str) -> Result<ResultsFile, String> {
+    serde_json::from_str(text).map_err(|e| format!("{name}: {e}{}", failing_block(text)))
+}
+
+/// " (in blocks[i], id `…`)" for the first block that does not read on its own, else "".
+fn failing_block(text: &str) -> String {
+    let Ok(value) = serde_json::from_str::<serde_json::Value>(text) else {
+        return String::new();
+    };
+    let blocks = value["blocks"].as_array().cloned().unwrap_or_default();
+    blocks
+        .iter()
+        .enumerate()
+        .find(|(_, b)| Block::deserialize(*b).is_err())
+        .map(|(i, b)| {
+            format!(
+                " (in blocks[{i}], id `{}`)",
+                b["id"].as_str().unwrap_or("?")
+            )
+        })
+        .unwrap_or_default()
+}
+
+/// One golden results file: the case folder, the file and the format its name says.
+struct Golden {
+    case: PathBuf,
+    file: PathBuf,
+    format: Format,
+}
+
+impl Golden {
+    fn name(&self) -> String {
+        let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+        self.file
+            .strip_prefix(root)
+            .unwrap_or(&self.file)
+            .display()
+            .to_string()
+    }
+}
+
+/// The golden cases: the folders of tests/cases that hold a `report.md` (as tests/golden.rs
+/// finds them).
+fn cases() -> Vec<PathBuf> {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/cases");
+    let mut cases: Vec<PathBuf> = std::fs::read_dir(&root)
+        .expect("tests/cases")
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.join("report.md").is_file())
+        .collect();
+    cases.sort();
+    cases
+}
+
+/// Every `*.results.json` under each case's `expected/` (tests/golden.rs writes one per format:
+/// `report.results.json` for HTML, `report.md.results.json` for Markdown).
+fn golden_files() -> Vec<Golden> {
+    let mut found = Vec::new();
+    for case in cases() {
+        let mut files: Vec<PathBuf> = std::fs::read_dir(case.join("expected"))
+            .expect("expected folder")
+            .filter_map(|e| e.ok().map(|e| e.path()))
+            .filter(|p| p.to_string_lossy().ends_with(".results.json"))
+            .collect();
+        files.sort();
+        for file in files {
+            let format = if file.to_string_lossy().ends_with(".md.results.json") {
+                Format::Md
+            } else {
+                Format::Html
+            };
+            found.push(Golden {
+                case: case.clone(),
+                file,
+                format,
+            });
+        }
+    }
+    found
+}
+
+fn read_golden(g: &Golden) -> Result<ResultsFile, String> {
+    let text = std::fs::read_to_string(&g.file).map_err(|e| format!("{}: {e}", g.name()))?;
+    read_results(&g.name(), &text)
+}
+
+#[test]
+fn every_case_has_a_results_file_for_each_format() {
+    let golden = golden_files();
+    for case in cases() {
+        for format in [Format::Html, Format::Md] {
+            assert!(
+                golden.iter().any(|g| g.case == case && g.format == format),
+                "{} has no {format:?} results file",
+                case.display()
+            );
+        }
+    }
+}
+
+#[test]
+fn every_golden_results_file_reads_into_the_documented_fields() {
+    let golden = golden_files();
+    assert!(!golden.is_empty(), "no golden results files found");
+    let failures: Vec<String> = golden.iter().filter_map(|g| read_golden(g).err()).collect();
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn golden_results_files_keep_the_documented_invariants() {
+    let mut problems = Vec::new();
+    for g in golden_files() {
+        match read_golden(&g) {
+            Ok(results) => problems.extend(check_file(&g.case, g.format, &results, &g.name())),
+            Err(e) => problems.push(e),
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
+/// Broken invariants, each a line naming the file and where in it.
+struct Problems {
+    file: String,
+    list: Vec<String>,
+}
+
+impl Problems {
+    fn require(&mut self, holds: bool, at: &str, what: impl Display) {
+        if !holds {
+            self.list.push(format!("{}: {at}: {what}", self.file));
+        }
+    }
+}
+
+fn sha256_hex(bytes: &[u8]) -> String {
+    Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+fn is_sha256_hex(s: &str) -> bool {
+    s.len() == 64
+        && s.bytes()
+            .all(|b| b.is_ascii_digit() || (b'a'..=b'f').contains(&b))
+}
+
+/// A p-value is null or a probability.
+fn is_probability(p: Option<f64>) -> bool {
+    p.is_none_or(|p| (0.0..=1.0).contains(&p))
+}
+
+/// The checks on one file; `case` is the document's folder, against which the recorded hashes
+/// are recomputed.
+fn check_file(case: &Path, format: Format, r: &ResultsFile, name: &str) -> Vec<String> {
+    let mut p = Problems {
+        file: name.to_string(),
+        list: Vec::new(),
+    };
+    p.require(
+        r.schema == SCHEMA,
+        "schema",
+        format!("{} is not {SCHEMA}", r.schema),
+    );
+    p.require(
+        r.format == format,
+        "format",
+        format!("{:?} in a {format:?} file", r.format),
+    );
+    match std::fs::read(case.join(&r.document)) {
+        Ok(bytes) => p.require(
+            r.document_sha256 == sha256_hex(&bytes),
+            "document_sha256",
+            format!("is not the SHA-256 of {}", r.document),
+        ),
+        Err(e) => p.require(false, "document", format!("{}: {e}", r.document)),
+    }
+    for (i, input) in r.inputs.iter().enumerate() {
+        let at = format!("inputs[{i}] ({})", input.path);
+        p.require(
+            is_sha256_hex(&input.sha256),
+            &at,
+            "sha256 is not 64 lowercase hex digits",
+        );
+        match std::fs::read(case.join(&input.path)) {
+            Ok(bytes) => {
+                p.require(
+                    input.sha256 == sha256_hex(&bytes),
+                    &at,
+                    "sha256 is not the file's",
+                );
+                p.require(
+                    input.bytes == bytes.len() as u64,
+                    &at,
+                    "bytes is not the file's size",
+                );
+            }
+            Err(e) => p.require(false, &at, e),
+        }
+    }
+    let stem = r.document.strip_suffix(".md").unwrap_or(&r.document);
+    let expected = case.join("expected");
+    for (i, block) in r.blocks.iter().enumerate() {
+        match block {
+            Block::Anova(b) => {
+                let at = format!("blocks[{i}] (id `{}`)", b.id);
+                check_anova(&mut p, &at, b);
+                check_figures(&mut p, &at, &b.id, &b.figures, format, stem, &expected);
+            }
+            Block::Power(b) => {
+                let at = format!("blocks[{i}] (id `{}`)", b.id);
+                check_power(&mut p, &at, b);
+                check_figures(&mut p, &at, &b.id, &b.figures, format, stem, &expected);
+            }
+        }
+    }
+    p.list
+}
+
+/// README: a figure has the id `<block>-<kind>` (`<block>-<kind>-<factor>` for the further
+/// factors of a factorial), `file` null when the SVG is inlined in HTML and the file beside a
+/// Markdown report (`<report>-<figure>.svg`, or `.png`) otherwise, and the SHA-256 of its SVG.
+fn check_figures(
+    p: &mut Problems,
+    at: &str,
+    block: &str,
+    figures: &[Figure],
+    format: Format,
+    stem: &str,
+    expected: &Path,
+) {
+    for (j, fig) in figures.iter().enumerate() {
+        let at = format!("{at}.figures[{j}] (id `{}`)", fig.id);
+        // The variants are named as the file spells them, in lower case.
+        let prefix = format!("{block}-{}", format!("{:?}", fig.kind).to_lowercase());
+        p.require(
+            fig.id == prefix || fig.id.starts_with(&format!("{prefix}-")),
+            &at,
+            format!("id does not start with `{prefix}`"),
+        );
+        p.require(
+            is_sha256_hex(&fig.sha256),
+            &at,
+            "sha256 is not 64 lowercase hex digits",
+        );
+        match (format, &fig.file) {
+            (Format::Html, file) => p.require(file.is_none(), &at, "file is not null in HTML"),
+            (Format::Md, None) => p.require(false, &at, "file is null beside a Markdown report"),
+            (Format::Md, Some(file)) => {
+                let svg = format!("{stem}-{}.svg", fig.id);
+                let png = format!("{stem}-{}.png", fig.id);
+                p.require(
+                    *file == svg || *file == png,
+                    &at,
+                    format!("file is `{file}`"),
+                );
+                // The expected folder holds the figure files golden.rs compares.
+                if *file == svg {
+                    let same = std::fs::read(expected.join(file))
+                        .is_ok_and(|bytes| sha256_hex(&bytes) == fig.sha256);
+                    p.require(same, &at, format!("sha256 is not that of {file}"));
+                }
+            }
+        }
+    }
+}
+
+/// The invariants README states for an `anova` block's record.
+fn check_anova(p: &mut Problems, at: &str, b: &AnovaBlock) {
+    p.require(0.0 < b.alpha && b.alpha < 1.0, at, "alpha is not in (0, 1)");
+    p.require(
+        b.n_excluded == b.excluded.len() as u64,
+        at,
+        "n_excluded differs from the rows listed in excluded",
+    );
+    p.require(
+        b.welch.is_some() == (b.method == Omnibus::Welch),
+        at,
+        "welch is present exactly when method is welch",
+    );
+    p.require(
+        b.kruskal.is_some() == (b.method == Omnibus::Ranks),
+        at,
+        "kruskal is present exactly when method is ranks",
+    );
+    let factorial = b.ss_type.is_some();
+    p.require(
+        b.cells.is_some() == factorial,
+        at,
+        "cells and ss_type come together",
+    );
+    p.require(
+        b.ss_type.is_none_or(|t| (1..=3).contains(&t)),
+        at,
+        "ss_type is not 1, 2 or 3",
+    );
+    for t in &b.anova.terms {
+        check_term(p, &format!("{at}.anova.terms `{}`", t.term), t);
+    }
+    if let Some(w) = &b.welch {
+        p.require(is_probability(w.p), at, "welch.p is not a probability");
+        p.require(
+            w.df1 >= 0.0 && w.df2.is_none_or(|d| d >= 0.0),
+            at,
+            "welch df negative",
+        );
+    }
+    if let Some(k) = &b.kruskal {
+        p.require(is_probability(k.p), at, "kruskal.p is not a probability");
+        p.require(k.df >= 0.0, at, "kruskal.df is negative");
+    }
+    check_checks(p, &format!("{at}.checks"), &b.checks);
+    // README: SE and intervals use the pooled error, or each level's own SD under Welch.
+    let own_sd = b.method == Omnibus::Welch && !factorial;
+    let want = if own_sd {
+        CiError::Level
+    } else {
+        CiError::Pooled
+    };
+    for g in &b.groups {
+        p.require(
+            g.ci_error == want,
+            at,
+            format!("group `{}` has ci_error {:?}", g.level, g.ci_error),
+        );
+    }
+    if factorial {
+        check_factorial_groups(p, at, b);
+    }
+    for (i, c) in b.comparisons.iter().enumerate() {
+        check_comparison(p, &format!("{at}.comparisons[{i}]"), b, c);
+    }
+}
+
+/// README: a blocking factor's term has `f`, `p`, `critical_f` and its effect sizes null, with
+/// `not_tested` giving the reason.
+fn check_term(p: &mut Problems, at: &str, t: &Term) {
+    p.require(is_probability(t.p), at, "p is not a probability");
+    if let Some(e) = &t.effect
+        && let [Some(lo), Some(hi)] = e.partial_eta_sq_ci
+    {
+        p.require(lo <= hi, at, "partial_eta_sq_ci is not [lower, upper]");
+    }
+    if t.not_tested.is_some() {
+        p.require(
+            t.f.is_none() && t.p.is_none() && t.critical_f.is_none(),
+            at,
+            "a term not tested has f, p or critical_f",
+        );
+        let sizes_null = t.effect.as_ref().is_none_or(|e| {
+            e.eta_sq.is_none()
+                && e.partial_eta_sq.is_none()
+                && e.omega_sq.is_none()
+                && e.cohens_f.is_none()
+                && e.partial_eta_sq_ci == [None, None]
+        });
+        p.require(sizes_null, at, "a term not tested has effect sizes");
+    }
+}
+
+fn check_checks(p: &mut Problems, at: &str, c: &Checks) {
+    for (name, test) in [("brown_forsythe", &c.brown_forsythe), ("levene", &c.levene)] {
+        if let Some(t) = test {
+            p.require(
+                is_probability(t.p),
+                at,
+                format!("{name}.p is not a probability"),
+            );
+            p.require(
+                t.df1 >= 0.0 && t.df2 >= 0.0,
+                at,
+                format!("{name} df negative"),
+            );
+        }
+    }
+    if let Some(t) = &c.bartlett {
+        p.require(is_probability(t.p), at, "bartlett.p is not a probability");
+        p.require(t.df >= 0.0, at, "bartlett.df is negative");
+    }
+    if let Some(t) = &c.shapiro_wilk {
+        p.require(
+            is_probability(t.p),
+            at,
+            "shapiro_wilk.p is not a probability",
+        );
+    }
+    // README: `outlier_count` observations beyond the threshold, the 100 most extreme listed
+    // in data order.
+    p.require(
+        c.outliers.len() <= MAX_LISTED_OUTLIERS,
+        at,
+        "more than 100 outliers listed",
+    );
+    p.require(
+        c.outliers.len() as u64 <= c.outlier_count,
+        at,
+        "more outliers listed than counted",
+    );
+    p.require(
+        c.outliers.windows(2).all(|w| w[0].line < w[1].line),
+        at,
+        "outliers are not in data order",
+    );
+    for o in &c.outliers {
+        p.require(
+            o.studentized_residual
+                .is_none_or(|r| r.abs() > c.outlier_threshold),
+            at,
+            format!("the outlier on line {} is within the threshold", o.line),
+        );
+    }
+}
+
+/// README: in a factorial block `groups` holds the first family's means (none without
+/// comparisons) with `sd`, `median`, `q1` and `q3` null, and no term has an `eta_sq`.
+fn check_factorial_groups(p: &mut Problems, at: &str, b: &AnovaBlock) {
+    let no_spread = b
+        .groups
+        .iter()
+        .all(|g| g.sd.is_none() && g.median.is_none() && g.q1.is_none() && g.q3.is_none());
+    p.require(no_spread, at, "a marginal mean has sd, median or quartiles");
+    let no_eta =
+        (b.anova.terms.iter()).all(|t| t.effect.as_ref().is_none_or(|e| e.eta_sq.is_none()));
+    p.require(no_eta, at, "a factorial term has eta_sq");
+    let first = b.comparisons.first().and_then(|c| c.means.as_ref());
+    let first: &[Mean] = first.map_or(&[], |m| m.as_slice());
+    let same = b.groups.len() == first.len()
+        && b.groups.iter().zip(first).all(|(g, m)| {
+            g.level == m.level
+                && g.n == m.n
+                && g.mean == m.mean
+                && g.se == m.se
+                && g.ci_lower == m.ci_lower
+                && g.ci_upper == m.ci_upper
+        });
+    p.require(
+        same,
+        at,
+        "groups is not the first comparison family's means",
+    );
+}
+
+/// One comparison family against what README says of `term`, `within`, the procedures that
+/// add `control`, `sides` and each pair's `df`, letters, and `diff` = mean(a) − mean(b).
+fn check_comparison(p: &mut Problems, at: &str, b: &AnovaBlock, c: &Comparison) {
+    let factorial = b.ss_type.is_some();
+    p.require(
+        c.means.is_some() == factorial,
+        at,
+        "means is present exactly in factorial blocks",
+    );
+    p.require(
+        b.factors.contains(&c.term) || (factorial && c.term == "cells"),
+        at,
+        format!("term `{}` is neither a factor nor cells", c.term),
+    );
+    if let Some(within) = &c.within {
+        let factor = within.split_once('=').map(|(f, _)| f.to_string());
+        p.require(
+            factor.is_some_and(|f| b.factors.contains(&f)),
+            at,
+            format!("within `{within}` is not factor=level"),
+        );
+    }
+    // The levels compared, with their means.
+    let means: BTreeMap<&str, Option<f64>> = match &c.means {
+        Some(m) => m.iter().map(|m| (m.level.as_str(), m.mean)).collect(),
+        None => b
+            .groups
+            .iter()
+            .map(|g| (g.level.as_str(), g.mean))
+            .collect(),
+    };
+    let dunnett = c.method == Procedure::Dunnett;
+    p.require(
+        c.control.is_some() == dunnett,
+        at,
+        "control is present exactly under Dunnett",
+    );
+    p.require(
+        c.sides.is_some() == dunnett,
+        at,
+        "sides is present exactly under Dunnett",
+    );
+    if dunnett {
+        p.require(c.letters.is_empty(), at, "Dunnett has letters");
+    } else {
+        let keys: Vec<&str> = c.letters.keys().map(String::as_str).collect();
+        let levels: Vec<&str> = means.keys().copied().collect();
+        p.require(
+            keys == levels,
+            at,
+            "letters do not name every compared level",
+        );
+    }
+    let own_df = c.method == Procedure::GamesHowell;
+    let per_pair = own_df || c.method == Procedure::Dunn;
+    p.require(
+        c.critical_value.is_none() || !per_pair,
+        at,
+        "Games-Howell and Dunn have no single critical value",
+    );
+    p.require(0.0 < c.alpha && c.alpha < 1.0, at, "alpha is not in (0, 1)");
+    for (i, pair) in c.pairs.iter().enumerate() {
+        check_pair(p, &format!("{at}.pairs[{i}]"), c, pair, &means, own_df);
+    }
+}
+
+fn check_pair(
+    p: &mut Problems,
+    at: &str,
+    c: &Comparison,
+    pair: &Pair,
+    means: &BTreeMap<&str, Option<f64>>,
+    own_df: bool,
+) {
+    p.require(is_probability(pair.p_adj), at, "p_adj is not a probability");
+    p.require(
+        pair.df.is_some() == own_df,
+        at,
+        "df is present exactly under Games-Howell",
+    );
+    p.require(pair.df.is_none_or(|d| d >= 0.0), at, "df is negative");
+    if let Some(control) = &c.control {
+        p.require(
+            pair.b == *control,
+            at,
+            "a Dunnett pair's b is not the control",
+        );
+    }
+    let (Some(a), Some(b)) = (means.get(pair.a.as_str()), means.get(pair.b.as_str())) else {
+        p.require(
+            false,
+            at,
+            format!("`{}` or `{}` is not a compared level", pair.a, pair.b),
+        );
+        return;
+    };
+    if c.method == Procedure::Dunn {
+        // Dunn's diff is a difference of mean ranks, which the file does not hold; it has no
+        // intervals.
+        p.require(
+            pair.lower.is_none() && pair.upper.is_none(),
+            at,
+            "Dunn has an interval",
+        );
+        return;
+    }
+    if let (Some(a), Some(b), Some(diff)) = (*a, *b, pair.diff) {
+        // The same difference in exact arithmetic; computed from other sums of the same data it
+        // may differ by rounding, a few units in the last place of the means. 1e-9 of their
+        // size allows any summation order and still catches a swapped pair or a wrong level.
+        let tolerance = 1e-9 * a.abs().max(b.abs()).max(1.0);
+        p.require(
+            (diff - (a - b)).abs() <= tolerance,
+            at,
+            format!(
+                "diff {diff} is not mean({}) - mean({}) = {}",
+                pair.a,
+                pair.b,
+                a - b
+            ),
+        );
+    }
+}
+
+/// README: a `power` block's inputs and answer.
+fn check_power(p: &mut Problems, at: &str, b: &PowerBlock) {
+    p.require(0.0 < b.alpha && b.alpha < 1.0, at, "alpha is not in (0, 1)");
+    p.require(
+        b.target_power.is_none_or(|t| 0.0 < t && t < 1.0),
+        at,
+        "target_power is not in (0, 1)",
+    );
+    p.require(is_probability(b.power), at, "power is not a probability");
+    p.require(
+        b.effect.means.is_some() == b.effect.sd.is_some(),
+        at,
+        "effect has means without sd or sd without means",
+    );
+    if b.n_per_group.is_none() {
+        p.require(
+            b.target_power.is_some(),
+            at,
+            "n_per_group is null although n was given",
+        );
+        p.require(b.power.is_none(), at, "power without n_per_group");
+    }
+    for point in &b.curve {
+        p.require(
+            is_probability(point.power),
+            at,
+            "a curve power is not a probability",
+        );
+    }
+}
+
+/// The structs and the checks above must refuse a changed file; these change a golden file in
+/// memory the ways a careless edit of the writer would.
+mod the_contract_bites {
+    use super::*;
+    use serde_json::Value;
+
+    fn case(name: &str) -> PathBuf {
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("tests/cases")
+            .join(name)
+    }
+
+    fn golden_value(case_name: &str) -> Value {
+        let path = case(case_name).join("expected/report.results.json");
+        let text = std::fs::read_to_string(path).expect("golden results file");
+        serde_json::from_str(&text).expect("golden results file is JSON")
+    }
+
+    /// The error for a changed copy; the copy must not read.
+    fn refused(value: &Value) -> String {
+        let text = serde_json::to_string_pretty(value).expect("JSON");
+        match read_results("changed.results.json", &text) {
+            Ok(_) => panic!("a changed results file was accepted"),
+            Err(e) => e,
+        }
+    }
+
+    fn object(value: &mut Value) -> &mut serde_json::Map<String, Value> {
+        value.as_object_mut().expect("an object")
+    }
+
+    #[test]
+    fn the_unchanged_copy_reads() {
+        let text = serde_json::to_string(&golden_value("plant-growth")).expect("JSON");
+        assert!(read_results("copy", &text).is_ok());
+    }
+
+    #[test]
+    fn a_renamed_field_is_refused() {
+        let mut v = golden_value("plant-growth");
+        let term = object(&mut v["blocks"][0]["anova"]["terms"][0]);
+        let p = term.remove("p").expect("the term has p");
+        term.insert("p_value".into(), p);
+        let e = refused(&v);
+        assert!(e.contains("unknown field `p_value`"), "{e}");
+        assert!(e.starts_with("changed.results.json: "), "{e}");
+        assert!(e.contains("in blocks[0], id `growth`"), "{e}");
+        assert!(e.contains("line "), "{e}");
+    }
+
+    #[test]
+    fn a_vanished_field_is_refused() {
+        let mut v = golden_value("plant-growth");
+        object(&mut v["blocks"][0]["anova"]["residual"]).remove("ms");
+        let e = refused(&v);
+        assert!(e.contains("missing field `ms`"), "{e}");
+    }
+
+    #[test]
+    fn a_vanished_field_that_may_be_null_is_refused() {
+        let mut v = golden_value("plant-growth");
+        object(&mut v["blocks"][0]["anova"]["terms"][0]).remove("critical_f");
+        assert!(refused(&v).contains("missing field `critical_f`"));
+        let mut v = golden_value("plant-growth");
+        object(&mut v["blocks"][0]["checks"]).remove("levene");
+        assert!(refused(&v).contains("missing field `levene`"));
+    }
+
+    #[test]
+    fn an_undocumented_field_is_refused() {
+        let mut v = golden_value("plant-growth");
+        object(&mut v["blocks"][0]["groups"][0]).insert("cv".into(), Value::from(0.1));
+        assert!(refused(&v).contains("unknown field `cv`"));
+        let mut v = golden_value("plant-growth");
+        object(&mut v).insert("created".into(), Value::from("today"));
+        let e = refused(&v);
+        assert!(e.contains("unknown field `created`"), "{e}");
+    }
+
+    #[test]
+    fn power_records_are_held_to_their_fields_too() {
+        let mut v = golden_value("power");
+        object(&mut v["blocks"][0]).remove("curve");
+        assert!(refused(&v).contains("missing field `curve`"));
+        let mut v = golden_value("power");
+        object(&mut v["blocks"][0]["curve"][0]).insert("se".into(), Value::from(0.1));
+        assert!(refused(&v).contains("unknown field `se`"));
+    }
+
+    #[test]
+    fn an_unknown_kind_or_method_is_refused() {
+        let mut v = golden_value("plant-growth");
+        v["blocks"][0]["kind"] = Value::from("mixed");
+        assert!(refused(&v).contains("unknown variant `mixed`"));
+        let mut v = golden_value("plant-growth");
+        v["blocks"][0]["comparisons"][0]["method"] = Value::from("tukey-kramer");
+        assert!(refused(&v).contains("unknown variant `tukey-kramer`"));
+    }
+
+    #[test]
+    fn a_whole_number_written_as_a_real_is_refused() {
+        let mut v = golden_value("plant-growth");
+        v["blocks"][0]["anova"]["residual"]["df"] = Value::from(27.0);
+        assert!(refused(&v).contains("invalid type"));
+    }
+
+    /// The invariants of a copy (of an HTML results file) that still reads.
+    fn problems(case_name: &str, value: &Value) -> Vec<String> {
+        problems_as(case_name, Format::Html, value)
+    }
+
+    fn problems_as(case_name: &str, format: Format, value: &Value) -> Vec<String> {
+        let text = serde_json::to_string(value).expect("JSON");
+        let r = read_results("changed", &text).expect("the copy still reads");
+        check_file(&case(case_name), format, &r, "changed")
+    }
+
+    #[test]
+    fn the_invariants_hold_on_the_unchanged_copy() {
+        assert_eq!(
+            problems("robust-methods", &golden_value("robust-methods")),
+            Vec::<String>::new()
+        );
+    }
+
+    #[test]
+    fn a_broken_invariant_is_reported() {
+        let mut v = golden_value("plant-growth");
+        v["blocks"][0]["anova"]["terms"][0]["p"] = Value::from(1.5);
+        let found = problems("plant-growth", &v);
+        assert!(
+            found.iter().any(|e| e.contains("p is not a probability")),
+            "{found:?}"
+        );
+
+        let mut v = golden_value("plant-growth");
+        v["inputs"][0]["sha256"] = Value::from("152cdae1");
+        let found = problems("plant-growth", &v);
+        assert!(
+            found.iter().any(|e| e.contains("64 lowercase hex")),
+            "{found:?}"
+        );
+
+        let mut v = golden_value("plant-growth");
+        v["schema"] = Value::from(3);
+        assert!(
+            problems("plant-growth", &v)
+                .iter()
+                .any(|e| e.contains("schema"))
+        );
+
+        let mut v = golden_value("plant-growth");
+        let diff = v["blocks"][0]["comparisons"][0]["pairs"][0]["diff"]
+            .as_f64()
+            .expect("diff");
+        v["blocks"][0]["comparisons"][0]["pairs"][0]["diff"] = Value::from(-diff);
+        let found = problems("plant-growth", &v);
+        assert!(
+            found.iter().any(|e| e.contains("is not mean(")),
+            "{found:?}"
+        );
+    }
+
+    #[test]
+    fn a_figure_that_is_not_the_file_beside_the_report_is_reported() {
+        let md = case("figures").join("expected/report.md.results.json");
+        let text = std::fs::read_to_string(md).expect("golden results file");
+        let golden: Value = serde_json::from_str(&text).expect("JSON");
+        assert_eq!(
+            problems_as("figures", Format::Md, &golden),
+            Vec::<String>::new()
+        );
+
+        let mut v = golden.clone();
+        v["blocks"][0]["figures"][0]["sha256"] = Value::from("0".repeat(64));
+        let found = problems_as("figures", Format::Md, &v);
+        assert!(
+            found.iter().any(|e| e.contains("sha256 is not that of")),
+            "{found:?}"
+        );
+
+        let mut v = golden.clone();
+        v["blocks"][0]["figures"][0]["file"] = Value::Null;
+        let found = problems_as("figures", Format::Md, &v);
+        assert!(
+            found.iter().any(|e| e.contains("file is null")),
+            "{found:?}"
+        );
+
+        // The Markdown copy read as the HTML file: every figure names a file.
+        assert!(!problems_as("figures", Format::Html, &golden).is_empty());
+    }
+}
