@@ -112,7 +112,7 @@ pub enum Data<'a> {
 pub(crate) fn reads_csv_rows(spec: &AnovaSpec) -> bool {
     spec.summary.is_none()
         && spec.rows.wide.is_none()
-        && !crate::data::spreadsheet::is_spreadsheet(&spec.data.value)
+        && crate::data::reader::reader_for(&spec.data.value).streams_rows()
 }
 
 /// Whether a block can read its data file as a stream: a one-factor model
@@ -167,23 +167,14 @@ fn data_error(
     display_path: &str,
     e: DataError,
 ) -> Diagnostic {
-    let mut d = if crate::data::spreadsheet::is_spreadsheet(display_path) {
-        // A workbook has rows and cells, not lines: name them, with the sheet.
-        let sheet = match &block.spec {
-            crate::doc::BlockSpec::Anova(spec) => spec.sheet.as_deref(),
-            _ => None,
-        }
-        .map_or_else(|| "the first sheet".to_string(), |s| format!("sheet `{s}`"));
-        let place = match (e.line, e.column) {
-            (Some(row), Some(column)) => {
-                format!("{display_path}, {sheet}, row {row}, column {column} of the table")
-            }
-            (Some(row), None) => format!("{display_path}, {sheet}, row {row}"),
-            _ => display_path.to_string(),
-        };
-        Diagnostic::new(e.message).at(&place, None, None)
-    } else {
-        Diagnostic::new(e.message).at(display_path, e.line, e.column)
+    let sheet = match &block.spec {
+        crate::doc::BlockSpec::Anova(spec) => spec.sheet.as_deref(),
+        _ => None,
+    };
+    let reader = crate::data::reader::reader_for(display_path);
+    let mut d = match reader.place(display_path, sheet, e.line, e.column) {
+        Some(place) => Diagnostic::new(e.message).at(&place, None, None),
+        None => Diagnostic::new(e.message).at(display_path, e.line, e.column),
     };
     if let Some(h) = e.hint {
         d = d.hint(h);

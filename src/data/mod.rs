@@ -5,6 +5,7 @@
 pub mod csv;
 pub mod decimal;
 pub mod levels;
+pub mod reader;
 pub mod scan;
 pub mod spreadsheet;
 
@@ -33,8 +34,7 @@ impl Default for CsvFormat {
 /// Tokens read as missing unless the block says otherwise.
 pub const DEFAULT_MISSING: [&str; 6] = ["", "NA", "N/A", "NaN", ".", "-"];
 
-/// Reads a data file into a table: a spreadsheet by its file name ending
-/// (with `sheet` and `range`), else CSV.
+/// Reads a data file into a table with the reader its name calls for.
 pub fn read_table(
     path: &str,
     bytes: &[u8],
@@ -42,11 +42,12 @@ pub fn read_table(
     sheet: Option<&str>,
     range: Option<&str>,
 ) -> Result<Table, DataError> {
-    if spreadsheet::is_spreadsheet(path) {
-        spreadsheet::read_sheet(bytes, sheet, range)
-    } else {
-        Table::parse(bytes, format)
-    }
+    let options = reader::ReadOptions {
+        csv: format,
+        sheet,
+        range,
+    };
+    reader::reader_for(path).read(bytes, options)
 }
 
 /// A problem found in a data file: where, what, and what to do.

@@ -1023,14 +1023,14 @@ pub fn anova_spec(
         }
         plots.x_axis = Some(e.value.clone());
     }
-    for key in ["sheet", "range"] {
-        if let (Some(e), false) = (
-            get(key),
-            crate::data::spreadsheet::is_spreadsheet(&data_entry.value),
-        ) {
+    for (key, reader) in crate::data::reader::foreign_keys(&data_entry.value) {
+        if let Some(e) = get(key) {
             return Err(bad(
                 e,
-                format!("`{key}` applies to spreadsheet data (.xlsx, .xls, .ods)"),
+                format!(
+                    "`{key}` applies to {} data (.xlsx, .xls, .ods)",
+                    reader.name()
+                ),
                 "remove it, or point `data` at the workbook",
             ));
         }
