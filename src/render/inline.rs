@@ -296,13 +296,13 @@ struct BlockContext {
 }
 
 /// The term a block's own names refer to: one factor's only term; for
-/// several factors the first factor compared as a main effect, else the
-/// first tested term in model order.
+/// several factors the first factor whose levels are compared (as a main
+/// effect or within slices), else the first tested term in model order.
 fn primary_term(o: &LinearOutcome) -> Option<&TermTest> {
     let tested = |name: &str| o.terms.iter().find(|t| t.tested && t.name == name);
     o.families
         .iter()
-        .filter(|f| f.within.is_none() && f.comparison.is_some())
+        .filter(|f| f.comparison.is_some())
         .find_map(|f| tested(&f.term).filter(|t| t.factors.len() == 1))
         .or_else(|| o.terms.iter().find(|t| t.tested))
 }
@@ -772,18 +772,12 @@ fn unknown_name_error(
             .to_string();
     }
     if !ids.contains(&head.as_str()) {
-        let d = match head.is_empty() {
-            true => doc.error_at(
-                line,
-                Some(col),
-                format!("`{}` names no analysis block", e.source),
-            ),
-            false => doc.error_at(
-                line,
-                Some(col),
-                format!("`{head}` is not the id of an analysis block"),
-            ),
+        let message = if head.is_empty() {
+            format!("`{}` names no analysis block", e.source)
+        } else {
+            format!("`{head}` is not the id of an analysis block")
         };
+        let d = doc.error_at(line, Some(col), message);
         return match crate::diag::nearest(&head, ids.iter().copied()) {
             Some(n) => d.hint(format!("did you mean `{n}`?")),
             None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),

@@ -58,6 +58,7 @@ fn shape(v: &Value) -> Option<String> {
         }
         ValueKind::Seq => match v.len() {
             Some(0) | None => Some(" (empty)".to_string()),
+            Some(1) => Some("[0]".to_string()),
             Some(n) => Some(format!("[0 to {}]", n - 1)),
         },
         _ => None,
