@@ -7,8 +7,11 @@
 //! `warnings` say why.
 
 use crate::doc::power::EffectInput;
-use crate::outcome::{AnovaResult, BlockResult, PowerResult};
+use crate::outcome::linear::{Comparison, Estimate, Family, LinearOutcome};
+use crate::outcome::{BlockResult, PowerResult};
 use crate::provenance::{Input, sha256_hex};
+use crate::stats::compare::Method;
+use crate::stats::dunnett::Sides;
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 
@@ -40,28 +43,7 @@ pub struct ResultsFile {
 #[serde(untagged)]
 pub enum BlockEntry {
     Anova(Box<BlockRecord>),
-    Factorial(Box<FactorialRecord>),
     Power(Box<PowerRecord>),
-}
-
-/// A factorial `anova` block: the same fields as a one-factor block where
-/// they apply, plus `ss_type`, `cells` and estimated marginal means.
-#[derive(Serialize)]
-pub struct FactorialRecord {
-    #[serde(flatten)]
-    pub head: BlockHead,
-    /// 1, 2 or 3.
-    pub ss_type: u8,
-    pub anova: AnovaRecord,
-    pub checks: ChecksRecord,
-    /// Estimated marginal means of the first compared term (as `groups` for one factor).
-    pub groups: Vec<GroupRecord>,
-    pub cells: Vec<CellRecord>,
-    pub comparisons: Vec<ComparisonRecord>,
-    pub figures: Vec<FigureRecord>,
-    pub warnings: Vec<String>,
-    /// Notes the author acknowledged (`acknowledge`, planned exclusions).
-    pub acknowledged: Vec<String>,
 }
 
 #[derive(Serialize)]
@@ -80,158 +62,6 @@ pub struct MeanRecord {
     pub se: Option<f64>,
     pub ci_lower: Option<f64>,
     pub ci_upper: Option<f64>,
-}
-
-fn factorial_record(r: &crate::outcome::FactorialResult) -> FactorialRecord {
-    let comparisons: Vec<ComparisonRecord> = r
-        .families
-        .iter()
-        .map(|fam| {
-            let c = &fam.comparison;
-            ComparisonRecord {
-                term: fam.term.clone(),
-                within: fam.within.clone(),
-                method: c.method.key(),
-                alpha: c.alpha,
-                critical_value: finite(c.critical),
-                control: None,
-                sides: None,
-                means: Some(
-                    fam.means
-                        .iter()
-                        .map(|m| MeanRecord {
-                            level: m.label.clone(),
-                            n: m.n,
-                            mean: finite(m.mean),
-                            se: finite(m.se),
-                            ci_lower: finite(m.ci_lower),
-                            ci_upper: finite(m.ci_upper),
-                        })
-                        .collect(),
-                ),
-                pairs: c
-                    .pairs
-                    .iter()
-                    .map(|p| PairRecord {
-                        a: fam.means[p.a].label.clone(),
-                        b: fam.means[p.b].label.clone(),
-                        diff: finite(p.diff),
-                        se: finite(p.se),
-                        lower: finite(p.lower),
-                        upper: finite(p.upper),
-                        p_adj: finite(p.p_adj),
-                        significant: p.significant,
-                        df: None,
-                    })
-                    .collect(),
-                letters: Letters(
-                    fam.means
-                        .iter()
-                        .zip(&c.letters)
-                        .map(|(m, l)| (m.label.clone(), l.clone()))
-                        .collect(),
-                ),
-            }
-        })
-        .collect();
-    let groups = r
-        .families
-        .first()
-        .map(|fam| {
-            fam.means
-                .iter()
-                .map(|m| GroupRecord {
-                    level: m.label.clone(),
-                    n: m.n,
-                    mean: finite(m.mean),
-                    sd: None,
-                    se: finite(m.se),
-                    ci_lower: finite(m.ci_lower),
-                    ci_upper: finite(m.ci_upper),
-                    ci_error: "pooled",
-                    median: None,
-                    q1: None,
-                    q3: None,
-                })
-                .collect()
-        })
-        .unwrap_or_default();
-    FactorialRecord {
-        head: BlockHead::new(
-            &r.id,
-            r.line,
-            &r.data,
-            &r.response,
-            r.factors.clone(),
-            r.n,
-            &r.exclusions,
-            r.alpha,
-            "anova",
-        ),
-        ss_type: match r.ss_type {
-            crate::stats::linear::SsType::I => 1,
-            crate::stats::linear::SsType::II => 2,
-            crate::stats::linear::SsType::III => 3,
-        },
-        anova: AnovaRecord {
-            terms: r
-                .terms
-                .iter()
-                .map(|t| TermRecord {
-                    term: t.name.clone(),
-                    df: t.df,
-                    ss: finite(t.ss),
-                    ms: finite(t.ms),
-                    f: finite(t.f),
-                    p: finite(t.p),
-                    critical_f: finite(t.critical_f),
-                    not_tested: t.is_block.then_some(BLOCK_REASON),
-                    effect: Some(EffectRecord {
-                        eta_sq: None,
-                        partial_eta_sq: finite(t.partial_eta_sq),
-                        omega_sq: finite(t.partial_omega_sq),
-                        cohens_f: finite((t.partial_eta_sq / (1.0 - t.partial_eta_sq)).sqrt()),
-                        partial_eta_sq_ci: [
-                            finite(t.partial_eta_sq_ci.0),
-                            finite(t.partial_eta_sq_ci.1),
-                        ],
-                        ci_level: 1.0 - r.alpha,
-                    }),
-                })
-                .collect(),
-            residual: ResidualRecord {
-                df: r.residual_df,
-                ss: finite(r.residual_ss),
-                ms: finite(r.mse),
-            },
-            total: TotalRecord {
-                df: r.n - 1,
-                ss: finite(r.total_ss),
-            },
-            r_squared: finite(r.r_squared),
-        },
-        checks: checks_record(&r.checks),
-        groups,
-        cells: r
-            .cells
-            .iter()
-            .map(|c| CellRecord {
-                levels: Letters(
-                    r.cell_factors
-                        .iter()
-                        .zip(&c.levels)
-                        .map(|(&f, &l)| (r.factors[f].clone(), r.levels[f][l].clone()))
-                        .collect(),
-                ),
-                n: c.n,
-                mean: if c.n > 0 { finite(c.mean) } else { None },
-            })
-            .collect(),
-        comparisons,
-        figures: Vec::new(),
-        warnings: r.warnings.clone(),
-        acknowledged: r.acknowledged.clone(),
-    }
 }
 
 /// A figure: its id, kind as written in `plot`, the file beside the report
@@ -316,17 +146,28 @@ pub struct InputRecord {
     pub bytes: usize,
 }
 
+/// An `anova` block, one-factor or factorial: the fields that have no
+/// meaning for the design are left out (`ss_type` and `cells` for one
+/// factor; `welch` and `kruskal` unless computed).
 #[derive(Serialize)]
 pub struct BlockRecord {
     #[serde(flatten)]
     pub head: BlockHead,
+    /// Factorial designs: 1, 2 or 3.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub ss_type: Option<u8>,
     pub anova: AnovaRecord,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub welch: Option<WelchRecord>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub kruskal: Option<KruskalRecord>,
     pub checks: ChecksRecord,
+    /// One factor: its levels. Factorial designs: the estimated marginal
+    /// means of the first comparison family.
     pub groups: Vec<GroupRecord>,
+    /// Factorial designs: the cells of the treatment factors.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cells: Option<Vec<CellRecord>>,
     pub comparisons: Vec<ComparisonRecord>,
     pub figures: Vec<FigureRecord>,
     pub warnings: Vec<String>,
@@ -352,36 +193,26 @@ pub struct BlockHead {
 }
 
 impl BlockHead {
-    #[allow(clippy::too_many_arguments)]
-    fn new(
-        id: &str,
-        line: usize,
-        data: &str,
-        response: &str,
-        factors: Vec<String>,
-        n: usize,
-        exclusions: &[crate::data::Exclusion],
-        alpha: f64,
-        method: &'static str,
-    ) -> Self {
+    fn new(o: &LinearOutcome) -> Self {
         BlockHead {
-            id: id.to_string(),
+            id: o.id.clone(),
             kind: "anova",
-            line,
-            data: data.to_string(),
-            response: response.to_string(),
-            factors,
-            n,
-            n_excluded: exclusions.len(),
-            excluded: exclusions
+            line: o.line,
+            data: o.data.clone(),
+            response: o.response.clone(),
+            factors: o.factors.iter().map(|f| f.name.clone()).collect(),
+            n: o.n,
+            n_excluded: o.exclusions.len(),
+            excluded: o
+                .exclusions
                 .iter()
                 .map(|e| ExcludedRecord {
                     line: e.line,
                     reason: e.reason.clone(),
                 })
                 .collect(),
-            alpha,
-            method,
+            alpha: o.alpha,
+            method: o.method.key(),
         }
     }
 }
@@ -566,85 +397,60 @@ impl Serialize for Letters {
     }
 }
 
-/// The record of one `anova` block.
-pub fn block_record(r: &AnovaResult) -> BlockRecord {
-    let t = &r.table;
-    let comparisons = r
-        .comparison
-        .iter()
-        .map(|c| ComparisonRecord {
-            term: r.factor.clone(),
-            within: None,
-            method: c.method.key(),
-            alpha: c.alpha,
-            critical_value: finite(c.critical),
-            control: c.control.map(|i| r.levels[i].name.clone()),
-            means: None,
-            sides: (c.method == crate::stats::compare::Method::Dunnett).then_some(match c.sides {
-                crate::stats::dunnett::Sides::Two => "two-sided",
-                crate::stats::dunnett::Sides::Greater => "greater",
-                crate::stats::dunnett::Sides::Less => "less",
-            }),
-            pairs: c
-                .pairs
-                .iter()
-                .map(|p| PairRecord {
-                    a: r.levels[p.a].name.clone(),
-                    b: r.levels[p.b].name.clone(),
-                    diff: finite(p.diff),
-                    se: finite(p.se),
-                    lower: finite(p.lower),
-                    upper: finite(p.upper),
-                    p_adj: finite(p.p_adj),
-                    significant: p.significant,
-                    df: p.df.and_then(finite),
-                })
-                .collect(),
-            letters: Letters(
-                r.levels
-                    .iter()
-                    .zip(&c.letters)
-                    .map(|(l, s)| (l.name.clone(), s.clone()))
-                    .collect(),
-            ),
-        })
-        .collect();
+/// The record of one `anova` block, one-factor or factorial.
+pub fn block_record(o: &LinearOutcome) -> BlockRecord {
+    let welch = &o.alternatives.welch;
+    let kruskal = &o.alternatives.kruskal;
     BlockRecord {
-        head: BlockHead::new(
-            &r.id,
-            r.line,
-            &r.data,
-            &r.response,
-            vec![r.factor.clone()],
-            r.n,
-            &r.exclusions,
-            r.alpha,
-            r.method.key(),
-        ),
-        welch: r.welch.map(|w| WelchRecord {
+        head: BlockHead::new(o),
+        ss_type: o.ss_type_number(),
+        anova: anova_record(o),
+        welch: welch.map(|w| WelchRecord {
             f: finite(w.f),
             df1: w.df1,
             df2: finite(w.df2),
             p: finite(w.p),
         }),
-        kruskal: r.kruskal.as_ref().map(|k| KruskalRecord {
+        kruskal: kruskal.as_ref().map(|k| KruskalRecord {
             h: finite(k.h),
             df: k.df,
             p: finite(k.p),
         }),
-        checks: checks_record(&r.checks),
-        anova: AnovaRecord {
-            terms: vec![TermRecord {
-                term: r.factor.clone(),
-                df: t.df_between,
-                ss: finite(t.ss_between),
-                ms: finite(t.ms_between),
+        checks: checks_record(&o.checks),
+        groups: groups_record(o),
+        cells: (!o.is_one_factor()).then(|| cells_record(o)),
+        comparisons: o
+            .families
+            .iter()
+            .filter_map(|fam| {
+                let c = fam.comparison.as_ref()?;
+                Some(comparison_record(o, fam, c))
+            })
+            .collect(),
+        figures: Vec::new(),
+        warnings: o.warnings.clone(),
+        acknowledged: o.acknowledged.clone(),
+    }
+}
+
+/// The ANOVA table: every term, the residual and the total.
+fn anova_record(o: &LinearOutcome) -> AnovaRecord {
+    let residual = o.residual();
+    AnovaRecord {
+        terms: o
+            .terms
+            .iter()
+            .map(|t| TermRecord {
+                term: t.name.clone(),
+                df: t.df,
+                ss: finite(t.ss),
+                ms: finite(t.ms),
                 f: finite(t.f),
                 p: finite(t.p),
-                critical_f: finite(t.f_crit),
-                not_tested: None,
-                effect: r.effect.map(|e| EffectRecord {
-                    eta_sq: finite(e.eta_sq),
+                critical_f: finite(t.critical_f),
+                not_tested: (!t.tested).then_some(BLOCK_REASON),
+                effect: t.effect.map(|e| EffectRecord {
+                    eta_sq: e.eta_sq.and_then(finite),
                     partial_eta_sq: finite(e.partial_eta_sq),
                     omega_sq: finite(e.omega_sq),
                     cohens_f: finite(e.cohens_f),
@@ -652,41 +458,129 @@ pub fn block_record(r: &AnovaResult) -> BlockRecord {
                         finite(e.partial_eta_sq_ci.0),
                         finite(e.partial_eta_sq_ci.1),
                     ],
-                    ci_level: e.level,
+                    ci_level: e.ci_level,
                 }),
-            }],
-            residual: ResidualRecord {
-                df: t.df_within,
-                ss: finite(t.ss_within),
-                ms: finite(t.ms_within),
-            },
-            total: TotalRecord {
-                df: t.n - 1,
-                ss: finite(t.ss_total),
-            },
-            r_squared: finite(t.r_squared),
-        },
-        groups: r
-            .levels
-            .iter()
-            .map(|l| GroupRecord {
-                level: l.name.clone(),
-                n: l.n,
-                mean: finite(l.mean),
-                sd: finite(l.sd),
-                se: finite(l.se),
-                ci_lower: finite(l.ci_lower),
-                ci_upper: finite(l.ci_upper),
-                ci_error: if r.ci_pooled { "pooled" } else { "level" },
-                median: finite(l.median),
-                q1: finite(l.q1),
-                q3: finite(l.q3),
             })
             .collect(),
-        comparisons,
-        figures: Vec::new(),
-        warnings: r.warnings.clone(),
-        acknowledged: r.acknowledged.clone(),
+        // Fixed-effects strata have whole degrees of freedom.
+        residual: ResidualRecord {
+            df: residual.df as usize,
+            ss: finite(residual.ss),
+            ms: finite(residual.ms),
+        },
+        total: TotalRecord {
+            df: o.total_df,
+            ss: finite(o.total_ss),
+        },
+        r_squared: finite(o.r_squared),
+    }
+}
+
+/// One factor: its levels with their spread. Several factors: the
+/// estimated marginal means of the first family (no SD or quartiles).
+fn groups_record(o: &LinearOutcome) -> Vec<GroupRecord> {
+    let group = |m: &Estimate, ci_error: &'static str| GroupRecord {
+        level: m.label.clone(),
+        n: m.n,
+        mean: finite(m.mean),
+        sd: None,
+        se: finite(m.se),
+        ci_lower: finite(m.ci_lower),
+        ci_upper: finite(m.ci_upper),
+        ci_error,
+        median: None,
+        q1: None,
+        q3: None,
+    };
+    if !o.is_one_factor() {
+        let estimates = o.families.first().map_or(&[][..], |f| &f.estimates[..]);
+        return estimates.iter().map(|m| group(m, "pooled")).collect();
+    }
+    let ci_error = if o.ci_pooled { "pooled" } else { "level" };
+    o.levels
+        .iter()
+        .map(|l| GroupRecord {
+            sd: finite(l.sd),
+            median: finite(l.median),
+            q1: finite(l.q1),
+            q3: finite(l.q3),
+            ..group(&l.estimate(), ci_error)
+        })
+        .collect()
+}
+
+/// The cells of the treatment factors, each named by its levels.
+fn cells_record(o: &LinearOutcome) -> Vec<CellRecord> {
+    o.cells
+        .iter()
+        .map(|c| CellRecord {
+            levels: Letters(
+                o.cell_factors
+                    .iter()
+                    .zip(&c.levels)
+                    .map(|(&f, &l)| {
+                        let factor = &o.factors[f];
+                        (factor.name.clone(), factor.levels[l].clone())
+                    })
+                    .collect(),
+            ),
+            n: c.n,
+            mean: if c.n > 0 { finite(c.mean) } else { None },
+        })
+        .collect()
+}
+
+/// One comparison family. Factorial families list the means they compare
+/// (one factor's are its `groups`); Dunnett names its control and sides.
+fn comparison_record(o: &LinearOutcome, fam: &Family, c: &Comparison) -> ComparisonRecord {
+    let label = |i: usize| fam.estimates[i].label.clone();
+    let means = fam
+        .estimates
+        .iter()
+        .map(|m| MeanRecord {
+            level: m.label.clone(),
+            n: m.n,
+            mean: finite(m.mean),
+            se: finite(m.se),
+            ci_lower: finite(m.ci_lower),
+            ci_upper: finite(m.ci_upper),
+        })
+        .collect();
+    ComparisonRecord {
+        term: fam.term.clone(),
+        within: fam.within.clone(),
+        method: c.method.key(),
+        alpha: c.alpha,
+        critical_value: finite(c.critical),
+        control: c.control.map(label),
+        sides: (c.method == Method::Dunnett).then_some(match c.sides {
+            Sides::Two => "two-sided",
+            Sides::Greater => "greater",
+            Sides::Less => "less",
+        }),
+        means: (!o.is_one_factor()).then_some(means),
+        pairs: c
+            .contrasts
+            .iter()
+            .map(|p| PairRecord {
+                a: label(p.a),
+                b: label(p.b),
+                diff: finite(p.estimate),
+                se: finite(p.se),
+                lower: finite(p.lower),
+                upper: finite(p.upper),
+                p_adj: finite(p.p_adj),
+                significant: p.significant,
+                df: if p.own_df { finite(p.df) } else { None },
+            })
+            .collect(),
+        letters: Letters(
+            fam.estimates
+                .iter()
+                .zip(&c.letters)
+                .map(|(m, l)| (m.label.clone(), l.clone()))
+                .collect(),
+        ),
     }
 }
 
@@ -748,6 +642,11 @@ pub fn results_json(
                 .collect()
         })
     };
+    let linear = |o: LinearOutcome, i: usize| {
+        let mut rec = block_record(&o);
+        rec.figures = figure_records(i);
+        BlockEntry::Anova(Box::new(rec))
+    };
     let file = ResultsFile {
         sheaf: crate::VERSION.to_string(),
         schema: SCHEMA_VERSION,
@@ -766,16 +665,8 @@ pub fn results_json(
             .iter()
             .enumerate()
             .map(|(i, b)| match b {
-                BlockResult::Anova(r) => {
-                    let mut rec = block_record(r);
-                    rec.figures = figure_records(i);
-                    BlockEntry::Anova(Box::new(rec))
-                }
-                BlockResult::Factorial(r) => {
-                    let mut rec = factorial_record(r);
-                    rec.figures = figure_records(i);
-                    BlockEntry::Factorial(Box::new(rec))
-                }
+                BlockResult::Anova(r) => linear(LinearOutcome::from(r.as_ref()), i),
+                BlockResult::Factorial(r) => linear(LinearOutcome::from(r.as_ref()), i),
                 BlockResult::Power(r) => {
                     let mut rec = power_record(r);
                     rec.figures = figure_records(i);

@@ -8,12 +8,17 @@ use sheaf::render::Format;
 /// levels of ten.
 const PLANTS: &str = include_str!("cases/plant-growth/plants.csv");
 
+/// Warp breaks by wool and tension (Tippett 1950, as in tests/cases/factorial):
+/// a balanced 2 × 3 factorial with nine looms per cell.
+const WARP: &str = include_str!("cases/factorial/warpbreaks.csv");
+
 struct Memory;
 
 impl World for Memory {
     fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
         match path {
             "plants.csv" => Ok(PLANTS.as_bytes().to_vec()),
+            "warpbreaks.csv" => Ok(WARP.as_bytes().to_vec()),
             _ => Err(std::io::Error::new(std::io::ErrorKind::NotFound, path)),
         }
     }
@@ -25,7 +30,9 @@ impl World for Memory {
 const BLOCKS: &str = "```anova\nid: g\ndata: plants.csv\nmodel: weight ~ group\n```\n\n\
 ```anova\nid: w\ndata: plants.csv\nmodel: weight ~ group\nmethod: welch\n```\n\n\
 ```anova\nid: k\ndata: plants.csv\nmodel: weight ~ group\nmethod: ranks\n```\n\n\
-```power\nid: plan\ngroups: 3\neffect: f = 0.4\npower: 0.8\n```\n\n";
+```power\nid: plan\ngroups: 3\neffect: f = 0.4\npower: 0.8\n```\n\n\
+```anova\nid: warp\ndata: warpbreaks.csv\nmodel: breaks ~ wool * tension\ncompare: tukey\n\
+compare_term: tension\n```\n\n";
 
 /// The Markdown report of BLOCKS followed by `prose`.
 fn prose(prose: &str) -> Result<String, Box<sheaf::diag::Diagnostic>> {
@@ -98,9 +105,11 @@ fn unbounded_expressions_are_refused_at_their_place() {
     ] {
         let e = error(&format!("Intro line.\n\nSee {{{{ {expr} }}}} here."));
         let place = e.place.as_ref().expect("placed");
+        // The third line after the blocks, fifth column.
+        let line = BLOCKS.lines().count() + 3;
         assert_eq!(
             (place.line, place.column),
-            (Some(30), Some(5)),
+            (Some(line), Some(5)),
             "{expr}: {e:?}"
         );
     }
@@ -178,4 +187,139 @@ fn round_and_fixed_follow_the_one_rounding_rule() {
     for want in ["A411.0 ", "B411 ", "C455.13 ", "D−3 ", "E2.68"] {
         assert!(md.contains(want), "`{want}` in {md}");
     }
+}
+
+/// The text between `[[` and `]]` in a report, with the Markdown escapes of
+/// the output taken out.
+fn marked(md: &str) -> String {
+    let from = md.find("[[").expect("opening mark") + 2;
+    let to = md[from..].find("]]").expect("closing mark") + from;
+    md[from..to].replace('\\', "")
+}
+
+/// The names `expr` holds, walked by the template engine itself.
+fn names_of(expr: &str) -> std::collections::BTreeSet<String> {
+    let md = prose(&format!("[[{{{{ {expr} | list | join(\" \") }}}}]]")).expect("builds");
+    marked(&md).split(' ').map(str::to_string).collect()
+}
+
+#[test]
+fn a_factorial_block_has_the_block_level_names() {
+    // R's `aov(breaks ~ wool * tension, warpbreaks)` (from memory): tension
+    // F = 8.498 on 2 and 48 df, p = 0.00069. `compare_term: tension` makes
+    // tension the block's own term.
+    let md = prose(
+        "A: {{ warp.statement }}. B: {{ warp | statement }}. C: {{ warp.f | round(2) }}. \
+         D: {{ warp.df1 }}/{{ warp.df2 }}. E: {{ warp.factor }}. F: {{ warp.p | pvalue }}. \
+         G: {{ warp.checks.levene.p }}. H: {{ warp.ss_type }}. I: {{ warp.total.df }}. \
+         J: {{ warp.groups.L.n }}. K: {{ warp.pairs | length }}. L: {{ warp.compare }}.",
+    )
+    .expect("builds");
+    assert!(md.contains("A: F(2, 48) = 8.50, p < 0.001."), "{md}");
+    assert!(md.contains("B: F(2, 48) = 8.50, p < 0.001."), "{md}");
+    assert!(md.contains("C: 8.5."), "{md}");
+    assert!(md.contains("D: 2/48."), "{md}");
+    assert!(md.contains("E: tension."), "{md}");
+    assert!(md.contains("F: < 0.001."), "{md}");
+    // 54 looms, 18 at each tension; three levels make three pairs.
+    assert!(md.contains("I: 53."), "{md}");
+    assert!(md.contains("J: 18."), "{md}");
+    assert!(md.contains("K: 3."), "{md}");
+    assert!(md.contains("L: tukey."), "{md}");
+    // Type III is the default for several factors (README, factorial keys).
+    assert!(md.contains("H: 3."), "{md}");
+    // The Levene p prose quotes is the one the results file records.
+    let doc = format!("{BLOCKS}{{{{ warp.checks.levene.p }}}}\n");
+    let built = compile("report.md", doc.as_bytes(), &Memory, Format::Markdown).expect("builds");
+    let results: serde_json::Value = serde_json::from_slice(&built.results).expect("json");
+    let levene = &results["blocks"][4]["checks"]["levene"]["p"];
+    let p = levene.as_f64().expect("a Levene p");
+    assert!(md.contains(&format!("G: {p}.")), "{p} in {md}");
+}
+
+#[test]
+fn one_factor_and_factorial_blocks_share_their_names() {
+    let one = names_of("g");
+    let several = names_of("warp");
+    let only_one: Vec<&String> = one.difference(&several).collect();
+    let only_several: Vec<&String> = several.difference(&one).collect();
+    // README, "Numbers in prose": `welch` and `kruskal` are one-factor
+    // only, `ss_type` factorial only; every other name is shared.
+    assert_eq!(only_one, ["kruskal", "welch"]);
+    assert_eq!(only_several, ["ss_type"]);
+    assert!(one.len() > 20, "{one:?}");
+    // One level deeper the shared names hold the same names again, save
+    // a level's spread, which marginal means do not have (README).
+    for (a, b) in [
+        ("g.checks", "warp.checks"),
+        ("g.terms.group", "warp.terms.tension"),
+        ("g.terms.group.effect", "warp.terms.tension.effect"),
+        ("g.residual", "warp.residual"),
+        ("g.total", "warp.total"),
+        ("g.pairs[0]", "warp.pairs[0]"),
+        ("g.means.group.ctrl", "warp.means.tension.L"),
+    ] {
+        assert_eq!(names_of(a), names_of(b), "{a} against {b}");
+    }
+    let level: Vec<String> = names_of("g.groups.ctrl")
+        .difference(&names_of("warp.groups.L"))
+        .cloned()
+        .collect();
+    assert_eq!(level, ["median", "q1", "q3", "sd"]);
+}
+
+/// The hint of an unknown name, split into the names it lists.
+fn hint_names(expr: &str) -> (String, Vec<String>) {
+    let e = error(&format!("{{{{ {expr} }}}}"));
+    let hint = e.hints.first().expect("a hint").clone();
+    let (head, list) = hint.split_once("` has ").expect("a list of names");
+    let names = list.split(", ").map(str::to_string).collect();
+    (head.trim_start_matches('`').to_string(), names)
+}
+
+#[test]
+fn the_unknown_name_hint_lists_only_names_that_resolve() {
+    for (expr, at) in [
+        ("g.fstat", "g"),
+        ("warp.fstat", "warp"),
+        ("warp.terms.nosuch.f", "warp.terms"),
+        ("w.checks.levene.q", "w.checks.levene"),
+    ] {
+        let (head, names) = hint_names(expr);
+        assert_eq!(head, at, "{expr}");
+        // Every name listed, and every key a listed map shows, resolves.
+        let mut probes = Vec::new();
+        for name in &names {
+            let (name, keys) = match name.split_once(".<") {
+                Some((n, keys)) => (n, keys.trim_end_matches('>').split('|').collect()),
+                None => (name.split(['[', ' ']).next().unwrap_or(name), Vec::new()),
+            };
+            probes.push(format!("{head}[\"{name}\"]"));
+            for key in keys {
+                probes.push(format!("{head}[\"{name}\"][\"{key}\"]"));
+            }
+        }
+        let text: String = probes
+            .iter()
+            .map(|p| format!("{{{{ {p} is defined }}}} "))
+            .collect();
+        let md = prose(&format!("[[{text}]]")).expect("builds");
+        let inside = marked(&md);
+        let answers: Vec<&str> = inside.split_whitespace().collect();
+        assert_eq!(answers.len(), probes.len(), "{md}");
+        for (probe, answer) in probes.iter().zip(answers) {
+            assert_eq!(answer, "yes", "{probe} is listed but does not resolve");
+        }
+        // And the listed names are all the names there are.
+        let listed: std::collections::BTreeSet<String> = names
+            .iter()
+            .map(|n| n.split(['.', '[', ' ']).next().unwrap_or(n).to_string())
+            .collect();
+        assert_eq!(listed, names_of(&head), "{expr}");
+    }
+    let (_, names) = hint_names("warp.terms.nosuch.f");
+    assert!(
+        names.iter().any(|n| n.starts_with("wool:tension.<")),
+        "{names:?}"
+    );
 }

@@ -268,3 +268,29 @@ impl LinearOutcome {
             .find(|f| f.term == term && f.within.is_none())
     }
 }
+
+impl LinearOutcome {
+    /// The sums-of-squares type as the results file and prose number it
+    /// (1, 2 or 3); `None` for one factor, where the types coincide.
+    pub fn ss_type_number(&self) -> Option<u8> {
+        self.ss_type.map(|t| match t {
+            SsType::I => 1,
+            SsType::II => 2,
+            SsType::III => 3,
+        })
+    }
+}
+
+impl LevelSummary {
+    /// The level as an estimate (its mean with its SE and interval).
+    pub fn estimate(&self) -> Estimate {
+        Estimate {
+            label: self.name.clone(),
+            n: self.n,
+            mean: self.mean,
+            se: self.se,
+            ci_lower: self.ci_lower,
+            ci_upper: self.ci_upper,
+        }
+    }
+}

@@ -4,9 +4,11 @@
 use super::templates::to_value;
 use crate::diag::Diagnostic;
 use crate::doc::Document;
+use crate::doc::block::Omnibus;
 use crate::doc::markdown::Expression;
 use crate::format::{df_text, f_statement, fixed, p_phrase, p_value, significant};
-use crate::outcome::{AnovaResult, BlockResult, PowerResult};
+use crate::outcome::linear::{Estimate, Family, LevelSummary, LinearOutcome, TermTest};
+use crate::outcome::{BlockResult, PowerResult};
 use minijinja::value::{Value, ValueKind};
 use minijinja::{Environment, ErrorKind, UndefinedBehavior};
 use serde::Serialize;
@@ -32,11 +34,32 @@ pub const MAX_EXPRESSION_OUTPUT: usize = 10_000;
 /// The filter appended to every expression to learn the fuel it used.
 const FUEL_PROBE: &str = "sheaf_fuel_probe";
 
+mod names;
+
+/// Degrees of freedom as prose reads them: whole numbers stay integers, a
+/// real-valued denominator df (an approximation) stays real.
+#[derive(Serialize, Clone, Copy)]
+#[serde(untagged)]
+enum Df {
+    Whole(usize),
+    Real(f64),
+}
+
+impl Df {
+    fn of(x: f64) -> Self {
+        if x.fract() == 0.0 && (0.0..9.0e15).contains(&x) {
+            Df::Whole(x as usize)
+        } else {
+            Df::Real(x)
+        }
+    }
+}
+
 #[derive(Serialize)]
 struct TermContext {
     df: usize,
     df1: usize,
-    df2: usize,
+    df2: Df,
     ss: f64,
     ms: f64,
     /// None for a blocking factor, which is reported but not tested.
@@ -50,46 +73,30 @@ struct TermContext {
 }
 
 impl TermContext {
-    #[allow(clippy::too_many_arguments)]
-    fn new(
-        (df, df2): (usize, usize),
-        ss: f64,
-        ms: f64,
-        f: f64,
-        p: f64,
-        critical_f: f64,
-        effect: Option<EffectContext>,
-    ) -> Self {
+    fn new(t: &TermTest) -> Self {
+        let tested = |x: f64| t.tested.then_some(x);
         TermContext {
-            df,
-            df1: df,
-            df2,
-            ss,
-            ms,
-            f: Some(f),
-            p: Some(p),
-            critical_f: Some(critical_f),
-            not_tested: None,
-            effect,
-            statement: Some(f_statement(df as f64, df2 as f64, f, p)),
-        }
-    }
-
-    /// A blocking factor: its sums of squares, no test (blocks are not
-    /// randomized, so their F is not a valid test).
-    fn untested(df: usize, df2: usize, ss: f64, ms: f64) -> Self {
-        TermContext {
-            df,
-            df1: df,
-            df2,
-            ss,
-            ms,
-            f: None,
-            p: None,
-            critical_f: None,
-            not_tested: Some("a blocking factor is reported but not tested"),
-            effect: None,
-            statement: None,
+            df: t.df,
+            df1: t.df,
+            df2: Df::of(t.denominator_df),
+            ss: t.ss,
+            ms: t.ms,
+            f: tested(t.f),
+            p: tested(t.p),
+            critical_f: tested(t.critical_f),
+            not_tested: (!t.tested).then_some("a blocking factor is reported but not tested"),
+            effect: t.effect.filter(|_| t.tested).map(|e| EffectContext {
+                // Several factors: η² is read as the partial one.
+                eta_sq: e.eta_sq.unwrap_or(e.partial_eta_sq),
+                partial_eta_sq: e.partial_eta_sq,
+                omega_sq: e.omega_sq,
+                cohens_f: e.cohens_f,
+                ci_lower: e.partial_eta_sq_ci.0,
+                ci_upper: e.partial_eta_sq_ci.1,
+            }),
+            statement: t
+                .tested
+                .then(|| f_statement(t.df as f64, t.denominator_df, t.f, t.p)),
         }
     }
 }
@@ -151,7 +158,7 @@ struct KruskalContext {
 /// The error term and the total: whole degrees of freedom stay integers.
 #[derive(Serialize)]
 struct SumsContext {
-    df: usize,
+    df: Df,
     ss: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     ms: Option<f64>,
@@ -166,59 +173,6 @@ struct ChecksContext {
     skewness: f64,
     excess_kurtosis: f64,
     outliers: usize,
-}
-
-#[derive(Serialize)]
-struct GroupContext {
-    n: usize,
-    mean: f64,
-    sd: f64,
-    se: f64,
-    ci_lower: f64,
-    ci_upper: f64,
-    median: f64,
-    q1: f64,
-    q3: f64,
-    letters: Option<String>,
-}
-
-#[derive(Serialize)]
-struct PairContext {
-    a: String,
-    b: String,
-    diff: f64,
-    se: f64,
-    lower: f64,
-    upper: f64,
-    p: f64,
-    significant: bool,
-}
-
-#[derive(Serialize)]
-struct BlockContext {
-    f: f64,
-    p: f64,
-    df1: usize,
-    df2: usize,
-    critical_f: f64,
-    r_squared: f64,
-    n: usize,
-    n_excluded: usize,
-    alpha: f64,
-    response: String,
-    factor: String,
-    method: &'static str,
-    compare: Option<&'static str>,
-    /// The declared omnibus test as a sentence fragment.
-    statement: String,
-    welch: Option<WelchContext>,
-    kruskal: Option<KruskalContext>,
-    checks: ChecksContext,
-    terms: BTreeMap<String, TermContext>,
-    residual: SumsContext,
-    groups: BTreeMap<String, GroupContext>,
-    letters: BTreeMap<String, String>,
-    pairs: Vec<PairContext>,
 }
 
 /// The assumption checks as prose sees them (one-factor and factorial blocks).
@@ -257,117 +211,39 @@ fn checks_context(c: &crate::outcome::Checks) -> ChecksContext {
     }
 }
 
-fn block_context(r: &AnovaResult) -> BlockContext {
-    let t = &r.table;
-    let mut terms = BTreeMap::new();
-    terms.insert(
-        r.factor.clone(),
-        TermContext::new(
-            (t.df_between, t.df_within),
-            t.ss_between,
-            t.ms_between,
-            t.f,
-            t.p,
-            t.f_crit,
-            r.effect.map(|e| EffectContext {
-                eta_sq: e.eta_sq,
-                partial_eta_sq: e.partial_eta_sq,
-                omega_sq: e.omega_sq,
-                cohens_f: e.cohens_f,
-                ci_lower: e.partial_eta_sq_ci.0,
-                ci_upper: e.partial_eta_sq_ci.1,
-            }),
-        ),
-    );
-    let letters_of = |i: usize| {
-        r.comparison
-            .as_ref()
-            .and_then(|c| c.letters.get(i).cloned())
-    };
-    BlockContext {
-        f: t.f,
-        p: t.p,
-        df1: t.df_between,
-        df2: t.df_within,
-        critical_f: t.f_crit,
-        r_squared: t.r_squared,
-        n: t.n,
-        n_excluded: r.exclusions.len(),
-        alpha: r.alpha,
-        response: r.response.clone(),
-        factor: r.factor.clone(),
-        method: r.method.key(),
-        compare: r.comparison.as_ref().map(|c| c.method.key()),
-        statement: super::view::omnibus_statement(r),
-        welch: r.welch.map(|w| WelchContext {
-            f: w.f,
-            df1: w.df1,
-            df2: w.df2,
-            p: w.p,
-            statement: format!("Welch's {}", f_statement(w.df1, w.df2, w.f, w.p)),
-        }),
-        kruskal: r.kruskal.as_ref().map(|k| KruskalContext {
-            h: k.h,
-            df: k.df,
-            p: k.p,
-            statement: format!(
-                "H({}) = {}, {}",
-                df_text(k.df),
-                fixed(k.h, 2),
-                p_phrase(k.p)
-            ),
-        }),
-        checks: checks_context(&r.checks),
-        terms,
-        residual: SumsContext {
-            df: t.df_within,
-            ss: t.ss_within,
-            ms: Some(t.ms_within),
-        },
-        groups: r
-            .levels
-            .iter()
-            .enumerate()
-            .map(|(i, l)| {
-                let g = GroupContext {
-                    n: l.n,
-                    mean: l.mean,
-                    sd: l.sd,
-                    se: l.se,
-                    ci_lower: l.ci_lower,
-                    ci_upper: l.ci_upper,
-                    median: l.median,
-                    q1: l.q1,
-                    q3: l.q3,
-                    letters: letters_of(i),
-                };
-                (l.name.clone(), g)
-            })
-            .collect(),
-        letters: r
-            .levels
-            .iter()
-            .enumerate()
-            .filter_map(|(i, l)| letters_of(i).map(|s| (l.name.clone(), s)))
-            .collect(),
-        pairs: r
-            .comparison
-            .iter()
-            .flat_map(|c| c.pairs.iter())
-            .map(|p| PairContext {
-                a: r.levels[p.a].name.clone(),
-                b: r.levels[p.b].name.clone(),
-                diff: p.diff,
-                se: p.se,
-                lower: p.lower,
-                upper: p.upper,
-                p: p.p_adj,
-                significant: p.significant,
-            })
-            .collect(),
-    }
+/// A level of the block's factor: its own statistics for one factor, its
+/// estimated marginal mean for several (no SD or quartiles there).
+#[derive(Serialize)]
+struct GroupContext {
+    n: usize,
+    mean: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    sd: Option<f64>,
+    se: f64,
+    ci_lower: f64,
+    ci_upper: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    median: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    q1: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    q3: Option<f64>,
+    letters: Option<String>,
 }
 
+#[derive(Serialize)]
+struct PairContext {
+    a: String,
+    b: String,
+    diff: f64,
+    se: f64,
+    lower: f64,
+    upper: f64,
+    p: f64,
+    significant: bool,
+}
+
+/// An estimate of a comparison family (`means.<family>.<level>`).
 #[derive(Serialize)]
 struct EmmContext {
     n: usize,
@@ -375,104 +251,249 @@ struct EmmContext {
     se: f64,
     ci_lower: f64,
     ci_upper: f64,
-    letters: String,
+    letters: Option<String>,
 }
 
+/// The namespace of every linear block, one-factor or factorial. The
+/// block's own test names (`f`, `p`, `df1`, `df2`, `critical_f`, `factor`,
+/// `statement`) and `groups`, `letters` and `pairs` refer to its primary
+/// term (see `primary_term`); `terms` and `means` hold all of them.
 #[derive(Serialize)]
-struct FactorialContext {
+struct BlockContext {
+    f: Option<f64>,
+    p: Option<f64>,
+    df1: Option<usize>,
+    df2: Option<Df>,
+    critical_f: Option<f64>,
+    r_squared: f64,
     n: usize,
     n_excluded: usize,
     alpha: f64,
     response: String,
-    ss_type: u8,
-    r_squared: f64,
+    factor: Option<String>,
+    method: &'static str,
+    compare: Option<&'static str>,
+    /// The declared omnibus test as a sentence fragment.
+    statement: Option<String>,
+    /// Factorial designs only: 1, 2 or 3.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    ss_type: Option<u8>,
+    /// One factor only: the alternative tests (none unless computed).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    welch: Option<Option<WelchContext>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    kruskal: Option<Option<KruskalContext>>,
+    checks: ChecksContext,
     terms: BTreeMap<String, TermContext>,
     residual: SumsContext,
     total: SumsContext,
-    /// means.<factor>.<level> for main-effect families; means.cells.<label>.
+    groups: BTreeMap<String, GroupContext>,
+    letters: BTreeMap<String, String>,
+    pairs: Vec<PairContext>,
+    /// means.<factor>.<level> for main-effect families, means["<factor>@<slice>"]
+    /// for simple effects, means.cells.<label> for all cells.
     means: BTreeMap<String, BTreeMap<String, EmmContext>>,
-    checks: ChecksContext,
 }
 
-fn factorial_context(r: &crate::outcome::FactorialResult) -> FactorialContext {
-    let terms = r
-        .terms
+/// The term a block's own names refer to: one factor's only term; for
+/// several factors the first factor whose levels are compared (as a main
+/// effect or within slices), else the first tested term in model order.
+fn primary_term(o: &LinearOutcome) -> Option<&TermTest> {
+    let tested = |name: &str| o.terms.iter().find(|t| t.tested && t.name == name);
+    o.families
         .iter()
-        .map(|t| {
-            let context = if t.is_block {
-                TermContext::untested(t.df, r.residual_df, t.ss, t.ms)
-            } else {
-                TermContext::new(
-                    (t.df, r.residual_df),
-                    t.ss,
-                    t.ms,
-                    t.f,
-                    t.p,
-                    t.critical_f,
-                    Some(EffectContext {
-                        eta_sq: t.partial_eta_sq,
-                        partial_eta_sq: t.partial_eta_sq,
-                        omega_sq: t.partial_omega_sq,
-                        cohens_f: (t.partial_eta_sq / (1.0 - t.partial_eta_sq)).sqrt(),
-                        ci_lower: t.partial_eta_sq_ci.0,
-                        ci_upper: t.partial_eta_sq_ci.1,
-                    }),
-                )
+        .filter(|f| f.comparison.is_some())
+        .find_map(|f| tested(&f.term).filter(|t| t.factors.len() == 1))
+        .or_else(|| o.terms.iter().find(|t| t.tested))
+}
+
+/// The block's declared omnibus test as text: Welch's or the rank test
+/// when the block declared it, else the primary term's F test.
+fn block_statement(o: &LinearOutcome, alternatives: &AlternativesContext) -> Option<String> {
+    match (o.method, &alternatives.0, &alternatives.1) {
+        (Omnibus::Welch, Some(w), _) => Some(w.statement.clone()),
+        (Omnibus::Ranks, _, Some(k)) => Some(k.statement.clone()),
+        _ => primary_term(o).and_then(|t| TermContext::new(t).statement),
+    }
+}
+
+/// Welch's test and the rank test of a one-factor block.
+struct AlternativesContext(Option<WelchContext>, Option<KruskalContext>);
+
+fn alternatives_context(o: &LinearOutcome) -> AlternativesContext {
+    let welch = o.alternatives.welch.map(|w| WelchContext {
+        f: w.f,
+        df1: w.df1,
+        df2: w.df2,
+        p: w.p,
+        statement: format!("Welch's {}", f_statement(w.df1, w.df2, w.f, w.p)),
+    });
+    let kruskal = o.alternatives.kruskal.as_ref().map(|k| KruskalContext {
+        h: k.h,
+        df: k.df,
+        p: k.p,
+        statement: format!(
+            "H({}) = {}, {}",
+            df_text(k.df),
+            fixed(k.h, 2),
+            p_phrase(k.p)
+        ),
+    });
+    AlternativesContext(welch, kruskal)
+}
+
+/// `means`: every family's estimates with their letters.
+fn means_context(o: &LinearOutcome) -> BTreeMap<String, BTreeMap<String, EmmContext>> {
+    o.families
+        .iter()
+        .map(|fam| {
+            let key = match &fam.within {
+                Some(w) => format!("{}@{w}", fam.term),
+                None => fam.term.clone(),
             };
-            (t.name.clone(), context)
+            let entries = fam
+                .estimates
+                .iter()
+                .enumerate()
+                .map(|(i, m)| {
+                    let e = EmmContext {
+                        n: m.n,
+                        mean: m.mean,
+                        se: m.se,
+                        ci_lower: m.ci_lower,
+                        ci_upper: m.ci_upper,
+                        letters: letters_of(fam, i),
+                    };
+                    (m.label.clone(), e)
+                })
+                .collect();
+            (key, entries)
         })
-        .collect();
-    let mut means = BTreeMap::new();
-    for fam in &r.families {
-        let key = match &fam.within {
-            Some(w) => format!("{}@{w}", fam.term),
-            None => fam.term.clone(),
-        };
-        let entries = fam
-            .means
+        .collect()
+}
+
+fn letters_of(fam: &Family, i: usize) -> Option<String> {
+    fam.comparison
+        .as_ref()
+        .and_then(|c| c.letters.get(i).cloned())
+}
+
+/// `groups`: one factor's levels, or the primary factor's marginal means.
+fn groups_context(o: &LinearOutcome, fam: Option<&Family>) -> BTreeMap<String, GroupContext> {
+    let group = |m: &Estimate, i: usize| GroupContext {
+        n: m.n,
+        mean: m.mean,
+        sd: None,
+        se: m.se,
+        ci_lower: m.ci_lower,
+        ci_upper: m.ci_upper,
+        median: None,
+        q1: None,
+        q3: None,
+        letters: fam.and_then(|f| letters_of(f, i)),
+    };
+    if !o.is_one_factor() {
+        let estimates = fam.map_or(&[][..], |f| &f.estimates[..]);
+        return estimates
             .iter()
             .enumerate()
-            .map(|(i, m)| {
-                let e = EmmContext {
-                    n: m.n,
-                    mean: m.mean,
-                    se: m.se,
-                    ci_lower: m.ci_lower,
-                    ci_upper: m.ci_upper,
-                    letters: fam.comparison.letters[i].clone(),
-                };
-                (m.label.clone(), e)
-            })
+            .map(|(i, m)| (m.label.clone(), group(m, i)))
             .collect();
-        means.insert(key, entries);
     }
-    FactorialContext {
-        n: r.n,
-        n_excluded: r.exclusions.len(),
-        alpha: r.alpha,
-        response: r.response.clone(),
-        ss_type: match r.ss_type {
-            crate::stats::linear::SsType::I => 1,
-            crate::stats::linear::SsType::II => 2,
-            crate::stats::linear::SsType::III => 3,
-        },
-        r_squared: r.r_squared,
-        terms,
-        residual: SumsContext {
-            df: r.residual_df,
-            ss: r.residual_ss,
-            ms: Some(r.mse),
-        },
-        total: SumsContext {
-            df: r.n.saturating_sub(1),
-            ss: r.total_ss,
-            ms: None,
-        },
-        means,
-        checks: checks_context(&r.checks),
-    }
+    let level = |(i, l): (usize, &LevelSummary)| GroupContext {
+        sd: Some(l.sd),
+        median: Some(l.median),
+        q1: Some(l.q1),
+        q3: Some(l.q3),
+        ..group(&l.estimate(), i)
+    };
+    o.levels
+        .iter()
+        .enumerate()
+        .map(|(i, l)| (l.name.clone(), level((i, l))))
+        .collect()
 }
 
+/// `pairs`: the primary family's contrasts, in table order.
+fn pairs_context(fam: Option<&Family>) -> Vec<PairContext> {
+    let Some(fam) = fam else {
+        return Vec::new();
+    };
+    let label = |i: usize| fam.estimates[i].label.clone();
+    fam.comparison
+        .iter()
+        .flat_map(|c| c.contrasts.iter())
+        .map(|p| PairContext {
+            a: label(p.a),
+            b: label(p.b),
+            diff: p.estimate,
+            se: p.se,
+            lower: p.lower,
+            upper: p.upper,
+            p: p.p_adj,
+            significant: p.significant,
+        })
+        .collect()
+}
+
+fn block_context(o: &LinearOutcome) -> BlockContext {
+    let primary = primary_term(o);
+    let head = primary.map(TermContext::new);
+    let factor = primary.map(|t| t.name.clone());
+    let family = factor.as_deref().and_then(|f| o.main_family(f));
+    let alternatives = alternatives_context(o);
+    let one_factor = o.is_one_factor();
+    let residual = o.residual();
+    BlockContext {
+        f: head.as_ref().and_then(|t| t.f),
+        p: head.as_ref().and_then(|t| t.p),
+        df1: head.as_ref().map(|t| t.df1),
+        df2: head.as_ref().map(|t| t.df2),
+        critical_f: head.as_ref().and_then(|t| t.critical_f),
+        r_squared: o.r_squared,
+        n: o.n,
+        n_excluded: o.exclusions.len(),
+        alpha: o.alpha,
+        response: o.response.clone(),
+        factor,
+        method: o.method.key(),
+        compare: o
+            .families
+            .iter()
+            .find_map(|f| f.comparison.as_ref())
+            .map(|c| c.method.key()),
+        statement: block_statement(o, &alternatives),
+        ss_type: o.ss_type_number(),
+        welch: one_factor.then_some(alternatives.0),
+        kruskal: one_factor.then_some(alternatives.1),
+        checks: checks_context(&o.checks),
+        terms: o
+            .terms
+            .iter()
+            .map(|t| (t.name.clone(), TermContext::new(t)))
+            .collect(),
+        residual: SumsContext {
+            df: Df::of(residual.df),
+            ss: residual.ss,
+            ms: Some(residual.ms),
+        },
+        total: SumsContext {
+            df: Df::Whole(o.total_df),
+            ss: o.total_ss,
+            ms: None,
+        },
+        groups: groups_context(o, family),
+        letters: family
+            .map(|fam| {
+                (0..fam.estimates.len())
+                    .filter_map(|i| Some((fam.estimates[i].label.clone(), letters_of(fam, i)?)))
+                    .collect()
+            })
+            .unwrap_or_default(),
+        pairs: pairs_context(family),
+        means: means_context(o),
+    }
+}
 #[derive(Serialize)]
 struct PowerContext {
     groups: usize,
@@ -512,14 +533,9 @@ fn statement(v: Value) -> Result<String, minijinja::Error> {
     if let Some(text) = text.as_str() {
         return Ok(text.to_string());
     }
-    let terms = v.get_attr("terms").unwrap_or_default();
-    let why = if !terms.is_undefined() && !terms.is_none() {
-        "a factorial block has one test per term: write `id.terms.<term> | statement`"
-    } else {
-        "`statement` prints a test: a one-factor block, a term (`id.terms.<term>`), \
-         `id.welch`, `id.kruskal` or a check (`id.checks.levene`, `brown_forsythe`, \
-         `bartlett`, `shapiro_wilk`)"
-    };
+    let why = "`statement` prints a test: a block, a term (`id.terms.<term>`), `id.welch`, \
+               `id.kruskal` or a check (`id.checks.levene`, `brown_forsythe`, `bartlett`, \
+               `shapiro_wilk`)";
     Err(minijinja::Error::new(ErrorKind::InvalidOperation, why))
 }
 
@@ -602,11 +618,12 @@ fn add_numbering(env: &mut Environment<'static>, numbers: &[(String, String)]) {
 
 /// The blocks' results as the expressions see them: one entry per block id.
 fn context(results: &[BlockResult]) -> Value {
+    let linear = |o: &LinearOutcome| to_value(block_context(o));
     let ctx: BTreeMap<String, Value> = results
         .iter()
         .map(|r| match r {
-            BlockResult::Anova(a) => (a.id.clone(), to_value(block_context(a))),
-            BlockResult::Factorial(f) => (f.id.clone(), to_value(factorial_context(f))),
+            BlockResult::Anova(a) => (a.id.clone(), linear(&LinearOutcome::from(a.as_ref()))),
+            BlockResult::Factorial(f) => (f.id.clone(), linear(&LinearOutcome::from(f.as_ref()))),
             BlockResult::Power(p) => (p.id.clone(), to_value(power_context(p))),
         })
         .collect();
@@ -632,7 +649,7 @@ pub fn evaluate(
         // Positions are found only for a message: counting columns for every
         // expression of a long line would be quadratic.
         let at = || doc.lines.line_col(&doc.source, e.range.start);
-        let fail = |err: minijinja::Error| expression_error(doc, results, e, at(), err);
+        let fail = |err: minijinja::Error| expression_error(doc, &ctx_value, results, e, at(), err);
         env.set_fuel(Some(EXPRESSION_FUEL.min(remaining)));
         // Compiled alone first, so a syntax error is reported in the author's
         // own expression; then with the probe that measures its work.
@@ -642,7 +659,7 @@ pub fn evaluate(
         let value = expr.eval(&ctx_value).map_err(fail)?;
         remaining = remaining.saturating_sub(fuel_used.load(Ordering::Relaxed));
         if value.is_undefined() {
-            return Err(unknown_name_error(doc, results, e, at()));
+            return Err(unknown_name_error(doc, &ctx_value, results, e, at()));
         }
         if value.is_none() {
             let (line, col) = at();
@@ -688,13 +705,14 @@ pub(crate) fn display(v: &Value) -> String {
 
 fn expression_error(
     doc: &Document,
+    ctx: &Value,
     results: &[BlockResult],
     e: &Expression,
     (line, col): (usize, usize),
     err: minijinja::Error,
 ) -> Diagnostic {
     if err.kind() == ErrorKind::UndefinedError {
-        return unknown_name_error(doc, results, e, (line, col));
+        return unknown_name_error(doc, ctx, results, e, (line, col));
     }
     if err.kind() == ErrorKind::OutOfFuel {
         return doc
@@ -732,24 +750,34 @@ fn expression_error(
 }
 
 /// An expression that names a block or a quantity that does not exist.
+/// The hint lists the names the block's namespace holds where the
+/// expression's path stops, read from `ctx` itself.
 fn unknown_name_error(
     doc: &Document,
+    ctx: &Value,
     results: &[BlockResult],
     e: &Expression,
     (line, col): (usize, usize),
 ) -> Diagnostic {
     let ids: Vec<&str> = results.iter().map(|r| r.id()).collect();
-    let head: String = e
-        .source
-        .chars()
-        .take_while(|c| c.is_ascii_alphanumeric() || *c == '_')
-        .collect();
-    if !head.is_empty() && !ids.contains(&head.as_str()) {
-        let d = doc.error_at(
-            line,
-            Some(col),
-            format!("`{head}` is not the id of an analysis block"),
-        );
+    let identifier = |c: char| c.is_ascii_alphanumeric() || c == '_';
+    let mut head: String = e.source.chars().take_while(|&c| identifier(c)).collect();
+    if head.is_empty() {
+        // `(a.x - a.y) | fixed(2)`: the first block the expression names.
+        head = e
+            .source
+            .split(|c: char| !identifier(c))
+            .find(|w| ids.contains(w))
+            .unwrap_or_default()
+            .to_string();
+    }
+    if !ids.contains(&head.as_str()) {
+        let message = if head.is_empty() {
+            format!("`{}` names no analysis block", e.source)
+        } else {
+            format!("`{head}` is not the id of an analysis block")
+        };
+        let d = doc.error_at(line, Some(col), message);
         return match crate::diag::nearest(&head, ids.iter().copied()) {
             Some(n) => d.hint(format!("did you mean `{n}`?")),
             None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
@@ -770,11 +798,8 @@ fn unknown_name_error(
     if let Some(hint) = bracket_hint(&e.source) {
         return d.hint(hint);
     }
-    d.hint(
-        "a block has f, p, df1, df2, critical_f, r_squared, n, n_excluded, alpha, response, factor, method, \
-         statement, terms.<factor>.<f|p|df|df1|df2|ss|ms|critical_f|statement>, residual.<df|ss|ms>, \
-         groups.<level>.<n|mean|sd|se|ci_lower|ci_upper|letters>, letters.<level> and pairs",
-    )
+    let block = ctx.get_attr(&head).unwrap_or_default();
+    d.hint(names::hint(&block, &head, &e.source))
 }
 
 /// For a dotted name with a part holding spaces or symbols (a level such as
