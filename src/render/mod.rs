@@ -19,6 +19,7 @@ use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::figure::PlacedFigure;
 use crate::outcome::BlockResult;
+use crate::outcome::linear::LinearOutcome;
 use crate::provenance::Input;
 use report::Report;
 
@@ -62,56 +63,56 @@ pub fn render_report(
 /// The analysis choices in effect for one block, as one line for the
 /// provenance note: what a reviewer needs to repeat the analysis.
 fn choices_of(r: &BlockResult) -> String {
-    use crate::doc::block::Omnibus;
-    match r {
-        BlockResult::Anova(a) => {
-            let method = match a.method {
-                Omnibus::Anova => "one-way ANOVA",
-                Omnibus::Welch => "Welch's ANOVA",
-                Omnibus::Ranks => "Kruskal-Wallis",
-            };
-            let compare = a
-                .comparison
-                .as_ref()
-                .map_or("no pairwise comparisons".to_string(), |c| {
-                    format!("{} pairs", c.method.title())
-                });
-            format!(
-                "`{}` (line {}): {method}; {compare}; α = {}; {} used, {} left out.",
-                a.id,
-                a.line,
-                a.alpha,
-                crate::format::counted(a.n, "observation", "observations"),
-                crate::format::counted(a.exclusions.len(), "row", "rows")
-            )
-        }
-        BlockResult::Factorial(f) => {
-            let ss = match f.ss_type {
-                crate::stats::linear::SsType::I => "Type I",
-                crate::stats::linear::SsType::II => "Type II",
-                crate::stats::linear::SsType::III => "Type III",
-            };
-            let compare = f
-                .families
-                .first()
-                .map_or("no pairwise comparisons".to_string(), |c| {
-                    format!("{} on marginal means", c.comparison.method.title())
-                });
-            format!(
-                "`{}` (line {}): linear model of {} with {ss} sums of squares (sum-to-zero coding); {compare}; α = {}; {} used, {} left out.",
-                f.id,
-                f.line,
-                f.factors.join(", "),
-                f.alpha,
-                crate::format::counted(f.n, "observation", "observations"),
-                crate::format::counted(f.exclusions.len(), "row", "rows")
-            )
-        }
-        BlockResult::Power(p) => format!(
+    match (r, r.linear()) {
+        (_, Some(o)) => linear_choices(&o),
+        (BlockResult::Power(p), None) => format!(
             "`{}` (line {}): power of the one-way F test; α = {}.",
             p.id, p.line, p.alpha
         ),
+        (_, None) => String::new(),
     }
+}
+
+/// The choices of a linear block: the model (or omnibus test), the
+/// comparisons, α and the observations used.
+fn linear_choices(o: &LinearOutcome) -> String {
+    use crate::doc::block::Omnibus;
+    use crate::stats::linear::SsType;
+    let compared = o.families.iter().find_map(|f| f.comparison.as_ref());
+    let (model, compare) = match o.ss_type {
+        None => (
+            match o.method {
+                Omnibus::Anova => "one-way ANOVA".to_string(),
+                Omnibus::Welch => "Welch's ANOVA".to_string(),
+                Omnibus::Ranks => "Kruskal-Wallis".to_string(),
+            },
+            compared.map(|c| format!("{} pairs", c.method.title())),
+        ),
+        Some(ss) => {
+            let ss = match ss {
+                SsType::I => "Type I",
+                SsType::II => "Type II",
+                SsType::III => "Type III",
+            };
+            let factors: Vec<&str> = o.factors.iter().map(|f| f.name.as_str()).collect();
+            (
+                format!(
+                    "linear model of {} with {ss} sums of squares (sum-to-zero coding)",
+                    factors.join(", ")
+                ),
+                compared.map(|c| format!("{} on marginal means", c.method.title())),
+            )
+        }
+    };
+    format!(
+        "`{}` (line {}): {model}; {}; α = {}; {} used, {} left out.",
+        o.id,
+        o.line,
+        compare.unwrap_or_else(|| "no pairwise comparisons".to_string()),
+        o.alpha,
+        crate::format::counted(o.n, "observation", "observations"),
+        crate::format::counted(o.exclusions.len(), "row", "rows")
+    )
 }
 
 #[cfg(test)]

@@ -233,14 +233,10 @@ impl<'a> Report<'a> {
         self.results
             .iter()
             .filter_map(|r| {
-                let notes = match r {
-                    BlockResult::Anova(a) => &a.acknowledged,
-                    BlockResult::Factorial(f) => &f.acknowledged,
-                    BlockResult::Power(_) => return None,
-                };
+                let notes = r.linear()?.acknowledged;
                 (!notes.is_empty()).then(|| AcknowledgedView {
                     id: r.id().to_string(),
-                    notes: notes.clone(),
+                    notes,
                 })
             })
             .collect()
