@@ -5,6 +5,7 @@
 //! Nowhere else.
 
 pub mod inline;
+mod tables;
 pub mod view;
 
 use crate::figure::PlacedFigure;
@@ -205,10 +206,10 @@ pub fn render_report(
     let mut next_table = 1;
     let mut views = Vec::with_capacity(results.len());
     for (r, figs) in results.iter().zip(figures) {
-        let mut v = match r {
-            BlockResult::Anova(r) => view::block_view(r, &mut next_table),
-            BlockResult::Factorial(r) => view::factorial_view(r, &mut next_table),
-            BlockResult::Power(r) => view::power_view(r, &mut next_table),
+        let mut v = match (r, r.linear()) {
+            (BlockResult::Power(p), _) => tables::power_view(p, &mut next_table),
+            (_, Some(outcome)) => tables::linear_view(&outcome, &mut next_table),
+            (_, None) => view::BlockView::default(),
         };
         v.figures = figs
             .iter()
