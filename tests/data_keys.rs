@@ -18,6 +18,7 @@ mod common;
 
 use common::{build, cases};
 use serde_json::Value;
+use sheaf::compile::{World, compile};
 use sheaf::render::Format;
 use std::path::Path;
 
@@ -203,35 +204,39 @@ fn shows_number(c: &BodyCell) -> bool {
     c.numeric && c.text.chars().any(|ch| ch.is_ascii_digit())
 }
 
+/// What is wrong with one report's keys: numeric cells without a key, keys
+/// that lead nowhere.
+fn problems(case: &str, html: &str, results: &Value) -> Vec<String> {
+    let cells = body_cells(html);
+    let numeric = cells.iter().filter(|c| shows_number(c)).count();
+    assert!(
+        numeric > 0,
+        "{case}: no numeric cell found; is the parser reading the tables?"
+    );
+    let mut found = Vec::new();
+    for c in cells.iter().filter(|c| shows_number(c) && c.key.is_none()) {
+        found.push(format!("{case}: numeric cell `{}` has no data-key", c.text));
+    }
+    for c in &cells {
+        if let Some(key) = &c.key
+            && let Err(why) = resolve(results, key)
+        {
+            found.push(format!(
+                "{case}: data-key `{key}` ({}) does not resolve: {why}",
+                c.text
+            ));
+        }
+    }
+    found
+}
+
 #[test]
 fn every_numeric_cell_names_a_field_of_the_results_file() {
     let mut failures = Vec::new();
     for dir in cases() {
-        let case = dir
-            .file_name()
-            .unwrap_or_default()
-            .to_string_lossy()
-            .to_string();
+        let case = dir.file_name().unwrap_or_default().to_string_lossy();
         let (html, results) = report_and_results(&dir);
-        let cells = body_cells(&html);
-        let numeric = cells.iter().filter(|c| shows_number(c)).count();
-        assert!(
-            numeric > 0,
-            "{case}: no numeric cell found; is the parser reading the tables?"
-        );
-        for c in cells.iter().filter(|c| shows_number(c) && c.key.is_none()) {
-            failures.push(format!("{case}: numeric cell `{}` has no data-key", c.text));
-        }
-        for c in &cells {
-            if let Some(key) = &c.key
-                && let Err(why) = resolve(&results, key)
-            {
-                failures.push(format!(
-                    "{case}: data-key `{key}` ({}) does not resolve: {why}",
-                    c.text
-                ));
-            }
-        }
+        failures.extend(problems(&case, &html, &results));
     }
     assert!(
         failures.is_empty(),
@@ -239,6 +244,60 @@ fn every_numeric_cell_names_a_field_of_the_results_file() {
         failures.len(),
         failures.join("\n")
     );
+}
+
+/// Files held in memory.
+struct Memory(String);
+
+impl World for Memory {
+    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+        match path {
+            "d.csv" => Ok(self.0.as_bytes().to_vec()),
+            _ => Err(std::io::Error::from(std::io::ErrorKind::NotFound)),
+        }
+    }
+    fn display(&self, path: &str) -> String {
+        path.to_string()
+    }
+}
+
+/// Tables the golden cases do not hold: a three-factor design (cells one
+/// per row, a family per factor) and a one-sided comparison with a control.
+/// Data invented.
+#[test]
+fn tables_outside_the_golden_cases_are_keyed_too() {
+    let mut three = String::from("a,b,c,y\n");
+    for i in 0..16 {
+        let (a, b, c) = (i % 2, (i / 2) % 2, (i / 4) % 2);
+        let y = 10.0 + a as f64 + 2.0 * b as f64 - c as f64 + 0.3 * (i % 5) as f64;
+        three.push_str(&format!("A{a},B{b},C{c},{y}\n"));
+    }
+    let one = "g,y\nA,1.0\nA,2.0\nA,1.5\nB,3.1\nB,2.5\nB,4.0\nC,2.2\nC,1.9\nC,2.8\n".to_string();
+    let documents = [
+        (
+            "three factors",
+            "```anova\nid: abc\ndata: d.csv\nmodel: y ~ a * b * c\ncompare: tukey\n```\n",
+            three,
+        ),
+        (
+            "one-sided Dunnett",
+            "```anova\nid: t\ndata: d.csv\nmodel: y ~ g\ncompare: dunnett\ncontrol: A\nsides: 1\n```\n",
+            one,
+        ),
+    ];
+    let mut failures = Vec::new();
+    for (case, doc, data) in documents {
+        let built = compile("report.md", doc.as_bytes(), &Memory(data), Format::Html)
+            .unwrap_or_else(|d| panic!("{case} failed to build:\n{d}"));
+        let html = String::from_utf8(built.report).expect("utf-8 report");
+        let results: Value = serde_json::from_slice(&built.results).expect("results JSON");
+        assert!(
+            html.contains("data-key=\"abc.cells.") || case != "three factors",
+            "{case}: no cell table"
+        );
+        failures.extend(problems(case, &html, &results));
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
 
 /// The reading rule itself, on a hand-written results file.
