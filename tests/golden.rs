@@ -8,34 +8,11 @@
 //! against scipy/statsmodels by tests/oneway_reference.rs; these tests pin
 //! the layout, formatting and escaping.
 
-use sheaf::compile::{DiskWorld, compile};
+mod common;
+
+use common::{build, cases};
 use sheaf::render::Format;
-use std::path::{Path, PathBuf};
-
-fn cases() -> Vec<PathBuf> {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/cases");
-    let mut dirs: Vec<PathBuf> = std::fs::read_dir(&root)
-        .expect("tests/cases exists")
-        .filter_map(|e| e.ok().map(|e| e.path()))
-        .filter(|p| p.join("report.md").is_file())
-        .collect();
-    dirs.sort();
-    dirs
-}
-
-fn build(dir: &Path, format: Format) -> sheaf::compile::Built {
-    let doc = dir.join("report.md");
-    let bytes = std::fs::read(&doc).expect("document");
-    compile(
-        "report.md",
-        &bytes,
-        &DiskWorld {
-            base: dir.to_path_buf(),
-        },
-        format,
-    )
-    .unwrap_or_else(|d| panic!("{} failed to build:\n{d}", dir.display()))
-}
+use std::path::Path;
 
 #[test]
 fn every_case_matches_its_expected_output() {

@@ -401,7 +401,7 @@ fn numeric_first_columns_are_right_aligned_under_their_header() {
     // The power table's "n per group" column: header and cells both right.
     assert!(html.contains("<th scope=\"col\" class=\"num\">n per group</th>"));
     assert!(
-        html.contains("<th scope=\"row\" class=\"num\">"),
-        "cells align with the header"
+        html.contains("<th scope=\"row\" class=\"num\" data-key=\"p.curve.0.n_per_group\">"),
+        "cells align with the header (and name their field)"
     );
 }

@@ -9,6 +9,7 @@ pub mod inline;
 mod links;
 mod markdown;
 pub mod report;
+mod tables;
 mod templates;
 pub mod view;
 pub mod writer;

@@ -4,7 +4,7 @@
 
 use super::templates::{template_source, to_value};
 use super::view::BlockView;
-use super::{CAUTIONS, choices_of, inline, view};
+use super::{CAUTIONS, choices_of, inline, tables, view};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::escape::markdown_escape;
@@ -89,10 +89,10 @@ impl<'a> Report<'a> {
         let mut next_table = 1;
         let mut views = Vec::with_capacity(results.len());
         for (r, figs) in results.iter().zip(figures) {
-            let mut v = match r {
-                BlockResult::Anova(r) => view::block_view(r, &mut next_table),
-                BlockResult::Factorial(r) => view::factorial_view(r, &mut next_table),
-                BlockResult::Power(r) => view::power_view(r, &mut next_table),
+            let mut v = match (r, r.linear()) {
+                (BlockResult::Power(p), _) => tables::power_view(p, &mut next_table),
+                (_, Some(outcome)) => tables::linear_view(&outcome, &mut next_table),
+                (_, None) => view::BlockView::default(),
             };
             v.figures = figs
                 .iter()

@@ -1,0 +1,204 @@
+//! The assumption-check table: variance homogeneity, normality of the
+//! residuals, their shape, and the observations flagged as outlying.
+
+use super::keys::Keys;
+use super::{cell, col, join_words, text};
+use crate::format::{alpha_text, df_text, f_stat, fixed, p_value};
+use crate::outcome::{Checks, OUTLIERS_LISTED, most_extreme};
+use crate::render::view::{Cell, TableView};
+use crate::stats::assumptions::{FTest, OUTLIER_THRESHOLD, ShapiroWilkSkip};
+
+/// The table; `subject` reads like "weight by group".
+pub fn checks_table(
+    c: &Checks,
+    keys: &Keys,
+    alpha: f64,
+    subject: &str,
+    number: usize,
+) -> TableView {
+    let reading = |p: f64, yes: &str, no: &str| if p < alpha { yes } else { no }.to_string();
+    let unequal = "no evidence of unequal variances";
+    let mut rows = vec![
+        variance_row(
+            c,
+            keys,
+            "Brown-Forsythe (median-centred)",
+            "brown_forsythe",
+            &c.brown_forsythe,
+            alpha,
+        ),
+        variance_row(c, keys, "Levene (mean-centred)", "levene", &c.levene, alpha),
+    ];
+    rows.push(match c.bartlett {
+        Some(b) => vec![
+            text("Bartlett"),
+            cell(
+                fixed(b.statistic, 2),
+                keys.field("checks.bartlett.statistic"),
+            ),
+            cell(df_text(b.df), keys.field("checks.bartlett.df")),
+            cell(p_value(b.p), keys.field("checks.bartlett.p")),
+            text(reading(
+                b.p,
+                "variances differ (sensitive to non-normality)",
+                unequal,
+            )),
+        ],
+        None => not_computed(
+            "Bartlett",
+            "needs two or more values with spread in every level",
+        ),
+    });
+    rows.push(match &c.shapiro_wilk {
+        Ok(sw) => vec![
+            text("Shapiro-Wilk (residuals)"),
+            cell(fixed(sw.w, 4), keys.field("checks.shapiro_wilk.w")),
+            cell(format!("n = {}", sw.n), keys.field("checks.shapiro_wilk.n")),
+            cell(p_value(sw.p), keys.field("checks.shapiro_wilk.p")),
+            text(reading(
+                sw.p,
+                "residuals depart from normality",
+                "no evidence against normality",
+            )),
+        ],
+        Err(why) => not_computed(
+            "Shapiro-Wilk (residuals)",
+            match why {
+                ShapiroWilkSkip::TooFew => "not computed: fewer than 3 residuals",
+                ShapiroWilkSkip::TooMany => "not computed: more than 5,000 residuals",
+                ShapiroWilkSkip::NoSpread => "not computed: the residuals have no spread",
+                ShapiroWilkSkip::Summary if c.by_request => "not computed (`checks: summary`)",
+                ShapiroWilkSkip::Summary => "not possible from summary statistics",
+            },
+        ),
+    });
+    let moment_note = |normal: &str| {
+        if c.by_request {
+            "not computed (`checks: summary`)".to_string()
+        } else if c.from_summary {
+            "needs the raw observations".to_string()
+        } else {
+            normal.to_string()
+        }
+    };
+    rows.push(vec![
+        text("Skewness of residuals"),
+        cell(fixed(c.skewness, 2), keys.field("checks.skewness")),
+        text(""),
+        text(""),
+        text(moment_note("0 for a symmetric distribution")),
+    ]);
+    rows.push(vec![
+        text("Excess kurtosis of residuals"),
+        cell(
+            fixed(c.excess_kurtosis, 2),
+            keys.field("checks.excess_kurtosis"),
+        ),
+        text(""),
+        text(""),
+        text(moment_note("0 for a normal distribution")),
+    ]);
+    TableView {
+        number,
+        id: format!("{}-checks", keys.block()),
+        caption: format!("Table {number}. Assumption checks for {subject}."),
+        columns: vec![
+            col("Check", false),
+            col("Statistic", true),
+            col("df", true),
+            col("p", true),
+            col("Reading at α", false),
+        ],
+        rows,
+        footnotes: vec![
+            format!(
+                "Readings use α = {}. A check that passes does not prove an assumption holds, and with many observations small, harmless departures reach significance: look at the data as well. Skewness and kurtosis are the bias-adjusted sample estimates.",
+                alpha_text(alpha)
+            ),
+            outliers_note(c),
+        ],
+    }
+}
+
+/// A test of equal variances (an F statistic with two df).
+fn variance_row(
+    c: &Checks,
+    keys: &Keys,
+    name: &str,
+    key: &str,
+    test: &Option<FTest>,
+    alpha: f64,
+) -> Vec<Cell> {
+    let k = |q: &str| keys.field(&format!("checks.{key}.{q}"));
+    match test {
+        Some(t) => vec![
+            text(name),
+            cell(f_stat(t.statistic), k("statistic")),
+            cell(format!("{}, {}", df_text(t.df1), df_text(t.df2)), k("df")),
+            cell(p_value(t.p), k("p")),
+            text(if t.p < alpha {
+                "variances differ"
+            } else {
+                "no evidence of unequal variances"
+            }),
+        ],
+        None => not_computed(
+            name,
+            if c.by_request {
+                "not computed (`checks: summary`)"
+            } else if c.from_summary {
+                "needs the raw observations"
+            } else {
+                "not defined for these data"
+            },
+        ),
+    }
+}
+
+/// A check that could not be computed, and why.
+fn not_computed(name: &str, why: &str) -> Vec<Cell> {
+    vec![text(name), text("–"), text(""), text("–"), text(why)]
+}
+
+/// What the table says about outlying observations.
+fn outliers_note(c: &Checks) -> String {
+    if c.by_request {
+        "Outlying observations were not looked for (`checks: summary`).".to_string()
+    } else if c.from_summary {
+        "Outlying observations cannot be looked for in summary statistics.".to_string()
+    } else if c.outliers.is_empty() {
+        format!(
+            "No observation has an externally studentized residual beyond ±{OUTLIER_THRESHOLD}."
+        )
+    } else {
+        outlier_sentence(c)
+    }
+}
+
+/// The flagged observations: each line when there are few, else the count
+/// and the most extreme few (the report never lists a number of lines that
+/// grows with the data).
+fn outlier_sentence(c: &Checks) -> String {
+    if c.outlier_count <= OUTLIERS_LISTED {
+        let lines: Vec<String> = c.outliers.iter().map(|o| o.line.to_string()).collect();
+        let (observations, lines_word) = if lines.len() == 1 {
+            ("One observation has", "data line")
+        } else {
+            ("Observations have", "data lines")
+        };
+        return format!(
+            "{observations} an externally studentized residual beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded): {lines_word} {}.",
+            join_words(&lines)
+        );
+    }
+    let worst: Vec<String> = most_extreme(&c.outliers, OUTLIERS_LISTED)
+        .iter()
+        .map(|o| o.line.to_string())
+        .collect();
+    format!(
+        "{} observations have an externally studentized residual beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded); the {OUTLIERS_LISTED} most extreme are on data lines {}, and the results file lists the {} most extreme.",
+        crate::format::count(c.outlier_count),
+        join_words(&worst),
+        c.outliers.len()
+    )
+}

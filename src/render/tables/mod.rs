@@ -1,0 +1,235 @@
+//! The tables of a block, written once from the outcome: every linear block
+//! (one factor, factorial, blocked, Latin square) through `linear_view`,
+//! power blocks through `power_view`. Each numeric cell carries the
+//! results-file key of the number it shows (see `keys`).
+
+mod anova;
+mod cells;
+mod checks;
+mod contrasts;
+mod keys;
+mod means;
+mod power;
+
+pub use power::power_view;
+
+use super::view::{BlockView, Cell, Column};
+use crate::doc::block::{Omnibus, Order, PlotSpec};
+use crate::format::typographic_minus;
+use crate::outcome::linear::{Family, LinearOutcome};
+use keys::Keys;
+
+fn cell(text: String, key: String) -> Cell {
+    Cell {
+        text,
+        key: Some(key),
+    }
+}
+
+fn text(t: impl Into<String>) -> Cell {
+    Cell {
+        text: t.into(),
+        key: None,
+    }
+}
+
+fn col(label: impl Into<String>, numeric: bool) -> Column {
+    Column {
+        label: label.into(),
+        numeric,
+    }
+}
+
+/// Numbers tables through the document.
+struct Numbering<'a>(&'a mut usize);
+
+impl Numbering<'_> {
+    fn next(&mut self) -> usize {
+        let n = *self.0;
+        *self.0 += 1;
+        n
+    }
+}
+
+/// Builds a linear block's tables; `next_table` is the number of its first
+/// table. Order: ANOVA (or its alternative), checks, cell means, then each
+/// family's means and contrasts.
+pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
+    let mut numbers = Numbering(next_table);
+    let keys = Keys::new(&o.id);
+    let show = o.presentation.show;
+    let mut tables = Vec::new();
+    if show.anova {
+        let number = numbers.next();
+        tables.push(match o.method {
+            Omnibus::Anova => anova::anova_table(o, &keys, number),
+            Omnibus::Welch => anova::welch_table(o, &keys, number),
+            Omnibus::Ranks => anova::kruskal_table(o, &keys, number),
+        });
+    }
+    if o.checks.shown {
+        let subject = format!("{} by {}", measure(o), factors_text(o));
+        tables.push(checks::checks_table(
+            &o.checks,
+            &keys,
+            o.alpha,
+            &subject,
+            numbers.next(),
+        ));
+    }
+    if show.means && o.cell_factors.len() >= 2 && o.cells.iter().any(|c| c.n > 1) {
+        tables.push(cells::cell_table(o, &keys, numbers.next()));
+    }
+    let mut notes = Vec::new();
+    for family in &o.families {
+        if let Some(c) = &family.comparison {
+            notes.extend(c.notes.iter().cloned());
+        }
+        if show.means {
+            let number = numbers.next();
+            tables.push(if o.is_one_factor() && o.method == Omnibus::Ranks {
+                means::ranks_table(o, family, &keys, number)
+            } else {
+                means::means_table(o, family, &keys, number)
+            });
+        }
+        if let Some(c) = family.comparison.as_ref().filter(|_| show.pairs) {
+            tables.push(contrasts::contrasts_table(
+                o,
+                family,
+                c,
+                &keys,
+                numbers.next(),
+            ));
+        }
+    }
+    typeset(BlockView {
+        figures: Vec::new(),
+        id: o.id.clone(),
+        lead: None,
+        tables,
+        notes,
+        warnings: o.warnings.clone(),
+    })
+}
+
+/// The view as printed: minus signs in numeric cells and footnotes.
+fn typeset(mut v: BlockView) -> BlockView {
+    for t in &mut v.tables {
+        for row in &mut t.rows {
+            for (c, column) in row.iter_mut().zip(&t.columns) {
+                if column.numeric {
+                    c.text = typographic_minus(&c.text);
+                }
+            }
+        }
+        for f in &mut t.footnotes {
+            *f = typographic_minus(f);
+        }
+    }
+    v
+}
+
+/// A table's caption: the author's, or the one sheaf writes.
+fn caption(number: usize, author: &Option<String>, written: impl FnOnce() -> String) -> String {
+    match author {
+        Some(c) => format!("Table {number}. {c}"),
+        None => format!("Table {number}. {}", written()),
+    }
+}
+
+/// Decimals for a column of effect sizes: two, or three when any value is
+/// below 0.1 (METHODS 4.2), so that a column never mixes 0.32 and 0.032.
+fn effect_decimals(values: impl IntoIterator<Item = f64>) -> u32 {
+    if values.into_iter().any(|x| x.is_finite() && x.abs() < 0.1) {
+        3
+    } else {
+        2
+    }
+}
+
+/// Rows in display order: by `key` descending (mean or mean rank), or as designed.
+fn display_order(order: Order, key: &[f64]) -> Vec<usize> {
+    let mut rows: Vec<usize> = (0..key.len()).collect();
+    if order == Order::Mean {
+        rows.sort_by(|&a, &b| key[b].total_cmp(&key[a]).then(a.cmp(&b)));
+    }
+    rows
+}
+
+/// A term for people, with display names: `Wool × Tension`.
+fn shown_term(plots: &PlotSpec, name: &str) -> String {
+    name.split(':')
+        .map(|f| plots.display(f))
+        .collect::<Vec<_>>()
+        .join(" × ")
+}
+
+/// Every factor of the model for a caption: `wool and tension`.
+fn factors_text(o: &LinearOutcome) -> String {
+    let shown: Vec<String> = o
+        .factors
+        .iter()
+        .map(|f| o.presentation.plots.display(&f.name).to_string())
+        .collect();
+    join_words(&shown)
+}
+
+/// What a family's estimates are of, for captions and headers: the
+/// factor's display name, or `cell`.
+fn family_subject(o: &LinearOutcome, family: &Family) -> String {
+    if family.term == "cells" && !o.is_one_factor() {
+        "cell".to_string()
+    } else {
+        o.presentation.plots.display(&family.term).to_string()
+    }
+}
+
+/// A slice of a simple-effects family for captions: ` at Wool = A`.
+fn family_slice(o: &LinearOutcome, family: &Family) -> String {
+    family
+        .within
+        .as_ref()
+        .map_or(String::new(), |w| match w.split_once('=') {
+            Some((factor, level)) => {
+                format!(" at {} = {level}", o.presentation.plots.display(factor))
+            }
+            None => format!(" at {w}"),
+        })
+}
+
+/// The table id of a family's table: `warp-means-tension-wool=A`.
+fn family_table_id(o: &LinearOutcome, what: &str, family: &Family) -> String {
+    let within = family
+        .within
+        .as_ref()
+        .map_or(String::new(), |w| format!("-{w}"));
+    format!("{}-{what}-{}{within}", o.id, family.term)
+}
+
+/// The response as captions name it: its label (or display name, or column
+/// name) and unit.
+fn measure(o: &LinearOutcome) -> String {
+    let plots = &o.presentation.plots;
+    let name = plots
+        .label
+        .clone()
+        .unwrap_or_else(|| plots.display(&o.response).to_string());
+    match &plots.unit {
+        Some(u) => format!("{name} ({u})"),
+        None => name,
+    }
+}
+
+/// "a", "a and b", "a, b and c".
+fn join_words(items: &[String]) -> String {
+    match items {
+        [] => String::new(),
+        [one] => one.clone(),
+        [rest @ .., last] => format!("{} and {last}", rest.join(", ")),
+    }
+}
+
+fn yes_no(b: bool) -> String {
+    if b { "yes".into() } else { "no".into() }
+}
