@@ -3,8 +3,9 @@
 
 use super::linear::{
     Alternatives, Comparison, Contrast, Estimate, Factor, Family, LevelSummary, LinearOutcome,
-    Observation, Presentation, Role, Stratum, TermEffect, TermTest,
+    LevelSpread, Observation, Observed, Presentation, Role, Stratum, TermEffect, TermTest,
 };
+use super::observed::PooledError;
 use super::{AnovaResult, ComparisonResult, FactorialResult};
 
 /// The residual stratum's name, as the ANOVA table prints it.
@@ -96,7 +97,19 @@ impl From<&AnovaResult> for LinearOutcome {
                         line,
                     })
             })
+            .collect::<Vec<_>>();
+        let spreads = r
+            .levels
+            .iter()
+            .map(|l| LevelSpread {
+                n: l.n,
+                mean: l.mean,
+                q1: l.q1,
+                median: l.median,
+                q3: l.q3,
+            })
             .collect();
+        let observed = Observed::one_factor(spreads, &observations, &r.plots);
         LinearOutcome {
             id: r.id.clone(),
             line: r.line,
@@ -163,6 +176,7 @@ impl From<&AnovaResult> for LinearOutcome {
                 plots: r.plots.clone(),
             },
             observations,
+            observed,
         }
     }
 }
@@ -239,7 +253,20 @@ impl From<&FactorialResult> for LinearOutcome {
                 residual: r.residuals.get(i).copied().unwrap_or(f64::NAN),
                 line: r.lines.get(i).copied().unwrap_or(0),
             })
-            .collect();
+            .collect::<Vec<_>>();
+        let level_counts: Vec<usize> = r.levels.iter().map(Vec::len).collect();
+        let error = PooledError {
+            ms: r.mse,
+            df: residual_df,
+            alpha: r.alpha,
+        };
+        let observed = Observed::factorial(
+            &level_counts,
+            &r.cell_factors,
+            &observations,
+            &r.plots,
+            &error,
+        );
         LinearOutcome {
             id: r.id.clone(),
             line: r.line,
@@ -282,6 +309,7 @@ impl From<&FactorialResult> for LinearOutcome {
                 plots: r.plots.clone(),
             },
             observations,
+            observed,
         }
     }
 }
