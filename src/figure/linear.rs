@@ -419,3 +419,7 @@ fn figure_id(block: &str, kind: PlotKind) -> String {
     format!("{block}-{}", kind.key())
 }
 
+
+#[cfg(test)]
+#[path = "linear_tests.rs"]
+mod tests;
