@@ -6,10 +6,10 @@
 use super::Figure;
 use super::dense;
 use super::plots::{
-    CategoricalPlot, Group, Series, box_plot, interaction_plot, means_plot, qq_plot,
-    residual_plot, strip_plot,
+    CategoricalPlot, Group, Series, box_plot, interaction_plot, means_plot, qq_plot, residual_plot,
+    strip_plot,
 };
-use crate::doc::block::{PlotKind, PlotSpec};
+use crate::doc::block::PlotKind;
 use crate::format::{confidence_label, fixed};
 use crate::outcome::linear::{Family, LinearOutcome};
 
@@ -110,9 +110,8 @@ pub(super) fn factor_groups<'a>(
                 label: name,
                 values: values.get(l).map_or(&[][..], Vec::as_slice),
                 letters: letters.and_then(|c| c.letters.get(l)).map(String::as_str),
-                quartiles: spread.map_or((f64::NAN, f64::NAN, f64::NAN), |s| {
-                    (s.q1, s.median, s.q3)
-                }),
+                quartiles: spread
+                    .map_or((f64::NAN, f64::NAN, f64::NAN), |s| (s.q1, s.median, s.q3)),
                 mean: estimate.map_or(spread.map_or(f64::NAN, |s| s.mean), |e| e.mean),
                 ci: estimate.map_or((f64::NAN, f64::NAN), |e| (e.ci_lower, e.ci_upper)),
             }
@@ -138,7 +137,7 @@ fn values_by_level(o: &LinearOutcome, f: usize) -> Vec<Vec<f64>> {
 }
 
 /// Captions name the response as the tables do: its label, else its column.
-fn subject<'a>(o: &'a LinearOutcome) -> &'a str {
+fn subject(o: &LinearOutcome) -> &str {
     let spec = &o.presentation.plots;
     spec.label.as_deref().unwrap_or(spec.display(&o.response))
 }
@@ -207,15 +206,27 @@ fn factor_figure(
     let caption = format!("Figure {n}. {what}{letters_note}");
     let desc = format!(
         "Levels {}; means {}.",
-        groups.iter().map(|g| g.label).collect::<Vec<_>>().join(", "),
+        groups
+            .iter()
+            .map(|g| g.label)
+            .collect::<Vec<_>>()
+            .join(", "),
         groups
             .iter()
             .map(|g| fixed(g.mean, o.presentation.decimals))
             .collect::<Vec<_>>()
             .join(", ")
     );
-    let y_title = axis_title(spec, &o.response);
-    let svg = draw(id, &caption, &desc, &groups, &y_title, factor, spec.reference);
+    let y_title = axis_title(o);
+    let svg = draw(
+        id,
+        &caption,
+        &desc,
+        &groups,
+        &y_title,
+        factor,
+        spec.reference,
+    );
     (caption, svg)
 }
 
@@ -241,12 +252,7 @@ fn means_phrase(o: &LinearOutcome, source: MeansSource, subject: &str, factor: &
 }
 
 /// The figures of the model drawn once: interaction, residuals, Q-Q.
-fn model_figure(
-    o: &LinearOutcome,
-    kind: PlotKind,
-    id: &str,
-    n: usize,
-) -> Option<(String, String)> {
+fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option<(String, String)> {
     let subject = subject(o);
     let count = o.observations.len();
     let note = dense_note(kind, count);
@@ -313,10 +319,12 @@ fn interaction_figure(o: &LinearOutcome, id: &str, n: usize) -> Option<(String, 
         .map(|(b, name)| {
             let points = (0..a_levels.len())
                 .map(|a| {
-                    table.estimates.get(at(a, b)).map_or(
-                        (f64::NAN, f64::NAN, f64::NAN),
-                        |e| (e.mean, e.ci_lower, e.ci_upper),
-                    )
+                    table
+                        .estimates
+                        .get(at(a, b))
+                        .map_or((f64::NAN, f64::NAN, f64::NAN), |e| {
+                            (e.mean, e.ci_lower, e.ci_upper)
+                        })
                 })
                 .collect();
             (name.clone(), points)
@@ -338,20 +346,17 @@ fn interaction_figure(o: &LinearOutcome, id: &str, n: usize) -> Option<(String, 
         &caption,
         &x_labels,
         &series,
-        (&axis_title(spec, &o.response), x_name, line_name),
+        (&axis_title(o), x_name, line_name),
         spec.reference,
     );
     Some((caption, svg))
 }
 
-fn axis_title(spec: &PlotSpec, response: &str) -> String {
-    let label = spec
-        .label
-        .clone()
-        .unwrap_or_else(|| spec.display(response).to_string());
-    match &spec.unit {
-        Some(u) => format!("{label} ({u})"),
-        None => label,
+/// The response axis's title: the response as captions name it, and its unit.
+fn axis_title(o: &LinearOutcome) -> String {
+    match &o.presentation.plots.unit {
+        Some(u) => format!("{} ({u})", subject(o)),
+        None => subject(o).to_string(),
     }
 }
 
@@ -418,7 +423,6 @@ fn residual_flags_phrase(summarised: bool) -> &'static str {
 fn figure_id(block: &str, kind: PlotKind) -> String {
     format!("{block}-{}", kind.key())
 }
-
 
 #[cfg(test)]
 #[path = "linear_tests.rs"]

@@ -65,6 +65,10 @@ fn assert_plotted(svg: &str, expected: &[f64]) {
     }
 }
 
+fn assert_caption(fig: &Figure, words: &str) {
+    assert!(fig.caption.contains(words), "{}", fig.caption);
+}
+
 /// The means plot of `a`: the block's first (`f-means`).
 fn means_figure(o: &LinearOutcome) -> Figure {
     let mut number = 1;
@@ -88,13 +92,12 @@ fn without_a_family_the_means_plot_draws_observed_means_and_says_so() {
         assert!(g.ci.0.is_nan() && g.ci.1.is_nan(), "no interval");
     }
     let fig = means_figure(&o);
-    assert!(
-        fig.caption.contains("Observed means of y by a, without intervals"),
-        "{}",
-        fig.caption
-    );
+    assert_caption(&fig, "Observed means of y by a, without intervals");
     assert!(!fig.caption.contains("marginal"), "{}", fig.caption);
-    assert!(!fig.svg.contains("stroke-width=\"1.50\""), "no interval bars");
+    assert!(
+        !fig.svg.contains("stroke-width=\"1.50\""),
+        "no interval bars"
+    );
     assert_plotted(&fig.svg, &OBSERVED);
 }
 
@@ -112,11 +115,9 @@ fn a_compared_factor_plots_its_estimated_marginal_means() {
     // by far more than the plot's reading tolerance.
     assert!((emm[0] - OBSERVED[0]).abs() > 0.05, "{emm:?}");
     let fig = means_figure(&o);
-    assert!(
-        fig.caption
-            .contains("Estimated marginal means of y by a with 95% confidence intervals"),
-        "{}",
-        fig.caption
+    assert_caption(
+        &fig,
+        "Estimated marginal means of y by a with 95% confidence intervals",
     );
     assert_plotted(&fig.svg, &emm);
 }
@@ -139,9 +140,12 @@ fn an_estimates_only_family_gives_marginal_means_without_a_comparison() {
     let (groups, source) = factor_groups(&o, 0, &values);
     assert_eq!(source, MeansSource::Marginal);
     assert_eq!(groups.iter().map(|g| g.ci).collect::<Vec<_>>(), ci);
-    assert!(groups.iter().all(|g| g.letters.is_none()), "nothing compared");
+    assert!(
+        groups.iter().all(|g| g.letters.is_none()),
+        "nothing compared"
+    );
     let fig = means_figure(&o);
-    assert!(fig.caption.contains("Estimated marginal means of y by a"));
+    assert_caption(&fig, "Estimated marginal means of y by a");
     assert!(!fig.caption.contains("sharing a letter"), "{}", fig.caption);
     assert_plotted(&fig.svg, &emm);
 }

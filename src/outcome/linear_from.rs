@@ -3,9 +3,8 @@
 
 use super::linear::{
     Alternatives, Comparison, Contrast, Estimate, Factor, Family, LevelSummary, LinearOutcome,
-    LevelSpread, Observation, Observed, Presentation, Role, Stratum, TermEffect, TermTest,
+    Observation, Observed, Presentation, Role, Stratum, TermEffect, TermTest,
 };
-use super::observed::PooledError;
 use super::{AnovaResult, ComparisonResult, FactorialResult};
 
 /// The residual stratum's name, as the ANOVA table prints it.
@@ -79,37 +78,8 @@ impl From<&AnovaResult> for LinearOutcome {
                 .collect(),
             comparison: r.comparison.as_ref().map(|c| comparison(c, residual_df)),
         };
-        let observations = r
-            .observations
-            .iter()
-            .zip(&r.observation_lines)
-            .enumerate()
-            .flat_map(|(i, (values, lines))| {
-                let mean = r.levels.get(i).map_or(f64::NAN, |l| l.mean);
-                values
-                    .iter()
-                    .zip(lines)
-                    .map(move |(&value, &line)| Observation {
-                        levels: vec![i],
-                        value,
-                        fitted: mean,
-                        residual: value - mean,
-                        line,
-                    })
-            })
-            .collect::<Vec<_>>();
-        let spreads = r
-            .levels
-            .iter()
-            .map(|l| LevelSpread {
-                n: l.n,
-                mean: l.mean,
-                q1: l.q1,
-                median: l.median,
-                q3: l.q3,
-            })
-            .collect();
-        let observed = Observed::one_factor(spreads, &observations, &r.plots);
+        let observations = one_factor_observations(r);
+        let observed = Observed::one_factor(&levels, &observations, &r.plots);
         LinearOutcome {
             id: r.id.clone(),
             line: r.line,
@@ -254,19 +224,7 @@ impl From<&FactorialResult> for LinearOutcome {
                 line: r.lines.get(i).copied().unwrap_or(0),
             })
             .collect::<Vec<_>>();
-        let level_counts: Vec<usize> = r.levels.iter().map(Vec::len).collect();
-        let error = PooledError {
-            ms: r.mse,
-            df: residual_df,
-            alpha: r.alpha,
-        };
-        let observed = Observed::factorial(
-            &level_counts,
-            &r.cell_factors,
-            &observations,
-            &r.plots,
-            &error,
-        );
+        let observed = Observed::factorial(r, &observations);
         LinearOutcome {
             id: r.id.clone(),
             line: r.line,
@@ -312,4 +270,27 @@ impl From<&FactorialResult> for LinearOutcome {
             observed,
         }
     }
+}
+
+/// A one-factor result's observations, level by level, each fitted by its
+/// level's mean.
+fn one_factor_observations(r: &AnovaResult) -> Vec<Observation> {
+    r.observations
+        .iter()
+        .zip(&r.observation_lines)
+        .enumerate()
+        .flat_map(|(i, (values, lines))| {
+            let mean = r.levels.get(i).map_or(f64::NAN, |l| l.mean);
+            values
+                .iter()
+                .zip(lines)
+                .map(move |(&value, &line)| Observation {
+                    levels: vec![i],
+                    value,
+                    fitted: mean,
+                    residual: value - mean,
+                    line,
+                })
+        })
+        .collect()
 }

@@ -2,26 +2,39 @@
 //! level's spread, the observed means of treatment-factor pairs, and the
 //! residuals' normal scores. Figures compute no statistics of their own.
 
-use super::linear::{Estimate, LevelSpread, NormalQq, Observation, Observed, TwoWayMeans};
+use super::FactorialResult;
+use super::linear::{
+    Estimate, LevelSpread, LevelSummary, NormalQq, Observation, Observed, TwoWayMeans,
+};
 use crate::doc::block::{PlotKind, PlotSpec};
 use crate::stats::assumptions::quartiles;
 use crate::stats::dist::{normal_isf, t_isf};
 
 /// The residual stratum a pooled interval is taken from.
-pub struct PooledError {
-    pub ms: f64,
-    pub df: f64,
-    pub alpha: f64,
+struct PooledError {
+    ms: f64,
+    df: f64,
+    alpha: f64,
 }
 
 impl Observed {
     /// One factor: the engine's level statistics, and the Q-Q coordinates
     /// when a Q-Q plot is asked for.
     pub fn one_factor(
-        spreads: Vec<LevelSpread>,
+        levels: &[LevelSummary],
         observations: &[Observation],
         plots: &PlotSpec,
     ) -> Self {
+        let spreads = levels
+            .iter()
+            .map(|l| LevelSpread {
+                n: l.n,
+                mean: l.mean,
+                q1: l.q1,
+                median: l.median,
+                q3: l.q3,
+            })
+            .collect();
         Observed {
             spreads: vec![spreads],
             two_way: Vec::new(),
@@ -32,16 +45,17 @@ impl Observed {
     /// Several factors: each treatment factor's level spreads, the observed
     /// means of every pair of treatment factors (when an interaction plot is
     /// asked for) and the Q-Q coordinates (when a Q-Q plot is).
-    pub fn factorial(
-        level_counts: &[usize],
-        treatments: &[usize],
-        observations: &[Observation],
-        plots: &PlotSpec,
-        error: &PooledError,
-    ) -> Self {
+    pub fn factorial(r: &FactorialResult, observations: &[Observation]) -> Self {
         if observations.is_empty() {
             return Observed::default();
         }
+        let level_counts: Vec<usize> = r.levels.iter().map(Vec::len).collect();
+        let (treatments, plots) = (&r.cell_factors, &r.plots);
+        let error = PooledError {
+            ms: r.mse,
+            df: r.residual_df as f64,
+            alpha: r.alpha,
+        };
         let spreads = (0..level_counts.len())
             .map(|f| {
                 if treatments.contains(&f) {
@@ -56,7 +70,7 @@ impl Observed {
             for (i, &a) in treatments.iter().enumerate() {
                 for &b in &treatments[i + 1..] {
                     let (a, b) = (a.min(b), a.max(b));
-                    two_way.push(pair_means(observations, [a, b], level_counts, error));
+                    two_way.push(pair_means(observations, [a, b], &level_counts, &error));
                 }
             }
         }
