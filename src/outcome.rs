@@ -7,6 +7,7 @@ mod comparison;
 mod factorial;
 pub mod linear;
 mod linear_from;
+mod observed;
 mod one_way;
 mod power;
 

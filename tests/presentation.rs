@@ -38,6 +38,16 @@ fn text(b: &Built) -> String {
     String::from_utf8(b.report.clone()).expect("utf-8")
 }
 
+/// A file written beside a Markdown report, as text.
+fn file(b: &Built, name: &str) -> String {
+    let (_, bytes) = b
+        .files
+        .iter()
+        .find(|(n, _)| n == name)
+        .unwrap_or_else(|| panic!("no file {name}"));
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
 fn results(b: &Built) -> Value {
     serde_json::from_slice(&b.results).expect("results parse")
 }
@@ -351,13 +361,7 @@ fn factorial_figures_cover_each_compared_term_and_the_chosen_axis() {
         names.contains(&"report-f-box.svg") && names.contains(&"report-f-box-b.svg"),
         "{names:?}"
     );
-    let inter = &b
-        .files
-        .iter()
-        .find(|(n, _)| n == "report-f-interaction.svg")
-        .expect("interaction")
-        .1;
-    let svg = String::from_utf8_lossy(inter);
+    let svg = file(&b, "report-f-interaction.svg");
     assert!(
         svg.contains("Spacing on the axis, one line per level of a"),
         "x axis chosen"
@@ -376,14 +380,7 @@ fn twenty_levels_tilt_their_names_enough_to_clear_each_other() {
     }
     let doc = "```anova\nid: m\ndata: d.csv\nmodel: y ~ g\nplot: box\n```\n";
     let b = build(doc, csv, Format::Markdown);
-    let svg = String::from_utf8_lossy(
-        &b.files
-            .iter()
-            .find(|(n, _)| n == "report-m-box.svg")
-            .expect("box")
-            .1,
-    )
-    .to_string();
+    let svg = file(&b, "report-m-box.svg");
     // 480 px for 20 slots of about 21 px: at 30° neighbouring 11 px labels
     // sit only about 10 px apart, so the names tilt to 45° (15 px apart).
     assert_eq!(
@@ -404,4 +401,23 @@ fn numeric_first_columns_are_right_aligned_under_their_header() {
         html.contains("<th scope=\"row\" class=\"num\" data-key=\"p.curve.0.n_per_group\">"),
         "cells align with the header (and name their field)"
     );
+}
+
+#[test]
+fn a_factorial_means_plot_without_comparisons_names_the_means_it_draws() {
+    // Invented, unbalanced: the observed means of `a` are 38.1 / 6 = 6.35
+    // and 40.3 / 6 = 6.72 (by hand); its marginal means differ.
+    let csv = "a,b,y\nA1,B1,5.0\nA1,B1,5.4\nA1,B2,6.1\nA1,B3,7.2\nA1,B3,7.0\nA1,B3,7.4\n\
+A2,B1,5.8\nA2,B1,6.0\nA2,B1,6.2\nA2,B2,6.9\nA2,B2,7.1\nA2,B3,8.3\n";
+    let doc = "```anova\nid: f\ndata: d.csv\nmodel: y ~ a + b\nplot: means\ncompare: none\n```\n";
+    let b = build(doc, csv.to_string(), Format::Markdown);
+    let svg = file(&b, "report-f-means.svg");
+    assert!(
+        svg.contains("Observed means of y by a, without intervals"),
+        "{svg}"
+    );
+    assert!(!svg.contains("marginal means"), "{svg}");
+    assert!(svg.contains("Levels A1, A2; means 6.35, 6.72."), "{svg}");
+    let report = text(&b);
+    assert!(report.contains("Figure 1. Observed means of y by a"));
 }

@@ -7,6 +7,7 @@
 //! figures stay readable in greyscale and in print.
 
 pub mod dense;
+pub mod linear;
 pub mod plots;
 
 use crate::escape::xml_escape;
@@ -344,9 +345,10 @@ pub fn draw_all(results: &[BlockResult]) -> Vec<Vec<Figure>> {
     results
         .iter()
         .map(|r| match r {
-            BlockResult::Anova(a) => plots::one_way_figures(a, &mut number),
-            BlockResult::Factorial(f) => plots::factorial_figures(f, &mut number),
             BlockResult::Power(p) => plots::power_figures(p, &mut number),
+            linear => linear
+                .linear()
+                .map_or_else(Vec::new, |o| linear::linear_figures(&o, &mut number)),
         })
         .collect()
 }

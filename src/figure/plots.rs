@@ -1,13 +1,9 @@
 //! The plot kinds: box, strip and means plots with letters, interaction
-//! plots, and residual diagnostics (residuals against fitted, normal Q-Q).
+//! plots, residual diagnostics (residuals against fitted, normal Q-Q) and
+//! power curves. Drawers place numbers they are given; they compute none.
 
 use super::{Figure, PALETTE, Scale, Svg, dense, nice_ticks, text_width, tick_label};
-use crate::doc::block::{PlotKind, PlotSpec};
-use crate::format::fixed;
-use crate::outcome::AnovaResult;
-use crate::outcome::FactorialResult;
-use crate::stats::assumptions::quartiles;
-use crate::stats::dist::{normal_isf, t_isf};
+use crate::outcome::linear::NormalQq;
 
 const WIDTH: f64 = 480.0;
 const HEIGHT: f64 = 320.0;
@@ -19,19 +15,22 @@ const GRID: &str = "#e3e3e8";
 const MUTED: &str = "#6e6e73";
 
 /// A line of an interaction plot: its name and (mean, lower, upper) per x level.
-type Series = (String, Vec<(f64, f64, f64)>);
+pub(super) type Series = (String, Vec<(f64, f64, f64)>);
 
 /// A categorical plot drawer: (id, title, desc, groups, y title, x title, reference line).
-type CategoricalPlot = fn(&str, &str, &str, &[Group], &str, &str, Option<f64>) -> String;
+pub(super) type CategoricalPlot = fn(&str, &str, &str, &[Group], &str, &str, Option<f64>) -> String;
 
 /// One group on a categorical axis.
-struct Group<'a> {
-    label: &'a str,
-    values: &'a [f64],
-    letters: Option<&'a str>,
-    /// Mean and interval, for means plots.
-    mean: f64,
-    ci: (f64, f64),
+pub(super) struct Group<'a> {
+    pub label: &'a str,
+    pub values: &'a [f64],
+    pub letters: Option<&'a str>,
+    /// First quartile, median and third quartile, for box plots.
+    pub quartiles: (f64, f64, f64),
+    /// Mean and interval (NaN where there is none), for means plots and
+    /// the bars of strip plots.
+    pub mean: f64,
+    pub ci: (f64, f64),
 }
 
 /// SplitMix64: a fixed hash, so jitter is the same on every build and machine.
@@ -42,17 +41,6 @@ fn jitter(level: usize, index: usize) -> f64 {
     z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
     z ^= z >> 31;
     (z >> 11) as f64 / (1u64 << 53) as f64 - 0.5
-}
-
-fn axis_title(spec: &PlotSpec, response: &str) -> String {
-    let label = spec
-        .label
-        .clone()
-        .unwrap_or_else(|| spec.display(response).to_string());
-    match &spec.unit {
-        Some(u) => format!("{label} ({u})"),
-        None => label,
-    }
 }
 
 /// The plotting frame: y axis with ticks and grid, x axis with level labels.
@@ -231,7 +219,7 @@ fn range(groups: &[Group]) -> (f64, f64) {
     if lo.is_finite() { (lo, hi) } else { (0.0, 1.0) }
 }
 
-fn box_plot(
+pub(super) fn box_plot(
     id: &str,
     title: &str,
     desc: &str,
@@ -249,7 +237,7 @@ fn box_plot(
     for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
         let colour = PALETTE[0];
         if g.values.len() >= 2 {
-            let (q1, median, q3) = quartiles(g.values);
+            let (q1, median, q3) = g.quartiles;
             let iqr = q3 - q1;
             let low = g
                 .values
@@ -314,7 +302,7 @@ fn box_plot(
     svg.finish()
 }
 
-fn strip_plot(
+pub(super) fn strip_plot(
     id: &str,
     title: &str,
     desc: &str,
@@ -374,7 +362,7 @@ fn strip_plot(
     svg.finish()
 }
 
-fn means_plot(
+pub(super) fn means_plot(
     id: &str,
     title: &str,
     desc: &str,
@@ -520,7 +508,7 @@ fn scatter_frame_in(
 }
 
 /// Residuals against fitted values; `flags` are (index, label) of points to name.
-fn residual_plot(
+pub(super) fn residual_plot(
     id: &str,
     title: &str,
     desc: &str,
@@ -565,22 +553,13 @@ fn residual_plot(
     svg.finish()
 }
 
-/// Normal Q-Q plot with Blom positions and a line through the quartiles.
-fn qq_plot(id: &str, title: &str, desc: &str, residuals: &[f64]) -> String {
-    let mut sorted: Vec<f64> = residuals
-        .iter()
-        .copied()
-        .filter(|v| v.is_finite())
-        .collect();
-    sorted.sort_by(f64::total_cmp);
-    let n = sorted.len() as f64;
+/// Normal Q-Q plot of the residuals at their Blom positions, with the line
+/// through their quartiles.
+pub(super) fn qq_plot(id: &str, title: &str, desc: &str, qq: &NormalQq) -> String {
     // Every order statistic, or a bounded selection of them on large data.
-    let ranks = dense::qq_ranks(sorted.len());
-    let theoretical: Vec<f64> = ranks
-        .iter()
-        .map(|&r| -normal_isf((r as f64 + 1.0 - 0.375) / (n + 0.25)))
-        .collect();
-    let sample: Vec<f64> = ranks.iter().map(|&r| sorted[r]).collect();
+    let ranks = dense::qq_ranks(qq.residuals.len());
+    let theoretical: Vec<f64> = ranks.iter().map(|&r| qq.scores[r]).collect();
+    let sample: Vec<f64> = ranks.iter().map(|&r| qq.residuals[r]).collect();
     let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
     let (x, y) = scatter_frame(
         &mut svg,
@@ -589,11 +568,7 @@ fn qq_plot(id: &str, title: &str, desc: &str, residuals: &[f64]) -> String {
         "Normal quantile",
         "Residual",
     );
-    if sorted.len() >= 4 {
-        let (q1, _, q3) = quartiles(&sorted);
-        let z = normal_isf(0.25); // Φ⁻¹(0.75)
-        let slope = (q3 - q1) / (2.0 * z);
-        let intercept = (q1 + q3) / 2.0;
+    if let Some((intercept, slope)) = qq.line {
         let (a, b) = (x.d0, x.d1);
         svg.line(
             x.map(a),
@@ -613,7 +588,7 @@ fn qq_plot(id: &str, title: &str, desc: &str, residuals: &[f64]) -> String {
 
 /// Interaction plot: x = levels of one factor, a line per level of another.
 #[allow(clippy::too_many_arguments)]
-fn interaction_plot(
+pub(super) fn interaction_plot(
     id: &str,
     title: &str,
     desc: &str,
@@ -678,469 +653,6 @@ fn interaction_plot(
         "legend-title",
     );
     svg.finish()
-}
-
-/// The caption's sentence for a figure drawn as a summary (empty otherwise).
-fn dense_note(kind: PlotKind, observations: usize) -> String {
-    if !dense::summarised(observations) {
-        return String::new();
-    }
-    let what = match kind {
-        PlotKind::Box => "boxes and whiskers only",
-        PlotKind::Strip => {
-            "each level's observations are drawn as a binned density, each bar as wide as the count in its bin"
-        }
-        PlotKind::Means => "the observations behind the means are left out",
-        PlotKind::Residuals => {
-            "each cell of a grid is shaded by the number of observations in it (logarithmic scale)"
-        }
-        PlotKind::Qq => {
-            return dense::caption_note(
-                observations,
-                &format!(
-                    "the {0} smallest and {0} largest residuals are drawn with evenly spaced order statistics between them",
-                    dense::QQ_TAIL
-                ),
-            );
-        }
-        PlotKind::Interaction => return String::new(),
-    };
-    dense::caption_note(observations, what)
-}
-
-/// Points of a residual plot to label: (index into `lines`, "line N") for
-/// the flagged observations, in one pass over the lines. A summarised plot
-/// labels none: its labels would pile up on the few drawn cells, and the
-/// checks table names the most extreme.
-fn flagged_points(
-    checks: &crate::outcome::Checks,
-    lines: &[usize],
-    summarised: bool,
-) -> Vec<(usize, String)> {
-    if summarised {
-        return Vec::new();
-    }
-    let mut wanted: std::collections::BTreeSet<usize> =
-        checks.outliers.iter().map(|o| o.line).collect();
-    // A line labels its first observation only (a wide row holds several).
-    lines
-        .iter()
-        .enumerate()
-        .filter(|(_, l)| wanted.remove(l))
-        .map(|(i, l)| (i, format!("line {l}")))
-        .collect()
-}
-
-/// How a residual plot's caption says where flagged observations are.
-fn residual_flags_phrase(summarised: bool) -> &'static str {
-    if summarised {
-        "; observations beyond ±3 studentized residuals are counted, and the most extreme named, under the assumption checks"
-    } else {
-        "; observations beyond ±3 studentized residuals are labelled with their data line"
-    }
-}
-
-fn figure_id(block: &str, kind: PlotKind) -> String {
-    format!("{block}-{}", kind.key())
-}
-
-/// The figures of a one-factor block.
-pub fn one_way_figures(r: &AnovaResult, number: &mut usize) -> Vec<Figure> {
-    let spec = &r.plots;
-    let y_title = axis_title(spec, &r.response);
-    // Captions name the response as the tables do: its label, else its column.
-    let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
-    let letters = r
-        .comparison
-        .as_ref()
-        .filter(|c| !c.letters.is_empty())
-        .map(|c| (c.letters.clone(), c.method.title(), c.alpha));
-    let groups: Vec<Group> = r
-        .levels
-        .iter()
-        .enumerate()
-        .map(|(i, l)| Group {
-            label: &l.name,
-            values: r.observations.get(i).map_or(&[][..], Vec::as_slice),
-            letters: letters.as_ref().map(|(ls, _, _)| ls[i].as_str()),
-            mean: l.mean,
-            ci: (l.ci_lower, l.ci_upper),
-        })
-        .collect();
-    let letters_note = letters.as_ref().map_or(String::new(), |(_, m, a)| {
-        format!(" Levels sharing a letter do not differ significantly ({m}, α = {a}).")
-    });
-    let conf = crate::format::confidence_label(r.alpha);
-    let ci_kind = if r.ci_pooled {
-        "pooled"
-    } else {
-        "each level's own SD"
-    };
-    let level_list = r
-        .levels
-        .iter()
-        .map(|l| l.name.as_str())
-        .collect::<Vec<_>>()
-        .join(", ");
-    let means_list = r
-        .levels
-        .iter()
-        .map(|l| fixed(l.mean, r.decimals))
-        .collect::<Vec<_>>()
-        .join(", ");
-    let observations: usize = r.observations.iter().map(Vec::len).sum();
-    let many = dense::summarised(observations);
-    let mut out = Vec::new();
-    for &kind in &spec.kinds {
-        let id = figure_id(&r.id, kind);
-        let n = *number;
-        let note = dense_note(kind, observations);
-        let (caption, svg) = match kind {
-            PlotKind::Box | PlotKind::Strip | PlotKind::Means => {
-                let (what, draw): (String, CategoricalPlot) = match kind {
-                    PlotKind::Box => (
-                        format!(
-                            "{} by {}: box plots (median, quartiles, whiskers to the most extreme values within 1.5 IQR){}.{note}",
-                            subject,
-                            spec.display(&r.factor),
-                            if many { "" } else { " with every observation" }
-                        ),
-                        box_plot,
-                    ),
-                    PlotKind::Strip => (
-                        format!(
-                            "{} of {} by {}, with the level means as bars.{note}",
-                            if many {
-                                "Observations"
-                            } else {
-                                "Every observation"
-                            },
-                            subject,
-                            spec.display(&r.factor)
-                        ),
-                        strip_plot,
-                    ),
-                    _ => (
-                        format!(
-                            "Means of {} by {} with {conf} confidence intervals ({ci_kind}){}.{note}",
-                            subject,
-                            spec.display(&r.factor),
-                            if many { "" } else { "; observations in grey" }
-                        ),
-                        means_plot,
-                    ),
-                };
-                let caption = format!("Figure {n}. {what}{letters_note}");
-                let desc = format!("Levels {level_list}; means {means_list}.");
-                (
-                    caption.clone(),
-                    draw(
-                        &id,
-                        &caption,
-                        &desc,
-                        &groups,
-                        &y_title,
-                        spec.display(&r.factor),
-                        spec.reference,
-                    ),
-                )
-            }
-            PlotKind::Residuals | PlotKind::Qq => {
-                let mut fitted = Vec::new();
-                let mut residuals = Vec::new();
-                let mut lines = Vec::new();
-                for (i, l) in r.levels.iter().enumerate() {
-                    for (j, y) in r
-                        .observations
-                        .get(i)
-                        .map_or(&[][..], Vec::as_slice)
-                        .iter()
-                        .enumerate()
-                    {
-                        fitted.push(l.mean);
-                        residuals.push(y - l.mean);
-                        lines.push(r.observation_lines[i][j]);
-                    }
-                }
-                let flags = flagged_points(&r.checks, &lines, many);
-                if kind == PlotKind::Residuals {
-                    let caption = format!(
-                        "Figure {n}. Residuals of {} against fitted values (level means){}.{note}",
-                        subject,
-                        residual_flags_phrase(many)
-                    );
-                    let desc = format!("{} residuals; {} flagged.", residuals.len(), flags.len());
-                    (
-                        caption.clone(),
-                        residual_plot(&id, &caption, &desc, &fitted, &residuals, &flags),
-                    )
-                } else {
-                    let caption = format!(
-                        "Figure {n}. Normal Q-Q plot of the residuals of {} (Blom positions), with a line through the quartiles.{note}",
-                        subject
-                    );
-                    let desc = format!("{} residuals against normal quantiles.", residuals.len());
-                    (caption.clone(), qq_plot(&id, &caption, &desc, &residuals))
-                }
-            }
-            PlotKind::Interaction => continue,
-        };
-        *number += 1;
-        out.push(Figure {
-            id,
-            kind: kind.key(),
-            number: n,
-            caption,
-            svg,
-        });
-    }
-    out
-}
-
-/// The figures of a factorial block.
-pub fn factorial_figures(r: &FactorialResult, number: &mut usize) -> Vec<Figure> {
-    let spec = &r.plots;
-    let Some(&first) = r.cell_factors.first() else {
-        return Vec::new();
-    };
-    // Box, strip and means plots are drawn for every compared main effect
-    // (the first keeps the plain id `<block>-<kind>`, the others add
-    // `-<factor>`); without comparisons, for the first treatment factor.
-    let mut compared: Vec<usize> = Vec::new();
-    for fam in &r.families {
-        if let Some(f) = r.factors.iter().position(|f| *f == fam.term)
-            && !compared.contains(&f)
-        {
-            compared.push(f);
-        }
-    }
-    if compared.is_empty() {
-        compared.push(first);
-    }
-    let mut out = Vec::new();
-    for &kind in &spec.kinds {
-        let drawn: Vec<(Option<usize>, String)> = match kind {
-            PlotKind::Box | PlotKind::Strip | PlotKind::Means => compared
-                .iter()
-                .enumerate()
-                .map(|(i, &f)| {
-                    let id = figure_id(&r.id, kind);
-                    (
-                        Some(f),
-                        if i == 0 {
-                            id
-                        } else {
-                            format!("{id}-{}", r.factors[f])
-                        },
-                    )
-                })
-                .collect(),
-            _ => vec![(None, figure_id(&r.id, kind))],
-        };
-        for (factor, id) in drawn {
-            let n = *number;
-            let made = match factor {
-                Some(f) => Some(factor_figure(r, kind, f, &id, n)),
-                None => model_figure(r, kind, &id, n),
-            };
-            if let Some((caption, svg)) = made {
-                *number += 1;
-                out.push(Figure {
-                    id,
-                    kind: kind.key(),
-                    number: n,
-                    caption,
-                    svg,
-                });
-            }
-        }
-    }
-    out
-}
-
-/// Box, strip or means plot of the response by one factor of a factorial
-/// model, with that factor's letters when its main effect was compared.
-fn factor_figure(
-    r: &FactorialResult,
-    kind: PlotKind,
-    fa: usize,
-    id: &str,
-    n: usize,
-) -> (String, String) {
-    let spec = &r.plots;
-    let y_title = axis_title(spec, &r.response);
-    let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
-    let fam = r
-        .families
-        .iter()
-        .find(|f| f.term == r.factors[fa] && f.within.is_none());
-    let values: Vec<Vec<f64>> = (0..r.levels[fa].len())
-        .map(|l| {
-            r.rows
-                .iter()
-                .zip(&r.values)
-                .filter(|(row, _)| row[fa] == l)
-                .map(|(_, v)| *v)
-                .collect()
-        })
-        .collect();
-    let t = t_isf(r.alpha / 2.0, r.residual_df as f64);
-    let groups: Vec<Group> = r.levels[fa]
-        .iter()
-        .enumerate()
-        .map(|(l, name)| {
-            let (mean, ci) = match fam {
-                Some(f) => (f.means[l].mean, (f.means[l].ci_lower, f.means[l].ci_upper)),
-                None => {
-                    let m = values[l].iter().sum::<f64>() / values[l].len().max(1) as f64;
-                    let se = (r.mse / values[l].len().max(1) as f64).sqrt();
-                    (m, (m - t * se, m + t * se))
-                }
-            };
-            Group {
-                label: name,
-                values: &values[l],
-                letters: fam.map(|f| f.comparison.letters[l].as_str()),
-                mean,
-                ci,
-            }
-        })
-        .collect();
-    let conf = crate::format::confidence_label(r.alpha);
-    let letters_note = fam.map_or(String::new(), |f| {
-        format!(
-            " Levels sharing a letter do not differ significantly ({}, α = {}).",
-            f.comparison.method.title(),
-            f.comparison.alpha
-        )
-    });
-    let factor = spec.display(&r.factors[fa]);
-    let many = dense::summarised(r.values.len());
-    let note = dense_note(kind, r.values.len());
-    let (what, draw): (String, PlotFn) = match kind {
-        PlotKind::Box => (
-            format!(
-                "{subject} by {factor}: box plots{}.{note}",
-                if many { "" } else { " with every observation" }
-            ),
-            box_plot,
-        ),
-        PlotKind::Strip => (
-            format!(
-                "{} of {subject} by {factor}, with means as bars.{note}",
-                if many {
-                    "Observations"
-                } else {
-                    "Every observation"
-                }
-            ),
-            strip_plot,
-        ),
-        _ => (
-            format!(
-                "Estimated marginal means of {subject} by {factor} with {conf} confidence intervals from the model."
-            ),
-            means_plot,
-        ),
-    };
-    let caption = format!("Figure {n}. {what}{letters_note}");
-    let svg = draw(
-        id,
-        &caption,
-        &caption,
-        &groups,
-        &y_title,
-        factor,
-        spec.reference,
-    );
-    (caption, svg)
-}
-
-type PlotFn = fn(&str, &str, &str, &[Group], &str, &str, Option<f64>) -> String;
-
-/// The figures of a factorial model drawn once: interaction, residuals, Q-Q.
-fn model_figure(
-    r: &FactorialResult,
-    kind: PlotKind,
-    id: &str,
-    n: usize,
-) -> Option<(String, String)> {
-    let spec = &r.plots;
-    let subject = spec.label.as_deref().unwrap_or(spec.display(&r.response));
-    let conf = crate::format::confidence_label(r.alpha);
-    let t = t_isf(r.alpha / 2.0, r.residual_df as f64);
-    Some(match kind {
-        PlotKind::Interaction => {
-            // The x axis: `x_axis` when given, else the first treatment
-            // factor; one line per level of the next treatment factor.
-            let fa = spec
-                .x_axis
-                .as_ref()
-                .and_then(|x| r.factors.iter().position(|f| f == x))
-                .filter(|f| r.cell_factors.contains(f))
-                .unwrap_or(r.cell_factors[0]);
-            let fb = *r.cell_factors.iter().find(|&&f| f != fa)?;
-            let x_labels: Vec<&str> = r.levels[fa].iter().map(String::as_str).collect();
-            let series: Vec<Series> = r.levels[fb]
-                .iter()
-                .enumerate()
-                .map(|(b, name)| {
-                    let pts = (0..r.levels[fa].len())
-                        .map(|a| {
-                            let v: Vec<f64> = r
-                                .rows
-                                .iter()
-                                .zip(&r.values)
-                                .filter(|(row, _)| row[fa] == a && row[fb] == b)
-                                .map(|(_, v)| *v)
-                                .collect();
-                            if v.is_empty() {
-                                return (f64::NAN, f64::NAN, f64::NAN);
-                            }
-                            let m = v.iter().sum::<f64>() / v.len() as f64;
-                            let se = (r.mse / v.len() as f64).sqrt();
-                            (m, m - t * se, m + t * se)
-                        })
-                        .collect();
-                    (name.clone(), pts)
-                })
-                .collect();
-            let (x_name, line_name) = (spec.display(&r.factors[fa]), spec.display(&r.factors[fb]));
-            let caption = format!(
-                "Figure {n}. Cell means of {subject}: {x_name} on the axis, one line per level of {line_name}, with {conf} confidence intervals (model residual mean square)."
-            );
-            let svg = interaction_plot(
-                id,
-                &caption,
-                &caption,
-                &x_labels,
-                &series,
-                (&axis_title(spec, &r.response), x_name, line_name),
-                spec.reference,
-            );
-            (caption, svg)
-        }
-        PlotKind::Residuals => {
-            let many = dense::summarised(r.residuals.len());
-            let flags = flagged_points(&r.checks, &r.lines, many);
-            let caption = format!(
-                "Figure {n}. Residuals of {subject} against fitted values{}.{}",
-                residual_flags_phrase(many),
-                dense_note(kind, r.residuals.len())
-            );
-            let svg = residual_plot(id, &caption, &caption, &r.fitted, &r.residuals, &flags);
-            (caption, svg)
-        }
-        PlotKind::Qq => {
-            let caption = format!(
-                "Figure {n}. Normal Q-Q plot of the residuals of {subject} (Blom positions), with a line through the quartiles.{}",
-                dense_note(kind, r.residuals.len())
-            );
-            let svg = qq_plot(id, &caption, &caption, &r.residuals);
-            (caption, svg)
-        }
-        _ => return None,
-    })
 }
 
 /// The power curve of a `power` block: power against n per group, with the

@@ -239,6 +239,8 @@ pub struct LinearOutcome {
     /// Every observation, for figures; empty for summary input and when no
     /// figure needs them.
     pub observations: Vec<Observation>,
+    /// Descriptive summaries of `observations`, for figures (empty with them).
+    pub observed: Observed,
 }
 
 impl LinearOutcome {
@@ -293,4 +295,49 @@ impl LevelSummary {
             ci_upper: self.ci_upper,
         }
     }
+}
+
+/// The observed distribution of one level of a factor: what box and strip
+/// plots draw.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct LevelSpread {
+    pub n: usize,
+    /// The mean of the level's observations (not a model estimate).
+    pub mean: f64,
+    pub q1: f64,
+    pub median: f64,
+    pub q3: f64,
+}
+
+/// Observed means of the combined levels of two treatment factors, with
+/// intervals from the residual stratum: what an interaction plot draws.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct TwoWayMeans {
+    /// Indices into `LinearOutcome::factors`, the first one's levels major.
+    pub factors: [usize; 2],
+    /// One per level pair, at `a * levels(b) + b`; NaN where no data.
+    pub estimates: Vec<Estimate>,
+}
+
+/// The residuals' normal Q-Q coordinates (Blom positions).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct NormalQq {
+    /// The finite residuals in ascending order.
+    pub residuals: Vec<f64>,
+    /// The standard normal quantile of each residual's plotting position.
+    pub scores: Vec<f64>,
+    /// The line through the quartiles: residual = intercept + slope × score;
+    /// `None` with fewer than four residuals.
+    pub line: Option<(f64, f64)>,
+}
+
+/// Descriptive summaries of the observations, for figures.
+#[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Observed {
+    /// Per factor (in `factors` order; empty for blocks), per level.
+    pub spreads: Vec<Vec<LevelSpread>>,
+    /// Every pair of treatment factors (first index lower).
+    pub two_way: Vec<TwoWayMeans>,
+    /// Present when a Q-Q plot was asked for.
+    pub qq: Option<NormalQq>,
 }

@@ -3,7 +3,7 @@
 
 use super::linear::{
     Alternatives, Comparison, Contrast, Estimate, Factor, Family, LevelSummary, LinearOutcome,
-    Observation, Presentation, Role, Stratum, TermEffect, TermTest,
+    Observation, Observed, Presentation, Role, Stratum, TermEffect, TermTest,
 };
 use super::{AnovaResult, ComparisonResult, FactorialResult};
 
@@ -116,7 +116,7 @@ impl From<&AnovaResult> for LinearOutcome {
         let t = &r.table;
         let residual_df = t.df_within as f64;
         let family = one_way_family(r, residual_df);
-        let levels = r
+        let levels: Vec<LevelSummary> = r
             .levels
             .iter()
             .map(|l| LevelSummary {
@@ -132,6 +132,8 @@ impl From<&AnovaResult> for LinearOutcome {
                 q3: l.q3,
             })
             .collect();
+        let observations = one_way_observations(r);
+        let observed = Observed::one_factor(&levels, &observations, &r.plots);
         LinearOutcome {
             id: r.id.clone(),
             line: r.line,
@@ -177,7 +179,8 @@ impl From<&AnovaResult> for LinearOutcome {
                 show: r.show,
                 plots: r.plots.clone(),
             },
-            observations: one_way_observations(r),
+            observations,
+            observed,
         }
     }
 }
@@ -254,7 +257,8 @@ impl From<&FactorialResult> for LinearOutcome {
                 residual: r.residuals.get(i).copied().unwrap_or(f64::NAN),
                 line: r.lines.get(i).copied().unwrap_or(0),
             })
-            .collect();
+            .collect::<Vec<_>>();
+        let observed = Observed::factorial(r, &observations);
         LinearOutcome {
             id: r.id.clone(),
             line: r.line,
@@ -297,6 +301,7 @@ impl From<&FactorialResult> for LinearOutcome {
                 plots: r.plots.clone(),
             },
             observations,
+            observed,
         }
     }
 }
