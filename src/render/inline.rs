@@ -745,19 +745,7 @@ fn unknown_name_error(
         .take_while(|c| c.is_ascii_alphanumeric() || *c == '_')
         .collect();
     if !head.is_empty() && !ids.contains(&head.as_str()) {
-        let d = doc.error_at(
-            line,
-            Some(col),
-            format!("`{head}` is not the id of an analysis block"),
-        );
-        return match crate::diag::nearest(&head, ids.iter().copied()) {
-            Some(n) => d.hint(format!("did you mean `{n}`?")),
-            None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
-            None => d.hint(format!(
-                "the blocks in this document are {}",
-                ids.join(", ")
-            )),
-        };
+        return doc.not_a_block_id(&head, &ids, (line, col));
     }
     let d = doc.error_at(
         line,
