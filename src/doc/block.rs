@@ -233,6 +233,22 @@ pub(super) fn bad(entry: &Entry, message: String, hint: impl Into<String>) -> Sp
     }
 }
 
+/// The value `entry` names among `choices` (each with its spellings, in
+/// lower case); otherwise "unknown {what} `value`" with `hint`.
+pub(super) fn one_of<T: Copy>(
+    entry: &Entry,
+    what: &str,
+    choices: &[(&[&str], T)],
+    hint: &str,
+) -> Result<T, SpecError> {
+    let v = entry.value.to_ascii_lowercase();
+    choices
+        .iter()
+        .find(|(names, _)| names.contains(&v.as_str()))
+        .map(|(_, t)| *t)
+        .ok_or_else(|| bad(entry, format!("unknown {what} `{}`", entry.value), hint))
+}
+
 /// Document-wide defaults a block falls back on.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Defaults {

@@ -2,7 +2,8 @@
 //! order, labels, figures and the notes the author has dealt with.
 
 use super::block::{
-    CheckSet, Located, NOTE_KINDS, Order, PlotKind, Show, SpecError, bad, list, parse_decimals,
+    CheckSet, Located, NOTE_KINDS, Order, PlotKind, Show, SpecError, bad, list, one_of,
+    parse_decimals,
 };
 use super::block_keys::AnovaDraft;
 use super::keyvalue::Entry;
@@ -47,17 +48,12 @@ pub(super) fn read_decimals(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecErr
 }
 
 pub(super) fn read_order(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    d.order = Some(match e.value.to_ascii_lowercase().as_str() {
-        "mean" | "means" => Order::Mean,
-        "levels" | "data" => Order::Levels,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown order `{}`", e.value),
-                "write `mean` (highest first) or `levels` (as listed or as in the data)",
-            ));
-        }
-    });
+    let choices: [(&[&str], Order); 2] = [
+        (&["mean", "means"], Order::Mean),
+        (&["levels", "data"], Order::Levels),
+    ];
+    let hint = "write `mean` (highest first) or `levels` (as listed or as in the data)";
+    d.order = Some(one_of(e, "order", &choices, hint)?);
     Ok(())
 }
 
@@ -89,18 +85,17 @@ pub(super) fn read_show(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> 
 }
 
 pub(super) fn read_checks(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    d.checks = Some(match e.value.to_ascii_lowercase().as_str() {
-        "all" | "yes" | "show" => CheckSet::All,
-        "none" | "no" | "hide" => CheckSet::Hidden,
-        "summary" => CheckSet::Summary,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown `checks` value `{}`", e.value),
-                "write `all` (the default), `none` to hide the table (the checks stay in the results file), or `summary` for only the checks per-level summaries allow",
-            ));
-        }
-    });
+    let choices: [(&[&str], CheckSet); 3] = [
+        (&["all", "yes", "show"], CheckSet::All),
+        (&["none", "no", "hide"], CheckSet::Hidden),
+        (&["summary"], CheckSet::Summary),
+    ];
+    d.checks = Some(one_of(
+        e,
+        "`checks` value",
+        &choices,
+        "write `all` (the default), `none` to hide the table (the checks stay in the results file), or `summary` for only the checks per-level summaries allow",
+    )?);
     Ok(())
 }
 

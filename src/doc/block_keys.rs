@@ -3,7 +3,7 @@
 //! `block_checks` then checks the keys against each other.
 
 use super::block::{
-    CheckSet, Located, Omnibus, Order, PlotSpec, Show, SpecError, bad, list, parse_alpha,
+    CheckSet, Located, Omnibus, Order, PlotSpec, Show, SpecError, bad, list, one_of, parse_alpha,
     parse_compare, parse_id, parse_yes_no,
 };
 use super::block_display as display;
@@ -163,18 +163,17 @@ fn read_protected(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
 }
 
 fn read_method(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    d.method = Some(match e.value.to_ascii_lowercase().as_str() {
-        "anova" => Omnibus::Anova,
-        "welch" => Omnibus::Welch,
-        "ranks" | "kruskal" => Omnibus::Ranks,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown method `{}`", e.value),
-                "write `anova` (the F test), `welch` (unequal variances) or `ranks` (Kruskal-Wallis)",
-            ));
-        }
-    });
+    let choices: [(&[&str], Omnibus); 3] = [
+        (&["anova"], Omnibus::Anova),
+        (&["welch"], Omnibus::Welch),
+        (&["ranks", "kruskal"], Omnibus::Ranks),
+    ];
+    d.method = Some(one_of(
+        e,
+        "method",
+        &choices,
+        "write `anova` (the F test), `welch` (unequal variances) or `ranks` (Kruskal-Wallis)",
+    )?);
     Ok(())
 }
 
@@ -184,35 +183,28 @@ fn read_control(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
 }
 
 fn read_sides(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    let sides = match e.value.to_ascii_lowercase().as_str() {
-        "2" | "two" | "both" => Sides::Two,
-        "1" | "greater" | "above" => Sides::Greater,
-        "less" | "below" => Sides::Less,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown `sides` value `{}`", e.value),
-                "write `2` (two-sided), `1` or `greater` (treatments above the control), or `less`",
-            ));
-        }
-    };
+    let choices: [(&[&str], Sides); 3] = [
+        (&["2", "two", "both"], Sides::Two),
+        (&["1", "greater", "above"], Sides::Greater),
+        (&["less", "below"], Sides::Less),
+    ];
+    let sides = one_of(
+        e,
+        "`sides` value",
+        &choices,
+        "write `2` (two-sided), `1` or `greater` (treatments above the control), or `less`",
+    )?;
     d.sides = Some((e.clone(), sides));
     Ok(())
 }
 
 fn read_adjust(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    let method = match e.value.to_ascii_lowercase().as_str() {
-        "holm" => Method::Holm,
-        "bonferroni" => Method::Bonferroni,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown adjustment `{}`", e.value),
-                "write `holm` (the default) or `bonferroni`",
-            ));
-        }
-    };
-    d.adjust = Some((e.clone(), method));
+    let choices: [(&[&str], Method); 2] = [
+        (&["holm"], Method::Holm),
+        (&["bonferroni"], Method::Bonferroni),
+    ];
+    let hint = "write `holm` (the default) or `bonferroni`";
+    d.adjust = Some((e.clone(), one_of(e, "adjustment", &choices, hint)?));
     Ok(())
 }
 

@@ -1,7 +1,7 @@
 //! The keys of an `anova` block that say how its data are read: the file,
 //! its CSV dialect, summary input, layout and the rows kept.
 
-use super::block::{SpecError, bad, list};
+use super::block::{SpecError, bad, list, one_of};
 use super::block_keys::AnovaDraft;
 use super::keyvalue::Entry;
 use crate::data::{Filter, SummaryColumns};
@@ -19,33 +19,19 @@ pub(super) fn read_data(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> 
 }
 
 pub(super) fn read_delimiter(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    d.csv.delimiter = match e.value.to_ascii_lowercase().as_str() {
-        "comma" | "," => b',',
-        "semicolon" | ";" => b';',
-        "tab" | "\\t" => b'\t',
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown delimiter `{}`", e.value),
-                "write `comma`, `semicolon` or `tab`",
-            ));
-        }
-    };
+    let choices: [(&[&str], u8); 3] = [
+        (&["comma", ","], b','),
+        (&["semicolon", ";"], b';'),
+        (&["tab", "\\t"], b'\t'),
+    ];
+    let hint = "write `comma`, `semicolon` or `tab`";
+    d.csv.delimiter = one_of(e, "delimiter", &choices, hint)?;
     Ok(())
 }
 
 pub(super) fn read_decimal(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    d.csv.decimal_comma = match e.value.to_ascii_lowercase().as_str() {
-        "comma" | "," => true,
-        "point" | "dot" | "." => false,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown decimal mark `{}`", e.value),
-                "write `point` or `comma`",
-            ));
-        }
-    };
+    let choices: [(&[&str], bool); 2] = [(&["comma", ","], true), (&["point", "dot", "."], false)];
+    d.csv.decimal_comma = one_of(e, "decimal mark", &choices, "write `point` or `comma`")?;
     d.decimal = Some(e.clone());
     Ok(())
 }
@@ -60,17 +46,13 @@ pub(super) fn read_missing(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecErro
 }
 
 pub(super) fn read_input(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    let summary = match e.value.to_ascii_lowercase().as_str() {
-        "raw" => false,
-        "summary" => true,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown input `{}`", e.value),
-                "write `raw` (one row per observation, the default) or `summary` (n, mean and SD per level)",
-            ));
-        }
-    };
+    let choices: [(&[&str], bool); 2] = [(&["raw"], false), (&["summary"], true)];
+    let summary = one_of(
+        e,
+        "input",
+        &choices,
+        "write `raw` (one row per observation, the default) or `summary` (n, mean and SD per level)",
+    )?;
     d.input = Some((e.clone(), summary));
     Ok(())
 }
@@ -122,17 +104,13 @@ pub(super) fn read_columns(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecErro
 }
 
 pub(super) fn read_layout(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
-    let wide = match e.value.to_ascii_lowercase().as_str() {
-        "long" => false,
-        "wide" => true,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown layout `{}`", e.value),
-                "write `long` (one row per observation, the default) or `wide` (one column per level)",
-            ));
-        }
-    };
+    let choices: [(&[&str], bool); 2] = [(&["long"], false), (&["wide"], true)];
+    let wide = one_of(
+        e,
+        "layout",
+        &choices,
+        "write `long` (one row per observation, the default) or `wide` (one column per level)",
+    )?;
     d.layout = Some((e.clone(), wide));
     Ok(())
 }

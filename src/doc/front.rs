@@ -1,7 +1,7 @@
 //! The front matter's keys: one table, each key with the handler that reads
 //! it, so the hint for an unknown key lists exactly the keys accepted.
 
-use super::block::{SpecError, bad, parse_alpha, parse_compare, parse_decimals};
+use super::block::{SpecError, bad, one_of, parse_alpha, parse_compare, parse_decimals};
 use super::keytable::KeyTable;
 use super::keyvalue::Entry;
 use super::{Document, FrontMatter, ImageFormat, Paper};
@@ -52,17 +52,12 @@ pub const FRONT_MATTER: KeyTable<FrontDraft> = KeyTable {
 };
 
 fn read_figures(e: &Entry, d: &mut FrontDraft) -> Result<(), SpecError> {
-    d.front.figures = match e.value.to_ascii_lowercase().as_str() {
-        "svg" => ImageFormat::Svg,
-        "png" => ImageFormat::Png { dpi: 150 },
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown figure format `{}`", e.value),
-                "write `svg` (the default) or `png`",
-            ));
-        }
-    };
+    let choices: [(&[&str], ImageFormat); 2] = [
+        (&["svg"], ImageFormat::Svg),
+        (&["png"], ImageFormat::Png { dpi: 150 }),
+    ];
+    let hint = "write `svg` (the default) or `png`";
+    d.front.figures = one_of(e, "figure format", &choices, hint)?;
     Ok(())
 }
 
@@ -84,17 +79,9 @@ fn read_dpi(e: &Entry, d: &mut FrontDraft) -> Result<(), SpecError> {
 }
 
 fn read_paper(e: &Entry, d: &mut FrontDraft) -> Result<(), SpecError> {
-    d.front.paper = match e.value.to_ascii_lowercase().as_str() {
-        "a4" => Paper::A4,
-        "letter" => Paper::Letter,
-        _ => {
-            return Err(bad(
-                e,
-                format!("unknown paper size `{}`", e.value),
-                "write `a4` (the default) or `letter`",
-            ));
-        }
-    };
+    let choices: [(&[&str], Paper); 2] = [(&["a4"], Paper::A4), (&["letter"], Paper::Letter)];
+    let hint = "write `a4` (the default) or `letter`";
+    d.front.paper = one_of(e, "paper size", &choices, hint)?;
     Ok(())
 }
 
