@@ -22,6 +22,8 @@ pub struct Diagnostic {
     pub hints: Vec<String>,
     /// Secondary places, e.g. the block that named a broken data file.
     pub notes: Vec<String>,
+    /// Further errors of the same build, in document order after this one.
+    pub also: Vec<Diagnostic>,
 }
 
 impl Diagnostic {
@@ -32,7 +34,30 @@ impl Diagnostic {
             snippet: None,
             hints: Vec::new(),
             notes: Vec::new(),
+            also: Vec::new(),
         }
+    }
+
+    /// One diagnostic carrying every error of a build (the first, with the
+    /// others in `also`); `None` when there are none.
+    pub fn several(errors: Vec<Diagnostic>) -> Option<Diagnostic> {
+        let mut errors = errors.into_iter().flat_map(Diagnostic::each);
+        let mut first = errors.next()?;
+        first.also = errors.collect();
+        Some(first)
+    }
+
+    /// This error and every further one, each on its own.
+    pub fn each(mut self) -> Vec<Diagnostic> {
+        let also = std::mem::take(&mut self.also);
+        std::iter::once(self)
+            .chain(also.into_iter().flat_map(Diagnostic::each))
+            .collect()
+    }
+
+    /// How many errors this diagnostic carries.
+    pub fn count(&self) -> usize {
+        1 + self.also.iter().map(Diagnostic::count).sum::<usize>()
     }
 
     pub fn at(mut self, file: &str, line: Option<usize>, column: Option<usize>) -> Self {
@@ -67,25 +92,20 @@ impl Diagnostic {
         self
     }
 
-    /// `file:line:col: error: message`, one line, for editors and CI logs.
+    /// `file:line:col: error: message`, one line per error, for editors and
+    /// CI logs.
     pub fn short(&self) -> String {
-        match &self.place {
+        let first = match &self.place {
             Some(p) => format!("{}: error: {}", place_text(p), self.message),
             None => format!("error: {}", self.message),
-        }
+        };
+        std::iter::once(first)
+            .chain(self.also.iter().map(Diagnostic::short))
+            .collect::<Vec<_>>()
+            .join("\n")
     }
-}
 
-fn place_text(p: &Place) -> String {
-    match (p.line, p.column) {
-        (Some(l), Some(c)) => format!("{}:{l}:{c}", p.file),
-        (Some(l), None) => format!("{}:{l}", p.file),
-        _ => p.file.clone(),
-    }
-}
-
-impl fmt::Display for Diagnostic {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+    fn write_one(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         writeln!(f, "error: {}", self.message)?;
         if let Some(p) = &self.place {
             let gutter = p.line.map(|l| l.to_string().len()).unwrap_or(1);
@@ -109,6 +129,44 @@ impl fmt::Display for Diagnostic {
             writeln!(f, "  = note: {n}")?;
         }
         Ok(())
+    }
+}
+
+/// Sorts a document's errors by line and column; errors without a place
+/// keep their order after the others.
+pub fn in_document_order(errors: &mut [Diagnostic]) {
+    errors.sort_by_key(|d| {
+        d.place.as_ref().map_or((usize::MAX, usize::MAX), |p| {
+            (p.line.unwrap_or(0), p.column.unwrap_or(0))
+        })
+    });
+}
+
+fn place_text(p: &Place) -> String {
+    match (p.line, p.column) {
+        (Some(l), Some(c)) => format!("{}:{l}:{c}", p.file),
+        (Some(l), None) => format!("{}:{l}", p.file),
+        _ => p.file.clone(),
+    }
+}
+
+/// One error as a compiler shows it; several errors one after another with a
+/// blank line between, then their count (`3 errors in report.md`).
+impl fmt::Display for Diagnostic {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        self.write_one(f)?;
+        if self.also.is_empty() {
+            return Ok(());
+        }
+        for d in self.also.iter().flat_map(|d| d.clone().each()) {
+            writeln!(f)?;
+            d.write_one(f)?;
+        }
+        writeln!(f)?;
+        match &self.place {
+            Some(p) => writeln!(f, "{} errors in {}", self.count(), p.file),
+            None => writeln!(f, "{} errors", self.count()),
+        }
     }
 }
 

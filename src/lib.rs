@@ -30,6 +30,7 @@ pub mod format;
 pub mod fuzzing;
 pub mod outcome;
 pub mod output;
+pub mod plan;
 pub mod provenance;
 pub mod render;
 pub mod results;

@@ -10,7 +10,7 @@ use sheaf::compile::{CACHE_DIR, build_file};
 use sheaf::diag::Diagnostic;
 use sheaf::output::write_outputs;
 use sheaf::render::{FORMATS, Format};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 /// Shown under every subcommand's help.
@@ -129,69 +129,19 @@ fn report(d: &Diagnostic, short: bool) -> ExitCode {
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let short = cli.short_errors;
-    match cli.command {
+    let outcome = match cli.command {
         Command::Build {
             document,
             out,
             to,
             confine,
-        } => {
-            let built = match build_file(&document, to, Some(&out.join(CACHE_DIR)), confine) {
-                Ok(b) => b,
-                Err(d) => return report(&d, short),
-            };
-            eprintln!(
-                "{} block(s): {} computed, {} from the cache",
-                built.blocks,
-                built.recomputed,
-                built.blocks - built.recomputed
-            );
-            for w in &built.warnings {
-                eprintln!("warning: {w}");
-            }
-            match write_outputs(&out, &built) {
-                Ok(paths) => {
-                    for p in paths {
-                        eprintln!("wrote {}", p.display());
-                    }
-                    ExitCode::SUCCESS
-                }
-                Err(d) => report(&d, short),
-            }
-        }
+        } => build(&document, &out, to, confine),
         Command::Verify {
             document,
             out,
             to,
             confine,
-        } => {
-            let format = to
-                .or_else(|| sheaf::verify::format_on_disk(&document, &out))
-                .unwrap_or(Format::Html);
-            // verify recomputes everything: it never trusts the cache.
-            let built = match build_file(&document, format, None, confine) {
-                Ok(b) => b,
-                Err(d) => return report(&d, short),
-            };
-            let drift = match sheaf::verify::verify(&built, &out) {
-                Ok(drift) => drift,
-                Err(d) => return report(&d, short),
-            };
-            let report_path = out.join(&built.report_name);
-            if drift.is_clean() {
-                eprintln!("{} is up to date with its sources", report_path.display());
-                eprint!("{}", drift.account());
-                ExitCode::SUCCESS
-            } else {
-                eprintln!("{} has drifted from its sources:", report_path.display());
-                eprint!("{}", drift.account());
-                eprintln!(
-                    "rebuild with `{}` and review the changes",
-                    sheaf::verify::rebuild_command(&document, &out, format, confine)
-                );
-                ExitCode::from(1)
-            }
-        }
+        } => verify(&document, &out, to, confine),
         Command::Watch {
             document,
             out,
@@ -199,52 +149,93 @@ fn main() -> ExitCode {
             serve,
             port,
             confine,
-        } => {
-            let opts = sheaf::watch::WatchOptions {
-                document,
-                out,
-                format: to,
-                serve: serve.then_some(port),
-                short_errors: short,
-                confine,
-            };
-            match sheaf::watch::run(opts) {
-                Ok(()) => ExitCode::SUCCESS,
-                Err(d) => report(&d, short),
-            }
-        }
-        Command::New { folder } => match sheaf::scaffold::create(&folder) {
-            Ok(files) => {
-                for f in files {
-                    eprintln!("wrote {}", f.display());
-                }
-                eprintln!(
-                    "next: sheaf build {} -o {}",
-                    folder.join("report.md").display(),
-                    folder.join("out").display()
-                );
-                ExitCode::SUCCESS
-            }
-            Err(d) => report(&d, short),
-        },
-        Command::Validate { out } => {
-            let v = sheaf::validate::run();
-            print!("{}", sheaf::validate::text(&v));
-            if let Some(dir) = out {
-                match sheaf::validate::write(&v, &dir) {
-                    Ok(paths) => {
-                        for p in paths {
-                            eprintln!("wrote {}", p.display());
-                        }
-                    }
-                    Err(d) => return report(&d, short),
-                }
-            }
-            if v.failed() == 0 {
-                ExitCode::SUCCESS
-            } else {
-                ExitCode::from(1)
-            }
+        } => sheaf::watch::run(sheaf::watch::WatchOptions {
+            document,
+            out,
+            format: to,
+            serve: serve.then_some(port),
+            short_errors: short,
+            confine,
+        })
+        .map(|()| ExitCode::SUCCESS),
+        Command::New { folder } => new(&folder),
+        Command::Validate { out } => validate(out.as_deref()),
+    };
+    outcome.unwrap_or_else(|d| report(&d, short))
+}
+
+/// `sheaf build`: compile, show the warnings, write the outputs.
+fn build(document: &Path, out: &Path, to: Format, confine: bool) -> Result<ExitCode, Diagnostic> {
+    let built = build_file(document, to, Some(&out.join(CACHE_DIR)), confine)?;
+    eprintln!(
+        "{} block(s): {} computed, {} from the cache",
+        built.blocks,
+        built.recomputed,
+        built.blocks - built.recomputed
+    );
+    for w in &built.warnings {
+        eprintln!("warning: {w}");
+    }
+    for p in write_outputs(out, &built)? {
+        eprintln!("wrote {}", p.display());
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// `sheaf verify`: recompute everything (never trusting the cache) and
+/// compare with the files in `out`; drift exits with 1.
+fn verify(
+    document: &Path,
+    out: &Path,
+    to: Option<Format>,
+    confine: bool,
+) -> Result<ExitCode, Diagnostic> {
+    let format = to
+        .or_else(|| sheaf::verify::format_on_disk(document, out))
+        .unwrap_or(FORMATS[0]);
+    let built = build_file(document, format, None, confine)?;
+    let drift = sheaf::verify::verify(&built, out)?;
+    let report_path = out.join(&built.report_name);
+    if drift.is_clean() {
+        eprintln!("{} is up to date with its sources", report_path.display());
+        eprint!("{}", drift.account());
+        return Ok(ExitCode::SUCCESS);
+    }
+    eprintln!("{} has drifted from its sources:", report_path.display());
+    eprint!("{}", drift.account());
+    eprintln!(
+        "rebuild with `{}` and review the changes",
+        sheaf::verify::rebuild_command(document, out, format, confine)
+    );
+    Ok(ExitCode::from(1))
+}
+
+/// `sheaf new`: a study folder from the invented example.
+fn new(folder: &Path) -> Result<ExitCode, Diagnostic> {
+    for f in sheaf::scaffold::create(folder)? {
+        eprintln!("wrote {}", f.display());
+    }
+    eprintln!(
+        "next: sheaf build {} -o {}",
+        folder.join("report.md").display(),
+        folder.join("out").display()
+    );
+    Ok(ExitCode::SUCCESS)
+}
+
+/// `sheaf validate`: the accuracy suite, optionally written as a report;
+/// any failed check exits with 1.
+fn validate(out: Option<&Path>) -> Result<ExitCode, Diagnostic> {
+    let v = sheaf::validate::run();
+    print!("{}", sheaf::validate::text(&v));
+    if let Some(dir) = out {
+        for p in sheaf::validate::write(&v, dir)? {
+            eprintln!("wrote {}", p.display());
         }
     }
+    Ok(if v.failed() == 0 {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(1)
+    })
 }

@@ -17,6 +17,11 @@ pub trait World {
         let size = bytes.len() as u64;
         Ok((Box::new(std::io::Cursor::new(bytes)), size))
     }
+    /// Whether `path` can be opened, and its size, without reading it: the
+    /// plan stage finds every missing data file before any data are read.
+    fn probe(&self, path: &str) -> std::io::Result<u64> {
+        self.open(path).map(|(_, size)| size)
+    }
     /// How to show `path` in messages (e.g. joined to the document's folder).
     fn display(&self, path: &str) -> String;
     /// Progress for long work; shown only where someone is watching.

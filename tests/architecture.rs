@@ -23,22 +23,24 @@ const LAYERS: &[(&str, u32)] = &[
     // The document and its data.
     ("data", 2),
     ("doc", 3),
+    // The plan: every check that needs no data, before any data are read.
+    ("plan", 4),
     // The outcome hub, then the engines that produce it.
-    ("outcome", 4),
-    ("analysis", 5),
+    ("outcome", 5),
+    ("analysis", 6),
     // Projections of the outcome.
-    ("figure", 6),
-    ("results", 6),
-    ("render", 7),
+    ("figure", 7),
+    ("results", 7),
+    ("render", 8),
     // The driver and the commands.
-    ("compile", 8),
-    ("output", 9),
-    ("fuzzing", 9),
-    ("scaffold", 9),
-    ("verify", 10),
-    ("validate", 10),
-    ("watch", 11),
-    ("main", 12),
+    ("compile", 9),
+    ("output", 10),
+    ("fuzzing", 10),
+    ("scaffold", 10),
+    ("verify", 11),
+    ("validate", 11),
+    ("watch", 12),
+    ("main", 13),
 ];
 
 /// Modules that may import nothing else of the crate.
@@ -55,6 +57,11 @@ const FORBIDDEN: &[(&str, &str, &str)] = &[
         "analysis",
         "the document is read before any analysis",
     ),
+    ("plan", "render", "the plan stage renders nothing"),
+    ("plan", "figure", "the plan stage draws nothing"),
+    ("plan", "results", "the plan stage writes no results"),
+    ("plan", "output", "the plan stage writes nothing"),
+    ("plan", "analysis", "the plan is made before any analysis"),
     ("analysis", "render", "engines produce outcomes, not views"),
     (
         "analysis",

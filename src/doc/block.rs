@@ -1,9 +1,11 @@
 //! Analysis block specifications: the keys of an `anova` block, checked and
 //! typed, each remembering its document line.
 
-use super::formula::{Formula, parse_formula};
+use super::block_checks;
+pub use super::block_keys::{ANOVA, AnovaDraft};
+use super::formula::Formula;
 use super::keyvalue::Entry;
-use crate::data::{CsvFormat, DEFAULT_MISSING, Filter, RowRules, SummaryColumns};
+use crate::data::{CsvFormat, RowRules, SummaryColumns};
 use crate::stats::compare::Method;
 use crate::stats::dunnett::Sides;
 use crate::stats::linear::SsType;
@@ -11,49 +13,6 @@ use crate::stats::linear::SsType;
 /// The block kinds sheaf knows. A fenced block with any other info string is
 /// ordinary code.
 pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
-
-/// Every key an `anova` block accepts.
-pub const ANOVA_KEYS: [&str; 39] = [
-    "id",
-    "data",
-    "model",
-    "compare",
-    "alpha",
-    "levels",
-    "caption",
-    "decimals",
-    "delimiter",
-    "decimal",
-    "missing",
-    "protected",
-    "order",
-    "show",
-    "method",
-    "checks",
-    "control",
-    "sides",
-    "adjust",
-    "input",
-    "columns",
-    "ss",
-    "compare_term",
-    "within",
-    "cells",
-    "block",
-    "plot",
-    "label",
-    "unit",
-    "reference",
-    "layout",
-    "where",
-    "exclude",
-    "labels",
-    "sheet",
-    "range",
-    "acknowledge",
-    "names",
-    "x_axis",
-];
 
 /// Kinds of "check before use" note an author can acknowledge with
 /// `acknowledge:`, and what each covers. Planned exclusions (`where`,
@@ -265,13 +224,29 @@ pub struct SpecError {
     pub hint: Option<String>,
 }
 
-fn bad(entry: &Entry, message: String, hint: impl Into<String>) -> SpecError {
+pub(super) fn bad(entry: &Entry, message: String, hint: impl Into<String>) -> SpecError {
     SpecError {
         line: entry.line,
         column: entry.value_column,
         message,
         hint: Some(hint.into()),
     }
+}
+
+/// The value `entry` names among `choices` (each with its spellings, in
+/// lower case); otherwise "unknown {what} `value`" with `hint`.
+pub(super) fn one_of<T: Copy>(
+    entry: &Entry,
+    what: &str,
+    choices: &[(&[&str], T)],
+    hint: &str,
+) -> Result<T, SpecError> {
+    let v = entry.value.to_ascii_lowercase();
+    choices
+        .iter()
+        .find(|(names, _)| names.contains(&v.as_str()))
+        .map(|(_, t)| *t)
+        .ok_or_else(|| bad(entry, format!("unknown {what} `{}`", entry.value), hint))
 }
 
 /// Document-wide defaults a block falls back on.
@@ -366,50 +341,7 @@ pub fn parse_compare(entry: &Entry) -> Result<Option<Method>, SpecError> {
     ))
 }
 
-/// Reads `columns: n = plots, mean = yield, sd = sd_yield` (or `se = …`).
-fn summary_columns(entry: Option<&Entry>) -> Result<SummaryColumns, SpecError> {
-    let mut c = SummaryColumns {
-        n: "n".into(),
-        mean: "mean".into(),
-        spread: "sd".into(),
-        spread_is_se: false,
-    };
-    let Some(e) = entry else {
-        return Ok(c);
-    };
-    for part in list(&e.value) {
-        let Some((key, column)) = part.split_once('=') else {
-            return Err(bad(
-                e,
-                format!("expected `name = column`, found `{part}`"),
-                "for example `columns: n = plots, mean = yield, sd = yield_sd`",
-            ));
-        };
-        let column = column.trim().to_string();
-        match key.trim().to_ascii_lowercase().as_str() {
-            "n" => c.n = column,
-            "mean" => c.mean = column,
-            "sd" => {
-                c.spread = column;
-                c.spread_is_se = false;
-            }
-            "se" => {
-                c.spread = column;
-                c.spread_is_se = true;
-            }
-            other => {
-                return Err(bad(
-                    e,
-                    format!("unknown summary column `{other}`"),
-                    "name the columns for n, mean, and sd (or se)",
-                ));
-            }
-        }
-    }
-    Ok(c)
-}
-
-fn parse_yes_no(entry: &Entry) -> Result<bool, SpecError> {
+pub(super) fn parse_yes_no(entry: &Entry) -> Result<bool, SpecError> {
     match entry.value.to_ascii_lowercase().as_str() {
         "yes" | "true" | "on" => Ok(true),
         "no" | "false" | "off" => Ok(false),
@@ -421,7 +353,7 @@ fn parse_yes_no(entry: &Entry) -> Result<bool, SpecError> {
     }
 }
 
-fn list(value: &str) -> Vec<String> {
+pub(super) fn list(value: &str) -> Vec<String> {
     value
         .split(',')
         .map(|s| s.trim().to_string())
@@ -429,648 +361,20 @@ fn list(value: &str) -> Vec<String> {
         .collect()
 }
 
-/// Whether a `where` condition joins two comparisons with `or` (a value that
-/// is itself the word "or", as in `state == or`, is not a join).
-fn joins_with_or(part: &str) -> bool {
-    let lower = part.to_ascii_lowercase();
-    let is_comparison = |s: &str| ["==", "!=", "<", ">"].iter().any(|op| s.contains(op));
-    lower
-        .match_indices(" or ")
-        .any(|(i, _)| is_comparison(&lower[..i]) && is_comparison(&lower[i + 4..]))
-}
-
-/// Checks an `anova` block's entries. `fence_line` is the opening fence's line.
+/// Checks an `anova` block's entries. `fence_line` is the opening fence's
+/// line. Each key is read by its handler in the table `ANOVA`, then the keys
+/// are checked against each other; every problem is returned.
 pub fn anova_spec(
     entries: &[Entry],
     fence_line: usize,
     defaults: Defaults,
-) -> Result<AnovaSpec, SpecError> {
-    for e in entries {
-        if !ANOVA_KEYS.contains(&e.key.as_str()) {
-            let hint = match crate::diag::nearest(&e.key, ANOVA_KEYS) {
-                Some(k) => format!("did you mean `{k}`?"),
-                None => format!("an anova block takes {}", ANOVA_KEYS.join(", ")),
-            };
-            return Err(SpecError {
-                line: e.line,
-                column: e.key_column,
-                message: format!("unknown key `{}`", e.key),
-                hint: Some(hint),
-            });
-        }
+) -> Result<AnovaSpec, Vec<SpecError>> {
+    let mut draft = AnovaDraft::default();
+    let errors = ANOVA.apply(entries, &mut draft);
+    if !errors.is_empty() {
+        return Err(errors);
     }
-    let get = |key: &str| entries.iter().find(|e| e.key == key);
-    let required = |key: &str, example: &str| {
-        get(key).ok_or_else(|| SpecError {
-            line: fence_line,
-            column: 1,
-            message: format!("this anova block has no `{key}`"),
-            hint: Some(format!("add a line such as `{example}`")),
-        })
-    };
-    let located = |e: &Entry| Located {
-        value: e.value.clone(),
-        line: e.line,
-        column: e.value_column,
-    };
-
-    let id = get("id").map(parse_id).transpose()?;
-    let data_entry = required("data", "data: plants.csv")?;
-    if data_entry.value.is_empty() {
-        return Err(bad(
-            data_entry,
-            "`data` is empty".into(),
-            "name a CSV file relative to the document's folder",
-        ));
-    }
-    let model_entry = required("model", "model: weight ~ group")?;
-    let formula = parse_formula(&model_entry.value).map_err(|e| SpecError {
-        line: model_entry.line,
-        column: model_entry.value_column + e.offset,
-        message: e.message,
-        hint: Some(e.hint),
-    })?;
-    let method = match get("method") {
-        None => Omnibus::Anova,
-        Some(e) => match e.value.to_ascii_lowercase().as_str() {
-            "anova" => Omnibus::Anova,
-            "welch" => Omnibus::Welch,
-            "ranks" | "kruskal" => Omnibus::Ranks,
-            _ => {
-                return Err(bad(
-                    e,
-                    format!("unknown method `{}`", e.value),
-                    "write `anova` (the F test), `welch` (unequal variances) or `ranks` (Kruskal-Wallis)",
-                ));
-            }
-        },
-    };
-    // Each omnibus test has the comparison procedures that share its assumptions.
-    let compare = match (get("compare"), method) {
-        (Some(e), _) => {
-            let chosen = parse_compare(e)?;
-            let fits = match (method, chosen) {
-                (_, None) => true,
-                (Omnibus::Welch, Some(m)) => m == Method::GamesHowell,
-                (Omnibus::Ranks, Some(m)) => m == Method::Dunn,
-                (Omnibus::Anova, Some(m)) => !matches!(m, Method::GamesHowell | Method::Dunn),
-            };
-            if !fits {
-                let hint = match method {
-                    Omnibus::Welch => "with `method: welch` use `compare: games-howell` (or none)",
-                    Omnibus::Ranks => "with `method: ranks` use `compare: dunn` (or none)",
-                    Omnibus::Anova => {
-                        "Games-Howell goes with `method: welch`, Dunn with `method: ranks`"
-                    }
-                };
-                return Err(bad(
-                    e,
-                    format!(
-                        "`compare: {}` does not fit `method: {}`",
-                        e.value,
-                        method.key()
-                    ),
-                    hint,
-                ));
-            }
-            chosen
-        }
-        (None, Omnibus::Welch) => Some(Method::GamesHowell),
-        (None, Omnibus::Ranks) => Some(Method::Dunn),
-        (None, Omnibus::Anova) => defaults.compare,
-    };
-    let alpha = get("alpha").map(parse_alpha).transpose()?;
-    let decimals = get("decimals").map(parse_decimals).transpose()?;
-    let levels = match get("levels") {
-        Some(e) => {
-            let names = list(&e.value);
-            if names.len() < 2 {
-                return Err(bad(
-                    e,
-                    "`levels` must list at least two levels".into(),
-                    "separate level names with commas: `levels: ctrl, trt1, trt2`",
-                ));
-            }
-            if let Some(dup) = names
-                .iter()
-                .enumerate()
-                .find(|(i, n)| names[..*i].contains(n))
-                .map(|(_, n)| n)
-            {
-                return Err(bad(
-                    e,
-                    format!("`levels` lists `{dup}` twice"),
-                    "list each level once",
-                ));
-            }
-            Some(Located {
-                value: names,
-                line: e.line,
-                column: e.value_column,
-            })
-        }
-        None => None,
-    };
-    let mut csv = CsvFormat::default();
-    if let Some(e) = get("delimiter") {
-        csv.delimiter = match e.value.to_ascii_lowercase().as_str() {
-            "comma" | "," => b',',
-            "semicolon" | ";" => b';',
-            "tab" | "\\t" => b'\t',
-            _ => {
-                return Err(bad(
-                    e,
-                    format!("unknown delimiter `{}`", e.value),
-                    "write `comma`, `semicolon` or `tab`",
-                ));
-            }
-        };
-    }
-    if let Some(e) = get("decimal") {
-        csv.decimal_comma = match e.value.to_ascii_lowercase().as_str() {
-            "comma" | "," => true,
-            "point" | "dot" | "." => false,
-            _ => {
-                return Err(bad(
-                    e,
-                    format!("unknown decimal mark `{}`", e.value),
-                    "write `point` or `comma`",
-                ));
-            }
-        };
-        if csv.decimal_comma && csv.delimiter == b',' {
-            return Err(bad(
-                e,
-                "a decimal comma needs another field delimiter".into(),
-                "add `delimiter: semicolon` (or tab)",
-            ));
-        }
-    }
-    if let Some(e) = get("missing") {
-        csv.missing = e.value.split(',').map(|s| s.trim().to_string()).collect();
-        if !csv.missing.iter().any(String::is_empty) {
-            csv.missing.push(String::new());
-        }
-    } else {
-        csv.missing = DEFAULT_MISSING.iter().map(|s| s.to_string()).collect();
-    }
-    let protected = get("protected")
-        .map(parse_yes_no)
-        .transpose()?
-        .unwrap_or(true);
-    if let Some(e) = get("protected")
-        && compare != Some(Method::Lsd)
-    {
-        return Err(bad(
-            e,
-            "`protected` applies only to `compare: lsd`".into(),
-            "remove it, or choose `compare: lsd`",
-        ));
-    }
-    let order = match get("order") {
-        None => Order::Mean,
-        Some(e) => match e.value.to_ascii_lowercase().as_str() {
-            "mean" | "means" => Order::Mean,
-            "levels" | "data" => Order::Levels,
-            _ => {
-                return Err(bad(
-                    e,
-                    format!("unknown order `{}`", e.value),
-                    "write `mean` (highest first) or `levels` (as listed or as in the data)",
-                ));
-            }
-        },
-    };
-    let show = match get("show") {
-        None => Show {
-            anova: true,
-            means: true,
-            pairs: true,
-        },
-        Some(e) => {
-            let mut s = Show {
-                anova: false,
-                means: false,
-                pairs: false,
-            };
-            for item in list(&e.value) {
-                match item.as_str() {
-                    "anova" => s.anova = true,
-                    "means" => s.means = true,
-                    "pairs" => s.pairs = true,
-                    "none" => {}
-                    other => {
-                        let hint = match crate::diag::nearest(other, ["anova", "means", "pairs", "none"]) {
-                            Some(n) => format!("did you mean `{n}`? Choose from anova, means, pairs, or none"),
-                            None => "choose from anova, means, pairs, or none (prose can still quote the results)".into(),
-                        };
-                        return Err(bad(e, format!("unknown table `{other}` in `show`"), hint));
-                    }
-                }
-            }
-            s
-        }
-    };
-    let checks = match get("checks") {
-        None => CheckSet::All,
-        Some(e) => match e.value.to_ascii_lowercase().as_str() {
-            "all" | "yes" | "show" => CheckSet::All,
-            "none" | "no" | "hide" => CheckSet::Hidden,
-            "summary" => CheckSet::Summary,
-            _ => {
-                return Err(bad(
-                    e,
-                    format!("unknown `checks` value `{}`", e.value),
-                    "write `all` (the default), `none` to hide the table (the checks stay in the results file), or `summary` for only the checks per-level summaries allow",
-                ));
-            }
-        },
-    };
-    let control = get("control").map(located);
-    if compare == Some(Method::Dunnett) && control.is_none() {
-        let e = get("compare").map_or(fence_line, |e| e.line);
-        return Err(SpecError {
-            line: e,
-            column: 1,
-            message: "Dunnett's comparisons need a control level".into(),
-            hint: Some("add `control: <level>`, the level every treatment is compared with".into()),
-        });
-    }
-    if let Some(e) = get("control")
-        && compare != Some(Method::Dunnett)
-    {
-        return Err(bad(
-            e,
-            "`control` applies only to `compare: dunnett`".into(),
-            "remove it, or choose `compare: dunnett`",
-        ));
-    }
-    let sides = match get("sides") {
-        None => Sides::Two,
-        Some(e) => {
-            if compare != Some(Method::Dunnett) {
-                return Err(bad(
-                    e,
-                    "`sides` applies only to `compare: dunnett`".into(),
-                    "the other procedures are two-sided",
-                ));
-            }
-            match e.value.to_ascii_lowercase().as_str() {
-                "2" | "two" | "both" => Sides::Two,
-                "1" | "greater" | "above" => Sides::Greater,
-                "less" | "below" => Sides::Less,
-                _ => {
-                    return Err(bad(
-                        e,
-                        format!("unknown `sides` value `{}`", e.value),
-                        "write `2` (two-sided), `1` or `greater` (treatments above the control), or `less`",
-                    ));
-                }
-            }
-        }
-    };
-    let adjust = match get("adjust") {
-        None => Method::Holm,
-        Some(e) => {
-            if compare != Some(Method::Dunn) {
-                return Err(bad(
-                    e,
-                    "`adjust` applies only to `compare: dunn`".into(),
-                    "the other procedures carry their own adjustment",
-                ));
-            }
-            match e.value.to_ascii_lowercase().as_str() {
-                "holm" => Method::Holm,
-                "bonferroni" => Method::Bonferroni,
-                _ => {
-                    return Err(bad(
-                        e,
-                        format!("unknown adjustment `{}`", e.value),
-                        "write `holm` (the default) or `bonferroni`",
-                    ));
-                }
-            }
-        }
-    };
-    let summary = match get("input").map(|e| (e, e.value.to_ascii_lowercase())) {
-        None => None,
-        Some((_, v)) if v == "raw" => None,
-        Some((_, v)) if v == "summary" => Some(summary_columns(get("columns"))?),
-        Some((e, _)) => {
-            return Err(bad(
-                e,
-                format!("unknown input `{}`", e.value),
-                "write `raw` (one row per observation, the default) or `summary` (n, mean and SD per level)",
-            ));
-        }
-    };
-    if summary.is_none()
-        && let Some(e) = get("columns")
-    {
-        return Err(bad(
-            e,
-            "`columns` applies only to `input: summary`".into(),
-            "add `input: summary`, or remove `columns`",
-        ));
-    }
-    let ss_type = match get("ss") {
-        None => None,
-        Some(e) => Some(Located {
-            value: match e.value.trim().to_ascii_uppercase().as_str() {
-                "1" | "I" => SsType::I,
-                "2" | "II" => SsType::II,
-                "3" | "III" => SsType::III,
-                _ => {
-                    return Err(bad(
-                        e,
-                        format!("unknown sums-of-squares type `{}`", e.value),
-                        "write 1 (sequential), 2 or 3",
-                    ));
-                }
-            },
-            line: e.line,
-            column: e.value_column,
-        }),
-    };
-    let named_list = |key: &str| {
-        get(key).map(|e| Located {
-            value: list(&e.value),
-            line: e.line,
-            column: e.value_column,
-        })
-    };
-    let cells = match get("cells") {
-        None => None,
-        Some(e) => Some(Located {
-            value: parse_yes_no(e)?,
-            line: e.line,
-            column: e.value_column,
-        }),
-    };
-    let factor_count = formula.factors().len();
-    for key in ["ss", "compare_term", "within", "cells"] {
-        if let (Some(e), true) = (get(key), factor_count < 2) {
-            return Err(bad(
-                e,
-                format!("`{key}` applies to models with two or more factors"),
-                "write the model as `y ~ A * B` (or `y ~ treatment + block`), or remove the key",
-            ));
-        }
-    }
-    let mut plots = PlotSpec {
-        kinds: Vec::new(),
-        label: get("label").map(|e| e.value.clone()),
-        unit: get("unit").map(|e| e.value.clone()),
-        reference: None,
-        names: Vec::new(),
-        x_axis: None,
-    };
-    if let Some(e) = get("plot") {
-        for item in list(&e.value) {
-            match PlotKind::ALL
-                .iter()
-                .find(|k| k.key() == item.to_ascii_lowercase())
-            {
-                Some(k) if !plots.kinds.contains(k) => plots.kinds.push(*k),
-                Some(_) => {}
-                None => {
-                    let keys: Vec<&str> = PlotKind::ALL.iter().map(|k| k.key()).collect();
-                    let hint = match crate::diag::nearest(&item, keys.iter().copied()) {
-                        Some(n) => format!("did you mean `{n}`? The kinds are {}", keys.join(", ")),
-                        None => format!("the kinds are {}", keys.join(", ")),
-                    };
-                    return Err(bad(e, format!("unknown plot kind `{item}`"), hint));
-                }
-            }
-        }
-        if plots.kinds.contains(&PlotKind::Interaction) && factor_count < 2 {
-            return Err(bad(
-                e,
-                "`plot: interaction` needs a model with two or more factors".into(),
-                "use box, means or strip for one factor",
-            ));
-        }
-    }
-    if let Some(e) = get("reference") {
-        plots.reference = Some(
-            e.value
-                .trim()
-                .parse::<f64>()
-                .ok()
-                .filter(|v| v.is_finite())
-                .ok_or_else(|| {
-                    bad(
-                        e,
-                        format!("`reference` must be a number, found `{}`", e.value),
-                        "for example `reference: 0`",
-                    )
-                })?,
-        );
-    }
-    let mut rows = RowRules::default();
-    if let Some(e) = get("layout") {
-        match e.value.to_ascii_lowercase().as_str() {
-            "long" => {}
-            "wide" => {
-                let f = &formula;
-                if f.terms.len() != 1 || f.terms[0].factors.len() != 1 {
-                    return Err(bad(
-                        e,
-                        "`layout: wide` reads one factor: one column per level".into(),
-                        "write the model as `response ~ factor`",
-                    ));
-                }
-                rows.wide = Some((f.terms[0].factors[0].clone(), f.response.clone()));
-            }
-            _ => {
-                return Err(bad(
-                    e,
-                    format!("unknown layout `{}`", e.value),
-                    "write `long` (one row per observation, the default) or `wide` (one column per level)",
-                ));
-            }
-        }
-    }
-    if let Some(e) = get("where") {
-        for part in e.value.split(" and ") {
-            let part = part.trim();
-            if joins_with_or(part) {
-                return Err(bad(
-                    e,
-                    format!(
-                        "`where` joins conditions with `and` only; `or` is not supported (in `{part}`)"
-                    ),
-                    "for `site == a or site == b`, leave out the other values with `!=` joined by `and` (`site != c and site != d`), or mark the rows to keep in a column of the data and write `where: keep == yes`",
-                ));
-            }
-            let op = ["==", "!=", "<=", ">=", "<", ">"]
-                .into_iter()
-                .find(|op| part.contains(op))
-                .ok_or_else(|| {
-                    bad(
-                        e,
-                        format!("cannot read the condition `{part}`"),
-                        "write `column == value` (or !=, <, <=, >, >=); join conditions with `and`",
-                    )
-                })?;
-            let (column, value) = part.split_once(op).unwrap_or((part, ""));
-            let (column, value) = (
-                column.trim().trim_matches('`'),
-                value.trim().trim_matches('"'),
-            );
-            if column.is_empty() || value.is_empty() {
-                return Err(bad(
-                    e,
-                    format!("cannot read the condition `{part}`"),
-                    "write `column == value`, for example `where: site == north`",
-                ));
-            }
-            rows.filters.push(Filter {
-                column: column.to_string(),
-                op: op.to_string(),
-                value: value.to_string(),
-            });
-        }
-    }
-    if let Some(e) = get("exclude") {
-        let (lines, reason) = match e.value.split_once(':') {
-            Some((l, r)) => (l, r.trim().to_string()),
-            None => (e.value.as_str(), String::new()),
-        };
-        if reason.is_empty() {
-            return Err(bad(
-                e,
-                "`exclude` needs a reason".into(),
-                "write the data lines, a colon and the reason: `exclude: 14, 27: tray knocked over`",
-            ));
-        }
-        for item in list(lines) {
-            let line = item.parse::<usize>().map_err(|_| {
-                bad(
-                    e,
-                    format!("`{item}` is not a data line number"),
-                    "give line numbers as in the data file, e.g. `exclude: 14, 27: reason`",
-                )
-            })?;
-            rows.exclude.push((line, reason.clone()));
-        }
-    }
-    let mut labels = Vec::new();
-    if let Some(e) = get("labels") {
-        for part in list(&e.value) {
-            let Some((from, to)) = part.split_once('=') else {
-                return Err(bad(
-                    e,
-                    format!("expected `level = label`, found `{part}`"),
-                    "for example `labels: ctrl = Control, trt1 = Treatment 1`",
-                ));
-            };
-            labels.push((from.trim().to_string(), to.trim().to_string()));
-        }
-    }
-    let mut acknowledge = Vec::new();
-    if let Some(e) = get("acknowledge") {
-        for kind in list(&e.value) {
-            if !NOTE_KINDS.iter().any(|(k, _)| *k == kind) {
-                let known: Vec<&str> = NOTE_KINDS.iter().map(|(k, _)| *k).collect();
-                let hint = match crate::diag::nearest(&kind, known.iter().copied()) {
-                    Some(k) => format!("did you mean `{k}`? (kinds: {})", known.join(", ")),
-                    None => format!("the kinds are {}", known.join(", ")),
-                };
-                return Err(bad(e, format!("`{kind}` is not a kind of note"), hint));
-            }
-            acknowledge.push(kind);
-        }
-    }
-    let mut names = Vec::new();
-    if let Some(e) = get("names") {
-        for part in list(&e.value) {
-            let Some((from, to)) = part.split_once('=') else {
-                return Err(bad(
-                    e,
-                    format!("expected `column = display name`, found `{part}`"),
-                    "for example `names: n_rate = Nitrogen rate, variety = Variety`",
-                ));
-            };
-            let from = from.trim();
-            if from != formula.response && !formula.factors().contains(&from) {
-                return Err(bad(
-                    e,
-                    format!("`{from}` is neither the response nor a factor of the model"),
-                    format!(
-                        "name columns of the model: {}",
-                        std::iter::once(formula.response.as_str())
-                            .chain(formula.factors())
-                            .collect::<Vec<_>>()
-                            .join(", ")
-                    ),
-                ));
-            }
-            names.push((from.to_string(), to.trim().to_string()));
-        }
-    }
-    plots.names = names;
-    if let Some(e) = get("x_axis") {
-        if factor_count < 2 || !formula.factors().contains(&e.value.as_str()) {
-            return Err(bad(
-                e,
-                format!(
-                    "`x_axis` must name a factor of a model with two or more factors, found `{}`",
-                    e.value
-                ),
-                format!("the factors are {}", formula.factors().join(", ")),
-            ));
-        }
-        plots.x_axis = Some(e.value.clone());
-    }
-    for (key, reader) in crate::data::reader::foreign_keys(&data_entry.value) {
-        if let Some(e) = get(key) {
-            return Err(bad(
-                e,
-                format!(
-                    "`{key}` applies to {} data (.xlsx, .xls, .ods)",
-                    reader.name()
-                ),
-                "remove it, or point `data` at the workbook",
-            ));
-        }
-    }
-    Ok(AnovaSpec {
-        acknowledge,
-        sheet: get("sheet").map(|e| e.value.clone()),
-        range: get("range").map(|e| e.value.clone()),
-        rows,
-        labels,
-        labels_at: get("labels").map(|e| (e.line, e.value_column)),
-        plots,
-        ss_type,
-        compare_terms: named_list("compare_term"),
-        within: get("within").map(located),
-        cells,
-        blocks: named_list("block"),
-        summary,
-        method,
-        checks,
-        control,
-        sides,
-        adjust,
-        id,
-        data: located(data_entry),
-        model: Located {
-            value: formula,
-            line: model_entry.line,
-            column: model_entry.value_column,
-        },
-        compare,
-        alpha,
-        levels,
-        caption: get("caption").map(|e| e.value.clone()),
-        decimals,
-        csv,
-        protected,
-        order,
-        show,
-    })
+    block_checks::resolve(draft, fence_line, defaults)
 }
 
 #[cfg(test)]

@@ -23,7 +23,7 @@ fn a_full_block() {
 #[test]
 fn unknown_key_suggests_the_nearest() {
     let e = parse_entries("data: a.csv\nmodel: y ~ g\ncompar: tukey", 10).expect("entries");
-    let err = anova_spec(&e, 9, DEFAULTS).unwrap_err();
+    let err = &anova_spec(&e, 9, DEFAULTS).unwrap_err()[0];
     assert_eq!(err.line, 12);
     assert_eq!(err.hint.as_deref(), Some("did you mean `compare`?"));
 }
@@ -31,6 +31,6 @@ fn unknown_key_suggests_the_nearest() {
 #[test]
 fn missing_model_points_at_the_fence() {
     let e = parse_entries("data: a.csv", 10).expect("entries");
-    let err = anova_spec(&e, 9, DEFAULTS).unwrap_err();
+    let err = &anova_spec(&e, 9, DEFAULTS).unwrap_err()[0];
     assert_eq!(err.line, 9);
 }

@@ -6,7 +6,13 @@
 //! closing `---`.
 
 pub mod block;
+mod block_checks;
+mod block_display;
+pub mod block_keys;
+mod block_rows;
 pub mod formula;
+mod front;
+pub mod keytable;
 pub mod keyvalue;
 pub mod markdown;
 pub mod power;
@@ -14,10 +20,8 @@ pub mod power;
 use crate::diag::Diagnostic;
 use crate::source::LineIndex;
 use crate::stats::compare::Method;
-use block::{
-    AnovaSpec, BLOCK_KINDS, Defaults, SpecError, anova_spec, parse_alpha, parse_compare,
-    parse_decimals,
-};
+use block::{AnovaSpec, BLOCK_KINDS, Defaults, SpecError, anova_spec};
+pub use front::FRONT_MATTER;
 use keyvalue::{Entry, EntryError, parse_entries};
 use markdown::{Expression, find_expressions, scan};
 use power::{PowerSpec, power_spec};
@@ -29,12 +33,6 @@ pub enum ImageFormat {
     Svg,
     Png { dpi: u32 },
 }
-
-/// Keys accepted in the front matter.
-pub const FRONT_MATTER_KEYS: [&str; 10] = [
-    "title", "author", "date", "alpha", "decimals", "compare", "figures", "dpi", "paper",
-    "contents",
-];
 
 /// Page size of the printed HTML report.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
@@ -134,6 +132,9 @@ pub struct Document {
     pub body_start: usize,
     pub blocks: Vec<Block>,
     pub expressions: Vec<Expression>,
+    /// The ids of blocks left out because their keys had errors (`None`
+    /// when a block's entries could not be read at all).
+    pub skipped: Vec<Option<String>>,
 }
 
 impl Document {
@@ -149,7 +150,30 @@ impl Document {
             .snippet(self.lines.line_text(&self.source, line))
     }
 
-    fn spec_error(&self, e: SpecError) -> Diagnostic {
+    /// Prose that quotes `head` as a block when no block has that id; `ids`
+    /// are the document's block ids.
+    pub fn not_a_block_id(
+        &self,
+        head: &str,
+        ids: &[&str],
+        (line, column): (usize, usize),
+    ) -> Diagnostic {
+        let d = self.error_at(
+            line,
+            Some(column),
+            format!("`{head}` is not the id of an analysis block"),
+        );
+        match crate::diag::nearest(head, ids.iter().copied()) {
+            Some(n) => d.hint(format!("did you mean `{n}`?")),
+            None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
+            None => d.hint(format!(
+                "the blocks in this document are {}",
+                ids.join(", ")
+            )),
+        }
+    }
+
+    pub(crate) fn spec_error(&self, e: SpecError) -> Diagnostic {
         let mut d = self.error_at(e.line, Some(e.column), e.message);
         if let Some(h) = e.hint {
             d = d.hint(h);
@@ -184,8 +208,20 @@ fn normalize_lone_cr(source: String) -> String {
     String::from_utf8(bytes).unwrap_or_default()
 }
 
-/// Parses and checks a document. `name` is used only in messages.
+/// Parses and checks a document. `name` is used only in messages. Every
+/// problem is reported, in document order, in one diagnostic.
 pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic> {
+    let (doc, errors) = read_document(name, source);
+    match Diagnostic::several(errors) {
+        Some(d) => Err(d),
+        None => Ok(doc),
+    }
+}
+
+/// Parses a document and collects every problem, in document order. A block
+/// whose keys have errors is left out of `blocks` (and noted in `skipped`);
+/// the other blocks are still checked.
+pub fn read_document(name: &str, source: String) -> (Document, Vec<Diagnostic>) {
     let source = normalize_lone_cr(source);
     let lines = LineIndex::new(&source);
     let mut doc = Document {
@@ -196,68 +232,115 @@ pub fn parse_document(name: &str, source: String) -> Result<Document, Diagnostic
         body_start: 0,
         blocks: Vec::new(),
         expressions: Vec::new(),
+        skipped: Vec::new(),
     };
-    let (front_entries, body_start) = split_front_matter(&doc)?;
+    let mut errors = Vec::new();
+    let (front_entries, body_start) = match split_front_matter(&doc) {
+        Ok(Section { entries, end }) => match entries {
+            Ok(entries) => (entries, end),
+            Err(d) => {
+                errors.push(d);
+                (Vec::new(), end)
+            }
+        },
+        // Everything would be front matter: nothing else can be checked.
+        Err(d) => return (doc, vec![d]),
+    };
     doc.body_start = body_start;
-    doc.front = front_matter(&doc, &front_entries)?;
-    let defaults = Defaults {
-        compare: doc.front.compare,
-    };
+    let (front, front_errors) = front::front_matter(&doc, &front_entries);
+    doc.front = front;
+    errors.extend(front_errors);
 
     let found = scan(&doc.source, body_start, |k| BLOCK_KINDS.contains(&k));
     if let Some(u) = &found.unclosed {
-        return Err(unclosed_fence_error(&doc, u));
+        errors.push(unclosed_fence_error(&doc, u));
     }
-    let mut blocks = Vec::new();
+    let defaults = Defaults {
+        compare: doc.front.compare,
+    };
     for (i, fenced) in found.blocks.iter().enumerate() {
-        let line = doc.lines.line(fenced.range.start);
-        if fenced.nested {
-            return Err(doc
-                .error_at(
-                    line,
-                    None,
-                    format!("an `{}` block inside a list or quote", fenced.kind),
-                )
-                .hint(
-                    "move the analysis block to the top level of the document (no indentation)",
-                ));
+        match block_of(&doc, i, fenced, defaults) {
+            Ok(block) => match duplicate_id(&doc, &block) {
+                Some(d) => errors.push(d),
+                None => doc.blocks.push(block),
+            },
+            Err((id, block_errors)) => {
+                doc.skipped.push(id);
+                errors.extend(block_errors);
+            }
         }
-        let first_line = doc.lines.line(fenced.body_start);
-        let entries = parse_entries(&fenced.body, first_line).map_err(|e| doc.entry_error(e))?;
-        let spec = match fenced.kind.as_str() {
-            "power" => BlockSpec::Power(power_spec(&entries, line).map_err(|e| doc.spec_error(e))?),
-            _ => BlockSpec::Anova(Box::new(
-                anova_spec(&entries, line, defaults).map_err(|e| doc.spec_error(e))?,
-            )),
-        };
-        let id = spec
-            .id()
-            .map_or_else(|| format!("block{}", i + 1), |l| l.value.clone());
-        if let Some(prev) = blocks.iter().find(|b: &&Block| b.id == id) {
-            let at = spec.id().map_or(line, |l| l.line);
-            return Err(doc
-                .error_at(at, None, format!("the id `{id}` is already used"))
-                .hint(format!(
-                    "the block on line {} has this id; ids must be unique in a document",
-                    prev.line
-                )));
-        }
-        blocks.push(Block {
-            id,
-            line,
-            range: fenced.range.clone(),
-            spec,
-        });
     }
     let mut skip: Vec<Range<usize>> = found.code.clone();
-    skip.extend(blocks.iter().map(|b| b.range.clone()));
-    doc.expressions = find_expressions(&doc.source, body_start, &skip).map_err(|u| {
-        let (line, col) = doc.lines.line_col(&doc.source, u.offset);
-        doc.error_at(line, Some(col), "`{{` is never closed by `}}`")
-            .hint("close the expression on the same paragraph, e.g. `{{ growth.p | pvalue }}`; to show braces literally, put them in `code`")
+    skip.extend(found.blocks.iter().map(|b| b.range.clone()));
+    match find_expressions(&doc.source, body_start, &skip) {
+        Ok(expressions) => doc.expressions = expressions,
+        Err(u) => {
+            let (line, col) = doc.lines.line_col(&doc.source, u.offset);
+            errors.push(doc.error_at(line, Some(col), "`{{` is never closed by `}}`")
+                .hint("close the expression on the same paragraph, e.g. `{{ growth.p | pvalue }}`; to show braces literally, put them in `code`"));
+        }
+    }
+    crate::diag::in_document_order(&mut errors);
+    (doc, errors)
+}
+
+/// A block left out, with its id when known, and its problems.
+type Skipped = (Option<String>, Vec<Diagnostic>);
+
+/// Reads one fenced analysis block: its entries, then its kind's keys.
+fn block_of(
+    doc: &Document,
+    index: usize,
+    fenced: &markdown::FencedBlock,
+    defaults: Defaults,
+) -> Result<Block, Skipped> {
+    let line = doc.lines.line(fenced.range.start);
+    if fenced.nested {
+        let d = doc
+            .error_at(
+                line,
+                None,
+                format!("an `{}` block inside a list or quote", fenced.kind),
+            )
+            .hint("move the analysis block to the top level of the document (no indentation)");
+        return Err((None, vec![d]));
+    }
+    let first_line = doc.lines.line(fenced.body_start);
+    let entries =
+        parse_entries(&fenced.body, first_line).map_err(|e| (None, vec![doc.entry_error(e)]))?;
+    let spec = match fenced.kind.as_str() {
+        "power" => power_spec(&entries, line).map(BlockSpec::Power),
+        _ => anova_spec(&entries, line, defaults).map(|s| BlockSpec::Anova(Box::new(s))),
+    };
+    let positional = || format!("block{}", index + 1);
+    let spec = spec.map_err(|errors| {
+        let id = entries
+            .iter()
+            .find(|e| e.key == "id")
+            .map_or_else(positional, |e| e.value.clone());
+        let errors = errors.into_iter().map(|e| doc.spec_error(e)).collect();
+        (Some(id), errors)
     })?;
-    doc.blocks = blocks;
-    Ok(doc)
+    let id = spec.id().map_or_else(positional, |l| l.value.clone());
+    Ok(Block {
+        id,
+        line,
+        range: fenced.range.clone(),
+        spec,
+    })
+}
+
+/// An id already used by an earlier block of the document.
+fn duplicate_id(doc: &Document, block: &Block) -> Option<Diagnostic> {
+    let prev = doc.blocks.iter().find(|b| b.id == block.id)?;
+    let at = block.spec.id().map_or(block.line, |l| l.line);
+    Some(
+        doc.error_at(at, None, format!("the id `{}` is already used", block.id))
+            .hint(format!(
+                "the block on line {} has this id; ids must be unique in a document",
+                prev.line
+            )),
+    )
 }
 
 /// A fence whose closing line is missing: it would swallow the rest of the
@@ -279,131 +362,38 @@ fn unclosed_fence_error(doc: &Document, u: &markdown::UnclosedFence) -> Diagnost
     ))
 }
 
-/// Returns the front-matter entries and where the body starts.
-fn split_front_matter(doc: &Document) -> Result<(Vec<Entry>, usize), Diagnostic> {
+/// The front matter's entries (or the problem reading them) and the offset
+/// where the body starts.
+struct Section {
+    entries: Result<Vec<Entry>, Diagnostic>,
+    end: usize,
+}
+
+/// Finds the front matter; an error only when it is never closed.
+fn split_front_matter(doc: &Document) -> Result<Section, Diagnostic> {
     let text = &doc.source;
     let first = text.lines().next().unwrap_or("");
     if first.trim_end() != "---" {
-        return Ok((Vec::new(), 0));
+        return Ok(Section {
+            entries: Ok(Vec::new()),
+            end: 0,
+        });
     }
     let open_len = text.find('\n').map_or(text.len(), |i| i + 1);
     let mut offset = open_len;
     for line in text[open_len..].split_inclusive('\n') {
         if line.trim_end() == "---" {
             let inner = &text[open_len..offset];
-            let entries = parse_entries(inner, 2).map_err(|e| doc.entry_error(e))?;
-            return Ok((entries, offset + line.len()));
+            return Ok(Section {
+                entries: parse_entries(inner, 2).map_err(|e| doc.entry_error(e)),
+                end: offset + line.len(),
+            });
         }
         offset += line.len();
     }
     Err(doc
         .error_at(1, Some(1), "the front matter is never closed")
         .hint("end the front matter with a line holding only `---`"))
-}
-
-fn front_matter(doc: &Document, entries: &[Entry]) -> Result<FrontMatter, Diagnostic> {
-    let mut f = FrontMatter::default();
-    for e in entries {
-        match e.key.as_str() {
-            "title" => f.title = Some(e.value.clone()),
-            "author" => f.author = Some(e.value.clone()),
-            "date" => f.date = Some(e.value.clone()),
-            "alpha" => f.alpha = parse_alpha(e).map_err(|x| doc.spec_error(x))?,
-            "decimals" => f.decimals = Some(parse_decimals(e).map_err(|x| doc.spec_error(x))?),
-            "compare" => f.compare = parse_compare(e).map_err(|x| doc.spec_error(x))?,
-            "figures" => {
-                f.figures = match e.value.to_ascii_lowercase().as_str() {
-                    "svg" => ImageFormat::Svg,
-                    "png" => ImageFormat::Png { dpi: 150 },
-                    _ => {
-                        return Err(doc
-                            .error_at(
-                                e.line,
-                                Some(e.value_column),
-                                format!("unknown figure format `{}`", e.value),
-                            )
-                            .hint("write `svg` (the default) or `png`"));
-                    }
-                };
-            }
-            "dpi" => {}
-            "paper" => {
-                f.paper = match e.value.to_ascii_lowercase().as_str() {
-                    "a4" => Paper::A4,
-                    "letter" => Paper::Letter,
-                    _ => {
-                        return Err(doc
-                            .error_at(
-                                e.line,
-                                Some(e.value_column),
-                                format!("unknown paper size `{}`", e.value),
-                            )
-                            .hint("write `a4` (the default) or `letter`"));
-                    }
-                };
-            }
-            "contents" => {
-                f.contents = match e.value.to_ascii_lowercase().as_str() {
-                    "yes" => true,
-                    "no" => false,
-                    _ => {
-                        return Err(doc
-                            .error_at(
-                                e.line,
-                                Some(e.value_column),
-                                format!("`contents` takes `yes` or `no`, found `{}`", e.value),
-                            )
-                            .hint("`contents: yes` adds a table of contents and lists of tables and figures"));
-                    }
-                };
-            }
-            other => {
-                let mut d = doc.error_at(
-                    e.line,
-                    Some(e.key_column),
-                    format!("unknown front-matter key `{other}`"),
-                );
-                d = match crate::diag::nearest(other, FRONT_MATTER_KEYS) {
-                    Some(k) => d.hint(format!("did you mean `{k}`?")),
-                    None => d.hint(format!(
-                        "the front matter takes {}",
-                        FRONT_MATTER_KEYS.join(", ")
-                    )),
-                };
-                return Err(d);
-            }
-        }
-    }
-    if let Some(e) = entries.iter().find(|e| e.key == "dpi") {
-        let dpi = match e.value.trim().parse::<u32>() {
-            Ok(d) if (72..=600).contains(&d) => d,
-            _ => {
-                return Err(doc
-                    .error_at(
-                        e.line,
-                        Some(e.value_column),
-                        format!(
-                            "`dpi` must be a whole number from 72 to 600, found `{}`",
-                            e.value
-                        ),
-                    )
-                    .hint("for example `dpi: 300` for print"));
-            }
-        };
-        match f.figures {
-            ImageFormat::Png { .. } => f.figures = ImageFormat::Png { dpi },
-            ImageFormat::Svg => {
-                return Err(doc
-                    .error_at(
-                        e.line,
-                        Some(e.key_column),
-                        "`dpi` applies to `figures: png`",
-                    )
-                    .hint("add `figures: png`, or remove `dpi`"));
-            }
-        }
-    }
-    Ok(f)
 }
 
 #[cfg(test)]

@@ -3,11 +3,9 @@
 //! the smallest n per group) or n per group (sheaf gives the power).
 
 use super::block::{Located, SpecError, parse_alpha};
+use super::keytable::KeyTable;
 use super::keyvalue::Entry;
 use crate::data::decimal::{Decimal, Number, parse_number};
-
-/// Every key a `power` block accepts.
-pub const POWER_KEYS: [&str; 7] = ["id", "groups", "effect", "alpha", "power", "n", "caption"];
 
 /// How the effect was given.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
@@ -151,107 +149,161 @@ fn parse_effect(e: &Entry) -> Result<EffectInput, SpecError> {
     }
 }
 
-/// Checks a `power` block's entries. `fence_line` is the opening fence's line.
-pub fn power_spec(entries: &[Entry], fence_line: usize) -> Result<PowerSpec, SpecError> {
-    for e in entries {
-        if !POWER_KEYS.contains(&e.key.as_str()) {
-            let hint = match crate::diag::nearest(&e.key, POWER_KEYS) {
-                Some(k) => format!("did you mean `{k}`?"),
-                None => format!("a power block takes {}", POWER_KEYS.join(", ")),
-            };
-            return Err(SpecError {
-                line: e.line,
-                column: e.key_column,
-                message: format!("unknown key `{}`", e.key),
-                hint: Some(hint),
-            });
+/// A `power` block as its entries give it, before the keys are checked
+/// against each other.
+#[derive(Debug, Default)]
+pub struct PowerDraft {
+    id: Option<Located<String>>,
+    groups: Option<(Entry, usize)>,
+    effect: Option<EffectInput>,
+    alpha: Option<f64>,
+    power: Option<(Entry, f64)>,
+    n: Option<(Entry, usize)>,
+    caption: Option<String>,
+}
+
+/// Every key a `power` block accepts, in the order hints list them.
+pub const POWER: KeyTable<PowerDraft> = KeyTable {
+    section: "a power block",
+    unknown: "unknown key",
+    keys: &[
+        ("id", |e, d| {
+            d.id = Some(super::block::parse_id(e)?);
+            Ok(())
+        }),
+        ("groups", read_groups),
+        ("effect", |e, d| {
+            d.effect = Some(parse_effect(e)?);
+            Ok(())
+        }),
+        ("alpha", |e, d| {
+            d.alpha = Some(parse_alpha(e)?);
+            Ok(())
+        }),
+        ("power", read_power),
+        ("n", read_n),
+        ("caption", |e, d| {
+            d.caption = Some(e.value.clone());
+            Ok(())
+        }),
+    ],
+};
+
+fn read_groups(e: &Entry, d: &mut PowerDraft) -> Result<(), SpecError> {
+    match e.value.trim().parse::<usize>() {
+        Ok(k) if (2..=1000).contains(&k) => {
+            d.groups = Some((e.clone(), k));
+            Ok(())
         }
+        _ => Err(bad(
+            e,
+            format!(
+                "`groups` must be a whole number from 2 to 1000, found `{}`",
+                e.value
+            ),
+            "for example `groups: 4`",
+        )),
     }
-    let get = |key: &str| entries.iter().find(|e| e.key == key);
+}
+
+fn read_power(e: &Entry, d: &mut PowerDraft) -> Result<(), SpecError> {
+    match number(&e.value) {
+        Some(v) if v > 0.0 && v < 1.0 => {
+            d.power = Some((e.clone(), v));
+            Ok(())
+        }
+        _ => Err(bad(
+            e,
+            format!(
+                "`power` must be a number between 0 and 1, found `{}`",
+                e.value
+            ),
+            "for example `power: 0.8`",
+        )),
+    }
+}
+
+fn read_n(e: &Entry, d: &mut PowerDraft) -> Result<(), SpecError> {
+    match e.value.trim().parse::<usize>() {
+        Ok(v) if v >= 2 => {
+            d.n = Some((e.clone(), v));
+            Ok(())
+        }
+        _ => Err(bad(
+            e,
+            format!(
+                "`n` must be a whole number of at least 2, found `{}`",
+                e.value
+            ),
+            "n is the number of observations per group",
+        )),
+    }
+}
+
+/// Checks a `power` block's entries. `fence_line` is the opening fence's
+/// line. Every problem found is returned.
+pub fn power_spec(entries: &[Entry], fence_line: usize) -> Result<PowerSpec, Vec<SpecError>> {
+    let mut d = PowerDraft::default();
+    let errors = POWER.apply(entries, &mut d);
+    if !errors.is_empty() {
+        return Err(errors);
+    }
     let missing = |key: &str, example: &str| SpecError {
         line: fence_line,
         column: 1,
         message: format!("this power block has no `{key}`"),
         hint: Some(format!("add a line such as `{example}`")),
     };
-    let id = get("id").map(super::block::parse_id).transpose()?;
-    let effect_entry = get("effect").ok_or_else(|| missing("effect", "effect: f = 0.25"))?;
-    let effect = parse_effect(effect_entry)?;
-    let groups = match get("groups") {
-        Some(e) => match e.value.trim().parse::<usize>() {
-            Ok(k) if (2..=1000).contains(&k) => k,
-            _ => {
-                return Err(bad(
-                    e,
-                    format!(
-                        "`groups` must be a whole number from 2 to 1000, found `{}`",
-                        e.value
-                    ),
-                    "for example `groups: 4`",
-                ));
-            }
-        },
-        None => match &effect {
-            EffectInput::Means { means, .. } => means.len(),
-            EffectInput::CohensF(_) => return Err(missing("groups", "groups: 4")),
-        },
-    };
-    if let (EffectInput::Means { means, .. }, Some(e)) = (&effect, get("groups"))
-        && means.len() != groups
-    {
-        return Err(bad(
-            e,
-            format!(
-                "`groups` is {groups} but the effect lists {} means",
-                means.len()
-            ),
-            "give one expected mean per group",
-        ));
-    }
-    let alpha = get("alpha").map(parse_alpha).transpose()?;
-    let goal = match (get("power"), get("n")) {
-        (Some(p), None) => match number(&p.value) {
-            Some(v) if v > 0.0 && v < 1.0 => PowerGoal::SampleSize { power: v },
-            _ => {
-                return Err(bad(
-                    p,
-                    format!(
-                        "`power` must be a number between 0 and 1, found `{}`",
-                        p.value
-                    ),
-                    "for example `power: 0.8`",
-                ));
-            }
-        },
-        (None, Some(n)) => match n.value.trim().parse::<usize>() {
-            Ok(v) if v >= 2 => PowerGoal::Power { n_per_group: v },
-            _ => {
-                return Err(bad(
-                    n,
-                    format!(
-                        "`n` must be a whole number of at least 2, found `{}`",
-                        n.value
-                    ),
-                    "n is the number of observations per group",
-                ));
-            }
-        },
-        (Some(_), Some(n)) => {
-            return Err(bad(
+    let mut errors = Vec::new();
+    let goal = match (&d.power, &d.n) {
+        (Some((_, power)), None) => Some(PowerGoal::SampleSize { power: *power }),
+        (None, Some((_, n))) => Some(PowerGoal::Power { n_per_group: *n }),
+        (Some(_), Some((n, _))) => {
+            errors.push(bad(
                 n,
                 "give `power` (to find n) or `n` (to find the power), not both".into(),
                 "remove one of them",
             ));
+            None
         }
-        (None, None) => return Err(missing("power", "power: 0.8")),
+        (None, None) => {
+            errors.push(missing("power", "power: 0.8"));
+            None
+        }
+    };
+    let Some(effect) = d.effect else {
+        errors.insert(0, missing("effect", "effect: f = 0.25"));
+        return Err(errors);
+    };
+    let groups = match (&effect, &d.groups) {
+        (EffectInput::Means { means, .. }, Some((e, groups))) if means.len() != *groups => {
+            errors.push(bad(
+                e,
+                format!(
+                    "`groups` is {groups} but the effect lists {} means",
+                    means.len()
+                ),
+                "give one expected mean per group",
+            ));
+            None
+        }
+        (_, Some((_, groups))) => Some(*groups),
+        (EffectInput::Means { means, .. }, None) => Some(means.len()),
+        (EffectInput::CohensF(_), None) => {
+            errors.insert(0, missing("groups", "groups: 4"));
+            None
+        }
+    };
+    let (Some(groups), Some(goal), true) = (groups, goal, errors.is_empty()) else {
+        return Err(errors);
     };
     Ok(PowerSpec {
-        id,
+        id: d.id,
         groups,
         effect,
-        alpha,
+        alpha: d.alpha,
         goal,
-        caption: get("caption").map(|e| e.value.clone()),
+        caption: d.caption,
     })
 }
 

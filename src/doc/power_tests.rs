@@ -19,9 +19,9 @@ fn effect_as_f_or_as_means() {
 #[test]
 fn both_goals_or_none_are_errors() {
     let e = parse_entries("groups: 3\neffect: 0.4\npower: 0.9\nn: 12", 2).expect("entries");
-    assert_eq!(power_spec(&e, 1).unwrap_err().line, 5);
+    assert_eq!(power_spec(&e, 1).unwrap_err()[0].line, 5);
     let e = parse_entries("groups: 3\neffect: 0.4", 2).expect("entries");
-    assert_eq!(power_spec(&e, 1).unwrap_err().line, 1);
+    assert_eq!(power_spec(&e, 1).unwrap_err()[0].line, 1);
 }
 
 #[test]

@@ -771,21 +771,23 @@ fn unknown_name_error(
             .unwrap_or_default()
             .to_string();
     }
-    if !ids.contains(&head.as_str()) {
-        let message = if head.is_empty() {
-            format!("`{}` names no analysis block", e.source)
+    if head.is_empty() {
+        let d = doc.error_at(
+            line,
+            Some(col),
+            format!("`{}` names no analysis block", e.source),
+        );
+        return if ids.is_empty() {
+            d.hint("this document has no analysis blocks to quote")
         } else {
-            format!("`{head}` is not the id of an analysis block")
-        };
-        let d = doc.error_at(line, Some(col), message);
-        return match crate::diag::nearest(&head, ids.iter().copied()) {
-            Some(n) => d.hint(format!("did you mean `{n}`?")),
-            None if ids.is_empty() => d.hint("this document has no analysis blocks to quote"),
-            None => d.hint(format!(
+            d.hint(format!(
                 "the blocks in this document are {}",
                 ids.join(", ")
-            )),
+            ))
         };
+    }
+    if !ids.contains(&head.as_str()) {
+        return doc.not_a_block_id(&head, &ids, (line, col));
     }
     let d = doc.error_at(
         line,

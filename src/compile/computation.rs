@@ -1,0 +1,221 @@
+//! The data and engine steps of a build: each block's data read (or
+//! streamed past), hashed, looked up in the cache, and computed by its engine.
+
+use crate::analysis::factorial::run_factorial;
+use crate::analysis::{Data, reads_csv_rows, run_anova, run_power};
+use crate::diag::Diagnostic;
+use crate::doc::block::AnovaSpec;
+use crate::doc::{Block, BlockSpec, Document};
+use crate::outcome::BlockResult;
+use crate::plan::unreadable;
+use crate::provenance::{Input, sha256_hex};
+use crate::world::World;
+use std::io::Read;
+
+/// Inputs above this size (bytes) get progress messages on a terminal.
+const LARGE_INPUT: u64 = 20_000_000;
+
+/// One-factor CSV files from this size (bytes) are streamed past rather than
+/// read into memory (see `data::scan`); the numbers are the same either way.
+const STREAM_FROM: u64 = 32 << 20;
+
+/// Every block's result, with the inputs read and what the cache gave.
+#[derive(Default)]
+pub struct Computation {
+    pub results: Vec<BlockResult>,
+    /// Every data file read (or streamed past), with its hash.
+    pub inputs: Vec<Input>,
+    /// Blocks computed afresh; the others came from the cache.
+    pub recomputed: usize,
+    /// Results computed afresh, to store in the cache once the build is written.
+    pub cache_entries: Vec<(String, Vec<u8>)>,
+    /// The cache key of every cacheable block.
+    pub cache_keys: Vec<String>,
+}
+
+impl Computation {
+    /// Computes every block of a planned document, in document order.
+    pub fn run(doc: &Document, world: &dyn World) -> Result<Computation, Diagnostic> {
+        let mut c = Computation {
+            results: Vec::with_capacity(doc.blocks.len()),
+            ..Computation::default()
+        };
+        for block in &doc.blocks {
+            c.block(doc, world, block)?;
+        }
+        Ok(c)
+    }
+
+    fn block(
+        &mut self,
+        doc: &Document,
+        world: &dyn World,
+        block: &Block,
+    ) -> Result<(), Diagnostic> {
+        let input_hash = match &block.spec {
+            BlockSpec::Anova(spec) => {
+                if self.streamed_past(doc, world, block, spec)? {
+                    return Ok(());
+                }
+                self.load(doc, world, spec)?
+            }
+            BlockSpec::Power(_) => String::new(),
+        };
+        let key = cache_key(doc, block, &input_hash);
+        self.cache_keys.push(key.clone());
+        if let Some(mut cached) = world
+            .cache_get(&key)
+            .and_then(|entry| crate::cache::open::<BlockResult>(&key, &entry))
+        {
+            cached.set_line(block.line);
+            self.results.push(cached);
+            return Ok(());
+        }
+        if self.inputs.iter().any(|i| i.size > LARGE_INPUT) {
+            world.progress(&format!(
+                "computing block `{}` (line {})",
+                block.id, block.line
+            ));
+        }
+        let result = match &block.spec {
+            BlockSpec::Power(spec) => BlockResult::Power(run_power(doc, block, spec)),
+            BlockSpec::Anova(spec) => {
+                let path = &spec.data.value;
+                let input = self
+                    .inputs
+                    .iter()
+                    .find(|i| &i.path == path)
+                    .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
+                let data = Data::Loaded(input);
+                run_engine(doc, block, spec, data, &world.display(path))?.0
+            }
+        };
+        self.recomputed += 1;
+        if let Some(entry) = crate::cache::seal(&key, &result) {
+            self.cache_entries.push((key, entry));
+        }
+        self.results.push(result);
+        Ok(())
+    }
+
+    fn loaded(&self, path: &str) -> bool {
+        self.inputs
+            .iter()
+            .any(|i| i.path == path && i.bytes.is_some())
+    }
+
+    /// The streaming policy: a large CSV file in long layout is read once,
+    /// in chunks, as it is hashed, and its block computed on the way. Such a
+    /// block is not cached: the cache key needs the hash, which costs the
+    /// same pass. A smaller file is read whole from the handle already open.
+    /// True when the block was computed here.
+    fn streamed_past(
+        &mut self,
+        doc: &Document,
+        world: &dyn World,
+        block: &Block,
+        spec: &AnovaSpec,
+    ) -> Result<bool, Diagnostic> {
+        let path = &spec.data.value;
+        if !reads_csv_rows(spec) || self.loaded(path) {
+            return Ok(false);
+        }
+        let at = (spec.data.line, spec.data.column);
+        let (mut reader, size) = world
+            .open(path)
+            .map_err(|e| unreadable(doc, world, e, path, at))?;
+        if size < STREAM_FROM {
+            let mut bytes = Vec::with_capacity(size as usize);
+            reader
+                .read_to_end(&mut bytes)
+                .map_err(|e| unreadable(doc, world, e, path, at))?;
+            remember(&mut self.inputs, Input::loaded(path, bytes));
+            return Ok(false);
+        }
+        world.progress(&format!(
+            "reading {} ({} MB) for block `{}` (line {})",
+            path,
+            size / 1_000_000,
+            block.id,
+            block.line
+        ));
+        let data = Data::Stream { path, reader };
+        let (result, input) = run_engine(doc, block, spec, data, &world.display(path))?;
+        if let Some(input) = input
+            && !self.inputs.iter().any(|i| i.path == input.path)
+        {
+            self.inputs.push(input);
+        }
+        self.results.push(result);
+        self.recomputed += 1;
+        Ok(true)
+    }
+
+    /// Reads a block's data file whole unless it is already held; returns
+    /// its hash.
+    fn load(
+        &mut self,
+        doc: &Document,
+        world: &dyn World,
+        spec: &AnovaSpec,
+    ) -> Result<String, Diagnostic> {
+        let path = &spec.data.value;
+        if !self.loaded(path) {
+            let bytes = world
+                .read(path)
+                .map_err(|e| unreadable(doc, world, e, path, (spec.data.line, spec.data.column)))?;
+            remember(&mut self.inputs, Input::loaded(path, bytes));
+        }
+        Ok(self
+            .inputs
+            .iter()
+            .find(|i| &i.path == path)
+            .map_or_else(String::new, |i| i.sha256.clone()))
+    }
+}
+
+/// Records a file read into memory, replacing the record of an earlier
+/// streamed pass over the same path.
+fn remember(inputs: &mut Vec<Input>, input: Input) {
+    match inputs.iter_mut().find(|i| i.path == input.path) {
+        Some(earlier) => *earlier = input,
+        None => inputs.push(input),
+    }
+}
+
+/// A block's result depends only on its text, its id, its data and the
+/// document-wide defaults, so those (and sheaf's version) key the cache.
+fn cache_key(doc: &Document, block: &Block, input_hash: &str) -> String {
+    sha256_hex(
+        format!(
+            "sheaf {}\0{}\0{}\0{}\0{:?}\0{:?}\0{:?}",
+            crate::VERSION,
+            block.id,
+            &doc.source[block.range.clone()],
+            input_hash,
+            doc.front.alpha,
+            doc.front.decimals,
+            doc.front.compare.map(|m| m.key())
+        )
+        .as_bytes(),
+    )
+}
+
+/// The engine for a block's model: the one-factor engine (which also
+/// streams), or the linear-model engine for several terms.
+fn run_engine(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    data: Data<'_>,
+    display: &str,
+) -> Result<(BlockResult, Option<Input>), Diagnostic> {
+    let model = &spec.model.value;
+    if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
+        let (r, input) = run_factorial(doc, block, spec, data, display)?;
+        Ok((BlockResult::Factorial(Box::new(r)), input))
+    } else {
+        let (r, input) = run_anova(doc, block, spec, data, display)?;
+        Ok((BlockResult::Anova(Box::new(r)), input))
+    }
+}

@@ -1,0 +1,322 @@
+//! An `anova` block's keys checked against each other and against its model,
+//! once each has been read: the draft becomes the block's specification.
+
+use super::block::{AnovaSpec, CheckSet, Defaults, Omnibus, Order, Show, SpecError, bad, list};
+use super::block_keys::AnovaDraft;
+use super::block_rows::default_summary_columns;
+use super::formula::Formula;
+use super::keyvalue::Entry;
+use crate::data::DEFAULT_MISSING;
+use crate::stats::compare::Method;
+use crate::stats::dunnett::Sides;
+
+/// A required key that is missing, pointed at the block's opening fence.
+fn missing(fence_line: usize, key: &str, example: &str) -> SpecError {
+    SpecError {
+        line: fence_line,
+        column: 1,
+        message: format!("this anova block has no `{key}`"),
+        hint: Some(format!("add a line such as `{example}`")),
+    }
+}
+
+/// The comparison procedure: as written (if it fits the omnibus test), or the
+/// test's own, or the document's default.
+fn compare_of(
+    d: &AnovaDraft,
+    method: Omnibus,
+    defaults: Defaults,
+) -> Result<Option<Method>, SpecError> {
+    let Some((e, chosen)) = &d.compare else {
+        return Ok(match method {
+            Omnibus::Welch => Some(Method::GamesHowell),
+            Omnibus::Ranks => Some(Method::Dunn),
+            Omnibus::Anova => defaults.compare,
+        });
+    };
+    let fits = match (method, chosen) {
+        (_, None) => true,
+        (Omnibus::Welch, Some(m)) => *m == Method::GamesHowell,
+        (Omnibus::Ranks, Some(m)) => *m == Method::Dunn,
+        (Omnibus::Anova, Some(m)) => !matches!(m, Method::GamesHowell | Method::Dunn),
+    };
+    if fits {
+        return Ok(*chosen);
+    }
+    // Each omnibus test has the comparison procedures that share its assumptions.
+    let hint = match method {
+        Omnibus::Welch => "with `method: welch` use `compare: games-howell` (or none)",
+        Omnibus::Ranks => "with `method: ranks` use `compare: dunn` (or none)",
+        Omnibus::Anova => "Games-Howell goes with `method: welch`, Dunn with `method: ranks`",
+    };
+    Err(bad(
+        e,
+        format!(
+            "`compare: {}` does not fit `method: {}`",
+            e.value,
+            method.key()
+        ),
+        hint,
+    ))
+}
+
+/// Keys that apply only under one comparison procedure.
+fn procedure_keys(d: &AnovaDraft, compare: Option<Method>, fence_line: usize) -> Vec<SpecError> {
+    let mut errors = Vec::new();
+    if compare == Some(Method::Dunnett) && d.control.is_none() {
+        let line = d.compare.as_ref().map_or(fence_line, |(e, _)| e.line);
+        errors.push(SpecError {
+            line,
+            column: 1,
+            message: "Dunnett's comparisons need a control level".into(),
+            hint: Some("add `control: <level>`, the level every treatment is compared with".into()),
+        });
+    }
+    let only = |e: Option<&Entry>, wanted: Method, key: &str, hint: &str| {
+        e.filter(|_| compare != Some(wanted)).map(|e| {
+            bad(
+                e,
+                format!("`{key}` applies only to `compare: {}`", wanted.key()),
+                hint,
+            )
+        })
+    };
+    errors.extend(only(
+        d.control.as_ref(),
+        Method::Dunnett,
+        "control",
+        "remove it, or choose `compare: dunnett`",
+    ));
+    errors.extend(only(
+        d.sides.as_ref().map(|(e, _)| e),
+        Method::Dunnett,
+        "sides",
+        "the other procedures are two-sided",
+    ));
+    errors.extend(only(
+        d.adjust.as_ref().map(|(e, _)| e),
+        Method::Dunn,
+        "adjust",
+        "the other procedures carry their own adjustment",
+    ));
+    errors.extend(only(
+        d.protected.as_ref().map(|(e, _)| e),
+        Method::Lsd,
+        "protected",
+        "remove it, or choose `compare: lsd`",
+    ));
+    errors
+}
+
+/// Keys of the data file's reading that depend on each other.
+fn reading_keys(d: &AnovaDraft, data: &Entry) -> Vec<SpecError> {
+    let mut errors = Vec::new();
+    if let Some(e) = &d.decimal
+        && d.csv.decimal_comma
+        && d.csv.delimiter == b','
+    {
+        errors.push(bad(
+            e,
+            "a decimal comma needs another field delimiter".into(),
+            "add `delimiter: semicolon` (or tab)",
+        ));
+    }
+    let summary = d.input.as_ref().is_some_and(|(_, s)| *s);
+    if let (Some((e, _)), false) = (&d.columns, summary) {
+        errors.push(bad(
+            e,
+            "`columns` applies only to `input: summary`".into(),
+            "add `input: summary`, or remove `columns`",
+        ));
+    }
+    // Keys that belong to another data format than the file's.
+    for (key, reader) in crate::data::reader::foreign_keys(&data.value) {
+        let given = match key {
+            "sheet" => &d.sheet,
+            "range" => &d.range,
+            _ => &None,
+        };
+        if let Some(e) = given {
+            errors.push(bad(
+                e,
+                format!(
+                    "`{key}` applies to {} data (.xlsx, .xls, .ods)",
+                    reader.name()
+                ),
+                "remove it, or point `data` at the workbook",
+            ));
+        }
+    }
+    errors
+}
+
+/// Keys that name the model's factors or need several of them.
+fn model_keys(d: &mut AnovaDraft, formula: &Formula) -> Vec<SpecError> {
+    let mut errors = Vec::new();
+    let several = formula.factors().len() >= 2;
+    if !several {
+        for e in &d.multi_factor {
+            errors.push(bad(
+                e,
+                format!("`{}` applies to models with two or more factors", e.key),
+                "write the model as `y ~ A * B` (or `y ~ treatment + block`), or remove the key",
+            ));
+        }
+    }
+    if let Some(e) = &d.plot
+        && d.plots.kinds.contains(&super::block::PlotKind::Interaction)
+        && !several
+    {
+        errors.push(bad(
+            e,
+            "`plot: interaction` needs a model with two or more factors".into(),
+            "use box, means or strip for one factor",
+        ));
+    }
+    if let Some((e, true)) = &d.layout {
+        if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
+            errors.push(bad(
+                e,
+                "`layout: wide` reads one factor: one column per level".into(),
+                "write the model as `response ~ factor`",
+            ));
+        } else {
+            d.rows.wide = Some((
+                formula.terms[0].factors[0].clone(),
+                formula.response.clone(),
+            ));
+        }
+    }
+    if let Some(e) = &d.names {
+        match display_names(e, formula) {
+            Ok(names) => d.plots.names = names,
+            Err(x) => errors.push(x),
+        }
+    }
+    if let Some(e) = &d.x_axis {
+        if !several || !formula.factors().contains(&e.value.as_str()) {
+            errors.push(bad(
+                e,
+                format!(
+                    "`x_axis` must name a factor of a model with two or more factors, found `{}`",
+                    e.value
+                ),
+                format!("the factors are {}", formula.factors().join(", ")),
+            ));
+        } else {
+            d.plots.x_axis = Some(e.value.clone());
+        }
+    }
+    errors
+}
+
+/// Reads `names: column = display name, …`; each column must be the
+/// response or a factor of the model.
+fn display_names(e: &Entry, formula: &Formula) -> Result<Vec<(String, String)>, SpecError> {
+    let mut names = Vec::new();
+    for part in list(&e.value) {
+        let Some((from, to)) = part.split_once('=') else {
+            return Err(bad(
+                e,
+                format!("expected `column = display name`, found `{part}`"),
+                "for example `names: n_rate = Nitrogen rate, variety = Variety`",
+            ));
+        };
+        let from = from.trim();
+        if from != formula.response && !formula.factors().contains(&from) {
+            let columns: Vec<&str> = std::iter::once(formula.response.as_str())
+                .chain(formula.factors())
+                .collect();
+            return Err(bad(
+                e,
+                format!("`{from}` is neither the response nor a factor of the model"),
+                format!("name columns of the model: {}", columns.join(", ")),
+            ));
+        }
+        names.push((from.to_string(), to.trim().to_string()));
+    }
+    Ok(names)
+}
+
+/// Checks the draft's keys against each other and builds the specification;
+/// every problem found is returned.
+pub(super) fn resolve(
+    mut d: AnovaDraft,
+    fence_line: usize,
+    defaults: Defaults,
+) -> Result<AnovaSpec, Vec<SpecError>> {
+    if d.data.is_none() || d.model.is_none() {
+        let mut errors = Vec::new();
+        if d.data.is_none() {
+            errors.push(missing(fence_line, "data", "data: plants.csv"));
+        }
+        if d.model.is_none() {
+            errors.push(missing(fence_line, "model", "model: weight ~ group"));
+        }
+        return Err(errors);
+    }
+    let (Some(data), Some(model)) = (d.data.clone(), d.model.take()) else {
+        return Err(Vec::new());
+    };
+    let method = d.method.unwrap_or(Omnibus::Anova);
+    let mut errors = Vec::new();
+    let compare = compare_of(&d, method, defaults).unwrap_or_else(|e| {
+        errors.push(e);
+        None
+    });
+    if errors.is_empty() {
+        errors.extend(procedure_keys(&d, compare, fence_line));
+    }
+    errors.extend(reading_keys(&d, &data));
+    errors.extend(model_keys(&mut d, &model.value));
+    if !errors.is_empty() {
+        return Err(errors);
+    }
+    if !d.missing_given {
+        d.csv.missing = DEFAULT_MISSING.iter().map(|s| s.to_string()).collect();
+    }
+    let summary = match &d.input {
+        Some((_, true)) => Some(
+            d.columns
+                .take()
+                .map_or_else(default_summary_columns, |(_, c)| c),
+        ),
+        _ => None,
+    };
+    Ok(AnovaSpec {
+        acknowledge: d.acknowledge,
+        sheet: d.sheet.map(|e| e.value),
+        range: d.range.map(|e| e.value),
+        rows: d.rows,
+        labels: d.labels,
+        labels_at: d.labels_at,
+        plots: d.plots,
+        ss_type: d.ss_type,
+        compare_terms: d.compare_terms,
+        within: d.within,
+        cells: d.cells,
+        blocks: d.blocks,
+        summary,
+        method,
+        checks: d.checks.unwrap_or(CheckSet::All),
+        control: d.control.as_ref().map(super::block_keys::located),
+        sides: d.sides.map_or(Sides::Two, |(_, s)| s),
+        adjust: d.adjust.map_or(Method::Holm, |(_, m)| m),
+        id: d.id,
+        data: super::block_keys::located(&data),
+        model,
+        compare,
+        alpha: d.alpha,
+        levels: d.levels,
+        caption: d.caption,
+        decimals: d.decimals,
+        csv: d.csv,
+        protected: d.protected.is_none_or(|(_, p)| p),
+        order: d.order.unwrap_or(Order::Mean),
+        show: d.show.unwrap_or(Show {
+            anova: true,
+            means: true,
+            pairs: true,
+        }),
+    })
+}
