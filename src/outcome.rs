@@ -20,27 +20,25 @@ pub use linear_from::RESIDUAL;
 pub use one_way::{AnovaResult, LevelResult};
 pub use power::PowerResult;
 
-/// The result of any analysis block.
+/// The outcome of any analysis block.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum BlockResult {
-    Anova(Box<AnovaResult>),
-    Factorial(Box<FactorialResult>),
+    /// Every linear analysis, whatever its engine.
+    Linear(Box<linear::LinearOutcome>),
     Power(PowerResult),
 }
 
 impl BlockResult {
     pub fn id(&self) -> &str {
         match self {
-            BlockResult::Anova(r) => &r.id,
-            BlockResult::Factorial(r) => &r.id,
+            BlockResult::Linear(r) => &r.id,
             BlockResult::Power(r) => &r.id,
         }
     }
 
     pub fn line(&self) -> usize {
         match self {
-            BlockResult::Anova(r) => r.line,
-            BlockResult::Factorial(r) => r.line,
+            BlockResult::Linear(r) => r.line,
             BlockResult::Power(r) => r.line,
         }
     }
@@ -48,25 +46,22 @@ impl BlockResult {
     /// Moves a (cached) result to the block's current line.
     pub fn set_line(&mut self, line: usize) {
         match self {
-            BlockResult::Anova(r) => r.line = line,
-            BlockResult::Factorial(r) => r.line = line,
+            BlockResult::Linear(r) => r.line = line,
             BlockResult::Power(r) => r.line = line,
         }
     }
 
     /// A linear block's outcome, the form every projection reads.
-    pub fn linear(&self) -> Option<linear::LinearOutcome> {
+    pub fn linear(&self) -> Option<&linear::LinearOutcome> {
         match self {
-            BlockResult::Anova(r) => Some(linear::LinearOutcome::from(r.as_ref())),
-            BlockResult::Factorial(r) => Some(linear::LinearOutcome::from(r.as_ref())),
+            BlockResult::Linear(r) => Some(r),
             BlockResult::Power(_) => None,
         }
     }
 
     pub fn warnings(&self) -> &[String] {
         match self {
-            BlockResult::Anova(r) => &r.warnings,
-            BlockResult::Factorial(r) => &r.warnings,
+            BlockResult::Linear(r) => &r.warnings,
             BlockResult::Power(r) => &r.warnings,
         }
     }
@@ -75,5 +70,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 3;
+    const SCHEMA: u32 = 4;
 }

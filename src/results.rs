@@ -642,8 +642,8 @@ pub fn results_json(
                 .collect()
         })
     };
-    let linear = |o: LinearOutcome, i: usize| {
-        let mut rec = block_record(&o);
+    let linear = |o: &LinearOutcome, i: usize| {
+        let mut rec = block_record(o);
         rec.figures = figure_records(i);
         BlockEntry::Anova(Box::new(rec))
     };
@@ -665,8 +665,7 @@ pub fn results_json(
             .iter()
             .enumerate()
             .map(|(i, b)| match b {
-                BlockResult::Anova(r) => linear(LinearOutcome::from(r.as_ref()), i),
-                BlockResult::Factorial(r) => linear(LinearOutcome::from(r.as_ref()), i),
+                BlockResult::Linear(r) => linear(r, i),
                 BlockResult::Power(r) => {
                     let mut rec = power_record(r);
                     rec.figures = figure_records(i);

@@ -7,6 +7,7 @@ use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
 use crate::doc::{Block, BlockSpec, Document};
 use crate::outcome::BlockResult;
+use crate::outcome::linear::LinearOutcome;
 use crate::plan::unreadable;
 use crate::provenance::{Input, sha256_hex};
 use crate::world::World;
@@ -213,9 +214,15 @@ fn run_engine(
     let model = &spec.model.value;
     if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
         let (r, input) = run_factorial(doc, block, spec, data, display)?;
-        Ok((BlockResult::Factorial(Box::new(r)), input))
+        Ok((
+            BlockResult::Linear(Box::new(LinearOutcome::from(&r))),
+            input,
+        ))
     } else {
         let (r, input) = run_anova(doc, block, spec, data, display)?;
-        Ok((BlockResult::Anova(Box::new(r)), input))
+        Ok((
+            BlockResult::Linear(Box::new(LinearOutcome::from(&r))),
+            input,
+        ))
     }
 }

@@ -346,9 +346,7 @@ pub fn draw_all(results: &[BlockResult]) -> Vec<Vec<Figure>> {
         .iter()
         .map(|r| match r {
             BlockResult::Power(p) => plots::power_figures(p, &mut number),
-            linear => linear
-                .linear()
-                .map_or_else(Vec::new, |o| linear::linear_figures(&o, &mut number)),
+            BlockResult::Linear(o) => linear::linear_figures(o, &mut number),
         })
         .collect()
 }

@@ -622,8 +622,7 @@ fn context(results: &[BlockResult]) -> Value {
     let ctx: BTreeMap<String, Value> = results
         .iter()
         .map(|r| match r {
-            BlockResult::Anova(a) => (a.id.clone(), linear(&LinearOutcome::from(a.as_ref()))),
-            BlockResult::Factorial(f) => (f.id.clone(), linear(&LinearOutcome::from(f.as_ref()))),
+            BlockResult::Linear(o) => (o.id.clone(), linear(o)),
             BlockResult::Power(p) => (p.id.clone(), to_value(power_context(p))),
         })
         .collect();

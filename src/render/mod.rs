@@ -65,7 +65,7 @@ pub fn render_report(
 /// provenance note: what a reviewer needs to repeat the analysis.
 fn choices_of(r: &BlockResult) -> String {
     match (r, r.linear()) {
-        (_, Some(o)) => linear_choices(&o),
+        (_, Some(o)) => linear_choices(o),
         (BlockResult::Power(p), None) => format!(
             "`{}` (line {}): power of the one-way F test; α = {}.",
             p.id, p.line, p.alpha

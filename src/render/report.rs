@@ -91,7 +91,7 @@ impl<'a> Report<'a> {
         for (r, figs) in results.iter().zip(figures) {
             let mut v = match (r, r.linear()) {
                 (BlockResult::Power(p), _) => tables::power_view(p, &mut next_table),
-                (_, Some(outcome)) => tables::linear_view(&outcome, &mut next_table),
+                (_, Some(outcome)) => tables::linear_view(outcome, &mut next_table),
                 (_, None) => view::BlockView::default(),
             };
             v.figures = figs
@@ -233,7 +233,7 @@ impl<'a> Report<'a> {
         self.results
             .iter()
             .filter_map(|r| {
-                let notes = r.linear()?.acknowledged;
+                let notes = r.linear()?.acknowledged.clone();
                 (!notes.is_empty()).then(|| AcknowledgedView {
                     id: r.id().to_string(),
                     notes,
