@@ -1,22 +1,23 @@
 //! `sheaf validate`: the accuracy suite built into the binary. Runs the NIST
 //! StRD ANOVA datasets against their certified values and reference-library
 //! cases for the distributions, comparison procedures and checks, and writes
-//! a validation report. Every reference value comes from an outside source
-//! (NIST, scipy, statsmodels, pingouin, scikit-posthocs, published tables),
-//! embedded at compile time; nothing is compared with sheaf's own output.
+//! a validation report. The ANOVA cases run whole blocks through the
+//! engines' entry points, as a report does (data reading, origin shift,
+//! protection), not the statistics functions alone. Every reference value
+//! comes from an outside source (NIST, scipy, statsmodels, pingouin,
+//! scikit-posthocs, published tables), embedded at compile time; nothing is
+//! compared with sheaf's own output.
 
-use crate::data::{CsvFormat, Table, factor_response, factorial_response};
+use crate::analysis::Data;
+use crate::analysis::factorial::run_factorial;
 use crate::diag::Diagnostic;
-use crate::stats::assumptions::{Center, levene};
-use crate::stats::compare::{LevelMean, Method, pairwise};
+use crate::doc::{Block, BlockSpec, Document, block::AnovaSpec, parse_document};
+use crate::outcome::{AnovaResult, FactorialResult};
+use crate::provenance::Input;
 use crate::stats::dist::{f_isf, t_isf};
 use crate::stats::dunnett::{Sides, dunnett};
 use crate::stats::effect::one_way_sample_size;
-use crate::stats::linear::{Layout, SsType, design_matrix, sums_of_squares, term_columns};
-use crate::stats::oneway::{GroupSummary, one_way, total_sum_of_squares};
 use crate::stats::ptukey::{ptukey_cdf, ptukey_sf, qtukey_isf};
-use crate::stats::ranks::kruskal_wallis;
-use crate::stats::welch::welch_anova;
 use serde::Serialize;
 use serde_json::Value;
 use std::path::{Path, PathBuf};
@@ -253,18 +254,40 @@ fn num(v: &Value) -> f64 {
     v.as_f64().unwrap_or(f64::NAN)
 }
 
-fn groups_of(csv: &str, response: &str, factor: &str) -> Vec<Vec<f64>> {
-    let format = CsvFormat::default();
-    let Ok(table) = Table::parse(csv.as_bytes(), &format) else {
-        return Vec::new();
+/// Runs one `anova` block with `keys` (one per line) on `csv`, held in
+/// memory as `d.csv`, through the same engine entry points as a report.
+fn run_block<T>(
+    keys: &str,
+    csv: &str,
+    engine: impl FnOnce(&Document, &Block, &AnovaSpec, Data<'_>) -> Result<T, Diagnostic>,
+) -> Option<T> {
+    let text = format!("```anova\nid: check\ndata: d.csv\n{keys}\n```\n");
+    let doc = parse_document("validate.md", text).ok()?;
+    let block = doc.blocks.first()?;
+    let BlockSpec::Anova(spec) = &block.spec else {
+        return None;
     };
-    let Ok(data) = factor_response(&table, response, factor, &format) else {
-        return Vec::new();
+    let input = Input {
+        path: "d.csv".into(),
+        sha256: String::new(),
+        size: csv.len() as u64,
+        bytes: Some(csv.as_bytes().to_vec()),
     };
-    data.levels
-        .iter()
-        .map(|l| l.offsets.iter().map(|y| data.origin + y).collect())
-        .collect()
+    engine(&doc, block, spec, Data::Loaded(&input)).ok()
+}
+
+/// A one-factor block's outcome, as a report computes it.
+fn one_factor(keys: &str, csv: &str) -> Option<AnovaResult> {
+    run_block(keys, csv, |doc, block, spec, data| {
+        crate::analysis::run_anova(doc, block, spec, data, "d.csv").map(|(r, _)| r)
+    })
+}
+
+/// A factorial block's outcome, as a report computes it.
+fn factorial(keys: &str, csv: &str) -> Option<FactorialResult> {
+    run_block(keys, csv, |doc, block, spec, data| {
+        run_factorial(doc, block, spec, data, "d.csv").map(|(r, _)| r)
+    })
 }
 
 /// Runs every check.
@@ -297,11 +320,7 @@ fn nist(checks: &mut Vec<Check>) {
                 .and_then(|s| s.parse::<f64>().ok())
                 .unwrap_or(f64::NAN)
         };
-        let format = CsvFormat::default();
-        let Some(data) = Table::parse(csv.as_bytes(), &format)
-            .ok()
-            .and_then(|t| factor_response(&t, "value", "group", &format).ok())
-        else {
+        let Some(r) = one_factor("model: value ~ group\ncompare: none", csv) else {
             checks.push(Check::new(
                 Area::NistAnova,
                 format!("{name}: data readable"),
@@ -312,15 +331,7 @@ fn nist(checks: &mut Vec<Check>) {
             ));
             continue;
         };
-        let s: Vec<GroupSummary> = data
-            .levels
-            .iter()
-            .map(|l| GroupSummary::from_values(&l.offsets))
-            .collect();
-        let sst = total_sum_of_squares(data.levels.iter().map(|l| l.offsets.as_slice()));
-        let Ok(t) = one_way(&s, 0.05, Some(sst)) else {
-            continue;
-        };
+        let t = &r.table;
         let lre9 = Bar::MinLre { lre: 9.0 };
         checks.push(Check::new(
             Area::NistAnova,
@@ -461,12 +472,8 @@ fn oneway_cases(checks: &mut Vec<Check>) {
     else {
         return;
     };
-    let groups = groups_of(PLANTS, "weight", "group");
-    let s: Vec<GroupSummary> = groups
-        .iter()
-        .map(|g| GroupSummary::from_values(g))
-        .collect();
-    let Ok(t) = one_way(&s, 0.05, None) else {
+    let model = "model: weight ~ group";
+    let Some(r) = one_factor(&format!("{model}\ncompare: none"), PLANTS) else {
         return;
     };
     let src = "statsmodels anova_lm";
@@ -474,7 +481,7 @@ fn oneway_cases(checks: &mut Vec<Check>) {
         Area::OneWayComparisons,
         "PlantGrowth one-way F",
         src,
-        t.f,
+        r.table.f,
         num(&case["anova"]["f"]),
         Bar::MinLre { lre: 9.0 },
     ));
@@ -482,40 +489,35 @@ fn oneway_cases(checks: &mut Vec<Check>) {
         Area::OneWayComparisons,
         "PlantGrowth one-way p",
         src,
-        t.p,
+        r.table.p,
         num(&case["anova"]["p"]),
         Bar::MaxAbs { diff: 1e-12 },
     ));
-    let levels: Vec<LevelMean> = s
-        .iter()
-        .map(|g| LevelMean {
-            n: g.n,
-            mean: g.mean,
-        })
-        .collect();
-    for (key, method, bar, src) in [
+    // Each procedure as a report runs it (LSD unprotected: protection
+    // changes the declarations, not the adjusted p-values compared here).
+    for (key, keys, bar, src) in [
         (
             "tukey",
-            Method::Tukey,
+            "compare: tukey",
             Bar::MaxAbs { diff: 1e-8 },
             "scipy.stats.tukey_hsd",
         ),
         (
             "lsd",
-            Method::Lsd,
+            "compare: lsd\nprotected: no",
             Bar::MaxAbs { diff: 1e-12 },
             "scipy.stats.t",
         ),
         (
             "holm",
-            Method::Holm,
+            "compare: holm",
             Bar::MaxAbs { diff: 1e-12 },
             "statsmodels multipletests",
         ),
     ] {
-        let fam = pairwise(&levels, t.ms_within, t.df_within as f64, 0.05, method);
-        for (p, r) in fam
-            .pairs
+        let family = one_factor(&format!("{model}\n{keys}"), PLANTS).and_then(|r| r.comparison);
+        let pairs = family.map(|c| c.pairs).unwrap_or_default();
+        for (p, r) in pairs
             .iter()
             .zip(case["comparisons"][key].as_array().into_iter().flatten())
         {
@@ -533,9 +535,9 @@ fn oneway_cases(checks: &mut Vec<Check>) {
 
 fn robust_cases(checks: &mut Vec<Check>) {
     let fx: Value = serde_json::from_str(ROBUST).unwrap_or(Value::Null);
-    for (name, csv, response, factor) in [
-        ("plant_growth", PLANTS, "weight", "group"),
-        ("assay", ASSAY, "signal", "condition"),
+    for (name, csv, model) in [
+        ("plant_growth", PLANTS, "model: weight ~ group"),
+        ("assay", ASSAY, "model: signal ~ condition"),
     ] {
         let Some(case) = fx["cases"]
             .as_array()
@@ -543,13 +545,9 @@ fn robust_cases(checks: &mut Vec<Check>) {
         else {
             continue;
         };
-        let groups = groups_of(csv, response, factor);
-        let refs: Vec<&[f64]> = groups.iter().map(Vec::as_slice).collect();
-        let s: Vec<GroupSummary> = groups
-            .iter()
-            .map(|g| GroupSummary::from_values(g))
-            .collect();
-        if let Some(bf) = levene(&refs, Center::Median) {
+        let run =
+            |method: &str| one_factor(&format!("{model}\nmethod: {method}\ncompare: none"), csv);
+        if let Some(bf) = run("anova").and_then(|r| r.checks.brown_forsythe) {
             checks.push(Check::new(
                 Area::AssumptionsAndRobust,
                 format!("{name} Brown-Forsythe F"),
@@ -559,7 +557,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
                 Bar::MinLre { lre: 9.0 },
             ));
         }
-        if let Ok(w) = welch_anova(&s) {
+        if let Some(w) = run("welch").and_then(|r| r.welch) {
             checks.push(Check::new(
                 Area::AssumptionsAndRobust,
                 format!("{name} Welch F"),
@@ -569,7 +567,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
                 Bar::MinLre { lre: 9.0 },
             ));
         }
-        if let Some(kw) = kruskal_wallis(&refs) {
+        if let Some(kw) = run("ranks").and_then(|r| r.kruskal) {
             checks.push(Check::new(
                 Area::AssumptionsAndRobust,
                 format!("{name} Kruskal-Wallis H"),
@@ -591,33 +589,31 @@ fn factorial_cases(checks: &mut Vec<Check>) {
         else {
             continue;
         };
-        let format = CsvFormat::default();
-        let Some(data) = Table::parse(csv.as_bytes(), &format)
-            .ok()
-            .and_then(|t| factorial_response(&t, "breaks", &["wool", "tension"], &format).ok())
-        else {
-            continue;
-        };
-        let layout = Layout {
-            levels: data.levels.iter().map(Vec::len).collect(),
-            rows: data.rows(),
-        };
-        let y: Vec<f64> = data.offsets.iter().map(|o| o + data.origin).collect();
-        let terms = vec![vec![0], vec![1], vec![0, 1]];
-        let design = design_matrix(&layout, &terms);
-        let ranges = term_columns(&terms, &layout.levels);
-        for (key, ty) in [("1", SsType::I), ("2", SsType::II), ("3", SsType::III)] {
-            let t = sums_of_squares(&design, &y, &terms, &ranges, ty);
-            for (got, want) in t
-                .terms
-                .iter()
-                .zip(case["tables"][key].as_array().into_iter().flatten())
-            {
+        for key in ["1", "2", "3"] {
+            let keys = format!("model: breaks ~ wool * tension\nss: {key}\ncompare: none");
+            let Some(r) = factorial(&keys, csv) else {
+                continue;
+            };
+            let rows = case["tables"][key].as_array().into_iter().flatten();
+            let (residual, terms): (Vec<&Value>, Vec<&Value>) =
+                rows.partition(|row| row["label"] == "Residual");
+            let source = "statsmodels anova_lm (sum-to-zero coding)";
+            for (got, want) in r.terms.iter().zip(terms) {
                 checks.push(Check::new(
                     Area::Factorial,
                     format!("{name} Type {key} SS, term {}", got.df),
-                    "statsmodels anova_lm (sum-to-zero coding)",
+                    source,
                     got.ss,
+                    num(&want["ss"]),
+                    Bar::MinLre { lre: 9.0 },
+                ));
+            }
+            for want in residual {
+                checks.push(Check::new(
+                    Area::Factorial,
+                    format!("{name} Type {key} residual SS"),
+                    source,
+                    r.residual_ss,
                     num(&want["ss"]),
                     Bar::MinLre { lre: 9.0 },
                 ));

@@ -104,3 +104,51 @@ fn the_terminal_text_ends_with_the_summary_and_totals() {
         );
     }
 }
+
+/// How many entries a fixture lists at `path` in each case named `names`.
+fn listed(fixture: &str, names: &[&str], path: &[&str]) -> usize {
+    let fx: Value = serde_json::from_str(fixture).expect("fixture");
+    let cases = fx["cases"].as_array().expect("cases");
+    names
+        .iter()
+        .map(|name| {
+            let case = cases.iter().find(|c| c["name"] == *name).expect("case");
+            let at = path.iter().fold(case, |v, key| &v[*key]);
+            at.as_array().map_or(0, Vec::len)
+        })
+        .sum()
+}
+
+#[test]
+fn every_engine_case_yields_its_checks_and_passes() {
+    // The ANOVA cases run whole blocks through the engines; a block that
+    // failed to run would drop its checks without a word, so the counts are
+    // taken from the fixtures and the NIST list.
+    let v = run();
+    let count = |area: Area| v.checks.iter().filter(|c| c.area == area).count();
+    assert_eq!(count(Area::NistAnova), NIST.len() * 5);
+    let pairs = ["tukey", "lsd", "holm"]
+        .iter()
+        .map(|key| listed(ONEWAY, &["plant_growth"], &["comparisons", key]))
+        .sum::<usize>();
+    assert_eq!(count(Area::OneWayComparisons), 2 + pairs);
+    assert_eq!(count(Area::AssumptionsAndRobust), 2 * 3);
+    let tables = ["1", "2", "3"]
+        .iter()
+        .map(|key| {
+            listed(
+                FACTORIAL,
+                &["warpbreaks", "warp_unbalanced"],
+                &["tables", key],
+            )
+        })
+        .sum::<usize>();
+    assert_eq!(count(Area::Factorial), tables);
+    let failed: Vec<String> = v
+        .checks
+        .iter()
+        .filter(|c| !c.pass)
+        .map(|c| format!("{}: {}", c.name, c.detail()))
+        .collect();
+    assert!(failed.is_empty(), "{failed:?}");
+}

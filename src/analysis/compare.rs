@@ -1,0 +1,71 @@
+//! What every comparison family shares, whatever the engine: Fisher's
+//! protection, the notes on a procedure's intervals, and the letters.
+
+use crate::outcome::ComparisonResult;
+use crate::stats::compare::{Method, Pair, Pairwise};
+use crate::stats::dunnett::Sides;
+use crate::stats::letters::compact_letters;
+
+/// Said of Holm's procedure in every engine.
+pub(crate) const HOLM_NOTE: &str = "Holm's procedure has no matching simultaneous intervals; the intervals shown are Bonferroni's.";
+
+/// Fisher's protection: unless the F test guarding the family rejected at
+/// α (an undefined p counts as not rejected), no pair is declared
+/// different. Returns whether the declarations were withheld.
+pub(crate) fn protect(pairs: &mut [Pair], p: f64, alpha: f64) -> bool {
+    let rejected = p < alpha;
+    let withheld = !rejected;
+    if withheld {
+        for pair in pairs {
+            pair.significant = false;
+        }
+    }
+    withheld
+}
+
+/// Compact letters for `k` levels from a family of all pairs; `order_by`
+/// orders the letters (means, or mean ranks).
+pub(crate) fn letters(pairs: &[Pair], order_by: &[f64]) -> Vec<String> {
+    let k = order_by.len();
+    let mut different = vec![vec![false; k]; k];
+    for p in pairs {
+        different[p.a][p.b] = p.significant;
+        different[p.b][p.a] = p.significant;
+    }
+    compact_letters(order_by, |i, j| different[i][j])
+}
+
+/// A comparison family with its letters, withholding and notes.
+pub(crate) struct Declared {
+    pub letters: Vec<String>,
+    pub withheld: bool,
+    pub notes: Vec<String>,
+}
+
+/// The outcome of a family of comparisons.
+pub(crate) fn comparison_result(
+    method: Method,
+    family: Pairwise,
+    alpha: f64,
+    declared: Declared,
+    control: Option<usize>,
+    sides: Sides,
+) -> ComparisonResult {
+    ComparisonResult {
+        method,
+        alpha,
+        pairs: family.pairs,
+        letters: declared.letters,
+        critical: family.critical,
+        control,
+        sides,
+        withheld: declared.withheld,
+        notes: declared.notes,
+    }
+}
+
+/// Whether a method's family holds every pair (Dunnett's compares each
+/// level with the control only, so it has no letters).
+pub(crate) fn has_letters(method: Method) -> bool {
+    method != Method::Dunnett
+}

@@ -1,0 +1,97 @@
+//! The checks of a factorial model, on its residuals: spread across the
+//! treatment cells (or, without replicates, across one factor's levels),
+//! shape, outliers.
+
+use super::cells::TreatmentCells;
+use super::fit::Fitted;
+use super::residuals::Residuals;
+use crate::analysis::checks::{summary_checks, with_residuals, with_spread_tests};
+use crate::analysis::notes::Note;
+use crate::data::FactorialData;
+use crate::doc::block::{AnovaSpec, CheckSet};
+use crate::outcome::Checks;
+use crate::stats::oneway::GroupSummary;
+
+/// What the checks read.
+pub(super) struct Fit<'a> {
+    pub data: &'a FactorialData,
+    pub fitted: &'a Fitted,
+    pub residuals: &'a Residuals,
+    pub cells: &'a TreatmentCells,
+    pub factor_names: &'a [String],
+    pub levels: &'a [usize],
+}
+
+fn summaries(groups: &[Vec<f64>]) -> Vec<GroupSummary> {
+    groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect()
+}
+
+fn slices(groups: &[Vec<f64>]) -> Vec<&[f64]> {
+    groups.iter().map(Vec::as_slice).collect()
+}
+
+/// The checks `checks:` asks for, with a note when the spread could not be
+/// compared cell by cell.
+pub(super) fn checks(spec: &AnovaSpec, fit: &Fit<'_>) -> (Checks, Option<Note>) {
+    let residuals = &fit.residuals.values;
+    // Variance checks on the residuals grouped by treatment cell: within a
+    // cell of the full model these are the observations less a constant.
+    let cell_groups: Vec<Vec<f64>> = fit
+        .cells
+        .group(fit.data, &|i| residuals[i])
+        .into_iter()
+        .filter(|g| !g.is_empty())
+        .collect();
+    let cell_summaries = summaries(&cell_groups);
+    let checks = summary_checks(&cell_summaries, spec.checks.shown());
+    if spec.checks == CheckSet::Summary {
+        // Only what the cell summaries allow, as asked.
+        return (
+            Checks {
+                by_request: true,
+                ..checks
+            },
+            None,
+        );
+    }
+    let (checks, note) = if cell_groups.iter().all(|g| g.len() >= 2) {
+        let spread = with_spread_tests(checks, &slices(&cell_groups), &cell_summaries);
+        (spread, None)
+    } else {
+        let (spread, note) = spread_by_first_factor(checks, fit, &cell_groups);
+        (spread, Some(note))
+    };
+    let (count, outliers) = fit.residuals.outliers(fit.data, fit.fitted);
+    (with_residuals(checks, residuals, count, outliers), note)
+}
+
+/// Unreplicated cells (blocks): compare the spread of the residuals across
+/// the levels of the first treatment factor instead, and say so.
+fn spread_by_first_factor(
+    checks: Checks,
+    fit: &Fit<'_>,
+    cell_groups: &[Vec<f64>],
+) -> (Checks, Note) {
+    let first = fit.cells.factors.first().copied().unwrap_or(0);
+    let mut by_level: Vec<Vec<f64>> = vec![Vec::new(); fit.levels[first]];
+    for (i, &c) in fit.data.cell_of.iter().enumerate() {
+        by_level[fit.data.cells[c][first]].push(fit.residuals.values[i]);
+    }
+    let checks = with_spread_tests(checks, &slices(&by_level), &summaries(&by_level));
+    let name = &fit.factor_names[first];
+    let single = cell_groups.iter().filter(|g| g.len() < 2).count();
+    let note = if single == cell_groups.len() {
+        format!(
+            "With one observation per treatment cell, the variance checks compare the residuals' spread across the levels of `{name}`."
+        )
+    } else {
+        format!(
+            "{single} of the {} treatment cells hold a single observation, so the variance checks cannot compare every cell's spread; they compare the residuals' spread across the levels of `{name}` instead.",
+            cell_groups.len()
+        )
+    };
+    (checks, Note::other(note))
+}

@@ -1,0 +1,122 @@
+//! The least-squares fit of a factorial model, on one weighted row per
+//! cell of the data.
+
+use super::model::{Errors, Model};
+use crate::data::FactorialData;
+use crate::diag::Diagnostic;
+use crate::stats::linear::{Fit, Layout, design_matrix, fit, term_columns};
+use crate::stats::oneway::GroupSummary;
+use crate::stats::sum::neumaier;
+
+/// The fitted model and what later steps read from it.
+pub(super) struct Fitted {
+    /// n, mean and within sum of squares of each full cell (observations
+    /// that share every factor's level).
+    pub(super) cell_summaries: Vec<GroupSummary>,
+    /// The design over the cells, one row each, unweighted.
+    pub(super) unweighted: Vec<Vec<f64>>,
+    /// The same rows weighted by √n, and the weighted cell means.
+    pub(super) design: Vec<Vec<f64>>,
+    pub(super) cell_y: Vec<f64>,
+    /// The columns of each term.
+    pub(super) ranges: Vec<std::ops::Range<usize>>,
+    /// The within-cell sum of squares, added back to every residual sum.
+    pub(super) within_cells: f64,
+    /// The full model's fit; its `rss` includes the within-cell sum.
+    pub(super) full: Fit,
+    pub(super) residual_df: usize,
+    /// Some contrasts are aliased (empty cells under an interaction).
+    pub(super) rank_deficient: bool,
+    /// Coefficients and (XᵀX)⁻¹ of the kept columns.
+    pub(super) coefficients: Vec<f64>,
+    pub(super) covariance: Vec<Vec<f64>>,
+}
+
+impl Fitted {
+    /// XᵀX and Xᵀy depend on the data only through each full cell's n and
+    /// mean, so the least squares run on one row per cell, √n·x and √n·ȳ:
+    /// the same R, coefficients and Type I effects as one row per
+    /// observation, and every residual sum of squares less the within-cell
+    /// sum, which is added back. Memory and time follow the number of
+    /// cells, not of rows.
+    pub fn new(
+        data: &FactorialData,
+        model: &Model,
+        levels: &[usize],
+        errors: &Errors<'_>,
+    ) -> Result<Fitted, Diagnostic> {
+        let cell_summaries = cell_summaries(data);
+        let within_cells = neumaier(cell_summaries.iter().map(|c| c.ss));
+        let layout = Layout {
+            levels: levels.to_vec(),
+            rows: data.cells.clone(),
+        };
+        let unweighted = design_matrix(&layout, &model.terms);
+        let weights: Vec<f64> = cell_summaries.iter().map(|c| (c.n as f64).sqrt()).collect();
+        let design: Vec<Vec<f64>> = unweighted
+            .iter()
+            .map(|col| col.iter().zip(&weights).map(|(x, w)| x * w).collect())
+            .collect();
+        let cell_y: Vec<f64> = cell_summaries
+            .iter()
+            .zip(&weights)
+            .map(|(c, w)| c.mean * w)
+            .collect();
+        let mut full = fit(&design, &cell_y);
+        full.rss += within_cells;
+        let residual_df = data.offsets.len() - full.rank;
+        if residual_df == 0 {
+            return Err(no_residual_df(model, errors));
+        }
+        Ok(Fitted {
+            rank_deficient: full.kept.iter().any(|k| !k),
+            coefficients: full.coefficients(),
+            covariance: full.unscaled_covariance(),
+            ranges: term_columns(&model.terms, levels),
+            cell_summaries,
+            unweighted,
+            design,
+            cell_y,
+            within_cells,
+            full,
+            residual_df,
+        })
+    }
+
+    /// The residual mean square.
+    pub fn mse(&self) -> f64 {
+        self.full.rss / self.residual_df as f64
+    }
+
+    /// Lᵀb and its unscaled variance for a linear function L over the
+    /// design columns; NaN where it is not estimable.
+    pub fn estimate(&self, l: &[f64]) -> (f64, f64) {
+        self.full
+            .estimate(l, &self.covariance, &self.coefficients)
+            .unwrap_or((f64::NAN, f64::NAN))
+    }
+}
+
+/// Each full cell's summary, from its observations.
+fn cell_summaries(data: &FactorialData) -> Vec<GroupSummary> {
+    let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); data.cells.len()];
+    for (&c, &y) in data.cell_of.iter().zip(&data.offsets) {
+        by_cell[c].push(y);
+    }
+    by_cell
+        .iter()
+        .map(|v| GroupSummary::from_values(v))
+        .collect()
+}
+
+fn no_residual_df(model: &Model, errors: &Errors<'_>) -> Diagnostic {
+    let has_interaction = model.terms.iter().any(|t| t.len() > 1);
+    errors.model(
+        "no residual degrees of freedom: the model uses up every observation".into(),
+        if has_interaction {
+            "with one observation per cell the interaction cannot be tested; fit the additive model, e.g. `y ~ A + B`"
+        } else {
+            "add replicates, or fit fewer terms"
+        },
+    )
+}

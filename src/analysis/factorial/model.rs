@@ -1,0 +1,157 @@
+//! The model of a factorial block as the document states it: its factors,
+//! which of them are blocks, its terms; and the keys that belong to the
+//! one-factor engine only.
+
+use crate::diag::Diagnostic;
+use crate::doc::block::{AnovaSpec, Omnibus};
+use crate::doc::{Block, Document};
+use crate::stats::compare::Method;
+use crate::stats::linear::TermFactors;
+
+/// The factors and terms of a model, by index.
+pub(super) struct Model {
+    pub factor_names: Vec<String>,
+    /// The factors named in `blocks`.
+    pub blocks: Vec<usize>,
+    /// Each term's factors, in model order.
+    pub terms: Vec<TermFactors>,
+    pub term_names: Vec<String>,
+}
+
+impl Model {
+    pub fn from_spec(doc: &Document, spec: &AnovaSpec) -> Result<Model, Diagnostic> {
+        let formula = &spec.model.value;
+        let factor_names: Vec<String> = formula.factors().iter().map(|s| s.to_string()).collect();
+        let mut model = Model {
+            factor_names,
+            blocks: Vec::new(),
+            terms: Vec::new(),
+            term_names: formula.terms.iter().map(|t| t.to_string()).collect(),
+        };
+        model.terms = formula
+            .terms
+            .iter()
+            .map(|t| t.factors.iter().filter_map(|f| model.index_of(f)).collect())
+            .collect();
+        if let Some(b) = &spec.blocks {
+            model.blocks = b
+                .value
+                .iter()
+                .map(|name| {
+                    model
+                        .index_of(name)
+                        .ok_or_else(|| model.not_a_factor(doc, b.line, b.column, name))
+                })
+                .collect::<Result<_, _>>()?;
+        }
+        Ok(model)
+    }
+
+    pub fn index_of(&self, name: &str) -> Option<usize> {
+        self.factor_names.iter().position(|f| f == name)
+    }
+
+    pub fn is_block(&self, factor: usize) -> bool {
+        self.blocks.contains(&factor)
+    }
+
+    /// A key names something that is not a factor of the model.
+    pub fn not_a_factor(
+        &self,
+        doc: &Document,
+        line: usize,
+        column: usize,
+        name: &str,
+    ) -> Diagnostic {
+        doc.error_at(
+            line,
+            Some(column),
+            format!("`{name}` is not a factor of the model"),
+        )
+        .hint(format!(
+            "the model's factors are {}",
+            self.factor_names.join(", ")
+        ))
+    }
+
+    /// The factors not named as blocks, in model order.
+    pub fn treatment_factors(&self) -> Vec<usize> {
+        (0..self.factor_names.len())
+            .filter(|f| !self.is_block(*f))
+            .collect()
+    }
+}
+
+/// Model errors of one block; once the data are read, they also explain
+/// block labels reused within another block factor, the usual cause when
+/// blocks are nested.
+pub(super) struct Errors<'a> {
+    pub doc: &'a Document,
+    pub spec: &'a AnovaSpec,
+    pub reused: Option<String>,
+}
+
+impl Errors<'_> {
+    /// An error at the model, with a hint.
+    pub fn model(&self, msg: String, hint: &str) -> Diagnostic {
+        let model = &self.spec.model;
+        let d = self
+            .doc
+            .error_at(model.line, Some(model.column), msg)
+            .hint(hint.to_string());
+        self.explain(d)
+    }
+
+    /// Adds the note on reused block labels, where there is one.
+    pub fn explain(&self, d: Diagnostic) -> Diagnostic {
+        match &self.reused {
+            Some(note) => d.hint(note.clone()),
+            None => d,
+        }
+    }
+
+    pub fn internal(&self, block: &Block, what: &str) -> Diagnostic {
+        self.doc
+            .error_at(block.line, None, format!("internal error: {what}"))
+    }
+}
+
+/// Keys that only the one-factor engine reads.
+pub(super) fn refuse_one_factor_keys(errors: &Errors<'_>) -> Result<(), Diagnostic> {
+    let spec = errors.spec;
+    if spec.method != Omnibus::Anova {
+        return Err(errors.model(
+            format!("`method: {}` is for one-factor models", spec.method.key()),
+            "factorial and block designs use the F tests of the linear model; remove `method`",
+        ));
+    }
+    if let Some(m) = spec
+        .compare
+        .filter(|m| matches!(m, Method::Dunnett | Method::GamesHowell | Method::Dunn))
+    {
+        return Err(errors.model(
+            format!(
+                "`compare: {}` is available for one-factor models only",
+                m.key()
+            ),
+            "in factorial designs use tukey, lsd, bonferroni, sidak, holm or scheffe",
+        ));
+    }
+    if let Some(l) = &spec.levels {
+        return Err(errors
+            .doc
+            .error_at(
+                l.line,
+                Some(l.column),
+                "`levels` applies to one-factor models",
+            )
+            .hint("in factorial designs levels keep their order of first appearance in the data"));
+    }
+    if spec.summary.is_some() {
+        return Err(errors.model(
+            "`input: summary` applies to one-factor models".into(),
+            "factorial designs need one row per observation",
+        ));
+    }
+    Ok(())
+}

@@ -1,0 +1,59 @@
+//! Reading a factorial block's rows: one response and one level per factor
+//! for each observation, with the document's labels.
+
+use super::model::Errors;
+use crate::analysis::binding::{
+    Data, apply_labels, check_labels, data_error, read_rows, reads_csv_rows, scan_csv,
+};
+use crate::data::scan::ScanSpec;
+use crate::data::{FactorialData, factorial_from_scan, factorial_response};
+use crate::diag::Diagnostic;
+use crate::doc::Block;
+use crate::provenance::Input;
+
+/// Reads the observations; a streamed file comes back as the `Input` that
+/// records it.
+pub(super) fn read_observations(
+    errors: &Errors<'_>,
+    block: &Block,
+    data: Data<'_>,
+    factors: &[&str],
+    display_path: &str,
+) -> Result<(FactorialData, Option<Input>), Diagnostic> {
+    let (doc, spec) = (errors.doc, errors.spec);
+    let response = &spec.model.value.response;
+    let fail = |e| data_error(doc, block, spec.data.line, display_path, e);
+    let (mut data, streamed) = match data {
+        // CSV in long layout: the chunked reader, keeping one number and one
+        // line per observation instead of a table of strings.
+        data if reads_csv_rows(spec) => {
+            let scan_spec = ScanSpec {
+                response,
+                factors,
+                format: &spec.csv,
+                filters: &spec.rows.filters,
+                exclude: &spec.rows.exclude,
+                keep_values: true,
+            };
+            let (scanned, input) = scan_csv(data, &scan_spec).map_err(fail)?;
+            (factorial_from_scan(scanned, factors.len()), input)
+        }
+        Data::Loaded(input) => {
+            let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
+            let mut data =
+                factorial_response(&table, response, factors, &spec.csv).map_err(fail)?;
+            data.excluded.extend(ruled_out);
+            (data, None)
+        }
+        Data::Stream { .. } => {
+            return Err(errors.internal(block, "a table layout reached the streaming reader"));
+        }
+    };
+    data.excluded.sort_by_key(|e| e.line);
+    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
+    check_labels(doc, spec, &all_levels)?;
+    for lv in data.levels.iter_mut() {
+        apply_labels(lv, &spec.labels);
+    }
+    Ok((data, streamed))
+}

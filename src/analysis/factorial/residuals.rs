@@ -1,0 +1,88 @@
+//! Residuals of the fitted model, their leverages, and the observations
+//! flagged by their externally studentized residual.
+
+use super::fit::Fitted;
+use crate::data::FactorialData;
+use crate::outcome::OutlierRow;
+use crate::stats::assumptions::{OUTLIER_THRESHOLD, OUTLIERS_KEPT, externally_studentized};
+use crate::stats::extremes::Extremes;
+use crate::stats::sum::neumaier;
+
+/// Per observation, its residual; per full cell, the leverage its
+/// observations share.
+pub(super) struct Residuals {
+    pub values: Vec<f64>,
+    cell_leverage: Vec<f64>,
+}
+
+impl Residuals {
+    /// Fitted values and leverages are the same for every observation of a
+    /// full cell: x'b and x'(XᵀX)⁻¹x with the cell's unweighted design row.
+    pub fn new(data: &FactorialData, fitted: &Fitted) -> Self {
+        let kept_design: Vec<&Vec<f64>> = fitted
+            .unweighted
+            .iter()
+            .zip(&fitted.full.kept)
+            .filter(|(_, k)| **k)
+            .map(|(c, _)| c)
+            .collect();
+        let (b, cov) = (&fitted.coefficients, &fitted.covariance);
+        let row_of = |c: usize| -> Vec<f64> { kept_design.iter().map(|col| col[c]).collect() };
+        let cells = data.cells.len();
+        let cell_fitted: Vec<f64> = (0..cells)
+            .map(|c| neumaier(row_of(c).iter().zip(b).map(|(x, b)| x * b)))
+            .collect();
+        let cell_leverage: Vec<f64> = (0..cells)
+            .map(|c| {
+                let x = row_of(c);
+                neumaier(
+                    (0..x.len()).map(|a| x[a] * neumaier((0..x.len()).map(|j| cov[a][j] * x[j]))),
+                )
+            })
+            .collect();
+        let values = (0..data.offsets.len())
+            .map(|i| data.offsets[i] - cell_fitted[data.cell_of[i]])
+            .collect();
+        Residuals {
+            values,
+            cell_leverage,
+        }
+    }
+
+    /// The observations beyond the outlier threshold: how many in all, and
+    /// the most extreme of them with their labels, in data order.
+    pub fn outliers(&self, data: &FactorialData, fitted: &Fitted) -> (usize, Vec<OutlierRow>) {
+        let (mse, nu) = (fitted.mse(), fitted.residual_df as f64);
+        // Only the most extreme are kept with their labels; the rest are counted.
+        let mut flagged = Extremes::new(OUTLIERS_KEPT);
+        for (i, &e) in self.values.iter().enumerate() {
+            let h = self.cell_leverage[data.cell_of[i]];
+            if h >= 1.0 - 1e-12 || fitted.residual_df < 2 {
+                continue;
+            }
+            let t = externally_studentized(e, mse, h, nu);
+            if t.abs() > OUTLIER_THRESHOLD {
+                flagged.offer(t.abs(), (i, t));
+            }
+        }
+        let count = flagged.total();
+        let mut rows: Vec<OutlierRow> = flagged
+            .into_most_extreme_first()
+            .into_iter()
+            .map(|(i, t)| OutlierRow {
+                line: data.lines[i],
+                level: data
+                    .row(i)
+                    .iter()
+                    .enumerate()
+                    .map(|(f, &l)| data.levels[f][l].clone())
+                    .collect::<Vec<_>>()
+                    .join(" × "),
+                value: data.origin + data.offsets[i],
+                studentized_residual: t,
+            })
+            .collect();
+        rows.sort_by_key(|o| o.line);
+        (count, rows)
+    }
+}

@@ -1,0 +1,232 @@
+//! The one-factor engine: summaries per level (streamed from large files,
+//! or published), the ANOVA table, Welch's ANOVA or ranks when asked,
+//! checks, level statistics and one comparison family.
+
+mod checks;
+mod comparisons;
+mod levels;
+mod notes;
+mod sample;
+
+pub use sample::RoundingRange;
+
+use super::binding::{Data, apply_labels, check_labels, decimals_shown};
+use super::checks::{Remedies, advice};
+use super::notes::{Note, split_acknowledged};
+use crate::diag::Diagnostic;
+use crate::doc::block::{AnovaSpec, Omnibus};
+use crate::doc::{Block, Document};
+use crate::outcome::AnovaResult;
+use crate::provenance::Input;
+use crate::stats::effect::{EffectSizes, one_way_effects};
+use crate::stats::oneway::{OneWay, OneWayError, one_way, total_sum_of_squares};
+use crate::stats::ranks::{KruskalWallis, kruskal_wallis};
+use crate::stats::welch::{WelchAnova, welch_anova};
+use sample::{Reading, Sample};
+
+/// Runs a one-factor `anova` block on its data file. A streamed file comes
+/// back as the `Input` that records it (hash and size, no bytes).
+pub fn run_anova(
+    doc: &Document,
+    block: &Block,
+    spec: &AnovaSpec,
+    data: Data<'_>,
+    display_path: &str,
+) -> Result<(AnovaResult, Option<Input>), Diagnostic> {
+    let formula = &spec.model.value;
+    // `compile` sends models with several terms to `factorial::run_factorial`.
+    if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
+        return Err(doc.error_at(
+            spec.model.line,
+            None,
+            "internal error: a factorial model reached the one-factor analysis",
+        ));
+    }
+    let factor = formula.terms[0].factors[0].clone();
+    let reading = Reading {
+        doc,
+        block,
+        spec,
+        factor: &factor,
+        display_path,
+    };
+    let (mut sample, streamed) = reading.load(data)?;
+    let names: Vec<&str> = sample.names.iter().map(String::as_str).collect();
+    check_labels(doc, spec, &names)?;
+    apply_labels(&mut sample.names, &spec.labels);
+    let engine = Engine {
+        doc,
+        block,
+        spec,
+        alpha: spec.alpha.unwrap_or(doc.front.alpha),
+    };
+    let result = engine.analyse(sample, factor)?;
+    Ok((result, streamed))
+}
+
+/// What every step of the analysis reads: the block and its α.
+struct Engine<'a> {
+    doc: &'a Document,
+    block: &'a Block,
+    spec: &'a AnovaSpec,
+    alpha: f64,
+}
+
+/// The omnibus tests beside the ANOVA table, as asked by `method`.
+struct Alternatives {
+    welch: Option<WelchAnova>,
+    kruskal: Option<KruskalWallis>,
+}
+
+impl Engine<'_> {
+    /// The statistics of a loaded sample.
+    fn analyse(&self, sample: Sample, factor: String) -> Result<AnovaResult, Diagnostic> {
+        let (spec, alpha) = (self.spec, self.alpha);
+        let table = self.table(&sample)?;
+        let mut notes = notes::sample_notes(&sample, &table, &factor, spec);
+        let checks = checks::checks(spec, &sample, &table);
+        notes.extend(advice(
+            &checks,
+            Remedies::OneFactor(spec.method),
+            alpha,
+            sample.decimals,
+        ));
+        let alternatives = self.alternatives(&sample, &mut notes)?;
+        let effect = self.effect(&table, &mut notes);
+        let pooled = spec.method != Omnibus::Welch;
+        let levels = levels::level_rows(&sample, &table, alpha, pooled);
+        let comparison = self.comparison(&sample, &levels, &table, &alternatives, &mut notes)?;
+        let decimals = decimals_shown(self.doc, spec, sample.decimals);
+        let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
+        // Only figures read the observations; without them the result (and
+        // the cache entry) stays small whatever the number of rows.
+        let (observations, observation_lines) = match sample.raw {
+            Some((offsets, lines)) if !spec.plots.kinds.is_empty() => (
+                offsets
+                    .into_iter()
+                    .map(|g| g.into_iter().map(|y| sample.origin + y).collect())
+                    .collect(),
+                lines,
+            ),
+            _ => (Vec::new(), Vec::new()),
+        };
+        Ok(AnovaResult {
+            method: spec.method,
+            checks,
+            welch: alternatives.welch,
+            kruskal: alternatives.kruskal,
+            effect,
+            ci_pooled: pooled,
+            id: self.block.id.clone(),
+            line: self.block.line,
+            data: spec.data.value.clone(),
+            response: spec.model.value.response.clone(),
+            factor,
+            alpha,
+            n: table.n,
+            exclusions: sample.excluded,
+            table,
+            levels,
+            comparison,
+            warnings,
+            acknowledged,
+            decimals,
+            caption: spec.caption.clone(),
+            order: spec.order,
+            show: spec.show,
+            observations,
+            observation_lines,
+            plots: spec.plots.clone(),
+        })
+    }
+
+    /// The ANOVA table, with the total sum of squares from the raw values as
+    /// a self-check where there are any.
+    fn table(&self, sample: &Sample) -> Result<OneWay, Diagnostic> {
+        let total_ss = sample
+            .raw
+            .as_ref()
+            .map(|(offsets, _)| total_sum_of_squares(offsets.iter().map(Vec::as_slice)));
+        // Two or more levels were checked when loading, so `one_way` cannot refuse.
+        one_way(&sample.summaries, self.alpha, total_ss).map_err(|OneWayError::TooFewLevels(k)| {
+            self.doc.error_at(
+                self.block.line,
+                None,
+                format!("internal error: {k} level(s) reached the analysis"),
+            )
+        })
+    }
+
+    /// Welch's ANOVA or Kruskal-Wallis, when `method` asks for one.
+    fn alternatives(
+        &self,
+        sample: &Sample,
+        notes: &mut Vec<Note>,
+    ) -> Result<Alternatives, Diagnostic> {
+        let spec = self.spec;
+        let welch = match spec.method {
+            Omnibus::Welch => Some(welch_anova(&sample.summaries).map_err(|i| {
+                self.doc.error_at(spec.model.line, None, format!("Welch's ANOVA is undefined: level `{}` has fewer than two observations or no spread", sample.names[i]))
+                    .hint("every level needs at least two differing values; use `method: anova` or `method: ranks`")
+            })?),
+            _ => None,
+        };
+        let kruskal = match (spec.method, &sample.raw) {
+            (Omnibus::Ranks, Some((offsets, _))) => Some(self.kruskal(sample, offsets, notes)?),
+            (Omnibus::Ranks, None) => {
+                return Err(self
+                    .doc
+                    .error_at(
+                        spec.model.line,
+                        None,
+                        "Kruskal-Wallis needs the raw observations, not summaries",
+                    )
+                    .hint("use `method: anova` or `method: welch` with `input: summary`"));
+            }
+            _ => None,
+        };
+        Ok(Alternatives { welch, kruskal })
+    }
+
+    fn kruskal(
+        &self,
+        sample: &Sample,
+        offsets: &[Vec<f64>],
+        notes: &mut Vec<Note>,
+    ) -> Result<KruskalWallis, Diagnostic> {
+        let offsets: Vec<&[f64]> = offsets.iter().map(Vec::as_slice).collect();
+        let kw = kruskal_wallis(&offsets).ok_or_else(|| {
+            self.doc
+                .error_at(
+                    self.spec.model.line,
+                    None,
+                    "Kruskal-Wallis is undefined: every observation has the same value",
+                )
+                .hint("ranks cannot separate levels without any differing values")
+        })?;
+        if sample.summaries.iter().any(|s| s.n < 5) {
+            notes.push(notes::few_for_ranks());
+        }
+        Ok(kw)
+    }
+
+    /// Effect sizes, where the F test has an error term.
+    fn effect(&self, table: &OneWay, notes: &mut Vec<Note>) -> Option<EffectSizes> {
+        let effect = (table.df_within > 0 && table.f.is_finite()).then(|| {
+            one_way_effects(
+                table.ss_between,
+                table.ss_within,
+                table.df_between as f64,
+                table.df_within as f64,
+                table.f,
+                1.0 - self.alpha,
+            )
+        });
+        if effect.is_some_and(|e| e.omega_sq < 0.0) {
+            notes.push(Note::other(
+                "ω² is negative, an estimate consistent with no effect; it is printed as computed.",
+            ));
+        }
+        effect
+    }
+}
