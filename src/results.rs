@@ -493,7 +493,12 @@ fn groups_record(o: &LinearOutcome) -> Vec<GroupRecord> {
         q3: None,
     };
     if !o.is_one_factor() {
-        let estimates = o.families.first().map_or(&[][..], |f| &f.estimates[..]);
+        // The first compared family's means (empty when nothing is compared).
+        let estimates = o
+            .families
+            .iter()
+            .find(|f| f.comparison.is_some())
+            .map_or(&[][..], |f| &f.estimates[..]);
         return estimates.iter().map(|m| group(m, "pooled")).collect();
     }
     let ci_error = if o.ci_pooled { "pooled" } else { "level" };

@@ -404,20 +404,19 @@ fn numeric_first_columns_are_right_aligned_under_their_header() {
 }
 
 #[test]
-fn a_factorial_means_plot_without_comparisons_names_the_means_it_draws() {
+fn a_factorial_means_plot_without_comparisons_draws_marginal_means() {
     // Invented, unbalanced: the observed means of `a` are 38.1 / 6 = 6.35
-    // and 40.3 / 6 = 6.72 (by hand); its marginal means differ.
+    // and 40.3 / 6 = 6.72 (by hand); its estimated marginal means in
+    // y ~ a + b are 14501/2355 = 6.16 and 6659/942 = 7.07 (least squares in
+    // exact rational arithmetic, Python's fractions).
     let csv = "a,b,y\nA1,B1,5.0\nA1,B1,5.4\nA1,B2,6.1\nA1,B3,7.2\nA1,B3,7.0\nA1,B3,7.4\n\
 A2,B1,5.8\nA2,B1,6.0\nA2,B1,6.2\nA2,B2,6.9\nA2,B2,7.1\nA2,B3,8.3\n";
     let doc = "```anova\nid: f\ndata: d.csv\nmodel: y ~ a + b\nplot: means\ncompare: none\n```\n";
     let b = build(doc, csv.to_string(), Format::Markdown);
     let svg = file(&b, "report-f-means.svg");
-    assert!(
-        svg.contains("Observed means of y by a, without intervals"),
-        "{svg}"
-    );
-    assert!(!svg.contains("marginal means"), "{svg}");
-    assert!(svg.contains("Levels A1, A2; means 6.35, 6.72."), "{svg}");
+    assert!(svg.contains("marginal means of y by a"), "{svg}");
+    assert!(!svg.contains("Observed means"), "{svg}");
+    assert!(svg.contains("Levels A1, A2; means 6.16, 7.07."), "{svg}");
     let report = text(&b);
-    assert!(report.contains("Figure 1. Observed means of y by a"));
+    assert!(report.contains("Figure 1. Estimated marginal means of y by a"));
 }

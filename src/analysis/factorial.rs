@@ -27,6 +27,7 @@ use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
 use crate::doc::{Block, Document};
+use crate::outcome::EmmRow;
 use crate::outcome::{CellRow, Checks, FactorialResult, Family, TermRow};
 use crate::provenance::Input;
 use crate::stats::oneway::GroupSummary;
@@ -95,12 +96,15 @@ pub fn run_factorial(
         rows,
         alpha,
     };
-    let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
+    let (checks, families, marginal_means) = analysed.checks_and_families(&errors, &mut notes)?;
     Ok((
-        analysed.into_result(block, spec, checks, families, notes, doc),
+        analysed.into_result(block, spec, checks, (families, marginal_means), notes, doc),
         streamed,
     ))
 }
+
+/// Each treatment factor's estimated marginal means, by factor name.
+type MarginalMeans = Vec<(String, Vec<EmmRow>)>;
 
 /// A fitted factorial model and what was computed from it.
 struct Analysed {
@@ -123,7 +127,7 @@ impl Analysed {
         &self,
         errors: &Errors<'_>,
         notes: &mut Vec<Note>,
-    ) -> Result<(Checks, Vec<Family>), Diagnostic> {
+    ) -> Result<(Checks, Vec<Family>, MarginalMeans), Diagnostic> {
         let spec = errors.spec;
         let (checks, spread_note) = checks::checks(
             spec,
@@ -143,9 +147,6 @@ impl Analysed {
             self.alpha,
             self.data.decimals,
         ));
-        let Some(method) = spec.compare else {
-            return Ok((checks, Vec::new()));
-        };
         let comparing = families::Comparing {
             errors,
             model: &self.model,
@@ -158,9 +159,12 @@ impl Analysed {
             types_agree: self.chosen.types_agree,
             alpha: self.alpha,
         };
+        let Some(method) = spec.compare else {
+            return Ok((checks, Vec::new(), comparing.marginal_means()));
+        };
         let (families, family_notes) = comparing.families(method)?;
         notes.extend(family_notes);
-        Ok((checks, families))
+        Ok((checks, families, Vec::new()))
     }
 
     /// The outcome of the block.
@@ -169,7 +173,7 @@ impl Analysed {
         block: &Block,
         spec: &AnovaSpec,
         checks: Checks,
-        families: Vec<Family>,
+        (families, marginal_means): (Vec<Family>, MarginalMeans),
         notes: Vec<Note>,
         doc: &Document,
     ) -> FactorialResult {
@@ -198,6 +202,7 @@ impl Analysed {
             cells: self.cells,
             cell_factors: self.treatment.factors,
             families,
+            marginal_means,
             checks,
             decimals,
             show: spec.show,

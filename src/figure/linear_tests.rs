@@ -80,9 +80,33 @@ fn means_figure(o: &LinearOutcome) -> Figure {
         .expect("a means plot")
 }
 
+/// The estimated marginal means of `a` in `y ~ a + b`, by ordinary least
+/// squares in exact rational arithmetic (normal equations solved with
+/// Python's fractions, outside this crate): 14501/2355 and 6659/942.
+const MARGINAL: [f64; 2] = [14501.0 / 2355.0, 6659.0 / 942.0];
+
+#[test]
+fn without_comparisons_the_means_plot_draws_the_engines_marginal_means() {
+    let o = fitted("none");
+    let family = o.main_family("a").expect("estimates without a comparison");
+    assert!(family.comparison.is_none());
+    for (got, e) in family.estimates.iter().zip(MARGINAL) {
+        // Exact rationals against a QR fit: agreement to rounding.
+        assert!((got.mean - e).abs() < 1e-12, "{} against {e}", got.mean);
+    }
+    let fig = means_figure(&o);
+    assert_caption(&fig, "marginal means");
+    assert!(!fig.caption.contains("Observed"), "{}", fig.caption);
+    assert_plotted(&fig.svg, &MARGINAL);
+}
+
+/// Where the engine has no estimates for a factor (empty cells with an
+/// interaction leave them inestimable), the plot draws observed means and
+/// says so.
 #[test]
 fn without_a_family_the_means_plot_draws_observed_means_and_says_so() {
-    let o = fitted("none");
+    let mut o = fitted("none");
+    o.families.retain(|f| f.term != "a");
     assert!(o.main_family("a").is_none());
     let values = values_by_level(&o, 0);
     let (groups, source) = factor_groups(&o, 0, &values);

@@ -88,6 +88,10 @@ pub struct FactorialResult {
     /// The factors a cell's `levels` refer to: every factor but the blocks.
     pub cell_factors: Vec<usize>,
     pub families: Vec<Family>,
+    /// Estimated marginal means of each treatment factor when nothing is
+    /// compared (`compare: none`): what means plots draw.
+    #[serde(default)]
+    pub marginal_means: Vec<(String, Vec<EmmRow>)>,
     pub checks: Checks,
     pub warnings: Vec<String>,
     /// Notes the author acknowledged, listed in the provenance section.

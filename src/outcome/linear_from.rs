@@ -5,7 +5,7 @@ use super::linear::{
     Alternatives, Comparison, Contrast, Estimate, Factor, Family, LevelSummary, LinearOutcome,
     Observation, Observed, Presentation, Role, Stratum, TermEffect, TermTest,
 };
-use super::{AnovaResult, ComparisonResult, FactorialResult};
+use super::{AnovaResult, ComparisonResult, EmmRow, FactorialResult};
 
 /// The residual stratum's name, as the ANOVA table prints it.
 pub const RESIDUAL: &str = "Residual";
@@ -185,6 +185,18 @@ impl From<&AnovaResult> for LinearOutcome {
     }
 }
 
+/// An estimated marginal (or cell) mean as an estimate.
+fn estimate_of(m: &EmmRow) -> Estimate {
+    Estimate {
+        label: m.label.clone(),
+        n: m.n,
+        mean: m.mean,
+        se: m.se,
+        ci_lower: m.ci_lower,
+        ci_upper: m.ci_upper,
+    }
+}
+
 impl From<&FactorialResult> for LinearOutcome {
     fn from(r: &FactorialResult) -> Self {
         let residual_df = r.residual_df as f64;
@@ -234,20 +246,15 @@ impl From<&FactorialResult> for LinearOutcome {
             .map(|f| Family {
                 term: f.term.clone(),
                 within: f.within.clone(),
-                estimates: f
-                    .means
-                    .iter()
-                    .map(|m| Estimate {
-                        label: m.label.clone(),
-                        n: m.n,
-                        mean: m.mean,
-                        se: m.se,
-                        ci_lower: m.ci_lower,
-                        ci_upper: m.ci_upper,
-                    })
-                    .collect(),
+                estimates: f.means.iter().map(estimate_of).collect(),
                 comparison: Some(comparison(&f.comparison, residual_df)),
             })
+            .chain(r.marginal_means.iter().map(|(term, means)| Family {
+                term: term.clone(),
+                within: None,
+                estimates: means.iter().map(estimate_of).collect(),
+                comparison: None,
+            }))
             .collect();
         let observations = (0..r.values.len())
             .map(|i| Observation {

@@ -38,6 +38,10 @@ struct Slice {
     within: Option<(usize, usize)>,
 }
 
+/// An estimate from the fit: its value (an offset from the data's origin),
+/// its variance in units of the MSE, and its weights over the coefficients.
+type GridEstimate = (f64, f64, Vec<f64>);
+
 impl Slice {
     /// Whether a full cell of the data lies at level `l` of the factor,
     /// within the slice.
@@ -151,12 +155,35 @@ impl Comparing<'_> {
         }
     }
 
-    /// Estimated marginal means of one factor (within one slice), compared
-    /// pairwise with the SE of each difference from the fit.
-    fn marginal_family(&self, slice: Slice, method: Method) -> Family {
+    /// Every treatment factor's estimated marginal means, compared with
+    /// nothing (`compare: none`); none where empty cells leave them
+    /// inestimable.
+    pub fn marginal_means(&self) -> Vec<(String, Vec<EmmRow>)> {
+        if self.fitted.rank_deficient {
+            return Vec::new();
+        }
+        self.treatment
+            .factors
+            .iter()
+            .filter(|&&f| self.levels[f] <= MAX_COMPARED_LEVELS)
+            .map(|&f| {
+                let slice = Slice {
+                    factor: f,
+                    within: None,
+                };
+                let (means, _) = self.marginal_estimates(&slice);
+                (self.model.factor_names[f].clone(), means)
+            })
+            .collect()
+    }
+
+    /// Estimated marginal means of one factor (within one slice) with
+    /// their SEs and intervals, and each estimate's offset, variance and
+    /// grid weights (for the SEs of differences).
+    fn marginal_estimates(&self, slice: &Slice) -> (Vec<EmmRow>, Vec<GridEstimate>) {
         let (fitted, data, f) = (self.fitted, self.data, slice.factor);
         let mse = fitted.mse();
-        let estimates: Vec<(f64, f64, Vec<f64>)> = (0..self.levels[f])
+        let estimates: Vec<GridEstimate> = (0..self.levels[f])
             .map(|l| {
                 let mut fixed = vec![None; self.levels.len()];
                 fixed[f] = Some(l);
@@ -186,6 +213,15 @@ impl Comparing<'_> {
                 self.mean_row(label, count(l), data.origin + v, (mse * var).sqrt())
             })
             .collect();
+        (means, estimates)
+    }
+
+    /// Estimated marginal means of one factor (within one slice), compared
+    /// pairwise with the SE of each difference from the fit.
+    fn marginal_family(&self, slice: Slice, method: Method) -> Family {
+        let (fitted, data, f) = (self.fitted, self.data, slice.factor);
+        let mse = fitted.mse();
+        let (means, estimates) = self.marginal_estimates(&slice);
         let diff_se = |a: usize, b: usize| {
             let d: Vec<f64> = estimates[a]
                 .2

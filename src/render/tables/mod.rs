@@ -85,7 +85,10 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         if let Some(c) = &family.comparison {
             notes.extend(c.notes.iter().cloned());
         }
-        if show.means {
+        // A factorial block without comparisons shows its marginal means in
+        // figures only; its tables are the ANOVA and cell tables.
+        let compared = family.comparison.is_some() || o.is_one_factor();
+        if show.means && compared {
             let number = numbers.next();
             tables.push(if o.is_one_factor() && o.method == Omnibus::Ranks {
                 means::ranks_table(o, family, &keys, number)
