@@ -1,17 +1,15 @@
 //! sheaf compiles a Markdown document with analysis blocks into a reproducible
 //! statistical report.
 //!
-//! The pipeline, one module per stage, driven by [`compile::compile`]:
-//! 1. [`doc`]: front matter, analysis blocks (`key: value` specs, model
-//!    formulas) and prose expressions, each with its source line;
-//! 2. [`data`]: CSV reading with exact decimals and missing values;
-//! 3. [`analysis`]: binds a block to its data and runs the statistics;
-//! 4. [`stats`]: pure numerical functions (distributions, ANOVA,
-//!    comparisons, letters), no I/O and no formatting;
-//! 5. [`render`]: view models, templates and Markdown to HTML;
-//! 6. [`results`]: the JSON results file, a documented contract;
-//!
-//! and [`output`] writes the files as one set, keeping the block [`cache`].
+//! The pipeline, driven by [`compile::compile`]: [`doc`] (front matter,
+//! blocks, prose expressions) → [`plan`] (every check that needs no data,
+//! all errors at once) → [`data`] (readers, exact decimals) → [`analysis`]
+//! (the engines) → [`outcome`] (one typed outcome per block) → projections
+//! ([`render`] tables and prose, [`results`], [`figure`]) → a writer
+//! ([`render::writer`]); [`output`] writes the files as one set. Support
+//! code sits below every stage ([`world`], [`provenance`], [`format`],
+//! [`escape`], [`cache`], [`diag`]) and [`stats`] holds the numerics.
+//! `tests/architecture.rs` keeps the imports pointing down.
 
 // Diagnostics are returned by value on the (cold) error path; boxing them
 // would only add noise at every call site.

@@ -337,3 +337,28 @@ fn the_reader_sees_every_form_of_import() {
         .collect();
     assert_eq!(found, expected);
 }
+
+/// Projections and writers read the one outcome type, never an engine's own
+/// result: a third engine (mixed models) then needs no new projection.
+#[test]
+fn projections_read_only_the_outcome() {
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
+    let mut files = Vec::new();
+    for place in ["render", "figure"] {
+        rust_files(&src.join(place), &mut files);
+    }
+    files.push(src.join("results.rs"));
+    let mut found = Vec::new();
+    for file in files {
+        if module_of(&src, &file).is_none() {
+            continue;
+        }
+        let code = code_only(&std::fs::read_to_string(&file).expect("readable source"));
+        for name in ["AnovaResult", "FactorialResult"] {
+            if code.contains(name) {
+                found.push(format!("{} names {name}", file.display()));
+            }
+        }
+    }
+    assert!(found.is_empty(), "{}", found.join("\n"));
+}

@@ -2,9 +2,6 @@
 //! the results-file key it came from. Templates only lay these out; the
 //! tables are built in `render::tables`.
 
-use crate::doc::block::Omnibus;
-use crate::format::{df_text, fixed, p_phrase};
-use crate::outcome::AnovaResult;
 use serde::Serialize;
 
 #[derive(Debug, Clone, Serialize)]
@@ -48,26 +45,4 @@ pub struct BlockView {
     pub tables: Vec<TableView>,
     pub notes: Vec<String>,
     pub warnings: Vec<String>,
-}
-
-/// The one-line statement of a block's omnibus test, for prose.
-pub fn omnibus_statement(r: &AnovaResult) -> String {
-    match (r.method, &r.welch, &r.kruskal) {
-        (Omnibus::Welch, Some(w), _) => format!(
-            "Welch's {}",
-            crate::format::f_statement(w.df1, w.df2, w.f, w.p)
-        ),
-        (Omnibus::Ranks, _, Some(k)) => format!(
-            "H({}) = {}, {}",
-            df_text(k.df),
-            fixed(k.h, 2),
-            p_phrase(k.p)
-        ),
-        _ => crate::format::f_statement(
-            r.table.df_between as f64,
-            r.table.df_within as f64,
-            r.table.f,
-            r.table.p,
-        ),
-    }
 }
