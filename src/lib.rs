@@ -7,7 +7,7 @@
 //! (the engines) → [`outcome`] (one typed outcome per block) → projections
 //! ([`render`] tables and prose, [`results`], [`figure`]) → a writer
 //! ([`render::writer`]); [`output`] writes the files as one set. Support
-//! code sits below every stage ([`world`], [`provenance`], [`format`],
+//! code sits below every stage ([`world`], [`provenance`], [`format`](mod@format),
 //! [`escape`], [`cache`], [`diag`]) and [`stats`] holds the numerics.
 //! `tests/architecture.rs` keeps the imports pointing down.
 
