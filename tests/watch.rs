@@ -167,7 +167,13 @@ fn watch_serves_the_report_and_rebuilds_on_change() {
         get(port, "/").is_some_and(|(_, b)| f_text(&b).is_some_and(|f| f != before))
     });
     assert!(changed, "the report did not change after the data did");
-    assert_ne!(version(port).expect("version"), before_edit);
+    // The counter moves once the new files are in place, a moment after the
+    // page itself changed: wait for it rather than read it once.
+    assert!(
+        wait_for(Duration::from_secs(20), || version(port)
+            .is_some_and(|v| v != before_edit)),
+        "the version counter did not move after the rebuild"
+    );
     // Nothing outside the output folder is served.
     assert_eq!(get(port, "/..%2Fd.csv").map(|r| r.0), Some(404));
     assert_eq!(get(port, "/../d.csv").map(|r| r.0), Some(404));
