@@ -17,6 +17,7 @@ mod compare;
 mod exclusions;
 pub mod factorial;
 mod notes;
+mod observed;
 mod one_way;
 mod power;
 

@@ -3,21 +3,11 @@
 //! no engine and no output.
 
 mod checks;
-mod comparison;
-mod factorial;
 pub mod linear;
-mod linear_from;
-mod observed;
-mod one_way;
 mod power;
 
 pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, most_extreme};
-pub use comparison::ComparisonResult;
-pub use factorial::{
-    BLOCK_NOT_TESTED, CellRow, EmmRow, FactorialResult, Family, TermRow, term_label,
-};
-pub use linear_from::RESIDUAL;
-pub use one_way::{AnovaResult, LevelResult};
+pub use linear::{CellRow, RESIDUAL, term_label};
 pub use power::PowerResult;
 
 /// The outcome of any analysis block.

@@ -12,7 +12,7 @@ use crate::analysis::Data;
 use crate::analysis::factorial::run_factorial;
 use crate::diag::Diagnostic;
 use crate::doc::{Block, BlockSpec, Document, block::AnovaSpec, parse_document};
-use crate::outcome::{AnovaResult, FactorialResult};
+use crate::outcome::linear::LinearOutcome;
 use crate::provenance::Input;
 use crate::stats::dist::{f_isf, t_isf};
 use crate::stats::dunnett::{Sides, dunnett};
@@ -277,14 +277,14 @@ fn run_block<T>(
 }
 
 /// A one-factor block's outcome, as a report computes it.
-fn one_factor(keys: &str, csv: &str) -> Option<AnovaResult> {
+fn one_factor(keys: &str, csv: &str) -> Option<LinearOutcome> {
     run_block(keys, csv, |doc, block, spec, data| {
         crate::analysis::run_anova(doc, block, spec, data, "d.csv").map(|(r, _)| r)
     })
 }
 
 /// A factorial block's outcome, as a report computes it.
-fn factorial(keys: &str, csv: &str) -> Option<FactorialResult> {
+fn factorial(keys: &str, csv: &str) -> Option<LinearOutcome> {
     run_block(keys, csv, |doc, block, spec, data| {
         run_factorial(doc, block, spec, data, "d.csv").map(|(r, _)| r)
     })
@@ -331,13 +331,13 @@ fn nist(checks: &mut Vec<Check>) {
             ));
             continue;
         };
-        let t = &r.table;
+        let (t, residual) = (&r.terms[0], r.residual());
         let lre9 = Bar::MinLre { lre: 9.0 };
         checks.push(Check::new(
             Area::NistAnova,
             format!("{name}: between-groups SS"),
             source,
-            t.ss_between,
+            t.ss,
             c("between_ss"),
             lre9,
         ));
@@ -345,7 +345,7 @@ fn nist(checks: &mut Vec<Check>) {
             Area::NistAnova,
             format!("{name}: within-groups SS"),
             source,
-            t.ss_within,
+            residual.ss,
             c("within_ss"),
             lre9,
         ));
@@ -353,7 +353,7 @@ fn nist(checks: &mut Vec<Check>) {
             Area::NistAnova,
             format!("{name}: between-groups MS"),
             source,
-            t.ms_between,
+            t.ms,
             c("between_ms"),
             lre9,
         ));
@@ -361,7 +361,7 @@ fn nist(checks: &mut Vec<Check>) {
             Area::NistAnova,
             format!("{name}: within-groups MS"),
             source,
-            t.ms_within,
+            residual.ms,
             c("within_ms"),
             lre9,
         ));
@@ -481,7 +481,7 @@ fn oneway_cases(checks: &mut Vec<Check>) {
         Area::OneWayComparisons,
         "PlantGrowth one-way F",
         src,
-        r.table.f,
+        r.terms[0].f,
         num(&case["anova"]["f"]),
         Bar::MinLre { lre: 9.0 },
     ));
@@ -489,7 +489,7 @@ fn oneway_cases(checks: &mut Vec<Check>) {
         Area::OneWayComparisons,
         "PlantGrowth one-way p",
         src,
-        r.table.p,
+        r.terms[0].p,
         num(&case["anova"]["p"]),
         Bar::MaxAbs { diff: 1e-12 },
     ));
@@ -515,8 +515,10 @@ fn oneway_cases(checks: &mut Vec<Check>) {
             "statsmodels multipletests",
         ),
     ] {
-        let family = one_factor(&format!("{model}\n{keys}"), PLANTS).and_then(|r| r.comparison);
-        let pairs = family.map(|c| c.pairs).unwrap_or_default();
+        let family = one_factor(&format!("{model}\n{keys}"), PLANTS)
+            .and_then(|r| r.families.into_iter().next())
+            .and_then(|f| f.comparison);
+        let pairs = family.map(|c| c.contrasts).unwrap_or_default();
         for (p, r) in pairs
             .iter()
             .zip(case["comparisons"][key].as_array().into_iter().flatten())
@@ -557,7 +559,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
                 Bar::MinLre { lre: 9.0 },
             ));
         }
-        if let Some(w) = run("welch").and_then(|r| r.welch) {
+        if let Some(w) = run("welch").and_then(|r| r.alternatives.welch) {
             checks.push(Check::new(
                 Area::AssumptionsAndRobust,
                 format!("{name} Welch F"),
@@ -567,7 +569,7 @@ fn robust_cases(checks: &mut Vec<Check>) {
                 Bar::MinLre { lre: 9.0 },
             ));
         }
-        if let Some(kw) = run("ranks").and_then(|r| r.kruskal) {
+        if let Some(kw) = run("ranks").and_then(|r| r.alternatives.kruskal) {
             checks.push(Check::new(
                 Area::AssumptionsAndRobust,
                 format!("{name} Kruskal-Wallis H"),
@@ -613,7 +615,7 @@ fn factorial_cases(checks: &mut Vec<Check>) {
                     Area::Factorial,
                     format!("{name} Type {key} residual SS"),
                     source,
-                    r.residual_ss,
+                    r.residual().ss,
                     num(&want["ss"]),
                     Bar::MinLre { lre: 9.0 },
                 ));

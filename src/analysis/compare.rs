@@ -1,7 +1,7 @@
 //! What every comparison family shares, whatever the engine: Fisher's
 //! protection, the notes on a procedure's intervals, and the letters.
 
-use crate::outcome::ComparisonResult;
+use crate::outcome::linear::{Comparison, Contrast};
 use crate::stats::compare::{Method, Pair, Pairwise};
 use crate::stats::dunnett::Sides;
 use crate::stats::letters::compact_letters;
@@ -42,19 +42,38 @@ pub(crate) struct Declared {
     pub notes: Vec<String>,
 }
 
-/// The outcome of a family of comparisons.
+/// The outcome of a family of comparisons: each pair becomes a contrast
+/// with its own SE and df (`df`, the error's, unless the procedure gives
+/// the pair its own).
 pub(crate) fn comparison_result(
     method: Method,
     family: Pairwise,
-    alpha: f64,
+    (alpha, df): (f64, f64),
     declared: Declared,
     control: Option<usize>,
     sides: Sides,
-) -> ComparisonResult {
-    ComparisonResult {
+) -> Comparison {
+    Comparison {
         method,
         alpha,
-        pairs: family.pairs,
+        contrasts: family
+            .pairs
+            .into_iter()
+            .map(|p| Contrast {
+                a: p.a,
+                b: p.b,
+                estimate: p.diff,
+                se: p.se,
+                df: p.df.unwrap_or(df),
+                own_df: p.df.is_some(),
+                lower: p.lower,
+                upper: p.upper,
+                statistic: p.statistic,
+                p_raw: p.p_raw,
+                p_adj: p.p_adj,
+                significant: p.significant,
+            })
+            .collect(),
         letters: declared.letters,
         critical: family.critical,
         control,

@@ -23,12 +23,17 @@ mod terms;
 use super::binding::{Data, decimals_shown};
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
+use super::observed::{FactorialLayout, PooledError};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
+use crate::doc::block::Omnibus;
 use crate::doc::{Block, Document};
-use crate::outcome::EmmRow;
-use crate::outcome::{CellRow, Checks, FactorialResult, Family, TermRow};
+use crate::outcome::Checks;
+use crate::outcome::linear::{
+    Alternatives, CellRow, Factor, Family, LinearOutcome, Observation, Observed, Presentation,
+    RESIDUAL, Role, Stratum, TermTest,
+};
 use crate::provenance::Input;
 use crate::stats::oneway::GroupSummary;
 use cells::TreatmentCells;
@@ -44,7 +49,7 @@ pub fn run_factorial(
     spec: &AnovaSpec,
     data: Data<'_>,
     display_path: &str,
-) -> Result<(FactorialResult, Option<Input>), Diagnostic> {
+) -> Result<(LinearOutcome, Option<Input>), Diagnostic> {
     let mut errors = Errors {
         doc,
         spec,
@@ -96,15 +101,12 @@ pub fn run_factorial(
         rows,
         alpha,
     };
-    let (checks, families, marginal_means) = analysed.checks_and_families(&errors, &mut notes)?;
+    let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
     Ok((
-        analysed.into_result(block, spec, checks, (families, marginal_means), notes, doc),
+        analysed.into_result(block, spec, checks, families, notes, doc),
         streamed,
     ))
 }
-
-/// Each treatment factor's estimated marginal means, by factor name.
-type MarginalMeans = Vec<(String, Vec<EmmRow>)>;
 
 /// A fitted factorial model and what was computed from it.
 struct Analysed {
@@ -113,7 +115,7 @@ struct Analysed {
     levels: Vec<usize>,
     fitted: Fitted,
     chosen: Chosen,
-    rows: Vec<TermRow>,
+    rows: Vec<TermTest>,
     treatment: TreatmentCells,
     /// Each treatment cell's n, mean and SD.
     cells: Vec<CellRow>,
@@ -127,7 +129,7 @@ impl Analysed {
         &self,
         errors: &Errors<'_>,
         notes: &mut Vec<Note>,
-    ) -> Result<(Checks, Vec<Family>, MarginalMeans), Diagnostic> {
+    ) -> Result<(Checks, Vec<Family>), Diagnostic> {
         let spec = errors.spec;
         let (checks, spread_note) = checks::checks(
             spec,
@@ -160,11 +162,11 @@ impl Analysed {
             alpha: self.alpha,
         };
         let Some(method) = spec.compare else {
-            return Ok((checks, Vec::new(), comparing.marginal_means()));
+            return Ok((checks, comparing.marginal_means()));
         };
         let (families, family_notes) = comparing.families(method)?;
         notes.extend(family_notes);
-        Ok((checks, families, Vec::new()))
+        Ok((checks, families))
     }
 
     /// The outcome of the block.
@@ -173,83 +175,111 @@ impl Analysed {
         block: &Block,
         spec: &AnovaSpec,
         checks: Checks,
-        (families, marginal_means): (Vec<Family>, MarginalMeans),
+        families: Vec<Family>,
         notes: Vec<Note>,
         doc: &Document,
-    ) -> FactorialResult {
+    ) -> LinearOutcome {
         let data = self.data;
         let decimals = decimals_shown(doc, spec, data.decimals);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
-        let observations = Observations::kept(spec, &data, &self.residuals.values);
         let fitted = self.fitted;
-        FactorialResult {
+        let residual = Stratum {
+            name: RESIDUAL.to_string(),
+            df: fitted.residual_df as f64,
+            ss: fitted.full.rss,
+            ms: fitted.mse(),
+        };
+        let observations = observations(spec, &data, &self.residuals.values);
+        let observed = Observed::factorial(
+            FactorialLayout {
+                level_counts: self.levels,
+                treatments: &self.treatment.factors,
+                plots: &spec.plots,
+                error: PooledError {
+                    ms: residual.ms,
+                    df: residual.df,
+                    alpha: self.alpha,
+                },
+            },
+            &observations,
+        );
+        let factors = self
+            .model
+            .factor_names
+            .into_iter()
+            .zip(data.levels)
+            .enumerate()
+            .map(|(i, (name, levels))| Factor {
+                name,
+                role: if self.treatment.factors.contains(&i) {
+                    Role::Treatment
+                } else {
+                    Role::Block
+                },
+                levels,
+            })
+            .collect();
+        LinearOutcome {
             id: block.id.clone(),
             line: block.line,
             data: spec.data.value.clone(),
             response: spec.model.value.response.clone(),
-            factors: self.model.factor_names,
             alpha: self.alpha,
-            ss_type: self.chosen.ss_type,
-            types_agree: self.chosen.types_agree,
-            terms: self.rows,
-            residual_df: fitted.residual_df,
-            residual_ss: fitted.full.rss,
-            mse: fitted.mse(),
-            total_ss,
-            r_squared: 1.0 - fitted.full.rss / total_ss,
             n: data.offsets.len(),
+            exclusions: data.excluded,
+            method: Omnibus::Anova,
+            ss_type: Some(self.chosen.ss_type),
+            types_agree: self.chosen.types_agree,
+            factors,
+            r_squared: 1.0 - residual.ss / total_ss,
+            strata: vec![residual],
+            terms: self.rows,
+            total_df: data.offsets.len().saturating_sub(1),
+            total_ss,
+            levels: Vec::new(),
+            ci_pooled: true,
             cells: self.cells,
             cell_factors: self.treatment.factors,
             families,
-            marginal_means,
+            alternatives: Alternatives {
+                welch: None,
+                kruskal: None,
+            },
             checks,
-            decimals,
-            show: spec.show,
-            order: spec.order,
-            caption: spec.caption.clone(),
             warnings,
             acknowledged,
-            values: observations.values,
-            fitted: observations.fitted,
-            residuals: observations.residuals,
-            rows: observations.rows,
-            lines: observations.lines,
-            plots: spec.plots.clone(),
-            levels: data.levels,
-            exclusions: data.excluded,
+            presentation: Presentation {
+                decimals,
+                caption: spec.caption.clone(),
+                order: spec.order,
+                show: spec.show,
+                plots: spec.plots.clone(),
+            },
+            observations,
+            observed,
         }
     }
 }
 
-/// Per observation: value, fitted value, residual, levels and data line.
-#[derive(Default)]
-struct Observations {
-    values: Vec<f64>,
-    fitted: Vec<f64>,
-    residuals: Vec<f64>,
-    rows: Vec<Vec<usize>>,
-    lines: Vec<usize>,
-}
-
-impl Observations {
-    /// Only figures read the observations; without them the result (and
-    /// the cache entry) stays small whatever the number of rows.
-    fn kept(spec: &AnovaSpec, data: &FactorialData, residuals: &[f64]) -> Self {
-        if spec.plots.kinds.is_empty() {
-            return Observations::default();
-        }
-        Observations {
-            values: data.offsets.iter().map(|y| data.origin + y).collect(),
-            fitted: data
-                .offsets
-                .iter()
-                .zip(residuals)
-                .map(|(y, e)| data.origin + y - e)
-                .collect(),
-            residuals: residuals.to_vec(),
-            rows: data.rows(),
-            lines: data.lines.clone(),
-        }
+/// Every observation with its fitted value and residual. Only figures read
+/// them; without figures the outcome (and the cache entry) stays small
+/// whatever the number of rows.
+fn observations(spec: &AnovaSpec, data: &FactorialData, residuals: &[f64]) -> Vec<Observation> {
+    if spec.plots.kinds.is_empty() {
+        return Vec::new();
     }
+    data.offsets
+        .iter()
+        .zip(residuals)
+        .zip(data.rows())
+        .zip(&data.lines)
+        .map(|(((y, e), levels), &line)| Observation {
+            levels,
+            value: data.origin + y,
+            fitted: data.origin + y - e,
+            residual: *e,
+            line,
+        })
+        .collect()
 }

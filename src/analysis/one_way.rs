@@ -6,6 +6,7 @@ mod checks;
 mod comparisons;
 mod levels;
 mod notes;
+mod outcome;
 mod sample;
 
 pub use sample::RoundingRange;
@@ -16,12 +17,12 @@ use super::notes::{Note, split_acknowledged};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus};
 use crate::doc::{Block, Document};
-use crate::outcome::AnovaResult;
+use crate::outcome::linear::{Alternatives, LinearOutcome, Observed};
 use crate::provenance::Input;
 use crate::stats::effect::{EffectSizes, one_way_effects};
 use crate::stats::oneway::{OneWay, OneWayError, one_way, total_sum_of_squares};
 use crate::stats::ranks::{KruskalWallis, kruskal_wallis};
-use crate::stats::welch::{WelchAnova, welch_anova};
+use crate::stats::welch::welch_anova;
 use sample::{Reading, Sample};
 
 /// Runs a one-factor `anova` block on its data file. A streamed file comes
@@ -32,7 +33,7 @@ pub fn run_anova(
     spec: &AnovaSpec,
     data: Data<'_>,
     display_path: &str,
-) -> Result<(AnovaResult, Option<Input>), Diagnostic> {
+) -> Result<(LinearOutcome, Option<Input>), Diagnostic> {
     let formula = &spec.model.value;
     // `compile` sends models with several terms to `factorial::run_factorial`.
     if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
@@ -72,15 +73,9 @@ struct Engine<'a> {
     alpha: f64,
 }
 
-/// The omnibus tests beside the ANOVA table, as asked by `method`.
-struct Alternatives {
-    welch: Option<WelchAnova>,
-    kruskal: Option<KruskalWallis>,
-}
-
 impl Engine<'_> {
     /// The statistics of a loaded sample.
-    fn analyse(&self, sample: Sample, factor: String) -> Result<AnovaResult, Diagnostic> {
+    fn analyse(&self, sample: Sample, factor: String) -> Result<LinearOutcome, Diagnostic> {
         let (spec, alpha) = (self.spec, self.alpha);
         let table = self.table(&sample)?;
         let mut notes = notes::sample_notes(&sample, &table, &factor, spec);
@@ -100,43 +95,46 @@ impl Engine<'_> {
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         // Only figures read the observations; without them the result (and
         // the cache entry) stays small whatever the number of rows.
-        let (observations, observation_lines) = match sample.raw {
-            Some((offsets, lines)) if !spec.plots.kinds.is_empty() => (
-                offsets
+        let observations = match sample.raw {
+            Some((offsets, lines)) if !spec.plots.kinds.is_empty() => {
+                let values = offsets
                     .into_iter()
                     .map(|g| g.into_iter().map(|y| sample.origin + y).collect())
-                    .collect(),
-                lines,
-            ),
-            _ => (Vec::new(), Vec::new()),
+                    .collect();
+                outcome::observations(values, lines, &levels)
+            }
+            _ => Vec::new(),
         };
-        Ok(AnovaResult {
-            method: spec.method,
-            checks,
-            welch: alternatives.welch,
-            kruskal: alternatives.kruskal,
-            effect,
-            ci_pooled: pooled,
+        let observed = Observed::one_factor(&levels, &observations, &spec.plots);
+        Ok(LinearOutcome {
             id: self.block.id.clone(),
             line: self.block.line,
             data: spec.data.value.clone(),
             response: spec.model.value.response.clone(),
-            factor,
             alpha,
             n: table.n,
             exclusions: sample.excluded,
-            table,
+            method: spec.method,
+            ss_type: None,
+            types_agree: true,
+            factors: vec![outcome::factor(&factor, &levels)],
+            strata: vec![outcome::residual(&table)],
+            terms: vec![outcome::factor_term(&factor, &table, effect)],
+            total_df: table.n.saturating_sub(1),
+            total_ss: table.ss_total,
+            r_squared: table.r_squared,
+            ci_pooled: pooled,
+            cells: Vec::new(),
+            cell_factors: vec![0],
+            families: vec![outcome::level_family(&factor, &levels, comparison)],
             levels,
-            comparison,
+            alternatives,
+            checks,
             warnings,
             acknowledged,
-            decimals,
-            caption: spec.caption.clone(),
-            order: spec.order,
-            show: spec.show,
+            presentation: outcome::presentation(spec, decimals),
             observations,
-            observation_lines,
-            plots: spec.plots.clone(),
+            observed,
         })
     }
 

@@ -7,7 +7,6 @@ use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
 use crate::doc::{Block, BlockSpec, Document};
 use crate::outcome::BlockResult;
-use crate::outcome::linear::LinearOutcome;
 use crate::plan::unreadable;
 use crate::provenance::{Input, sha256_hex};
 use crate::world::World;
@@ -214,15 +213,9 @@ fn run_engine(
     let model = &spec.model.value;
     if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
         let (r, input) = run_factorial(doc, block, spec, data, display)?;
-        Ok((
-            BlockResult::Linear(Box::new(LinearOutcome::from(&r))),
-            input,
-        ))
+        Ok((BlockResult::Linear(Box::new(r)), input))
     } else {
         let (r, input) = run_anova(doc, block, spec, data, display)?;
-        Ok((
-            BlockResult::Linear(Box::new(LinearOutcome::from(&r))),
-            input,
-        ))
+        Ok((BlockResult::Linear(Box::new(r)), input))
     }
 }

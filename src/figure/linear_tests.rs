@@ -28,7 +28,7 @@ fn fitted(compare: &str) -> LinearOutcome {
     };
     let (r, _) = crate::analysis::factorial::run_factorial(&doc, block, spec, data, "d.csv")
         .expect("model fits");
-    LinearOutcome::from(&r)
+    r
 }
 
 /// The values at the centres of the means plot's markers, read back through

@@ -5,7 +5,7 @@
 //! families of estimates and contrasts, checks and notes. Projections
 //! (tables, prose, the results file, figures) read only this.
 
-use super::{CellRow, Checks};
+use super::Checks;
 use crate::data::Exclusion;
 use crate::doc::block::{Omnibus, Order, PlotSpec, Show};
 use crate::stats::compare::Method;
@@ -21,6 +21,14 @@ pub enum Role {
     Treatment,
     /// A blocking factor: it removes variation but is not tested.
     Block,
+}
+
+/// The residual stratum's name, as the ANOVA table prints it.
+pub const RESIDUAL: &str = "Residual";
+
+/// Term label for people: `wool × tension`.
+pub fn term_label(name: &str) -> String {
+    name.replace(':', " × ")
 }
 
 /// A categorical factor of the model.
@@ -99,6 +107,20 @@ pub struct LevelSummary {
     pub median: f64,
     pub q1: f64,
     pub q3: f64,
+}
+
+/// Observed data in one cell (one combination of the treatment factors' levels).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct CellRow {
+    pub levels: Vec<usize>,
+    pub n: usize,
+    pub mean: f64,
+    pub sd: f64,
+    /// The mean less the data's origin, as computed from the offsets: cell
+    /// contrasts taken from `mean` would carry the rounding of the origin's
+    /// magnitude (1e-8 near 1e8).
+    #[serde(skip)]
+    pub offset: f64,
 }
 
 /// An estimate: a level's mean, an estimated marginal mean or a cell mean.

@@ -3,7 +3,7 @@
 
 use super::terms::combinations;
 use crate::data::FactorialData;
-use crate::outcome::CellRow;
+use crate::outcome::linear::CellRow;
 use crate::stats::oneway::GroupSummary;
 
 /// The treatment cells of a design, every combination of the treatment

@@ -10,7 +10,7 @@ use crate::analysis::compare::{Declared, HOLM_NOTE, comparison_result, letters, 
 use crate::analysis::notes::{Note, NoteKind};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
-use crate::outcome::{CellRow, EmmRow, Family, TermRow, term_label};
+use crate::outcome::linear::{CellRow, Estimate, Family, TermTest, term_label};
 use crate::stats::compare::{Method, Pairwise, pairwise_with_se};
 use crate::stats::dist::t_isf;
 use crate::stats::dunnett::Sides;
@@ -23,7 +23,7 @@ pub(super) struct Comparing<'a> {
     pub data: &'a FactorialData,
     pub fitted: &'a Fitted,
     pub levels: &'a [usize],
-    pub rows: &'a [TermRow],
+    pub rows: &'a [TermTest],
     pub cells: &'a [CellRow],
     pub treatment: &'a TreatmentCells,
     pub types_agree: bool,
@@ -143,9 +143,9 @@ impl Comparing<'_> {
     }
 
     /// A mean with its SE and interval.
-    fn mean_row(&self, label: String, n: usize, mean: f64, se: f64) -> EmmRow {
+    fn mean_row(&self, label: String, n: usize, mean: f64, se: f64) -> Estimate {
         let t = self.t_crit();
-        EmmRow {
+        Estimate {
             label,
             n,
             mean,
@@ -158,7 +158,7 @@ impl Comparing<'_> {
     /// Every treatment factor's estimated marginal means, compared with
     /// nothing (`compare: none`); none where empty cells leave them
     /// inestimable.
-    pub fn marginal_means(&self) -> Vec<(String, Vec<EmmRow>)> {
+    pub fn marginal_means(&self) -> Vec<Family> {
         if self.fitted.rank_deficient {
             return Vec::new();
         }
@@ -171,8 +171,13 @@ impl Comparing<'_> {
                     factor: f,
                     within: None,
                 };
-                let (means, _) = self.marginal_estimates(&slice);
-                (self.model.factor_names[f].clone(), means)
+                let (estimates, _) = self.marginal_estimates(&slice);
+                Family {
+                    term: self.model.factor_names[f].clone(),
+                    within: None,
+                    estimates,
+                    comparison: None,
+                }
             })
             .collect()
     }
@@ -180,7 +185,7 @@ impl Comparing<'_> {
     /// Estimated marginal means of one factor (within one slice) with
     /// their SEs and intervals, and each estimate's offset, variance and
     /// grid weights (for the SEs of differences).
-    fn marginal_estimates(&self, slice: &Slice) -> (Vec<EmmRow>, Vec<GridEstimate>) {
+    fn marginal_estimates(&self, slice: &Slice) -> (Vec<Estimate>, Vec<GridEstimate>) {
         let (fitted, data, f) = (self.fitted, self.data, slice.factor);
         let mse = fitted.mse();
         let estimates: Vec<GridEstimate> = (0..self.levels[f])
@@ -205,7 +210,7 @@ impl Comparing<'_> {
                 .map(|(_, c)| c.n)
                 .sum::<usize>()
         };
-        let means: Vec<EmmRow> = estimates
+        let means: Vec<Estimate> = estimates
             .iter()
             .enumerate()
             .map(|(l, (v, var, _))| {
@@ -279,7 +284,7 @@ impl Comparing<'_> {
                 .hint("compare marginal means, or within one factor, instead"));
         }
         let mse = self.fitted.mse();
-        let means: Vec<EmmRow> = present
+        let means: Vec<Estimate> = present
             .iter()
             .map(|c| {
                 let label = treatment
@@ -308,7 +313,7 @@ impl Comparing<'_> {
         &self,
         term: &str,
         within: Option<String>,
-        means: Vec<EmmRow>,
+        means: Vec<Estimate>,
         mut family: Pairwise,
         (protected, p): (bool, f64),
     ) -> Family {
@@ -337,8 +342,15 @@ impl Comparing<'_> {
         Family {
             term: term.to_string(),
             within,
-            means,
-            comparison: comparison_result(method, family, alpha, declared, None, Sides::Two),
+            estimates: means,
+            comparison: Some(comparison_result(
+                method,
+                family,
+                (alpha, self.fitted.residual_df as f64),
+                declared,
+                None,
+                Sides::Two,
+            )),
         }
     }
 

@@ -4,7 +4,7 @@
 use super::fit::Fitted;
 use super::model::{Errors, Model};
 use crate::diag::Diagnostic;
-use crate::outcome::TermRow;
+use crate::outcome::linear::{TermEffect, TermTest};
 use crate::stats::dist::{f_isf, f_sf};
 use crate::stats::effect::noncentrality_interval;
 use crate::stats::linear::{SsTable, SsType, sums_of_squares};
@@ -106,7 +106,7 @@ pub(super) fn term_rows(
     fitted: &Fitted,
     alpha: f64,
     n: usize,
-) -> Vec<TermRow> {
+) -> Vec<TermTest> {
     let mse = fitted.mse();
     let rss = fitted.full.rss;
     let nu = fitted.residual_df as f64;
@@ -119,7 +119,7 @@ pub(super) fn term_rows(
             let df = t.df as f64;
             let ms = t.ss / df;
             let is_block = factors.len() == 1 && model.is_block(factors[0]);
-            let row = TermRow {
+            let row = TermTest {
                 name: model.term_names[i].clone(),
                 factors: factors.clone(),
                 df: t.df,
@@ -128,10 +128,18 @@ pub(super) fn term_rows(
                 f: f64::NAN,
                 p: f64::NAN,
                 critical_f: f64::NAN,
-                partial_eta_sq: f64::NAN,
-                partial_omega_sq: f64::NAN,
-                partial_eta_sq_ci: (f64::NAN, f64::NAN),
-                is_block,
+                stratum: 0,
+                denominator_df: nu,
+                tested: !is_block,
+                // The results file keeps a block's effect fields, as nulls.
+                effect: Some(TermEffect {
+                    eta_sq: None,
+                    partial_eta_sq: f64::NAN,
+                    omega_sq: f64::NAN,
+                    cohens_f: f64::NAN,
+                    partial_eta_sq_ci: (f64::NAN, f64::NAN),
+                    ci_level: 1.0 - alpha,
+                }),
             };
             if is_block {
                 return row;
@@ -139,13 +147,19 @@ pub(super) fn term_rows(
             let f = ms / mse;
             let (lo, hi) = noncentrality_interval(f, df, nu, 1.0 - alpha);
             let to_eta = |lambda: f64| lambda / (lambda + df + nu + 1.0);
-            TermRow {
+            let partial_eta_sq = t.ss / (t.ss + rss);
+            TermTest {
                 f,
                 p: f_sf(f, df, nu),
                 critical_f: f_isf(alpha, df, nu),
-                partial_eta_sq: t.ss / (t.ss + rss),
-                partial_omega_sq: df * (ms - mse) / (df * ms + (n as f64 - df) * mse),
-                partial_eta_sq_ci: (to_eta(lo), to_eta(hi)),
+                effect: Some(TermEffect {
+                    eta_sq: None,
+                    partial_eta_sq,
+                    omega_sq: df * (ms - mse) / (df * ms + (n as f64 - df) * mse),
+                    cohens_f: (partial_eta_sq / (1.0 - partial_eta_sq)).sqrt(),
+                    partial_eta_sq_ci: (to_eta(lo), to_eta(hi)),
+                    ci_level: 1.0 - alpha,
+                }),
                 ..row
             }
         })

@@ -10,7 +10,7 @@ use crate::analysis::compare::{
 use crate::analysis::notes::Note;
 use crate::diag::Diagnostic;
 use crate::doc::block::Omnibus;
-use crate::outcome::{ComparisonResult, LevelResult};
+use crate::outcome::linear::{Comparison, LevelSummary};
 use crate::stats::compare::{LevelMean, Method, Pairwise, pairwise};
 use crate::stats::dunnett::{DUNNETT_MIN_ALPHA, Sides, dunnett};
 use crate::stats::letters::letter_count;
@@ -24,11 +24,11 @@ impl Engine<'_> {
     pub(super) fn comparison(
         &self,
         sample: &Sample,
-        levels: &[LevelResult],
+        levels: &[LevelSummary],
         table: &OneWay,
         alternatives: &Alternatives,
         notes: &mut Vec<Note>,
-    ) -> Result<Option<ComparisonResult>, Diagnostic> {
+    ) -> Result<Option<Comparison>, Diagnostic> {
         let Some(method) = self.spec.compare else {
             return Ok(None);
         };
@@ -67,7 +67,7 @@ impl Engine<'_> {
         Ok(Some(comparison_result(
             method,
             family,
-            self.alpha,
+            (self.alpha, table.df_within as f64),
             declared,
             control,
             self.spec.sides,
@@ -79,7 +79,7 @@ impl Engine<'_> {
         &self,
         method: Method,
         sample: &Sample,
-        levels: &[LevelResult],
+        levels: &[LevelSummary],
         table: &OneWay,
         alternatives: &Alternatives,
     ) -> Result<(Pairwise, Option<usize>), Diagnostic> {
@@ -116,7 +116,7 @@ impl Engine<'_> {
 
     /// The level `control` names, checked, and α within the range where
     /// Dunnett's critical value is accurate.
-    fn dunnett_control(&self, levels: &[LevelResult]) -> Result<usize, Diagnostic> {
+    fn dunnett_control(&self, levels: &[LevelSummary]) -> Result<usize, Diagnostic> {
         let (spec, alpha) = (self.spec, self.alpha);
         let Some(c) = spec.control.as_ref() else {
             return Err(self.doc.error_at(

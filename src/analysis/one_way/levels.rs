@@ -1,7 +1,7 @@
 //! Each level's statistics: n, mean, SD, its interval and quartiles.
 
 use super::sample::Sample;
-use crate::outcome::LevelResult;
+use crate::outcome::linear::LevelSummary;
 use crate::stats::assumptions::quartiles;
 use crate::stats::dist::t_isf;
 use crate::stats::oneway::OneWay;
@@ -13,7 +13,7 @@ pub(super) fn level_rows(
     table: &OneWay,
     alpha: f64,
     pooled: bool,
-) -> Vec<LevelResult> {
+) -> Vec<LevelSummary> {
     let t_crit = if table.df_within > 0 {
         t_isf(alpha / 2.0, table.df_within as f64)
     } else {
@@ -43,7 +43,7 @@ pub(super) fn level_rows(
                 .map_or((f64::NAN, f64::NAN, f64::NAN), |(offsets, _)| {
                     quartiles(&offsets[i])
                 });
-            LevelResult {
+            LevelSummary {
                 name: name.clone(),
                 n: s.n,
                 mean,

@@ -11,6 +11,9 @@ use crate::outcome::linear::{LinearOutcome, TermTest};
 use crate::render::view::{Cell, TableView};
 use crate::stats::linear::SsType;
 
+/// Why a blocking factor's row shows no F, p or effect size.
+const BLOCK_NOT_TESTED: &str = "Blocks are reported (SS, df, MS) but not tested: blocks are not randomized, so an F for them is not a valid test (Montgomery, ch. 4). Their sum of squares is what the blocking removed from the error.";
+
 /// The ANOVA table: per stratum its terms and then its own row; blocking
 /// factors show SS, df and MS but are not tested.
 pub fn anova_table(o: &LinearOutcome, keys: &Keys, number: usize) -> TableView {
@@ -197,7 +200,7 @@ fn factorial_footnotes(o: &LinearOutcome) -> Vec<String> {
         "All factors are fixed effects; every F uses the residual mean square.".to_string(),
     ];
     if o.terms.iter().any(|t| !t.tested) {
-        footnotes.push(crate::outcome::BLOCK_NOT_TESTED.to_string());
+        footnotes.push(BLOCK_NOT_TESTED.to_string());
     }
     if o.types_agree {
         footnotes.push("The design is balanced: Types I, II and III sums of squares agree.".into());

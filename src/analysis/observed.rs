@@ -2,25 +2,34 @@
 //! level's spread, the observed means of treatment-factor pairs, and the
 //! residuals' normal scores. Figures compute no statistics of their own.
 
-use super::FactorialResult;
-use super::linear::{
+use crate::doc::block::{PlotKind, PlotSpec};
+use crate::outcome::linear::{
     Estimate, LevelSpread, LevelSummary, NormalQq, Observation, Observed, TwoWayMeans,
 };
-use crate::doc::block::{PlotKind, PlotSpec};
 use crate::stats::assumptions::quartiles;
 use crate::stats::dist::{normal_isf, t_isf};
 
 /// The residual stratum a pooled interval is taken from.
-struct PooledError {
-    ms: f64,
-    df: f64,
-    alpha: f64,
+pub(crate) struct PooledError {
+    pub ms: f64,
+    pub df: f64,
+    pub alpha: f64,
+}
+
+/// What the summaries of a factorial fit's observations need.
+pub(crate) struct FactorialLayout<'a> {
+    /// Number of levels of each factor.
+    pub level_counts: Vec<usize>,
+    /// The treatment factors (the blocks have no spreads).
+    pub treatments: &'a [usize],
+    pub plots: &'a PlotSpec,
+    pub error: PooledError,
 }
 
 impl Observed {
     /// One factor: the engine's level statistics, and the Q-Q coordinates
     /// when a Q-Q plot is asked for.
-    pub fn one_factor(
+    pub(crate) fn one_factor(
         levels: &[LevelSummary],
         observations: &[Observation],
         plots: &PlotSpec,
@@ -45,17 +54,16 @@ impl Observed {
     /// Several factors: each treatment factor's level spreads, the observed
     /// means of every pair of treatment factors (when an interaction plot is
     /// asked for) and the Q-Q coordinates (when a Q-Q plot is).
-    pub fn factorial(r: &FactorialResult, observations: &[Observation]) -> Self {
+    pub(crate) fn factorial(layout: FactorialLayout<'_>, observations: &[Observation]) -> Self {
         if observations.is_empty() {
             return Observed::default();
         }
-        let level_counts: Vec<usize> = r.levels.iter().map(Vec::len).collect();
-        let (treatments, plots) = (&r.cell_factors, &r.plots);
-        let error = PooledError {
-            ms: r.mse,
-            df: r.residual_df as f64,
-            alpha: r.alpha,
-        };
+        let FactorialLayout {
+            level_counts,
+            treatments,
+            plots,
+            error,
+        } = layout;
         let spreads = (0..level_counts.len())
             .map(|f| {
                 if treatments.contains(&f) {
