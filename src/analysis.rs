@@ -7,6 +7,8 @@
 //! - `one_way`: one factor, from raw observations or published summaries;
 //! - `factorial`: factorial, block and Latin-square designs (linear model);
 //! - `power`: the `power` block, which reads no data;
+//! - `request`: what an engine receives and returns, and which engine a
+//!   model goes to;
 //! - shared by the engines: `checks` (assumption checks and their advice),
 //!   `compare` (protection, letters), `notes` (typed notes and
 //!   `acknowledge:`), `exclusions` (rows left out, told in sentences).
@@ -15,17 +17,19 @@ mod binding;
 mod checks;
 mod compare;
 mod exclusions;
-pub mod factorial;
+mod factorial;
 mod notes;
 mod observed;
 mod one_way;
 mod power;
+mod request;
 
 pub(crate) use binding::reads_csv_rows;
 pub use binding::{Data, streams};
 pub use notes::{Note, NoteKind};
-pub use one_way::{RoundingRange, run_anova};
+pub use one_way::RoundingRange;
 pub use power::run_power;
+pub use request::{Analysis, Request, run_linear};
 
 /// Above this many levels pairwise comparisons are skipped with a warning
 /// (200 levels are 19,900 pairs, each with its own studentized-range tail).

@@ -8,10 +8,9 @@
 //! scikit-posthocs, published tables), embedded at compile time; nothing is
 //! compared with sheaf's own output.
 
-use crate::analysis::Data;
-use crate::analysis::factorial::run_factorial;
+use crate::analysis::{Data, Request, run_linear};
 use crate::diag::Diagnostic;
-use crate::doc::{Block, BlockSpec, Document, block::AnovaSpec, parse_document};
+use crate::doc::{BlockSpec, parse_document};
 use crate::outcome::linear::LinearOutcome;
 use crate::provenance::Input;
 use crate::stats::dist::{f_isf, t_isf};
@@ -256,11 +255,7 @@ fn num(v: &Value) -> f64 {
 
 /// Runs one `anova` block with `keys` (one per line) on `csv`, held in
 /// memory as `d.csv`, through the same engine entry points as a report.
-fn run_block<T>(
-    keys: &str,
-    csv: &str,
-    engine: impl FnOnce(&Document, &Block, &AnovaSpec, Data<'_>) -> Result<T, Diagnostic>,
-) -> Option<T> {
+fn run_block(keys: &str, csv: &str) -> Option<LinearOutcome> {
     let text = format!("```anova\nid: check\ndata: d.csv\n{keys}\n```\n");
     let doc = parse_document("validate.md", text).ok()?;
     let block = doc.blocks.first()?;
@@ -273,21 +268,24 @@ fn run_block<T>(
         size: csv.len() as u64,
         bytes: Some(csv.as_bytes().to_vec()),
     };
-    engine(&doc, block, spec, Data::Loaded(&input)).ok()
+    let request = Request {
+        doc: &doc,
+        block,
+        spec,
+        data: Data::Loaded(&input),
+        display_path: "d.csv",
+    };
+    run_linear(request).ok().map(|(r, _)| r)
 }
 
 /// A one-factor block's outcome, as a report computes it.
 fn one_factor(keys: &str, csv: &str) -> Option<LinearOutcome> {
-    run_block(keys, csv, |doc, block, spec, data| {
-        crate::analysis::run_anova(doc, block, spec, data, "d.csv").map(|(r, _)| r)
-    })
+    run_block(keys, csv)
 }
 
 /// A factorial block's outcome, as a report computes it.
 fn factorial(keys: &str, csv: &str) -> Option<LinearOutcome> {
-    run_block(keys, csv, |doc, block, spec, data| {
-        run_factorial(doc, block, spec, data, "d.csv").map(|(r, _)| r)
-    })
+    run_block(keys, csv)
 }
 
 /// Runs every check.
@@ -635,30 +633,22 @@ fn published(checks: &mut Vec<Check>) {
     ];
     let fam = dunnett(&levels, 0, 1.3805233, 12.0, 0.05, Sides::Two);
     let src = "Dunnett (1955) data; deterministic reference quadrature";
-    checks.push(Check::new(
-        Area::Dunnett,
-        "Dunnett adjusted p, drug A",
-        src,
-        fam.pairs[0].p_adj,
-        0.6201020,
-        Bar::MaxAbs { diff: 1e-6 },
-    ));
-    checks.push(Check::new(
-        Area::Dunnett,
-        "Dunnett adjusted p, drug B",
-        src,
-        fam.pairs[1].p_adj,
-        0.0058254,
-        Bar::MaxAbs { diff: 1e-6 },
-    ));
-    checks.push(Check::new(
-        Area::Dunnett,
-        "Dunnett critical value",
-        src,
-        fam.critical,
-        2.51348,
-        Bar::MaxAbs { diff: 5e-5 },
-    ));
+    let p = |i: usize| fam.pairs.get(i).map_or(f64::NAN, |pair| pair.p_adj);
+    for (what, got, want, diff) in [
+        ("adjusted p, drug A", p(0), 0.6201020, 1e-6),
+        ("adjusted p, drug B", p(1), 0.0058254, 1e-6),
+        ("critical value", fam.critical, 2.51348, 5e-5),
+    ] {
+        let bar = Bar::MaxAbs { diff };
+        checks.push(Check::new(
+            Area::Dunnett,
+            format!("Dunnett {what}"),
+            src,
+            got,
+            want,
+            bar,
+        ));
+    }
     // Harter (1960) studentized range table, q(0.95), printed to 3 decimals.
     for (k, df, q) in [
         (3, 10.0, 3.877),

@@ -77,7 +77,13 @@ pub(crate) fn data_error(
         _ => None,
     };
     let reader = crate::data::reader::reader_for(display_path);
-    let mut d = match reader.place(display_path, sheet, e.line, e.column) {
+    let at = crate::data::reader::FilePlace {
+        path: display_path,
+        sheet,
+        line: e.line,
+        column: e.column,
+    };
+    let mut d = match reader.place(&at) {
         Some(place) => Diagnostic::new(e.message).at(&place, None, None),
         None => Diagnostic::new(e.message).at(display_path, e.line, e.column),
     };

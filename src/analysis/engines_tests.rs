@@ -1,8 +1,7 @@
 //! The engines end to end on small invented data: which notes each raises,
 //! and of which kind (`acknowledge:` moves a kind aside, never a wording).
 
-use super::factorial::run_factorial;
-use super::{Data, run_anova};
+use super::{Data, Request, run_linear};
 use crate::doc::{BlockSpec, parse_document};
 use crate::provenance::Input;
 
@@ -20,14 +19,15 @@ fn notes_of(document: &str, csv: &str) -> (Vec<String>, Vec<String>) {
         size: csv.len() as u64,
         bytes: Some(csv.as_bytes().to_vec()),
     };
-    let one_factor = spec.model.value.terms.len() == 1;
-    if one_factor {
-        let (r, _) = run_anova(&doc, block, spec, Data::Loaded(&input), "d.csv").expect("runs");
-        (r.warnings, r.acknowledged)
-    } else {
-        let (r, _) = run_factorial(&doc, block, spec, Data::Loaded(&input), "d.csv").expect("runs");
-        (r.warnings, r.acknowledged)
-    }
+    let request = Request {
+        doc: &doc,
+        block,
+        spec,
+        data: Data::Loaded(&input),
+        display_path: "d.csv",
+    };
+    let (r, _) = run_linear(request).expect("runs");
+    (r.warnings, r.acknowledged)
 }
 
 #[test]

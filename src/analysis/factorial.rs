@@ -20,10 +20,11 @@ mod residuals;
 mod table;
 mod terms;
 
-use super::binding::{Data, decimals_shown};
+use super::binding::decimals_shown;
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
 use super::observed::{FactorialLayout, PooledError};
+use super::request::{Analysis, Request};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
@@ -34,7 +35,6 @@ use crate::outcome::linear::{
     Alternatives, CellRow, Factor, Family, LinearOutcome, Observation, Observed, Presentation,
     RESIDUAL, Role, Stratum, TermTest,
 };
-use crate::provenance::Input;
 use crate::stats::oneway::GroupSummary;
 use cells::TreatmentCells;
 use fit::Fitted;
@@ -43,13 +43,14 @@ use residuals::Residuals;
 use table::Chosen;
 
 /// Runs a factorial `anova` block.
-pub fn run_factorial(
-    doc: &Document,
-    block: &Block,
-    spec: &AnovaSpec,
-    data: Data<'_>,
-    display_path: &str,
-) -> Result<(LinearOutcome, Option<Input>), Diagnostic> {
+pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
+    let Request {
+        doc,
+        block,
+        spec,
+        data,
+        display_path,
+    } = request;
     let mut errors = Errors {
         doc,
         spec,

@@ -11,14 +11,14 @@ mod sample;
 
 pub use sample::RoundingRange;
 
-use super::binding::{Data, apply_labels, check_labels, decimals_shown};
+use super::binding::{apply_labels, check_labels, decimals_shown};
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
+use super::request::{Analysis, Request};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus};
 use crate::doc::{Block, Document};
 use crate::outcome::linear::{Alternatives, LinearOutcome, Observed};
-use crate::provenance::Input;
 use crate::stats::effect::{EffectSizes, one_way_effects};
 use crate::stats::oneway::{OneWay, OneWayError, one_way, total_sum_of_squares};
 use crate::stats::ranks::{KruskalWallis, kruskal_wallis};
@@ -27,13 +27,14 @@ use sample::{Reading, Sample};
 
 /// Runs a one-factor `anova` block on its data file. A streamed file comes
 /// back as the `Input` that records it (hash and size, no bytes).
-pub fn run_anova(
-    doc: &Document,
-    block: &Block,
-    spec: &AnovaSpec,
-    data: Data<'_>,
-    display_path: &str,
-) -> Result<(LinearOutcome, Option<Input>), Diagnostic> {
+pub(super) fn run_anova(request: Request<'_>) -> Analysis {
+    let Request {
+        doc,
+        block,
+        spec,
+        data,
+        display_path,
+    } = request;
     let formula = &spec.model.value;
     // `compile` sends models with several terms to `factorial::run_factorial`.
     if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {

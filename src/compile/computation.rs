@@ -1,8 +1,7 @@
 //! The data and engine steps of a build: each block's data read (or
 //! streamed past), hashed, looked up in the cache, and computed by its engine.
 
-use crate::analysis::factorial::run_factorial;
-use crate::analysis::{Data, reads_csv_rows, run_anova, run_power};
+use crate::analysis::{Data, Request, reads_csv_rows, run_linear, run_power};
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
 use crate::doc::{Block, BlockSpec, Document};
@@ -201,21 +200,20 @@ fn cache_key(doc: &Document, block: &Block, input_hash: &str) -> String {
     )
 }
 
-/// The engine for a block's model: the one-factor engine (which also
-/// streams), or the linear-model engine for several terms.
+/// The block's linear engine, its outcome boxed as a block result.
 fn run_engine(
     doc: &Document,
     block: &Block,
     spec: &AnovaSpec,
     data: Data<'_>,
-    display: &str,
+    display_path: &str,
 ) -> Result<(BlockResult, Option<Input>), Diagnostic> {
-    let model = &spec.model.value;
-    if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
-        let (r, input) = run_factorial(doc, block, spec, data, display)?;
-        Ok((BlockResult::Linear(Box::new(r)), input))
-    } else {
-        let (r, input) = run_anova(doc, block, spec, data, display)?;
-        Ok((BlockResult::Linear(Box::new(r)), input))
-    }
+    let (r, input) = run_linear(Request {
+        doc,
+        block,
+        spec,
+        data,
+        display_path,
+    })?;
+    Ok((BlockResult::Linear(Box::new(r)), input))
 }

@@ -28,13 +28,16 @@ pub trait Reader: Sync {
     fn read(&self, bytes: &[u8], options: ReadOptions) -> Result<Table, DataError>;
     /// Names a place in the file for messages; `None` where the usual
     /// `path:line:column` says it.
-    fn place(
-        &self,
-        path: &str,
-        sheet: Option<&str>,
-        line: Option<usize>,
-        column: Option<usize>,
-    ) -> Option<String>;
+    fn place(&self, at: &FilePlace<'_>) -> Option<String>;
+}
+
+/// A place in a data file, as an error reports it.
+pub struct FilePlace<'a> {
+    pub path: &'a str,
+    /// The sheet a block named (workbooks).
+    pub sheet: Option<&'a str>,
+    pub line: Option<usize>,
+    pub column: Option<usize>,
 }
 
 /// Delimited text (RFC 4180), the format of every file no other reader claims.
@@ -61,13 +64,7 @@ impl Reader for Csv {
         Table::parse(bytes, options.csv)
     }
 
-    fn place(
-        &self,
-        _: &str,
-        _: Option<&str>,
-        _: Option<usize>,
-        _: Option<usize>,
-    ) -> Option<String> {
+    fn place(&self, _: &FilePlace<'_>) -> Option<String> {
         None
     }
 }
@@ -97,13 +94,13 @@ impl Reader for Spreadsheet {
     }
 
     /// A workbook has rows and cells, not lines: name them, with the sheet.
-    fn place(
-        &self,
-        path: &str,
-        sheet: Option<&str>,
-        line: Option<usize>,
-        column: Option<usize>,
-    ) -> Option<String> {
+    fn place(&self, at: &FilePlace<'_>) -> Option<String> {
+        let FilePlace {
+            path,
+            sheet,
+            line,
+            column,
+        } = *at;
         let sheet = sheet.map_or_else(|| "the first sheet".to_string(), |s| format!("sheet `{s}`"));
         Some(match (line, column) {
             (Some(row), Some(column)) => {

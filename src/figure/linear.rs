@@ -6,8 +6,8 @@
 use super::Figure;
 use super::dense;
 use super::plots::{
-    CategoricalPlot, Group, Series, box_plot, interaction_plot, means_plot, qq_plot, residual_plot,
-    strip_plot,
+    CategoricalPlot, Chart, Group, Series, box_plot, interaction_plot, means_plot, qq_plot,
+    residual_plot, strip_plot,
 };
 use crate::doc::block::PlotKind;
 use crate::format::{confidence_label, fixed};
@@ -218,15 +218,15 @@ fn factor_figure(
             .join(", ")
     );
     let y_title = axis_title(o);
-    let svg = draw(
+    let chart = Chart {
         id,
-        &caption,
-        &desc,
-        &groups,
-        &y_title,
-        factor,
-        spec.reference,
-    );
+        title: &caption,
+        desc: &desc,
+        y_title: &y_title,
+        x_title: factor,
+        reference: spec.reference,
+    };
+    let svg = draw(&chart, &groups);
     (caption, svg)
 }
 

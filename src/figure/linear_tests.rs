@@ -26,8 +26,14 @@ fn fitted(compare: &str) -> LinearOutcome {
         path: "d.csv",
         reader: Box::new(CSV.as_bytes()),
     };
-    let (r, _) = crate::analysis::factorial::run_factorial(&doc, block, spec, data, "d.csv")
-        .expect("model fits");
+    let request = crate::analysis::Request {
+        doc: &doc,
+        block,
+        spec,
+        data,
+        display_path: "d.csv",
+    };
+    let (r, _) = crate::analysis::run_linear(request).expect("model fits");
     r
 }
 

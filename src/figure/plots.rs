@@ -17,8 +17,38 @@ const MUTED: &str = "#6e6e73";
 /// A line of an interaction plot: its name and (mean, lower, upper) per x level.
 pub(super) type Series = (String, Vec<(f64, f64, f64)>);
 
-/// A categorical plot drawer: (id, title, desc, groups, y title, x title, reference line).
-pub(super) type CategoricalPlot = fn(&str, &str, &str, &[Group], &str, &str, Option<f64>) -> String;
+/// A categorical plot drawer.
+pub(super) type CategoricalPlot = fn(&Chart, &[Group]) -> String;
+
+/// What every categorical plot is told besides its groups: its id, title
+/// and description (for screen readers), axis titles and reference line.
+pub(super) struct Chart<'a> {
+    pub id: &'a str,
+    pub title: &'a str,
+    pub desc: &'a str,
+    pub y_title: &'a str,
+    pub x_title: &'a str,
+    pub reference: Option<f64>,
+}
+
+impl Chart<'_> {
+    /// The drawing with its axes laid out for the groups, and each group's x.
+    fn layout(&self, groups: &[Group]) -> (Svg, Frame, Vec<f64>) {
+        let mut svg = Svg::new(self.id, WIDTH, HEIGHT, self.title, self.desc);
+        let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
+        let (lo, hi) = range(groups);
+        let (frame, xs) = Frame::categorical(
+            &mut svg,
+            &labels,
+            lo,
+            hi,
+            self.y_title,
+            self.x_title,
+            self.reference,
+        );
+        (svg, frame, xs)
+    }
+}
 
 /// One group on a categorical axis.
 pub(super) struct Group<'a> {
@@ -219,19 +249,8 @@ fn range(groups: &[Group]) -> (f64, f64) {
     if lo.is_finite() { (lo, hi) } else { (0.0, 1.0) }
 }
 
-pub(super) fn box_plot(
-    id: &str,
-    title: &str,
-    desc: &str,
-    groups: &[Group],
-    y_title: &str,
-    x_title: &str,
-    reference: Option<f64>,
-) -> String {
-    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
-    let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
-    let (lo, hi) = range(groups);
-    let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
+pub(super) fn box_plot(chart: &Chart, groups: &[Group]) -> String {
+    let (mut svg, frame, xs) = chart.layout(groups);
     let half = (frame.slot(groups.len()) * 0.22).min(28.0);
     let many = dense::summarised(observations(groups));
     for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {
@@ -302,19 +321,8 @@ pub(super) fn box_plot(
     svg.finish()
 }
 
-pub(super) fn strip_plot(
-    id: &str,
-    title: &str,
-    desc: &str,
-    groups: &[Group],
-    y_title: &str,
-    x_title: &str,
-    reference: Option<f64>,
-) -> String {
-    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
-    let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
-    let (lo, hi) = range(groups);
-    let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
+pub(super) fn strip_plot(chart: &Chart, groups: &[Group]) -> String {
+    let (mut svg, frame, xs) = chart.layout(groups);
     let half = (frame.slot(groups.len()) * 0.25).min(30.0);
     let many = dense::summarised(observations(groups));
     let values: Vec<&[f64]> = groups.iter().map(|g| g.values).collect();
@@ -362,19 +370,8 @@ pub(super) fn strip_plot(
     svg.finish()
 }
 
-pub(super) fn means_plot(
-    id: &str,
-    title: &str,
-    desc: &str,
-    groups: &[Group],
-    y_title: &str,
-    x_title: &str,
-    reference: Option<f64>,
-) -> String {
-    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
-    let labels: Vec<&str> = groups.iter().map(|g| g.label).collect();
-    let (lo, hi) = range(groups);
-    let (frame, xs) = Frame::categorical(&mut svg, &labels, lo, hi, y_title, x_title, reference);
+pub(super) fn means_plot(chart: &Chart, groups: &[Group]) -> String {
+    let (mut svg, frame, xs) = chart.layout(groups);
     let half = (frame.slot(groups.len()) * 0.3).min(34.0);
     let many = dense::summarised(observations(groups));
     for (i, (g, &x)) in groups.iter().zip(&xs).enumerate() {

@@ -114,9 +114,7 @@ pub fn f_sf(f: f64, d1: f64, d2: f64) -> f64 {
     if f.is_infinite() {
         return 0.0;
     }
-    let denom = d2 + d1 * f;
-    let (x, y) = (d2 / denom, d1 * f / denom);
-    inc_beta_pair(d2 / 2.0, d1 / 2.0, x, y).0
+    f_tails(f, d1, d2).0
 }
 
 /// F cdf P(F ≤ f).
@@ -124,9 +122,16 @@ pub fn f_cdf(f: f64, d1: f64, d2: f64) -> f64 {
     if f <= 0.0 {
         return 0.0;
     }
+    f_tails(f, d1, d2).1
+}
+
+/// (P(F > f), P(F ≤ f)) for f > 0, each computed directly from the
+/// incomplete beta function (neither as one minus the other, which would
+/// lose a small tail).
+fn f_tails(f: f64, d1: f64, d2: f64) -> (f64, f64) {
     let denom = d2 + d1 * f;
     let (x, y) = (d2 / denom, d1 * f / denom);
-    inc_beta_pair(d2 / 2.0, d1 / 2.0, x, y).1
+    inc_beta_pair(d2 / 2.0, d1 / 2.0, x, y)
 }
 
 /// F density.
