@@ -29,7 +29,7 @@ pub use binding::{Data, streams};
 pub use notes::{Note, NoteKind};
 pub use one_way::RoundingRange;
 pub use power::run_power;
-pub use request::{Analysis, Request, run_linear};
+pub use request::{Analysis, Request, run_linear, run_on_csv};
 
 /// Above this many levels pairwise comparisons are skipped with a warning
 /// (200 levels are 19,900 pairs, each with its own studentized-range tail).

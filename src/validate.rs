@@ -8,11 +8,10 @@
 //! scikit-posthocs, published tables), embedded at compile time; nothing is
 //! compared with sheaf's own output.
 
-use crate::analysis::{Data, Request, run_linear};
+use crate::analysis::run_on_csv;
 use crate::diag::Diagnostic;
-use crate::doc::{BlockSpec, parse_document};
+use crate::doc::parse_document;
 use crate::outcome::linear::LinearOutcome;
-use crate::provenance::Input;
 use crate::stats::dist::{f_isf, t_isf};
 use crate::stats::dunnett::{Sides, dunnett};
 use crate::stats::effect::one_way_sample_size;
@@ -210,20 +209,6 @@ impl Validation {
     }
 }
 
-/// The day of the run; see `Validation::date`. Validation output records
-/// when this installation was checked, so it may read the clock; builds of
-/// reports never do.
-fn run_date() -> Option<String> {
-    let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
-        Ok(v) => v.trim().parse::<i64>().ok()?,
-        Err(_) => std::time::SystemTime::now()
-            .duration_since(std::time::UNIX_EPOCH)
-            .ok()?
-            .as_secs() as i64,
-    };
-    Some(crate::compile::civil_date(seconds))
-}
-
 const NIST: [(&str, &str); 11] = [
     ("AtmWtAg", include_str!("../tests/data/nist/AtmWtAg.csv")),
     ("SiRstv", include_str!("../tests/data/nist/SiRstv.csv")),
@@ -259,23 +244,7 @@ fn run_block(keys: &str, csv: &str) -> Option<LinearOutcome> {
     let text = format!("```anova\nid: check\ndata: d.csv\n{keys}\n```\n");
     let doc = parse_document("validate.md", text).ok()?;
     let block = doc.blocks.first()?;
-    let BlockSpec::Anova(spec) = &block.spec else {
-        return None;
-    };
-    let input = Input {
-        path: "d.csv".into(),
-        sha256: String::new(),
-        size: csv.len() as u64,
-        bytes: Some(csv.as_bytes().to_vec()),
-    };
-    let request = Request {
-        doc: &doc,
-        block,
-        spec,
-        data: Data::Loaded(&input),
-        display_path: "d.csv",
-    };
-    run_linear(request).ok().map(|(r, _)| r)
+    run_on_csv(&doc, block, csv)?.ok().map(|(r, _)| r)
 }
 
 /// A one-factor block's outcome, as a report computes it.
@@ -303,7 +272,9 @@ pub fn run() -> Validation {
         sheaf: crate::VERSION.to_string(),
         revision: REVISION.to_string(),
         platform: format!("{}-{}", std::env::consts::ARCH, std::env::consts::OS),
-        date: run_date(),
+        // The record of when this installation was checked may read the
+        // clock; builds of reports never do.
+        date: crate::world::system_today(),
         checks,
     }
 }

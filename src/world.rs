@@ -103,6 +103,19 @@ pub fn read_regular(path: &Path, limit: u64) -> std::io::Result<Vec<u8>> {
     Ok(bytes)
 }
 
+/// Today's date: `SOURCE_DATE_EPOCH` when set (reproducible builds), else
+/// the system clock. The one place the crate reads the clock.
+pub fn system_today() -> Option<String> {
+    let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
+        Ok(v) => v.trim().parse::<i64>().ok()?,
+        Err(_) => std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .ok()?
+            .as_secs() as i64,
+    };
+    Some(civil_date(seconds))
+}
+
 /// Files on disk, relative to a document's folder.
 pub struct DiskWorld {
     pub base: PathBuf,
@@ -130,16 +143,8 @@ impl World for DiskWorld {
         }
     }
 
-    /// `SOURCE_DATE_EPOCH` when set (reproducible builds), else the system clock.
     fn today(&self) -> Option<String> {
-        let seconds = match std::env::var("SOURCE_DATE_EPOCH") {
-            Ok(v) => v.trim().parse::<i64>().ok()?,
-            Err(_) => std::time::SystemTime::now()
-                .duration_since(std::time::UNIX_EPOCH)
-                .ok()?
-                .as_secs() as i64,
-        };
-        Some(civil_date(seconds))
+        system_today()
     }
 }
 

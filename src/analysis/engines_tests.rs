@@ -1,32 +1,15 @@
 //! The engines end to end on small invented data: which notes each raises,
 //! and of which kind (`acknowledge:` moves a kind aside, never a wording).
 
-use super::{Data, Request, run_linear};
-use crate::doc::{BlockSpec, parse_document};
-use crate::provenance::Input;
+use super::run_on_csv;
+use crate::doc::parse_document;
 
 /// The warnings and acknowledged notes of the first block of `document`,
 /// run on `csv` (invented data) as `d.csv`.
 fn notes_of(document: &str, csv: &str) -> (Vec<String>, Vec<String>) {
     let doc = parse_document("t.md", document.to_string()).expect("document parses");
-    let block = &doc.blocks[0];
-    let BlockSpec::Anova(spec) = &block.spec else {
-        panic!("an anova block")
-    };
-    let input = Input {
-        path: "d.csv".into(),
-        sha256: String::new(),
-        size: csv.len() as u64,
-        bytes: Some(csv.as_bytes().to_vec()),
-    };
-    let request = Request {
-        doc: &doc,
-        block,
-        spec,
-        data: Data::Loaded(&input),
-        display_path: "d.csv",
-    };
-    let (r, _) = run_linear(request).expect("runs");
+    let analysis = run_on_csv(&doc, &doc.blocks[0], csv).expect("an anova block");
+    let (r, _) = analysis.expect("runs");
     (r.warnings, r.acknowledged)
 }
 

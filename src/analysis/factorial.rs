@@ -44,13 +44,7 @@ use table::Chosen;
 
 /// Runs a factorial `anova` block.
 pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
-    let Request {
-        doc,
-        block,
-        spec,
-        data,
-        display_path,
-    } = request;
+    let (doc, block, spec) = (request.doc, request.block, request.spec);
     let mut errors = Errors {
         doc,
         spec,
@@ -59,7 +53,8 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     model::refuse_one_factor_keys(&errors)?;
     let mut model = Model::from_spec(doc, spec)?;
     let names: Vec<&str> = model.factor_names.iter().map(String::as_str).collect();
-    let (data, streamed) = read::read_observations(&errors, block, data, &names, display_path)?;
+    let (data, streamed) =
+        read::read_observations(&errors, block, request.data, &names, request.display_path)?;
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
     if let Some(f) = levels.iter().position(|&l| l < 2) {
         return Err(errors.model(

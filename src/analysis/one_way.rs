@@ -28,13 +28,7 @@ use sample::{Reading, Sample};
 /// Runs a one-factor `anova` block on its data file. A streamed file comes
 /// back as the `Input` that records it (hash and size, no bytes).
 pub(super) fn run_anova(request: Request<'_>) -> Analysis {
-    let Request {
-        doc,
-        block,
-        spec,
-        data,
-        display_path,
-    } = request;
+    let (doc, block, spec) = (request.doc, request.block, request.spec);
     let formula = &spec.model.value;
     // `compile` sends models with several terms to `factorial::run_factorial`.
     if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
@@ -50,9 +44,9 @@ pub(super) fn run_anova(request: Request<'_>) -> Analysis {
         block,
         spec,
         factor: &factor,
-        display_path,
+        display_path: request.display_path,
     };
-    let (mut sample, streamed) = reading.load(data)?;
+    let (mut sample, streamed) = reading.load(request.data)?;
     let names: Vec<&str> = sample.names.iter().map(String::as_str).collect();
     check_labels(doc, spec, &names)?;
     apply_labels(&mut sample.names, &spec.labels);

@@ -4,7 +4,7 @@
 use super::binding::Data;
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
-use crate::doc::{Block, Document};
+use crate::doc::{Block, BlockSpec, Document};
 use crate::outcome::linear::LinearOutcome;
 use crate::provenance::Input;
 
@@ -32,4 +32,21 @@ pub fn run_linear(request: Request<'_>) -> Analysis {
     } else {
         super::one_way::run_anova(request)
     }
+}
+
+/// Runs an `anova` block on CSV text held in memory as `d.csv`, through the
+/// same engines as a report (for `validate` and tests); `None` for a block
+/// of another kind.
+pub fn run_on_csv(doc: &Document, block: &Block, csv: &str) -> Option<Analysis> {
+    let BlockSpec::Anova(spec) = &block.spec else {
+        return None;
+    };
+    let input = Input::loaded("d.csv", csv.as_bytes().to_vec());
+    Some(run_linear(Request {
+        doc,
+        block,
+        spec,
+        data: Data::Loaded(&input),
+        display_path: "d.csv",
+    }))
 }

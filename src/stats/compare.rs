@@ -106,6 +106,26 @@ pub struct Pair {
     pub df: Option<f64>,
 }
 
+impl Pair {
+    /// Level `a` against level `b` with its statistic and unadjusted p;
+    /// no interval yet, not declared, adjusted p equal to the raw one.
+    pub fn tested(a: usize, b: usize, (diff, se): (f64, f64), statistic: f64, p_raw: f64) -> Pair {
+        Pair {
+            a,
+            b,
+            diff,
+            se,
+            lower: f64::NAN,
+            upper: f64::NAN,
+            statistic,
+            p_raw,
+            p_adj: p_raw,
+            significant: false,
+            df: None,
+        }
+    }
+}
+
 /// A family of pairwise comparisons.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Pairwise {
@@ -151,18 +171,10 @@ pub fn pairwise_with_se(
             let diff = means[a] - means[b];
             let se = se(a, b);
             let t = diff / se;
+            let p = 2.0 * t_sf(t.abs(), df);
             pairs.push(Pair {
-                a,
-                b,
-                diff,
-                se,
-                lower: f64::NAN,
-                upper: f64::NAN,
-                statistic: t,
-                p_raw: 2.0 * t_sf(t.abs(), df),
                 p_adj: f64::NAN,
-                significant: false,
-                df: None,
+                ..Pair::tested(a, b, (diff, se), t, p)
             });
         }
     }

@@ -133,17 +133,10 @@ pub fn dunnett(
                 Sides::Less => (f64::NEG_INFINITY, diff + critical * se),
             };
             Pair {
-                a: i,
-                b: control,
-                diff,
-                se,
                 lower,
                 upper,
-                statistic: t,
-                p_raw: p,
-                p_adj: p,
                 significant: p < alpha,
-                df: None,
+                ..Pair::tested(i, control, (diff, se), t, p)
             }
         })
         .collect();

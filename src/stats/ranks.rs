@@ -85,19 +85,7 @@ pub fn dunn(kw: &KruskalWallis, alpha: f64, adjust: Method) -> Pairwise {
             let se = (variance_unit * (1.0 / kw.n[a] as f64 + 1.0 / kw.n[b] as f64)).sqrt();
             let z = diff / se;
             let p = (2.0 * normal_sf(z.abs())).min(1.0);
-            pairs.push(Pair {
-                a,
-                b,
-                diff,
-                se,
-                lower: f64::NAN,
-                upper: f64::NAN,
-                statistic: z,
-                p_raw: p,
-                p_adj: p,
-                significant: false,
-                df: None,
-            });
+            pairs.push(Pair::tested(a, b, (diff, se), z, p));
         }
     }
     let m = pairs.len() as f64;

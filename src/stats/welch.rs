@@ -73,17 +73,9 @@ pub fn games_howell(groups: &[GroupSummary], alpha: f64) -> Pairwise {
                 f64::NAN
             };
             pairs.push(Pair {
-                a,
-                b,
-                diff,
-                se,
-                lower: f64::NAN,
-                upper: f64::NAN,
-                statistic: t,
-                p_raw: p,
-                p_adj: p,
                 significant: p < alpha,
                 df: Some(df),
+                ..Pair::tested(a, b, (diff, se), t, p)
             });
         }
     }
