@@ -153,6 +153,16 @@ pub struct Scale {
 }
 
 impl Scale {
+    /// From the first to the last tick, onto pixels `p0` to `p1`.
+    pub fn spanning(ticks: &[f64], p0: f64, p1: f64) -> Scale {
+        Scale {
+            d0: ticks.first().copied().unwrap_or(0.0),
+            d1: ticks.last().copied().unwrap_or(1.0),
+            p0,
+            p1,
+        }
+    }
+
     pub fn map(&self, v: f64) -> f64 {
         self.p0 + (v - self.d0) / (self.d1 - self.d0) * (self.p1 - self.p0)
     }

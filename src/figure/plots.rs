@@ -123,17 +123,8 @@ impl Frame {
         };
         let bottom = HEIGHT - 20.0 - label_space;
         let top = 30.0;
-        let y = Scale {
-            d0: ticks[0],
-            d1: *ticks.last().unwrap_or(&1.0),
-            p0: bottom,
-            p1: top,
-        };
-        for (t, label) in ticks.iter().zip(&tick_texts) {
-            let py = y.map(*t);
-            svg.line(left, py, right, py, GRID, 1.0, None);
-            svg.text(left - 6.0, py + 4.0, label, "end", TICK_SIZE, None, "ytick");
-        }
+        let y = Scale::spanning(&ticks, bottom, top);
+        y_grid(svg, &y, (&ticks, &tick_texts), (left, right));
         svg.line(left, top - 8.0, left, bottom, INK, 1.0, None);
         svg.line(left, bottom, right, bottom, INK, 1.0, None);
         if let Some(r) = reference {
@@ -157,25 +148,7 @@ impl Frame {
                 svg.text(*x, bottom + 16.0, label, "middle", TICK_SIZE, None, "xtick");
             }
         }
-        let mid_y = (top + bottom) / 2.0;
-        svg.text(
-            14.0,
-            mid_y,
-            y_title,
-            "middle",
-            TITLE_SIZE,
-            Some(-90.0),
-            "axis-title",
-        );
-        svg.text(
-            (left + right) / 2.0,
-            HEIGHT - 6.0,
-            x_title,
-            "middle",
-            TITLE_SIZE,
-            None,
-            "axis-title",
-        );
+        axis_titles(svg, (y_title, x_title), (left, right), (top, bottom));
         (
             Frame {
                 y,
@@ -191,6 +164,49 @@ impl Frame {
     fn slot(&self, n: usize) -> f64 {
         (self.x1 - self.x0) / n.max(1) as f64
     }
+}
+
+/// Horizontal grid lines at the y ticks, with their labels at the left.
+fn y_grid(
+    svg: &mut Svg,
+    y: &Scale,
+    (ticks, labels): (&[f64], &[String]),
+    (left, right): (f64, f64),
+) {
+    for (t, label) in ticks.iter().zip(labels) {
+        let py = y.map(*t);
+        svg.line(left, py, right, py, GRID, 1.0, None);
+        svg.text(left - 6.0, py + 4.0, label, "end", TICK_SIZE, None, "ytick");
+    }
+}
+
+/// The y title turned along the left edge, the x title under the plot.
+fn axis_titles(
+    svg: &mut Svg,
+    (y_title, x_title): (&str, &str),
+    (left, right): (f64, f64),
+    (top, bottom): (f64, f64),
+) {
+    let y_at = (top + bottom) / 2.0;
+    svg.text(
+        14.0,
+        y_at,
+        y_title,
+        "middle",
+        TITLE_SIZE,
+        Some(-90.0),
+        "axis-title",
+    );
+    let x_at = (left + right) / 2.0;
+    svg.text(
+        x_at,
+        HEIGHT - 6.0,
+        x_title,
+        "middle",
+        TITLE_SIZE,
+        None,
+        "axis-title",
+    );
 }
 
 /// Letter groups above a level. When the letters are wider than the level's
@@ -451,23 +467,9 @@ fn scatter_frame_in(
         .map(|t| text_width(t, TICK_SIZE as f32) as f64)
         .fold(0.0, f64::max);
     let (left, right, top, bottom) = (28.0 + tick_w + 8.0, WIDTH - 14.0, 20.0, HEIGHT - 42.0);
-    let xs_scale = Scale {
-        d0: xt[0],
-        d1: *xt.last().unwrap_or(&1.0),
-        p0: left,
-        p1: right,
-    };
-    let ys_scale = Scale {
-        d0: yt[0],
-        d1: *yt.last().unwrap_or(&1.0),
-        p0: bottom,
-        p1: top,
-    };
-    for (t, label) in yt.iter().zip(&ylabels) {
-        let py = ys_scale.map(*t);
-        svg.line(left, py, right, py, GRID, 1.0, None);
-        svg.text(left - 6.0, py + 4.0, label, "end", TICK_SIZE, None, "ytick");
-    }
+    let xs_scale = Scale::spanning(&xt, left, right);
+    let ys_scale = Scale::spanning(&yt, bottom, top);
+    y_grid(svg, &ys_scale, (&yt, &ylabels), (left, right));
     for t in &xt {
         let px = xs_scale.map(*t);
         svg.line(px, bottom, px, bottom + 4.0, INK, 1.0, None);
@@ -483,24 +485,7 @@ fn scatter_frame_in(
     }
     svg.line(left, top, left, bottom, INK, 1.0, None);
     svg.line(left, bottom, right, bottom, INK, 1.0, None);
-    svg.text(
-        14.0,
-        (top + bottom) / 2.0,
-        y_title,
-        "middle",
-        TITLE_SIZE,
-        Some(-90.0),
-        "axis-title",
-    );
-    svg.text(
-        (left + right) / 2.0,
-        HEIGHT - 6.0,
-        x_title,
-        "middle",
-        TITLE_SIZE,
-        None,
-        "axis-title",
-    );
+    axis_titles(svg, (y_title, x_title), (left, right), (top, bottom));
     (xs_scale, ys_scale)
 }
 
