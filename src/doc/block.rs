@@ -46,6 +46,27 @@ pub struct Located<T> {
     pub column: usize,
 }
 
+/// How the denominator degrees of freedom of a mixed model's tests are
+/// approximated.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+pub enum DdfMethod {
+    /// Kenward and Roger (1997): inflated covariance and moment-matched df.
+    #[default]
+    KenwardRoger,
+    /// Satterthwaite (1946) df from the covariance of the variance estimates.
+    Satterthwaite,
+}
+
+impl DdfMethod {
+    /// The name used in block keys and the results file.
+    pub fn key(self) -> &'static str {
+        match self {
+            DdfMethod::KenwardRoger => "kenward-roger",
+            DdfMethod::Satterthwaite => "satterthwaite",
+        }
+    }
+}
+
 /// The omnibus test of a block.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Omnibus {
@@ -201,6 +222,10 @@ pub struct AnovaSpec {
     pub cells: Option<Located<bool>>,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
+    /// Random terms (the unit structure): blocks, whole plots, batches.
+    pub random: Option<Located<Vec<super::formula::Term>>>,
+    /// Denominator df of a mixed model's tests.
+    pub ddf: DdfMethod,
     pub plots: PlotSpec,
     /// Row rules: wide layout, `where` filters, `exclude` lines.
     pub rows: RowRules,

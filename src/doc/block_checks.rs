@@ -1,7 +1,9 @@
 //! An `anova` block's keys checked against each other and against its model,
 //! once each has been read: the draft becomes the block's specification.
 
-use super::block::{AnovaSpec, CheckSet, Defaults, Omnibus, Order, Show, SpecError, bad, list};
+use super::block::{
+    AnovaSpec, CheckSet, DdfMethod, Defaults, Omnibus, Order, Show, SpecError, bad, list,
+};
 use super::block_keys::AnovaDraft;
 use super::block_rows::default_summary_columns;
 use super::formula::Formula;
@@ -269,6 +271,7 @@ pub(super) fn resolve(
     }
     errors.extend(reading_keys(&d, &data));
     errors.extend(model_keys(&mut d, &model.value));
+    errors.extend(super::block_random::random_keys(&d, &model.value, method));
     if !errors.is_empty() {
         return Err(errors);
     }
@@ -283,6 +286,7 @@ pub(super) fn resolve(
         ),
         _ => None,
     };
+    let random = super::block_random::located_terms(&d);
     Ok(AnovaSpec {
         acknowledge: d.acknowledge,
         sheet: d.sheet.map(|e| e.value),
@@ -295,6 +299,8 @@ pub(super) fn resolve(
         compare_terms: d.compare_terms,
         within: d.within,
         cells: d.cells,
+        random,
+        ddf: d.ddf.map_or(DdfMethod::KenwardRoger, |(_, m)| m),
         blocks: d.blocks,
         summary,
         method,

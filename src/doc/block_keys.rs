@@ -62,6 +62,9 @@ pub struct AnovaDraft {
     pub x_axis: Option<Entry>,
     pub sheet: Option<Entry>,
     pub range: Option<Entry>,
+    /// `random`: the unit structure, as terms.
+    pub random: Option<(Entry, Vec<super::formula::Term>)>,
+    pub ddf: Option<(Entry, super::block::DdfMethod)>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -95,6 +98,8 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("within", read_within),
         ("cells", read_cells),
         ("block", read_block),
+        ("random", super::block_random::read_random),
+        ("ddf", super::block_random::read_ddf),
         ("plot", display::read_plot),
         ("label", display::read_label),
         ("unit", display::read_unit),

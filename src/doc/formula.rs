@@ -149,7 +149,28 @@ pub fn parse_formula(text: &str) -> Result<Formula, FormulaError> {
             });
         }
     }
-    // Each `+`-separated chunk is a product of `:`/`*`-joined names.
+    let mut terms = term_list(&mut it, end)?;
+    for t in &terms {
+        if t.factors.contains(&response) {
+            return Err(FormulaError {
+                offset: 0,
+                message: format!("`{response}` is both the response and a factor"),
+                hint: "the column left of `~` is the measured response; factors go on the right"
+                    .into(),
+            });
+        }
+    }
+    // Main effects first, then interactions by order, as in the usual tables.
+    terms.sort_by_key(|t| t.factors.len());
+    Ok(Formula { response, terms })
+}
+
+/// The terms after `~` (or of a `random` list): `+`-separated chunks, each
+/// a product of `:`/`*`-joined names.
+fn term_list(
+    it: &mut std::iter::Peekable<std::vec::IntoIter<(usize, Token)>>,
+    end: usize,
+) -> Result<Vec<Term>, FormulaError> {
     let mut terms: Vec<Term> = Vec::new();
     loop {
         let mut names: Vec<(String, bool)> = Vec::new(); // (name, joined to previous by `*`)
@@ -203,19 +224,24 @@ pub fn parse_formula(text: &str) -> Result<Formula, FormulaError> {
             }
         }
     }
-    for t in &terms {
-        if t.factors.contains(&response) {
-            return Err(FormulaError {
-                offset: 0,
-                message: format!("`{response}` is both the response and a factor"),
-                hint: "the column left of `~` is the measured response; factors go on the right"
-                    .into(),
-            });
-        }
+    Ok(terms)
+}
+
+/// Parses a list of terms without a response, such as the random terms
+/// `block + block:variety`.
+pub fn parse_terms(text: &str) -> Result<Vec<Term>, FormulaError> {
+    let tokens = tokenize(text)?;
+    if let Some((at, _)) = tokens.iter().find(|(_, t)| *t == Token::Tilde) {
+        return Err(FormulaError {
+            offset: *at,
+            message: "a list of terms has no `~`".into(),
+            hint: "write the terms only, for example `block + block:plot`".into(),
+        });
     }
-    // Main effects first, then interactions by order, as in the usual tables.
+    let end = text.chars().count();
+    let mut terms = term_list(&mut tokens.into_iter().peekable(), end)?;
     terms.sort_by_key(|t| t.factors.len());
-    Ok(Formula { response, terms })
+    Ok(terms)
 }
 
 /// Expands one chunk: `a:b` stays one term; `a*b` gives a, b and a:b.

@@ -49,6 +49,8 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("within", "model: y ~ g * h\nwithin: h"),
     ("cells", "model: y ~ g * h\ncells: yes"),
     ("block", "model: y ~ g + b\nblock: b"),
+    ("random", "model: y ~ g\nrandom: b + b:g"),
+    ("ddf", "random: b\nddf: satterthwaite"),
     ("plot", "plot: box, means"),
     ("label", "label: Yield"),
     ("unit", "unit: kg"),

@@ -9,6 +9,7 @@ pub mod block;
 mod block_checks;
 mod block_display;
 pub mod block_keys;
+mod block_random;
 mod block_rows;
 pub mod formula;
 mod front;
