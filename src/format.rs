@@ -189,6 +189,16 @@ pub fn df_text(df: f64) -> String {
     }
 }
 
+/// Denominator df of an approximate test: whole when it is (to rounding of
+/// the computation, 1e-6 relative), else one decimal.
+pub fn approx_df_text(df: f64) -> String {
+    if (df - df.round()).abs() <= 1e-6 * df.abs().max(1.0) {
+        format!("{:.0}", df.round())
+    } else {
+        fixed(df, 1)
+    }
+}
+
 /// Writes the minus sign of negative numbers as U+2212 (−), as typeset text
 /// does; a hyphen between words (`peat-perlite`) is left alone. A `-` counts as
 /// a minus when it starts the text or follows a space, `(` or `[`, and a digit

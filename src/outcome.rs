@@ -4,6 +4,7 @@
 
 mod checks;
 pub mod linear;
+pub mod mixed;
 mod power;
 
 pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, most_extreme};
@@ -60,5 +61,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 4;
+    const SCHEMA: u32 = 5;
 }

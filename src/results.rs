@@ -6,6 +6,8 @@
 //! A value that is not finite is written as `null`, and the block's
 //! `warnings` say why.
 
+mod mixed;
+
 use crate::doc::power::EffectInput;
 use crate::outcome::linear::{Comparison, Estimate, Family, LinearOutcome};
 use crate::outcome::{BlockResult, PowerResult};
@@ -173,6 +175,17 @@ pub struct BlockRecord {
     pub warnings: Vec<String>,
     /// Notes the author acknowledged (`acknowledge`, planned exclusions).
     pub acknowledged: Vec<String>,
+    /// Models with random terms: how the model was fitted.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub fit: Option<mixed::FitRecord>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub variance_components: Option<Vec<mixed::ComponentRecord>>,
+    /// Balanced designs with random terms: the classical strata.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub strata: Option<Vec<mixed::StratumRecord>>,
+    /// Models with random terms: SED, df and LSD per kind of comparison.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub seds: Option<Vec<mixed::SedRecord>>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -223,6 +236,13 @@ pub struct ExcludedRecord {
     pub reason: String,
 }
 
+/// The error a term is tested against: its stratum's name, or "combined".
+fn error_name(o: &LinearOutcome, t: &crate::outcome::linear::TermTest) -> String {
+    t.stratum
+        .and_then(|s| o.strata.get(s))
+        .map_or_else(|| "combined".to_string(), |s| s.name.clone())
+}
+
 #[derive(Serialize)]
 pub struct AnovaRecord {
     pub terms: Vec<TermRecord>,
@@ -245,6 +265,13 @@ pub struct TermRecord {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub not_tested: Option<&'static str>,
     pub effect: Option<EffectRecord>,
+    /// Models with random terms: the test's denominator df (fractional
+    /// when it is) and the error it is tested against (a stratum's name,
+    /// or "combined").
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub df_den: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub error: Option<String>,
 }
 
 #[derive(Serialize)]
@@ -401,6 +428,16 @@ impl Serialize for Letters {
 pub fn block_record(o: &LinearOutcome) -> BlockRecord {
     let welch = &o.alternatives.welch;
     let kruskal = &o.alternatives.kruskal;
+    let mixed = o.mixed.as_ref().map(|m| mixed::mixed_records(o, m));
+    let (fit, variance_components, strata, seds) = match mixed {
+        Some(m) => (
+            Some(m.fit),
+            Some(m.variance_components),
+            m.strata,
+            Some(m.seds),
+        ),
+        None => (None, None, None, None),
+    };
     BlockRecord {
         head: BlockHead::new(o),
         ss_type: o.ss_type_number(),
@@ -430,6 +467,10 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
         figures: Vec::new(),
         warnings: o.warnings.clone(),
         acknowledged: o.acknowledged.clone(),
+        fit,
+        variance_components,
+        strata,
+        seds,
     }
 }
 
@@ -460,6 +501,8 @@ fn anova_record(o: &LinearOutcome) -> AnovaRecord {
                     ],
                     ci_level: e.ci_level,
                 }),
+                df_den: o.mixed.is_some().then_some(t.denominator_df),
+                error: o.mixed.is_some().then(|| error_name(o, t)),
             })
             .collect(),
         // Fixed-effects strata have whole degrees of freedom.

@@ -254,6 +254,7 @@ impl Analysed {
             },
             observations,
             observed,
+            mixed: None,
         }
     }
 }

@@ -153,6 +153,7 @@ fn pair_means(
                     se: f64::NAN,
                     ci_lower: f64::NAN,
                     ci_upper: f64::NAN,
+                    df: None,
                 };
             }
             let m = mean(v);
@@ -164,6 +165,7 @@ fn pair_means(
                 se,
                 ci_lower: m - t * se,
                 ci_upper: m + t * se,
+                df: None,
             }
         })
         .collect();

@@ -130,6 +130,7 @@ impl Engine<'_> {
             presentation: outcome::presentation(spec, decimals),
             observations,
             observed,
+            mixed: None,
         })
     }
 

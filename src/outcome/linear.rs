@@ -81,8 +81,9 @@ pub struct TermTest {
     pub f: f64,
     pub p: f64,
     pub critical_f: f64,
-    /// The stratum this term is tested against (index into `strata`).
-    pub stratum: usize,
+    /// The stratum this term is tested against (index into `strata`);
+    /// `None` when a mixed model's test combines several (unbalanced data).
+    pub stratum: Option<usize>,
     /// Denominator df of the test; real-valued where an approximation
     /// (Satterthwaite, Kenward-Roger) gives it.
     pub denominator_df: f64,
@@ -130,6 +131,9 @@ pub struct Estimate {
     pub n: usize,
     pub mean: f64,
     pub se: f64,
+    /// The estimate's own df (mixed models); `None` where it is its
+    /// stratum's.
+    pub df: Option<f64>,
     pub ci_lower: f64,
     pub ci_upper: f64,
 }
@@ -263,6 +267,8 @@ pub struct LinearOutcome {
     pub observations: Vec<Observation>,
     /// Descriptive summaries of `observations`, for figures (empty with them).
     pub observed: Observed,
+    /// Models with random terms: the fit, variance components, SEDs.
+    pub mixed: Option<Box<super::mixed::MixedDetail>>,
 }
 
 impl LinearOutcome {
@@ -315,6 +321,7 @@ impl LevelSummary {
             se: self.se,
             ci_lower: self.ci_lower,
             ci_upper: self.ci_upper,
+            df: None,
         }
     }
 }

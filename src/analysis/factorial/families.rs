@@ -152,6 +152,7 @@ impl Comparing<'_> {
             se,
             ci_lower: mean - t * se,
             ci_upper: mean + t * se,
+            df: None,
         }
     }
 

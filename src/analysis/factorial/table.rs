@@ -128,7 +128,7 @@ pub(super) fn term_rows(
                 f: f64::NAN,
                 p: f64::NAN,
                 critical_f: f64::NAN,
-                stratum: 0,
+                stratum: Some(0),
                 denominator_df: nu,
                 tested: !is_block,
                 // The results file keeps a block's effect fields, as nulls.

@@ -21,7 +21,7 @@ pub(super) fn factor_term(factor: &str, table: &OneWay, effect: Option<EffectSiz
         f: table.f,
         p: table.p,
         critical_f: table.f_crit,
-        stratum: 0,
+        stratum: Some(0),
         denominator_df: table.df_within as f64,
         tested: true,
         effect: effect.map(|e| TermEffect {

@@ -27,14 +27,14 @@ pub fn anova_table(o: &LinearOutcome, keys: &Keys, number: usize) -> TableView {
     );
     let mut rows = Vec::new();
     for (s, stratum) in o.strata.iter().enumerate() {
-        for t in o.terms.iter().filter(|t| t.stratum == s) {
+        for t in o.terms.iter().filter(|t| t.stratum == Some(s)) {
             rows.push(term_row(o, t, keys, dec, eta_dec));
         }
         let k = |q: &str| {
             if s + 1 == o.strata.len() {
                 keys.field(&format!("anova.residual.{q}"))
             } else {
-                keys.field(&format!("anova.strata.{}.{q}", stratum.name))
+                keys.field(&format!("strata.{}.{q}", stratum.name))
             }
         };
         rows.push(vec![

@@ -9,11 +9,12 @@ mod checks;
 mod contrasts;
 mod keys;
 mod means;
+mod mixed;
 mod power;
 
 pub use power::power_view;
 
-use super::view::{BlockView, Cell, Column};
+use super::view::{BlockView, Cell, Column, TableView};
 use crate::doc::block::{Omnibus, Order, PlotSpec};
 use crate::format::typographic_minus;
 use crate::outcome::linear::{Family, LinearOutcome};
@@ -60,12 +61,7 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     let show = o.presentation.show;
     let mut tables = Vec::new();
     if show.anova {
-        let number = numbers.next();
-        tables.push(match o.method {
-            Omnibus::Anova => anova::anova_table(o, &keys, number),
-            Omnibus::Welch => anova::welch_table(o, &keys, number),
-            Omnibus::Ranks => anova::kruskal_table(o, &keys, number),
-        });
+        omnibus_tables(o, &keys, &mut numbers, &mut tables);
     }
     if o.checks.shown {
         let subject = format!("{} by {}", measure(o), factors_text(o));
@@ -114,6 +110,34 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         notes,
         warnings: o.warnings.clone(),
     })
+}
+
+/// The ANOVA table (or its alternative); with random terms, the classical
+/// stratum table where the design has one, the mixed model's tests, the
+/// variance components and the SEDs.
+fn omnibus_tables(
+    o: &LinearOutcome,
+    keys: &Keys,
+    numbers: &mut Numbering,
+    tables: &mut Vec<TableView>,
+) {
+    let Some(m) = &o.mixed else {
+        let number = numbers.next();
+        tables.push(match o.method {
+            Omnibus::Anova => anova::anova_table(o, keys, number),
+            Omnibus::Welch => anova::welch_table(o, keys, number),
+            Omnibus::Ranks => anova::kruskal_table(o, keys, number),
+        });
+        return;
+    };
+    if m.not_classical.is_none() {
+        tables.push(anova::anova_table(o, keys, numbers.next()));
+    }
+    tables.push(mixed::fixed_tests_table(o, m, keys, numbers.next()));
+    tables.push(mixed::components_table(o, m, keys, numbers.next()));
+    if !m.seds.is_empty() {
+        tables.push(mixed::sed_table(o, m, keys, numbers.next()));
+    }
 }
 
 /// The view as printed: minus signs in numeric cells and footnotes.

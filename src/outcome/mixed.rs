@@ -1,0 +1,83 @@
+//! What a model with random terms adds to the linear outcome: how it was
+//! fitted, the variance components, whether the classical stratum table
+//! exists (and why not), and the standard errors of differences per kind of
+//! comparison. The error strata themselves and each term's test (with its
+//! own denominator df and error) are in `LinearOutcome`.
+
+use crate::doc::block::DdfMethod;
+
+/// How a mixed model was fitted (REML).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Fit {
+    pub ddf: DdfMethod,
+    pub converged: bool,
+    pub iterations: usize,
+    /// The REML log-likelihood in the form that does not depend on how the
+    /// fixed effects are coded (−½ of the criterion with ln|X'X|).
+    pub log_likelihood: f64,
+    /// AIC and BIC from that criterion, counting the variance parameters
+    /// (BIC with ln(N − p)).
+    pub aic: f64,
+    pub bic: f64,
+    /// The largest scaled gradient at the estimate.
+    pub max_gradient: f64,
+    /// Observations used.
+    pub n: usize,
+    /// Fixed-effect parameters (rank of the fixed design).
+    pub p: usize,
+}
+
+/// One random term's variance, or the residual's.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct VarianceComponent {
+    /// The term as written (`block:variety`), or `residual`.
+    pub term: String,
+    pub variance: f64,
+    pub sd: f64,
+    /// Interval for the SD at 1 − α (profile likelihood); NaN where it
+    /// could not be computed.
+    pub ci_lower: f64,
+    pub ci_upper: f64,
+    /// Levels of the term (units of this size); 0 for the residual.
+    pub levels: usize,
+    /// Estimated at zero, on the boundary of the parameter space.
+    pub on_boundary: bool,
+}
+
+/// Why the classical stratum table is not printed.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub enum NotClassical {
+    /// Some units or cells have no observation, or unequal numbers.
+    Unbalanced { detail: String },
+    /// A treatment term is not estimated within one stratum.
+    NotOrthogonal { detail: String },
+    /// A stratum's variance is estimated at zero, so REML pools it with the
+    /// stratum below and its tests differ from the classical ones.
+    Pooled { term: String },
+}
+
+/// The standard error of a difference of two means of one kind, with its
+/// df and least significant difference at α.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Sed {
+    /// What the two means share, in plain words: `two V means`, `two N
+    /// levels at the same V`.
+    pub kind: String,
+    pub sed: f64,
+    pub df: f64,
+    pub lsd: f64,
+}
+
+/// Everything a model with random terms adds.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct MixedDetail {
+    pub fit: Fit,
+    /// Random terms in document order, then the residual.
+    pub components: Vec<VarianceComponent>,
+    /// `None` when the strata of `LinearOutcome` are the classical table
+    /// (balanced data) and REML reproduced it.
+    pub not_classical: Option<NotClassical>,
+    /// Coefficients of variation of each classical error, in percent.
+    pub cvs: Vec<(String, f64)>,
+    pub seds: Vec<Sed>,
+}
