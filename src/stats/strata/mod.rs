@@ -33,3 +33,7 @@ pub use table::{ErrorLine, Stratum, Total, TreatmentLine};
 #[cfg(test)]
 #[path = "strata_tests.rs"]
 mod tests;
+
+#[cfg(test)]
+#[path = "strata_properties_tests.rs"]
+mod properties;

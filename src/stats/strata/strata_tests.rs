@@ -606,3 +606,238 @@ fn penicillin_crossed_random_terms() {
     );
     assert!(se.variance.coefficients[2] < 0.0);
 }
+
+/// Spec 9.2's invented deletion pattern: rows (B I, Victory, 0.0cwt) and
+/// (B IV, Marvellous, 0.6cwt) removed. The reason names both cells, once each,
+/// in the blocks that lack them.
+#[test]
+fn oats_with_two_subplots_deleted_names_the_missing_cells() {
+    let (_, rows) = read_csv("oats.csv");
+    let kept: Vec<Vec<String>> = rows
+        .into_iter()
+        .filter(|r| {
+            !((r[0] == "I" && r[1] == "Victory" && r[2] == "0.0cwt")
+                || (r[0] == "IV" && r[1] == "Marvellous" && r[2] == "0.6cwt"))
+        })
+        .collect();
+    assert_eq!(kept.len(), 70);
+    let reasons = run(&oats_from(&kept)).expect_err("not recognised");
+    // Level indices by first appearance in the kept rows.
+    let level = |column: usize, label: &str| {
+        let (_, index) = factor(&kept, &[column]);
+        index[kept
+            .iter()
+            .position(|r| r[column] == label)
+            .expect("label present")]
+    };
+    let cell = |block: &str, variety: &str, rate: &str| MissingCell {
+        random_term: 0,
+        unit: level(0, block),
+        levels: vec![level(1, variety), level(2, rate)],
+    };
+    assert_eq!(
+        reasons,
+        vec![NotClassical::MissingCells {
+            cells: vec![
+                cell("I", "Victory", "0.0cwt"),
+                cell("IV", "Marvellous", "0.6cwt")
+            ]
+        }]
+    );
+}
+
+/// A variety label changed on one subplot while the whole plots keep their
+/// units: V is no longer constant within that whole plot.
+#[test]
+fn treatment_varying_within_a_whole_plot_is_named() {
+    let (_, rows) = read_csv("oats.csv");
+    let mut o = oats_from(&rows);
+    let changed = 1; // block I, Victory, 0.2cwt
+    assert_eq!(o.treatments.rows[changed], vec![0, 1]);
+    o.treatments.rows[changed][0] = 1;
+    let reasons = run(&o).expect_err("not recognised");
+    assert_eq!(
+        reasons,
+        vec![NotClassical::VariesWithinUnits {
+            factor: 0,
+            random_term: 1,
+            units: vec![o.random.rows[changed][1]],
+        }]
+    );
+}
+
+#[test]
+fn other_layouts_that_are_not_recognised() {
+    let (_, rows) = read_csv("oats.csv");
+    let base = oats_from(&rows);
+    // A random term with one observation per unit duplicates the residual.
+    let mut o = oats_from(&rows);
+    o.random = layout(
+        &[factor(&rows, &[0]), factor(&rows, &[0, 1, 2])],
+        rows.len(),
+    );
+    assert_eq!(
+        run(&o).unwrap_err(),
+        vec![NotClassical::RandomTermIsResidual { random_term: 1 }]
+    );
+    // The same units declared twice.
+    let mut o = oats_from(&rows);
+    o.random = layout(&[factor(&rows, &[0]), factor(&rows, &[0])], rows.len());
+    assert_eq!(
+        run(&o).unwrap_err(),
+        vec![NotClassical::SameUnits {
+            first: 0,
+            second: 1
+        }]
+    );
+    // No random term.
+    let mut o = oats_from(&rows);
+    o.random = Layout {
+        levels: Vec::new(),
+        rows: vec![Vec::new(); rows.len()],
+    };
+    assert_eq!(run(&o).unwrap_err(), vec![NotClassical::NoRandomTerm]);
+    // A missing response.
+    let mut o = oats_from(&rows);
+    o.y[5] = f64::NAN;
+    assert_eq!(
+        run(&o).unwrap_err(),
+        vec![NotClassical::MissingResponse {
+            observations: vec![5]
+        }]
+    );
+    // Lengths that disagree are a reason, not a panic.
+    let mut o = oats_from(&rows);
+    o.y.pop();
+    assert_eq!(run(&o).unwrap_err(), vec![NotClassical::LengthsDiffer]);
+    // Whole plots (B:V) and "columns" (B:N) declared without blocks: their
+    // join, the blocks, is not declared.
+    let mut o = oats_from(&rows);
+    o.random = layout(
+        &[factor(&rows, &[0, 1]), factor(&rows, &[0, 2])],
+        rows.len(),
+    );
+    assert_eq!(
+        run(&o).unwrap_err(),
+        vec![NotClassical::UndeclaredJoin {
+            first: 0,
+            second: 1
+        }]
+    );
+    assert!(run(&base).is_ok());
+}
+
+/// Builds a layout from per-observation (treatment levels, random units).
+fn small(
+    rows: &[(Vec<usize>, Vec<usize>)],
+    treatment_levels: Vec<usize>,
+    random_levels: Vec<usize>,
+) -> (Layout, Layout) {
+    (
+        Layout {
+            levels: treatment_levels,
+            rows: rows.iter().map(|r| r.0.clone()).collect(),
+        },
+        Layout {
+            levels: random_levels,
+            rows: rows.iter().map(|r| r.1.clone()).collect(),
+        },
+    )
+}
+
+/// Whole plots each hold one level of A, every level in every block and each
+/// level equally often overall, but not equally often within each block
+/// (blocks hold A 0,0,1,2 / 0,1,1,2 / 0,1,2,2): A is not orthogonal to
+/// blocks. Invented layout.
+#[test]
+fn treatment_unbalanced_over_blocks_is_not_orthogonal() {
+    let plots = [[0, 0, 1, 2], [0, 1, 1, 2], [0, 1, 2, 2]];
+    let mut rows = Vec::new();
+    for (block, levels) in plots.iter().enumerate() {
+        for (plot, &a) in levels.iter().enumerate() {
+            for s in 0..2 {
+                rows.push((vec![a, s], vec![block, block * 4 + plot]));
+            }
+        }
+    }
+    let (treatments, random) = small(&rows, vec![3, 2], vec![3, 12]);
+    let y: Vec<f64> = (0..rows.len()).map(|i| (i * 7 % 11) as f64).collect();
+    let terms = vec![vec![0], vec![1], vec![0, 1]];
+    let reasons = analyse(&StrataInput {
+        y: &y,
+        shift: 0.0,
+        treatments: &treatments,
+        terms: &terms,
+        random: &random,
+    })
+    .expect_err("not recognised");
+    assert_eq!(
+        reasons,
+        vec![NotClassical::NotOrthogonal {
+            term: 0,
+            random_term: 0
+        }]
+    );
+}
+
+/// Each of three sites gets its own treatment, two plots per site: the
+/// treatment is estimated in the site stratum, which has no error df left.
+/// No F, no site component, no SED — and no panic. Invented layout.
+#[test]
+fn a_stratum_without_error_df_gives_no_test() {
+    let rows: Vec<(Vec<usize>, Vec<usize>)> = (0..6).map(|i| (vec![i / 2], vec![i / 2])).collect();
+    let (treatments, random) = small(&rows, vec![3], vec![3]);
+    let y = [1.0, 2.0, 4.0, 4.5, 7.0, 9.0];
+    let terms = vec![vec![0]];
+    let a = analyse(&StrataInput {
+        y: &y,
+        shift: 0.0,
+        treatments: &treatments,
+        terms: &terms,
+        random: &random,
+    })
+    .expect("recognised");
+    assert_eq!(a.term_strata, vec![StratumId::Random(0)]);
+    let site = &a.strata[0];
+    assert_eq!(
+        (site.treatments[0].df, site.error.df, site.error.ms),
+        (2, 0, None)
+    );
+    assert_eq!((site.treatments[0].f, site.treatments[0].p), (None, None));
+    assert!(a.components[0].estimate.is_none());
+    assert!(a.components[1].estimate.is_some());
+    assert!(a.comparisons(0.05).is_empty());
+}
+
+/// A negative ANOVA estimate is kept as computed and flagged; it has no χ²
+/// interval. Blocks whose means are closer than whole-plot noise allows.
+/// Invented data.
+#[test]
+fn negative_component_is_flagged() {
+    let mut rows = Vec::new();
+    for block in 0..3 {
+        for unit in 0..2 {
+            for s in 0..2 {
+                rows.push((vec![s], vec![block, block * 2 + unit]));
+            }
+        }
+    }
+    let (treatments, random) = small(&rows, vec![2], vec![3, 6]);
+    // Block totals equal; units within blocks differ widely.
+    let y = [
+        0.0, 1.0, 10.0, 11.0, 0.0, 1.5, 10.0, 11.5, 0.5, 1.0, 10.5, 11.0,
+    ];
+    let terms = vec![vec![0]];
+    let a = analyse(&StrataInput {
+        y: &y,
+        shift: 0.0,
+        treatments: &treatments,
+        terms: &terms,
+        random: &random,
+    })
+    .expect("recognised");
+    let blocks = &a.components[0];
+    assert!(blocks.negative);
+    assert!(blocks.estimate.as_ref().unwrap().value < 0.0);
+    assert_eq!(blocks.interval(0.95), None);
+}

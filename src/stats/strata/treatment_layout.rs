@@ -9,7 +9,7 @@ use std::collections::{BTreeMap, BTreeSet};
 use super::partition::Partition;
 use super::reason::{MissingCell, NotClassical, StratumId};
 use super::unit_structure::UnitStructure;
-use crate::stats::linear::{Layout, TermFactors};
+use crate::stats::linear::{Layout, TermFactors, term_row};
 
 /// A unit's fixed levels, the free combinations seen in it, and one of its
 /// observations.
@@ -205,26 +205,15 @@ pub(super) fn place_terms(
     }
 }
 
-/// Within every unit, the term's factors that vary within the units take
-/// every combination of their levels equally often (so the term's contrasts
-/// average to zero over each unit).
+/// The term's contrasts (its sum-to-zero design columns) total zero over
+/// every unit, so the term carries no information about differences between
+/// these units. The codes are −1, 0 and 1, so the totals are exact integers.
 fn balanced_within(treatments: &Layout, factors: &[usize], units: &Partition) -> bool {
-    let varying: Vec<usize> = factors
-        .iter()
-        .copied()
-        .filter(|&f| !constant_within(treatments, &[f], units))
-        .collect();
-    let Some(size) = varying
-        .iter()
-        .try_fold(1usize, |acc, &f| acc.checked_mul(treatments.levels[f]))
-    else {
-        return false;
-    };
-    let mut counts: BTreeMap<(usize, Vec<usize>), usize> = BTreeMap::new();
+    let mut totals: BTreeMap<usize, Vec<f64>> = BTreeMap::new();
     for (&u, row) in units.unit.iter().zip(&treatments.rows) {
-        *counts.entry((u, levels_of(row, &varying))).or_insert(0) += 1;
+        let codes = term_row(factors, &treatments.levels, row);
+        let total = totals.entry(u).or_insert_with(|| vec![0.0; codes.len()]);
+        total.iter_mut().zip(&codes).for_each(|(t, c)| *t += c);
     }
-    let mut values = counts.values();
-    let first = values.next().copied();
-    counts.len() == units.present() * size && values.all(|&c| Some(c) == first)
+    totals.values().all(|t| t.iter().all(|v| *v == 0.0))
 }
