@@ -65,8 +65,12 @@ pub enum NotClassical {
         random_term: usize,
         units: Vec<usize>,
     },
-    /// Treatment combinations absent from units that should hold them.
-    MissingCells { cells: Vec<MissingCell> },
+    /// Treatment combinations absent from units that should hold them (the
+    /// first hundred named; `unnamed` counts the rest).
+    MissingCells {
+        cells: Vec<MissingCell>,
+        unnamed: usize,
+    },
     /// Treatment combinations (one level per factor) with their number of
     /// observations, when not all equal or not all present.
     UnequalReplication { counts: Vec<(Vec<usize>, usize)> },

@@ -641,7 +641,8 @@ fn oats_with_two_subplots_deleted_names_the_missing_cells() {
             cells: vec![
                 cell("I", "Victory", "0.0cwt"),
                 cell("IV", "Marvellous", "0.6cwt")
-            ]
+            ],
+            unnamed: 0,
         }]
     );
 }
@@ -840,4 +841,43 @@ fn negative_component_is_flagged() {
     assert!(blocks.negative);
     assert!(blocks.estimate.as_ref().unwrap().value < 0.0);
     assert_eq!(blocks.interval(0.95), None);
+}
+
+/// Many missing cells: the first hundred are named, the rest counted.
+/// Invented layout: 30 blocks of a 4 × 4 factorial, four cells gone from each.
+#[test]
+fn missing_cells_beyond_a_hundred_are_counted() {
+    let mut rows = Vec::new();
+    for block in 0..30 {
+        for a in 0..4 {
+            for b in 0..4 {
+                if a != b {
+                    rows.push((vec![a, b], vec![block]));
+                }
+            }
+        }
+    }
+    let (treatments, random) = small(&rows, vec![4, 4], vec![30]);
+    let y: Vec<f64> = (0..rows.len()).map(|i| i as f64).collect();
+    let terms = vec![vec![0], vec![1]];
+    let reasons = analyse(&StrataInput {
+        y: &y,
+        shift: 0.0,
+        treatments: &treatments,
+        terms: &terms,
+        random: &random,
+    })
+    .expect_err("not recognised");
+    let [NotClassical::MissingCells { cells, unnamed }] = reasons.as_slice() else {
+        panic!("expected missing cells, got {reasons:?}");
+    };
+    assert_eq!((cells.len(), *unnamed), (100, 20));
+    assert_eq!(
+        cells[0],
+        MissingCell {
+            random_term: 0,
+            unit: 0,
+            levels: vec![0, 0]
+        }
+    );
 }

@@ -2,18 +2,20 @@
 //! against that stratum's error, and its error line; the total.
 //!
 //! Each stratum's SS is the squared length of the response projected on the
-//! stratum (unit means minus the projections on the strata above), which for
-//! an orthogonal block structure equals the sequential least-squares SS of the
-//! stratum-defining term after everything above it (METHODS 3.3, spec 5.1);
-//! the treatment SS are the sequential (Type I) SS of the fixed model. Both
-//! cost O(N) per stratum, so long data stay cheap.
+//! stratum (unit means minus the projections on the strata above), and each
+//! treatment term's SS that of its effects by inclusion-exclusion of marginal
+//! means. For a recognised layout (orthogonal block structure, treatments
+//! fully crossed with equal replication) these equal the sequential
+//! least-squares SS in stratum order of spec 5.1 (METHODS 3.3, Type I), which
+//! the property tests check against `stats::linear`; they cost O(N) per
+//! stratum and term where the QR of the full design costs O(N·p²) (over a
+//! second for 20,000 rows and 500 whole plots).
 
+use super::partition::Partition;
 use super::reason::StratumId;
 use super::unit_structure::UnitStructure;
 use crate::stats::dist::f_sf;
-use crate::stats::linear::{
-    Layout, SsType, TermFactors, design_matrix, sums_of_squares, term_columns,
-};
+use crate::stats::linear::{Layout, TermFactors, term_width};
 use crate::stats::sum::neumaier;
 
 /// A treatment term's line, tested against its stratum's error.
@@ -79,6 +81,43 @@ fn stratum_projections(structure: &UnitStructure, centred: &[f64]) -> Vec<Vec<f6
     projections
 }
 
+/// The effects of a term at each observation, Σ over subsets S of its
+/// factors of (−1)^{|T|−|S|} × the mean of the centred response over the
+/// level combinations of S: the projection on the term's effect space of a
+/// fully crossed layout with equal replication.
+fn term_effects(treatments: &Layout, term: &[usize], centred: &[f64]) -> Vec<f64> {
+    let mut effects = vec![0.0; centred.len()];
+    for mask in 1usize..(1 << term.len()) {
+        let subset: Vec<usize> = (0..term.len())
+            .filter(|i| mask >> i & 1 == 1)
+            .map(|i| term[i])
+            .collect();
+        let sign = if (term.len() - subset.len()).is_multiple_of(2) {
+            1.0
+        } else {
+            -1.0
+        };
+        let cells = Partition::new(
+            treatments
+                .rows
+                .iter()
+                .map(|row| {
+                    subset
+                        .iter()
+                        .fold(0, |acc, &f| acc * treatments.levels[f] + row[f])
+                })
+                .collect(),
+        );
+        let means = cells.unit_means(centred);
+        effects
+            .iter_mut()
+            .zip(&means)
+            .for_each(|(e, m)| *e += sign * m);
+    }
+    // The empty subset: the mean of the centred response, zero.
+    effects
+}
+
 /// Expected mean square of each stratum in the components: σ² plus k_R σ²_R
 /// for every random term R whose units lie within the stratum's units.
 fn expected_mean_squares(structure: &UnitStructure, random_count: usize) -> Vec<Vec<f64>> {
@@ -111,25 +150,26 @@ pub(super) fn stratum_table(
     let mean = neumaier(y.iter().copied()) / y.len() as f64;
     let centred: Vec<f64> = y.iter().map(|v| v - mean).collect();
     let projections = stratum_projections(structure, &centred);
-    let term_ss = if terms.is_empty() {
-        Vec::new()
-    } else {
-        let design = design_matrix(treatments, terms);
-        let ranges = term_columns(terms, &treatments.levels);
-        sums_of_squares(&design, y, terms, &ranges, SsType::I).terms
-    };
+    let term_ss: Vec<(usize, f64)> = terms
+        .iter()
+        .map(|t| {
+            let effects = term_effects(treatments, t, &centred);
+            let df = term_width(t, &treatments.levels);
+            (df, neumaier(effects.iter().map(|v| v * v)))
+        })
+        .collect();
     let random_count = structure.ids.len() - 1;
     let ems = expected_mean_squares(structure, random_count);
     let mut strata = Vec::new();
     for (g, projection) in projections.iter().enumerate() {
         let stratum_ss = neumaier(projection.iter().map(|v| v * v));
         let mut lines: Vec<TreatmentLine> = (0..terms.len())
-            .filter(|&t| term_strata[t] == g && term_ss[t].df > 0)
+            .filter(|&t| term_strata[t] == g && term_ss[t].0 > 0)
             .map(|t| TreatmentLine {
                 term: t,
-                df: term_ss[t].df,
-                ss: term_ss[t].ss,
-                ms: term_ss[t].ss / term_ss[t].df as f64,
+                df: term_ss[t].0,
+                ss: term_ss[t].1,
+                ms: term_ss[t].1 / term_ss[t].0 as f64,
                 f: None,
                 p: None,
             })

@@ -15,6 +15,9 @@ use crate::stats::linear::{Layout, TermFactors, term_row};
 /// observations.
 type UnitCells = (Vec<usize>, BTreeSet<Vec<usize>>, usize);
 
+/// Most missing cells named one by one; the rest are counted.
+const MAX_NAMED_CELLS: usize = 100;
+
 /// Largest treatment cross listed cell by cell; beyond it a layout is
 /// judged by its counts alone (keeps the reasons bounded).
 const MAX_LISTED: usize = 4096;
@@ -93,9 +96,14 @@ pub(super) fn missing_cells(treatments: &Layout, random: &[Partition]) -> Vec<No
     let all: Vec<usize> = (0..treatments.levels.len()).collect();
     let mut order: Vec<usize> = (0..random.len()).collect();
     order.sort_by_key(|&r| (random[r].present(), r));
+    let mut named: BTreeSet<(usize, usize, Vec<usize>)> = BTreeSet::new();
     let mut cells: Vec<MissingCell> = Vec::new();
+    let mut unnamed = 0;
     for &r in &order {
         let units = &random[r];
+        let coarser: Vec<usize> = (0..random.len())
+            .filter(|&c| c != r && units.nested_in(&random[c]) && !random[c].nested_in(units))
+            .collect();
         let (fixed, free): (Vec<usize>, Vec<usize>) = all
             .iter()
             .partition(|&&f| constant_within(treatments, &[f], units));
@@ -117,18 +125,21 @@ pub(super) fn missing_cells(treatments: &Layout, random: &[Partition]) -> Vec<No
                     .zip(fixed_levels)
                     .for_each(|(&f, &l)| levels[f] = l);
                 free.iter().zip(combo).for_each(|(&f, &l)| levels[f] = l);
-                let named_above = cells.iter().any(|c| {
-                    c.levels == levels
-                        && c.random_term != r
-                        && units.nested_in(&random[c.random_term])
-                        && random[c.random_term].unit[*witness] == c.unit
-                });
-                if !named_above {
+                let named_above = coarser
+                    .iter()
+                    .any(|&c| named.contains(&(c, random[c].unit[*witness], levels.clone())));
+                if named_above {
+                    continue;
+                }
+                named.insert((r, unit, levels.clone()));
+                if cells.len() < MAX_NAMED_CELLS {
                     cells.push(MissingCell {
                         random_term: r,
                         unit,
                         levels,
                     });
+                } else {
+                    unnamed += 1;
                 }
             }
         }
@@ -136,7 +147,7 @@ pub(super) fn missing_cells(treatments: &Layout, random: &[Partition]) -> Vec<No
     if cells.is_empty() {
         Vec::new()
     } else {
-        vec![NotClassical::MissingCells { cells }]
+        vec![NotClassical::MissingCells { cells, unnamed }]
     }
 }
 
