@@ -32,7 +32,8 @@ pub enum NotClassical {
     /// The response, the treatment rows and the random-term rows differ in
     /// length (a caller error, reported rather than panicking).
     LengthsDiffer,
-    /// A level index at or beyond its factor's declared number of levels.
+    /// A level index at or beyond its factor's declared number of levels, a
+    /// row of the wrong width, or a term naming no factor or an unknown one.
     LevelOutOfRange,
     /// Observations whose response is missing or not finite.
     MissingResponse { observations: Vec<usize> },

@@ -1,7 +1,8 @@
 //! Property tests of `stats::strata` on randomly generated balanced layouts
 //! (spec 9.6): split-plot, strip-plot, split-split-plot, subsampling in a CRD
-//! and in an RCBD. No outside reference is needed: the checks are identities
-//! (SS and df add up, the components reproduce the expected mean squares),
+//! and in an RCBD, and an RCBD with random blocks. No outside reference is
+//! needed: the checks are identities (SS and df add up, the components
+//! reproduce the expected mean squares),
 //! agreement with the sequential least-squares route of spec 5.1 computed by
 //! `stats::linear`, the textbook SED formulas of spec 5.4 (Cochran & Cox 1957,
 //! Gomez & Gomez 1984, as the spec gives them), and invariance to row order.
@@ -126,11 +127,18 @@ fn designs() -> impl Strategy<Value = (Design, Vec<f64>)> {
             treatments: vec![0],
             random: vec![vec![0, 1]],
         }),
-        // subsampling in an RCBD
+        // subsampling in an RCBD (also workers × machines with
+        // worker:machine random and replicate scores, as Machines)
         (2usize..5, 2usize..5, 2usize..4).prop_map(|(r, t, s)| Design {
             dims: vec![r, t, s],
             treatments: vec![1],
             random: vec![vec![0], vec![0, 1]],
+        }),
+        // RCBD with random blocks
+        (2usize..6, 2usize..6).prop_map(|(r, t)| Design {
+            dims: vec![r, t],
+            treatments: vec![1],
+            random: vec![vec![0]],
         }),
     ];
     shapes.prop_flat_map(|d| {
@@ -302,6 +310,11 @@ proptest! {
                 prop_assert!(close(sed(6, &[1]), f(2.0 * ((c - 1.0) * ec + eb) / (r * c))));
                 let three = 2.0 * (b * (c - 1.0) * ec + (b - 1.0) * eb + ea) / (r * b * c);
                 prop_assert!(close(sed(6, &[0]), f(three)));
+            }
+            // RCBD with random blocks: two treatment means √(2E/r)
+            (1, 1) if design.dims.len() == 2 => {
+                prop_assert!(close(sed(0, &[0]), f(2.0 * e[1] / d[0] as f64)));
+                prop_assert_eq!(a.strata[1].treatments.len(), 1);
             }
             // subsampling (CRD or RCBD): the experimental error, never the sampling error
             (1, _) => {
