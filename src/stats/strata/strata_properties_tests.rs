@@ -328,3 +328,58 @@ proptest! {
         }
     }
 }
+
+/// Arbitrary small layouts, mostly unbalanced, some with missing responses.
+fn arbitrary_layouts() -> impl Strategy<Value = (Layout, Layout, Vec<f64>)> {
+    (
+        2usize..30,
+        prop::collection::vec(1usize..4, 0..3),
+        prop::collection::vec(1usize..7, 0..3),
+    )
+        .prop_flat_map(|(n, treatment_levels, random_levels)| {
+            let row = |levels: Vec<usize>| levels.into_iter().map(|l| 0..l).collect::<Vec<_>>();
+            (
+                prop::collection::vec(row(treatment_levels.clone()), n),
+                prop::collection::vec(row(random_levels.clone()), n),
+                prop::collection::vec(prop_oneof![9 => -10.0f64..10.0, 1 => Just(f64::NAN)], n),
+                Just((treatment_levels, random_levels)),
+            )
+                .prop_map(|(t, r, y, (tl, rl))| {
+                    (
+                        Layout {
+                            levels: tl,
+                            rows: t,
+                        },
+                        Layout {
+                            levels: rl,
+                            rows: r,
+                        },
+                        y,
+                    )
+                })
+        })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 256, .. ProptestConfig::default() })]
+
+    /// Any layout gives a table or reasons, never a panic; a table always adds up.
+    #[test]
+    fn any_layout_gives_a_table_or_reasons((treatments, random, y) in arbitrary_layouts()) {
+        let k = treatments.levels.len();
+        let terms: Vec<TermFactors> = (1usize..1 << k).map(|m| (0..k).filter(|i| m >> i & 1 == 1).collect()).collect();
+        let input = StrataInput { y: &y, shift: 0.0, treatments: &treatments, terms: &terms, random: &random };
+        match analyse(&input) {
+            Ok(a) => {
+                let lines = table_lines(&a);
+                prop_assert_eq!(lines.iter().map(|l| l.0).sum::<usize>(), y.len() - 1);
+                prop_assert!(close(lines.iter().map(|l| l.1).sum(), a.total.ss));
+                let _ = a.comparisons(0.05);
+                for t in 0..terms.len() {
+                    let _ = a.mean_error(t, SeBasis::Stratum);
+                }
+            }
+            Err(reasons) => prop_assert!(!reasons.is_empty()),
+        }
+    }
+}
