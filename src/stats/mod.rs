@@ -17,6 +17,7 @@ pub mod range_tail;
 pub mod ranks;
 pub mod roots;
 pub mod special;
+pub mod strata;
 pub mod sum;
 pub mod welch;
 
