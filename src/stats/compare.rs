@@ -162,27 +162,20 @@ pub fn pairwise_with_se(
     alpha: f64,
     method: Method,
 ) -> Pairwise {
-    let k = means.len();
-    let m = k * (k - 1) / 2;
-    let mut pairs = Vec::with_capacity(m);
-    for i in 0..k {
-        for j in (i + 1)..k {
-            let (a, b) = (j, i);
-            let diff = means[a] - means[b];
-            let se = se(a, b);
-            let t = diff / se;
-            let p = 2.0 * t_sf(t.abs(), df);
-            pairs.push(Pair {
-                p_adj: f64::NAN,
-                ..Pair::tested(a, b, (diff, se), t, p)
-            });
-        }
+    let mut family = pairwise_with_own_df(means, |a, b| (se(a, b), df), alpha, method);
+    for p in &mut family.pairs {
+        p.df = None;
     }
-    let mf = m as f64;
+    family
+}
+
+/// The critical value behind a procedure's intervals on `df` degrees of
+/// freedom, and the factor that turns a pair's SE into its half-width.
+fn critical_value(method: Method, alpha: f64, (k, m): (usize, f64), df: f64) -> (f64, f64) {
     // Šidák's per-comparison level 1 − (1 − α)^(1/m), without cancellation.
-    let sidak_alpha = -((-alpha).ln_1p() / mf).exp_m1();
+    let sidak_alpha = -((-alpha).ln_1p() / m).exp_m1();
     let critical = match method {
-        Method::Bonferroni | Method::Holm => t_isf(alpha / (2.0 * mf), df),
+        Method::Bonferroni | Method::Holm => t_isf(alpha / (2.0 * m), df),
         Method::Sidak => t_isf(sidak_alpha / 2.0, df),
         Method::Tukey => qtukey_isf(alpha, k, df),
         Method::Scheffe => f_isf(alpha, (k - 1) as f64, df),
@@ -193,7 +186,52 @@ pub fn pairwise_with_se(
         Method::Scheffe => ((k - 1) as f64 * critical).sqrt(),
         _ => critical,
     };
+    (critical, half_width_factor)
+}
+
+/// All pairs (j, i) for i < j of estimates whose differences each have
+/// their own standard error and degrees of freedom, `se_df(a, b)` (mixed
+/// models: a split-plot's pairs differ in both). Each pair's p and interval
+/// use its own df; Tukey's with a df per pair is exact when the pairs share
+/// one stratum and an approximation otherwise (mixed-models spec 4.2).
+pub fn pairwise_with_own_df(
+    means: &[f64],
+    se_df: impl Fn(usize, usize) -> (f64, f64),
+    alpha: f64,
+    method: Method,
+) -> Pairwise {
+    let k = means.len();
+    let m = k * (k - 1) / 2;
+    let mut pairs = Vec::with_capacity(m);
+    for i in 0..k {
+        for j in (i + 1)..k {
+            let (a, b) = (j, i);
+            let diff = means[a] - means[b];
+            let (se, df) = se_df(a, b);
+            let t = diff / se;
+            let p = 2.0 * t_sf(t.abs(), df);
+            pairs.push(Pair {
+                p_adj: f64::NAN,
+                df: Some(df),
+                ..Pair::tested(a, b, (diff, se), t, p)
+            });
+        }
+    }
+    let mf = m as f64;
+    // Critical values by df, computed once per distinct df (the studentized
+    // range quantile is costly); in first-seen order, so deterministic.
+    let mut criticals: Vec<(f64, (f64, f64))> = Vec::new();
     for p in &mut pairs {
+        let df = p.df.unwrap_or(f64::NAN);
+        let (_, half_width_factor) =
+            match criticals.iter().find(|(d, _)| d.to_bits() == df.to_bits()) {
+                Some((_, c)) => *c,
+                None => {
+                    let c = critical_value(method, alpha, (k, mf), df);
+                    criticals.push((df, c));
+                    c
+                }
+            };
         p.lower = p.diff - half_width_factor * p.se;
         p.upper = p.diff + half_width_factor * p.se;
         match method {
@@ -220,6 +258,12 @@ pub fn pairwise_with_se(
     for p in &mut pairs {
         p.significant = p.p_adj < alpha;
     }
+    // One critical value when every pair shares its df, else none.
+    let critical = match criticals.as_slice() {
+        [(_, (c, _))] => *c,
+        [] => critical_value(method, alpha, (k, mf), f64::NAN).0,
+        _ => f64::NAN,
+    };
     Pairwise {
         method,
         alpha,
