@@ -313,3 +313,57 @@ fn penicillin_crossed_random_effects() {
         close(ci[k].upper, *hi, TIGHT, &format!("Penicillin profile CI {k} upper"));
     }
 }
+
+/// mixed-models spec 9.6 item 5: the rows' order changes nothing.
+#[test]
+fn row_order_does_not_matter() {
+    let reference = oats(true);
+    let mut t = read("oats.csv");
+    t.drop_rows(|r| !((r[0] == "I" && r[1] == "Victory" && r[2] == "0.0cwt") || (r[0] == "IV" && r[1] == "Marvellous" && r[2] == "0.6cwt")));
+    // A fixed scramble: stride 29 through the 70 rows (29 and 70 coprime).
+    let n = t.rows.len();
+    let scrambled: Vec<Vec<String>> = (0..n).map(|i| t.rows[(i * 29) % n].clone()).collect();
+    // Keep level order as in the file so coefficients are comparable.
+    let first_seen = t.rows.clone();
+    t.rows = first_seen.into_iter().chain(scrambled).collect();
+    let layout_all = layout(&t, &["V", "N"]);
+    let layout = Layout { levels: layout_all.levels.clone(), rows: layout_all.rows[n..].to_vec() };
+    let design = FixedDesign::new(&layout, &reference.terms);
+    let y = t.numbers("Y")[n..].to_vec();
+    let mut b = t.random(&["B"]);
+    let mut w = t.random(&["B", "V"]);
+    b.level_of.drain(..n);
+    w.level_of.drain(..n);
+    let fit = mixed::fit(&y, &design, &[b, w]).unwrap();
+    // Rounding in the cross-products' sums differs with the order.
+    for (a, c) in variances(&fit).iter().zip(variances(&reference.fit)) {
+        close(*a, c, 1e-10, "permuted component");
+    }
+    close(fit.criterion, reference.fit.criterion, 1e-12, "permuted criterion");
+    for term in 0..3 {
+        let a = fit.type3(&design, term, Ddf::KenwardRoger).unwrap();
+        let c = reference.fit.type3(&reference.design, term, Ddf::KenwardRoger).unwrap();
+        close(a.f, c.f, 1e-10, "permuted F");
+        close(a.df_den, c.df_den, 1e-10, "permuted df");
+    }
+}
+
+/// mixed-models spec 9.6 item 2: with ℓ = 1, KR's λ = 1 and m equals the
+/// expected-information Satterthwaite df.
+#[test]
+fn kenward_roger_single_row_is_expected_satterthwaite() {
+    let o = oats(true);
+    let p = o.fit.beta.len();
+    for k in 1..p {
+        let mut l = vec![0.0; p];
+        l[k] = 1.0;
+        l[0] = 0.5;
+        let kr = o.fit.wald(std::slice::from_ref(&l), Ddf::KenwardRoger).unwrap();
+        let expected = o.fit.satterthwaite_df(&l, Information::Expected);
+        close(kr.lambda, 1.0, 1e-12, "single-row KR lambda");
+        close(kr.df_den, expected, 1e-9, "single-row KR df = expected Satterthwaite");
+        let c = o.fit.contrast(&l, Ddf::KenwardRoger).unwrap();
+        close(c.t * c.t, kr.f, 1e-10, "single-row KR F = t²");
+        close(c.df, kr.df_den, 1e-12, "contrast df = single-row KR df");
+    }
+}

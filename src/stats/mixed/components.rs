@@ -283,4 +283,4 @@ impl CovarianceModel for VarianceComponents {
 
 #[cfg(test)]
 #[path = "components_tests.rs"]
-mod tests;
+pub(crate) mod tests;

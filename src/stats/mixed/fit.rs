@@ -214,3 +214,7 @@ impl MixedFit {
         ddf::satterthwaite_single(&self.df_inputs, l, information)
     }
 }
+
+#[cfg(test)]
+#[path = "fit_tests.rs"]
+mod tests;
