@@ -52,11 +52,19 @@ impl VarianceComponents {
     fn relative(&self, psi: &[f64]) -> Result<(f64, Vec<f64>), MixedError> {
         let j = self.n_terms();
         let sigma2 = psi[j];
-        let bad = MixedError::Singular { what: "the covariance at this parameter value" };
-        if !(sigma2 > 0.0 && sigma2.is_finite()) || psi[..j].iter().any(|v| !(*v >= 0.0 && v.is_finite())) {
+        let bad = MixedError::Singular {
+            what: "the covariance at this parameter value",
+        };
+        if !(sigma2 > 0.0 && sigma2.is_finite())
+            || psi[..j].iter().any(|v| !(*v >= 0.0 && v.is_finite()))
+        {
             return Err(bad);
         }
-        let lambda = self.term_of.iter().map(|&t| (psi[t] / sigma2).sqrt()).collect();
+        let lambda = self
+            .term_of
+            .iter()
+            .map(|&t| (psi[t] / sigma2).sqrt())
+            .collect();
         Ok((sigma2, lambda))
     }
 
@@ -66,11 +74,18 @@ impl VarianceComponents {
         let a = DMatrix::from_fn(q, q, |r, c| {
             lambda[r] * self.cp.ww[(r, c)] * lambda[c] + if r == c { 1.0 } else { 0.0 }
         });
-        a.cholesky().ok_or(MixedError::Singular { what: "the random-effects system" })
+        a.cholesky().ok_or(MixedError::Singular {
+            what: "the random-effects system",
+        })
     }
 
     /// K = L⁻¹ΛZ'W over the W columns from `first` on, and W'H⁻¹W there.
-    fn inverse_cross(&self, chol: &Cholesky<f64, Dyn>, lambda: &[f64], first: usize) -> DMatrix<f64> {
+    fn inverse_cross(
+        &self,
+        chol: &Cholesky<f64, Dyn>,
+        lambda: &[f64],
+        first: usize,
+    ) -> DMatrix<f64> {
         let (q, dim) = (self.cp.q, self.cp.ww.ncols());
         let width = dim - first;
         let b = DMatrix::from_fn(q, width, |r, c| lambda[r] * self.cp.ww[(r, first + c)]);
@@ -87,11 +102,18 @@ impl VarianceComponents {
         let p = self.cp.p;
         let gxx = g.view((0, 0), (p, p)).clone_owned();
         let gxy = g.view((0, p), (p, 1)).clone_owned();
-        let cx = gxx.cholesky().ok_or(MixedError::Singular { what: "X'V⁻¹X" })?;
+        let cx = gxx
+            .cholesky()
+            .ok_or(MixedError::Singular { what: "X'V⁻¹X" })?;
         let ln_det_xhx = 2.0 * cx.l().diagonal().iter().map(|v| v.ln()).sum::<f64>();
         let fitted = gxy.dot(&cx.solve(&gxy));
         let rss = (g[(p, p)] - fitted).max(0.0);
-        Ok(Reduced { sigma2, ln_det_h, ln_det_xhx, rss })
+        Ok(Reduced {
+            sigma2,
+            ln_det_h,
+            ln_det_xhx,
+            rss,
+        })
     }
 
     /// M = W'V⁻¹W over all of W.
@@ -121,7 +143,13 @@ impl VarianceComponents {
 
 /// (A − A_Z·D·B_Z)/σ²: a product F'V⁻¹·I·V⁻¹G reduced to the random terms,
 /// given A = F'V⁻¹G and the Z-parts A_Z = F'V⁻¹Z, B_Z = Z'V⁻¹G.
-fn through_identity(a: &DMatrix<f64>, a_z: &DMatrix<f64>, d: &[f64], b_z: &DMatrix<f64>, sigma2: f64) -> DMatrix<f64> {
+fn through_identity(
+    a: &DMatrix<f64>,
+    a_z: &DMatrix<f64>,
+    d: &[f64],
+    b_z: &DMatrix<f64>,
+    sigma2: f64,
+) -> DMatrix<f64> {
     let mut scaled = a_z.clone();
     for (c, w) in d.iter().enumerate() {
         scaled.column_mut(c).scale_mut(*w);
@@ -135,7 +163,10 @@ impl CovarianceModel for VarianceComponents {
     }
 
     fn param_name(&self, i: usize) -> String {
-        self.names.get(i).cloned().unwrap_or_else(|| "residual".into())
+        self.names
+            .get(i)
+            .cloned()
+            .unwrap_or_else(|| "residual".into())
     }
 
     fn may_be_zero(&self, i: usize) -> bool {
@@ -145,15 +176,19 @@ impl CovarianceModel for VarianceComponents {
     fn criterion(&self, psi: &[f64]) -> Result<f64, MixedError> {
         let r = self.reduced(psi)?;
         let df = (self.cp.n - self.cp.p) as f64;
-        Ok(df * (2.0 * PI * r.sigma2).ln() + r.ln_det_h + r.ln_det_xhx - self.cp.ln_det_xtx
-            + r.rss / r.sigma2)
+        Ok(
+            df * (2.0 * PI * r.sigma2).ln() + r.ln_det_h + r.ln_det_xhx - self.cp.ln_det_xtx
+                + r.rss / r.sigma2,
+        )
     }
 
     fn profile_scale(&self, psi: &[f64]) -> Result<Vec<f64>, MixedError> {
         let r = self.reduced(psi)?;
         let sigma2_hat = r.rss / (self.cp.n - self.cp.p) as f64;
-        if !(sigma2_hat > 0.0) {
-            return Err(MixedError::Singular { what: "the residual variance (a perfect fit)" });
+        if !crate::stats::is_positive(sigma2_hat) {
+            return Err(MixedError::Singular {
+                what: "the residual variance (a perfect fit)",
+            });
         }
         Ok(psi.iter().map(|v| v * sigma2_hat / r.sigma2).collect())
     }
@@ -177,7 +212,8 @@ impl CovarianceModel for VarianceComponents {
         let yi = q;
         let tr_pi = (n_free - (0..q).map(|k| d[k] * s[(k, k)]).sum::<f64>()) / sigma2;
         let tr_pi2 = (tr_pi - (0..q).map(|k| d[k] * t[(k, k)]).sum::<f64>()) / sigma2;
-        let y_pi3_y = (t[(yi, yi)] - (0..q).map(|k| d[k] * s[(yi, k)] * t[(k, yi)]).sum::<f64>()) / sigma2;
+        let y_pi3_y =
+            (t[(yi, yi)] - (0..q).map(|k| d[k] * s[(yi, k)] * t[(k, yi)]).sum::<f64>()) / sigma2;
         let j = self.n_terms();
         let np = j + 1;
         let blocks = &self.cp.blocks;
@@ -212,7 +248,11 @@ impl CovarianceModel for VarianceComponents {
         expected.fill_upper_triangle_with_lower_triangle();
         cross.fill_upper_triangle_with_lower_triangle();
         let hessian = -&expected + cross * 2.0;
-        Ok(Derivatives { gradient, expected, hessian })
+        Ok(Derivatives {
+            gradient,
+            expected,
+            hessian,
+        })
     }
 
     fn fixed_effects(&self, psi: &[f64], free: &[usize]) -> Result<FixedEffects, MixedError> {
@@ -269,7 +309,12 @@ impl CovarianceModel for VarianceComponents {
                     .collect()
             })
             .collect();
-        Ok(FixedEffects { beta, phi, p: pm, q: qm })
+        Ok(FixedEffects {
+            beta,
+            phi,
+            p: pm,
+            q: qm,
+        })
     }
 
     fn ln_det_xtx(&self) -> f64 {

@@ -26,11 +26,22 @@ pub(crate) fn invented() -> (Vec<f64>, FixedDesign, Vec<RandomTerm>) {
             plot_id += 1;
         }
     }
-    let layout = Layout { levels: vec![2, 2], rows };
+    let layout = Layout {
+        levels: vec![2, 2],
+        rows,
+    };
     let design = FixedDesign::new(&layout, &[vec![0], vec![1]]);
     let random = vec![
-        RandomTerm { name: "block".into(), levels: 4, level_of: block },
-        RandomTerm { name: "plot".into(), levels: plot_id, level_of: plot },
+        RandomTerm {
+            name: "block".into(),
+            levels: 4,
+            level_of: block,
+        },
+        RandomTerm {
+            name: "plot".into(),
+            levels: plot_id,
+            level_of: plot,
+        },
     ];
     (y, design, random)
 }
@@ -53,7 +64,10 @@ fn shifted(psi: &[f64], i: usize, by: f64) -> Vec<f64> {
 
 fn assert_rel(a: f64, b: f64, tol: f64, what: &str) {
     let scale = a.abs().max(b.abs()).max(1e-3);
-    assert!((a - b).abs() <= tol * scale, "{what}: analytic {a} vs numeric {b}");
+    assert!(
+        (a - b).abs() <= tol * scale,
+        "{what}: analytic {a} vs numeric {b}"
+    );
 }
 
 #[test]
@@ -63,12 +77,19 @@ fn gradient_and_hessian_match_central_differences() {
     let der = m.derivatives(&psi).unwrap();
     for i in 0..3 {
         let h = H * psi[i];
-        let num = (m.criterion(&shifted(&psi, i, H)).unwrap() - m.criterion(&shifted(&psi, i, -H)).unwrap()) / (2.0 * h);
+        let num = (m.criterion(&shifted(&psi, i, H)).unwrap()
+            - m.criterion(&shifted(&psi, i, -H)).unwrap())
+            / (2.0 * h);
         assert_rel(der.gradient[i], num, 1e-6, &format!("gradient {i}"));
         let up = m.derivatives(&shifted(&psi, i, H)).unwrap().gradient;
         let down = m.derivatives(&shifted(&psi, i, -H)).unwrap().gradient;
         for j in 0..3 {
-            assert_rel(der.hessian[(i, j)], (up[j] - down[j]) / (2.0 * h), 1e-6, &format!("hessian {i},{j}"));
+            assert_rel(
+                der.hessian[(i, j)],
+                (up[j] - down[j]) / (2.0 * h),
+                1e-6,
+                &format!("hessian {i},{j}"),
+            );
         }
     }
 }

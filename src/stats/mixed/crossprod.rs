@@ -60,8 +60,18 @@ impl CrossProducts {
         let ln_det_xtx = xtx
             .cholesky()
             .map(|c| 2.0 * c.l().diagonal().iter().map(|v| v.ln()).sum::<f64>())
-            .ok_or(MixedError::Singular { what: "the fixed-effects design X'X" })?;
-        Ok(Self { n, q, p, blocks, ww, ln_det_xtx, y_mean })
+            .ok_or(MixedError::Singular {
+                what: "the fixed-effects design X'X",
+            })?;
+        Ok(Self {
+            n,
+            q,
+            p,
+            blocks,
+            ww,
+            ln_det_xtx,
+            y_mean,
+        })
     }
 
     /// Index of the response column in W.

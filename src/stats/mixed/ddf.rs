@@ -9,27 +9,23 @@ use nalgebra::DMatrix;
 use crate::stats::dist;
 
 /// Which information matrix gives the covariance of ψ̂ for Satterthwaite.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Information {
     /// Observed information (the Hessian of the REML criterion); the default.
+    #[default]
     Observed,
     /// Expected information; single-contrast df then equal Kenward-Roger's.
     Expected,
 }
 
 /// The denominator-df method requested.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Ddf {
-    /// Kenward-Roger: Φ inflated to Φ_A, F scaled by λ, df m.
+    /// Kenward-Roger: Φ inflated to Φ_A, F scaled by λ, df m (the default).
+    #[default]
     KenwardRoger,
     /// Satterthwaite with the given information.
     Satterthwaite(Information),
-}
-
-impl Default for Ddf {
-    fn default() -> Self {
-        Self::KenwardRoger
-    }
 }
 
 /// The method that produced the df, with the fallbacks spec 3.2-3.3 name.
@@ -58,7 +54,12 @@ pub(crate) struct DfInputs {
 }
 
 /// Φ_A = Φ + 2Φ[Σᵢⱼ Wᵢⱼ(Qᵢⱼ − PᵢΦPⱼ)]Φ (Rᵢⱼ = 0: V is linear in ψ).
-pub(crate) fn adjusted_phi(phi: &DMatrix<f64>, p: &[DMatrix<f64>], q: &[Vec<DMatrix<f64>>], w: &DMatrix<f64>) -> DMatrix<f64> {
+pub(crate) fn adjusted_phi(
+    phi: &DMatrix<f64>,
+    p: &[DMatrix<f64>],
+    q: &[Vec<DMatrix<f64>>],
+    w: &DMatrix<f64>,
+) -> DMatrix<f64> {
     let dim = phi.nrows();
     let mut inner = DMatrix::zeros(dim, dim);
     for i in 0..p.len() {
@@ -107,7 +108,10 @@ fn quad(l: &[f64], m: &DMatrix<f64>) -> f64 {
 fn gradient_of_variance(inputs: &DfInputs, l: &[f64]) -> nalgebra::DVector<f64> {
     let v = nalgebra::DVector::from_column_slice(l);
     let phil = &inputs.phi * &v;
-    nalgebra::DVector::from_iterator(inputs.p.len(), inputs.p.iter().map(|p| -phil.dot(&(p * &phil))))
+    nalgebra::DVector::from_iterator(
+        inputs.p.len(),
+        inputs.p.iter().map(|p| -phil.dot(&(p * &phil))),
+    )
 }
 
 /// Satterthwaite df of one contrast: 2v²/(g'Ag).
@@ -119,7 +123,11 @@ pub(crate) fn satterthwaite_single(inputs: &DfInputs, l: &[f64], information: In
     let v = quad(l, &inputs.phi);
     let g = gradient_of_variance(inputs, l);
     let denom = g.dot(&(a * &g));
-    if denom > 0.0 { 2.0 * v * v / denom } else { f64::INFINITY }
+    if denom > 0.0 {
+        2.0 * v * v / denom
+    } else {
+        f64::INFINITY
+    }
 }
 
 /// A single contrast under the chosen method.
@@ -132,12 +140,23 @@ pub(crate) fn contrast(inputs: &DfInputs, beta: &[f64], l: &[f64], ddf: Ddf) -> 
             satterthwaite_single(inputs, l, Information::Expected),
             DfMethod::KenwardRoger,
         ),
-        Ddf::Satterthwaite(info) => (quad(l, &inputs.phi), satterthwaite_single(inputs, l, info), DfMethod::Satterthwaite(info)),
+        Ddf::Satterthwaite(info) => (
+            quad(l, &inputs.phi),
+            satterthwaite_single(inputs, l, info),
+            DfMethod::Satterthwaite(info),
+        ),
     };
     let se = var.max(0.0).sqrt();
     let t = estimate / se;
     let p_value = (2.0 * dist::t_sf(t.abs(), df)).min(1.0);
-    ContrastTest { estimate, se, df, t, p_value, method }
+    ContrastTest {
+        estimate,
+        se,
+        df,
+        t,
+        p_value,
+        method,
+    }
 }
 
 /// (Lβ)'(LML')⁻¹(Lβ)/ℓ, or `None` when LML' is not positive definite.
@@ -149,12 +168,21 @@ pub(crate) fn wald_f(l: &DMatrix<f64>, beta: &[f64], m: &DMatrix<f64>) -> Option
 }
 
 fn f_p_value(f: f64, d1: f64, d2: f64) -> f64 {
-    if d2.is_infinite() { dist::chi2_sf(f * d1, d1) } else { dist::f_sf(f, d1, d2) }
+    if d2.is_infinite() {
+        dist::chi2_sf(f * d1, d1)
+    } else {
+        dist::f_sf(f, d1, d2)
+    }
 }
 
 /// Satterthwaite for ℓ rows (spec 3.2): per eigen-direction of LΦL', then
 /// combined through E = Σ νₘ/(νₘ − 2) over νₘ > 2.
-pub(crate) fn satterthwaite(inputs: &DfInputs, beta: &[f64], l: &DMatrix<f64>, information: Information) -> Option<WaldTest> {
+pub(crate) fn satterthwaite(
+    inputs: &DfInputs,
+    beta: &[f64],
+    l: &DMatrix<f64>,
+    information: Information,
+) -> Option<WaldTest> {
     let f = wald_f(l, beta, &inputs.phi)?;
     let rows = l.nrows();
     let eig = (l * &inputs.phi * l.transpose()).symmetric_eigen();
@@ -167,14 +195,37 @@ pub(crate) fn satterthwaite(inputs: &DfInputs, beta: &[f64], l: &DMatrix<f64>, i
     let (df, method) = if rows == 1 {
         (nus[0], DfMethod::Satterthwaite(information))
     } else {
-        let e: f64 = nus.iter().filter(|nu| **nu > 2.0).map(|nu| if nu.is_infinite() { 1.0 } else { nu / (nu - 2.0) }).sum();
+        let e: f64 = nus
+            .iter()
+            .filter(|nu| **nu > 2.0)
+            .map(|nu| {
+                if nu.is_infinite() {
+                    1.0
+                } else {
+                    nu / (nu - 2.0)
+                }
+            })
+            .sum();
         if e > rows as f64 {
-            (2.0 * e / (e - rows as f64), DfMethod::Satterthwaite(information))
+            (
+                2.0 * e / (e - rows as f64),
+                DfMethod::Satterthwaite(information),
+            )
         } else {
-            (nus.iter().copied().fold(f64::INFINITY, f64::min), DfMethod::SatterthwaiteSmallest(information))
+            (
+                nus.iter().copied().fold(f64::INFINITY, f64::min),
+                DfMethod::SatterthwaiteSmallest(information),
+            )
         }
     };
-    Some(WaldTest { f, df_num: rows, df_den: df, p_value: f_p_value(f, rows as f64, df), lambda: 1.0, method })
+    Some(WaldTest {
+        f,
+        df_num: rows,
+        df_den: df,
+        p_value: f_p_value(f, rows as f64, df),
+        lambda: 1.0,
+        method,
+    })
 }
 
 /// Kenward-Roger (spec 3.3); on a failed moment match, Satterthwaite with
@@ -203,7 +254,14 @@ pub(crate) fn kenward_roger(inputs: &DfInputs, beta: &[f64], l: &DMatrix<f64>) -
         }
     };
     let f = lambda * f_wald;
-    Some(WaldTest { f, df_num: l.nrows(), df_den: df, p_value: f_p_value(f, ell, df), lambda, method: DfMethod::KenwardRoger })
+    Some(WaldTest {
+        f,
+        df_num: l.nrows(),
+        df_den: df,
+        p_value: f_p_value(f, ell, df),
+        lambda,
+        method: DfMethod::KenwardRoger,
+    })
 }
 
 /// (m, λ) from A₁, A₂; `None` where the match is undefined.
@@ -222,9 +280,13 @@ fn moment_match(ell: f64, a1: f64, a2: f64) -> Option<(f64, f64)> {
     }
     let v_star = (2.0 / ell) * (1.0 + c1 * b) / ((1.0 - c2 * b).powi(2) * (1.0 - c3 * b));
     let rho = v_star / (2.0 * e_star * e_star);
-    if !(ell * rho > 1.0) {
+    if !crate::stats::is_positive(ell * rho - 1.0) {
         return None;
     }
     let m = 4.0 + (ell + 2.0) / (ell * rho - 1.0);
     Some((m, m / (e_star * (m - 2.0))))
 }
+
+#[cfg(test)]
+#[path = "ddf_tests.rs"]
+mod tests;

@@ -39,7 +39,11 @@ impl FixedDesign {
             .filter(|(_, k)| **k)
             .map(|(c, _)| c)
             .collect();
-        Self { columns, kept: qr.kept, term_ranges }
+        Self {
+            columns,
+            kept: qr.kept,
+            term_ranges,
+        }
     }
 
     /// Number of observations.
@@ -92,9 +96,12 @@ impl FixedDesign {
     /// term, selecting its coefficient (sum-to-zero coding makes this the
     /// fixed-effects Type III hypothesis).
     pub fn type3_rows(&self, t: usize) -> Result<Vec<Vec<f64>>, MixedError> {
-        let range = self.term_ranges.get(t).ok_or_else(|| MixedError::BadHypothesis {
-            reason: format!("there is no fixed term {t}"),
-        })?;
+        let range = self
+            .term_ranges
+            .get(t)
+            .ok_or_else(|| MixedError::BadHypothesis {
+                reason: format!("there is no fixed term {t}"),
+            })?;
         let position = self.kept_position();
         let rows: Vec<Vec<f64>> = range
             .clone()

@@ -11,7 +11,7 @@ use super::model::CovarianceModel;
 use super::optimiser;
 
 /// Most random-effect levels q the dense method takes (cost grows as q³).
-pub const MAX_RANDOM_LEVELS: usize = 2000;
+pub const MAX_RANDOM_LEVELS: usize = 1500;
 /// Most kept fixed-effect columns p.
 pub const MAX_FIXED_COLUMNS: usize = 500;
 /// A free parameter's information eigenvalue below this fraction of the
@@ -72,9 +72,10 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
     let free = opt.free.clone();
     check_identified(&opt.derivatives.hessian, &free)?;
     // Parameters at 0 are known for the df (spec 2.5).
-    let df_free: Vec<usize> = (0..np).filter(|&i| opt.psi[i] > 0.0 || !model.may_be_zero(i)).collect();
-    let df_inputs = df_inputs(&model, &opt.psi, &opt.derivatives, &df_free)?;
-    let beta = model.fixed_effects(&opt.psi, &[])?.beta;
+    let df_free: Vec<usize> = (0..np)
+        .filter(|&i| opt.psi[i] > 0.0 || !model.may_be_zero(i))
+        .collect();
+    let (df_inputs, beta) = df_inputs(&model, &opt.psi, &opt.derivatives, &df_free)?;
     let (n, p) = model.sizes();
     let k = np as f64;
     let mut components: Vec<VarianceComponent> = random
@@ -87,7 +88,12 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
             on_boundary: opt.psi[j] == 0.0,
         })
         .collect();
-    components.push(VarianceComponent { name: "residual".into(), variance: opt.psi[np - 1], levels: n, on_boundary: false });
+    components.push(VarianceComponent {
+        name: "residual".into(),
+        variance: opt.psi[np - 1],
+        levels: n,
+        on_boundary: false,
+    });
     Ok(MixedFit {
         components,
         beta,
@@ -114,13 +120,24 @@ fn validate(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<(),
     }
     let q: usize = random.iter().map(|t| t.levels).sum();
     if q > MAX_RANDOM_LEVELS {
-        return Err(MixedError::TooLarge { what: "random-effect levels", size: q, limit: MAX_RANDOM_LEVELS });
+        return Err(MixedError::TooLarge {
+            what: "random-effect levels",
+            size: q,
+            limit: MAX_RANDOM_LEVELS,
+        });
     }
     if fixed.rank() > MAX_FIXED_COLUMNS {
-        return Err(MixedError::TooLarge { what: "fixed-effect columns", size: fixed.rank(), limit: MAX_FIXED_COLUMNS });
+        return Err(MixedError::TooLarge {
+            what: "fixed-effect columns",
+            size: fixed.rank(),
+            limit: MAX_FIXED_COLUMNS,
+        });
     }
     if y.len() <= fixed.rank() {
-        return Err(MixedError::NoResidualDf { observations: y.len(), fixed_columns: fixed.rank() });
+        return Err(MixedError::NoResidualDf {
+            observations: y.len(),
+            fixed_columns: fixed.rank(),
+        });
     }
     for t in random {
         let mut count = vec![0usize; t.levels];
@@ -130,7 +147,9 @@ fn validate(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<(),
             }
         }
         if count.iter().all(|c| *c <= 1) {
-            return Err(MixedError::DuplicatesResidual { term: t.name.clone() });
+            return Err(MixedError::DuplicatesResidual {
+                term: t.name.clone(),
+            });
         }
     }
     Ok(())
@@ -151,33 +170,58 @@ fn check_identified(hessian: &DMatrix<f64>, free: &[usize]) -> Result<(), MixedE
     Ok(())
 }
 
-/// Φ, Φ_A, the Pᵢ and both covariances of ψ̂ over the free parameters.
+/// Φ, Φ_A, the Pᵢ and both covariances of ψ̂ over the free parameters,
+/// and β̂.
 fn df_inputs(
     model: &VarianceComponents,
     psi: &[f64],
     der: &super::model::Derivatives,
     free: &[usize],
-) -> Result<DfInputs, MixedError> {
+) -> Result<(DfInputs, Vec<f64>), MixedError> {
     let fe = model.fixed_effects(psi, free)?;
-    let pick = |m: &DMatrix<f64>| DMatrix::from_fn(free.len(), free.len(), |r, c| m[(free[r], free[c])] * 0.5);
-    let invert = |m: DMatrix<f64>| m.cholesky().map(|c| c.inverse()).ok_or(MixedError::NotIdentified { smallest: 0.0, largest: 0.0 });
+    let pick = |m: &DMatrix<f64>| {
+        DMatrix::from_fn(free.len(), free.len(), |r, c| m[(free[r], free[c])] * 0.5)
+    };
+    let invert = |m: DMatrix<f64>| {
+        m.cholesky()
+            .map(|c| c.inverse())
+            .ok_or(MixedError::NotIdentified {
+                smallest: 0.0,
+                largest: 0.0,
+            })
+    };
     // Information of ℓ_R = half the second derivatives of d.
     let cov_expected = invert(pick(&der.expected))?;
     let cov_observed = invert(pick(&der.hessian))?;
     let phi_adjusted = ddf::adjusted_phi(&fe.phi, &fe.p, &fe.q, &cov_expected);
-    Ok(DfInputs { phi: fe.phi, phi_adjusted, p: fe.p, cov_expected, cov_observed })
+    Ok((
+        DfInputs {
+            phi: fe.phi,
+            phi_adjusted,
+            p: fe.p,
+            cov_expected,
+            cov_observed,
+        },
+        fe.beta,
+    ))
 }
 
 fn rows_of(m: &DMatrix<f64>) -> Vec<Vec<f64>> {
-    (0..m.nrows()).map(|r| m.row(r).iter().copied().collect()).collect()
+    (0..m.nrows())
+        .map(|r| m.row(r).iter().copied().collect())
+        .collect()
 }
 
 fn matrix_of(rows: &[Vec<f64>], width: usize) -> Result<DMatrix<f64>, MixedError> {
     if rows.is_empty() {
-        return Err(MixedError::BadHypothesis { reason: "no rows".into() });
+        return Err(MixedError::BadHypothesis {
+            reason: "no rows".into(),
+        });
     }
     if let Some(r) = rows.iter().find(|r| r.len() != width) {
-        return Err(MixedError::BadHypothesis { reason: format!("a row has {} entries where {width} were expected", r.len()) });
+        return Err(MixedError::BadHypothesis {
+            reason: format!("a row has {} entries where {width} were expected", r.len()),
+        });
     }
     Ok(DMatrix::from_fn(rows.len(), width, |r, c| rows[r][c]))
 }
@@ -186,7 +230,9 @@ impl MixedFit {
     /// The Wald F test of Lβ = 0 (rows of L over the kept columns).
     pub fn wald(&self, l: &[Vec<f64>], method: Ddf) -> Result<WaldTest, MixedError> {
         let lm = matrix_of(l, self.beta.len())?;
-        let rank_fail = || MixedError::BadHypothesis { reason: "the rows of L are not linearly independent".into() };
+        let rank_fail = || MixedError::BadHypothesis {
+            reason: "the rows of L are not linearly independent".into(),
+        };
         let test = match method {
             Ddf::KenwardRoger => ddf::kenward_roger(&self.df_inputs, &self.beta, &lm),
             Ddf::Satterthwaite(info) => ddf::satterthwaite(&self.df_inputs, &self.beta, &lm, info),
@@ -195,7 +241,12 @@ impl MixedFit {
     }
 
     /// The Type III test of fixed term `term` of `design`.
-    pub fn type3(&self, design: &FixedDesign, term: usize, method: Ddf) -> Result<WaldTest, MixedError> {
+    pub fn type3(
+        &self,
+        design: &FixedDesign,
+        term: usize,
+        method: Ddf,
+    ) -> Result<WaldTest, MixedError> {
         self.wald(&design.type3_rows(term)?, method)
     }
 
@@ -203,7 +254,11 @@ impl MixedFit {
     /// [`FixedDesign::restrict`]) with its SE and df.
     pub fn contrast(&self, l: &[f64], method: Ddf) -> Result<ContrastTest, MixedError> {
         if l.len() != self.beta.len() {
-            return Err(MixedError::LengthMismatch { what: "a contrast".into(), expected: self.beta.len(), found: l.len() });
+            return Err(MixedError::LengthMismatch {
+                what: "a contrast".into(),
+                expected: self.beta.len(),
+                found: l.len(),
+            });
         }
         Ok(ddf::contrast(&self.df_inputs, &self.beta, l, method))
     }

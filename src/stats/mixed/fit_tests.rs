@@ -8,7 +8,13 @@ use crate::stats::mixed::components::tests::invented;
 /// the treatments (each batch's deviations are a permutation of the same
 /// three numbers), so REML puts the batch variance on its bound.
 fn equal_batch_means() -> (Vec<f64>, FixedDesign, RandomTerm) {
-    let deviations = [[-1.2, 0.3, 0.9], [0.9, -1.2, 0.3], [0.3, 0.9, -1.2], [-1.2, 0.9, 0.3], [0.3, -1.2, 0.9]];
+    let deviations = [
+        [-1.2, 0.3, 0.9],
+        [0.9, -1.2, 0.3],
+        [0.3, 0.9, -1.2],
+        [-1.2, 0.9, 0.3],
+        [0.3, -1.2, 0.9],
+    ];
     let means = [10.0, 12.5, 11.0];
     let mut y = Vec::new();
     let mut rows = Vec::new();
@@ -20,8 +26,22 @@ fn equal_batch_means() -> (Vec<f64>, FixedDesign, RandomTerm) {
             batch.push(b);
         }
     }
-    let design = FixedDesign::new(&Layout { levels: vec![3], rows }, &[vec![0]]);
-    (y, design, RandomTerm { name: "batch".into(), levels: 5, level_of: batch })
+    let design = FixedDesign::new(
+        &Layout {
+            levels: vec![3],
+            rows,
+        },
+        &[vec![0]],
+    );
+    (
+        y,
+        design,
+        RandomTerm {
+            name: "batch".into(),
+            levels: 5,
+            level_of: batch,
+        },
+    )
 }
 
 /// mixed-models spec 9.6 item 1: a random term estimated at 0 changes
@@ -39,7 +59,10 @@ fn a_zero_variance_term_changes_nothing() {
     for method in [Ddf::KenwardRoger, Ddf::Satterthwaite(Information::Observed)] {
         let a = with.type3(&design, 0, method).unwrap();
         let b = without.type3(&design, 0, method).unwrap();
-        assert!(rel(a.f, b.f) < 1e-12 && rel(a.df_den, b.df_den) < 1e-12, "{a:?} vs {b:?}");
+        assert!(
+            rel(a.f, b.f) < 1e-12 && rel(a.df_den, b.df_den) < 1e-12,
+            "{a:?} vs {b:?}"
+        );
         // Residual only: the df are N − p = 12 (common practice).
         assert!(rel(b.df_den, 12.0) < 1e-9, "{b:?}");
     }
@@ -52,16 +75,28 @@ fn a_zero_variance_term_changes_nothing() {
 #[test]
 fn a_term_with_one_observation_per_level_is_refused_by_name() {
     let (y, design, _) = equal_batch_means();
-    let unit = RandomTerm { name: "plot".into(), levels: y.len(), level_of: (0..y.len()).collect() };
+    let unit = RandomTerm {
+        name: "plot".into(),
+        levels: y.len(),
+        level_of: (0..y.len()).collect(),
+    };
     let err = fit(&y, &design, &[unit]).unwrap_err();
-    assert_eq!(err, MixedError::DuplicatesResidual { term: "plot".into() });
+    assert_eq!(
+        err,
+        MixedError::DuplicatesResidual {
+            term: "plot".into()
+        }
+    );
     assert!(err.to_string().contains("'plot'"));
 }
 
 #[test]
 fn two_identical_terms_are_not_identified() {
     let (y, design, random) = invented();
-    let twin = RandomTerm { name: "block again".into(), ..random[0].clone() };
+    let twin = RandomTerm {
+        name: "block again".into(),
+        ..random[0].clone()
+    };
     let err = fit(&y, &design, &[random[0].clone(), twin]).unwrap_err();
     assert!(matches!(err, MixedError::NotIdentified { .. }), "{err:?}");
 }
@@ -69,17 +104,34 @@ fn two_identical_terms_are_not_identified() {
 #[test]
 fn bad_input_is_refused_with_sizes() {
     let (mut y, design, random) = invented();
-    let too_many = RandomTerm { name: "huge".into(), levels: MAX_RANDOM_LEVELS + 1, level_of: random[0].level_of.clone() };
+    let too_many = RandomTerm {
+        name: "huge".into(),
+        levels: MAX_RANDOM_LEVELS + 1,
+        level_of: random[0].level_of.clone(),
+    };
     let err = fit(&y, &design, &[too_many]).unwrap_err();
-    assert!(err.to_string().contains(&format!("{}", MAX_RANDOM_LEVELS + 1)), "{err}");
+    assert!(
+        err.to_string()
+            .contains(&format!("{}", MAX_RANDOM_LEVELS + 1)),
+        "{err}"
+    );
     let mut wrong = random[0].clone();
     wrong.level_of[3] = 9;
-    assert!(matches!(fit(&y, &design, &[wrong]), Err(MixedError::LevelOutOfRange { row: 3, .. })));
+    assert!(matches!(
+        fit(&y, &design, &[wrong]),
+        Err(MixedError::LevelOutOfRange { row: 3, .. })
+    ));
     let mut short = random[0].clone();
     short.level_of.pop();
-    assert!(matches!(fit(&y, &design, &[short]), Err(MixedError::LengthMismatch { .. })));
+    assert!(matches!(
+        fit(&y, &design, &[short]),
+        Err(MixedError::LengthMismatch { .. })
+    ));
     y[2] = f64::NAN;
-    assert_eq!(fit(&y, &design, &random).unwrap_err(), MixedError::NonFiniteResponse { row: 2 });
+    assert_eq!(
+        fit(&y, &design, &random).unwrap_err(),
+        MixedError::NonFiniteResponse { row: 2 }
+    );
 }
 
 #[test]

@@ -39,12 +39,17 @@ pub(crate) struct Optimum {
 }
 
 /// Minimises d from `start`; parameters with `held[i]` stay at their start.
-pub(crate) fn minimise(model: &dyn CovarianceModel, start: Vec<f64>, held: &[bool]) -> Result<Optimum, MixedError> {
+pub(crate) fn minimise(
+    model: &dyn CovarianceModel,
+    start: Vec<f64>,
+    held: &[bool],
+) -> Result<Optimum, MixedError> {
     let mut psi = start;
     let mut d = model.criterion(&psi)?;
     let mut newton = false;
     let mut last_move: Option<(f64, f64)> = None;
-    for iteration in 0..=MAX_ITERATIONS {
+    let mut iteration = 0;
+    loop {
         let der = model.derivatives(&psi)?;
         let free = free_parameters(model, &psi, &der.gradient, held);
         let scaled = free
@@ -52,11 +57,23 @@ pub(crate) fn minimise(model: &dyn CovarianceModel, start: Vec<f64>, held: &[boo
             .map(|&i| (der.gradient[i] * psi[i]).abs())
             .fold(0.0, f64::max);
         let settled = scaled <= TOL_SCALED_GRADIENT;
-        let moved_little = last_move.is_some_and(|(dd, step)| dd <= TOL_CRITERION * (1.0 + d.abs()) && step <= TOL_STEP);
+        let moved_little = last_move
+            .is_some_and(|(dd, step)| dd <= TOL_CRITERION * (1.0 + d.abs()) && step <= TOL_STEP);
         if free.is_empty() || (settled && moved_little) {
-            return Ok(Optimum { psi, criterion: d, iterations: iteration, max_scaled_gradient: scaled, derivatives: der, free });
+            return Ok(Optimum {
+                psi,
+                criterion: d,
+                iterations: iteration,
+                max_scaled_gradient: scaled,
+                derivatives: der,
+                free,
+            });
         }
-        let fail = || MixedError::NotConverged { iterations: iteration, criterion: d, gradient: der.gradient.clone() };
+        let fail = || MixedError::NotConverged {
+            iterations: iteration,
+            criterion: d,
+            gradient: der.gradient.clone(),
+        };
         if iteration == MAX_ITERATIONS {
             return Err(fail());
         }
@@ -64,7 +81,14 @@ pub(crate) fn minimise(model: &dyn CovarianceModel, start: Vec<f64>, held: &[boo
         let Some((candidate, d_new)) = line_search(model, &psi, d, &direction)? else {
             // No decrease is possible at working precision.
             if settled {
-                return Ok(Optimum { psi, criterion: d, iterations: iteration, max_scaled_gradient: scaled, derivatives: der, free });
+                return Ok(Optimum {
+                    psi,
+                    criterion: d,
+                    iterations: iteration,
+                    max_scaled_gradient: scaled,
+                    derivatives: der,
+                    free,
+                });
             }
             return Err(fail());
         };
@@ -78,29 +102,44 @@ pub(crate) fn minimise(model: &dyn CovarianceModel, start: Vec<f64>, held: &[boo
         last_move = Some(((d - d_new).abs(), step));
         psi = candidate;
         d = d_new;
+        iteration += 1;
     }
-    unreachable!("the loop returns at MAX_ITERATIONS")
 }
 
 /// Indices of the parameters the step may move.
-fn free_parameters(model: &dyn CovarianceModel, psi: &[f64], gradient: &[f64], held: &[bool]) -> Vec<usize> {
+fn free_parameters(
+    model: &dyn CovarianceModel,
+    psi: &[f64],
+    gradient: &[f64],
+    held: &[bool],
+) -> Vec<usize> {
     (0..psi.len())
-        .filter(|&i| !held[i] && !(model.may_be_zero(i) && psi[i] == 0.0 && gradient[i] >= 0.0))
+        .filter(|&i| {
+            let held_at_zero = model.may_be_zero(i) && psi[i] == 0.0 && gradient[i] >= 0.0;
+            !held[i] && !held_at_zero
+        })
         .collect()
 }
 
 /// −M⁻¹∇d on the free parameters (M: observed Hessian for Newton when it is
 /// positive definite there, else the expected one), zero elsewhere.
 fn step_direction(der: &Derivatives, free: &[usize], newton: bool) -> Result<Vec<f64>, MixedError> {
-    let pick = |m: &DMatrix<f64>| DMatrix::from_fn(free.len(), free.len(), |r, c| m[(free[r], free[c])]);
+    let pick =
+        |m: &DMatrix<f64>| DMatrix::from_fn(free.len(), free.len(), |r, c| m[(free[r], free[c])]);
     let g = nalgebra::DVector::from_iterator(free.len(), free.iter().map(|&i| der.gradient[i]));
-    let newton_chol = if newton { pick(&der.hessian).cholesky() } else { None };
+    let newton_chol = if newton {
+        pick(&der.hessian).cholesky()
+    } else {
+        None
+    };
     let chol = match newton_chol {
         Some(c) => c,
-        None => pick(&der.expected).cholesky().ok_or(MixedError::NotIdentified {
-            smallest: 0.0,
-            largest: der.expected.amax(),
-        })?,
+        None => pick(&der.expected)
+            .cholesky()
+            .ok_or(MixedError::NotIdentified {
+                smallest: 0.0,
+                largest: der.expected.amax(),
+            })?,
     };
     let step = chol.solve(&g);
     let mut out = vec![0.0; der.gradient.len()];
@@ -165,7 +204,11 @@ pub(crate) fn relative_step(old: &[f64], new: &[f64]) -> f64 {
         .zip(new)
         .map(|(a, b)| {
             let scale = a.abs().max(b.abs());
-            if scale == 0.0 { 0.0 } else { (a - b).abs() / scale }
+            if scale == 0.0 {
+                0.0
+            } else {
+                (a - b).abs() / scale
+            }
         })
         .fold(0.0, f64::max)
 }

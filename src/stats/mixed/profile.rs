@@ -31,7 +31,9 @@ impl MixedFit {
         // χ²₁ quantile = square of the normal quantile.
         let z = dist::normal_isf((1.0 - level) / 2.0);
         let cutoff = z * z;
-        (0..self.psi.len()).map(|k| self.profile_interval(k, cutoff)).collect()
+        (0..self.psi.len())
+            .map(|k| self.profile_interval(k, cutoff))
+            .collect()
     }
 
     /// d_prof(σ²ₖ = s²) − d_min − cutoff.
@@ -46,9 +48,15 @@ impl MixedFit {
 
     fn profile_interval(&self, k: usize, cutoff: f64) -> Result<SdInterval, MixedError> {
         let name = self.model.param_name(k);
-        let failed = || MixedError::ProfileFailed { parameter: name.clone() };
+        let failed = || MixedError::ProfileFailed {
+            parameter: name.clone(),
+        };
         let sd = self.psi[k].sqrt();
-        let scale = if sd > 0.0 { sd } else { self.psi[self.psi.len() - 1].sqrt() };
+        let scale = if sd > 0.0 {
+            sd
+        } else {
+            self.psi[self.psi.len() - 1].sqrt()
+        };
         let tol_abs = TOL_REL * scale;
         let mut error = None;
         let mut f = |s: f64| match self.excess(k, s, cutoff) {
