@@ -139,6 +139,10 @@ fn oats(delete_two: bool) -> Oats {
 }
 
 fn variances(fit: &MixedFit) -> Vec<f64> {
+    eprintln!(
+        "iterations {}, max scaled gradient {:e}",
+        fit.iterations, fit.max_scaled_gradient
+    );
     fit.components.iter().map(|c| c.variance).collect()
 }
 

@@ -70,7 +70,7 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
     let np = model.n_params();
     let opt = optimiser::minimise(&model, model.start()?, &vec![false; np])?;
     let free = opt.free.clone();
-    check_identified(&opt.derivatives.hessian, &free)?;
+    check_identified(&opt.derivatives, &free)?;
     // Parameters at 0 are known for the df (spec 2.5).
     let df_free: Vec<usize> = (0..np)
         .filter(|&i| opt.psi[i] > 0.0 || !model.may_be_zero(i))
@@ -156,12 +156,20 @@ fn validate(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<(),
 }
 
 /// The observed information on the free parameters must be positive
-/// definite (spec 2.3.5).
-fn check_identified(hessian: &DMatrix<f64>, free: &[usize]) -> Result<(), MixedError> {
+/// definite (spec 2.3.5). It is first scaled by the expected information's
+/// diagonal, so the test does not depend on the units of the parameters
+/// (variances of very different sizes are not a flat direction).
+fn check_identified(der: &super::model::Derivatives, free: &[usize]) -> Result<(), MixedError> {
     if free.is_empty() {
         return Ok(());
     }
-    let h = DMatrix::from_fn(free.len(), free.len(), |r, c| hessian[(free[r], free[c])]);
+    let scale: Vec<f64> = free
+        .iter()
+        .map(|&i| der.expected[(i, i)].max(f64::MIN_POSITIVE).sqrt())
+        .collect();
+    let h = DMatrix::from_fn(free.len(), free.len(), |r, c| {
+        der.hessian[(free[r], free[c])] / (scale[r] * scale[c])
+    });
     let eig = h.symmetric_eigen().eigenvalues;
     let (smallest, largest) = (eig.min(), eig.max());
     if !(largest > 0.0 && smallest > FLAT * largest) {

@@ -144,3 +144,69 @@ fn the_fit_is_reproducible_and_converges_with_a_small_gradient() {
     assert!(a.converged && a.iterations <= optimiser::MAX_ITERATIONS);
     assert!(a.max_scaled_gradient <= 1e-6);
 }
+
+/// Invented unbalanced data with block and plot effects of the given sizes
+/// (relative to unit residual noise), from a fixed pseudo-random sequence.
+fn scaled_effects(block_sd: f64, plot_sd: f64) -> (Vec<f64>, FixedDesign, Vec<RandomTerm>) {
+    let mut state = 12_345u64;
+    let mut noise = || {
+        state = state
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        (0..4)
+            .map(|k| ((state >> (8 + 12 * k)) & 0xfff) as f64 / 4096.0 - 0.5)
+            .sum::<f64>()
+            * 1.7
+    };
+    let (mut y, mut rows, mut block, mut plot) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+    for b in 0..6 {
+        let be = block_sd * noise();
+        for t in 0..3 {
+            let pe = plot_sd * noise();
+            for s in 0..(1 + (b * 3 + t) % 4) {
+                y.push(20.0 + t as f64 + be + pe + noise());
+                rows.push(vec![t, s % 2]);
+                block.push(b);
+                plot.push(b * 3 + t);
+            }
+        }
+    }
+    let design = FixedDesign::new(
+        &Layout {
+            levels: vec![3, 2],
+            rows,
+        },
+        &[vec![0], vec![1]],
+    );
+    let random = vec![
+        RandomTerm {
+            name: "block".into(),
+            levels: 6,
+            level_of: block,
+        },
+        RandomTerm {
+            name: "plot".into(),
+            levels: 18,
+            level_of: plot,
+        },
+    ];
+    (y, design, random)
+}
+
+#[test]
+fn converges_from_the_fixed_start_over_a_range_of_component_sizes() {
+    for block_sd in [0.0, 0.05, 1.0, 30.0] {
+        for plot_sd in [0.0, 0.3, 3.0, 100.0] {
+            let (y, design, random) = scaled_effects(block_sd, plot_sd);
+            let fit =
+                fit(&y, &design, &random).unwrap_or_else(|e| panic!("{block_sd} {plot_sd}: {e}"));
+            assert!(fit.max_scaled_gradient <= 1e-6, "{block_sd} {plot_sd}");
+            assert!(fit.components.iter().all(|c| c.variance >= 0.0));
+            let test = fit.type3(&design, 0, Ddf::KenwardRoger).unwrap();
+            assert!(
+                test.df_den > 0.0 && test.p_value >= 0.0 && test.p_value <= 1.0,
+                "{test:?}"
+            );
+        }
+    }
+}

@@ -78,7 +78,17 @@ pub(crate) fn minimise(
             return Err(fail());
         }
         let direction = step_direction(&der, &free, newton || iteration >= NEWTON_AFTER)?;
-        let Some((candidate, d_new)) = line_search(model, &psi, d, &direction)? else {
+        let mut found = line_search(model, &psi, d, &direction)?;
+        if found.as_ref().is_none_or(|(c, _)| *c == psi) {
+            // The projected step left ψ in place (a variance at 0 whose score
+            // points inwards while the step points outwards): a diagonally
+            // scaled gradient step descends in every free coordinate.
+            let fallback = line_search(model, &psi, d, &scaled_gradient_step(&der, &free))?;
+            if fallback.as_ref().is_some_and(|(c, _)| *c != psi) {
+                found = fallback;
+            }
+        }
+        let Some((candidate, d_new)) = found else {
             // No decrease is possible at working precision.
             if settled {
                 return Ok(Optimum {
@@ -149,8 +159,22 @@ fn step_direction(der: &Derivatives, free: &[usize], newton: bool) -> Result<Vec
     Ok(out)
 }
 
-/// Halves the step until d does not rise beyond rounding; a variance that
-/// would go negative stops exactly at 0, a positive-only parameter halves.
+/// −∇dᵢ/E[∂²d/∂ψᵢ²] on the free parameters, zero elsewhere.
+fn scaled_gradient_step(der: &Derivatives, free: &[usize]) -> Vec<f64> {
+    let mut out = vec![0.0; der.gradient.len()];
+    for &i in free {
+        let curvature = der.expected[(i, i)];
+        if curvature > 0.0 {
+            out[i] = -der.gradient[i] / curvature;
+        }
+    }
+    out
+}
+
+/// Halves the step until d does not rise beyond rounding. Variances are
+/// projected onto ψ ≥ 0 (so a bound is reached exactly and the other
+/// parameters still move); a positive-only parameter is kept above 0 by
+/// starting from at most half the distance to 0.
 fn line_search(
     model: &dyn CovarianceModel,
     psi: &[f64],
@@ -158,25 +182,21 @@ fn line_search(
     direction: &[f64],
 ) -> Result<Option<(Vec<f64>, f64)>, MixedError> {
     let mut t = 1.0f64;
-    let mut hit = None;
     for (i, (&v, &s)) in psi.iter().zip(direction).enumerate() {
-        if s < 0.0 && v + t * s <= 0.0 {
-            if model.may_be_zero(i) {
-                t = v / -s;
-                hit = Some(i);
-            } else {
-                t = 0.5 * v / -s;
-                hit = None;
-            }
+        if !model.may_be_zero(i) && s < 0.0 && v + t * s <= 0.0 {
+            t = 0.5 * v / -s;
         }
     }
-    for halving in 0..MAX_HALVINGS {
-        let mut candidate: Vec<f64> = psi.iter().zip(direction).map(|(v, s)| v + t * s).collect();
-        for (i, c) in candidate.iter_mut().enumerate() {
-            if model.may_be_zero(i) && (*c < 0.0 || (halving == 0 && hit == Some(i))) {
-                *c = 0.0;
-            }
-        }
+    for _ in 0..MAX_HALVINGS {
+        let candidate: Vec<f64> = psi
+            .iter()
+            .zip(direction)
+            .enumerate()
+            .map(|(i, (v, s))| {
+                let c = v + t * s;
+                if model.may_be_zero(i) { c.max(0.0) } else { c }
+            })
+            .collect();
         if let Ok(d_new) = model.criterion(&candidate)
             && d_new <= d + ROUNDING * d.abs()
         {
