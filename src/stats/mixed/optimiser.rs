@@ -1,7 +1,8 @@
 //! The REML optimiser (mixed-models spec 2.3): Fisher scoring on ψ, then
 //! Newton with the observed information once the relative step is small,
-//! step halving, an active set for variances held at 0, and the overall
-//! scale σ² profiled after every accepted step (which can only lower d).
+//! step halving with variances projected onto ψ ≥ 0, an active set for
+//! variances held at 0, and the overall scale σ² profiled after every
+//! accepted step (which can only lower d).
 //!
 //! Convergence (spec 2.3.4), all three at once, tested after each step:
 //! |Δd| ≤ 1e-10·(1 + |d|); maxᵢ |Δψᵢ|/max(|ψᵢ|, |ψᵢ + Δψᵢ|) ≤ 1e-10 (a
