@@ -9,6 +9,7 @@ pub mod effect;
 pub mod extremes;
 pub mod letters;
 pub mod linear;
+pub mod mixed;
 pub mod normal_table;
 pub mod oneway;
 pub mod ptukey;
