@@ -18,6 +18,7 @@ mod checks;
 mod compare;
 mod exclusions;
 mod factorial;
+mod mixed;
 mod notes;
 mod observed;
 mod one_way;

@@ -182,17 +182,24 @@ pub fn f_statement(df1: f64, df2: f64, f: f64, p: f64) -> String {
 
 /// Whole degrees of freedom as integers, fractional ones to two decimals.
 pub fn df_text(df: f64) -> String {
-    if df.fract() == 0.0 {
-        format!("{df:.0}")
+    if is_whole_df(df) {
+        format!("{:.0}", df.round())
     } else {
         fixed(df, 2)
     }
 }
 
+/// Whether degrees of freedom are whole, allowing for the rounding of an
+/// approximation that equals a stratum's df in exact arithmetic
+/// (Kenward-Roger in balanced designs agrees to about 1e-11).
+pub fn is_whole_df(df: f64) -> bool {
+    df.is_finite() && (df - df.round()).abs() <= 1e-6 * df.abs().max(1.0)
+}
+
 /// Denominator df of an approximate test: whole when it is (to rounding of
 /// the computation, 1e-6 relative), else one decimal.
 pub fn approx_df_text(df: f64) -> String {
-    if (df - df.round()).abs() <= 1e-6 * df.abs().max(1.0) {
+    if is_whole_df(df) {
         format!("{:.0}", df.round())
     } else {
         fixed(df, 1)

@@ -62,6 +62,9 @@ pub struct MeanRecord {
     pub n: usize,
     pub mean: Option<f64>,
     pub se: Option<f64>,
+    /// Models with random terms: the mean's own df.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub df: Option<f64>,
     pub ci_lower: Option<f64>,
     pub ci_upper: Option<f64>,
 }
@@ -590,6 +593,7 @@ fn comparison_record(o: &LinearOutcome, fam: &Family, c: &Comparison) -> Compari
             n: m.n,
             mean: finite(m.mean),
             se: finite(m.se),
+            df: m.df.and_then(finite),
             ci_lower: finite(m.ci_lower),
             ci_upper: finite(m.ci_upper),
         })

@@ -9,13 +9,13 @@
 //! cells), `residuals` (and outliers), `checks`, `families` (marginal and
 //! cell means compared).
 
-mod cells;
+pub(super) mod cells;
 mod checks;
 mod design_notes;
 mod families;
 mod fit;
-mod model;
-mod read;
+pub(super) mod model;
+pub(super) mod read;
 mod residuals;
 mod table;
 mod terms;

@@ -27,7 +27,9 @@ pub type Analysis = Result<(LinearOutcome, Option<Input>), Diagnostic>;
 /// engine for several terms.
 pub fn run_linear(request: Request<'_>) -> Analysis {
     let model = &request.spec.model.value;
-    if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
+    if request.spec.random.is_some() {
+        super::mixed::run_mixed(request)
+    } else if model.terms.len() > 1 || model.terms.iter().any(|t| t.factors.len() > 1) {
         super::factorial::run_factorial(request)
     } else {
         super::one_way::run_anova(request)

@@ -47,8 +47,8 @@ enum Df {
 
 impl Df {
     fn of(x: f64) -> Self {
-        if x.fract() == 0.0 && (0.0..9.0e15).contains(&x) {
-            Df::Whole(x as usize)
+        if crate::format::is_whole_df(x) && (0.0..9.0e15).contains(&x) {
+            Df::Whole(x.round() as usize)
         } else {
             Df::Real(x)
         }
@@ -70,10 +70,16 @@ struct TermContext {
     effect: Option<EffectContext>,
     /// "F(2, 27) = 4.85, p = 0.016" (none for a blocking factor).
     statement: Option<String>,
+    /// Models with random terms: the denominator df and the error.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    df_den: Option<Df>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    error: Option<String>,
 }
 
 impl TermContext {
-    fn new(t: &TermTest) -> Self {
+    fn new(o: &LinearOutcome, t: &TermTest) -> Self {
+        let mixed = o.mixed.is_some();
         let tested = |x: f64| t.tested.then_some(x);
         TermContext {
             df: t.df,
@@ -97,6 +103,12 @@ impl TermContext {
             statement: t
                 .tested
                 .then(|| f_statement(t.df as f64, t.denominator_df, t.f, t.p)),
+            df_den: mixed.then(|| Df::of(t.denominator_df)),
+            error: mixed.then(|| {
+                t.stratum
+                    .and_then(|s| o.strata.get(s))
+                    .map_or_else(|| "combined".to_string(), |s| s.name.clone())
+            }),
         }
     }
 }
@@ -293,6 +305,22 @@ struct BlockContext {
     /// means.<factor>.<level> for main-effect families, means["<factor>@<slice>"]
     /// for simple effects, means.cells.<label> for all cells.
     means: BTreeMap<String, BTreeMap<String, EmmContext>>,
+    /// Models with random terms: variance.<term> and sd.<term> (the
+    /// residual as `residual`), and the fit.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    variance: Option<BTreeMap<String, f64>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    sd: Option<BTreeMap<String, f64>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    fit: Option<FitContext>,
+}
+
+#[derive(Serialize)]
+struct FitContext {
+    log_likelihood: f64,
+    aic: f64,
+    bic: f64,
+    iterations: usize,
 }
 
 /// The term a block's own names refer to: one factor's only term; for
@@ -313,7 +341,7 @@ fn block_statement(o: &LinearOutcome, alternatives: &AlternativesContext) -> Opt
     match (o.method, &alternatives.0, &alternatives.1) {
         (Omnibus::Welch, Some(w), _) => Some(w.statement.clone()),
         (Omnibus::Ranks, _, Some(k)) => Some(k.statement.clone()),
-        _ => primary_term(o).and_then(|t| TermContext::new(t).statement),
+        _ => primary_term(o).and_then(|t| TermContext::new(o, t).statement),
     }
 }
 
@@ -438,7 +466,7 @@ fn pairs_context(fam: Option<&Family>) -> Vec<PairContext> {
 
 fn block_context(o: &LinearOutcome) -> BlockContext {
     let primary = primary_term(o);
-    let head = primary.map(TermContext::new);
+    let head = primary.map(|t| TermContext::new(o, t));
     let factor = primary.map(|t| t.name.clone());
     let family = factor.as_deref().and_then(|f| o.main_family(f));
     let alternatives = alternatives_context(o);
@@ -470,7 +498,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         terms: o
             .terms
             .iter()
-            .map(|t| (t.name.clone(), TermContext::new(t)))
+            .map(|t| (t.name.clone(), TermContext::new(o, t)))
             .collect(),
         residual: SumsContext {
             df: Df::of(residual.df),
@@ -492,6 +520,24 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
             .unwrap_or_default(),
         pairs: pairs_context(family),
         means: means_context(o),
+        variance: o.mixed.as_ref().map(|m| {
+            m.components
+                .iter()
+                .map(|c| (c.term.clone(), c.variance))
+                .collect()
+        }),
+        sd: o.mixed.as_ref().map(|m| {
+            m.components
+                .iter()
+                .map(|c| (c.term.clone(), c.sd))
+                .collect()
+        }),
+        fit: o.mixed.as_ref().map(|m| FitContext {
+            log_likelihood: m.fit.log_likelihood,
+            aic: m.fit.aic,
+            bic: m.fit.bic,
+            iterations: m.fit.iterations,
+        }),
     }
 }
 #[derive(Serialize)]

@@ -8,7 +8,7 @@ use crate::stats::oneway::GroupSummary;
 
 /// The treatment cells of a design, every combination of the treatment
 /// factors' levels, first factor slowest.
-pub(super) struct TreatmentCells {
+pub(crate) struct TreatmentCells {
     /// The treatment factors, in model order.
     pub factors: Vec<usize>,
     pub combos: Vec<Vec<usize>>,

@@ -9,7 +9,7 @@ use crate::stats::compare::Method;
 use crate::stats::linear::TermFactors;
 
 /// The factors and terms of a model, by index.
-pub(super) struct Model {
+pub(crate) struct Model {
     pub factor_names: Vec<String>,
     /// The factors named in `blocks`.
     pub blocks: Vec<usize>,
@@ -85,7 +85,7 @@ impl Model {
 /// Model errors of one block; once the data are read, they also explain
 /// block labels reused within another block factor, the usual cause when
 /// blocks are nested.
-pub(super) struct Errors<'a> {
+pub(crate) struct Errors<'a> {
     pub doc: &'a Document,
     pub spec: &'a AnovaSpec,
     pub reused: Option<String>,

@@ -13,7 +13,7 @@ use crate::provenance::Input;
 
 /// Reads the observations; a streamed file comes back as the `Input` that
 /// records it.
-pub(super) fn read_observations(
+pub(crate) fn read_observations(
     errors: &Errors<'_>,
     block: &Block,
     data: Data<'_>,

@@ -37,8 +37,14 @@ pub fn anova_table(o: &LinearOutcome, keys: &Keys, number: usize) -> TableView {
                 keys.field(&format!("strata.{}.{q}", stratum.name))
             }
         };
+        let has_terms = o.terms.iter().any(|t| t.stratum == Some(s));
+        let label = shown_term(&o.presentation.plots, &stratum.name);
         rows.push(vec![
-            text(stratum.name.clone()),
+            text(if has_terms && s + 1 < o.strata.len() {
+                format!("Error: {label}")
+            } else {
+                label
+            }),
             cell(df_text(stratum.df), k("df")),
             cell(fixed(stratum.ss, dec), k("ss")),
             cell(fixed(stratum.ms, dec), k("ms")),
@@ -56,7 +62,7 @@ pub fn anova_table(o: &LinearOutcome, keys: &Keys, number: usize) -> TableView {
         text(""),
         text(""),
     ]);
-    TableView {
+    let mut view = TableView {
         number,
         id: format!("{}-anova", o.id),
         caption: anova_caption(o, number),
@@ -70,12 +76,22 @@ pub fn anova_table(o: &LinearOutcome, keys: &Keys, number: usize) -> TableView {
             col("η²", true),
         ],
         rows,
-        footnotes: if o.is_one_factor() {
+        footnotes: if o.mixed.is_some() {
+            strata_footnotes(o)
+        } else if o.is_one_factor() {
             one_factor_footnotes(o)
         } else {
             factorial_footnotes(o)
         },
+    };
+    // A mixed model's terms have no η² (their errors differ).
+    if o.mixed.is_some() {
+        view.columns.pop();
+        for row in &mut view.rows {
+            row.pop();
+        }
     }
+    view
 }
 
 fn term_row(o: &LinearOutcome, t: &TermTest, keys: &Keys, dec: u32, eta_dec: u32) -> Vec<Cell> {
@@ -122,6 +138,15 @@ fn anova_caption(o: &LinearOutcome, number: usize) -> String {
         factors_text(o),
         o.n
     );
+    if o.mixed.is_some() {
+        return match &o.presentation.caption {
+            Some(c) => format!("Table {number}. {c}"),
+            None => format!(
+                "Table {number}. {}) in strata: each error line is the variation of one size of unit.",
+                about
+            ),
+        };
+    }
     match (&o.presentation.caption, o.ss_type) {
         (Some(c), None) => format!("Table {number}. {c}"),
         (Some(c), Some(ss)) => format!("Table {number}. {c} ({}).", ss_text(ss)),
@@ -155,6 +180,49 @@ fn one_factor_footnotes(o: &LinearOutcome) -> Vec<String> {
                 crate::format::effect_size(e.cohens_f)
             ));
         }
+    }
+    footnotes
+}
+
+/// The classical stratum table of a design with random terms: which error
+/// each term is tested against, and each error's coefficient of variation.
+fn strata_footnotes(o: &LinearOutcome) -> Vec<String> {
+    let plots = &o.presentation.plots;
+    let mut footnotes = vec![format!(
+        "Each stratum is the variation of one size of unit; a term is tested against the error line of the stratum it was applied in ({}). Random terms are not tested: their variances are in the table of variance components.",
+        o.strata
+            .iter()
+            .enumerate()
+            .filter_map(|(s, stratum)| {
+                let tested: Vec<String> = o
+                    .terms
+                    .iter()
+                    .filter(|t| t.stratum == Some(s) && t.tested)
+                    .map(|t| shown_term(plots, &t.name))
+                    .collect();
+                (!tested.is_empty()).then(|| {
+                    format!(
+                        "{} against {} on {} df",
+                        super::join_words(&tested),
+                        shown_term(plots, &stratum.name),
+                        df_text(stratum.df)
+                    )
+                })
+            })
+            .collect::<Vec<_>>()
+            .join("; ")
+    )];
+    if let Some(m) = &o.mixed
+        && !m.cvs.is_empty()
+    {
+        footnotes.push(format!(
+            "Coefficients of variation: {}.",
+            m.cvs
+                .iter()
+                .map(|(name, cv)| format!("{} {} %", shown_term(plots, name), fixed(*cv, 1)))
+                .collect::<Vec<_>>()
+                .join("; ")
+        ));
     }
     footnotes
 }

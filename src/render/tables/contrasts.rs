@@ -88,7 +88,9 @@ fn difference_rows(
         col("SE", true),
         col(interval_label, true),
     ];
-    if c.method == Method::GamesHowell {
+    // Games-Howell and mixed models give each pair its own df.
+    let own_df = c.contrasts.iter().any(|p| p.own_df);
+    if own_df {
         columns.push(col("df", true));
     }
     let rows = rows_of(family, c, keys, |p, k| {
@@ -97,8 +99,8 @@ fn difference_rows(
             cell(fixed(p.se, d), k("se")),
             cell(interval(p), k("ci")),
         ];
-        if p.own_df {
-            middle.push(cell(fixed(p.df, 2), k("df")));
+        if own_df {
+            middle.push(cell(crate::format::df_text(p.df), k("df")));
         }
         middle
     });

@@ -43,6 +43,9 @@ pub fn means_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
                 row.push(cell(fixed(level.sd, d), key(&e.label, "sd")));
             }
             row.push(cell(fixed(e.se, d), key(&e.label, "se")));
+            if let Some(df) = e.df {
+                row.push(cell(df_text(df), key(&e.label, "df")));
+            }
             row.push(cell(
                 format!("{} to {}", fixed(e.ci_lower, d), fixed(e.ci_upper, d)),
                 key(&e.label, "ci"),
@@ -62,6 +65,9 @@ pub fn means_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
         columns.push(col("SD", true));
     }
     columns.push(col("SE", true));
+    if family.estimates.iter().any(|e| e.df.is_some()) {
+        columns.push(col("df", true));
+    }
     columns.push(col(format!("{} CI", confidence_label(o.alpha)), true));
     let mut footnotes = vec![se_note(o, family)];
     if let Some(c) = letters {
@@ -132,6 +138,11 @@ fn control_mark(c: &Comparison, i: usize) -> String {
 fn se_note(o: &LinearOutcome, family: &Family) -> String {
     let conf = confidence_label(o.alpha);
     let residual = o.residual();
+    if o.mixed.is_some() {
+        return format!(
+            "Estimated marginal means from the mixed model, averaged with equal weight over the levels of the other factors. Each SE includes the variation of the random terms the mean is averaged over (blocks, whole plots), and each mean has its own df; {conf} intervals use it."
+        );
+    }
     if !o.is_one_factor() {
         let df = df_text(residual.df);
         return if family.term == "cells" {

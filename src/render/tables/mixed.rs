@@ -49,7 +49,10 @@ pub fn fixed_tests_table(
     let mut footnotes = vec![format!(
         "Wald F tests from the mixed model fitted by REML; denominator df by the {ddf} approximation. Each term is tested against the variation of the units it was applied to (the error column): treatments applied to larger units are judged by the variation among those units, not among the observations."
     )];
-    footnotes.extend(m.not_classical.as_ref().map(not_classical_text));
+    footnotes.push(match &m.not_classical {
+        None => "The design is balanced and every stratum's variance is positive, so these tests reproduce the classical stratum table exactly.".to_string(),
+        Some(n) => not_classical_text(n),
+    });
     TableView {
         number,
         id: format!("{}-fixed", o.id),

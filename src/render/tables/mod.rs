@@ -79,7 +79,12 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     let mut notes = Vec::new();
     for family in &o.families {
         if let Some(c) = &family.comparison {
-            notes.extend(c.notes.iter().cloned());
+            // Families of one block often share their notes: say each once.
+            for n in &c.notes {
+                if !notes.contains(n) {
+                    notes.push(n.clone());
+                }
+            }
         }
         // A factorial block without comparisons shows its marginal means in
         // figures only; its tables are the ANOVA and cell tables.

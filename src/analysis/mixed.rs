@@ -1,0 +1,378 @@
+//! The mixed-model engine: blocks with `random` terms. The fixed terms are
+//! tested against the variation of the units they were applied to, by REML
+//! with Kenward-Roger (or Satterthwaite) df; balanced designs also get the
+//! classical stratum table, which REML reproduces exactly; means come from
+//! the mixed model with their own SEs and df, and so do their comparisons.
+//!
+//! The steps, one file each: `units` (random terms from label
+//! combinations), `fixed_terms` (the tests and strata), `families` (means
+//! and comparisons), `detail` (fit, variance components, SEDs).
+
+mod detail;
+mod families;
+mod fixed_terms;
+mod units;
+
+use super::binding::decimals_shown;
+use super::checks::summary_checks;
+use super::factorial::cells::TreatmentCells;
+use super::factorial::model::{Errors, Model};
+use super::factorial::read::read_observations;
+use super::notes::{Note, split_acknowledged};
+use super::request::{Analysis, Request};
+use crate::data::FactorialData;
+use crate::diag::Diagnostic;
+use crate::doc::block::{DdfMethod, Omnibus};
+use crate::outcome::linear::{
+    Alternatives, Factor, Family, LinearOutcome, Observed, Presentation, Role,
+};
+use crate::stats::linear::Layout;
+use crate::stats::mixed::{self, Ddf, FixedDesign, Information};
+use crate::stats::oneway::GroupSummary;
+use crate::stats::strata::{self, StrataInput};
+use families::{Estimating, Slice};
+
+/// Random terms with fewer levels than this get a warning: their variance
+/// rests on very few units (mixed-models spec, risk 5).
+const FEW_LEVELS: usize = 5;
+
+/// Runs a block with random terms.
+pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
+    let (doc, block, spec) = (request.doc, request.block, request.spec);
+    let errors = Errors {
+        doc,
+        spec,
+        reused: None,
+    };
+    let model = Model::from_spec(doc, spec)?;
+    let random = spec.random.as_ref().map_or(&[][..], |r| &r.value[..]);
+    // The fixed factors first, then the columns only random terms name.
+    let mut names: Vec<String> = model.factor_names.clone();
+    for f in random.iter().flat_map(|t| &t.factors) {
+        if !names.contains(f) {
+            names.push(f.clone());
+        }
+    }
+    let name_refs: Vec<&str> = names.iter().map(String::as_str).collect();
+    let (data, streamed) = read_observations(
+        &errors,
+        block,
+        request.data,
+        &name_refs,
+        request.display_path,
+    )?;
+    let units = units::units(&data, random, |f| names.iter().position(|n| n == f));
+    let fixed_count = model.factor_names.len();
+    let levels: Vec<usize> = data.levels[..fixed_count].iter().map(Vec::len).collect();
+    let layout = Layout {
+        levels: levels.clone(),
+        rows: (0..data.offsets.len())
+            .map(|i| data.row(i)[..fixed_count].to_vec())
+            .collect(),
+    };
+    let design = FixedDesign::new(&layout, &model.terms);
+    let fit = mixed::fit(&data.offsets, &design, &units.terms).map_err(|e| {
+        errors.model(
+            format!("the mixed model could not be fitted: {e}"),
+            "check that every random term names units with several observations each, and that the fixed terms are estimable",
+        )
+    })?;
+    let analysed = Analysed {
+        alpha: spec.alpha.unwrap_or(doc.front.alpha),
+        ddf: match spec.ddf {
+            DdfMethod::KenwardRoger => Ddf::KenwardRoger,
+            DdfMethod::Satterthwaite => Ddf::Satterthwaite(Information::Observed),
+        },
+        random_names: units.terms.iter().map(|t| t.name.clone()).collect(),
+        data,
+        model,
+        layout,
+        design,
+        fit,
+        units,
+    };
+    let outcome = analysed.outcome(&errors, block)?;
+    Ok((outcome, streamed))
+}
+
+/// A fitted mixed model and what it was fitted to.
+struct Analysed {
+    alpha: f64,
+    ddf: Ddf,
+    random_names: Vec<String>,
+    data: FactorialData,
+    model: Model,
+    layout: Layout,
+    design: FixedDesign,
+    fit: mixed::MixedFit,
+    units: units::Units,
+}
+
+impl Analysed {
+    /// The classical stratum analysis, when the layout has one and every
+    /// stratum's variance is positive (then REML reproduces it exactly).
+    fn classical(&self) -> Result<strata::StratumAnalysis, crate::outcome::mixed::NotClassical> {
+        let names = self.names();
+        let labels = &self.data.levels;
+        let a = strata::analyse(&StrataInput {
+            y: &self.data.offsets,
+            shift: self.data.origin,
+            treatments: &self.layout,
+            terms: &self.model.terms,
+            random: &self.units.layout,
+        })
+        .map_err(|reasons| detail::reason(&reasons, &names, labels))?;
+        let pooled = a
+            .components
+            .iter()
+            .zip(&self.fit.components)
+            .find(|(c, r)| c.negative || r.on_boundary);
+        match pooled {
+            Some((_, r)) => Err(crate::outcome::mixed::NotClassical::Pooled {
+                term: r.name.clone(),
+            }),
+            None => Ok(a),
+        }
+    }
+
+    fn names(&self) -> detail::Names<'_> {
+        detail::Names {
+            random: &self.random_names,
+            units: &self.units.unit_names,
+            factors: &self.model.factor_names,
+            terms: &self.model.term_names,
+        }
+    }
+
+    /// The outcome of the block.
+    fn outcome(
+        self,
+        errors: &Errors<'_>,
+        block: &crate::doc::Block,
+    ) -> Result<LinearOutcome, Diagnostic> {
+        let spec = errors.spec;
+        let classical = self.classical();
+        let tested = fixed_terms::Tested {
+            fit: &self.fit,
+            design: &self.design,
+            ddf: self.ddf,
+            alpha: self.alpha,
+            classical: classical.as_ref().ok(),
+            random_names: &self.random_names,
+        };
+        let residual_variance = self.fit.components.last().map_or(f64::NAN, |c| c.variance);
+        let strata = tested.strata(residual_variance);
+        let terms: Vec<_> = self
+            .model
+            .terms
+            .iter()
+            .enumerate()
+            .map(|(i, factors)| {
+                let block_term = factors.len() == 1 && self.model.is_block(factors[0]);
+                tested.term(i, &self.model.term_names[i], factors, !block_term)
+            })
+            .collect();
+        let families = self.families(errors, &terms)?;
+        let notes = self.notes();
+        let detail = detail::detail(
+            &self.fit,
+            spec.ddf,
+            classical.as_ref().map_err(Clone::clone),
+            &self.names(),
+            self.alpha,
+        );
+        let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
+        let data = &self.data;
+        let treatments = self.model.treatment_factors();
+        let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data)).rows(data);
+        let total_ss = GroupSummary::from_values(&data.offsets).ss;
+        Ok(LinearOutcome {
+            id: block.id.clone(),
+            line: block.line,
+            data: spec.data.value.clone(),
+            response: spec.model.value.response.clone(),
+            alpha: self.alpha,
+            n: data.offsets.len(),
+            exclusions: data.excluded.clone(),
+            method: Omnibus::Anova,
+            ss_type: Some(crate::stats::linear::SsType::III),
+            types_agree: detail.not_classical.is_none(),
+            factors: self.factors(&treatments),
+            strata,
+            terms,
+            total_df: data.offsets.len().saturating_sub(1),
+            total_ss,
+            r_squared: f64::NAN,
+            levels: Vec::new(),
+            ci_pooled: false,
+            cells,
+            cell_factors: treatments,
+            families,
+            alternatives: Alternatives {
+                welch: None,
+                kruskal: None,
+            },
+            checks: summary_checks(&[], false),
+            warnings,
+            acknowledged,
+            presentation: Presentation {
+                decimals: decimals_shown(errors.doc, spec, data.decimals),
+                caption: spec.caption.clone(),
+                order: spec.order,
+                show: spec.show,
+                plots: spec.plots.clone(),
+            },
+            observations: Vec::new(),
+            observed: Observed::default(),
+            mixed: Some(Box::new(detail)),
+        })
+    }
+
+    /// The fixed factors with their roles.
+    fn factors(&self, treatments: &[usize]) -> Vec<Factor> {
+        self.model
+            .factor_names
+            .iter()
+            .enumerate()
+            .map(|(i, name)| Factor {
+                name: name.clone(),
+                role: if treatments.contains(&i) {
+                    Role::Treatment
+                } else {
+                    Role::Block
+                },
+                levels: self.data.levels[i].clone(),
+            })
+            .collect()
+    }
+
+    /// Warnings on the random terms: few levels, variances at zero.
+    fn notes(&self) -> Vec<Note> {
+        let mut notes = Vec::new();
+        for c in self.fit.components.iter().filter(|c| c.name != "residual") {
+            if c.levels < FEW_LEVELS {
+                notes.push(Note::other(format!(
+                    "`{}` has only {} levels: its variance rests on very few units and is uncertain (see its interval); keep the term, which the design defines, but do not over-read its size.",
+                    c.name, c.levels
+                )));
+            }
+            if c.on_boundary {
+                notes.push(Note::other(format!(
+                    "The variance of `{}` is estimated at 0 (a singular fit): these units vary no more than the level below. Tests that would use this error pool it with the next one.",
+                    c.name
+                )));
+            }
+        }
+        notes
+    }
+
+    /// The comparison families `compare`, `within` and `cells` ask for; the
+    /// marginal means alone with `compare: none`.
+    fn families(
+        &self,
+        errors: &Errors<'_>,
+        terms: &[crate::outcome::linear::TermTest],
+    ) -> Result<Vec<Family>, Diagnostic> {
+        let spec = errors.spec;
+        let data = &self.data;
+        let fixed_count = self.layout.levels.len();
+        let count = |fixed: &[Option<usize>]| {
+            (0..data.offsets.len())
+                .filter(|&i| {
+                    let row = data.row(i);
+                    fixed
+                        .iter()
+                        .enumerate()
+                        .all(|(f, l)| l.is_none_or(|l| row[f] == l))
+                })
+                .count()
+        };
+        let estimating = Estimating {
+            fit: &self.fit,
+            design: &self.design,
+            ddf: self.ddf,
+            terms: &self.model.terms,
+            levels: &self.layout.levels,
+            labels: &data.levels[..fixed_count],
+            model: &self.model,
+            count: &count,
+            origin: data.origin,
+            alpha: self.alpha,
+        };
+        let compared: Vec<usize> = (0..fixed_count)
+            .filter(|&f| !self.model.is_block(f) && self.model.terms.contains(&vec![f]))
+            .filter(|&f| {
+                spec.compare_terms
+                    .as_ref()
+                    .is_none_or(|c| c.value.contains(&self.model.factor_names[f]))
+            })
+            .filter(|&f| estimating.comparable(f))
+            .collect();
+        let Some(method) = spec.compare else {
+            return Ok(compared
+                .iter()
+                .map(|&f| Family {
+                    term: self.model.factor_names[f].clone(),
+                    within: None,
+                    estimates: estimating
+                        .estimates(&Slice {
+                            vary: vec![f],
+                            within: None,
+                        })
+                        .0,
+                    comparison: None,
+                })
+                .collect());
+        };
+        let within = spec
+            .within
+            .as_ref()
+            .and_then(|w| self.model.index_of(&w.value));
+        let protect_p = |f: usize| {
+            spec.protected.then(|| {
+                terms
+                    .iter()
+                    .find(|t| t.factors == vec![f])
+                    .map_or(f64::NAN, |t| t.p)
+            })
+        };
+        let mut families = Vec::new();
+        let cells_wanted = spec.cells.as_ref().is_some_and(|c| c.value);
+        if !cells_wanted || spec.compare_terms.is_some() || within.is_some() {
+            for &f in compared.iter().filter(|&&f| Some(f) != within) {
+                let name = &self.model.factor_names[f];
+                match within {
+                    Some(w) => {
+                        for s in 0..self.layout.levels[w] {
+                            let slice = Slice {
+                                vary: vec![f],
+                                within: Some((w, s)),
+                            };
+                            families.push(estimating.family(name, &slice, method, None));
+                        }
+                    }
+                    None => {
+                        let slice = Slice {
+                            vary: vec![f],
+                            within: None,
+                        };
+                        families.push(estimating.family(name, &slice, method, protect_p(f)));
+                    }
+                }
+            }
+        }
+        if cells_wanted {
+            let slice = Slice {
+                vary: self.model.treatment_factors(),
+                within: None,
+            };
+            families.push(estimating.family("cells", &slice, method, None));
+        }
+        Ok(families)
+    }
+}
+
+/// Levels of every factor of the data (fixed and random-only).
+fn levels_of(data: &FactorialData) -> Vec<usize> {
+    data.levels.iter().map(Vec::len).collect()
+}
