@@ -1,0 +1,289 @@
+//! Blocks with random terms, end to end: the report's results file against
+//! the check values of the mixed-model specification (section 9), computed
+//! there by closed forms, scipy and an independent REML fitter. Data: the
+//! open oats split-plot and Machines datasets (tests/data/open, sources in
+//! SOURCES.md there); the deletion of two oats subplots is invented.
+
+use serde_json::Value;
+use std::process::Command;
+
+/// Builds `document` with `files` (name, contents) beside it; the results
+/// file, or the error output.
+fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    for (name, text) in files {
+        std::fs::write(p.join(name), text).expect("data");
+    }
+    std::fs::write(p.join("report.md"), document).expect("doc");
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(p)
+        .args(["build", "report.md", "-o", "out", "--to", "md"])
+        .output()
+        .expect("runs");
+    if !o.status.success() {
+        return Err(String::from_utf8_lossy(&o.stderr).into_owned());
+    }
+    let text = std::fs::read_to_string(p.join("out/report.results.json")).expect("results");
+    Ok(serde_json::from_str(&text).expect("json"))
+}
+
+fn open(name: &str) -> String {
+    std::fs::read_to_string(format!(
+        "{}/tests/data/open/{name}",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .expect("data file")
+}
+
+/// Relative agreement; the spec's values carry 10 to 12 digits, and the
+/// REML fit converges to about 1e-11 relative (spec 2.3), so 1e-8 is the bar.
+fn close(got: &Value, want: f64, tol: f64, what: &str) {
+    let g = got
+        .as_f64()
+        .unwrap_or_else(|| panic!("{what}: not a number: {got}"));
+    assert!(
+        (g - want).abs() <= tol * want.abs().max(1e-300),
+        "{what}: got {g}, want {want}"
+    );
+}
+
+fn term<'a>(block: &'a Value, name: &str) -> &'a Value {
+    block["anova"]["terms"]
+        .as_array()
+        .and_then(|t| t.iter().find(|t| t["term"] == name))
+        .unwrap_or_else(|| panic!("term {name}"))
+}
+
+fn oats_document(compare: &str) -> String {
+    format!(
+        "# Oats\n\n```anova\nid: oats\ndata: oats.csv\nmodel: Y ~ V * N\nrandom: B + B:V\ncompare: {compare}\n```\n"
+    )
+}
+
+#[test]
+fn oats_split_plot_tests_varieties_against_the_whole_plot_error() {
+    let results =
+        build(&oats_document("tukey"), &[("oats.csv", open("oats.csv"))]).expect("builds");
+    let b = &results["blocks"][0];
+    // Spec 9.1: closed forms and scipy.
+    let v = term(b, "V");
+    close(&v["f"], 1.48534037944, 1e-9, "F V");
+    close(&v["p"], 0.272386856735, 1e-9, "p V");
+    assert_eq!(
+        v["df_den"], 10.0,
+        "KR df of V is the whole-plot error df exactly"
+    );
+    assert_eq!(v["error"], "B:V");
+    close(&term(b, "N")["f"], 37.6856470588, 1e-9, "F N");
+    close(&term(b, "V:N")["f"], 0.302823529412, 1e-9, "F V:N");
+    assert_eq!(term(b, "N")["error"], "Residual");
+    // Variance components: closed form = REML (spec 9.1).
+    let comps = b["variance_components"].as_array().expect("components");
+    for (c, want) in comps
+        .iter()
+        .zip([214.477083333, 106.061805556, 177.083333333])
+    {
+        close(&c["variance"], want, 1e-9, "variance component");
+    }
+    // The classical strata, and the fit.
+    let strata = b["strata"].as_array().expect("balanced: strata");
+    let dfs: Vec<u64> = strata
+        .iter()
+        .map(|s| s["df"].as_u64().unwrap_or(0))
+        .collect();
+    assert_eq!(dfs, [5, 10, 45]);
+    close(&strata[1]["ss"], 6013.30555556, 1e-9, "Error (a) SS");
+    assert_eq!(b["fit"]["method"], "reml");
+    assert_eq!(b["fit"]["ddf"], "kenward-roger");
+    close(
+        &b["fit"]["log_likelihood"],
+        -507.527393376 / 2.0,
+        1e-9,
+        "REML log-likelihood (invariant)",
+    );
+    // SEDs per kind (spec 9.1).
+    let seds = b["seds"].as_array().expect("seds");
+    let sed = |kind: &str| {
+        seds.iter()
+            .find(|s| s["kind"] == kind)
+            .unwrap_or_else(|| panic!("SED {kind}"))
+    };
+    close(&sed("two V means")["sed"], 7.07890384379, 1e-9, "SED V");
+    close(&sed("two V means")["lsd"], 15.7727806838, 1e-9, "LSD V");
+    close(
+        &sed("two N levels at the same V")["sed"],
+        7.68295371441,
+        1e-9,
+        "SED N at V",
+    );
+    let across = sed("two V levels at the same N");
+    close(&across["sed"], 9.71502511386, 1e-9, "SED V at N");
+    close(
+        &across["df"],
+        30.2307802367,
+        1e-9,
+        "Satterthwaite df V at N",
+    );
+    close(&across["lsd"], 19.8343787457, 1e-9, "LSD V at N");
+    // Variety means: SE with blocks random and its KR df (spec 9.1), Tukey
+    // p with k = 3 on 10 df (scipy), all letters a.
+    let fam = &b["comparisons"][0];
+    assert_eq!(fam["term"], "V");
+    for m in fam["means"].as_array().expect("means") {
+        close(&m["se"], 7.79753937921, 1e-9, "SE of a V mean");
+        close(&m["df"], 8.86898066056, 1e-8, "df of a V mean");
+    }
+    let tukey = [0.610353759258, 0.245830144977, 0.741872697267];
+    for (p, want) in fam["pairs"].as_array().expect("pairs").iter().zip(tukey) {
+        close(&p["p_adj"], want, 1e-8, "Tukey p, V pair");
+        assert_eq!(p["df"], 10.0);
+    }
+    assert!(
+        fam["letters"]
+            .as_object()
+            .expect("letters")
+            .values()
+            .all(|l| l == "a")
+    );
+    // Nitrogen: Tukey on 45 df and its letters (spec 9.1, scipy).
+    let n = &b["comparisons"][1];
+    let want = [
+        3.7643062616e-04,
+        3.36209027285e-09,
+        3.9992453793e-12,
+        6.39021054258e-03,
+        9.24485577647e-06,
+        0.179719486545,
+    ];
+    for (p, w) in n["pairs"].as_array().expect("pairs").iter().zip(want) {
+        // At p ≈ 4e-12 the crate's studentized-range tail and scipy's differ
+        // by 7.4e-4 relative (measured; not yet settled which is nearer the
+        // exact value); elsewhere they agree to 1e-6.
+        let tol = if w < 1e-10 { 1e-3 } else { 1e-6 };
+        close(&p["p_adj"], w, tol, "Tukey p, N pair");
+    }
+    let letters: Vec<&str> = ["0.0cwt", "0.2cwt", "0.4cwt", "0.6cwt"]
+        .iter()
+        .map(|l| n["letters"][l].as_str().unwrap_or(""))
+        .collect();
+    assert_eq!(letters, ["c", "b", "a", "a"]);
+}
+
+#[test]
+fn oats_lsd_bonferroni_and_holm_use_the_whole_plot_error_for_varieties() {
+    // Spec 9.1: t and LSD p from scipy, Bonferroni and Holm from statsmodels.
+    for (compare, want) in [
+        (
+            "lsd\nprotected: no",
+            [0.354355465537, 0.116411706897, 0.471958105701],
+        ),
+        ("bonferroni", [1.0, 0.349235120691, 1.0]),
+        ("holm", [0.708710931075, 0.349235120691, 0.708710931075]),
+    ] {
+        let results =
+            build(&oats_document(compare), &[("oats.csv", open("oats.csv"))]).expect("builds");
+        let pairs = results["blocks"][0]["comparisons"][0]["pairs"]
+            .as_array()
+            .cloned()
+            .expect("pairs");
+        // The file lists pairs as (Golden.rain − Victory, Marvellous − Victory,
+        // Marvellous − Golden.rain); the spec's order is the same pairs.
+        for (p, w) in pairs.iter().zip(want) {
+            close(&p["p_adj"], w, 1e-9, compare);
+        }
+    }
+}
+
+#[test]
+fn oats_with_two_subplots_missing_is_analysed_by_reml_and_says_why_there_is_no_stratum_table() {
+    // The invented deletion of spec 9.2: (I, Victory, 0.0cwt) and (IV, Marvellous, 0.6cwt).
+    let data: String = open("oats.csv")
+        .lines()
+        .filter(|l| *l != "I,Victory,0.0cwt,111" && !l.starts_with("IV,Marvellous,0.6cwt,"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    assert_eq!(data.lines().count(), 71, "header and 70 rows");
+    let results = build(&oats_document("tukey"), &[("oats.csv", data)]).expect("builds");
+    let b = &results["blocks"][0];
+    assert_eq!(b["n"], 70);
+    assert!(
+        b.get("strata").is_none(),
+        "no classical table for unbalanced data"
+    );
+    // Spec 9.2, own REML and KR.
+    let v = term(b, "V");
+    close(&v["f"], 1.40350012949, 1e-7, "KR F V");
+    close(&v["df_den"], 9.98832119065, 1e-7, "KR df V");
+    close(&v["p"], 0.29029166815, 1e-7, "p V");
+    assert_eq!(v["error"], "combined");
+    close(&term(b, "N")["f"], 33.5204224775, 1e-7, "KR F N");
+    let comps = b["variance_components"].as_array().expect("components");
+    for (c, want) in comps
+        .iter()
+        .zip([214.438407669, 107.352693278, 184.249963435])
+    {
+        close(&c["variance"], want, 1e-7, "variance component");
+    }
+}
+
+#[test]
+fn machines_are_tested_against_the_worker_by_machine_interaction() {
+    // Spec 9.3: workers random, machines fixed, worker × machine random.
+    let doc = "# Machines\n\n```anova\nid: m\ndata: Machines.csv\nmodel: score ~ Machine\nrandom: Worker + Worker:Machine\ncompare: tukey\n```\n";
+    let results = build(doc, &[("Machines.csv", open("Machines.csv"))]).expect("builds");
+    let b = &results["blocks"][0];
+    let m = term(b, "Machine");
+    close(&m["f"], 20.5760829641, 1e-9, "F Machine");
+    close(&m["p"], 2.85548485771e-04, 1e-8, "p Machine");
+    assert_eq!(m["df_den"], 10.0);
+    let fam = &b["comparisons"][0];
+    for m in fam["means"].as_array().expect("means") {
+        close(&m["se"], 2.4858302138, 1e-9, "SE of a machine mean");
+        close(&m["df"], 8.52169850561, 1e-8, "df of a machine mean");
+    }
+    let tukey = [0.0111404726882, 2.11582827911e-04, 0.0506706458465];
+    // Pairs in file order: B − A, C − A, C − B (spec lists A-B, A-C, B-C).
+    for (p, w) in fam["pairs"].as_array().expect("pairs").iter().zip(tukey) {
+        close(&p["p_adj"], w, 1e-7, "Tukey p, machine pair");
+    }
+    let comps = b["variance_components"].as_array().expect("components");
+    for (c, want) in comps
+        .iter()
+        .zip([22.8584444444, 13.9094567901, 0.92462962963])
+    {
+        close(&c["variance"], want, 1e-9, "variance component");
+    }
+    // Profile intervals of the SDs (spec 9.3, own, two routes).
+    close(
+        &comps[0]["ci_lower"],
+        1.823963669,
+        1e-7,
+        "profile CI worker, lower",
+    );
+    close(
+        &comps[0]["ci_upper"],
+        11.2392148258,
+        1e-7,
+        "profile CI worker, upper",
+    );
+}
+
+#[test]
+fn a_random_factor_with_few_levels_is_warned_about() {
+    // oats has 6 blocks: no warning; Machines has 6 workers: none either.
+    // Three invented sites in a balanced two-treatment layout get one.
+    let mut csv = String::from("site,trt,y\n");
+    for (s, site) in ["north", "east", "west"].iter().enumerate() {
+        for (t, trt) in ["a", "b"].iter().enumerate() {
+            for r in 0..3 {
+                let y = 10.0 + 2.0 * s as f64 + t as f64 + 0.3 * r as f64 - 0.1 * (s * r) as f64;
+                csv.push_str(&format!("{site},{trt},{y:.1}\n"));
+            }
+        }
+    }
+    let doc = "# Sites (invented data)\n\n```anova\nid: s\ndata: d.csv\nmodel: y ~ trt\nrandom: site\ncompare: none\n```\n";
+    let results = build(doc, &[("d.csv", csv)]).expect("builds");
+    let warnings = results["blocks"][0]["warnings"].to_string();
+    assert!(warnings.contains("`site` has only 3 levels"), "{warnings}");
+}
