@@ -85,20 +85,25 @@ impl VarianceComponents {
         chol: &Cholesky<f64, Dyn>,
         lambda: &[f64],
         first: usize,
-    ) -> DMatrix<f64> {
+    ) -> Result<DMatrix<f64>, MixedError> {
         let (q, dim) = (self.cp.q, self.cp.ww.ncols());
         let width = dim - first;
         let b = DMatrix::from_fn(q, width, |r, c| lambda[r] * self.cp.ww[(r, first + c)]);
-        let k = chol.l().solve_lower_triangular(&b).unwrap_or(b);
+        let k = chol
+            .l()
+            .solve_lower_triangular(&b)
+            .ok_or(MixedError::Singular {
+                what: "the random-effects system",
+            })?;
         let corner = self.cp.ww.view((first, first), (width, width));
-        corner - k.transpose() * &k
+        Ok(corner - k.transpose() * &k)
     }
 
     fn reduced(&self, psi: &[f64]) -> Result<Reduced, MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
         let chol = self.factor(&lambda)?;
         let ln_det_h = 2.0 * chol.l().diagonal().iter().map(|v| v.ln()).sum::<f64>();
-        let g = self.inverse_cross(&chol, &lambda, self.cp.q);
+        let g = self.inverse_cross(&chol, &lambda, self.cp.q)?;
         let p = self.cp.p;
         let gxx = g.view((0, 0), (p, p)).clone_owned();
         let gxy = g.view((0, p), (p, 1)).clone_owned();
@@ -120,7 +125,7 @@ impl VarianceComponents {
     fn inverse_all(&self, psi: &[f64]) -> Result<(f64, DMatrix<f64>), MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
         let chol = self.factor(&lambda)?;
-        Ok((sigma2, self.inverse_cross(&chol, &lambda, 0) / sigma2))
+        Ok((sigma2, self.inverse_cross(&chol, &lambda, 0)? / sigma2))
     }
 
     /// Φ = (X'V⁻¹X)⁻¹ from M.
