@@ -266,12 +266,12 @@ impl CovarianceModel for VarianceComponents {
         let (q, p, y) = (self.cp.q, self.cp.p, self.cp.y_index());
         let mut beta: Vec<f64> = (&phi * m.view((q, y), (p, 1))).iter().copied().collect();
         if let Some(b0) = beta.first_mut() {
-            // The intercept column is the first kept column whenever present;
-            // y was centred, so its mean returns there.
+            // y was centred only when the first column is the intercept, so
+            // its mean returns there (y_mean is 0 otherwise).
             *b0 += self.cp.y_mean;
         }
         let mzx = m.view((0, 0), (q + p, q + p)).clone_owned();
-        let d = self.weights(psi, p);
+        let dz = self.weights(psi, 0);
         let j = self.n_terms();
         let x_rows = mzx.rows(q, p).clone_owned();
         let z_cols_of = |a: &DMatrix<f64>| a.columns(0, q).clone_owned();
@@ -284,15 +284,12 @@ impl CovarianceModel for VarianceComponents {
                     let b = self.cp.blocks[i].clone();
                     x_rows.columns(b.start, b.len()) * mzx.rows(b.start, b.len())
                 } else {
-                    let mut dz = d.clone();
-                    dz.truncate(q);
                     through_identity(&x_rows, &z_cols_of(&x_rows), &dz, &m_z, sigma2)
                 }
             })
             .collect();
         let pm: Vec<DMatrix<f64>> = left.iter().map(|l| -l.columns(q, p)).collect();
         let m_zx = mzx.view((0, q), (q, p)).clone_owned();
-        let dz: Vec<f64> = d[..q].to_vec();
         let qm = left
             .iter()
             .map(|l| {
