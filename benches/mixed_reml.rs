@@ -104,7 +104,25 @@ fn time(name: &str, blocks: usize, a: usize, b: usize, reps: usize) {
     );
 }
 
+/// Profile intervals re-fit the model some forty times per component.
+fn time_profiles(name: &str, blocks: usize, a: usize, b: usize, reps: usize) {
+    let (y, design, random) = split_plot(blocks, a, b, reps);
+    let Ok(fit) = mixed::fit(&y, &design, &random) else {
+        println!("{name} failed");
+        return;
+    };
+    let start = Instant::now();
+    let intervals = fit.profile_intervals(0.95);
+    let seconds = start.elapsed().as_secs_f64();
+    println!(
+        "{name} profile intervals {seconds:.3} rows {} ok {}",
+        y.len(),
+        intervals.is_ok()
+    );
+}
+
 fn main() {
+    time_profiles("split_plot_2000_profiles", 50, 10, 4, 1);
     time("split_plot_20000", 50, 10, 8, 5);
     time("split_plot_q1100", 100, 10, 4, 2);
     time("split_plot_q1500_limit", 100, 14, 4, 2);

@@ -85,20 +85,25 @@ impl VarianceComponents {
         chol: &Cholesky<f64, Dyn>,
         lambda: &[f64],
         first: usize,
-    ) -> DMatrix<f64> {
+    ) -> Result<DMatrix<f64>, MixedError> {
         let (q, dim) = (self.cp.q, self.cp.ww.ncols());
         let width = dim - first;
         let b = DMatrix::from_fn(q, width, |r, c| lambda[r] * self.cp.ww[(r, first + c)]);
-        let k = chol.l().solve_lower_triangular(&b).unwrap_or(b);
+        let k = chol
+            .l()
+            .solve_lower_triangular(&b)
+            .ok_or(MixedError::Singular {
+                what: "the random-effects system",
+            })?;
         let corner = self.cp.ww.view((first, first), (width, width));
-        corner - k.transpose() * &k
+        Ok(corner - k.transpose() * &k)
     }
 
     fn reduced(&self, psi: &[f64]) -> Result<Reduced, MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
         let chol = self.factor(&lambda)?;
         let ln_det_h = 2.0 * chol.l().diagonal().iter().map(|v| v.ln()).sum::<f64>();
-        let g = self.inverse_cross(&chol, &lambda, self.cp.q);
+        let g = self.inverse_cross(&chol, &lambda, self.cp.q)?;
         let p = self.cp.p;
         let gxx = g.view((0, 0), (p, p)).clone_owned();
         let gxy = g.view((0, p), (p, 1)).clone_owned();
@@ -120,7 +125,7 @@ impl VarianceComponents {
     fn inverse_all(&self, psi: &[f64]) -> Result<(f64, DMatrix<f64>), MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
         let chol = self.factor(&lambda)?;
-        Ok((sigma2, self.inverse_cross(&chol, &lambda, 0) / sigma2))
+        Ok((sigma2, self.inverse_cross(&chol, &lambda, 0)? / sigma2))
     }
 
     /// Φ = (X'V⁻¹X)⁻¹ from M.
@@ -261,12 +266,12 @@ impl CovarianceModel for VarianceComponents {
         let (q, p, y) = (self.cp.q, self.cp.p, self.cp.y_index());
         let mut beta: Vec<f64> = (&phi * m.view((q, y), (p, 1))).iter().copied().collect();
         if let Some(b0) = beta.first_mut() {
-            // The intercept column is the first kept column whenever present;
-            // y was centred, so its mean returns there.
+            // y was centred only when the first column is the intercept, so
+            // its mean returns there (y_mean is 0 otherwise).
             *b0 += self.cp.y_mean;
         }
         let mzx = m.view((0, 0), (q + p, q + p)).clone_owned();
-        let d = self.weights(psi, p);
+        let dz = self.weights(psi, 0);
         let j = self.n_terms();
         let x_rows = mzx.rows(q, p).clone_owned();
         let z_cols_of = |a: &DMatrix<f64>| a.columns(0, q).clone_owned();
@@ -279,15 +284,12 @@ impl CovarianceModel for VarianceComponents {
                     let b = self.cp.blocks[i].clone();
                     x_rows.columns(b.start, b.len()) * mzx.rows(b.start, b.len())
                 } else {
-                    let mut dz = d.clone();
-                    dz.truncate(q);
                     through_identity(&x_rows, &z_cols_of(&x_rows), &dz, &m_z, sigma2)
                 }
             })
             .collect();
         let pm: Vec<DMatrix<f64>> = left.iter().map(|l| -l.columns(q, p)).collect();
         let m_zx = mzx.view((0, q), (q, p)).clone_owned();
-        let dz: Vec<f64> = d[..q].to_vec();
         let qm = left
             .iter()
             .map(|l| {

@@ -20,7 +20,7 @@ pub(crate) struct CrossProducts {
     pub ww: DMatrix<f64>,
     /// ln|X'X| (for the coding-invariant criterion).
     pub ln_det_xtx: f64,
-    /// The mean subtracted from y (added back to the intercept).
+    /// The mean subtracted from y (added back to the intercept; 0 without one).
     pub y_mean: f64,
 }
 
@@ -35,7 +35,17 @@ impl CrossProducts {
             q += t.levels;
         }
         let p = fixed.rank();
-        let y_mean = y.iter().sum::<f64>() / n as f64;
+        // Centring y keeps y'y small against what is subtracted from it; it
+        // only shifts the intercept, so it is done only when there is one.
+        let has_intercept = fixed
+            .columns
+            .first()
+            .is_some_and(|c| c.iter().all(|v| *v == 1.0));
+        let y_mean = if has_intercept {
+            y.iter().sum::<f64>() / n as f64
+        } else {
+            0.0
+        };
         let dim = q + p + 1;
         let mut ww = DMatrix::<f64>::zeros(dim, dim);
         let mut row = vec![0.0; p + 1];

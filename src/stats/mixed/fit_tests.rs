@@ -210,3 +210,25 @@ fn converges_from_the_fixed_start_over_a_range_of_component_sizes() {
         }
     }
 }
+
+#[test]
+fn a_design_without_intercept_keeps_its_coefficients() {
+    // Cell-means coding (one indicator per treatment, no intercept): with
+    // every batch holding each treatment once, β̂ are the treatment means.
+    let (y, _, batch) = equal_batch_means();
+    let indicators: Vec<Vec<f64>> = (0..3)
+        .map(|t| {
+            (0..y.len())
+                .map(|i| f64::from(u8::from(i % 3 == t)))
+                .collect()
+        })
+        .collect();
+    let design = FixedDesign::from_columns(indicators, std::iter::once(0..3).collect());
+    let fit = fit(&y, &design, &[batch]).unwrap();
+    let means: Vec<f64> = (0..3)
+        .map(|t| (0..5).map(|b| y[3 * b + t]).sum::<f64>() / 5.0)
+        .collect();
+    for (b, m) in fit.beta.iter().zip(&means) {
+        assert!((b - m).abs() < 1e-10, "{b} vs {m}");
+    }
+}

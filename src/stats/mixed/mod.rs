@@ -30,9 +30,12 @@
 //! positive definite (eigenvalue ratio above 1e-8).
 //!
 //! **Sizes measured** (`cargo bench --bench mixed_reml`, release build, one
-//! core of the development machine): an invented split-plot with 20,000
-//! rows, 50 blocks and 500 whole plots (q = 550, p = 80) fits in 0.76 s;
-//! q = 1100 in 4.8 s; q = 1500, the limit, in 12.3 s.
+//! core of a shared development machine, two runs): an invented split-plot
+//! with 20,000 rows, 50 blocks and 500 whole plots (q = 550, p = 80) fits
+//! with its three KR tests in 0.50-0.76 s; q = 1100 in 3.0-4.8 s; q = 1500,
+//! the limit, in 7.9-12.3 s. Profile intervals re-fit the model about forty
+//! times per component: 29 s for the three SDs at q = 550 (milliseconds on
+//! the check datasets), so a caller should offer them for small q only.
 //! Everything is sequential with a fixed order of operations: no thread
 //! count, clock or hash order enters.
 //!

@@ -2,8 +2,10 @@
 //! spec 6.2): the set of σⱼ whose profiled criterion, the other parameters
 //! re-estimated, lies within χ²₁(level) of the minimum. Limits by Brent's
 //! method on the SD scale; the lower limit is 0 when the profile at 0 is
-//! within the cutoff. Every inner fit starts from the REML estimate, so the
-//! result does not depend on the order of evaluation.
+//! within the cutoff. Each inner fit starts from the previous inner
+//! optimum of the same limit search (the first from the REML estimate);
+//! the search visits its points in a fixed order, so results are
+//! reproducible.
 
 use crate::stats::{dist, roots};
 
@@ -36,13 +38,21 @@ impl MixedFit {
             .collect()
     }
 
-    /// d_prof(σ²ₖ = s²) − d_min − cutoff.
-    fn excess(&self, k: usize, s: f64, cutoff: f64) -> Result<f64, MixedError> {
-        let mut start = self.psi.clone();
+    /// d_prof(σ²ₖ = s²) − d_min − cutoff, starting from `warm` (updated to
+    /// the new inner optimum).
+    fn excess(
+        &self,
+        k: usize,
+        s: f64,
+        cutoff: f64,
+        warm: &mut Vec<f64>,
+    ) -> Result<f64, MixedError> {
+        let mut start = warm.clone();
         start[k] = s * s;
         let mut held = vec![false; start.len()];
         held[k] = true;
         let opt = optimiser::minimise(&self.model, start, &held)?;
+        *warm = opt.psi;
         Ok(opt.criterion - self.criterion - cutoff)
     }
 
@@ -59,7 +69,8 @@ impl MixedFit {
         };
         let tol_abs = TOL_REL * scale;
         let mut error = None;
-        let mut f = |s: f64| match self.excess(k, s, cutoff) {
+        let mut warm = self.psi.clone();
+        let mut f = |s: f64| match self.excess(k, s, cutoff, &mut warm) {
             Ok(v) => v,
             Err(e) => {
                 error.get_or_insert(e);
