@@ -102,7 +102,7 @@ fn element_name(element: &Value, factors: &[String]) -> Option<String> {
             None => term.to_string(),
         });
     }
-    ["level", "id"]
+    ["level", "id", "name", "kind"]
         .iter()
         .find_map(|f| element.get(*f).and_then(Value::as_str).map(str::to_string))
 }
@@ -114,11 +114,9 @@ fn select<'v, 'k>(
     factors: &[String],
 ) -> Option<(&'v Value, &'k str)> {
     let (head, tail) = rest.split_once('.').unwrap_or((rest, ""));
-    if let Ok(i) = head.parse::<usize>() {
-        return array.get(i).map(|v| (v, tail));
-    }
-    // The longest name that the key continues with (names may hold dots).
-    array
+    // The longest name that the key continues with (names may hold dots,
+    // and may start with digits: `0.6cwt`); else an index (pairs).
+    let named = array
         .iter()
         .filter_map(|e| {
             let name = element_name(e, factors)?;
@@ -131,7 +129,11 @@ fn select<'v, 'k>(
             Some((name.len(), e, after))
         })
         .max_by_key(|(len, _, _)| *len)
-        .map(|(_, e, after)| (e, after))
+        .map(|(_, e, after)| (e, after));
+    named.or_else(|| {
+        let i = head.parse::<usize>().ok()?;
+        array.get(i).map(|v| (v, tail))
+    })
 }
 
 /// Whether the last segment names a field of `object`, or a pair printed together.

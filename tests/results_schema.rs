@@ -84,6 +84,73 @@ mod contract {
         pub figures: Vec<Figure>,
         pub warnings: Vec<String>,
         pub acknowledged: Vec<String>,
+        /// Blocks with random terms only.
+        #[serde(default, deserialize_with = "present")]
+        pub fit: Option<Fit>,
+        #[serde(default, deserialize_with = "present")]
+        pub variance_components: Option<Vec<Component>>,
+        /// Balanced designs with random terms only.
+        #[serde(default, deserialize_with = "present")]
+        pub strata: Option<Vec<StratumRow>>,
+        #[serde(default, deserialize_with = "present")]
+        pub seds: Option<Vec<SedRow>>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Fit {
+        pub method: String,
+        pub ddf: String,
+        pub converged: bool,
+        pub iterations: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub log_likelihood: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub aic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub bic: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Component {
+        pub term: String,
+        #[serde(deserialize_with = "nullable")]
+        pub variance: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub sd: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_upper: Option<f64>,
+        #[serde(default, deserialize_with = "present")]
+        pub levels: Option<u64>,
+        #[serde(deserialize_with = "nullable")]
+        pub percent: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct StratumRow {
+        pub name: String,
+        pub terms: Vec<String>,
+        pub df: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub ss: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ms: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct SedRow {
+        pub kind: String,
+        #[serde(deserialize_with = "nullable")]
+        pub sed: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lsd: Option<f64>,
     }
 
     #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
@@ -131,6 +198,11 @@ mod contract {
         pub not_tested: Option<String>,
         #[serde(deserialize_with = "nullable")]
         pub effect: Option<Effect>,
+        /// Blocks with random terms: the denominator df and the error.
+        #[serde(default, deserialize_with = "present")]
+        pub df_den: Option<f64>,
+        #[serde(default, deserialize_with = "present")]
+        pub error: Option<String>,
     }
 
     #[derive(Deserialize)]
@@ -347,6 +419,9 @@ mod contract {
         pub mean: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub se: Option<f64>,
+        /// Blocks with random terms: the mean's own df.
+        #[serde(default, deserialize_with = "present")]
+        pub df: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub ci_lower: Option<f64>,
         #[serde(deserialize_with = "nullable")]
@@ -952,8 +1027,10 @@ fn check_comparison(p: &mut Problems, at: &str, b: &AnovaBlock, c: &Comparison) 
             "letters do not name every compared level",
         );
     }
-    let own_df = c.method == Procedure::GamesHowell;
-    let per_pair = own_df || c.method == Procedure::Dunn;
+    // Games-Howell, and every procedure of a block with random terms, give
+    // each pair its own df.
+    let own_df = c.method == Procedure::GamesHowell || b.fit.is_some();
+    let per_pair = c.method == Procedure::GamesHowell || c.method == Procedure::Dunn;
     p.require(
         c.critical_value.is_none() || !per_pair,
         at,
@@ -977,7 +1054,7 @@ fn check_pair(
     p.require(
         pair.df.is_some() == own_df,
         at,
-        "df is present exactly under Games-Howell",
+        "df is present exactly under Games-Howell and with random terms",
     );
     p.require(pair.df.is_none_or(|d| d >= 0.0), at, "df is negative");
     if let Some(control) = &c.control {

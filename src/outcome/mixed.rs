@@ -40,6 +40,8 @@ pub struct VarianceComponent {
     pub ci_upper: f64,
     /// Levels of the term (units of this size); 0 for the residual.
     pub levels: usize,
+    /// Percentage of the total variance (negative estimates count as 0).
+    pub percent: f64,
     /// Estimated at zero, on the boundary of the parameter space.
     pub on_boundary: bool,
 }

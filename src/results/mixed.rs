@@ -29,6 +29,11 @@ pub struct ComponentRecord {
     /// Interval for the SD (profile likelihood), at 1 − alpha.
     pub ci_lower: Option<f64>,
     pub ci_upper: Option<f64>,
+    /// Units of this size; absent for the residual.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub levels: Option<usize>,
+    /// Share of the total variance, in percent.
+    pub percent: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -80,6 +85,8 @@ pub fn mixed_records(o: &LinearOutcome, m: &MixedDetail) -> MixedRecords {
                 sd: finite(c.sd),
                 ci_lower: finite(c.ci_lower),
                 ci_upper: finite(c.ci_upper),
+                levels: (c.levels > 0).then_some(c.levels),
+                percent: finite(c.percent),
             })
             .collect(),
         strata: m.not_classical.is_none().then(|| strata(o)),

@@ -8,6 +8,9 @@ use crate::outcome::mixed::{Fit, MixedDetail, NotClassical, Sed, VarianceCompone
 use crate::stats::mixed::MixedFit;
 use crate::stats::strata::{self, ComparisonKind, StratumAnalysis, StratumId};
 
+/// Most random-effect levels for which profile intervals are computed.
+pub const MAX_PROFILED_LEVELS: usize = 200;
+
 /// Names the report needs: the random terms (and their units), the fixed
 /// factors and terms.
 pub(super) struct Names<'a> {
@@ -25,7 +28,19 @@ pub(super) fn detail(
     names: &Names<'_>,
     alpha: f64,
 ) -> MixedDetail {
-    let intervals = fit.profile_intervals(1.0 - alpha).ok();
+    // Each profile interval refits the model about forty times: beyond a
+    // few hundred random levels that takes tens of seconds, so large models
+    // print no interval (said in the table's footnote).
+    let random_levels: usize = fit
+        .components
+        .iter()
+        .filter(|c| c.name != "residual")
+        .map(|c| c.levels)
+        .sum();
+    let intervals = (random_levels <= MAX_PROFILED_LEVELS)
+        .then(|| fit.profile_intervals(1.0 - alpha).ok())
+        .flatten();
+    let total: f64 = fit.components.iter().map(|c| c.variance.max(0.0)).sum();
     let components = fit
         .components
         .iter()
@@ -39,6 +54,7 @@ pub(super) fn detail(
                 ci_lower: ci.map_or(f64::NAN, |c| c.lower),
                 ci_upper: ci.map_or(f64::NAN, |c| c.upper),
                 levels: if c.name == "residual" { 0 } else { c.levels },
+                percent: 100.0 * c.variance.max(0.0) / total,
                 on_boundary: c.on_boundary,
             }
         })

@@ -99,7 +99,6 @@ pub fn components_table(
     keys: &Keys,
     number: usize,
 ) -> TableView {
-    let total: f64 = m.components.iter().map(|c| c.variance.max(0.0)).sum();
     let conf = crate::format::confidence_label(o.alpha);
     let rows = m
         .components
@@ -112,9 +111,9 @@ pub fn components_table(
                 shown_term(&o.presentation.plots, &c.term)
             };
             let levels = if c.levels > 0 {
-                c.levels.to_string()
+                cell(c.levels.to_string(), k("levels"))
             } else {
-                String::new()
+                text("")
             };
             let variance = if c.on_boundary {
                 "0 (on the boundary)".to_string()
@@ -123,16 +122,20 @@ pub fn components_table(
             };
             vec![
                 text(name),
-                text(levels),
+                levels,
                 cell(variance, k("variance")),
                 cell(significant(c.sd, 4), k("sd")),
-                text(fixed(100.0 * c.variance.max(0.0) / total, 1)),
+                cell(fixed(c.percent, 1), k("percent")),
                 cell(
-                    format!(
-                        "{} to {}",
-                        significant(c.ci_lower, 3),
-                        significant(c.ci_upper, 3)
-                    ),
+                    if c.ci_lower.is_finite() && c.ci_upper.is_finite() {
+                        format!(
+                            "{} to {}",
+                            significant(c.ci_lower, 3),
+                            significant(c.ci_upper, 3)
+                        )
+                    } else {
+                        "–".to_string()
+                    },
                     k("ci"),
                 ),
             ]
@@ -141,6 +144,9 @@ pub fn components_table(
     let mut footnotes = vec![format!(
         "Variances estimated by REML; intervals for the SD by profile likelihood. Components with fewer than five levels are estimated from few units and are uncertain; the interval shows how much."
     )];
+    if m.components.iter().any(|c| !c.ci_lower.is_finite()) {
+        footnotes.push("An interval shown as – was not computed: profile intervals refit the model many times and are given for models with at most 200 random-effect levels.".to_string());
+    }
     for c in m.components.iter().filter(|c| c.on_boundary) {
         footnotes.push(format!(
             "The variance of {} is estimated at 0: the data show no variation among these units beyond the level below. The term stays in the model because the design defines it.",
