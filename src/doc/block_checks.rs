@@ -271,7 +271,12 @@ pub(super) fn resolve(
     }
     errors.extend(reading_keys(&d, &data));
     errors.extend(model_keys(&mut d, &model.value));
-    errors.extend(super::block_random::random_keys(&d, &model.value, method));
+    errors.extend(super::block_random::random_keys(
+        &d,
+        &model.value,
+        method,
+        compare,
+    ));
     if !errors.is_empty() {
         return Err(errors);
     }
