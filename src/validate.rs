@@ -20,6 +20,7 @@ use serde::Serialize;
 use serde_json::Value;
 use std::path::{Path, PathBuf};
 
+mod mixed;
 mod report;
 pub use report::text;
 
@@ -51,10 +52,11 @@ pub enum Area {
     Factorial,
     Dunnett,
     Power,
+    MixedModels,
 }
 
 impl Area {
-    pub const ALL: [Area; 8] = [
+    pub const ALL: [Area; 9] = [
         Area::NistAnova,
         Area::TAndF,
         Area::StudentizedRange,
@@ -63,6 +65,7 @@ impl Area {
         Area::Factorial,
         Area::Dunnett,
         Area::Power,
+        Area::MixedModels,
     ];
 
     pub fn title(self) -> &'static str {
@@ -75,6 +78,7 @@ impl Area {
             Area::Factorial => "Factorial sums of squares (Types I, II, III)",
             Area::Dunnett => "Dunnett's procedure",
             Area::Power => "Power and sample size",
+            Area::MixedModels => "Mixed models: strata, REML and Kenward-Roger df",
         }
     }
 
@@ -89,6 +93,7 @@ impl Area {
             Area::Factorial => "factorial",
             Area::Dunnett => "dunnett",
             Area::Power => "power",
+            Area::MixedModels => "mixed-models",
         }
     }
 }
@@ -266,6 +271,7 @@ pub fn run() -> Validation {
     robust_cases(&mut checks);
     factorial_cases(&mut checks);
     published(&mut checks);
+    mixed::mixed_cases(&mut checks);
     // Stable: within an area the checks keep the order they were run in.
     checks.sort_by_key(|c| c.area);
     Validation {
