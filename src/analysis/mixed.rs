@@ -19,12 +19,13 @@ use super::factorial::cells::TreatmentCells;
 use super::factorial::model::{Errors, Model};
 use super::factorial::read::read_observations;
 use super::notes::{Note, split_acknowledged};
+use super::observed::{FactorialLayout, PooledError};
 use super::request::{Analysis, Request};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::doc::block::{DdfMethod, Omnibus};
 use crate::outcome::linear::{
-    Alternatives, Factor, Family, LinearOutcome, Observed, Presentation, Role,
+    Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Presentation, Role,
 };
 use crate::stats::linear::Layout;
 use crate::stats::mixed::{self, Ddf, FixedDesign, Information};
@@ -186,6 +187,7 @@ impl Analysed {
         let treatments = self.model.treatment_factors();
         let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data)).rows(data);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
+        let observations = self.observations(spec);
         Ok(LinearOutcome {
             id: block.id.clone(),
             line: block.line,
@@ -222,10 +224,53 @@ impl Analysed {
                 show: spec.show,
                 plots: spec.plots.clone(),
             },
-            observations: Vec::new(),
-            observed: Observed::default(),
+            observed: self.observed(spec, &observations),
+            observations,
             mixed: Some(Box::new(detail)),
         })
+    }
+
+    /// Every observation with its fixed-factor levels, for figures (only
+    /// when figures are asked for). Residual plots are not offered with
+    /// random terms, so fitted values and residuals are left undefined.
+    fn observations(&self, spec: &crate::doc::block::AnovaSpec) -> Vec<Observation> {
+        if spec.plots.kinds.is_empty() {
+            return Vec::new();
+        }
+        let data = &self.data;
+        (0..data.offsets.len())
+            .map(|i| Observation {
+                levels: self.layout.rows[i].clone(),
+                value: data.origin + data.offsets[i],
+                fitted: f64::NAN,
+                residual: f64::NAN,
+                line: data.lines[i],
+            })
+            .collect()
+    }
+
+    /// Level spreads and observed two-way means for figures; intervals on
+    /// observed means need an error, which here depends on the comparison,
+    /// so interaction plots draw the means without intervals.
+    fn observed(
+        &self,
+        spec: &crate::doc::block::AnovaSpec,
+        observations: &[Observation],
+    ) -> Observed {
+        let treatments = self.model.treatment_factors();
+        Observed::factorial(
+            FactorialLayout {
+                level_counts: self.layout.levels.clone(),
+                treatments: &treatments,
+                plots: &spec.plots,
+                error: PooledError {
+                    ms: f64::NAN,
+                    df: f64::NAN,
+                    alpha: self.alpha,
+                },
+            },
+            observations,
+        )
     }
 
     /// The fixed factors with their roles.

@@ -335,10 +335,19 @@ fn interaction_figure(o: &LinearOutcome, id: &str, n: usize) -> Option<(String, 
         spec.display(&o.factors[fa].name),
         spec.display(&o.factors[fb].name),
     );
+    // With random terms a cell mean's interval depends on which units it
+    // averages over; the means are drawn without one.
+    let intervals = if o.mixed.is_some() {
+        " (observed means; see the tables for standard errors)".to_string()
+    } else {
+        format!(
+            ", with {} confidence intervals (model residual mean square)",
+            confidence_label(o.alpha)
+        )
+    };
     let caption = format!(
-        "Figure {n}. Cell means of {}: {x_name} on the axis, one line per level of {line_name}, with {} confidence intervals (model residual mean square).",
+        "Figure {n}. Cell means of {}: {x_name} on the axis, one line per level of {line_name}{intervals}.",
         subject(o),
-        confidence_label(o.alpha)
     );
     let svg = interaction_plot(
         id,
