@@ -287,3 +287,19 @@ fn a_random_factor_with_few_levels_is_warned_about() {
     let warnings = results["blocks"][0]["warnings"].to_string();
     assert!(warnings.contains("`site` has only 3 levels"), "{warnings}");
 }
+
+#[test]
+fn an_empty_random_list_is_the_fixed_effects_analysis() {
+    let data = [("oats.csv", open("oats.csv"))];
+    let fixed = build(
+        "# Oats\n\n```anova\nid: oats\ndata: oats.csv\nmodel: Y ~ V * N\ncompare: tukey\n```\n",
+        &data,
+    )
+    .expect("builds");
+    let empty = build(
+        "# Oats\n\n```anova\nid: oats\ndata: oats.csv\nmodel: Y ~ V * N\nrandom:\ncompare: tukey\n```\n",
+        &data,
+    )
+    .expect("builds");
+    assert_eq!(fixed["blocks"], empty["blocks"]);
+}

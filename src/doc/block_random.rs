@@ -10,6 +10,10 @@ use super::keyvalue::Entry;
 use crate::stats::compare::Method;
 
 pub(super) fn read_random(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
+    // An empty list is a model without random terms: the fixed analysis.
+    if e.value.trim().is_empty() {
+        return Ok(());
+    }
     let terms = parse_terms(&e.value).map_err(|x| SpecError {
         line: e.line,
         column: e.value_column + x.offset,
