@@ -247,3 +247,17 @@ pub(crate) fn decimals_shown(doc: &Document, spec: &AnovaSpec, data_decimals: u3
         .or(doc.front.decimals)
         .unwrap_or((data_decimals + 1).min(6))
 }
+
+/// What shapes the presentation only.
+pub(crate) fn presentation(
+    spec: &AnovaSpec,
+    decimals: u32,
+) -> crate::outcome::linear::Presentation {
+    crate::outcome::linear::Presentation {
+        decimals,
+        caption: spec.caption.clone(),
+        order: spec.order,
+        show: spec.show,
+        plots: spec.plots.clone(),
+    }
+}

@@ -32,8 +32,8 @@ use crate::doc::block::Omnibus;
 use crate::doc::{Block, Document};
 use crate::outcome::Checks;
 use crate::outcome::linear::{
-    Alternatives, CellRow, Factor, Family, LinearOutcome, Observation, Observed, Presentation,
-    RESIDUAL, Role, Stratum, TermTest,
+    Alternatives, CellRow, Factor, Family, LinearOutcome, Observation, Observed, RESIDUAL, Role,
+    Stratum, TermTest,
 };
 use crate::stats::oneway::GroupSummary;
 use cells::TreatmentCells;
@@ -245,13 +245,7 @@ impl Analysed {
             checks,
             warnings,
             acknowledged,
-            presentation: Presentation {
-                decimals,
-                caption: spec.caption.clone(),
-                order: spec.order,
-                show: spec.show,
-                plots: spec.plots.clone(),
-            },
+            presentation: super::binding::presentation(spec, decimals),
             observations,
             observed,
             mixed: None,

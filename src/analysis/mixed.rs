@@ -25,7 +25,7 @@ use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::doc::block::{DdfMethod, Omnibus};
 use crate::outcome::linear::{
-    Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Presentation, Role,
+    Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Role,
 };
 use crate::stats::linear::Layout;
 use crate::stats::mixed::{self, Ddf, FixedDesign, Information};
@@ -217,13 +217,10 @@ impl Analysed {
             checks: summary_checks(&[], false),
             warnings,
             acknowledged,
-            presentation: Presentation {
-                decimals: decimals_shown(errors.doc, spec, data.decimals),
-                caption: spec.caption.clone(),
-                order: spec.order,
-                show: spec.show,
-                plots: spec.plots.clone(),
-            },
+            presentation: super::binding::presentation(
+                spec,
+                decimals_shown(errors.doc, spec, data.decimals),
+            ),
             observed: self.observed(spec, &observations),
             observations,
             mixed: Some(Box::new(detail)),

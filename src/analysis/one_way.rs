@@ -127,7 +127,7 @@ impl Engine<'_> {
             checks,
             warnings,
             acknowledged,
-            presentation: outcome::presentation(spec, decimals),
+            presentation: super::binding::presentation(spec, decimals),
             observations,
             observed,
             mixed: None,

@@ -2,10 +2,9 @@
 //! against the residual stratum, the levels as the factor's family of
 //! estimates, and the observations figures draw.
 
-use crate::doc::block::AnovaSpec;
 use crate::outcome::linear::{
-    Comparison, Factor, Family, LevelSummary, Observation, Presentation, RESIDUAL, Role, Stratum,
-    TermEffect, TermTest,
+    Comparison, Factor, Family, LevelSummary, Observation, RESIDUAL, Role, Stratum, TermEffect,
+    TermTest,
 };
 use crate::stats::effect::EffectSizes;
 use crate::stats::oneway::OneWay;
@@ -93,15 +92,4 @@ pub(super) fn observations(
                 })
         })
         .collect()
-}
-
-/// What shapes the presentation only.
-pub(super) fn presentation(spec: &AnovaSpec, decimals: u32) -> Presentation {
-    Presentation {
-        decimals,
-        caption: spec.caption.clone(),
-        order: spec.order,
-        show: spec.show,
-        plots: spec.plots.clone(),
-    }
 }
