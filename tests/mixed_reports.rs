@@ -303,3 +303,10 @@ fn an_empty_random_list_is_the_fixed_effects_analysis() {
     .expect("builds");
     assert_eq!(fixed["blocks"], empty["blocks"]);
 }
+
+#[test]
+fn display_names_reach_the_columns_of_random_terms() {
+    let doc = "# Oats\n\n```anova\nid: oats\ndata: oats.csv\nmodel: Y ~ V * N\nrandom: B + B:V\ncompare: none\nnames: B = Block, V = Variety\n```\n";
+    let results = build(doc, &[("oats.csv", open("oats.csv"))]);
+    assert!(results.is_ok(), "{:?}", results.err());
+}

@@ -190,7 +190,13 @@ fn model_keys(d: &mut AnovaDraft, formula: &Formula) -> Vec<SpecError> {
         }
     }
     if let Some(e) = &d.names {
-        match display_names(e, formula) {
+        let random: Vec<&str> = d
+            .random
+            .iter()
+            .flat_map(|(_, terms)| terms.iter().flat_map(|t| t.factors.iter()))
+            .map(String::as_str)
+            .collect();
+        match display_names(e, formula, &random) {
             Ok(names) => d.plots.names = names,
             Err(x) => errors.push(x),
         }
@@ -213,8 +219,12 @@ fn model_keys(d: &mut AnovaDraft, formula: &Formula) -> Vec<SpecError> {
 }
 
 /// Reads `names: column = display name, …`; each column must be the
-/// response or a factor of the model.
-fn display_names(e: &Entry, formula: &Formula) -> Result<Vec<(String, String)>, SpecError> {
+/// response, a factor of the model, or a factor of a random term.
+fn display_names(
+    e: &Entry,
+    formula: &Formula,
+    random: &[&str],
+) -> Result<Vec<(String, String)>, SpecError> {
     let mut names = Vec::new();
     for part in list(&e.value) {
         let Some((from, to)) = part.split_once('=') else {
@@ -225,10 +235,11 @@ fn display_names(e: &Entry, formula: &Formula) -> Result<Vec<(String, String)>, 
             ));
         };
         let from = from.trim();
-        if from != formula.response && !formula.factors().contains(&from) {
-            let columns: Vec<&str> = std::iter::once(formula.response.as_str())
-                .chain(formula.factors())
-                .collect();
+        let columns: Vec<&str> = std::iter::once(formula.response.as_str())
+            .chain(formula.factors())
+            .chain(random.iter().copied())
+            .collect();
+        if !columns.contains(&from) {
             return Err(bad(
                 e,
                 format!("`{from}` is neither the response nor a factor of the model"),
