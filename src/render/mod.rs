@@ -33,6 +33,9 @@ pub const CAUTIONS: [&str; 5] = [
     "Applicable regulatory guidance and local standard operating procedures take precedence over this tool's defaults.",
 ];
 
+/// Printed after the standing cautions when a block has random terms.
+pub const RANDOM_TERMS_CAUTION: &str = "A random term treats its units (blocks, whole plots, animals, sites) as a sample from a larger population, with independent, normally distributed effects of one variance; with fewer than about five units that variance is poorly known. Which terms are random follows from the design, from how treatments were randomised to units, not from which model fits the data better.";
+
 /// Renders the report. The document's name and bytes (as read, for its
 /// hash) and the results file's name appear in the provenance note.
 pub fn render_report(

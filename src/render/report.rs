@@ -4,7 +4,7 @@
 
 use super::templates::{template_source, to_value};
 use super::view::BlockView;
-use super::{CAUTIONS, choices_of, inline, tables, view};
+use super::{CAUTIONS, RANDOM_TERMS_CAUTION, choices_of, inline, tables, view};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::escape::markdown_escape;
@@ -75,6 +75,20 @@ pub struct Report<'a> {
 pub(crate) type MarkerAt = (usize, usize);
 
 impl<'a> Report<'a> {
+    /// The standing cautions, and the one on random terms where a block
+    /// has them.
+    fn cautions(&self) -> Vec<&'static str> {
+        let mut cautions = CAUTIONS.to_vec();
+        if self
+            .results
+            .iter()
+            .any(|r| r.linear().is_some_and(|o| o.mixed.is_some()))
+        {
+            cautions.insert(3, RANDOM_TERMS_CAUTION);
+        }
+        cautions
+    }
+
     /// Builds the views (which number the tables prose may refer to) and
     /// evaluates the prose expressions.
     pub fn assemble(
@@ -214,7 +228,7 @@ impl<'a> Report<'a> {
             }),
             content => Value::from_safe_string(content),
             css => Value::from_safe_string(template_source("report.css").to_string()),
-            cautions => CAUTIONS.to_vec(),
+            cautions => self.cautions(),
             document => to_value(DocumentView {
                 name: document_name.to_string(),
                 sha256: sha256_hex(document_bytes),
