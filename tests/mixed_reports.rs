@@ -310,3 +310,20 @@ fn display_names_reach_the_columns_of_random_terms() {
     let results = build(doc, &[("oats.csv", open("oats.csv"))]);
     assert!(results.is_ok(), "{:?}", results.err());
 }
+
+#[test]
+fn an_empty_cell_under_an_interaction_is_refused_with_the_reason() {
+    // Every Victory plot at 0.0cwt removed (an invented deletion): the V × N
+    // interaction and the marginal means are not estimable.
+    let data: String = open("oats.csv")
+        .lines()
+        .filter(|l| !l.contains(",Victory,0.0cwt,"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let err = build(&oats_document("tukey"), &[("oats.csv", data)]).expect_err("refused");
+    assert!(err.contains("have no observations"), "{err}");
+    assert!(
+        err.contains("report.md:"),
+        "the message names the document: {err}"
+    );
+}

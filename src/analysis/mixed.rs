@@ -71,7 +71,26 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             .map(|i| data.row(i)[..fixed_count].to_vec())
             .collect(),
     };
+    if let Some(f) = levels.iter().position(|&l| l < 2) {
+        return Err(errors.model(
+            format!(
+                "`{}` has {} with data; a factor needs two or more",
+                model.factor_names[f],
+                crate::format::counted(levels[f], "level", "levels")
+            ),
+            "check the factor column and the missing-value markers",
+        ));
+    }
     let design = FixedDesign::new(&layout, &model.terms);
+    // Aliased columns (empty cells under an interaction) leave Type III
+    // tests and marginal means depending on the coding: refuse, as the
+    // fixed-effects engine does.
+    if design.kept.iter().any(|k| !k) {
+        return Err(errors.model(
+            "some combinations of the fixed factors have no observations, so the interaction's tests and the marginal means cannot be estimated".into(),
+            "drop the interaction from `model`, or check the data for missing cells",
+        ));
+    }
     let fit = mixed::fit(&data.offsets, &design, &units.terms).map_err(|e| {
         errors.model(
             format!("the mixed model could not be fitted: {e}"),
