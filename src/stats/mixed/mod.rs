@@ -69,10 +69,12 @@ mod error;
 mod fit;
 mod model;
 mod optimiser;
+mod prediction;
 mod profile;
 
 pub use ddf::{ContrastTest, Ddf, DfMethod, Information, WaldTest};
 pub use design::{FixedDesign, RandomTerm};
 pub use error::MixedError;
 pub use fit::{MAX_FIXED_COLUMNS, MAX_RANDOM_LEVELS, MixedFit, VarianceComponent, fit};
+pub use prediction::{PredictedTerm, Predictions};
 pub use profile::SdInterval;
