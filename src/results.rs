@@ -348,6 +348,11 @@ pub struct ChecksRecord {
     pub outlier_count: usize,
     /// The most extreme of them (at most 100), in data order.
     pub outliers: Vec<OutlierRecord>,
+    /// "conditional" in blocks with random terms: the residuals are the
+    /// observations less the fixed effects and the predicted unit effects,
+    /// and `studentized_residual` is the studentized conditional residual.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub residuals: Option<&'static str>,
 }
 
 #[derive(Serialize)]
@@ -670,6 +675,7 @@ fn checks_record(c: &crate::outcome::Checks) -> ChecksRecord {
                 studentized_residual: finite(o.studentized_residual),
             })
             .collect(),
+        residuals: c.conditional.then_some("conditional"),
     }
 }
 

@@ -327,3 +327,83 @@ fn an_empty_cell_under_an_interaction_is_refused_with_the_reason() {
         "the message names the document: {err}"
     );
 }
+
+/// The checks of a block with random terms read its conditional residuals
+/// and each random term's predicted effects. Shapiro-Wilk values from
+/// tests/reference/mixed_predictions.json (scipy `shapiro` on numpy's
+/// conditional residuals and standardised BLUPs); 1e-6 relative covers the
+/// residuals' agreement (about 1e-9) carried through W and its p.
+#[test]
+fn oats_checks_read_conditional_residuals_and_predicted_effects() {
+    let reference: Value = serde_json::from_str(
+        &std::fs::read_to_string(format!(
+            "{}/tests/reference/mixed_predictions.json",
+            env!("CARGO_MANIFEST_DIR")
+        ))
+        .unwrap(),
+    )
+    .unwrap();
+    let want = &reference["oats"];
+    let doc = oats_document("tukey").replace("```\n", "plot: residuals, qq\n```\n");
+    let r = build(&doc, &[("oats.csv", open("oats.csv"))]).expect("builds");
+    let b = &r["blocks"][0];
+    assert_eq!(b["checks"]["residuals"], "conditional");
+    let sw = &b["checks"]["shapiro_wilk"];
+    close(
+        &sw["w"],
+        want["shapiro_residuals"][0].as_f64().unwrap(),
+        1e-6,
+        "SW W",
+    );
+    close(
+        &sw["p"],
+        want["shapiro_residuals"][1].as_f64().unwrap(),
+        1e-6,
+        "SW p",
+    );
+    for c in b["variance_components"].as_array().unwrap() {
+        let name = c["term"].as_str().unwrap();
+        if name == "residual" {
+            assert!(c.get("predicted_effects").is_none());
+            continue;
+        }
+        let p = &c["predicted_effects"];
+        let sw = &want["shapiro_effects"][name];
+        close(
+            &p["shapiro_wilk"]["w"],
+            sw[0].as_f64().unwrap(),
+            1e-6,
+            "effects W",
+        );
+        close(
+            &p["shapiro_wilk"]["p"],
+            sw[1].as_f64().unwrap(),
+            1e-6,
+            "effects p",
+        );
+        assert_eq!(p["flagged_count"], 0, "{name}");
+    }
+}
+
+/// One subplot made 80 units higher (an invented gross error) is flagged by
+/// its studentized conditional residual, on its own data line.
+#[test]
+fn a_gross_error_is_flagged_by_its_conditional_residual() {
+    let data = open("oats.csv").replacen("I,Victory,0.6cwt,174", "I,Victory,0.6cwt,254", 1);
+    assert_ne!(data, open("oats.csv"));
+    let line = data
+        .lines()
+        .position(|l| l == "I,Victory,0.6cwt,254")
+        .unwrap()
+        + 1;
+    let r = build(&oats_document("lsd"), &[("oats.csv", data)]).expect("builds");
+    let checks = &r["blocks"][0]["checks"];
+    assert_eq!(checks["outlier_count"], 1, "{checks}");
+    assert_eq!(checks["outliers"][0]["line"], line);
+    assert!(
+        checks["outliers"][0]["studentized_residual"]
+            .as_f64()
+            .unwrap()
+            > 3.0
+    );
+}

@@ -127,6 +127,28 @@ mod contract {
         pub levels: Option<u64>,
         #[serde(deserialize_with = "nullable")]
         pub percent: Option<f64>,
+        #[serde(default, deserialize_with = "present")]
+        pub predicted_effects: Option<Predicted>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Predicted {
+        #[serde(deserialize_with = "nullable")]
+        pub shapiro_wilk: Option<ShapiroWilk>,
+        pub threshold: f64,
+        pub flagged_count: u64,
+        pub flagged: Vec<FlaggedUnit>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct FlaggedUnit {
+        pub unit: String,
+        #[serde(deserialize_with = "nullable")]
+        pub effect: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub standardized: Option<f64>,
     }
 
     #[derive(Deserialize)]
@@ -279,6 +301,8 @@ mod contract {
         pub outlier_threshold: f64,
         pub outlier_count: u64,
         pub outliers: Vec<Outlier>,
+        #[serde(default, deserialize_with = "present")]
+        pub residuals: Option<String>,
     }
 
     #[derive(Deserialize)]

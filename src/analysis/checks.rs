@@ -42,6 +42,7 @@ pub(crate) fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks 
         outliers: Vec::new(),
         from_summary: true,
         by_request: false,
+        conditional: false,
     }
 }
 

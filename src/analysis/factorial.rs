@@ -10,7 +10,7 @@
 //! cell means compared).
 
 pub(super) mod cells;
-mod checks;
+pub(super) mod checks;
 mod design_notes;
 mod families;
 mod fit;
@@ -131,12 +131,12 @@ impl Analysed {
             spec,
             &checks::Fit {
                 data: &self.data,
-                fitted: &self.fitted,
-                residuals: &self.residuals,
+                residuals: &self.residuals.values,
                 cells: &self.treatment,
                 factor_names: &self.model.factor_names,
                 levels: &self.levels,
             },
+            || self.residuals.outliers(&self.data, &self.fitted),
         );
         notes.extend(spread_note);
         notes.extend(advice(

@@ -6,15 +6,18 @@
 //!
 //! The steps, one file each: `units` (random terms from label
 //! combinations), `fixed_terms` (the tests and strata), `families` (means
-//! and comparisons), `detail` (fit, variance components, SEDs).
+//! and comparisons), `detail` (fit, variance components, SEDs),
+//! `residuals` (checks on the conditional residuals and the predicted unit
+//! effects).
 
 mod detail;
 mod families;
 mod fixed_terms;
+mod residuals;
 mod units;
 
 use super::binding::decimals_shown;
-use super::checks::summary_checks;
+use super::checks::{Remedies, advice};
 use super::factorial::cells::TreatmentCells;
 use super::factorial::model::{Errors, Model};
 use super::factorial::read::read_observations;
@@ -97,6 +100,14 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             "check that every random term names units with several observations each, and that the fixed terms are estimable",
         )
     })?;
+    let predictions = fit
+        .predictions(&data.offsets, &design, &units.terms)
+        .map_err(|e| {
+            errors.model(
+                format!("the predicted unit effects could not be computed: {e}"),
+                "check that every random term names units with several observations each",
+            )
+        })?;
     let analysed = Analysed {
         alpha: spec.alpha.unwrap_or(doc.front.alpha),
         ddf: match spec.ddf {
@@ -109,6 +120,7 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
         layout,
         design,
         fit,
+        predictions,
         units,
     };
     let outcome = analysed.outcome(&errors, block)?;
@@ -125,6 +137,7 @@ struct Analysed {
     layout: Layout,
     design: FixedDesign,
     fit: mixed::MixedFit,
+    predictions: mixed::Predictions,
     units: units::Units,
 }
 
@@ -193,18 +206,38 @@ impl Analysed {
             })
             .collect();
         let families = self.families(errors, &terms)?;
-        let notes = self.notes();
-        let detail = detail::detail(
+        let data = &self.data;
+        let treatments = self.model.treatment_factors();
+        let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data));
+        let (checks, spread_note) = residuals::Checked {
+            spec,
+            data,
+            predictions: &self.predictions,
+            cells: &cells,
+            factor_names: &self.model.factor_names,
+            levels: &self.layout.levels,
+        }
+        .checks();
+        let mut notes = self.notes();
+        notes.extend(spread_note);
+        notes.extend(advice(&checks, Remedies::Linear, self.alpha, data.decimals));
+        let predicted = residuals::predicted_effects(
+            spec,
+            &self.predictions,
+            &self.fit.components,
+            &self.units.unit_names,
+        );
+        notes.extend(residuals::predicted_advice(&predicted, self.alpha));
+        let mut detail = detail::detail(
             &self.fit,
             spec.ddf,
             classical.as_ref().map_err(Clone::clone),
             &self.names(),
             self.alpha,
         );
+        detail.predicted = predicted;
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
-        let data = &self.data;
-        let treatments = self.model.treatment_factors();
-        let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data)).rows(data);
+        let cells = cells.rows(data);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
         let observations = self.observations(spec);
         Ok(LinearOutcome {
@@ -233,7 +266,7 @@ impl Analysed {
                 welch: None,
                 kruskal: None,
             },
-            checks: summary_checks(&[], false),
+            checks,
             warnings,
             acknowledged,
             presentation: super::binding::presentation(
@@ -246,9 +279,9 @@ impl Analysed {
         })
     }
 
-    /// Every observation with its fixed-factor levels, for figures (only
-    /// when figures are asked for). Residual plots are not offered with
-    /// random terms, so fitted values and residuals are left undefined.
+    /// Every observation with its fixed-factor levels, fitted value (fixed
+    /// effects plus predicted unit effects) and conditional residual, for
+    /// figures (only when figures are asked for).
     fn observations(&self, spec: &crate::doc::block::AnovaSpec) -> Vec<Observation> {
         if spec.plots.kinds.is_empty() {
             return Vec::new();
@@ -258,8 +291,8 @@ impl Analysed {
             .map(|i| Observation {
                 levels: self.layout.rows[i].clone(),
                 value: data.origin + data.offsets[i],
-                fitted: f64::NAN,
-                residual: f64::NAN,
+                fitted: data.origin + self.predictions.fitted[i],
+                residual: self.predictions.residuals[i],
                 line: data.lines[i],
             })
             .collect()

@@ -66,19 +66,6 @@ pub(super) fn random_keys(
             "a mixed model is fitted by REML with F tests; remove `method` (Welch's and rank tests, and their Games-Howell and Dunn comparisons, assume independent observations)",
         ));
     }
-    let residual_plots = [
-        super::block::PlotKind::Residuals,
-        super::block::PlotKind::Qq,
-    ];
-    if let Some(e) = &d.plot
-        && d.plots.kinds.iter().any(|k| residual_plots.contains(k))
-    {
-        errors.push(bad(
-            e,
-            "residual and Q-Q plots are not offered with random terms in this version".into(),
-            "the residuals of a mixed model need the predicted unit effects; use means, box, strip or interaction plots",
-        ));
-    }
     if compare == Some(Method::Dunnett) {
         errors.push(refuse(
             "`compare: dunnett` is not offered with random terms in this version".into(),

@@ -251,6 +251,15 @@ fn means_phrase(o: &LinearOutcome, source: MeansSource, subject: &str, factor: &
     }
 }
 
+/// "Residuals", or "Conditional residuals" with random terms.
+fn residuals_noun(o: &LinearOutcome) -> &'static str {
+    if o.mixed.is_some() {
+        "Conditional residuals"
+    } else {
+        "Residuals"
+    }
+}
+
 /// The figures of the model drawn once: interaction, residuals, Q-Q.
 fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option<(String, String)> {
     let subject = subject(o);
@@ -265,9 +274,12 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
             let residuals: Vec<f64> = o.observations.iter().map(|obs| obs.residual).collect();
             let flags = flagged_points(&o.checks, &lines, many);
             let caption = format!(
-                "Figure {n}. Residuals of {subject} against fitted values{}{}.{note}",
+                "Figure {n}. {} of {subject} against fitted values{}{}.{note}",
+                residuals_noun(o),
                 if o.is_one_factor() {
                     " (level means)"
+                } else if o.mixed.is_some() {
+                    " (fixed effects plus predicted unit effects)"
                 } else {
                     ""
                 },
@@ -280,7 +292,8 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
         PlotKind::Qq => {
             let qq = o.observed.qq.as_ref()?;
             let caption = format!(
-                "Figure {n}. Normal Q-Q plot of the residuals of {subject} (Blom positions), with a line through the quartiles.{note}"
+                "Figure {n}. Normal Q-Q plot of the {} of {subject} (Blom positions), with a line through the quartiles.{note}",
+                residuals_noun(o).to_lowercase()
             );
             let desc = format!("{} residuals against normal quantiles.", qq.residuals.len());
             Some((caption.clone(), qq_plot(id, &caption, &desc, qq)))

@@ -24,6 +24,11 @@ pub struct Checks {
     /// The summaries-only set was asked for (`checks: summary`).
     #[serde(default)]
     pub by_request: bool,
+    /// The residuals are conditional on the predicted unit effects (a model
+    /// with random terms), and outliers are flagged by their studentized
+    /// conditional residual rather than the externally studentized one.
+    #[serde(default)]
+    pub conditional: bool,
 }
 
 /// An observation flagged by its studentized residual.

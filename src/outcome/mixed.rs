@@ -5,6 +5,7 @@
 //! own denominator df and error) are in `LinearOutcome`.
 
 use crate::doc::block::DdfMethod;
+use crate::stats::assumptions::ShapiroWilk;
 
 /// How a mixed model was fitted (REML).
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
@@ -70,6 +71,32 @@ pub struct Sed {
     pub lsd: f64,
 }
 
+/// One unit whose predicted effect is far from 0 for its term.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct FlaggedUnit {
+    /// The unit's labels (`III:Victory`).
+    pub unit: String,
+    /// The predicted effect, in the response's units.
+    pub effect: f64,
+    /// The effect over its standard deviation under the model.
+    pub standardized: f64,
+}
+
+/// A random term's predicted unit effects (BLUPs), checked as residuals
+/// are: their shape, and the units beyond the outlier threshold.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct PredictedEffects {
+    pub term: String,
+    /// Units of the term.
+    pub units: usize,
+    /// Shapiro-Wilk on the standardised effects; `None` when the variance is
+    /// estimated at 0 or there are fewer than 3 units (or more than 5,000).
+    pub shapiro_wilk: Option<ShapiroWilk>,
+    /// Units beyond the threshold in all, and the most extreme of them.
+    pub flagged_count: usize,
+    pub flagged: Vec<FlaggedUnit>,
+}
+
 /// Everything a model with random terms adds.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct MixedDetail {
@@ -82,4 +109,8 @@ pub struct MixedDetail {
     /// Coefficients of variation of each classical error, in percent.
     pub cvs: Vec<(String, f64)>,
     pub seds: Vec<Sed>,
+    /// Each random term's predicted effects, checked (empty with
+    /// `checks: summary` or `none`).
+    #[serde(default)]
+    pub predicted: Vec<PredictedEffects>,
 }

@@ -34,6 +34,31 @@ pub struct ComponentRecord {
     pub levels: Option<usize>,
     /// Share of the total variance, in percent.
     pub percent: Option<f64>,
+    /// The checks on the term's predicted unit effects; absent for the
+    /// residual and with `checks: summary`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub predicted_effects: Option<PredictedRecord>,
+}
+
+/// A random term's predicted unit effects (BLUPs), checked.
+#[derive(Serialize)]
+pub struct PredictedRecord {
+    /// Shapiro-Wilk on the standardised effects; `null` when the variance
+    /// is estimated at 0 or there are fewer than 3 units.
+    pub shapiro_wilk: Option<super::ShapiroRecord>,
+    /// |standardised effect| above which units are listed.
+    pub threshold: f64,
+    /// How many units are beyond it in all.
+    pub flagged_count: usize,
+    /// The most extreme of them (at most 100), in unit order.
+    pub flagged: Vec<FlaggedRecord>,
+}
+
+#[derive(Serialize)]
+pub struct FlaggedRecord {
+    pub unit: String,
+    pub effect: Option<f64>,
+    pub standardized: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -87,6 +112,11 @@ pub fn mixed_records(o: &LinearOutcome, m: &MixedDetail) -> MixedRecords {
                 ci_upper: finite(c.ci_upper),
                 levels: (c.levels > 0).then_some(c.levels),
                 percent: finite(c.percent),
+                predicted_effects: m
+                    .predicted
+                    .iter()
+                    .find(|p| p.term == c.term)
+                    .map(predicted_record),
             })
             .collect(),
         strata: m.not_classical.is_none().then(|| strata(o)),
@@ -122,4 +152,25 @@ fn strata(o: &LinearOutcome) -> Vec<StratumRecord> {
             ms: finite(s.ms),
         })
         .collect()
+}
+
+fn predicted_record(p: &crate::outcome::mixed::PredictedEffects) -> PredictedRecord {
+    PredictedRecord {
+        shapiro_wilk: p.shapiro_wilk.map(|s| super::ShapiroRecord {
+            w: finite(s.w),
+            p: finite(s.p),
+            n: s.n,
+        }),
+        threshold: crate::stats::assumptions::OUTLIER_THRESHOLD,
+        flagged_count: p.flagged_count,
+        flagged: p
+            .flagged
+            .iter()
+            .map(|u| FlaggedRecord {
+                unit: u.unit.clone(),
+                effect: finite(u.effect),
+                standardized: finite(u.standardized),
+            })
+            .collect(),
+    }
 }

@@ -21,6 +21,8 @@ import os
 
 import numpy as np
 import pandas as pd
+import scipy
+from scipy import stats
 import statsmodels
 import statsmodels.formula.api as smf
 from statsmodels.stats.anova import anova_lm
@@ -70,6 +72,14 @@ def predict(data, y, x, terms, variances, residual):
         }
     e = y - fitted
     out["residuals"] = [float(v) for v in e]
+    # Shapiro-Wilk (scipy) on the residuals and on each term's standardised effects.
+    w, pv = stats.shapiro(e)
+    out["shapiro_residuals"] = [float(w), float(pv)]
+    out["shapiro_effects"] = {}
+    for name, _, _, _ in zs:
+        z = [v[1] for v in out["terms"][name].values()]
+        w, pv = stats.shapiro(z)
+        out["shapiro_effects"][name] = [float(w), float(pv)]
     out["studentized"] = [float(e[i] / (residual * np.sqrt(p[i, i]))) for i in range(n)]
     return out
 
@@ -109,6 +119,7 @@ out = {
     "source": "numpy (dense V) on EMS variance components from statsmodels OLS",
     "numpy": np.__version__,
     "statsmodels": statsmodels.__version__,
+    "scipy": scipy.__version__,
     "oats": oats(),
     "machines": machines(),
 }

@@ -1,22 +1,21 @@
-//! The checks of a factorial model, on its residuals: spread across the
-//! treatment cells (or, without replicates, across one factor's levels),
-//! shape, outliers.
+//! The checks of a model with several factors, on its residuals: spread
+//! across the treatment cells (or, without replicates, across one factor's
+//! levels), shape, outliers. The factorial engine gives its residuals, the
+//! mixed-model engine its conditional residuals.
 
 use super::cells::TreatmentCells;
-use super::fit::Fitted;
-use super::residuals::Residuals;
 use crate::analysis::checks::{summary_checks, with_residuals, with_spread_tests};
 use crate::analysis::notes::Note;
 use crate::data::FactorialData;
 use crate::doc::block::{AnovaSpec, CheckSet};
-use crate::outcome::Checks;
+use crate::outcome::{Checks, OutlierRow};
 use crate::stats::oneway::GroupSummary;
 
 /// What the checks read.
-pub(super) struct Fit<'a> {
+pub(in crate::analysis) struct Fit<'a> {
     pub data: &'a FactorialData,
-    pub fitted: &'a Fitted,
-    pub residuals: &'a Residuals,
+    /// One residual per observation.
+    pub residuals: &'a [f64],
     pub cells: &'a TreatmentCells,
     pub factor_names: &'a [String],
     pub levels: &'a [usize],
@@ -34,9 +33,14 @@ fn slices(groups: &[Vec<f64>]) -> Vec<&[f64]> {
 }
 
 /// The checks `checks:` asks for, with a note when the spread could not be
-/// compared cell by cell.
-pub(super) fn checks(spec: &AnovaSpec, fit: &Fit<'_>) -> (Checks, Option<Note>) {
-    let residuals = &fit.residuals.values;
+/// compared cell by cell; `outliers` gives the flagged observations (how
+/// many, and the most extreme), asked only when the residuals are checked.
+pub(in crate::analysis) fn checks(
+    spec: &AnovaSpec,
+    fit: &Fit<'_>,
+    outliers: impl FnOnce() -> (usize, Vec<OutlierRow>),
+) -> (Checks, Option<Note>) {
+    let residuals = fit.residuals;
     // Variance checks on the residuals grouped by treatment cell: within a
     // cell of the full model these are the observations less a constant.
     let cell_groups: Vec<Vec<f64>> = fit
@@ -64,7 +68,7 @@ pub(super) fn checks(spec: &AnovaSpec, fit: &Fit<'_>) -> (Checks, Option<Note>) 
         let (spread, note) = spread_by_first_factor(checks, fit, &cell_groups);
         (spread, Some(note))
     };
-    let (count, outliers) = fit.residuals.outliers(fit.data, fit.fitted);
+    let (count, outliers) = outliers();
     (with_residuals(checks, residuals, count, outliers), note)
 }
 
@@ -78,7 +82,7 @@ fn spread_by_first_factor(
     let first = fit.cells.factors.first().copied().unwrap_or(0);
     let mut by_level: Vec<Vec<f64>> = vec![Vec::new(); fit.levels[first]];
     for (i, &c) in fit.data.cell_of.iter().enumerate() {
-        by_level[fit.data.cells[c][first]].push(fit.residuals.values[i]);
+        by_level[fit.data.cells[c][first]].push(fit.residuals[i]);
     }
     let checks = with_spread_tests(checks, &slices(&by_level), &summaries(&by_level));
     let name = &fit.factor_names[first];

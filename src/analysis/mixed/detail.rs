@@ -79,6 +79,7 @@ pub(super) fn detail(
         not_classical,
         cvs,
         seds,
+        predicted: Vec::new(),
     }
 }
 

@@ -4,18 +4,26 @@
 use super::keys::Keys;
 use super::{cell, col, join_words, text};
 use crate::format::{alpha_text, df_text, f_stat, fixed, p_value};
+use crate::outcome::mixed::PredictedEffects;
 use crate::outcome::{Checks, OUTLIERS_LISTED, most_extreme};
 use crate::render::view::{Cell, TableView};
 use crate::stats::assumptions::{FTest, OUTLIER_THRESHOLD, ShapiroWilkSkip};
 
-/// The table; `subject` reads like "weight by group".
+/// The table; `subject` reads like "weight by group". A model with random
+/// terms adds a row per random term for its predicted effects.
 pub fn checks_table(
     c: &Checks,
+    predicted: &[PredictedEffects],
     keys: &Keys,
     alpha: f64,
     subject: &str,
     number: usize,
 ) -> TableView {
+    let residuals = if c.conditional {
+        "conditional residuals"
+    } else {
+        "residuals"
+    };
     let reading = |p: f64, yes: &str, no: &str| if p < alpha { yes } else { no }.to_string();
     let unequal = "no evidence of unequal variances";
     let mut rows = vec![
@@ -51,7 +59,7 @@ pub fn checks_table(
     });
     rows.push(match &c.shapiro_wilk {
         Ok(sw) => vec![
-            text("Shapiro-Wilk (residuals)"),
+            text(format!("Shapiro-Wilk ({residuals})")),
             cell(fixed(sw.w, 4), keys.field("checks.shapiro_wilk.w")),
             cell(format!("n = {}", sw.n), keys.field("checks.shapiro_wilk.n")),
             cell(p_value(sw.p), keys.field("checks.shapiro_wilk.p")),
@@ -62,7 +70,7 @@ pub fn checks_table(
             )),
         ],
         Err(why) => not_computed(
-            "Shapiro-Wilk (residuals)",
+            &format!("Shapiro-Wilk ({residuals})"),
             match why {
                 ShapiroWilkSkip::TooFew => "not computed: fewer than 3 residuals",
                 ShapiroWilkSkip::TooMany => "not computed: more than 5,000 residuals",
@@ -82,14 +90,14 @@ pub fn checks_table(
         }
     };
     rows.push(vec![
-        text("Skewness of residuals"),
+        text(format!("Skewness of {residuals}")),
         cell(fixed(c.skewness, 2), keys.field("checks.skewness")),
         text(""),
         text(""),
         text(moment_note("0 for a symmetric distribution")),
     ]);
     rows.push(vec![
-        text("Excess kurtosis of residuals"),
+        text(format!("Excess kurtosis of {residuals}")),
         cell(
             fixed(c.excess_kurtosis, 2),
             keys.field("checks.excess_kurtosis"),
@@ -98,6 +106,7 @@ pub fn checks_table(
         text(""),
         text(moment_note("0 for a normal distribution")),
     ]);
+    rows.extend(predicted.iter().map(|p| predicted_row(p, keys, alpha)));
     TableView {
         number,
         id: format!("{}-checks", keys.block()),
@@ -110,14 +119,90 @@ pub fn checks_table(
             col("Reading at α", false),
         ],
         rows,
-        footnotes: vec![
-            format!(
-                "Readings use α = {}. A check that passes does not prove an assumption holds, and with many observations small, harmless departures reach significance: look at the data as well. Skewness and kurtosis are the bias-adjusted sample estimates.",
-                alpha_text(alpha)
-            ),
-            outliers_note(c),
-        ],
+        footnotes: footnotes(c, predicted, alpha),
     }
+}
+
+/// How to read the table, the flagged observations and, with random terms,
+/// what conditional residuals are and the flagged units.
+fn footnotes(c: &Checks, predicted: &[PredictedEffects], alpha: f64) -> Vec<String> {
+    let mut footnotes = vec![
+        format!(
+            "Readings use α = {}. A check that passes does not prove an assumption holds, and with many observations small, harmless departures reach significance: look at the data as well. Skewness and kurtosis are the bias-adjusted sample estimates.",
+            alpha_text(alpha)
+        ),
+        outliers_note(c),
+    ];
+    if c.conditional {
+        footnotes.push(CONDITIONAL_NOTE.to_string());
+    }
+    footnotes.extend(predicted.iter().map(flagged_units_note));
+    footnotes
+}
+
+/// What conditional residuals and predicted effects are, for a reader who
+/// knows residuals from fixed-effects models.
+const CONDITIONAL_NOTE: &str = "With random terms, the residuals are conditional: each observation less the fixed effects and its units' predicted effects (best linear unbiased predictions). Outliers are flagged by the residual over its standard deviation under the fitted model, and each unit's predicted effect likewise; the predicted effects are shrunk towards 0, the more so the fewer observations a unit has.";
+
+/// Shapiro-Wilk on a random term's standardised predicted effects.
+fn predicted_row(p: &PredictedEffects, keys: &Keys, alpha: f64) -> Vec<Cell> {
+    let name = format!("Shapiro-Wilk (predicted effects of {})", p.term);
+    let k = |q: &str| {
+        keys.field(&format!(
+            "variance_components.{}.predicted_effects.shapiro_wilk.{q}",
+            p.term
+        ))
+    };
+    match p.shapiro_wilk {
+        Some(sw) => vec![
+            text(name),
+            cell(fixed(sw.w, 4), k("w")),
+            cell(format!("n = {}", sw.n), k("n")),
+            cell(p_value(sw.p), k("p")),
+            text(if sw.p < alpha {
+                "effects depart from normality"
+            } else {
+                "no evidence against normality"
+            }),
+        ],
+        None => not_computed(
+            &name,
+            if p.units < 3 {
+                "not computed: fewer than 3 units"
+            } else {
+                "not computed: the variance is estimated at 0"
+            },
+        ),
+    }
+}
+
+/// Units whose predicted effect is beyond the threshold, or that none is.
+fn flagged_units_note(p: &PredictedEffects) -> String {
+    if p.flagged_count == 0 {
+        return format!(
+            "No unit of `{}` has a standardised predicted effect beyond ±{OUTLIER_THRESHOLD}.",
+            p.term
+        );
+    }
+    let mut worst: Vec<&crate::outcome::mixed::FlaggedUnit> = p.flagged.iter().collect();
+    worst.sort_by(|a, b| b.standardized.abs().total_cmp(&a.standardized.abs()));
+    let names: Vec<String> = worst
+        .iter()
+        .take(OUTLIERS_LISTED)
+        .map(|u| format!("`{}`", u.unit))
+        .collect();
+    format!(
+        "{} of `{}` {} a standardised predicted effect beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded){}: {}.",
+        crate::format::counted(p.flagged_count, "unit", "units"),
+        p.term,
+        if p.flagged_count == 1 { "has" } else { "have" },
+        if p.flagged_count > names.len() {
+            ", the most extreme"
+        } else {
+            ""
+        },
+        join_words(&names)
+    )
 }
 
 /// A test of equal variances (an F statistic with two df).
@@ -168,7 +253,8 @@ fn outliers_note(c: &Checks) -> String {
         "Outlying observations cannot be looked for in summary statistics.".to_string()
     } else if c.outliers.is_empty() {
         format!(
-            "No observation has an externally studentized residual beyond ±{OUTLIER_THRESHOLD}."
+            "No observation has {} beyond ±{OUTLIER_THRESHOLD}.",
+            residual_kind(c)
         )
     } else {
         outlier_sentence(c)
@@ -187,7 +273,8 @@ fn outlier_sentence(c: &Checks) -> String {
             ("Observations have", "data lines")
         };
         return format!(
-            "{observations} an externally studentized residual beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded): {lines_word} {}.",
+            "{observations} {} beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded): {lines_word} {}.",
+            residual_kind(c),
             join_words(&lines)
         );
     }
@@ -196,9 +283,19 @@ fn outlier_sentence(c: &Checks) -> String {
         .map(|o| o.line.to_string())
         .collect();
     format!(
-        "{} observations have an externally studentized residual beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded); the {OUTLIERS_LISTED} most extreme are on data lines {}, and the results file lists the {} most extreme.",
+        "{} observations have {} beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded); the {OUTLIERS_LISTED} most extreme are on data lines {}, and the results file lists the {} most extreme.",
         crate::format::count(c.outlier_count),
+        residual_kind(c),
         join_words(&worst),
         c.outliers.len()
     )
+}
+
+/// How the flagged residuals were scaled.
+fn residual_kind(c: &Checks) -> &'static str {
+    if c.conditional {
+        "a studentized conditional residual"
+    } else {
+        "an externally studentized residual"
+    }
 }

@@ -67,6 +67,7 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         let subject = format!("{} by {}", measure(o), factors_text(o));
         tables.push(checks::checks_table(
             &o.checks,
+            o.mixed.as_ref().map_or(&[][..], |m| &m.predicted),
             &keys,
             o.alpha,
             &subject,
