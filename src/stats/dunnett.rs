@@ -83,11 +83,42 @@ pub fn dunnett(
     sides: Sides,
 ) -> Pairwise {
     let n0 = levels[control].0 as f64;
-    let treatments: Vec<usize> = (0..levels.len()).filter(|&i| i != control).collect();
-    let lambdas: Vec<f64> = treatments
-        .iter()
-        .map(|&i| (levels[i].0 as f64 / (levels[i].0 as f64 + n0)).sqrt())
+    let comparisons: Vec<ToControl> = (0..levels.len())
+        .filter(|&i| i != control)
+        .map(|i| {
+            let n = levels[i].0 as f64;
+            ToControl {
+                level: i,
+                diff: levels[i].1 - levels[control].1,
+                se: (mse * (1.0 / n + 1.0 / n0)).sqrt(),
+                lambda: (n / (n + n0)).sqrt(),
+            }
+        })
         .collect();
+    dunnett_general(&comparisons, control, df, alpha, sides)
+}
+
+/// One treatment's comparison with the control: its difference, the SE of
+/// the difference, and its λ (the correlation of two comparisons is λᵢλⱼ).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ToControl {
+    pub level: usize,
+    pub diff: f64,
+    pub se: f64,
+    pub lambda: f64,
+}
+
+/// Dunnett's comparisons from given differences, SEs and λs on one df: the
+/// form a mixed model gives when its comparisons with the control share
+/// one df and have the product correlation.
+pub fn dunnett_general(
+    comparisons: &[ToControl],
+    control: usize,
+    df: f64,
+    alpha: f64,
+    sides: Sides,
+) -> Pairwise {
+    let lambdas: Vec<f64> = comparisons.iter().map(|c| c.lambda).collect();
     // Bracket: the critical value lies between the single comparison's t
     // quantile and Bonferroni's over the m treatments (equal for m = 1, so
     // both are widened by 0.1% to leave the root inside).
@@ -106,11 +137,10 @@ pub fn dunnett(
         1e-12,
         1e-11,
     );
-    let pairs = treatments
+    let pairs = comparisons
         .iter()
-        .map(|&i| {
-            let diff = levels[i].1 - levels[control].1;
-            let se = (mse * (1.0 / levels[i].0 as f64 + 1.0 / n0)).sqrt();
+        .map(|c| {
+            let (diff, se) = (c.diff, c.se);
             let t = diff / se;
             let p = match sides {
                 Sides::Two => 1.0 - dunnett_cdf(t.abs(), &lambdas, df, sides),
@@ -136,7 +166,7 @@ pub fn dunnett(
                 lower,
                 upper,
                 significant: p < alpha,
-                ..Pair::tested(i, control, (diff, se), t, p)
+                ..Pair::tested(c.level, control, (diff, se), t, p)
             }
         })
         .collect();
