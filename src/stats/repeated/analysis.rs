@@ -19,18 +19,11 @@ use crate::stats::sum::neumaier;
 pub fn analyse(input: &RepeatedInput) -> Result<RepeatedAnalysis, RepeatedError> {
     let occasions = input.validate()?;
     let subjects = input.subjects();
-    let effects = within_effects(input.within.len());
-    let contrasts: Vec<usize> = effects
-        .iter()
-        .map(|e| e.iter().map(|&f| input.within[f] - 1).product())
-        .collect();
-    // Every effect with p ≥ 2 needs ν > p; every test needs ν ≥ 1.
-    let needed = contrasts
-        .iter()
-        .copied()
-        .filter(|&p| p >= 2)
-        .max()
-        .unwrap_or(0);
+    // The full interaction has the most contrasts (each factor multiplies
+    // them by its levels − 1 ≥ 1); every effect with p ≥ 2 needs ν > p and every
+    // test ν ≥ 1. Checked before anything of the size of the design is built.
+    let most: usize = input.within.iter().map(|l| l - 1).product();
+    let needed = if most >= 2 { most } else { 0 };
     let too_few = |residual_df| RepeatedError::TooFewSubjects {
         subjects,
         residual_df,
@@ -39,6 +32,7 @@ pub fn analyse(input: &RepeatedInput) -> Result<RepeatedAnalysis, RepeatedError>
     if subjects <= needed + 1 {
         return Err(too_few(subjects.saturating_sub(1)));
     }
+    let effects = within_effects(input.within.len());
     let basis = BetweenBasis::new(subjects, input.between)?;
     let residual_df = subjects - basis.rank();
     if residual_df == 0 || residual_df <= needed {
@@ -47,8 +41,10 @@ pub fn analyse(input: &RepeatedInput) -> Result<RepeatedAnalysis, RepeatedError>
     let between = between_table(input, &basis, residual_df)?;
     let within = effects
         .into_iter()
-        .zip(contrasts)
-        .map(|(factors, p)| within_effect(input, &basis, residual_df, factors, p))
+        .map(|factors| {
+            let p = factors.iter().map(|&f| input.within[f] - 1).product();
+            within_effect(input, &basis, residual_df, factors, p)
+        })
         .collect::<Result<Vec<_>, _>>()?;
     Ok(RepeatedAnalysis {
         subjects,

@@ -26,7 +26,9 @@ pub(crate) struct BetweenBasis {
 
 impl BetweenBasis {
     pub(crate) fn new(subjects: usize, terms: &[BetweenTerm]) -> Result<Self, RepeatedError> {
-        let columns = 1 + terms.iter().map(|t| t.levels).sum::<usize>();
+        let columns = terms
+            .iter()
+            .fold(1usize, |sum, t| sum.saturating_add(t.levels));
         if columns > MAX_BETWEEN_COLUMNS {
             return Err(RepeatedError::TooLarge {
                 columns,

@@ -13,6 +13,23 @@
 //! (intercept first), so with unequal group sizes the within effect itself is
 //! tested on subject-weighted means. No labels, no formatting: factors, terms,
 //! subjects and occasions are the caller's indices.
+//!
+//! ```
+//! use sheaf::stats::repeated::{BetweenTerm, RepeatedInput, Sphericity, analyse};
+//!
+//! // Invented: 6 animals in 2 diets, weighed in 3 weeks.
+//! let responses = vec![
+//!     vec![10.0, 12.5, 15.0], vec![11.0, 12.0, 16.5], vec![9.5, 13.0, 14.0],
+//!     vec![10.5, 14.0, 18.0], vec![12.0, 15.5, 19.5], vec![11.0, 13.5, 19.0],
+//! ];
+//! let diet = BetweenTerm { levels: 2, level_of: vec![0, 0, 0, 1, 1, 1] };
+//! let input = RepeatedInput { responses: &responses, within: &[3], between: &[diet] };
+//! let analysis = analyse(&input).expect("complete subjects, ν = 4 > p = 2");
+//! let week = &analysis.within[0];
+//! assert_eq!((week.effect.test.df, week.error.df), (2, 8));
+//! assert!(matches!(week.sphericity, Sphericity::Tested(_)));
+//! let _diet_by_week_gg_p = week.by_between[0].corrected.gg;
+//! ```
 
 mod analysis;
 mod between_basis;

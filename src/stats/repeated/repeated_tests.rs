@@ -162,6 +162,15 @@ fn refuses_too_few_subjects() {
             contrasts: 3
         })
     );
+    // Refused before the 2^60 occasions or their effects are laid out.
+    assert_eq!(
+        run(&[], &[2; 60], &[]),
+        Err(RepeatedError::TooFewSubjects {
+            subjects: 0,
+            residual_df: 0,
+            contrasts: 0
+        })
+    );
     assert_eq!(
         run(&[], &[2], &[]),
         Err(RepeatedError::TooFewSubjects {
@@ -285,7 +294,9 @@ fn sums_of_squares_add_up_to_the_total() {
 }
 
 /// Shifting and scaling the responses, reordering the subjects and the
-/// within factors leave F, p, ε and Mauchly's test unchanged.
+/// within factors leave F, p, ε and Mauchly's test unchanged. Tolerance
+/// 1e-9: a shift of 1e6 leaves the inputs about 1e-10 of their spread (the
+/// rounding of a value near 1e6), which the results inherit.
 #[test]
 fn invariant_to_shift_scale_and_order() {
     let y = invented(10, 6);
@@ -294,7 +305,7 @@ fn invariant_to_shift_scale_and_order() {
     let moved: Vec<Vec<f64>> = y
         .iter()
         .rev()
-        .map(|r| r.iter().map(|v| 1e4 + 3.5 * v).collect())
+        .map(|r| r.iter().map(|v| 1e6 + 3.5 * v).collect())
         .collect();
     let of_rev: Vec<usize> = of.iter().rev().copied().collect();
     let other = run(&moved, &[2, 3], &[groups(&of_rev, 2)]).unwrap();
@@ -326,4 +337,23 @@ fn invariant_to_shift_scale_and_order() {
     same(&base.within[1], &swap.within[0]);
     same(&base.within[2], &swap.within[2]);
     assert!(rel(base.between.terms[0].f, other.between.terms[0].f) < 1e-9);
+}
+
+/// The example of the module documentation (doc-tests are not run).
+#[test]
+fn the_module_example_holds() {
+    let responses = vec![
+        vec![10.0, 12.5, 15.0],
+        vec![11.0, 12.0, 16.5],
+        vec![9.5, 13.0, 14.0],
+        vec![10.5, 14.0, 18.0],
+        vec![12.0, 15.5, 19.5],
+        vec![11.0, 13.5, 19.0],
+    ];
+    let diet = groups(&[0, 0, 0, 1, 1, 1], 2);
+    let a = run(&responses, &[3], &[diet]).unwrap();
+    let week = &a.within[0];
+    assert_eq!((week.effect.test.df, week.error.df), (2, 8));
+    assert!(matches!(week.sphericity, Sphericity::Tested(_)));
+    assert!(week.by_between[0].corrected.gg >= week.by_between[0].test.p);
 }
