@@ -28,7 +28,7 @@
 //! let week = &analysis.within[0];
 //! assert_eq!((week.effect.test.df, week.error.df), (2, 8));
 //! assert!(matches!(week.sphericity, Sphericity::Tested(_)));
-//! let _diet_by_week_gg_p = week.by_between[0].corrected.gg;
+//! assert!((0.5..=1.0).contains(&week.epsilons.gg)); // 1/p ≤ ε̂ ≤ 1
 //! ```
 
 mod analysis;

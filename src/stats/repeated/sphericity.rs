@@ -21,9 +21,10 @@ pub struct MauchlyTest {
     pub df: usize,
     /// P(χ²_df > χ²): the usual first-order p-value.
     pub p: f64,
-    /// The p-value with Anderson's (2003, §10.7) second-order term ω₂ (spec
-    /// 7.2): p + ω₂·[P(χ²_{df+4} > χ²) − p]. A refinement for small ν; other
-    /// software may print a variant of it, so it is kept apart from `p`.
+    /// The p-value with Anderson's second-order term ω₂ (2003, §10.7, from
+    /// memory; formula of spec 7.2): p + ω₂·[P(χ²_{df+4} > χ²) − p]. A
+    /// refinement for small ν; other software may print a variant of it, so
+    /// it is kept apart from `p`.
     pub p_second_order: f64,
 }
 
