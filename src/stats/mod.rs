@@ -16,6 +16,7 @@ pub mod ptukey;
 pub mod quadrature;
 pub mod range_tail;
 pub mod ranks;
+pub mod repeated;
 pub mod roots;
 pub mod special;
 pub mod strata;
