@@ -407,3 +407,46 @@ fn a_gross_error_is_flagged_by_its_conditional_residual() {
             > 3.0
     );
 }
+
+/// Dunnett against machine A (spec 9.3's design): both comparisons share
+/// the worker × machine error on 10 df with correlation 1/2, so the joint
+/// critical value applies. SED 2.1769754758 on 10 df (spec 9.3, closed
+/// form); p-values and the critical value from scipy 1.17.1
+/// `multivariate_t(shape=[[1, .5], [.5, 1]], df=10).cdf` over the box
+/// (quasi-Monte Carlo, seed 1, 4e6 points): 0.00810252475 and 0.000149514662,
+/// critical 2.56833866. That integration is good to about 1e-5 absolute, so
+/// the p-values are compared at 2e-5 and the critical value at 1e-4.
+#[test]
+fn machines_dunnett_against_a_control_uses_the_interaction_error() {
+    let doc = "# Machines\n\n```anova\nid: m\ndata: Machines.csv\nmodel: score ~ Machine\nrandom: Worker + Worker:Machine\ncompare: dunnett\ncontrol: A\n```\n";
+    let results = build(doc, &[("Machines.csv", open("Machines.csv"))]).expect("builds");
+    let fam = &results["blocks"][0]["comparisons"][0];
+    let pairs = fam["pairs"].as_array().expect("pairs");
+    assert_eq!(pairs.len(), 2);
+    for (p, want) in pairs.iter().zip([0.00810252475, 0.000149514662]) {
+        close(&p["se"], 2.1769754758, 1e-9, "SED");
+        close(&p["df"], 10.0, 1e-12, "df");
+        let got = p["p_adj"].as_f64().expect("p");
+        assert!((got - want).abs() < 2e-5, "Dunnett p {got} vs {want}");
+    }
+    close(&fam["critical_value"], 2.56833866, 1e-4, "Dunnett critical value");
+}
+
+/// With two subplots missing (spec 9.2's invented pattern) the nitrogen
+/// comparisons with the control no longer share one df: refused, with the
+/// reason and the alternatives.
+#[test]
+fn dunnett_is_refused_where_the_comparisons_do_not_share_one_df() {
+    let data: String = open("oats.csv")
+        .lines()
+        .filter(|l| !l.starts_with("I,Victory,0.0cwt") && !l.starts_with("IV,Marvellous,0.6cwt"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let doc = "# Oats\n\n```anova\nid: oats\ndata: oats.csv\nmodel: Y ~ N\nrandom: B + B:V\ncompare: dunnett\ncontrol: 0.0cwt\n```\n";
+    let err = build(doc, &[("oats.csv", data)]).expect_err("refused");
+    assert!(
+        err.contains("Dunnett's comparisons cannot be made here"),
+        "{err}"
+    );
+    assert!(err.contains("bonferroni"), "{err}");
+}

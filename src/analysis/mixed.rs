@@ -10,6 +10,7 @@
 //! `residuals` (checks on the conditional residuals and the predicted unit
 //! effects).
 
+mod control;
 mod detail;
 mod families;
 mod fixed_terms;
@@ -418,6 +419,9 @@ impl Analysed {
                 })
                 .collect());
         };
+        if method == crate::stats::compare::Method::Dunnett {
+            return Ok(vec![control::dunnett(errors, &estimating, &compared)?]);
+        }
         let within = spec
             .within
             .as_ref()

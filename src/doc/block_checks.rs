@@ -282,12 +282,7 @@ pub(super) fn resolve(
     }
     errors.extend(reading_keys(&d, &data));
     errors.extend(model_keys(&mut d, &model.value));
-    errors.extend(super::block_random::random_keys(
-        &d,
-        &model.value,
-        method,
-        compare,
-    ));
+    errors.extend(super::block_random::random_keys(&d, &model.value, method));
     if !errors.is_empty() {
         return Err(errors);
     }

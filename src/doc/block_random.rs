@@ -7,7 +7,6 @@ use super::block::{DdfMethod, Located, Omnibus, SpecError, bad, one_of};
 use super::block_keys::AnovaDraft;
 use super::formula::{Formula, Term, parse_terms};
 use super::keyvalue::Entry;
-use crate::stats::compare::Method;
 
 pub(super) fn read_random(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
     // An empty list is a model without random terms: the fixed analysis.
@@ -36,12 +35,7 @@ pub(super) fn read_ddf(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
 
 /// What the keys of a block with random terms must agree on; nothing when
 /// the block has none (then `ddf` must be absent too).
-pub(super) fn random_keys(
-    d: &AnovaDraft,
-    formula: &Formula,
-    method: Omnibus,
-    compare: Option<Method>,
-) -> Vec<SpecError> {
+pub(super) fn random_keys(d: &AnovaDraft, formula: &Formula, method: Omnibus) -> Vec<SpecError> {
     let Some((entry, terms)) = &d.random else {
         return d
             .ddf
@@ -64,12 +58,6 @@ pub(super) fn random_keys(
         errors.push(refuse(
             format!("`method: {}` has no version with random terms", method.key()),
             "a mixed model is fitted by REML with F tests; remove `method` (Welch's and rank tests, and their Games-Howell and Dunn comparisons, assume independent observations)",
-        ));
-    }
-    if compare == Some(Method::Dunnett) {
-        errors.push(refuse(
-            "`compare: dunnett` is not offered with random terms in this version".into(),
-            "its joint critical value assumes one error for every comparison with the control; use `compare: bonferroni` or `holm`, or `lsd`",
         ));
     }
     if d.input.as_ref().is_some_and(|(_, summary)| *summary) {

@@ -73,10 +73,6 @@ fn random_terms_refuse_what_has_no_mixed_model_version() {
             "need the observations",
         ),
         (
-            "model: y ~ g\nrandom: b\ncompare: dunnett\ncontrol: a",
-            "not offered with random terms",
-        ),
-        (
             "model: y ~ g + b\nrandom: b",
             "both a fixed term of the model and a random term",
         ),

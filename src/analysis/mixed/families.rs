@@ -41,7 +41,7 @@ pub(super) struct Slice {
 
 impl Estimating<'_> {
     /// lβ for a weight row over the full design.
-    fn contrast(&self, full: &[f64]) -> Option<ContrastTest> {
+    pub(super) fn contrast(&self, full: &[f64]) -> Option<ContrastTest> {
         let l = self.design.restrict(full).ok()?;
         self.fit.contrast(&l, self.ddf).ok()
     }
