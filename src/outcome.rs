@@ -6,6 +6,7 @@ mod checks;
 pub mod linear;
 pub mod mixed;
 mod power;
+pub mod repeated;
 
 pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, most_extreme};
 pub use linear::{CellRow, RESIDUAL, term_label};
@@ -61,5 +62,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 6;
+    const SCHEMA: u32 = 7;
 }

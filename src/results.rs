@@ -7,6 +7,7 @@
 //! `warnings` say why.
 
 mod mixed;
+mod repeated;
 
 use crate::doc::power::EffectInput;
 use crate::outcome::linear::{Comparison, Estimate, Family, LinearOutcome};
@@ -189,6 +190,9 @@ pub struct BlockRecord {
     /// Models with random terms: SED, df and LSD per kind of comparison.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub seds: Option<Vec<mixed::SedRecord>>,
+    /// Repeated-measures blocks (`subject`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub repeated: Option<repeated::RepeatedRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -479,6 +483,7 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
         variance_components,
         strata,
         seds,
+        repeated: o.repeated.as_deref().map(repeated::repeated_record),
     }
 }
 

@@ -429,7 +429,12 @@ fn machines_dunnett_against_a_control_uses_the_interaction_error() {
         let got = p["p_adj"].as_f64().expect("p");
         assert!((got - want).abs() < 2e-5, "Dunnett p {got} vs {want}");
     }
-    close(&fam["critical_value"], 2.56833866, 1e-4, "Dunnett critical value");
+    close(
+        &fam["critical_value"],
+        2.56833866,
+        1e-4,
+        "Dunnett critical value",
+    );
 }
 
 /// With two subplots missing (spec 9.2's invented pattern) the nitrogen

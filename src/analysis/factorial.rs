@@ -249,6 +249,7 @@ impl Analysed {
             observations,
             observed,
             mixed: None,
+            repeated: None,
         }
     }
 }

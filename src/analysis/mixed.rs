@@ -14,6 +14,7 @@ mod control;
 mod detail;
 mod families;
 mod fixed_terms;
+mod repeated;
 mod residuals;
 mod units;
 
@@ -101,6 +102,25 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             "check that every random term names units with several observations each, and that the fixed terms are estimable",
         )
     })?;
+    let repeated = match &spec.subject {
+        Some(s) => {
+            let column = names
+                .iter()
+                .position(|n| *n == s.value)
+                .unwrap_or(usize::MAX);
+            if column == usize::MAX {
+                return Err(errors.model(
+                    format!("the subject column `{}` was not read", s.value),
+                    "check `subject`",
+                ));
+            }
+            Some(
+                repeated::repeated(&data, &model, column, &s.value)
+                    .map_err(|(message, hint)| errors.model(message, &hint))?,
+            )
+        }
+        None => None,
+    };
     let predictions = fit
         .predictions(&data.offsets, &design, &units.terms)
         .map_err(|e| {
@@ -123,6 +143,7 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
         fit,
         predictions,
         units,
+        repeated,
     };
     let outcome = analysed.outcome(&errors, block)?;
     Ok((outcome, streamed))
@@ -140,6 +161,7 @@ struct Analysed {
     fit: mixed::MixedFit,
     predictions: mixed::Predictions,
     units: units::Units,
+    repeated: Option<crate::outcome::repeated::RepeatedDetail>,
 }
 
 impl Analysed {
@@ -220,6 +242,11 @@ impl Analysed {
         }
         .checks();
         let mut notes = self.notes();
+        if let Some(Err(reason)) = self.repeated.as_ref().map(|r| &r.univariate) {
+            notes.push(Note::other(format!(
+                "The univariate repeated-measures analysis (with sphericity corrections) was not possible: {reason}. The mixed model's tests use every observation."
+            )));
+        }
         notes.extend(spread_note);
         notes.extend(advice(&checks, Remedies::Linear, self.alpha, data.decimals));
         let predicted = residuals::predicted_effects(
@@ -277,6 +304,7 @@ impl Analysed {
             observed: self.observed(spec, &observations),
             observations,
             mixed: Some(Box::new(detail)),
+            repeated: self.repeated.map(Box::new),
         })
     }
 

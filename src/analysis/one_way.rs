@@ -131,6 +131,7 @@ impl Engine<'_> {
             observations,
             observed,
             mixed: None,
+            repeated: None,
         })
     }
 

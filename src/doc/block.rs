@@ -224,6 +224,9 @@ pub struct AnovaSpec {
     pub blocks: Option<Located<Vec<String>>>,
     /// Random terms (the unit structure): blocks, whole plots, batches.
     pub random: Option<Located<Vec<super::formula::Term>>>,
+    /// The column naming the unit measured repeatedly (`subject`); it is
+    /// also the block's random term.
+    pub subject: Option<Located<String>>,
     /// Denominator df of a mixed model's tests.
     pub ddf: DdfMethod,
     pub plots: PlotSpec,

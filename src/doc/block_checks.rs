@@ -282,6 +282,7 @@ pub(super) fn resolve(
     }
     errors.extend(reading_keys(&d, &data));
     errors.extend(model_keys(&mut d, &model.value));
+    errors.extend(super::block_random::subject_as_random(&mut d));
     errors.extend(super::block_random::random_keys(&d, &model.value, method));
     if !errors.is_empty() {
         return Err(errors);
@@ -311,6 +312,11 @@ pub(super) fn resolve(
         within: d.within,
         cells: d.cells,
         random,
+        subject: d.subject.map(|(e, t)| super::block::Located {
+            value: t.factors[0].clone(),
+            line: e.line,
+            column: e.value_column,
+        }),
         ddf: d.ddf.map_or(DdfMethod::KenwardRoger, |(_, m)| m),
         blocks: d.blocks,
         summary,

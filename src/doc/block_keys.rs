@@ -65,6 +65,8 @@ pub struct AnovaDraft {
     /// `random`: the unit structure, as terms.
     pub random: Option<(Entry, Vec<super::formula::Term>)>,
     pub ddf: Option<(Entry, super::block::DdfMethod)>,
+    /// `subject`: the unit measured repeatedly.
+    pub subject: Option<(Entry, super::formula::Term)>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -100,6 +102,7 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("block", read_block),
         ("random", super::block_random::read_random),
         ("ddf", super::block_random::read_ddf),
+        ("subject", super::block_random::read_subject),
         ("plot", display::read_plot),
         ("label", display::read_label),
         ("unit", display::read_unit),

@@ -23,6 +23,45 @@ pub(super) fn read_random(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError
     Ok(())
 }
 
+/// `subject`: the column naming the unit measured repeatedly (an animal,
+/// a plot harvested several times, a panellist). It is a random term of
+/// its own, and asks for the repeated-measures reading of the design.
+pub(super) fn read_subject(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
+    let hint = "name one column, the one that identifies each animal, plot or panellist";
+    let terms = parse_terms(&e.value).map_err(|x| SpecError {
+        line: e.line,
+        column: e.value_column + x.offset,
+        message: x.message,
+        hint: Some(hint.into()),
+    })?;
+    match &terms[..] {
+        [t] if t.factors.len() == 1 => {
+            d.subject = Some((e.clone(), t.clone()));
+            Ok(())
+        }
+        _ => Err(bad(
+            e,
+            format!("`subject` names one column, found `{}`", e.value.trim()),
+            hint,
+        )),
+    }
+}
+
+/// A `subject` becomes the block's random term; with `random` as well it
+/// is refused in this version (the unit structure would be ambiguous).
+pub(super) fn subject_as_random(d: &mut AnovaDraft) -> Option<SpecError> {
+    let (e, term) = d.subject.as_ref()?;
+    if d.random.is_some() {
+        return Some(bad(
+            e,
+            "`subject` and `random` together are not offered in this version".into(),
+            "the subject is the random unit of a repeated-measures block: remove `random`",
+        ));
+    }
+    d.random = Some((e.clone(), vec![term.clone()]));
+    None
+}
+
 pub(super) fn read_ddf(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
     let choices: [(&[&str], DdfMethod); 2] = [
         (&["kenward-roger"], DdfMethod::KenwardRoger),

@@ -51,6 +51,7 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("block", "model: y ~ g + b\nblock: b"),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
+    ("subject", "model: y ~ week\nsubject: animal"),
     ("plot", "plot: box, means"),
     ("label", "label: Yield"),
     ("unit", "unit: kg"),

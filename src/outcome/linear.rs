@@ -269,6 +269,10 @@ pub struct LinearOutcome {
     pub observed: Observed,
     /// Models with random terms: the fit, variance components, SEDs.
     pub mixed: Option<Box<super::mixed::MixedDetail>>,
+    /// Repeated-measures blocks (`subject`): the factors' classification
+    /// and the univariate tests with sphericity corrections.
+    #[serde(default)]
+    pub repeated: Option<Box<super::repeated::RepeatedDetail>>,
 }
 
 impl LinearOutcome {

@@ -11,6 +11,7 @@ mod keys;
 mod means;
 mod mixed;
 mod power;
+mod repeated;
 
 pub use power::power_view;
 
@@ -143,6 +144,28 @@ fn omnibus_tables(
     tables.push(mixed::components_table(o, m, keys, numbers.next()));
     if !m.seds.is_empty() {
         tables.push(mixed::sed_table(o, m, keys, numbers.next()));
+    }
+    if let Some(r) = &o.repeated {
+        repeated_tables(o, r, keys, numbers, tables);
+    }
+}
+
+/// A repeated-measures block's univariate tests and sphericity, or why
+/// there are none.
+fn repeated_tables(
+    o: &LinearOutcome,
+    r: &crate::outcome::repeated::RepeatedDetail,
+    keys: &Keys,
+    numbers: &mut Numbering,
+    tables: &mut Vec<TableView>,
+) {
+    if let Ok(tests) = &r.univariate {
+        tables.push(repeated::within_table(o, r, tests, keys, numbers.next()));
+        let number = *numbers.0;
+        if let Some(t) = repeated::sphericity_table(o, tests, keys, number) {
+            numbers.next();
+            tables.push(t);
+        }
     }
 }
 

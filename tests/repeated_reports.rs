@@ -1,0 +1,192 @@
+//! Repeated-measures blocks (`subject`), end to end: the results file
+//! against the check values of the mixed-models specification (9.4 B,
+//! sleepstudy, open data) and against pingouin's `mixed_anova` on the
+//! invented data of tests/reference/repeated_measures.json.
+
+use serde_json::Value;
+use std::process::Command;
+
+fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    for (name, text) in files {
+        std::fs::write(p.join(name), text).expect("data");
+    }
+    std::fs::write(p.join("report.md"), document).expect("doc");
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(p)
+        .args(["build", "report.md", "-o", "out", "--to", "md"])
+        .output()
+        .expect("runs");
+    if !o.status.success() {
+        return Err(String::from_utf8_lossy(&o.stderr).into_owned());
+    }
+    let text = std::fs::read_to_string(p.join("out/report.results.json")).expect("results");
+    Ok(serde_json::from_str(&text).expect("json"))
+}
+
+fn open(name: &str) -> String {
+    std::fs::read_to_string(format!(
+        "{}/tests/data/open/{name}",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .expect("data file")
+}
+
+/// The spec prints 12 significant digits and the computation agrees with
+/// the libraries to about 1e-13 (tests/repeated_core.rs), so 1e-9 relative.
+fn close(got: &Value, want: f64, what: &str) {
+    let g = got
+        .as_f64()
+        .unwrap_or_else(|| panic!("{what}: not a number: {got}"));
+    assert!(
+        (g - want).abs() <= 1e-9 * want.abs(),
+        "{what}: got {g}, want {want}"
+    );
+}
+
+fn within<'a>(block: &'a Value, term: &str) -> &'a Value {
+    block["repeated"]["univariate"]
+        .as_array()
+        .and_then(|t| t.iter().find(|t| t["term"] == term))
+        .unwrap_or_else(|| panic!("within term {term}: {}", block["repeated"]))
+}
+
+const SLEEP: &str = "# Sleep\n\n```anova\nid: s\ndata: sleepstudy.csv\nmodel: Reaction ~ Days\nsubject: Subject\ncompare: none\n```\n";
+
+#[test]
+fn sleepstudy_univariate_analysis_matches_the_specification() {
+    let r = build(SLEEP, &[("sleepstudy.csv", open("sleepstudy.csv"))]).expect("builds");
+    let b = &r["blocks"][0];
+    let rep = &b["repeated"];
+    assert_eq!(rep["within"], serde_json::json!(["Days"]));
+    assert_eq!(rep["between"], serde_json::json!([]));
+    assert_eq!(rep["complete_subjects"], 18);
+    let d = within(b, "Days");
+    // Spec 9.4 B: own, pingouin, statsmodels AnovaRM; scipy for p.
+    close(&d["f"], 18.7026979326, "F Days");
+    assert_eq!(
+        (d["df"].as_f64(), d["df_den"].as_f64()),
+        (Some(9.0), Some(153.0))
+    );
+    close(&d["p"], 8.995345416e-21, "p Days");
+    close(&d["p_gg"], 5.46309176758e-09, "p GG");
+    close(&d["p_hf"], 7.07655175337e-11, "p HF");
+    let s = &d["sphericity"];
+    close(&s["gg_epsilon"], 0.369029844794, "GG epsilon");
+    close(&s["hf_epsilon"], 0.46936479691, "HF epsilon");
+    close(&s["mauchly_w"], 2.19020403394e-04, "Mauchly W");
+    close(&s["chi_sq"], 116.252361507, "chi-square");
+    assert_eq!(s["df"], 44);
+    close(&s["p"], 1.94172524757e-08, "Mauchly p (first order)");
+    // The mixed model with a random subject intercept (compound symmetry)
+    // gives the same F on complete balanced data (spec 9.4 C, CS row).
+    let t = b["anova"]["terms"][0].clone();
+    close(&t["f"], 18.7026979326, "mixed-model F Days");
+}
+
+/// Spec 7.5 and 9.4 D: rows 17, 34, …, 170 deleted (an invented pattern)
+/// leave 8 complete subjects for the univariate analysis, while the mixed
+/// model keeps all 170 rows.
+#[test]
+fn incomplete_subjects_are_left_out_of_the_univariate_analysis_and_listed() {
+    let text = open("sleepstudy.csv");
+    let mut lines = text.lines();
+    let header = lines.next().unwrap();
+    let kept: String = std::iter::once(header)
+        .chain(
+            lines
+                .enumerate()
+                .filter(|(i, _)| (i + 1) % 17 != 0)
+                .map(|(_, l)| l),
+        )
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let r = build(SLEEP, &[("sleepstudy.csv", kept)]).expect("builds");
+    let b = &r["blocks"][0];
+    assert_eq!(b["n"], 170, "{}", b["n"]);
+    let rep = &b["repeated"];
+    assert_eq!(rep["complete_subjects"], 8);
+    assert_eq!(rep["incomplete_count"], 10);
+    assert_eq!(rep["incomplete"].as_array().unwrap().len(), 10);
+}
+
+/// pingouin 0.7.0 `mixed_anova` (tests/reference/repeated_measures.json,
+/// `with_groups_first_a_level`): three unequal groups, B at four occasions.
+#[test]
+fn a_between_subject_factor_matches_pingouin() {
+    let reference: Value = serde_json::from_str(
+        &std::fs::read_to_string(format!(
+            "{}/tests/reference/repeated_measures.json",
+            env!("CARGO_MANIFEST_DIR")
+        ))
+        .unwrap(),
+    )
+    .unwrap();
+    let mut csv = String::from("subject,group,B,y\n");
+    for (s, subject) in reference["subjects"].as_array().unwrap().iter().enumerate() {
+        let y = subject["y"].as_array().unwrap();
+        // A's first level: occasions 0..4 (A varies slowest).
+        for (b, v) in y.iter().take(4).enumerate() {
+            csv.push_str(&format!(
+                "S{s:02},G{},B{b},{}\n",
+                subject["group"],
+                v.as_f64().unwrap()
+            ));
+        }
+    }
+    let doc = "# Groups\n\n```anova\nid: g\ndata: d.csv\nmodel: y ~ group * B\nsubject: subject\ncompare: none\n```\n";
+    let r = build(doc, &[("d.csv", csv)]).expect("builds");
+    let b = &r["blocks"][0];
+    assert_eq!(b["repeated"]["between"], serde_json::json!(["group"]));
+    let want = &reference["with_groups_first_a_level"];
+    for (term, key) in [("B", "B"), ("group:B", "Interaction")] {
+        let got = within(b, term);
+        let w = &want[key];
+        close(
+            &got["f"],
+            w["f [pingouin mixed_anova]"].as_f64().unwrap(),
+            "F",
+        );
+        close(
+            &got["p"],
+            w["p [pingouin mixed_anova]"].as_f64().unwrap(),
+            "p",
+        );
+        close(
+            &got["p_gg"],
+            w["p_gg [pingouin mixed_anova]"].as_f64().unwrap(),
+            "p GG",
+        );
+        close(
+            &got["sphericity"]["gg_epsilon"],
+            w["eps_gg [pingouin mixed_anova]"].as_f64().unwrap(),
+            "GG epsilon",
+        );
+    }
+    close(
+        &within(b, "B")["sphericity"]["mauchly_w"],
+        want["B"]["mauchly_w [pingouin mixed_anova]"]
+            .as_f64()
+            .unwrap(),
+        "Mauchly W",
+    );
+}
+
+/// A factor that varies within some subjects and not in others is refused
+/// with the subjects that break it (invented data).
+#[test]
+fn a_factor_neither_within_nor_between_is_refused() {
+    let csv = "animal,diet,week,w\n1,A,1,10\n1,A,2,12\n2,A,1,11\n2,B,2,13\n3,B,1,9\n3,B,1,10\n";
+    let doc = "# Pens\n\n```anova\nid: p\ndata: d.csv\nmodel: w ~ diet * week\nsubject: animal\ncompare: none\n```\n";
+    let err = build(doc, &[("d.csv", csv.to_string())]).expect_err("refused");
+    assert!(err.contains("varies within some subjects"), "{err}");
+}
+
+#[test]
+fn subject_with_random_is_refused_at_the_plan_stage() {
+    let doc =
+        "# x\n\n```anova\nid: p\ndata: d.csv\nmodel: w ~ week\nsubject: animal\nrandom: pen\n```\n";
+    let err = build(doc, &[("d.csv", "animal,pen,week,w\n1,1,1,2\n".into())]).expect_err("refused");
+    assert!(err.contains("`subject` and `random` together"), "{err}");
+}
