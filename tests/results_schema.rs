@@ -94,6 +94,63 @@ mod contract {
         pub strata: Option<Vec<StratumRow>>,
         #[serde(default, deserialize_with = "present")]
         pub seds: Option<Vec<SedRow>>,
+        #[serde(default, deserialize_with = "present")]
+        pub repeated: Option<Repeated>,
+    }
+
+    /// README: "`repeated` with `subject`, `within` and `between` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Repeated {
+        pub subject: String,
+        pub within: Vec<String>,
+        pub between: Vec<String>,
+        pub subjects: u64,
+        pub complete_subjects: u64,
+        pub incomplete: Vec<String>,
+        pub incomplete_count: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub univariate: Option<Vec<WithinTerm>>,
+        #[serde(default, deserialize_with = "present")]
+        pub univariate_not_computed: Option<String>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct WithinTerm {
+        pub term: String,
+        pub df: f64,
+        pub df_den: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub f: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_gg: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_hf: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_lower_bound: Option<f64>,
+        pub sphericity: Sphericity,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Sphericity {
+        #[serde(deserialize_with = "nullable")]
+        pub mauchly_w: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub chi_sq: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<u64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub gg_epsilon: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub hf_epsilon: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub hf_epsilon_uncapped: Option<f64>,
     }
 
     #[derive(Deserialize)]
@@ -775,6 +832,58 @@ fn check_file(case: &Path, format: Format, r: &ResultsFile, name: &str) -> Vec<S
     p.list
 }
 
+/// README: `complete_subjects` of `subjects`, the others counted in
+/// `incomplete_count`; corrected p-values multiply both df by ε ≤ 1, so
+/// they are never below the uncorrected p; ε (GG) lies in [1/df, 1].
+fn check_repeated(p: &mut Problems, at: &str, r: &Repeated) {
+    p.require(
+        r.complete_subjects + r.incomplete_count == r.subjects,
+        at,
+        "complete and incomplete subjects do not add up",
+    );
+    p.require(
+        r.incomplete.len() as u64 == r.incomplete_count.min(100),
+        at,
+        "incomplete lists more or fewer subjects than counted",
+    );
+    p.require(
+        r.univariate.is_some() != r.univariate_not_computed.is_some(),
+        at,
+        "univariate and univariate_not_computed: exactly one is given",
+    );
+    for t in r.univariate.iter().flatten() {
+        let at = format!("{at}: within term {}", t.term);
+        for q in [t.p, t.p_gg, t.p_hf, t.p_lower_bound] {
+            p.require(is_probability(q), &at, "a p-value is not a probability");
+        }
+        let (raw, gg, hf, lb) = (
+            t.p.unwrap_or(f64::NAN),
+            t.p_gg.unwrap_or(f64::NAN),
+            t.p_hf.unwrap_or(f64::NAN),
+            t.p_lower_bound.unwrap_or(f64::NAN),
+        );
+        // Rounding of the F tail: 1e-12 relative.
+        let tol = 1e-12 * raw.max(f64::MIN_POSITIVE);
+        p.require(
+            gg >= raw - tol && hf >= raw - tol && lb >= gg - tol,
+            &at,
+            "a corrected p is below the uncorrected one (or the lower bound below GG)",
+        );
+        let eps = t.sphericity.gg_epsilon.unwrap_or(f64::NAN);
+        p.require(
+            eps <= 1.0 + 1e-12 && eps >= 1.0 / t.df - 1e-12,
+            &at,
+            "the Greenhouse-Geisser epsilon is outside [1/df, 1]",
+        );
+        // Without a Mauchly test (one contrast) sphericity holds: ε = 1.
+        p.require(
+            t.sphericity.mauchly_w.is_some() || eps == 1.0,
+            &at,
+            "no Mauchly test, yet an epsilon below 1",
+        );
+    }
+}
+
 /// README: a figure has the id `<block>-<kind>` (`<block>-<kind>-<factor>` for the further
 /// factors of a factorial), `file` null when the SVG is inlined in HTML and the file beside a
 /// Markdown report (`<report>-<figure>.svg`, or `.png`) otherwise, and the SHA-256 of its SVG.
@@ -826,6 +935,9 @@ fn check_figures(
 /// The invariants README states for an `anova` block's record.
 fn check_anova(p: &mut Problems, at: &str, b: &AnovaBlock) {
     p.require(0.0 < b.alpha && b.alpha < 1.0, at, "alpha is not in (0, 1)");
+    if let Some(r) = &b.repeated {
+        check_repeated(p, at, r);
+    }
     p.require(
         b.n_excluded == b.excluded.len() as u64,
         at,

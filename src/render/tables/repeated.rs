@@ -80,9 +80,16 @@ fn within_notes(r: &RepeatedDetail, tests: &[WithinTest]) -> Vec<String> {
         list(&r.between)
     )];
     if r.incomplete_count > 0 {
+        let (lack, have) = if r.incomplete_count == 1 {
+            ("lacks", "has")
+        } else {
+            ("lack", "have")
+        };
         notes.push(format!(
-            "{} of {} subjects lack an observation at some occasion (or have two) and are left out of this table (listed in the results file); the mixed model above uses every observation.",
-            r.incomplete_count, r.subjects
+            "{} of {} subjects {lack} an observation at some occasion (or {have} two) and {} left out of this table (listed in the results file); the mixed model above uses every observation.",
+            r.incomplete_count,
+            r.subjects,
+            if r.incomplete_count == 1 { "is" } else { "are" }
         ));
     }
     notes.push(format!(
