@@ -313,6 +313,51 @@ struct BlockContext {
     sd: Option<BTreeMap<String, f64>>,
     #[serde(skip_serializing_if = "Option::is_none")]
     fit: Option<FitContext>,
+    /// Repeated-measures blocks: within.<term> with the univariate test,
+    /// its corrected p-values and the sphericity test.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    within: Option<BTreeMap<String, WithinContext>>,
+}
+
+#[derive(Serialize)]
+struct WithinContext {
+    f: f64,
+    df: f64,
+    df_den: f64,
+    p: f64,
+    p_gg: f64,
+    p_hf: f64,
+    gg_epsilon: f64,
+    hf_epsilon: f64,
+    mauchly_w: Option<f64>,
+    mauchly_p: Option<f64>,
+}
+
+/// The univariate within-subject tests by term, when there are any.
+fn within_context(o: &LinearOutcome) -> Option<BTreeMap<String, WithinContext>> {
+    let tests = o.repeated.as_ref()?.univariate.as_ref().ok()?;
+    Some(
+        tests
+            .iter()
+            .map(|t| {
+                (
+                    t.term.clone(),
+                    WithinContext {
+                        f: t.f,
+                        df: t.df,
+                        df_den: t.df_den,
+                        p: t.p,
+                        p_gg: t.p_gg,
+                        p_hf: t.p_hf,
+                        gg_epsilon: t.gg_epsilon,
+                        hf_epsilon: t.hf_epsilon,
+                        mauchly_w: t.sphericity.as_ref().map(|m| m.w),
+                        mauchly_p: t.sphericity.as_ref().map(|m| m.p),
+                    },
+                )
+            })
+            .collect(),
+    )
 }
 
 #[derive(Serialize)]
@@ -538,6 +583,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
             bic: m.fit.bic,
             iterations: m.fit.iterations,
         }),
+        within: within_context(o),
     }
 }
 #[derive(Serialize)]
