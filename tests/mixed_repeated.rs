@@ -11,7 +11,7 @@
 
 use sheaf::stats::linear::Layout;
 use sheaf::stats::mixed::{
-    self, Ddf, FixedDesign, Information, RepeatedFit, RepeatedLayout, Structure,
+    self, Ddf, FixedDesign, Information, MixedError, RepeatedFit, RepeatedLayout, Structure,
 };
 
 struct Sleep {
@@ -237,4 +237,310 @@ fn unstructured_reproduces_hotelling() {
     close(kr.lambda, 9.0 / 17.0, TIGHT, "UN KR lambda");
     close(kr.p_value, 0.0082517245231, 1e-6, "UN KR p");
     assert_eq!(f.parameters.len(), 55);
+}
+
+/// spec 9.4 C remark: with complete data and a saturated mean, the UN
+/// estimate is the sample covariance matrix of the 10 days (closed form,
+/// computed here directly from the data).
+#[test]
+fn unstructured_estimate_is_the_sample_covariance() {
+    let s = sleepstudy();
+    let (f, _) = fit(Structure::Unstructured);
+    let mut by = vec![[0.0f64; 10]; 18];
+    for i in 0..s.y.len() {
+        by[s.subject[i]][s.days[i]] = s.y[i];
+    }
+    let mean: Vec<f64> = (0..10)
+        .map(|j| by.iter().map(|r| r[j]).sum::<f64>() / 18.0)
+        .collect();
+    for j in 0..10 {
+        for l in 0..10 {
+            let c: f64 = by
+                .iter()
+                .map(|r| (r[j] - mean[j]) * (r[l] - mean[l]))
+                .sum::<f64>()
+                / 17.0;
+            let found = f.covariance[j][l];
+            assert!(
+                (found - c).abs() <= 1e-8 * f.covariance[j][j].max(f.covariance[l][l]),
+                "Sigma({j},{l}): {found} vs {c}"
+            );
+        }
+    }
+}
+
+/// spec 9.6 item 5: the order of the rows changes nothing.
+#[test]
+fn row_order_does_not_matter() {
+    let s = sleepstudy();
+    let n = s.y.len();
+    // A fixed scramble: stride 77 through the 180 rows (77 and 180 coprime).
+    let order: Vec<usize> = (0..n).map(|i| (i * 77) % n).collect();
+    let t = Sleep {
+        y: order.iter().map(|&i| s.y[i]).collect(),
+        days: order.iter().map(|&i| s.days[i]).collect(),
+        subject: order.iter().map(|&i| s.subject[i]).collect(),
+    };
+    for structure in [Structure::Autoregressive, Structure::Unstructured] {
+        let (a, da) = fit(structure);
+        let dt = design(&t.days);
+        let b = mixed::fit_repeated(&t.y, &dt, &layout(&t), structure).unwrap();
+        close(b.criterion, a.criterion, 1e-12, "permuted criterion");
+        for (x, y) in a.parameters.iter().zip(&b.parameters) {
+            close(y.value, x.value, 1e-10, "permuted parameter");
+        }
+        let ta = a.type3(&da, 0, Ddf::KenwardRoger).unwrap();
+        let tb = b.type3(&dt, 0, Ddf::KenwardRoger).unwrap();
+        close(tb.f, ta.f, 1e-10, "permuted F");
+        close(tb.df_den, ta.df_den, 1e-10, "permuted df");
+    }
+}
+
+/// Rows 17, 34, …, 170 deleted (spec 9.4 D's INVENTED deletion pattern):
+/// every subject stays in (spec 7.5), and compound symmetry with a positive
+/// common covariance is the random-intercept model, so it must equal
+/// `mixed::fit` with a random subject term (a different implementation:
+/// cross-products and the Woodbury identity) on every reported quantity.
+#[test]
+fn incomplete_subjects_stay_in_and_cs_equals_a_random_intercept() {
+    let s = sleepstudy();
+    let keep: Vec<usize> = (0..s.y.len()).filter(|i| (i + 1) % 17 != 0).collect();
+    let t = Sleep {
+        y: keep.iter().map(|&i| s.y[i]).collect(),
+        days: keep.iter().map(|&i| s.days[i]).collect(),
+        subject: keep.iter().map(|&i| s.subject[i]).collect(),
+    };
+    assert_eq!(t.y.len(), 170);
+    let d = design(&t.days);
+    let cs = mixed::fit_repeated(&t.y, &d, &layout(&t), Structure::CompoundSymmetry).unwrap();
+    assert_eq!((cs.observations, cs.subjects), (170, 18));
+    let subject = mixed::RandomTerm {
+        name: "Subject".into(),
+        levels: 18,
+        level_of: t.subject.clone(),
+    };
+    let vc = mixed::fit(&t.y, &d, &[subject]).unwrap();
+    close(
+        cs.parameters[0].value,
+        vc.components[0].variance,
+        1e-8,
+        "D: subject variance",
+    );
+    close(
+        cs.parameters[1].value,
+        vc.components[1].variance,
+        1e-8,
+        "D: residual",
+    );
+    close(cs.criterion, vc.criterion, 1e-12, "D: criterion");
+    close(
+        cs.criterion_as_fitted,
+        vc.criterion_as_fitted,
+        1e-12,
+        "D: criterion as fitted",
+    );
+    for method in [
+        Ddf::KenwardRoger,
+        Ddf::Satterthwaite(Information::Observed),
+        Ddf::Satterthwaite(Information::Expected),
+    ] {
+        let a = cs.type3(&d, 0, method).unwrap();
+        let b = vc.type3(&d, 0, method).unwrap();
+        close(a.f, b.f, 1e-8, "D: F Days");
+        close(a.df_den, b.df_den, 1e-8, "D: df Days");
+        let mut l = vec![0.0; cs.beta.len()];
+        l[0] = 1.0;
+        l[3] = 1.0;
+        let ca = cs.contrast(&l, method).unwrap();
+        let cb = vc.contrast(&l, method).unwrap();
+        close(ca.se, cb.se, 1e-8, "D: contrast SE");
+        close(ca.df, cb.df, 1e-8, "D: contrast df");
+    }
+    let ar = mixed::fit_repeated(&t.y, &d, &layout(&t), Structure::Autoregressive).unwrap();
+    assert_eq!((ar.observations, ar.subjects), (170, 18));
+    let kr = ar.type3(&d, 0, Ddf::KenwardRoger).unwrap();
+    assert!(kr.df_den > 1.0 && kr.f > 0.0 && kr.p_value < 0.05, "{kr:?}");
+    // UN here has no maximum: the 8 complete subjects' residuals span at
+    // most 8 of the 10 dimensions, so Σ may shrink towards singular along
+    // a direction orthogonal to them while the incomplete subjects' blocks
+    // stay regular, and d falls without bound. The fit must say so with an
+    // error value rather than return a degenerate Σ.
+    assert!(mixed::fit_repeated(&t.y, &d, &layout(&t), Structure::Unstructured).is_err());
+}
+
+/// AR(1) in time units of half a day (times 0, 2, 4, …): ρ becomes √ρ per
+/// unit and nothing else changes; times 0, 1, …, 9 given explicitly equal
+/// the default.
+#[test]
+fn autoregressive_time_units_change_only_rho() {
+    let s = sleepstudy();
+    let d = design(&s.days);
+    let (base, _) = fit(Structure::Autoregressive);
+    let mut lay = layout(&s);
+    lay.times = Some((0..10).map(|j| j as f64).collect());
+    let same = mixed::fit_repeated(&s.y, &d, &lay, Structure::Autoregressive).unwrap();
+    assert_eq!(same.criterion, base.criterion);
+    lay.times = Some((0..10).map(|j| 2.0 * j as f64).collect());
+    let doubled = mixed::fit_repeated(&s.y, &d, &lay, Structure::Autoregressive).unwrap();
+    close(
+        doubled.criterion,
+        base.criterion,
+        1e-12,
+        "time units: criterion",
+    );
+    close(
+        doubled.parameters[1].value,
+        base.parameters[1].value.sqrt(),
+        1e-9,
+        "time units: rho",
+    );
+    let l = d.type3_rows(0).unwrap();
+    let a = base.wald_first_order(&l).unwrap();
+    let b = doubled.wald_first_order(&l).unwrap();
+    close(b.f, a.f, 1e-8, "time units: first-order KR F");
+    close(b.df_den, a.df_den, 1e-8, "time units: KR df");
+}
+
+/// Bad input is an error value naming what is wrong.
+#[test]
+fn bad_layouts_are_refused() {
+    let s = sleepstudy();
+    let d = design(&s.days);
+    let run = |lay: &RepeatedLayout, st: Structure| mixed::fit_repeated(&s.y, &d, lay, st);
+    let mut short = layout(&s);
+    short.subject_of.pop();
+    let err = run(&short, Structure::CompoundSymmetry).unwrap_err();
+    assert!(
+        matches!(
+            err,
+            MixedError::LengthMismatch {
+                expected: 180,
+                found: 179,
+                ..
+            }
+        ),
+        "{err:?}"
+    );
+    let mut short = layout(&s);
+    short.occasion_of.truncate(10);
+    assert!(matches!(
+        run(&short, Structure::Autoregressive).unwrap_err(),
+        MixedError::LengthMismatch { found: 10, .. }
+    ));
+    let mut out = layout(&s);
+    out.occasion_of[5] = 10;
+    let err = run(&out, Structure::CompoundSymmetry).unwrap_err();
+    assert_eq!(
+        err,
+        MixedError::LevelOutOfRange {
+            term: "occasion".into(),
+            row: 5,
+            level: 10,
+            levels: 10
+        }
+    );
+    let mut twice = layout(&s);
+    twice.occasion_of[1] = 0;
+    let err = run(&twice, Structure::Unstructured).unwrap_err();
+    assert_eq!(
+        err,
+        MixedError::RepeatedOccasion {
+            occasion: 0,
+            first_row: 0,
+            second_row: 1
+        }
+    );
+    assert!(err.to_string().contains("rows 1 and 2"), "{err}");
+    // UN on 10 occasions needs 11 subjects: keep 10.
+    let keep: Vec<usize> = (0..s.y.len()).filter(|&i| s.subject[i] < 10).collect();
+    let few = Sleep {
+        y: keep.iter().map(|&i| s.y[i]).collect(),
+        days: keep.iter().map(|&i| s.days[i]).collect(),
+        subject: keep.iter().map(|&i| s.subject[i]).collect(),
+    };
+    let err = mixed::fit_repeated(
+        &few.y,
+        &design(&few.days),
+        &layout(&few),
+        Structure::Unstructured,
+    )
+    .unwrap_err();
+    assert!(
+        matches!(
+            err,
+            MixedError::TooFewSubjects {
+                subjects: 10,
+                needed: 11,
+                ..
+            }
+        ),
+        "{err:?}"
+    );
+    let mut times = layout(&s);
+    times.times = Some(vec![0.0; 9]);
+    assert!(matches!(
+        run(&times, Structure::Autoregressive).unwrap_err(),
+        MixedError::LengthMismatch {
+            expected: 10,
+            found: 9,
+            ..
+        }
+    ));
+    times.times = Some((0..10).map(|j| (j / 2) as f64).collect());
+    assert!(matches!(
+        run(&times, Structure::Autoregressive).unwrap_err(),
+        MixedError::BadTimes { .. }
+    ));
+    times.times = Some(
+        (0..10)
+            .map(|j| if j == 3 { f64::NAN } else { j as f64 })
+            .collect(),
+    );
+    assert!(matches!(
+        run(&times, Structure::Autoregressive).unwrap_err(),
+        MixedError::BadTimes { .. }
+    ));
+    let mut huge = layout(&s);
+    huge.occasions = usize::MAX;
+    assert!(matches!(
+        run(&huge, Structure::Unstructured).unwrap_err(),
+        MixedError::TooLarge { .. }
+    ));
+}
+
+/// Days 0 and 9 never on the same subject: UN cannot estimate their
+/// covariance and says so.
+#[test]
+fn occasions_never_together_are_refused_for_unstructured() {
+    let s = sleepstudy();
+    let keep: Vec<usize> = (0..s.y.len())
+        .filter(|&i| {
+            let even = s.subject[i].is_multiple_of(2);
+            !(s.days[i] == 0 && even || s.days[i] == 9 && !even)
+        })
+        .collect();
+    let t = Sleep {
+        y: keep.iter().map(|&i| s.y[i]).collect(),
+        days: keep.iter().map(|&i| s.days[i]).collect(),
+        subject: keep.iter().map(|&i| s.subject[i]).collect(),
+    };
+    let err = mixed::fit_repeated(&t.y, &design(&t.days), &layout(&t), Structure::Unstructured)
+        .unwrap_err();
+    assert_eq!(
+        err,
+        MixedError::OccasionsNeverTogether {
+            first: 0,
+            second: 9
+        }
+    );
+    // The two-parameter structures still fit.
+    assert!(
+        mixed::fit_repeated(
+            &t.y,
+            &design(&t.days),
+            &layout(&t),
+            Structure::Autoregressive
+        )
+        .is_ok()
+    );
 }

@@ -84,6 +84,11 @@ impl Pattern {
         self.structure.parameter_count(self.k)
     }
 
+    /// The (j, l) of unstructured parameter i.
+    pub fn pair(&self, i: usize) -> (usize, usize) {
+        self.pairs[i]
+    }
+
     pub fn param_name(&self, i: usize) -> String {
         match (self.structure, i) {
             (Structure::CompoundSymmetry, 0) => "common covariance".into(),

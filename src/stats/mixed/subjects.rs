@@ -19,7 +19,7 @@ use super::design::FixedDesign;
 use super::error::MixedError;
 use super::model::{CovarianceModel, Derivatives, FixedEffects};
 use super::repeated_layout::SubjectRows;
-use super::structure::Pattern;
+use super::structure::{Pattern, Structure};
 
 /// The covariance structure over the subjects' observations.
 #[derive(Debug, Clone)]
@@ -175,13 +175,53 @@ impl SubjectBlocks {
         })
     }
 
-    /// The starting points of the structure, each with σ² profiled.
+    /// The starting points of the structure, each with σ² profiled; UN
+    /// starts from the moments of the OLS residuals instead of Σ = I.
     pub fn starts(&self) -> Result<Vec<Vec<f64>>, MixedError> {
-        self.pattern
-            .starts()
-            .iter()
-            .map(|s| self.profile_scale(s))
-            .collect()
+        let mut starts = self.pattern.starts();
+        if self.pattern.structure == Structure::Unstructured {
+            starts = vec![self.residual_moments()?];
+        }
+        starts.iter().map(|s| self.profile_scale(s)).collect()
+    }
+
+    /// UN start: Σⱼₗ = the mean of rⱼrₗ over the subjects observed at both
+    /// occasions (r the OLS residuals), the off-diagonal part shrunk by
+    /// powers of 0.9 until Σ is positive definite (pairwise moments need
+    /// not be); Σ = I when nothing works.
+    fn residual_moments(&self) -> Result<Vec<f64>, MixedError> {
+        let (k, p) = (self.pattern.k, self.p);
+        let (mut xtx, mut xty) = (DMatrix::zeros(p, p), DVector::zeros(p));
+        for b in &self.blocks {
+            xtx += b.x.transpose() * &b.x;
+            xty += b.x.transpose() * &b.y;
+        }
+        let beta = xtx.cholesky().ok_or(singular("X'X"))?.solve(&xty);
+        let (mut sum, mut count) = (DMatrix::<f64>::zeros(k, k), DMatrix::<f64>::zeros(k, k));
+        for b in &self.blocks {
+            let r = &b.y - &b.x * &beta;
+            for (u, &j) in b.occasions.iter().enumerate() {
+                for (v, &l) in b.occasions.iter().enumerate() {
+                    sum[(j, l)] += r[u] * r[v];
+                    count[(j, l)] += 1.0;
+                }
+            }
+        }
+        let moments = sum.zip_map(&count, |s, c| if c > 0.0 { s / c } else { 0.0 });
+        let mut shrink = 1.0;
+        for _ in 0..60 {
+            let psi: Vec<f64> = (0..self.pattern.n_params())
+                .map(|i| {
+                    let (j, l) = self.pattern.pair(i);
+                    moments[(j, l)] * if j == l { 1.0 } else { shrink }
+                })
+                .collect();
+            if self.pattern.admissible(&psi) {
+                return Ok(psi);
+            }
+            shrink *= 0.9;
+        }
+        Ok(self.pattern.starts().swap_remove(0))
     }
 
     fn block_terms(&self, psi: &[f64], i: usize, solved: &Solved, params: &[usize]) -> BlockTerms {
@@ -334,8 +374,7 @@ impl CovarianceModel for SubjectBlocks {
     }
 
     fn start(&self) -> Result<Vec<f64>, MixedError> {
-        let first = self.pattern.starts().swap_remove(0);
-        self.profile_scale(&first)
+        Ok(self.starts()?.swap_remove(0))
     }
 
     fn derivatives(&self, psi: &[f64]) -> Result<Derivatives, MixedError> {
