@@ -544,3 +544,83 @@ fn occasions_never_together_are_refused_for_unstructured() {
         .is_ok()
     );
 }
+
+/// Compound symmetry allows a negative common covariance (spec 2.3.1):
+/// on complete balanced data REML gives the ANOVA estimates
+/// σ²ₛ = (MS_subject − MS_error)/k and σ² = MS_error even when the first is
+/// negative, and F(occasion) = MS_occasion/MS_error on (n − 1)(k − 1) df.
+/// The mean squares are computed here from the definitions (closed form).
+#[test]
+fn compound_symmetry_takes_a_negative_common_covariance() {
+    // INVENTED: 6 subjects × 4 occasions with nearly equal subject means.
+    let table = [
+        [10.0, 12.9, 11.1, 14.0],
+        [11.9, 11.0, 13.8, 11.3],
+        [10.4, 13.2, 12.0, 12.6],
+        [12.6, 11.3, 12.4, 12.1],
+        [11.1, 12.2, 13.0, 12.3],
+        [12.3, 12.5, 11.2, 12.8],
+    ];
+    let (n, k) = (6usize, 4usize);
+    let (mut y, mut subject, mut occasion) = (vec![], vec![], vec![]);
+    for (s, row) in table.iter().enumerate() {
+        for (o, v) in row.iter().enumerate() {
+            y.push(*v);
+            subject.push(s);
+            occasion.push(o);
+        }
+    }
+    let grand = y.iter().sum::<f64>() / (n * k) as f64;
+    let row_mean = |s: usize| table[s].iter().sum::<f64>() / k as f64;
+    let col_mean = |o: usize| table.iter().map(|r| r[o]).sum::<f64>() / n as f64;
+    let ss_subject: f64 = (0..n)
+        .map(|s| k as f64 * (row_mean(s) - grand).powi(2))
+        .sum();
+    let ss_occasion: f64 = (0..k)
+        .map(|o| n as f64 * (col_mean(o) - grand).powi(2))
+        .sum();
+    let ss_total: f64 = y.iter().map(|v| (v - grand).powi(2)).sum();
+    let df_error = ((n - 1) * (k - 1)) as f64;
+    let ms_error = (ss_total - ss_subject - ss_occasion) / df_error;
+    let ms_subject = ss_subject / (n - 1) as f64;
+    let expected_cov = (ms_subject - ms_error) / k as f64;
+    assert!(
+        expected_cov < 0.0,
+        "the invented data must give a negative estimate"
+    );
+    let d = FixedDesign::new(
+        &Layout {
+            levels: vec![k],
+            rows: occasion.iter().map(|o| vec![*o]).collect(),
+        },
+        &[vec![0]],
+    );
+    let lay = RepeatedLayout {
+        subjects: n,
+        subject_of: subject,
+        occasions: k,
+        occasion_of: occasion,
+        times: None,
+    };
+    let f = mixed::fit_repeated(&y, &d, &lay, Structure::CompoundSymmetry).unwrap();
+    close(
+        f.parameters[0].value,
+        expected_cov,
+        1e-8,
+        "negative common covariance",
+    );
+    close(
+        f.parameters[1].value,
+        ms_error,
+        1e-8,
+        "CS residual = MS error",
+    );
+    let t = f.type3(&d, 0, Ddf::KenwardRoger).unwrap();
+    close(
+        t.f,
+        ss_occasion / (k - 1) as f64 / ms_error,
+        1e-8,
+        "CS F = univariate F",
+    );
+    close(t.df_den, df_error, 1e-8, "CS KR df");
+}

@@ -94,6 +94,28 @@ fn inner(a: &DMatrix<f64>, b: &DMatrix<f64>) -> f64 {
     a.iter().zip(b.iter()).map(|(x, y)| x * y).sum()
 }
 
+/// The matrices as the columns of one matrix (each read column-major).
+fn columns_of<R, C, S>(mats: &[nalgebra::Matrix<f64, R, C, S>]) -> DMatrix<f64>
+where
+    R: nalgebra::Dim,
+    C: nalgebra::Dim,
+    S: nalgebra::RawStorage<f64, R, C> + nalgebra::IsContiguous,
+{
+    let len = mats.first().map_or(0, |m| m.len());
+    DMatrix::from_iterator(
+        len,
+        mats.len(),
+        mats.iter().flat_map(|m| m.as_slice().iter().copied()),
+    )
+}
+
+/// Matrices of equal shape side by side, [M₁ … M_K].
+fn side_by_side(mats: &[DMatrix<f64>]) -> DMatrix<f64> {
+    let rows = mats.first().map_or(0, |m| m.nrows());
+    let cols = mats.iter().map(|m| m.ncols()).sum();
+    DMatrix::from_iterator(rows, cols, mats.iter().flat_map(|m| m.iter().copied()))
+}
+
 impl SubjectBlocks {
     pub fn new(
         y: &[f64],
@@ -257,23 +279,21 @@ impl SubjectBlocks {
             let de: Vec<DVector<f64>> = t.d.iter().map(|d| d * e).collect();
             let ge: Vec<DVector<f64>> = t.g.iter().map(|g| g * e).collect();
             let hphi: Vec<DMatrix<f64>> = t.h.iter().map(|h| h * &solved.phi).collect();
-            for k in 0..np {
-                out.tr_sd[k] += t.g[k].trace();
-                out.e_d_e[k] += e.dot(&de[k]);
-                out.p[k] -= a.transpose() * &t.h[k];
-                out.u[k] += t.h[k].transpose() * e;
-                for (l, (wl, (gl, gel))) in t.w.iter().zip(t.g.iter().zip(&ge)).enumerate() {
-                    out.tr_phi_q[(k, l)] += inner(&hphi[k], wl);
-                    if l <= k {
-                        out.tr_gg[(k, l)] += inner(&t.g[k], &gl.transpose());
-                        out.d_s_d[(k, l)] += de[k].dot(gel);
-                    }
-                }
+            let g_t: Vec<DMatrix<f64>> = t.g.iter().map(|g| g.transpose()).collect();
+            for (k, (g, (h, dek))) in t.g.iter().zip(t.h.iter().zip(&de)).enumerate() {
+                out.tr_sd[k] += g.trace();
+                out.e_d_e[k] += e.dot(dek);
+                out.p[k] -= a.transpose() * h;
+                out.u[k] += h.transpose() * e;
             }
+            // Each pairwise sum of products is one matrix product of the
+            // terms laid out as columns: tr(ΦQₐ_b) = ⟨HₐΦ, W_b⟩,
+            // tr(GₐG_b) = ⟨Gₐ, G_b'⟩, (Dₐe)'(G_be).
+            out.tr_phi_q += columns_of(&hphi).transpose() * columns_of(&t.w);
+            out.tr_gg += columns_of(&t.g).transpose() * columns_of(&g_t);
+            out.d_s_d += columns_of(&de).transpose() * columns_of(&ge);
             self.add_second(psi, i, solved, &t, &mut out.second);
         }
-        out.tr_gg.fill_upper_triangle_with_lower_triangle();
-        out.d_s_d.fill_upper_triangle_with_lower_triangle();
         out
     }
 
@@ -311,15 +331,21 @@ impl SubjectBlocks {
         let solved = self.solve(psi)?;
         let (nf, p) = (free.len(), self.p);
         let mut pm = vec![DMatrix::zeros(p, p); nf];
-        let mut q = vec![vec![DMatrix::zeros(p, p); nf]; nf];
+        // All Qₐ_b at once: [H₁ … H_K]'[W₁ … W_K], K·p square.
+        let mut q_all = DMatrix::zeros(nf * p, nf * p);
         let mut r = vec![vec![DMatrix::zeros(p, p); nf]; nf];
         for i in 0..self.blocks.len() {
             let t = self.block_terms(psi, i, &solved, free);
             let a = &solved.a[i];
+            q_all.gemm(
+                1.0,
+                &side_by_side(&t.h).transpose(),
+                &side_by_side(&t.w),
+                1.0,
+            );
             for k in 0..nf {
                 pm[k] -= a.transpose() * &t.h[k];
                 for l in 0..nf {
-                    q[k][l] += t.h[k].transpose() * &t.w[l];
                     if let Some(full) = self.pattern.second(psi, free[k], free[l]) {
                         let dkl = Self::restrict(&full, &self.blocks[i].occasions);
                         r[k][l] += a.transpose() * dkl * a;
@@ -327,6 +353,13 @@ impl SubjectBlocks {
                 }
             }
         }
+        let q = (0..nf)
+            .map(|k| {
+                (0..nf)
+                    .map(|l| q_all.view((k * p, l * p), (p, p)).clone_owned())
+                    .collect()
+            })
+            .collect();
         let fe = FixedEffects {
             beta: solved.beta.iter().copied().collect(),
             phi: solved.phi,
