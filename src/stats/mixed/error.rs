@@ -52,6 +52,23 @@ pub enum MixedError {
     BadHypothesis { reason: String },
     /// A profile-likelihood limit could not be bracketed.
     ProfileFailed { parameter: String },
+    /// Two observations of one subject at the same occasion.
+    RepeatedOccasion {
+        occasion: usize,
+        first_row: usize,
+        second_row: usize,
+    },
+    /// The occasions' times are not one finite, distinct number each.
+    BadTimes { reason: String },
+    /// Too few subjects to estimate the structure.
+    TooFewSubjects {
+        structure: &'static str,
+        subjects: usize,
+        needed: usize,
+    },
+    /// Two occasions never observed on one subject: their covariance
+    /// does not enter the likelihood.
+    OccasionsNeverTogether { first: usize, second: usize },
 }
 
 impl fmt::Display for MixedError {
@@ -122,6 +139,34 @@ impl fmt::Display for MixedError {
                     "the profile likelihood of '{parameter}' could not be bracketed"
                 )
             }
+            Self::RepeatedOccasion {
+                occasion,
+                first_row,
+                second_row,
+            } => write!(
+                f,
+                "rows {} and {} are the same subject at the same occasion ({}); each subject may be \
+                 measured once per occasion",
+                first_row + 1,
+                second_row + 1,
+                occasion + 1
+            ),
+            Self::BadTimes { reason } => write!(f, "the occasions' times are not usable: {reason}"),
+            Self::TooFewSubjects {
+                structure,
+                subjects,
+                needed,
+            } => write!(
+                f,
+                "the {structure} covariance needs at least {needed} subjects with data; there are {subjects}"
+            ),
+            Self::OccasionsNeverTogether { first, second } => write!(
+                f,
+                "occasions {} and {} are never observed on the same subject, so their covariance \
+                 cannot be estimated; choose a structure with fewer parameters",
+                first + 1,
+                second + 1
+            ),
         }
     }
 }

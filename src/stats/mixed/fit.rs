@@ -159,7 +159,10 @@ fn validate(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<(),
 /// definite (spec 2.3.5). It is first scaled by the expected information's
 /// diagonal, so the test does not depend on the units of the parameters
 /// (variances of very different sizes are not a flat direction).
-fn check_identified(der: &super::model::Derivatives, free: &[usize]) -> Result<(), MixedError> {
+pub(super) fn check_identified(
+    der: &super::model::Derivatives,
+    free: &[usize],
+) -> Result<(), MixedError> {
     if free.is_empty() {
         return Ok(());
     }
@@ -214,13 +217,13 @@ fn df_inputs(
     ))
 }
 
-fn rows_of(m: &DMatrix<f64>) -> Vec<Vec<f64>> {
+pub(super) fn rows_of(m: &DMatrix<f64>) -> Vec<Vec<f64>> {
     (0..m.nrows())
         .map(|r| m.row(r).iter().copied().collect())
         .collect()
 }
 
-fn matrix_of(rows: &[Vec<f64>], width: usize) -> Result<DMatrix<f64>, MixedError> {
+pub(super) fn matrix_of(rows: &[Vec<f64>], width: usize) -> Result<DMatrix<f64>, MixedError> {
     if rows.is_empty() {
         return Err(MixedError::BadHypothesis {
             reason: "no rows".into(),

@@ -60,6 +60,11 @@
 //! **Extending.** The optimiser, the df code and the profiles see the
 //! model only through `model::CovarianceModel` (ψ, d, its derivatives, Φ,
 //! Pᵢ, Qᵢⱼ); R-side structures per subject are further implementations.
+//!
+//! **Repeated measures** ([`fit_repeated`]): y = Xβ + e with e independent
+//! between subjects and cov(e) = Σ(ψ) within a subject, restricted to the
+//! occasions it has (compound symmetry, AR(1), unstructured; spec 7.4,
+//! 7.5), computed per subject block, never as an N×N matrix.
 
 mod components;
 mod crossprod;
@@ -71,6 +76,10 @@ mod model;
 mod optimiser;
 mod prediction;
 mod profile;
+mod repeated_fit;
+mod repeated_layout;
+mod structure;
+mod subjects;
 
 pub use ddf::{ContrastTest, Ddf, DfMethod, Information, WaldTest};
 pub use design::{FixedDesign, RandomTerm};
@@ -78,3 +87,6 @@ pub use error::MixedError;
 pub use fit::{MAX_FIXED_COLUMNS, MAX_RANDOM_LEVELS, MixedFit, VarianceComponent, fit};
 pub use prediction::{PredictedTerm, Predictions};
 pub use profile::SdInterval;
+pub use repeated_fit::{CovarianceParameter, MAX_KR_ENTRIES, RepeatedFit, fit_repeated};
+pub use repeated_layout::{MAX_OCCASIONS, RepeatedLayout};
+pub use structure::Structure;

@@ -42,6 +42,12 @@ pub(crate) trait CovarianceModel {
     /// True when parameter i may reach 0 exactly (a variance component);
     /// false for a parameter that must stay strictly positive.
     fn may_be_zero(&self, i: usize) -> bool;
+    /// True when parameter i may take either sign (a covariance, a
+    /// correlation): the optimiser then neither projects nor shortens the
+    /// step for its sign, and `criterion` alone decides admissibility.
+    fn signed(&self, _i: usize) -> bool {
+        false
+    }
     /// d(ψ) in the coding-invariant form; `Err` when ψ is not admissible.
     fn criterion(&self, psi: &[f64]) -> Result<f64, MixedError>;
     /// The point with the overall scale re-optimised for the same relative

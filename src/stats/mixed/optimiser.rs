@@ -184,7 +184,7 @@ fn line_search(
 ) -> Result<Option<(Vec<f64>, f64)>, MixedError> {
     let mut t = 1.0f64;
     for (i, (&v, &s)) in psi.iter().zip(direction).enumerate() {
-        if !model.may_be_zero(i) && s < 0.0 && v + t * s <= 0.0 {
+        if !model.may_be_zero(i) && !model.signed(i) && s < 0.0 && v + t * s <= 0.0 {
             t = 0.5 * v / -s;
         }
     }
