@@ -65,6 +65,7 @@ mod components;
 mod crossprod;
 mod ddf;
 mod design;
+mod elimination;
 mod error;
 mod fit;
 mod model;
