@@ -103,7 +103,9 @@ impl VarianceComponents {
     fn inverse_all(&self, psi: &[f64]) -> Result<(f64, DMatrix<f64>), MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
         let factor = self.elimination.factor(&lambda)?;
-        Ok((sigma2, self.elimination.full(&factor)? / sigma2))
+        let mut m = self.elimination.full(&factor)?;
+        m.unscale_mut(sigma2);
+        Ok((sigma2, m))
     }
 
     /// Φ = (X'V⁻¹X)⁻¹ from M.

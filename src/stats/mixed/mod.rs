@@ -10,9 +10,12 @@
 //! (Henderson's mixed-model equations with the Woodbury identity, spec 2.2),
 //! so after one pass over the rows the cost depends on q + p, not on N; no
 //! N×N matrix is ever built, the Kenward-Roger and Satterthwaite matrices
-//! included. Dense work is O((q + p)³) per iteration; q is limited to
-//! [`MAX_RANDOM_LEVELS`] and p to [`MAX_FIXED_COLUMNS`] (an error names the
-//! sizes beyond that).
+//! included. The random term with the most levels (q₁ of them) is
+//! eliminated in closed form, since its Z'Z is diagonal, and the other
+//! q₂ = q − q₁ random columns by a dense Cholesky (`elimination`): the
+//! criterion costs O(q₁(q₂ + p)² + q₂³), the derivatives O(q²(q₂ + p))
+//! more, instead of O((q + p)³). q is limited to [`MAX_RANDOM_LEVELS`] and
+//! p to [`MAX_FIXED_COLUMNS`] (an error names the sizes beyond that).
 //!
 //! **Parameters and optimiser.** ψ = (σ²₁, …, σ²_J, σ²) on the
 //! variance scale (V linear in ψ, so KR's second-derivative terms vanish);
