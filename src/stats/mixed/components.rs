@@ -210,10 +210,11 @@ impl CovarianceModel for VarianceComponents {
         let phi = self.phi(&m)?;
         let (q, p, y) = (self.cp.q, self.cp.p, self.cp.y_index());
         // S = W'ΠW on Z ∪ y (ΠX = 0), with y last.
-        let keep: Vec<usize> = (0..q).chain(std::iter::once(y)).collect();
-        let sel = m.select_rows(&keep).select_columns(&keep);
-        let mx = m.select_rows(&keep).columns(q, p).clone_owned();
-        let s = &sel - &mx * &phi * mx.transpose();
+        let of = |k: usize| if k < q { k } else { y };
+        let mx = DMatrix::from_fn(q + 1, p, |r, c| m[(of(r), q + c)]);
+        let mut s = DMatrix::from_fn(q + 1, q + 1, |r, c| m[(of(r), of(c))]);
+        drop(m);
+        s.gemm(-1.0, &(&mx * &phi), &mx.transpose(), 1.0);
         let d = self.weights(psi, 1);
         let yi = q;
         let (t_diag, t_y) = through_identity_parts(&s, &d, yi, sigma2);
