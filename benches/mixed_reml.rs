@@ -1,7 +1,8 @@
 //! Timing of the REML core on invented split-plots: 50 blocks × 10
 //! whole-plot levels (500 whole plots) × 8 subplot levels × 5 samples
-//! (20,000 rows), and larger numbers of whole plots up to the dense
-//! method's limit on random-effect levels.
+//! (20,000 rows); the layout of `bench/mixed.sh` (100 blocks × 5 × 4 × 10,
+//! 20,000 rows, q = 600, p = 20); and larger numbers of whole plots up to
+//! the limit on random-effect levels.
 //!
 //! Prints one line per measurement: `name seconds rows random_levels iterations`.
 //! The data are invented (a fixed linear congruential sequence).
@@ -124,6 +125,7 @@ fn time_profiles(name: &str, blocks: usize, a: usize, b: usize, reps: usize) {
 fn main() {
     time_profiles("split_plot_2000_profiles", 50, 10, 4, 1);
     time("split_plot_20000", 50, 10, 8, 5);
+    time("split_plot_20000_p20", 100, 5, 4, 10);
     time("split_plot_q1100", 100, 10, 4, 2);
     time("split_plot_q1500_limit", 100, 14, 4, 2);
 }

@@ -8,9 +8,10 @@
 
 use std::f64::consts::PI;
 
-use nalgebra::{Cholesky, DMatrix, Dyn};
+use nalgebra::DMatrix;
 
 use super::crossprod::CrossProducts;
+use super::elimination::Elimination;
 use super::error::MixedError;
 use super::model::{CovarianceModel, Derivatives, FixedEffects};
 
@@ -19,6 +20,7 @@ use super::model::{CovarianceModel, Derivatives, FixedEffects};
 pub(crate) struct VarianceComponents {
     pub cp: CrossProducts,
     pub names: Vec<String>,
+    elimination: Elimination,
     /// The random term of each of the q random-effect columns.
     term_of: Vec<usize>,
 }
@@ -40,7 +42,13 @@ impl VarianceComponents {
                 term_of[k] = t;
             }
         }
-        Self { cp, names, term_of }
+        let elimination = Elimination::new(&cp);
+        Self {
+            cp,
+            names,
+            term_of,
+            elimination,
+        }
     }
 
     fn n_terms(&self) -> usize {
@@ -68,42 +76,12 @@ impl VarianceComponents {
         Ok((sigma2, lambda))
     }
 
-    /// Cholesky factor of A = ΛZ'ZΛ + I.
-    fn factor(&self, lambda: &[f64]) -> Result<Cholesky<f64, Dyn>, MixedError> {
-        let q = self.cp.q;
-        let a = DMatrix::from_fn(q, q, |r, c| {
-            lambda[r] * self.cp.ww[(r, c)] * lambda[c] + if r == c { 1.0 } else { 0.0 }
-        });
-        a.cholesky().ok_or(MixedError::Singular {
-            what: "the random-effects system",
-        })
-    }
-
-    /// K = L⁻¹ΛZ'W over the W columns from `first` on, and W'H⁻¹W there.
-    fn inverse_cross(
-        &self,
-        chol: &Cholesky<f64, Dyn>,
-        lambda: &[f64],
-        first: usize,
-    ) -> Result<DMatrix<f64>, MixedError> {
-        let (q, dim) = (self.cp.q, self.cp.ww.ncols());
-        let width = dim - first;
-        let b = DMatrix::from_fn(q, width, |r, c| lambda[r] * self.cp.ww[(r, first + c)]);
-        let k = chol
-            .l()
-            .solve_lower_triangular(&b)
-            .ok_or(MixedError::Singular {
-                what: "the random-effects system",
-            })?;
-        let corner = self.cp.ww.view((first, first), (width, width));
-        Ok(corner - k.transpose() * &k)
-    }
-
     fn reduced(&self, psi: &[f64]) -> Result<Reduced, MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
-        let chol = self.factor(&lambda)?;
-        let ln_det_h = 2.0 * chol.l().diagonal().iter().map(|v| v.ln()).sum::<f64>();
-        let g = self.inverse_cross(&chol, &lambda, self.cp.q)?;
+        let factor = self.elimination.factor(&lambda)?;
+        let g = self
+            .elimination
+            .corner(&factor, self.elimination.first_fixed());
         let p = self.cp.p;
         let gxx = g.view((0, 0), (p, p)).clone_owned();
         let gxy = g.view((0, p), (p, 1)).clone_owned();
@@ -115,7 +93,7 @@ impl VarianceComponents {
         let rss = (g[(p, p)] - fitted).max(0.0);
         Ok(Reduced {
             sigma2,
-            ln_det_h,
+            ln_det_h: factor.ln_det_h,
             ln_det_xhx,
             rss,
         })
@@ -124,8 +102,10 @@ impl VarianceComponents {
     /// M = W'V⁻¹W over all of W.
     fn inverse_all(&self, psi: &[f64]) -> Result<(f64, DMatrix<f64>), MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;
-        let chol = self.factor(&lambda)?;
-        Ok((sigma2, self.inverse_cross(&chol, &lambda, 0)? / sigma2))
+        let factor = self.elimination.factor(&lambda)?;
+        let mut m = self.elimination.full(&factor)?;
+        m.unscale_mut(sigma2);
+        Ok((sigma2, m))
     }
 
     /// Φ = (X'V⁻¹X)⁻¹ from M.
@@ -160,6 +140,29 @@ fn through_identity(
         scaled.column_mut(c).scale_mut(*w);
     }
     (a - scaled * b_z) / sigma2
+}
+
+/// The diagonal and the response column of T = (S − S·D·S)/σ² (the
+/// products through the residual's Vᵢ = I) for a symmetric S, at O(dim²)
+/// instead of forming T.
+fn through_identity_parts(
+    s: &DMatrix<f64>,
+    d: &[f64],
+    yi: usize,
+    sigma2: f64,
+) -> (Vec<f64>, Vec<f64>) {
+    let y = s.column(yi);
+    s.column_iter()
+        .enumerate()
+        .map(|(k, col)| {
+            let (mut diag, mut resp) = (0.0, 0.0);
+            for ((v, w), vy) in col.iter().zip(d).zip(y.iter()) {
+                diag += w * v * v;
+                resp += w * v * vy;
+            }
+            ((col[k] - diag) / sigma2, (col[yi] - resp) / sigma2)
+        })
+        .unzip()
 }
 
 impl CovarianceModel for VarianceComponents {
@@ -207,18 +210,18 @@ impl CovarianceModel for VarianceComponents {
         let phi = self.phi(&m)?;
         let (q, p, y) = (self.cp.q, self.cp.p, self.cp.y_index());
         // S = W'ΠW on Z ∪ y (ΠX = 0), with y last.
-        let keep: Vec<usize> = (0..q).chain(std::iter::once(y)).collect();
-        let sel = m.select_rows(&keep).select_columns(&keep);
-        let mx = m.select_rows(&keep).columns(q, p).clone_owned();
-        let s = &sel - &mx * &phi * mx.transpose();
+        let of = |k: usize| if k < q { k } else { y };
+        let mx = DMatrix::from_fn(q + 1, p, |r, c| m[(of(r), q + c)]);
+        let mut s = DMatrix::from_fn(q + 1, q + 1, |r, c| m[(of(r), of(c))]);
+        drop(m);
+        s.gemm(-1.0, &(&mx * &phi), &mx.transpose(), 1.0);
         let d = self.weights(psi, 1);
-        let t = through_identity(&s, &s, &d, &s, sigma2);
-        let n_free = (self.cp.n - p) as f64;
         let yi = q;
+        let (t_diag, t_y) = through_identity_parts(&s, &d, yi, sigma2);
+        let n_free = (self.cp.n - p) as f64;
         let tr_pi = (n_free - (0..q).map(|k| d[k] * s[(k, k)]).sum::<f64>()) / sigma2;
-        let tr_pi2 = (tr_pi - (0..q).map(|k| d[k] * t[(k, k)]).sum::<f64>()) / sigma2;
-        let y_pi3_y =
-            (t[(yi, yi)] - (0..q).map(|k| d[k] * s[(yi, k)] * t[(k, yi)]).sum::<f64>()) / sigma2;
+        let tr_pi2 = (tr_pi - (0..q).map(|k| d[k] * t_diag[k]).sum::<f64>()) / sigma2;
+        let y_pi3_y = (t_y[yi] - (0..q).map(|k| d[k] * s[(yi, k)] * t_y[k]).sum::<f64>()) / sigma2;
         let j = self.n_terms();
         let np = j + 1;
         let blocks = &self.cp.blocks;
@@ -228,8 +231,8 @@ impl CovarianceModel for VarianceComponents {
         for a in 0..j {
             let ba = blocks[a].clone();
             gradient[a] = ba.clone().map(|k| s[(k, k)] - s[(k, yi)].powi(2)).sum();
-            expected[(a, j)] = ba.clone().map(|k| t[(k, k)]).sum();
-            cross[(a, j)] = ba.clone().map(|k| s[(yi, k)] * t[(k, yi)]).sum();
+            expected[(a, j)] = ba.clone().map(|k| t_diag[k]).sum();
+            cross[(a, j)] = ba.clone().map(|k| s[(yi, k)] * t_y[k]).sum();
             for b in 0..=a {
                 let (mut e, mut c) = (0.0, 0.0);
                 for k in ba.clone() {
@@ -242,7 +245,7 @@ impl CovarianceModel for VarianceComponents {
                 cross[(a, b)] = c;
             }
         }
-        gradient[j] = tr_pi - t[(yi, yi)];
+        gradient[j] = tr_pi - t_y[yi];
         expected[(j, j)] = tr_pi2;
         cross[(j, j)] = y_pi3_y;
         // Row j was filled above the diagonal, the random pairs below it.

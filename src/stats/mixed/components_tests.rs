@@ -131,3 +131,22 @@ fn expected_information_is_the_mean_of_the_observed() {
     assert!((&der.expected - der.expected.transpose()).amax() <= 1e-12 * der.expected.amax());
     assert!(der.expected.clone().cholesky().is_some());
 }
+
+#[test]
+fn through_identity_parts_match_the_full_product() {
+    // The diagonal and response column of T = (S − S·D·S)/σ² against the
+    // full product; the same sums in another order, so agreement to a few
+    // ulps of the largest entry (1e-13 relative leaves a margin).
+    let n = 7;
+    let s = DMatrix::from_fn(n, n, |r, c| {
+        let (a, b) = (r.min(c) as f64, r.max(c) as f64);
+        (a * 1.3 + b * 0.7 + 1.0).sin() + if r == c { 3.0 } else { 0.0 }
+    });
+    let d = [0.5, 2.0, 0.0, 1.5, 3.0, 0.25, 0.0];
+    let t = through_identity(&s, &s, &d, &s, 1.7);
+    let (diag, resp) = through_identity_parts(&s, &d, 6, 1.7);
+    for k in 0..n {
+        assert!((diag[k] - t[(k, k)]).abs() <= 1e-13 * t.amax());
+        assert!((resp[k] - t[(k, 6)]).abs() <= 1e-13 * t.amax());
+    }
+}

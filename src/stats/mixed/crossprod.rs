@@ -46,8 +46,7 @@ impl CrossProducts {
         } else {
             0.0
         };
-        let dim = q + p + 1;
-        let mut ww = DMatrix::<f64>::zeros(dim, dim);
+        let mut sums = RowSums::new(q, p + 1);
         let mut row = vec![0.0; p + 1];
         let mut z_index = vec![0usize; random.len()];
         for i in 0..n {
@@ -58,14 +57,9 @@ impl CrossProducts {
             for (k, t) in random.iter().enumerate() {
                 z_index[k] = blocks[k].start + t.level_of[i];
             }
-            accumulate(&mut ww, q, &row, &z_index);
+            sums.add(&row, &z_index);
         }
-        // Mirror the upper triangle filled above.
-        for a in 0..dim {
-            for b in 0..a {
-                ww[(a, b)] = ww[(b, a)];
-            }
-        }
+        let ww = sums.into_symmetric();
         let xtx = ww.view((q, q), (p, p)).clone_owned();
         let ln_det_xtx = xtx
             .cholesky()
@@ -90,21 +84,71 @@ impl CrossProducts {
     }
 }
 
-/// Adds one observation's contribution to the upper triangle of W'W.
-fn accumulate(ww: &mut DMatrix<f64>, q: usize, row: &[f64], z_index: &[usize]) {
-    for (a, &za) in z_index.iter().enumerate() {
-        for &zb in &z_index[a..] {
-            let (lo, hi) = (za.min(zb), za.max(zb));
-            ww[(lo, hi)] += 1.0;
-        }
-        for (c, v) in row.iter().enumerate() {
-            ww[(za, q + c)] += v;
+/// The running sums of W'W, each block laid out so that one observation's
+/// updates touch contiguous memory (the sums, and their order, are those of
+/// adding into W'W directly).
+struct RowSums {
+    q: usize,
+    /// Width of [X y].
+    width: usize,
+    /// W'W with Z'Z in its upper triangle (the rest filled at the end).
+    ww: DMatrix<f64>,
+    /// Z'[X y], row-major q×width.
+    zr: Vec<f64>,
+    /// [X y]'[X y], upper triangle, row-major width×width.
+    rr: Vec<f64>,
+}
+
+impl RowSums {
+    fn new(q: usize, width: usize) -> Self {
+        Self {
+            q,
+            width,
+            ww: DMatrix::zeros(q + width, q + width),
+            zr: vec![0.0; q * width],
+            rr: vec![0.0; width * width],
         }
     }
-    for (a, va) in row.iter().enumerate() {
-        for (b, vb) in row.iter().enumerate().skip(a) {
-            ww[(q + a, q + b)] += va * vb;
+
+    /// Adds one observation: its [X y] row and its random columns.
+    fn add(&mut self, row: &[f64], z_index: &[usize]) {
+        let w = self.width;
+        for (a, &za) in z_index.iter().enumerate() {
+            for &zb in &z_index[a..] {
+                let (lo, hi) = (za.min(zb), za.max(zb));
+                self.ww[(lo, hi)] += 1.0;
+            }
+            for (s, v) in self.zr[za * w..(za + 1) * w].iter_mut().zip(row) {
+                *s += v;
+            }
         }
+        for (a, va) in row.iter().enumerate() {
+            let sums = &mut self.rr[a * w + a..(a + 1) * w];
+            for (s, vb) in sums.iter_mut().zip(&row[a..]) {
+                *s += va * vb;
+            }
+        }
+    }
+
+    /// The full symmetric W'W.
+    fn into_symmetric(self) -> DMatrix<f64> {
+        let (q, w, mut ww) = (self.q, self.width, self.ww);
+        for b in 0..q {
+            for a in 0..b {
+                ww[(b, a)] = ww[(a, b)];
+            }
+            for c in 0..w {
+                ww[(b, q + c)] = self.zr[b * w + c];
+                ww[(q + c, b)] = self.zr[b * w + c];
+            }
+        }
+        for a in 0..w {
+            for b in a..w {
+                ww[(q + a, q + b)] = self.rr[a * w + b];
+                ww[(q + b, q + a)] = self.rr[a * w + b];
+            }
+        }
+        ww
     }
 }
 

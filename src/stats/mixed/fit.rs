@@ -10,7 +10,8 @@ use super::error::MixedError;
 use super::model::CovarianceModel;
 use super::optimiser;
 
-/// Most random-effect levels q the dense method takes (cost grows as q³).
+/// Most random-effect levels q (the cost grows as q² in the term with the
+/// most levels and as q³ in the others).
 pub const MAX_RANDOM_LEVELS: usize = 1500;
 /// Most kept fixed-effect columns p.
 pub const MAX_FIXED_COLUMNS: usize = 500;

@@ -10,9 +10,12 @@
 //! (Henderson's mixed-model equations with the Woodbury identity, spec 2.2),
 //! so after one pass over the rows the cost depends on q + p, not on N; no
 //! N×N matrix is ever built, the Kenward-Roger and Satterthwaite matrices
-//! included. Dense work is O((q + p)³) per iteration; q is limited to
-//! [`MAX_RANDOM_LEVELS`] and p to [`MAX_FIXED_COLUMNS`] (an error names the
-//! sizes beyond that).
+//! included. The random term with the most levels (q₁ of them) is
+//! eliminated in closed form, since its Z'Z is diagonal, and the other
+//! q₂ = q − q₁ random columns by a dense Cholesky (`elimination`): the
+//! criterion costs O(q₁(q₂ + p)² + q₂³), the derivatives O(q²(q₂ + p))
+//! more, instead of O((q + p)³). q is limited to [`MAX_RANDOM_LEVELS`] and
+//! p to [`MAX_FIXED_COLUMNS`] (an error names the sizes beyond that).
 //!
 //! **Parameters and optimiser.** ψ = (σ²₁, …, σ²_J, σ²) on the
 //! variance scale (V linear in ψ, so KR's second-derivative terms vanish);
@@ -30,12 +33,18 @@
 //! positive definite (eigenvalue ratio above 1e-8).
 //!
 //! **Sizes measured** (`cargo bench --bench mixed_reml`, release build, one
-//! core of a shared development machine, two runs): an invented split-plot
-//! with 20,000 rows, 50 blocks and 500 whole plots (q = 550, p = 80) fits
-//! with its three KR tests in 0.50-0.76 s; q = 1100 in 3.0-4.8 s; q = 1500,
-//! the limit, in 7.9-12.3 s. Profile intervals re-fit the model about forty
-//! times per component: 29 s for the three SDs at q = 550 (milliseconds on
-//! the check datasets), so a caller should offer them for small q only.
+//! core of a shared development machine under a load of about five, two
+//! runs): an invented split-plot with 20,000 rows, 50 blocks and 500 whole
+//! plots (q = 550, p = 80) fits with its three KR tests in 0.11-0.15 s
+//! (0.82-1.09 s by the dense method before the elimination, same runs); the
+//! layout of `bench/mixed.sh` (q = 600, p = 20) in 0.09-0.10 s; q = 1100 in
+//! 0.34-0.40 s; q = 1500, the limit, in 0.62-0.71 s (13.0 s before). A
+//! layout whose levels are spread over several large crossed terms gains
+//! less: their q₂ columns still take a dense Cholesky, which is why the
+//! limit stays where it is. Profile intervals re-fit the model about forty
+//! times per component: 5.6 s for the three SDs at q = 550 (44-48 s before;
+//! milliseconds on the check datasets), so a caller should offer them for
+//! small q only.
 //! Everything is sequential with a fixed order of operations: no thread
 //! count, clock or hash order enters.
 //!
@@ -70,6 +79,7 @@ mod components;
 mod crossprod;
 mod ddf;
 mod design;
+mod elimination;
 mod error;
 mod fit;
 mod model;
