@@ -16,7 +16,7 @@ mod families;
 mod fit;
 pub(super) mod model;
 pub(super) mod read;
-mod residuals;
+pub(super) mod residuals;
 mod table;
 mod terms;
 

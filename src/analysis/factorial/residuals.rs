@@ -65,24 +65,33 @@ impl Residuals {
                 flagged.offer(t.abs(), (i, t));
             }
         }
-        let count = flagged.total();
-        let mut rows: Vec<OutlierRow> = flagged
-            .into_most_extreme_first()
-            .into_iter()
-            .map(|(i, t)| OutlierRow {
-                line: data.lines[i],
-                level: data
-                    .row(i)
-                    .iter()
-                    .enumerate()
-                    .map(|(f, &l)| data.levels[f][l].clone())
-                    .collect::<Vec<_>>()
-                    .join(" × "),
-                value: data.origin + data.offsets[i],
-                studentized_residual: t,
-            })
-            .collect();
-        rows.sort_by_key(|o| o.line);
-        (count, rows)
+        flagged_rows(data, flagged)
     }
+}
+
+/// The flagged observations (row, studentized residual) with their data
+/// line, labels and value, in data order, and how many were flagged in all.
+pub(in crate::analysis) fn flagged_rows(
+    data: &FactorialData,
+    flagged: Extremes<(usize, f64)>,
+) -> (usize, Vec<OutlierRow>) {
+    let count = flagged.total();
+    let mut rows: Vec<OutlierRow> = flagged
+        .into_most_extreme_first()
+        .into_iter()
+        .map(|(i, t)| OutlierRow {
+            line: data.lines[i],
+            level: data
+                .row(i)
+                .iter()
+                .enumerate()
+                .map(|(f, &l)| data.levels[f][l].clone())
+                .collect::<Vec<_>>()
+                .join(" × "),
+            value: data.origin + data.offsets[i],
+            studentized_residual: t,
+        })
+        .collect();
+    rows.sort_by_key(|o| o.line);
+    (count, rows)
 }

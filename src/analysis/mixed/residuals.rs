@@ -6,6 +6,7 @@
 
 use super::super::factorial::cells::TreatmentCells;
 use super::super::factorial::checks::{self, Fit};
+use super::super::factorial::residuals::flagged_rows;
 use super::super::notes::Note;
 use crate::data::FactorialData;
 use crate::doc::block::{AnovaSpec, CheckSet};
@@ -48,32 +49,13 @@ impl Checked<'_> {
     /// Observations whose studentized conditional residual is beyond the
     /// threshold: how many, and the most extreme with their labels.
     fn outliers(&self) -> (usize, Vec<OutlierRow>) {
-        let data = self.data;
         let mut flagged = Extremes::new(OUTLIERS_KEPT);
         for (i, &t) in self.predictions.studentized.iter().enumerate() {
             if t.abs() > OUTLIER_THRESHOLD {
                 flagged.offer(t.abs(), (i, t));
             }
         }
-        let count = flagged.total();
-        let mut rows: Vec<OutlierRow> = flagged
-            .into_most_extreme_first()
-            .into_iter()
-            .map(|(i, t)| OutlierRow {
-                line: data.lines[i],
-                level: data
-                    .row(i)
-                    .iter()
-                    .enumerate()
-                    .map(|(f, &l)| data.levels[f][l].clone())
-                    .collect::<Vec<_>>()
-                    .join(" × "),
-                value: data.origin + data.offsets[i],
-                studentized_residual: t,
-            })
-            .collect();
-        rows.sort_by_key(|o| o.line);
-        (count, rows)
+        flagged_rows(self.data, flagged)
     }
 }
 
