@@ -97,7 +97,7 @@ fn within_notes(r: &RepeatedDetail, tests: &[WithinTest]) -> Vec<String> {
     ));
     if let Some(t) = tests.iter().find(|t| t.gg_epsilon < HF_ABOVE) {
         notes.push(format!(
-            "Sphericity is doubtful for {} (ε (GG) = {}): read its corrected p; the uncorrected one is too optimistic.",
+            "Sphericity is doubtful for {} (ε (GG) = {}): read its corrected p; the uncorrected one is too optimistic, and so are the mixed model's tests of the within-subject terms, which assume the same correlation between any two occasions (compound symmetry).",
             t.term,
             fixed(t.gg_epsilon, 3)
         ));
