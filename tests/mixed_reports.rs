@@ -455,3 +455,32 @@ fn dunnett_is_refused_where_the_comparisons_do_not_share_one_df() {
     );
     assert!(err.contains("bonferroni"), "{err}");
 }
+
+/// A model with more random-effect levels than profile intervals are
+/// computed for (200) gets Satterthwaite's χ² intervals, said in the
+/// results file (invented subsampling data: 210 plots, two samples each).
+#[test]
+fn large_models_get_satterthwaite_intervals() {
+    let mut csv = String::from("plot,trt,y\n");
+    for p in 0..210 {
+        for s in 0..2 {
+            let y = 10.0
+                + (p % 3) as f64
+                + ((p * 37 + s * 11) % 17) as f64 / 5.0
+                + (p % 7) as f64 / 3.0;
+            csv.push_str(&format!("P{p:03},T{},{y:.2}\n", p % 3));
+        }
+    }
+    let doc =
+        "# Sub\n\n```anova\nid: s\ndata: d.csv\nmodel: y ~ trt\nrandom: plot\ncompare: none\n```\n";
+    let r = build(doc, &[("d.csv", csv)]).expect("builds");
+    for c in r["blocks"][0]["variance_components"].as_array().unwrap() {
+        assert_eq!(c["ci_method"], "satterthwaite", "{c}");
+        let (lo, sd, hi) = (
+            c["ci_lower"].as_f64().unwrap(),
+            c["sd"].as_f64().unwrap(),
+            c["ci_upper"].as_f64().unwrap(),
+        );
+        assert!(lo < sd && sd < hi, "{c}");
+    }
+}

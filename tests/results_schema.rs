@@ -180,6 +180,8 @@ mod contract {
         pub ci_lower: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub ci_upper: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub ci_method: Option<String>,
         #[serde(default, deserialize_with = "present")]
         pub levels: Option<u64>,
         #[serde(deserialize_with = "nullable")]

@@ -97,6 +97,26 @@ pub struct PredictedEffects {
     pub flagged: Vec<FlaggedUnit>,
 }
 
+/// How the components' intervals were computed.
+#[derive(Debug, Clone, Copy, PartialEq, Default, serde::Serialize, serde::Deserialize)]
+pub enum IntervalMethod {
+    /// Profile likelihood (models with at most 200 random-effect levels).
+    #[default]
+    Profile,
+    /// Satterthwaite's χ² approximation from the REML information.
+    Satterthwaite,
+}
+
+impl IntervalMethod {
+    /// The name in the results file.
+    pub fn key(self) -> &'static str {
+        match self {
+            IntervalMethod::Profile => "profile",
+            IntervalMethod::Satterthwaite => "satterthwaite",
+        }
+    }
+}
+
 /// Everything a model with random terms adds.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct MixedDetail {
@@ -113,4 +133,6 @@ pub struct MixedDetail {
     /// `checks: summary` or `none`).
     #[serde(default)]
     pub predicted: Vec<PredictedEffects>,
+    #[serde(default)]
+    pub interval_method: IntervalMethod,
 }

@@ -26,9 +26,12 @@ pub struct ComponentRecord {
     pub term: String,
     pub variance: Option<f64>,
     pub sd: Option<f64>,
-    /// Interval for the SD (profile likelihood), at 1 − alpha.
+    /// Interval for the SD at 1 − alpha, by `ci_method`: "profile"
+    /// (profile likelihood) or "satterthwaite" (Satterthwaite's χ²);
+    /// all three null when not computed.
     pub ci_lower: Option<f64>,
     pub ci_upper: Option<f64>,
+    pub ci_method: Option<&'static str>,
     /// Units of this size; absent for the residual.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub levels: Option<usize>,
@@ -110,6 +113,7 @@ pub fn mixed_records(o: &LinearOutcome, m: &MixedDetail) -> MixedRecords {
                 sd: finite(c.sd),
                 ci_lower: finite(c.ci_lower),
                 ci_upper: finite(c.ci_upper),
+                ci_method: c.ci_lower.is_finite().then(|| m.interval_method.key()),
                 levels: (c.levels > 0).then_some(c.levels),
                 percent: finite(c.percent),
                 predicted_effects: m

@@ -159,6 +159,20 @@ pub fn chi2_sf(x: f64, df: f64) -> f64 {
     inc_gamma_pair(df / 2.0, x / 2.0).1
 }
 
+/// χ² density with `df` degrees of freedom.
+pub fn chi2_pdf(x: f64, df: f64) -> f64 {
+    if x <= 0.0 {
+        return 0.0;
+    }
+    let k = df / 2.0;
+    ((k - 1.0) * x.ln() - x / 2.0 - k * std::f64::consts::LN_2 - super::special::ln_gamma(k)).exp()
+}
+
+/// The χ² quantile with upper-tail probability p: sf(x) = p.
+pub fn chi2_isf(p: f64, df: f64) -> f64 {
+    invert_upper_tail(p, df.max(1e-3), |x| (chi2_sf(x, df), chi2_pdf(x, df)))
+}
+
 /// Solves sf(x) = p for x > 0, where `eval` returns (sf(x), pdf(x)).
 ///
 /// Newton steps on ln sf in ln x: that function is nearly linear in the

@@ -35,3 +35,19 @@ fn f_with_one_numerator_df_is_t_squared() {
         }
     }
 }
+
+#[test]
+fn chi_square_quantiles_match_scipy() {
+    // Source: scipy 1.17.1 `stats.chi2.isf(p, df)`. The quantile inherits
+    // the survival function's ~1e-14 relative accuracy; 1e-11 leaves room
+    // for the conditioning near the median at large df.
+    for &(p, df, want) in &[
+        (0.025, 3.7, 10.618_055_248_352_462),
+        (0.975, 3.7, 0.394_576_875_341_516_9),
+        (1e-10, 2.5, 47.855_951_712_898_964),
+        (0.5, 1000.0, 999.333_412_403_381),
+    ] {
+        let got = chi2_isf(p, df);
+        assert!(rel(got, want) < 1e-11, "p {p}, df {df}: {got} vs {want}");
+    }
+}

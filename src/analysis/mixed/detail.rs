@@ -4,8 +4,10 @@
 //! comparison in a balanced design.
 
 use crate::doc::block::DdfMethod;
-use crate::outcome::mixed::{Fit, MixedDetail, NotClassical, Sed, VarianceComponent};
-use crate::stats::mixed::MixedFit;
+use crate::outcome::mixed::{
+    Fit, IntervalMethod, MixedDetail, NotClassical, Sed, VarianceComponent,
+};
+use crate::stats::mixed::{MixedFit, SdInterval};
 use crate::stats::strata::{self, ComparisonKind, StratumAnalysis, StratumId};
 
 /// Most random-effect levels for which profile intervals are computed.
@@ -20,7 +22,7 @@ pub(super) struct Names<'a> {
     pub terms: &'a [String],
 }
 
-/// The fit, its components (profile intervals at 1 − α) and the SEDs.
+/// The fit, its components (intervals at 1 − α) and the SEDs.
 pub(super) fn detail(
     fit: &MixedFit,
     ddf: DdfMethod,
@@ -29,24 +31,33 @@ pub(super) fn detail(
     alpha: f64,
 ) -> MixedDetail {
     // Each profile interval refits the model about forty times: beyond a
-    // few hundred random levels that takes tens of seconds, so large models
-    // print no interval (said in the table's footnote).
+    // few hundred random levels that takes seconds, so large models (and a
+    // profile that fails) get Satterthwaite's χ² interval instead (said in
+    // the table's footnote).
     let random_levels: usize = fit
         .components
         .iter()
         .filter(|c| c.name != "residual")
         .map(|c| c.levels)
         .sum();
-    let intervals = (random_levels <= MAX_PROFILED_LEVELS)
-        .then(|| fit.profile_intervals(1.0 - alpha).ok())
-        .flatten();
+    let (intervals, interval_method): (Vec<Option<SdInterval>>, IntervalMethod) =
+        match (random_levels <= MAX_PROFILED_LEVELS)
+            .then(|| fit.profile_intervals(1.0 - alpha).ok())
+            .flatten()
+        {
+            Some(v) => (v.into_iter().map(Some).collect(), IntervalMethod::Profile),
+            None => (
+                fit.satterthwaite_intervals(1.0 - alpha),
+                IntervalMethod::Satterthwaite,
+            ),
+        };
     let total: f64 = fit.components.iter().map(|c| c.variance.max(0.0)).sum();
     let components = fit
         .components
         .iter()
         .enumerate()
         .map(|(i, c)| {
-            let ci = intervals.as_ref().and_then(|v| v.get(i));
+            let ci = intervals.get(i).and_then(Option::as_ref);
             VarianceComponent {
                 term: c.name.clone(),
                 variance: c.variance,
@@ -80,6 +91,7 @@ pub(super) fn detail(
         cvs,
         seds,
         predicted: Vec::new(),
+        interval_method,
     }
 }
 

@@ -7,7 +7,7 @@ use super::keys::Keys;
 use super::{caption, cell, col, measure, shown_term, text};
 use crate::format::{alpha_text, approx_df_text, f_stat, fixed, p_value, significant};
 use crate::outcome::linear::{LinearOutcome, TermTest};
-use crate::outcome::mixed::{MixedDetail, NotClassical};
+use crate::outcome::mixed::{IntervalMethod, MixedDetail, NotClassical};
 use crate::render::view::TableView;
 
 /// The error a term is tested against, for people.
@@ -141,11 +141,19 @@ pub fn components_table(
             ]
         })
         .collect();
+    let method = match m.interval_method {
+        IntervalMethod::Profile => "by profile likelihood",
+        IntervalMethod::Satterthwaite => {
+            "by Satterthwaite's χ² approximation from the REML information (profile-likelihood intervals, which refit the model many times, are computed for models with at most 200 random-effect levels)"
+        }
+    };
     let mut footnotes = vec![format!(
-        "Variances estimated by REML; intervals for the SD by profile likelihood. Components with fewer than five levels are estimated from few units and are uncertain; the interval shows how much."
+        "Variances estimated by REML; intervals for the SD {method}. Components with fewer than five levels are estimated from few units and are uncertain; the interval shows how much."
     )];
     if m.components.iter().any(|c| !c.ci_lower.is_finite()) {
-        footnotes.push("An interval shown as – was not computed: profile intervals refit the model many times and are given for models with at most 200 random-effect levels.".to_string());
+        footnotes.push(
+            "An interval shown as – could not be computed (a variance at 0 has none).".to_string(),
+        );
     }
     for c in m.components.iter().filter(|c| c.on_boundary) {
         footnotes.push(format!(

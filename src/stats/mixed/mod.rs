@@ -75,6 +75,7 @@
 //! occasions it has (compound symmetry, AR(1), unstructured; spec 7.4,
 //! 7.5), computed per subject block, never as an N×N matrix.
 
+mod chi_square_interval;
 mod components;
 mod crossprod;
 mod ddf;
