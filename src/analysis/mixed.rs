@@ -102,25 +102,20 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             "check that every random term names units with several observations each, and that the fixed terms are estimable",
         )
     })?;
-    let repeated = match &spec.subject {
-        Some(s) => {
-            let column = names
-                .iter()
-                .position(|n| *n == s.value)
-                .unwrap_or(usize::MAX);
-            if column == usize::MAX {
-                return Err(errors.model(
+    let repeated = spec
+        .subject
+        .as_ref()
+        .map(|s| {
+            let column = names.iter().position(|n| *n == s.value).ok_or_else(|| {
+                errors.model(
                     format!("the subject column `{}` was not read", s.value),
                     "check `subject`",
-                ));
-            }
-            Some(
-                repeated::repeated(&data, &model, column, &s.value)
-                    .map_err(|(message, hint)| errors.model(message, &hint))?,
-            )
-        }
-        None => None,
-    };
+                )
+            })?;
+            repeated::repeated(&data, &model, column, &s.value)
+                .map_err(|(message, hint)| errors.model(message, &hint))
+        })
+        .transpose()?;
     let predictions = fit
         .predictions(&data.offsets, &design, &units.terms)
         .map_err(|e| {
