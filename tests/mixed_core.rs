@@ -185,7 +185,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
             Ddf::Satterthwaite(Information::Observed),
             Ddf::Satterthwaite(Information::Expected),
         ] {
-            let test = o.fit.type3(&o.design, term, method).unwrap();
+            let test = o.fit.fixed.type3(&o.design, term, method).unwrap();
             let what = format!("oats term {term} {method:?}");
             close(test.f, *f, TIGHT, &format!("{what} F"));
             assert_eq!(test.df_num, *df1);
@@ -206,7 +206,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
     };
     let victory = emm(&[Some(0), None]);
     for method in [Ddf::KenwardRoger, Ddf::Satterthwaite(Information::Observed)] {
-        let c = o.fit.contrast(&victory, method).unwrap();
+        let c = o.fit.fixed.contrast(&victory, method).unwrap();
         close(c.estimate, 97.625, TIGHT, "oats EMM Victory");
         close(c.se, 7.79753937921, TIGHT, "oats EMM SE");
         close(c.df, 8.86898066056, TIGHT, "oats EMM df");
@@ -217,6 +217,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
         |a: Vec<f64>, b: Vec<f64>| a.iter().zip(&b).map(|(x, y)| x - y).collect::<Vec<f64>>();
     let same_v = o
         .fit
+        .fixed
         .contrast(&diff(cell(0, 0), cell(0, 1)), Ddf::KenwardRoger)
         .unwrap();
     close(same_v.se, 7.68295371441, TIGHT, "oats SED same V");
@@ -235,6 +236,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
     );
     let other_v = o
         .fit
+        .fixed
         .contrast(&diff(cell(0, 0), cell(1, 0)), Ddf::KenwardRoger)
         .unwrap();
     close(other_v.se, 9.71502511386, TIGHT, "oats SED different V");
@@ -247,6 +249,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
     );
     let sat = o
         .fit
+        .fixed
         .contrast(
             &diff(cell(0, 0), cell(1, 0)),
             Ddf::Satterthwaite(Information::Observed),
@@ -314,13 +317,19 @@ fn oats_with_two_subplots_deleted_kenward_roger_and_both_satterthwaites() {
         let what = format!("oats-2 term {term}");
         let s_obs = o
             .fit
+            .fixed
             .type3(&o.design, term, Ddf::Satterthwaite(Information::Observed))
             .unwrap();
         let s_exp = o
             .fit
+            .fixed
             .type3(&o.design, term, Ddf::Satterthwaite(Information::Expected))
             .unwrap();
-        let kr = o.fit.type3(&o.design, term, Ddf::KenwardRoger).unwrap();
+        let kr = o
+            .fit
+            .fixed
+            .type3(&o.design, term, Ddf::KenwardRoger)
+            .unwrap();
         close(s_obs.f, *wald, TIGHT, &format!("{what} Wald F"));
         // V:N's LΦL' has a repeated eigenvalue (30.7083 twice), so its
         // per-direction df depend on which basis of that eigenspace the
@@ -373,7 +382,7 @@ fn machines_workers_random() {
     );
     // spec 9.3: F(2, 10) = 20.5760829641 (closed form), p 2.85548485771e-04 (scipy)
     for method in [Ddf::KenwardRoger, Ddf::Satterthwaite(Information::Observed)] {
-        let test = fit.type3(&design, 0, method).unwrap();
+        let test = fit.fixed.type3(&design, 0, method).unwrap();
         close(test.f, 20.5760829641, TIGHT, "Machines F");
         close(test.df_den, 10.0, TIGHT, "Machines df");
         close_abs(test.p_value, 2.85548485771e-04, P_ABS, "Machines p");
@@ -389,7 +398,7 @@ fn machines_workers_random() {
                 &[Some(m)],
             ))
             .unwrap();
-        let c = fit.contrast(&l, Ddf::KenwardRoger).unwrap();
+        let c = fit.fixed.contrast(&l, Ddf::KenwardRoger).unwrap();
         close(c.estimate, *value, TIGHT, "Machines EMM");
         close(c.se, 2.4858302138, TIGHT, "Machines EMM SE");
         close(c.df, 8.52169850561, TIGHT, "Machines EMM df");
@@ -397,7 +406,7 @@ fn machines_workers_random() {
     }
     // SED of two machines √(2MS_WM/18) on 10 df (closed form)
     let diff: Vec<f64> = rows[0].iter().zip(&rows[1]).map(|(a, b)| a - b).collect();
-    let c = fit.contrast(&diff, Ddf::KenwardRoger).unwrap();
+    let c = fit.fixed.contrast(&diff, Ddf::KenwardRoger).unwrap();
     close(c.se, 2.1769754758, TIGHT, "Machines SED");
     close(c.df, 10.0, TIGHT, "Machines SED df");
     // 95 % profile CIs of the SDs (spec 9.3, own, two routes)
@@ -461,7 +470,7 @@ fn sleepstudy_days_as_factor_with_random_subject_intercept() {
     );
     // spec 9.4 B/C: F(9, 153) = 18.7026979326, p 8.995345416e-21 (own, pingouin; scipy)
     for method in [Ddf::KenwardRoger, Ddf::Satterthwaite(Information::Observed)] {
-        let test = fit.type3(&design, 0, method).unwrap();
+        let test = fit.fixed.type3(&design, 0, method).unwrap();
         close(test.f, 18.7026979326, TIGHT, "sleepstudy F Days");
         close(test.df_den, 153.0, TIGHT, "sleepstudy df");
         close(test.lambda, 1.0, TIGHT, "sleepstudy KR lambda");
@@ -509,7 +518,7 @@ fn penicillin_crossed_random_effects() {
         "Penicillin d as fitted",
     );
     // intercept 22.9722222222, SE √((MS_p + MS_s − MS_E)/144) = 0.808573390986 on 5.4870922788 df (closed form)
-    let c = fit.contrast(&[1.0], Ddf::KenwardRoger).unwrap();
+    let c = fit.fixed.contrast(&[1.0], Ddf::KenwardRoger).unwrap();
     close(c.estimate, 22.9722222222, TIGHT, "Penicillin intercept");
     close(c.se, 0.808573390986, TIGHT, "Penicillin intercept SE");
     close(c.df, 5.4870922788, TIGHT, "Penicillin intercept df");
@@ -574,9 +583,10 @@ fn row_order_does_not_matter() {
         "permuted criterion",
     );
     for term in 0..3 {
-        let a = fit.type3(&design, term, Ddf::KenwardRoger).unwrap();
+        let a = fit.fixed.type3(&design, term, Ddf::KenwardRoger).unwrap();
         let c = reference
             .fit
+            .fixed
             .type3(&reference.design, term, Ddf::KenwardRoger)
             .unwrap();
         close(a.f, c.f, 1e-10, "permuted F");
@@ -589,16 +599,17 @@ fn row_order_does_not_matter() {
 #[test]
 fn kenward_roger_single_row_is_expected_satterthwaite() {
     let o = oats(true);
-    let p = o.fit.beta.len();
+    let p = o.fit.fixed.beta.len();
     for k in 1..p {
         let mut l = vec![0.0; p];
         l[k] = 1.0;
         l[0] = 0.5;
         let kr = o
             .fit
+            .fixed
             .wald(std::slice::from_ref(&l), Ddf::KenwardRoger)
             .unwrap();
-        let expected = o.fit.satterthwaite_df(&l, Information::Expected);
+        let expected = o.fit.fixed.satterthwaite_df(&l, Information::Expected);
         close(kr.lambda, 1.0, 1e-12, "single-row KR lambda");
         close(
             kr.df_den,
@@ -606,7 +617,7 @@ fn kenward_roger_single_row_is_expected_satterthwaite() {
             1e-9,
             "single-row KR df = expected Satterthwaite",
         );
-        let c = o.fit.contrast(&l, Ddf::KenwardRoger).unwrap();
+        let c = o.fit.fixed.contrast(&l, Ddf::KenwardRoger).unwrap();
         close(c.t * c.t, kr.f, 1e-10, "single-row KR F = t²");
         close(c.df, kr.df_den, 1e-12, "contrast df = single-row KR df");
     }

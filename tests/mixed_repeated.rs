@@ -151,7 +151,7 @@ fn compound_symmetry_reproduces_the_univariate_analysis() {
         Ddf::Satterthwaite(Information::Observed),
         Ddf::Satterthwaite(Information::Expected),
     ] {
-        let t = f.type3(&d, 0, method).unwrap();
+        let t = f.fixed.type3(&d, 0, method).unwrap();
         close(t.f, 18.7026979326, TIGHT, "CS F Days");
         close(t.df_den, 153.0, TIGHT, "CS df");
         close(t.lambda, 1.0, TIGHT, "CS lambda");
@@ -187,17 +187,18 @@ fn autoregressive_matches_table_c_with_and_without_second_derivatives() {
     let l = d.type3_rows(0).unwrap();
     // spec 9.4 C: Wald 4.92007106078 on Satterthwaite 133.868330666
     let sat = f
+        .fixed
         .wald(&l, Ddf::Satterthwaite(Information::Observed))
         .unwrap();
     close(sat.f, 4.92007106078, TIGHT, "AR(1) Wald F");
     close(sat.df_den, 133.868330666, TIGHT, "AR(1) Satterthwaite df");
     // spec 9.4 C: KR df 148.969021233, λ 0.997812081623; F with Rᵢⱼ
     // (parameters (σ², ρ)) 4.77419427397, without 4.90930634689
-    let kr = f.wald(&l, Ddf::KenwardRoger).unwrap();
+    let kr = f.fixed.wald(&l, Ddf::KenwardRoger).unwrap();
     close(kr.df_den, 148.969021233, TIGHT, "AR(1) KR df");
     close(kr.lambda, 0.997812081623, TIGHT, "AR(1) KR lambda");
     close(kr.f, 4.77419427397, TIGHT, "AR(1) KR F with R_ij");
-    let first = f.wald_first_order(&l).unwrap();
+    let first = f.first_order.wald(&l, Ddf::KenwardRoger).unwrap();
     close(
         first.df_den,
         148.969021233,
@@ -226,12 +227,13 @@ fn unstructured_reproduces_hotelling() {
     let l = d.type3_rows(0).unwrap();
     // spec 9.4 C: Wald 10.6975314822 on Satterthwaite 17
     let sat = f
+        .fixed
         .wald(&l, Ddf::Satterthwaite(Information::Observed))
         .unwrap();
     close(sat.f, 10.6975314822, TIGHT, "UN Wald F");
     close(sat.df_den, 17.0, TIGHT, "UN Satterthwaite df");
     // spec 9.4 C: KR 5.66339902 on 9 (λ 9/17), p 0.0082517245231 (numpy)
-    let kr = f.wald(&l, Ddf::KenwardRoger).unwrap();
+    let kr = f.fixed.wald(&l, Ddf::KenwardRoger).unwrap();
     close(kr.f, 5.66339902, TIGHT, "UN KR F = Hotelling");
     close(kr.df_den, 9.0, TIGHT, "UN KR df");
     close(kr.lambda, 9.0 / 17.0, TIGHT, "UN KR lambda");
@@ -289,8 +291,8 @@ fn row_order_does_not_matter() {
         for (x, y) in a.parameters.iter().zip(&b.parameters) {
             close(y.value, x.value, 1e-10, "permuted parameter");
         }
-        let ta = a.type3(&da, 0, Ddf::KenwardRoger).unwrap();
-        let tb = b.type3(&dt, 0, Ddf::KenwardRoger).unwrap();
+        let ta = a.fixed.type3(&da, 0, Ddf::KenwardRoger).unwrap();
+        let tb = b.fixed.type3(&dt, 0, Ddf::KenwardRoger).unwrap();
         close(tb.f, ta.f, 1e-10, "permuted F");
         close(tb.df_den, ta.df_den, 1e-10, "permuted df");
     }
@@ -344,21 +346,21 @@ fn incomplete_subjects_stay_in_and_cs_equals_a_random_intercept() {
         Ddf::Satterthwaite(Information::Observed),
         Ddf::Satterthwaite(Information::Expected),
     ] {
-        let a = cs.type3(&d, 0, method).unwrap();
-        let b = vc.type3(&d, 0, method).unwrap();
+        let a = cs.fixed.type3(&d, 0, method).unwrap();
+        let b = vc.fixed.type3(&d, 0, method).unwrap();
         close(a.f, b.f, 1e-8, "D: F Days");
         close(a.df_den, b.df_den, 1e-8, "D: df Days");
-        let mut l = vec![0.0; cs.beta.len()];
+        let mut l = vec![0.0; cs.fixed.beta.len()];
         l[0] = 1.0;
         l[3] = 1.0;
-        let ca = cs.contrast(&l, method).unwrap();
-        let cb = vc.contrast(&l, method).unwrap();
+        let ca = cs.fixed.contrast(&l, method).unwrap();
+        let cb = vc.fixed.contrast(&l, method).unwrap();
         close(ca.se, cb.se, 1e-8, "D: contrast SE");
         close(ca.df, cb.df, 1e-8, "D: contrast df");
     }
     let ar = mixed::fit_repeated(&t.y, &d, &layout(&t), Structure::Autoregressive).unwrap();
     assert_eq!((ar.observations, ar.subjects), (170, 18));
-    let kr = ar.type3(&d, 0, Ddf::KenwardRoger).unwrap();
+    let kr = ar.fixed.type3(&d, 0, Ddf::KenwardRoger).unwrap();
     assert!(kr.df_den > 1.0 && kr.f > 0.0 && kr.p_value < 0.05, "{kr:?}");
     // UN here has no maximum: the 8 complete subjects' residuals span at
     // most 8 of the 10 dimensions, so Σ may shrink towards singular along
@@ -395,8 +397,8 @@ fn autoregressive_time_units_change_only_rho() {
         "time units: rho",
     );
     let l = d.type3_rows(0).unwrap();
-    let a = base.wald_first_order(&l).unwrap();
-    let b = doubled.wald_first_order(&l).unwrap();
+    let a = base.first_order.wald(&l, Ddf::KenwardRoger).unwrap();
+    let b = doubled.first_order.wald(&l, Ddf::KenwardRoger).unwrap();
     close(b.f, a.f, 1e-8, "time units: first-order KR F");
     close(b.df_den, a.df_den, 1e-8, "time units: KR df");
 }
@@ -615,7 +617,7 @@ fn compound_symmetry_takes_a_negative_common_covariance() {
         1e-8,
         "CS residual = MS error",
     );
-    let t = f.type3(&d, 0, Ddf::KenwardRoger).unwrap();
+    let t = f.fixed.type3(&d, 0, Ddf::KenwardRoger).unwrap();
     close(
         t.f,
         ss_occasion / (k - 1) as f64 / ms_error,

@@ -204,7 +204,7 @@ impl Analysed {
         let spec = errors.spec;
         let classical = self.classical();
         let tested = fixed_terms::Tested {
-            fit: &self.fit,
+            fit: &self.fit.fixed,
             design: &self.design,
             ddf: self.ddf,
             alpha: self.alpha,
@@ -406,7 +406,7 @@ impl Analysed {
                 .count()
         };
         let estimating = Estimating {
-            fit: &self.fit,
+            fit: &self.fit.fixed,
             design: &self.design,
             ddf: self.ddf,
             terms: &self.model.terms,

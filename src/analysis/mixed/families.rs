@@ -12,11 +12,11 @@ use crate::stats::compare::{Method, pairwise_with_own_df};
 use crate::stats::dist::t_isf;
 use crate::stats::dunnett::Sides;
 use crate::stats::linear::{TermFactors, grid_average};
-use crate::stats::mixed::{ContrastTest, Ddf, FixedDesign, MixedFit};
+use crate::stats::mixed::{ContrastTest, Ddf, FixedDesign, FixedInference};
 
 /// What the families read.
 pub(super) struct Estimating<'a> {
-    pub fit: &'a MixedFit,
+    pub fit: &'a FixedInference,
     pub design: &'a FixedDesign,
     pub ddf: Ddf,
     pub terms: &'a [TermFactors],

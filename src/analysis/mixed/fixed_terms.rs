@@ -5,12 +5,12 @@
 
 use crate::outcome::linear::{RESIDUAL, Stratum, TermTest};
 use crate::stats::dist::f_isf;
-use crate::stats::mixed::{Ddf, FixedDesign, MixedFit};
+use crate::stats::mixed::{Ddf, FixedDesign, FixedInference};
 use crate::stats::strata::{StratumAnalysis, StratumId};
 
 /// What the tests read.
 pub(super) struct Tested<'a> {
-    pub fit: &'a MixedFit,
+    pub fit: &'a FixedInference,
     pub design: &'a FixedDesign,
     pub ddf: Ddf,
     pub alpha: f64,

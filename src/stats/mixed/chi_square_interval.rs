@@ -20,7 +20,7 @@ impl MixedFit {
         let free: Vec<usize> = (0..np)
             .filter(|&i| self.psi[i] > 0.0 || !self.model.may_be_zero(i))
             .collect();
-        let cov = &self.df_inputs.cov_expected;
+        let cov = &self.fixed.df_inputs.cov_expected;
         let tail = (1.0 - level) / 2.0;
         (0..np)
             .map(|i| {

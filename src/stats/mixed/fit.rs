@@ -4,9 +4,10 @@ use nalgebra::DMatrix;
 
 use super::components::VarianceComponents;
 use super::crossprod::CrossProducts;
-use super::ddf::{self, ContrastTest, Ddf, DfInputs, Information, WaldTest};
+use super::ddf::{self, DfInputs};
 use super::design::{FixedDesign, RandomTerm};
 use super::error::MixedError;
+use super::inference::FixedInference;
 use super::model::CovarianceModel;
 use super::optimiser;
 
@@ -36,7 +37,8 @@ pub struct VarianceComponent {
 #[derive(Debug, Clone)]
 pub struct MixedFit {
     pub components: Vec<VarianceComponent>,
-    pub beta: Vec<f64>,
+    /// β̂ and the tests and contrasts on it.
+    pub fixed: FixedInference,
     /// Φ = (X'V̂⁻¹X)⁻¹, row-major.
     pub phi: Vec<Vec<f64>>,
     /// Kenward-Roger's Φ_A = Φ + 2Λ.
@@ -58,7 +60,6 @@ pub struct MixedFit {
     pub fixed_columns: usize,
     pub(crate) model: VarianceComponents,
     pub(crate) psi: Vec<f64>,
-    pub(crate) df_inputs: DfInputs,
 }
 
 /// Fits y = Xβ + Σⱼ Zⱼuⱼ + e by REML. `y` is already decimal-shifted by the
@@ -97,7 +98,6 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
     });
     Ok(MixedFit {
         components,
-        beta,
         phi: rows_of(&df_inputs.phi),
         phi_adjusted: rows_of(&df_inputs.phi_adjusted),
         criterion: opt.criterion,
@@ -111,7 +111,7 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
         fixed_columns: p,
         model,
         psi: opt.psi,
-        df_inputs,
+        fixed: FixedInference { beta, df_inputs },
     })
 }
 
@@ -236,50 +236,6 @@ pub(super) fn matrix_of(rows: &[Vec<f64>], width: usize) -> Result<DMatrix<f64>,
         });
     }
     Ok(DMatrix::from_fn(rows.len(), width, |r, c| rows[r][c]))
-}
-
-impl MixedFit {
-    /// The Wald F test of Lβ = 0 (rows of L over the kept columns).
-    pub fn wald(&self, l: &[Vec<f64>], method: Ddf) -> Result<WaldTest, MixedError> {
-        let lm = matrix_of(l, self.beta.len())?;
-        let rank_fail = || MixedError::BadHypothesis {
-            reason: "the rows of L are not linearly independent".into(),
-        };
-        let test = match method {
-            Ddf::KenwardRoger => ddf::kenward_roger(&self.df_inputs, &self.beta, &lm),
-            Ddf::Satterthwaite(info) => ddf::satterthwaite(&self.df_inputs, &self.beta, &lm, info),
-        };
-        test.ok_or_else(rank_fail)
-    }
-
-    /// The Type III test of fixed term `term` of `design`.
-    pub fn type3(
-        &self,
-        design: &FixedDesign,
-        term: usize,
-        method: Ddf,
-    ) -> Result<WaldTest, MixedError> {
-        self.wald(&design.type3_rows(term)?, method)
-    }
-
-    /// One linear function lβ (l over the kept columns; see
-    /// [`FixedDesign::restrict`]) with its SE and df.
-    pub fn contrast(&self, l: &[f64], method: Ddf) -> Result<ContrastTest, MixedError> {
-        if l.len() != self.beta.len() {
-            return Err(MixedError::LengthMismatch {
-                what: "a contrast".into(),
-                expected: self.beta.len(),
-                found: l.len(),
-            });
-        }
-        Ok(ddf::contrast(&self.df_inputs, &self.beta, l, method))
-    }
-
-    /// Satterthwaite df of one contrast with either information (both are
-    /// offered; spec 3.2).
-    pub fn satterthwaite_df(&self, l: &[f64], information: Information) -> f64 {
-        ddf::satterthwaite_single(&self.df_inputs, l, information)
-    }
 }
 
 #[cfg(test)]

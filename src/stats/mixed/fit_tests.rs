@@ -3,6 +3,7 @@
 use super::*;
 use crate::stats::linear::Layout;
 use crate::stats::mixed::components::tests::invented;
+use crate::stats::mixed::{Ddf, Information};
 
 /// An invented layout whose batch term has exactly equal batch means after
 /// the treatments (each batch's deviations are a permutation of the same
@@ -57,8 +58,8 @@ fn a_zero_variance_term_changes_nothing() {
     assert!(rel(with.components[1].variance, without.components[0].variance) < 1e-12);
     assert!(rel(with.criterion, without.criterion) < 1e-12);
     for method in [Ddf::KenwardRoger, Ddf::Satterthwaite(Information::Observed)] {
-        let a = with.type3(&design, 0, method).unwrap();
-        let b = without.type3(&design, 0, method).unwrap();
+        let a = with.fixed.type3(&design, 0, method).unwrap();
+        let b = without.fixed.type3(&design, 0, method).unwrap();
         assert!(
             rel(a.f, b.f) < 1e-12 && rel(a.df_den, b.df_den) < 1e-12,
             "{a:?} vs {b:?}"
@@ -140,7 +141,7 @@ fn the_fit_is_reproducible_and_converges_with_a_small_gradient() {
     let a = fit(&y, &design, &random).unwrap();
     let b = fit(&y, &design, &random).unwrap();
     assert_eq!(a.components, b.components);
-    assert_eq!(a.beta, b.beta);
+    assert_eq!(a.fixed.beta, b.fixed.beta);
     assert!(a.converged && a.iterations <= optimiser::MAX_ITERATIONS);
     assert!(a.max_scaled_gradient <= 1e-6);
 }
@@ -202,7 +203,7 @@ fn converges_from_the_fixed_start_over_a_range_of_component_sizes() {
                 fit(&y, &design, &random).unwrap_or_else(|e| panic!("{block_sd} {plot_sd}: {e}"));
             assert!(fit.max_scaled_gradient <= 1e-6, "{block_sd} {plot_sd}");
             assert!(fit.components.iter().all(|c| c.variance >= 0.0));
-            let test = fit.type3(&design, 0, Ddf::KenwardRoger).unwrap();
+            let test = fit.fixed.type3(&design, 0, Ddf::KenwardRoger).unwrap();
             assert!(
                 test.df_den > 0.0 && test.p_value >= 0.0 && test.p_value <= 1.0,
                 "{test:?}"
@@ -228,7 +229,7 @@ fn a_design_without_intercept_keeps_its_coefficients() {
     let means: Vec<f64> = (0..3)
         .map(|t| (0..5).map(|b| y[3 * b + t]).sum::<f64>() / 5.0)
         .collect();
-    for (b, m) in fit.beta.iter().zip(&means) {
+    for (b, m) in fit.fixed.beta.iter().zip(&means) {
         assert!((b - m).abs() < 1e-10, "{b} vs {m}");
     }
 }

@@ -66,7 +66,7 @@ impl MixedFit {
         let zz = cp.ww.view((0, 0), (q, q));
         let zx = cp.ww.view((0, q), (q, p)).clone_owned();
         // β in the centred coordinates the cross-products were formed in.
-        let mut beta_c = DMatrix::from_column_slice(p, 1, &self.beta);
+        let mut beta_c = DMatrix::from_column_slice(p, 1, &self.fixed.beta);
         if p > 0 {
             beta_c[0] -= cp.y_mean;
         }
@@ -105,7 +105,7 @@ impl MixedFit {
             fixed,
             random,
             blocks: &cp.blocks,
-            beta: &self.beta,
+            beta: &self.fixed.beta,
             u: &u,
             k: &k,
             phi: &phi,

@@ -6,19 +6,20 @@
 //!
 //! **Kenward-Roger for AR(1).** V is not linear in ρ, so KR's Φ_A has the
 //! second-derivative terms Rᵢⱼ = X'V⁻¹VᵢⱼV⁻¹X (spec 3.3); they depend on
-//! the parameterisation, here (σ², ρ). [`RepeatedFit::wald`] and
-//! [`RepeatedFit::contrast`] include them (the 1997 formula as printed);
-//! [`RepeatedFit::wald_first_order`] leaves them out, the version spec 3.3
+//! the parameterisation, here (σ², ρ). `RepeatedFit::fixed` includes
+//! them (the 1997 formula as printed); `RepeatedFit::first_order` leaves
+//! them out, the version spec 3.3
 //! recommends printing as "Kenward-Roger (first-order, without
 //! second-derivative terms)". The df m and the scale λ do not involve Rᵢⱼ.
 //! For CS and UN the two coincide.
 
 use nalgebra::DMatrix;
 
-use super::ddf::{self, ContrastTest, Ddf, DfInputs, Information, WaldTest};
+use super::ddf::{self, DfInputs};
 use super::design::FixedDesign;
 use super::error::MixedError;
-use super::fit::{MAX_FIXED_COLUMNS, check_identified, matrix_of, rows_of};
+use super::fit::{MAX_FIXED_COLUMNS, check_identified, rows_of};
+use super::inference::FixedInference;
 use super::model::{CovarianceModel, Derivatives};
 use super::optimiser::{self, Optimum};
 use super::repeated_layout::{RepeatedLayout, check_estimable};
@@ -45,7 +46,11 @@ pub struct RepeatedFit {
     pub parameters: Vec<CovarianceParameter>,
     /// Σ̂ over all occasions, row-major.
     pub covariance: Vec<Vec<f64>>,
-    pub beta: Vec<f64>,
+    /// β̂ and the tests and contrasts on it (KR with Rᵢⱼ).
+    pub fixed: FixedInference,
+    /// The same with KR's Φ_A without Rᵢⱼ (equal to `fixed` unless
+    /// `second_derivative_terms`); only its Kenward-Roger tests differ.
+    pub first_order: FixedInference,
     /// Φ = (X'V̂⁻¹X)⁻¹, row-major.
     pub phi: Vec<Vec<f64>>,
     /// Kenward-Roger's Φ_A = Φ + 2Λ (with Rᵢⱼ for AR(1)).
@@ -71,8 +76,6 @@ pub struct RepeatedFit {
     pub fixed_columns: usize,
     /// True when Kenward-Roger's Rᵢⱼ are not zero (AR(1)).
     pub second_derivative_terms: bool,
-    pub(crate) df_inputs: DfInputs,
-    pub(crate) df_inputs_first_order: DfInputs,
 }
 
 /// Fits the structure by REML. `y` is already decimal-shifted by the
@@ -101,7 +104,6 @@ pub fn fit_repeated(
             })
             .collect(),
         covariance: rows_of(&sigma),
-        beta,
         phi: rows_of(&df_inputs.phi),
         phi_adjusted: rows_of(&df_inputs.phi_adjusted),
         criterion: opt.criterion,
@@ -116,8 +118,14 @@ pub fn fit_repeated(
         subjects: model.subjects(),
         fixed_columns: p,
         second_derivative_terms: !model.pattern.linear(),
-        df_inputs,
-        df_inputs_first_order,
+        fixed: FixedInference {
+            beta: beta.clone(),
+            df_inputs,
+        },
+        first_order: FixedInference {
+            beta,
+            df_inputs: df_inputs_first_order,
+        },
     })
 }
 
@@ -219,58 +227,6 @@ fn df_inputs(
         cov_observed: cov_observed.clone(),
     };
     Ok((make(with_r), make(first_order), fe.beta.clone()))
-}
-
-impl RepeatedFit {
-    fn test(&self, inputs: &DfInputs, l: &[Vec<f64>], method: Ddf) -> Result<WaldTest, MixedError> {
-        let lm = matrix_of(l, self.beta.len())?;
-        let test = match method {
-            Ddf::KenwardRoger => ddf::kenward_roger(inputs, &self.beta, &lm),
-            Ddf::Satterthwaite(info) => ddf::satterthwaite(inputs, &self.beta, &lm, info),
-        };
-        test.ok_or_else(|| MixedError::BadHypothesis {
-            reason: "the rows of L are not linearly independent".into(),
-        })
-    }
-
-    /// The Wald F test of Lβ = 0 (rows of L over the kept columns); KR
-    /// with Rᵢⱼ.
-    pub fn wald(&self, l: &[Vec<f64>], method: Ddf) -> Result<WaldTest, MixedError> {
-        self.test(&self.df_inputs, l, method)
-    }
-
-    /// Kenward-Roger without the second-derivative terms Rᵢⱼ (equal to
-    /// [`Self::wald`] unless `second_derivative_terms`).
-    pub fn wald_first_order(&self, l: &[Vec<f64>]) -> Result<WaldTest, MixedError> {
-        self.test(&self.df_inputs_first_order, l, Ddf::KenwardRoger)
-    }
-
-    /// The Type III test of fixed term `term` of `design`.
-    pub fn type3(
-        &self,
-        design: &FixedDesign,
-        term: usize,
-        method: Ddf,
-    ) -> Result<WaldTest, MixedError> {
-        self.wald(&design.type3_rows(term)?, method)
-    }
-
-    /// One linear function lβ with its SE and df (KR's SE with Rᵢⱼ).
-    pub fn contrast(&self, l: &[f64], method: Ddf) -> Result<ContrastTest, MixedError> {
-        if l.len() != self.beta.len() {
-            return Err(MixedError::LengthMismatch {
-                what: "a contrast".into(),
-                expected: self.beta.len(),
-                found: l.len(),
-            });
-        }
-        Ok(ddf::contrast(&self.df_inputs, &self.beta, l, method))
-    }
-
-    /// Satterthwaite df of one contrast with either information.
-    pub fn satterthwaite_df(&self, l: &[f64], information: Information) -> f64 {
-        ddf::satterthwaite_single(&self.df_inputs, l, information)
-    }
 }
 
 #[cfg(test)]

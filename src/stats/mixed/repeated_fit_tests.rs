@@ -1,6 +1,7 @@
 //! Tests of the repeated-measures fit on invented data.
 
 use super::*;
+use crate::stats::mixed::Information;
 use crate::stats::mixed::subjects::tests::invented;
 
 /// Single-row KR: λ = 1 and m equals the expected-information
