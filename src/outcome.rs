@@ -3,12 +3,13 @@
 //! no engine and no output.
 
 mod checks;
+pub mod covariance;
 pub mod linear;
 pub mod mixed;
 mod power;
 pub mod repeated;
 
-pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, most_extreme};
+pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, ResidualKind, most_extreme};
 pub use linear::{CellRow, RESIDUAL, term_label};
 pub use power::PowerResult;
 
@@ -62,5 +63,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 7;
+    const SCHEMA: u32 = 8;
 }

@@ -354,7 +354,10 @@ pub struct ChecksRecord {
     pub outliers: Vec<OutlierRecord>,
     /// "conditional" in blocks with random terms: the residuals are the
     /// observations less the fixed effects and the predicted unit effects,
-    /// and `studentized_residual` is the studentized conditional residual.
+    /// and `studentized_residual` is the studentized conditional residual;
+    /// "normalised" with a covariance structure over a repeated factor:
+    /// each subject's residuals transformed by the inverse Cholesky factor
+    /// of its fitted covariance, and `studentized_residual` is that value.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub residuals: Option<&'static str>,
 }
@@ -680,7 +683,7 @@ fn checks_record(c: &crate::outcome::Checks) -> ChecksRecord {
                 studentized_residual: finite(o.studentized_residual),
             })
             .collect(),
-        residuals: c.conditional.then_some("conditional"),
+        residuals: c.residuals.key(),
     }
 }
 

@@ -4,37 +4,10 @@
 //! open oats split-plot and Machines datasets (tests/data/open, sources in
 //! SOURCES.md there); the deletion of two oats subplots is invented.
 
+mod documents;
+
+use documents::{build, open};
 use serde_json::Value;
-use std::process::Command;
-
-/// Builds `document` with `files` (name, contents) beside it; the results
-/// file, or the error output.
-fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> {
-    let dir = tempfile::tempdir().expect("temp dir");
-    let p = dir.path();
-    for (name, text) in files {
-        std::fs::write(p.join(name), text).expect("data");
-    }
-    std::fs::write(p.join("report.md"), document).expect("doc");
-    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
-        .current_dir(p)
-        .args(["build", "report.md", "-o", "out", "--to", "md"])
-        .output()
-        .expect("runs");
-    if !o.status.success() {
-        return Err(String::from_utf8_lossy(&o.stderr).into_owned());
-    }
-    let text = std::fs::read_to_string(p.join("out/report.results.json")).expect("results");
-    Ok(serde_json::from_str(&text).expect("json"))
-}
-
-fn open(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/tests/data/open/{name}",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("data file")
-}
 
 /// Relative agreement; the spec's values carry 10 to 12 digits, and the
 /// REML fit converges to about 1e-11 relative (spec 2.3), so 1e-8 is the bar.

@@ -3,35 +3,10 @@
 //! sleepstudy, open data) and against pingouin's `mixed_anova` on the
 //! invented data of tests/reference/repeated_measures.json.
 
+mod documents;
+
+use documents::{build, open};
 use serde_json::Value;
-use std::process::Command;
-
-fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> {
-    let dir = tempfile::tempdir().expect("temp dir");
-    let p = dir.path();
-    for (name, text) in files {
-        std::fs::write(p.join(name), text).expect("data");
-    }
-    std::fs::write(p.join("report.md"), document).expect("doc");
-    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
-        .current_dir(p)
-        .args(["build", "report.md", "-o", "out", "--to", "md"])
-        .output()
-        .expect("runs");
-    if !o.status.success() {
-        return Err(String::from_utf8_lossy(&o.stderr).into_owned());
-    }
-    let text = std::fs::read_to_string(p.join("out/report.results.json")).expect("results");
-    Ok(serde_json::from_str(&text).expect("json"))
-}
-
-fn open(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/tests/data/open/{name}",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("data file")
-}
 
 /// The spec prints 12 significant digits and the computation agrees with
 /// the libraries to about 1e-13 (tests/repeated_core.rs), so 1e-9 relative.

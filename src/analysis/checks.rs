@@ -42,7 +42,7 @@ pub(crate) fn summary_checks(summaries: &[GroupSummary], shown: bool) -> Checks 
         outliers: Vec::new(),
         from_summary: true,
         by_request: false,
-        conditional: false,
+        residuals: crate::outcome::ResidualKind::Ordinary,
     }
 }
 
@@ -194,14 +194,10 @@ fn levene_only_note(checks: &Checks, alpha: f64) -> Option<String> {
 /// (printed on the terminal and boxed in the report) never grows with
 /// the number of rows.
 fn outlier_advice(checks: &Checks, decimals: u32) -> Vec<Note> {
-    let kind = if checks.conditional {
-        "conditional "
-    } else {
-        ""
-    };
+    let kind = checks.residuals.flagged();
     let describe = |o: &OutlierRow| {
         format!(
-            "line {} (level `{}`, value {}, studentized {kind}residual {})",
+            "line {} (level `{}`, value {}, {kind} {})",
             o.line,
             o.level,
             crate::format::fixed(o.value, decimals),
@@ -226,7 +222,7 @@ fn outlier_advice(checks: &Checks, decimals: u32) -> Vec<Note> {
         .map(describe)
         .collect();
     vec![note(format!(
-        "{} observations have a studentized {kind}residual beyond ±{OUTLIER_THRESHOLD}; the {OUTLIERS_LISTED} most extreme are on {}. Check them against the records; the results file lists the {} most extreme. Flagging excludes nothing; with this many, look at the distribution of the residuals (a transformation of the response, or `method: ranks`) rather than at single observations.",
+        "{} observations have a {kind} beyond ±{OUTLIER_THRESHOLD}; the {OUTLIERS_LISTED} most extreme are on {}. Check them against the records; the results file lists the {} most extreme. Flagging excludes nothing; with this many, look at the distribution of the residuals (a transformation of the response, or `method: ranks`) rather than at single observations.",
         crate::format::count(checks.outlier_count),
         worst.join("; "),
         checks.outliers.len()

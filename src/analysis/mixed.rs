@@ -16,6 +16,7 @@ mod families;
 mod fixed_terms;
 mod repeated;
 mod residuals;
+mod structured;
 mod units;
 
 use super::binding::decimals_shown;
@@ -29,6 +30,7 @@ use super::request::{Analysis, Request};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::doc::block::{DdfMethod, Omnibus};
+use crate::outcome::ResidualKind;
 use crate::outcome::linear::{
     Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Role,
 };
@@ -102,20 +104,7 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             "check that every random term names units with several observations each, and that the fixed terms are estimable",
         )
     })?;
-    let repeated = spec
-        .subject
-        .as_ref()
-        .map(|s| {
-            let column = names.iter().position(|n| *n == s.value).ok_or_else(|| {
-                errors.model(
-                    format!("the subject column `{}` was not read", s.value),
-                    "check `subject`",
-                )
-            })?;
-            repeated::repeated(&data, &model, column, &s.value)
-                .map_err(|(message, hint)| errors.model(message, &hint))
-        })
-        .transpose()?;
+    let (repeated, structured) = repeated_reading(&errors, &names, &data, &model, &design)?;
     let predictions = fit
         .predictions(&data.offsets, &design, &units.terms)
         .map_err(|e| {
@@ -139,9 +128,67 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
         predictions,
         units,
         repeated,
+        structured,
     };
     let outcome = analysed.outcome(&errors, block)?;
     Ok((outcome, streamed))
+}
+
+/// The repeated-measures reading of a block with `subject` (classification
+/// and univariate analysis) and, with `covariance`, the structured fit.
+fn repeated_reading(
+    errors: &Errors<'_>,
+    names: &[String],
+    data: &FactorialData,
+    model: &Model,
+    design: &FixedDesign,
+) -> Result<
+    (
+        Option<crate::outcome::repeated::RepeatedDetail>,
+        Option<structured::Structured>,
+    ),
+    Diagnostic,
+> {
+    let spec = errors.spec;
+    let repeated = spec
+        .subject
+        .as_ref()
+        .map(|s| {
+            let column = names.iter().position(|n| *n == s.value).ok_or_else(|| {
+                errors.model(
+                    format!("the subject column `{}` was not read", s.value),
+                    "check `subject`",
+                )
+            })?;
+            let detail = repeated::repeated(data, model, column, &s.value)
+                .map_err(|(message, hint)| errors.model(message, &hint))?;
+            Ok::<_, Diagnostic>((column, detail))
+        })
+        .transpose()?;
+    let structured = match (&repeated, spec.covariance.as_ref()) {
+        (Some((column, detail)), Some(covariance)) => {
+            let within: Vec<usize> = detail
+                .within
+                .iter()
+                .filter_map(|w| model.index_of(w))
+                .collect();
+            let repeats = structured::Repeats {
+                data,
+                design,
+                subject: *column,
+                within: &within,
+                factor_names: &model.factor_names,
+                kenward_roger: spec.ddf == DdfMethod::KenwardRoger,
+                complete_subjects: detail.complete_subjects,
+            };
+            Some(
+                structured::structured(&repeats, covariance.value)
+                    .map_err(|(message, hint)| errors.model(message, &hint))?,
+            )
+        }
+        _ => None,
+    };
+    Ok((repeated.map(|(_, detail)| detail), structured))
 }
 
 /// A fitted mixed model and what it was fitted to.
@@ -157,12 +204,18 @@ struct Analysed {
     predictions: mixed::Predictions,
     units: units::Units,
     repeated: Option<crate::outcome::repeated::RepeatedDetail>,
+    /// The covariance structure `covariance` asks for, which then gives the
+    /// tests, comparisons and checks in place of the random subject term.
+    structured: Option<structured::Structured>,
 }
 
 impl Analysed {
     /// The classical stratum analysis, when the layout has one and every
     /// stratum's variance is positive (then REML reproduces it exactly).
     fn classical(&self) -> Result<strata::StratumAnalysis, crate::outcome::mixed::NotClassical> {
+        if self.structured.is_some() {
+            return Err(crate::outcome::mixed::NotClassical::Structured);
+        }
         let names = self.names();
         let labels = &self.data.levels;
         let a = strata::analyse(&StrataInput {
@@ -186,6 +239,14 @@ impl Analysed {
         }
     }
 
+    /// The fixed-effect inference of the model the block reports: the
+    /// covariance structure's when it has one, else the random terms'.
+    fn inference(&self) -> &mixed::FixedInference {
+        self.structured
+            .as_ref()
+            .map_or(&self.fit.fixed, structured::Structured::inference)
+    }
+
     fn names(&self) -> detail::Names<'_> {
         detail::Names {
             random: &self.random_names,
@@ -204,14 +265,17 @@ impl Analysed {
         let spec = errors.spec;
         let classical = self.classical();
         let tested = fixed_terms::Tested {
-            fit: &self.fit.fixed,
+            fit: self.inference(),
             design: &self.design,
             ddf: self.ddf,
             alpha: self.alpha,
             classical: classical.as_ref().ok(),
             random_names: &self.random_names,
         };
-        let residual_variance = self.fit.components.last().map_or(f64::NAN, |c| c.variance);
+        let residual_variance = match &self.structured {
+            Some(_) => f64::NAN,
+            None => self.fit.components.last().map_or(f64::NAN, |c| c.variance),
+        };
         let strata = tested.strata(residual_variance);
         let terms: Vec<_> = self
             .model
@@ -227,16 +291,11 @@ impl Analysed {
         let data = &self.data;
         let treatments = self.model.treatment_factors();
         let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data));
-        let (checks, spread_note) = residuals::Checked {
-            spec,
-            data,
-            predictions: &self.predictions,
-            cells: &cells,
-            factor_names: &self.model.factor_names,
-            levels: &self.layout.levels,
-        }
-        .checks();
-        let mut notes = self.notes();
+        let (checks, spread_note) = self.checked(spec, &cells);
+        let mut notes = match &self.structured {
+            Some(s) => structured::notes(&s.detail, spec.ddf),
+            None => self.notes(),
+        };
         if let Some(Err(reason)) = self.repeated.as_ref().map(|r| &r.univariate) {
             notes.push(Note::other(format!(
                 "The univariate repeated-measures analysis (with sphericity corrections) was not possible: {reason}. The mixed model's tests use every observation."
@@ -244,21 +303,32 @@ impl Analysed {
         }
         notes.extend(spread_note);
         notes.extend(advice(&checks, Remedies::Linear, self.alpha, data.decimals));
-        let predicted = residuals::predicted_effects(
-            spec,
-            &self.predictions,
-            &self.fit.components,
-            &self.units.unit_names,
-        );
+        let predicted = if self.structured.is_some() {
+            Vec::new()
+        } else {
+            residuals::predicted_effects(
+                spec,
+                &self.predictions,
+                &self.fit.components,
+                &self.units.unit_names,
+            )
+        };
         notes.extend(residuals::predicted_advice(&predicted, self.alpha));
-        let mut detail = detail::detail(
-            &self.fit,
-            spec.ddf,
-            classical.as_ref().map_err(Clone::clone),
-            &self.names(),
-            self.alpha,
-        );
+        let mut detail = match &self.structured {
+            Some(s) => detail::structured(&s.fit, spec.ddf),
+            None => detail::detail(
+                &self.fit,
+                spec.ddf,
+                classical.as_ref().map_err(Clone::clone),
+                &self.names(),
+                self.alpha,
+            ),
+        };
         detail.predicted = predicted;
+        let mut repeated = self.repeated.clone();
+        if let (Some(r), Some(s)) = (repeated.as_mut(), &self.structured) {
+            r.covariance = Some(s.detail.clone());
+        }
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         let cells = cells.rows(data);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
@@ -299,8 +369,40 @@ impl Analysed {
             observed: self.observed(spec, &observations),
             observations,
             mixed: Some(Box::new(detail)),
-            repeated: self.repeated.map(Box::new),
+            repeated: repeated.map(Box::new),
         })
+    }
+
+    /// The residual checks: on the normalised residuals with a covariance
+    /// structure, else on the conditional ones.
+    fn checked(
+        &self,
+        spec: &crate::doc::block::AnovaSpec,
+        cells: &TreatmentCells,
+    ) -> (crate::outcome::Checks, Option<Note>) {
+        let (residuals, scores, kind) = match &self.structured {
+            Some(s) => (
+                &s.residuals.normalised,
+                &s.residuals.normalised,
+                ResidualKind::Normalised,
+            ),
+            None => (
+                &self.predictions.residuals,
+                &self.predictions.studentized,
+                ResidualKind::Conditional,
+            ),
+        };
+        residuals::Checked {
+            spec,
+            data: &self.data,
+            residuals,
+            scores,
+            kind,
+            cells,
+            factor_names: &self.model.factor_names,
+            levels: &self.layout.levels,
+        }
+        .checks()
     }
 
     /// Every observation with its fixed-factor levels, fitted value (fixed
@@ -311,12 +413,16 @@ impl Analysed {
             return Vec::new();
         }
         let data = &self.data;
+        let (fitted, residuals) = match &self.structured {
+            Some(s) => (&s.residuals.fitted, &s.residuals.normalised),
+            None => (&self.predictions.fitted, &self.predictions.residuals),
+        };
         (0..data.offsets.len())
             .map(|i| Observation {
                 levels: self.layout.rows[i].clone(),
                 value: data.origin + data.offsets[i],
-                fitted: data.origin + self.predictions.fitted[i],
-                residual: self.predictions.residuals[i],
+                fitted: data.origin + fitted[i],
+                residual: residuals[i],
                 line: data.lines[i],
             })
             .collect()
@@ -406,7 +512,7 @@ impl Analysed {
                 .count()
         };
         let estimating = Estimating {
-            fit: &self.fit.fixed,
+            fit: self.inference(),
             design: &self.design,
             ddf: self.ddf,
             terms: &self.model.terms,

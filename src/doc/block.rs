@@ -227,6 +227,9 @@ pub struct AnovaSpec {
     /// The column naming the unit measured repeatedly (`subject`); it is
     /// also the block's random term.
     pub subject: Option<Located<String>>,
+    /// The error structure over the repeated factor (`covariance`); without
+    /// it the subject is a random term.
+    pub covariance: Option<Located<super::block_covariance::Covariance>>,
     /// Denominator df of a mixed model's tests.
     pub ddf: DdfMethod,
     pub plots: PlotSpec,

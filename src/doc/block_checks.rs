@@ -282,6 +282,7 @@ pub(super) fn resolve(
     }
     errors.extend(reading_keys(&d, &data));
     errors.extend(model_keys(&mut d, &model.value));
+    errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
     errors.extend(super::block_random::random_keys(&d, &model.value, method));
     if !errors.is_empty() {
@@ -299,6 +300,7 @@ pub(super) fn resolve(
         _ => None,
     };
     let random = super::block_random::located_terms(&d);
+    let covariance = super::block_covariance::located_covariance(&d);
     Ok(AnovaSpec {
         acknowledge: d.acknowledge,
         sheet: d.sheet.map(|e| e.value),
@@ -312,6 +314,7 @@ pub(super) fn resolve(
         within: d.within,
         cells: d.cells,
         random,
+        covariance,
         subject: d.subject.map(|(e, t)| super::block::Located {
             value: t.factors[0].clone(),
             line: e.line,

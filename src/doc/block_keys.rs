@@ -67,6 +67,8 @@ pub struct AnovaDraft {
     pub ddf: Option<(Entry, super::block::DdfMethod)>,
     /// `subject`: the unit measured repeatedly.
     pub subject: Option<(Entry, super::formula::Term)>,
+    /// `covariance`: the repeated-measures error structure.
+    pub covariance: Option<(Entry, super::block_covariance::Covariance)>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -103,6 +105,7 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("random", super::block_random::read_random),
         ("ddf", super::block_random::read_ddf),
         ("subject", super::block_random::read_subject),
+        ("covariance", super::block_covariance::read_covariance),
         ("plot", display::read_plot),
         ("label", display::read_label),
         ("unit", display::read_unit),

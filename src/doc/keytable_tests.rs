@@ -52,6 +52,10 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),
+    (
+        "covariance",
+        "model: y ~ week\nsubject: animal\ncovariance: autoregressive, compare",
+    ),
     ("plot", "plot: box, means"),
     ("label", "label: Yield"),
     ("unit", "unit: kg"),

@@ -7,6 +7,7 @@
 
 pub mod block;
 mod block_checks;
+pub mod block_covariance;
 mod block_display;
 pub mod block_keys;
 mod block_random;

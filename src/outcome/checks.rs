@@ -24,11 +24,65 @@ pub struct Checks {
     /// The summaries-only set was asked for (`checks: summary`).
     #[serde(default)]
     pub by_request: bool,
-    /// The residuals are conditional on the predicted unit effects (a model
-    /// with random terms), and outliers are flagged by their studentized
-    /// conditional residual rather than the externally studentized one.
+    /// Which residuals were checked, and how flagged ones were scaled.
     #[serde(default)]
-    pub conditional: bool,
+    pub residuals: ResidualKind,
+}
+
+/// The residuals a model's checks read.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+pub enum ResidualKind {
+    /// Observation less fitted value; outliers by the externally
+    /// studentized residual.
+    #[default]
+    Ordinary,
+    /// Observation less the fixed effects and the predicted unit effects (a
+    /// model with random terms); outliers by the studentized conditional
+    /// residual.
+    Conditional,
+    /// Each subject's marginal residuals premultiplied by the inverse
+    /// Cholesky factor of its fitted covariance (a covariance structure over
+    /// a repeated factor): uncorrelated with unit variance under the model;
+    /// outliers by their size.
+    Normalised,
+}
+
+impl ResidualKind {
+    /// The name in the results file; none for ordinary residuals.
+    pub fn key(self) -> Option<&'static str> {
+        match self {
+            Self::Ordinary => None,
+            Self::Conditional => Some("conditional"),
+            Self::Normalised => Some("normalised"),
+        }
+    }
+
+    /// The residuals, in a sentence ("conditional residuals").
+    pub fn plural(self) -> &'static str {
+        match self {
+            Self::Ordinary => "residuals",
+            Self::Conditional => "conditional residuals",
+            Self::Normalised => "normalised residuals",
+        }
+    }
+
+    /// How a flagged residual was scaled, in a sentence.
+    pub fn scaled(self) -> &'static str {
+        match self {
+            Self::Ordinary => "an externally studentized residual",
+            Self::Conditional => "a studentized conditional residual",
+            Self::Normalised => "a normalised residual",
+        }
+    }
+
+    /// The residual of one flagged observation ("studentized residual").
+    pub fn flagged(self) -> &'static str {
+        match self {
+            Self::Ordinary => "studentized residual",
+            Self::Conditional => "studentized conditional residual",
+            Self::Normalised => "normalised residual",
+        }
+    }
 }
 
 /// An observation flagged by its studentized residual.

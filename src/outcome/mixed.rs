@@ -57,6 +57,9 @@ pub enum NotClassical {
     /// A stratum's variance is estimated at zero, so REML pools it with the
     /// stratum below and its tests differ from the classical ones.
     Pooled { term: String },
+    /// The errors follow a covariance structure over the repeated factor,
+    /// fitted by REML on every observation: there are no strata.
+    Structured,
 }
 
 /// The standard error of a difference of two means of one kind, with its

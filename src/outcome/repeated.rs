@@ -58,4 +58,7 @@ pub struct RepeatedDetail {
     /// The within-subject tests, or why the univariate analysis was not
     /// possible.
     pub univariate: Result<Vec<WithinTest>, String>,
+    /// The covariance structure the mixed model's tests use (`covariance`);
+    /// `None` when the subject is a random term.
+    pub covariance: Option<crate::outcome::covariance::CovarianceDetail>,
 }

@@ -3,6 +3,7 @@
 //! within-subject tests with their sphericity test and corrected p-values.
 
 use super::finite;
+use crate::outcome::covariance::{CovarianceDetail, StructureFit};
 use crate::outcome::repeated::{RepeatedDetail, WithinTest};
 use serde::Serialize;
 
@@ -25,6 +26,61 @@ pub struct RepeatedRecord {
     pub univariate: Option<Vec<WithinRecord>>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub univariate_not_computed: Option<String>,
+    /// The covariance structure of the mixed model (`covariance`); absent
+    /// when the subject is a random term.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub covariance: Option<CovarianceRecord>,
+}
+
+/// The structure the tests use, its parameters and fitted covariance, and
+/// the comparison of structures when asked.
+#[derive(Serialize)]
+pub struct CovarianceRecord {
+    /// `compound-symmetry`, `autoregressive` or `unstructured`.
+    pub structure: &'static str,
+    /// The repeated factor (within-subject factors joined with `:`).
+    pub factor: String,
+    pub occasions: Vec<String>,
+    /// The occasions' times for the autoregressive structure (the level
+    /// names as numbers); null when taken as equally spaced.
+    pub times: Option<Vec<f64>>,
+    pub parameters: Vec<ParameterRecord>,
+    /// Σ̂ over the occasions, row by row.
+    pub matrix: Vec<Vec<Option<f64>>>,
+    pub log_likelihood: Option<f64>,
+    pub aic: Option<f64>,
+    pub bic: Option<f64>,
+    pub bic_subjects: Option<f64>,
+    /// Kenward-Roger was computed without its second-derivative terms
+    /// (autoregressive structure).
+    pub kenward_roger_first_order: bool,
+    /// Every structure, when `covariance` asks for the comparison (empty
+    /// otherwise).
+    pub comparison: Vec<StructureRecord>,
+}
+
+#[derive(Serialize)]
+pub struct ParameterRecord {
+    pub name: String,
+    pub value: Option<f64>,
+    /// The correlation a covariance implies (null for variances).
+    pub correlation: Option<f64>,
+}
+
+/// One structure's REML information criteria; null values and the reason
+/// in `not_fitted` when it could not be fitted.
+#[derive(Serialize)]
+pub struct StructureRecord {
+    pub structure: &'static str,
+    pub parameters: usize,
+    pub log_likelihood: Option<f64>,
+    pub aic: Option<f64>,
+    pub bic: Option<f64>,
+    pub bic_subjects: Option<f64>,
+    pub lowest_aic: bool,
+    pub lowest_bic: bool,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub not_fitted: Option<String>,
 }
 
 #[derive(Serialize)]
@@ -71,6 +127,58 @@ pub fn repeated_record(r: &RepeatedDetail) -> RepeatedRecord {
             .ok()
             .map(|tests| tests.iter().map(within_record).collect()),
         univariate_not_computed: r.univariate.as_ref().err().cloned(),
+        covariance: r.covariance.as_ref().map(covariance_record),
+    }
+}
+
+fn covariance_record(c: &CovarianceDetail) -> CovarianceRecord {
+    let lowest = |key: fn(&StructureFit) -> f64| {
+        c.compared
+            .iter()
+            .filter(|s| s.failed.is_none())
+            .min_by(|a, b| key(a).total_cmp(&key(b)))
+            .map(|s| s.structure)
+    };
+    let (aic, bic) = (lowest(|s| s.aic), lowest(|s| s.bic));
+    CovarianceRecord {
+        structure: c.structure.key(),
+        factor: c.factor.clone(),
+        occasions: c.occasions.clone(),
+        times: c.times.clone(),
+        parameters: c
+            .parameters
+            .iter()
+            .map(|p| ParameterRecord {
+                name: p.name.clone(),
+                value: finite(p.value),
+                correlation: finite(p.correlation),
+            })
+            .collect(),
+        matrix: c
+            .covariance
+            .iter()
+            .map(|row| row.iter().map(|&v| finite(v)).collect())
+            .collect(),
+        log_likelihood: finite(c.fit.log_likelihood),
+        aic: finite(c.fit.aic),
+        bic: finite(c.fit.bic),
+        bic_subjects: finite(c.fit.bic_subjects),
+        kenward_roger_first_order: c.first_order,
+        comparison: c
+            .compared
+            .iter()
+            .map(|s| StructureRecord {
+                structure: s.structure.key(),
+                parameters: s.parameters,
+                log_likelihood: finite(s.log_likelihood),
+                aic: finite(s.aic),
+                bic: finite(s.bic),
+                bic_subjects: finite(s.bic_subjects),
+                lowest_aic: Some(s.structure) == aic,
+                lowest_bic: Some(s.structure) == bic,
+                not_fitted: s.failed.clone(),
+            })
+            .collect(),
     }
 }
 

@@ -7,7 +7,7 @@ use crate::doc::block::DdfMethod;
 use crate::outcome::mixed::{
     Fit, IntervalMethod, MixedDetail, NotClassical, Sed, VarianceComponent,
 };
-use crate::stats::mixed::{MixedFit, SdInterval};
+use crate::stats::mixed::{MixedFit, RepeatedFit, SdInterval};
 use crate::stats::strata::{self, ComparisonKind, StratumAnalysis, StratumId};
 
 /// Most random-effect levels for which profile intervals are computed.
@@ -92,6 +92,31 @@ pub(super) fn detail(
         seds,
         predicted: Vec::new(),
         interval_method,
+    }
+}
+
+/// The fit of a covariance structure over a repeated factor: its
+/// statistics, no variance components (the structure's parameters are in
+/// the repeated-measures detail) and no strata.
+pub(super) fn structured(fit: &RepeatedFit, ddf: DdfMethod) -> MixedDetail {
+    MixedDetail {
+        fit: Fit {
+            ddf,
+            converged: fit.converged,
+            iterations: fit.iterations,
+            log_likelihood: -fit.criterion / 2.0,
+            aic: fit.aic,
+            bic: fit.bic,
+            max_gradient: fit.max_scaled_gradient,
+            n: fit.observations,
+            p: fit.fixed_columns,
+        },
+        components: Vec::new(),
+        not_classical: Some(NotClassical::Structured),
+        cvs: Vec::new(),
+        seds: Vec::new(),
+        predicted: Vec::new(),
+        interval_method: IntervalMethod::Profile,
     }
 }
 

@@ -89,6 +89,7 @@ pub(super) fn repeated(
             .collect(),
         incomplete_count: incomplete.len(),
         univariate,
+        covariance: None,
     })
 }
 

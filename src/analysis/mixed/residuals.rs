@@ -2,7 +2,9 @@
 //! less the fixed effects and the predicted unit effects) are checked as a
 //! factorial model's residuals are, outliers flagged by their studentized
 //! conditional residual; and each random term's predicted effects are
-//! checked for shape and for units far from the rest.
+//! checked for shape and for units far from the rest. With a covariance
+//! structure over a repeated factor, the normalised residuals take the
+//! conditional residuals' place.
 
 use super::super::factorial::cells::TreatmentCells;
 use super::super::factorial::checks::{self, Fit};
@@ -11,7 +13,7 @@ use super::super::notes::Note;
 use crate::data::FactorialData;
 use crate::doc::block::{AnovaSpec, CheckSet};
 use crate::outcome::mixed::{FlaggedUnit, PredictedEffects};
-use crate::outcome::{Checks, OutlierRow};
+use crate::outcome::{Checks, OutlierRow, ResidualKind};
 use crate::stats::assumptions::{OUTLIER_THRESHOLD, OUTLIERS_KEPT, shapiro_wilk};
 use crate::stats::extremes::Extremes;
 use crate::stats::mixed::{Predictions, VarianceComponent};
@@ -20,18 +22,22 @@ use crate::stats::mixed::{Predictions, VarianceComponent};
 pub(super) struct Checked<'a> {
     pub spec: &'a AnovaSpec,
     pub data: &'a FactorialData,
-    pub predictions: &'a Predictions,
+    /// The residuals checked, each observation's value on the scale
+    /// outliers are judged by, and which residuals they are.
+    pub residuals: &'a [f64],
+    pub scores: &'a [f64],
+    pub kind: ResidualKind,
     pub cells: &'a TreatmentCells,
     pub factor_names: &'a [String],
     pub levels: &'a [usize],
 }
 
 impl Checked<'_> {
-    /// The residual checks `checks:` asks for, marked conditional.
+    /// The residual checks `checks:` asks for, marked with their kind.
     pub fn checks(&self) -> (Checks, Option<Note>) {
         let fit = Fit {
             data: self.data,
-            residuals: &self.predictions.residuals,
+            residuals: self.residuals,
             cells: self.cells,
             factor_names: self.factor_names,
             levels: self.levels,
@@ -39,18 +45,19 @@ impl Checked<'_> {
         let (checks, note) = checks::checks(self.spec, &fit, || self.outliers());
         (
             Checks {
-                conditional: true,
+                residuals: self.kind,
                 ..checks
             },
             note,
         )
     }
 
-    /// Observations whose studentized conditional residual is beyond the
-    /// threshold: how many, and the most extreme with their labels.
+    /// Observations whose score (studentized conditional or normalised
+    /// residual) is beyond the threshold: how many, and the most extreme
+    /// with their labels.
     fn outliers(&self) -> (usize, Vec<OutlierRow>) {
         let mut flagged = Extremes::new(OUTLIERS_KEPT);
-        for (i, &t) in self.predictions.studentized.iter().enumerate() {
+        for (i, &t) in self.scores.iter().enumerate() {
             if t.abs() > OUTLIER_THRESHOLD {
                 flagged.offer(t.abs(), (i, t));
             }

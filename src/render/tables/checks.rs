@@ -5,7 +5,7 @@ use super::keys::Keys;
 use super::{cell, col, join_words, text};
 use crate::format::{alpha_text, df_text, f_stat, fixed, p_value};
 use crate::outcome::mixed::PredictedEffects;
-use crate::outcome::{Checks, OUTLIERS_LISTED, most_extreme};
+use crate::outcome::{Checks, OUTLIERS_LISTED, ResidualKind, most_extreme};
 use crate::render::view::{Cell, TableView};
 use crate::stats::assumptions::{FTest, OUTLIER_THRESHOLD, ShapiroWilkSkip};
 
@@ -19,11 +19,7 @@ pub fn checks_table(
     subject: &str,
     number: usize,
 ) -> TableView {
-    let residuals = if c.conditional {
-        "conditional residuals"
-    } else {
-        "residuals"
-    };
+    let residuals = c.residuals.plural();
     let reading = |p: f64, yes: &str, no: &str| if p < alpha { yes } else { no }.to_string();
     let unequal = "no evidence of unequal variances";
     let mut rows = vec![
@@ -133,8 +129,10 @@ fn footnotes(c: &Checks, predicted: &[PredictedEffects], alpha: f64) -> Vec<Stri
         ),
         outliers_note(c),
     ];
-    if c.conditional {
-        footnotes.push(CONDITIONAL_NOTE.to_string());
+    match c.residuals {
+        ResidualKind::Ordinary => {}
+        ResidualKind::Conditional => footnotes.push(CONDITIONAL_NOTE.to_string()),
+        ResidualKind::Normalised => footnotes.push(NORMALISED_NOTE.to_string()),
     }
     footnotes.extend(predicted.iter().map(flagged_units_note));
     footnotes
@@ -143,6 +141,9 @@ fn footnotes(c: &Checks, predicted: &[PredictedEffects], alpha: f64) -> Vec<Stri
 /// What conditional residuals and predicted effects are, for a reader who
 /// knows residuals from fixed-effects models.
 const CONDITIONAL_NOTE: &str = "With random terms, the residuals are conditional: each observation less the fixed effects and its units' predicted effects (best linear unbiased predictions). Outliers are flagged by the residual over its standard deviation under the fitted model, and each unit's predicted effect likewise; the predicted effects are shrunk towards 0, the more so the fewer observations a unit has.";
+
+/// What normalised residuals are, for the same reader.
+const NORMALISED_NOTE: &str = "With a covariance structure over the repeated factor, the residuals are normalised: each subject's residuals (observation less the fixed effects) transformed by the fitted covariance of its observations, so that under the model they are uncorrelated with unit variance. Outliers are flagged by their size on that scale.";
 
 /// Shapiro-Wilk on a random term's standardised predicted effects.
 fn predicted_row(p: &PredictedEffects, keys: &Keys, alpha: f64) -> Vec<Cell> {
@@ -293,9 +294,5 @@ fn outlier_sentence(c: &Checks) -> String {
 
 /// How the flagged residuals were scaled.
 fn residual_kind(c: &Checks) -> &'static str {
-    if c.conditional {
-        "a studentized conditional residual"
-    } else {
-        "an externally studentized residual"
-    }
+    c.residuals.scaled()
 }

@@ -138,6 +138,12 @@ fn control_mark(c: &Comparison, i: usize) -> String {
 fn se_note(o: &LinearOutcome, family: &Family) -> String {
     let conf = confidence_label(o.alpha);
     let residual = o.residual();
+    let structured = o.repeated.as_ref().is_some_and(|r| r.covariance.is_some());
+    if structured {
+        return format!(
+            "Estimated marginal means from the mixed model, averaged with equal weight over the levels of the other factors. Each SE comes from the fitted covariance of the subjects' observations, and each mean has its own df; {conf} intervals use it."
+        );
+    }
     if o.mixed.is_some() {
         return format!(
             "Estimated marginal means from the mixed model, averaged with equal weight over the levels of the other factors. Each SE includes the variation of the random terms the mean is averaged over (blocks, whole plots), and each mean has its own df; {conf} intervals use it."

@@ -42,7 +42,15 @@ pub fn fixed_tests_table(
             ]
         })
         .collect();
+    let first_order = o
+        .repeated
+        .as_ref()
+        .and_then(|r| r.covariance.as_ref())
+        .is_some_and(|c| c.first_order);
     let ddf = match m.fit.ddf {
+        crate::doc::block::DdfMethod::KenwardRoger if first_order => {
+            "Kenward-Roger (first-order, without second-derivative terms)"
+        }
         crate::doc::block::DdfMethod::KenwardRoger => "Kenward-Roger",
         crate::doc::block::DdfMethod::Satterthwaite => "Satterthwaite",
     };
@@ -88,6 +96,7 @@ fn not_classical_text(n: &NotClassical) -> String {
         NotClassical::Pooled { term } => format!(
             "The variance of `{term}` is estimated at 0, so the mixed model pools that stratum with the one below and its tests differ from the classical stratum tests; the classical table is the randomisation-based analysis."
         ),
+        NotClassical::Structured => "The errors of each subject follow the covariance structure below, fitted by REML on every observation, so there is no classical stratum table; the univariate repeated-measures analysis, where possible, is shown for comparison.".to_string(),
     }
 }
 

@@ -7,6 +7,7 @@ mod anova;
 mod cells;
 mod checks;
 mod contrasts;
+mod covariance;
 mod keys;
 mod means;
 mod mixed;
@@ -141,7 +142,9 @@ fn omnibus_tables(
         tables.push(anova::anova_table(o, keys, numbers.next()));
     }
     tables.push(mixed::fixed_tests_table(o, m, keys, numbers.next()));
-    tables.push(mixed::components_table(o, m, keys, numbers.next()));
+    if !m.components.is_empty() {
+        tables.push(mixed::components_table(o, m, keys, numbers.next()));
+    }
     if !m.seds.is_empty() {
         tables.push(mixed::sed_table(o, m, keys, numbers.next()));
     }
@@ -159,6 +162,12 @@ fn repeated_tables(
     numbers: &mut Numbering,
     tables: &mut Vec<TableView>,
 ) {
+    if let Some(c) = &r.covariance {
+        tables.push(covariance::structure_table(o, r, c, keys, numbers.next()));
+        if !c.compared.is_empty() {
+            tables.push(covariance::comparison_table(o, c, keys, numbers.next()));
+        }
+    }
     if let Ok(tests) = &r.univariate {
         tables.push(repeated::within_table(o, r, tests, keys, numbers.next()));
         let number = *numbers.0;

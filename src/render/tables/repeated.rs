@@ -5,6 +5,7 @@
 
 use super::keys::Keys;
 use super::{cell, col, measure, shown_term, text};
+use crate::doc::block_covariance::CovarianceStructure;
 use crate::format::{f_stat, fixed, p_value};
 use crate::outcome::linear::LinearOutcome;
 use crate::outcome::repeated::{RepeatedDetail, WithinTest};
@@ -96,8 +97,16 @@ fn within_notes(r: &RepeatedDetail, tests: &[WithinTest]) -> Vec<String> {
         "The uncorrected F assumes sphericity (equal variances of the differences between occasions); the corrected p-values multiply both df by ε. Read the Greenhouse-Geisser p, or the Huynh-Feldt p (Lecoutre's form, capped at 1) when ε (GG) is above {HF_ABOVE}; Mauchly's test has little power with few subjects and should not decide the choice. Terms with 1 df need no correction."
     ));
     if let Some(t) = tests.iter().find(|t| t.gg_epsilon < HF_ABOVE) {
+        let mixed = match r.covariance.as_ref().map(|c| c.structure) {
+            None | Some(CovarianceStructure::CompoundSymmetry) => {
+                "and so are the mixed model's tests of the within-subject terms, which assume the same correlation between any two occasions (compound symmetry); `covariance: compare` fits structures that do not"
+            }
+            Some(_) => {
+                "the mixed model's tests above use a covariance structure that does not assume sphericity"
+            }
+        };
         notes.push(format!(
-            "Sphericity is doubtful for {} (ε (GG) = {}): read its corrected p; the uncorrected one is too optimistic, and so are the mixed model's tests of the within-subject terms, which assume the same correlation between any two occasions (compound symmetry).",
+            "Sphericity is doubtful for {} (ε (GG) = {}): read its corrected p; the uncorrected one is too optimistic, {mixed}.",
             t.term,
             fixed(t.gg_epsilon, 3)
         ));

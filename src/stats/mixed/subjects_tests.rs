@@ -6,8 +6,9 @@ use crate::stats::mixed::repeated_layout::RepeatedLayout;
 use crate::stats::mixed::structure::Structure;
 
 /// Eight invented subjects, two groups, four occasions at times 0, 1, 2, 4,
-/// three observations missing.
-pub(crate) fn invented(structure: Structure) -> SubjectBlocks {
+/// three observations missing: the responses, the design (group + occasion)
+/// and the layout.
+pub(crate) fn invented_data() -> (Vec<f64>, FixedDesign, RepeatedLayout) {
     let y_by_subject = [
         [10.1, 11.3, 12.9, 14.2],
         [9.4, 10.9, 11.2, 13.8],
@@ -42,6 +43,12 @@ pub(crate) fn invented(structure: Structure) -> SubjectBlocks {
         occasion_of: occasion,
         times: Some(vec![0.0, 1.0, 2.0, 4.0]),
     };
+    (y, design, rl)
+}
+
+/// The invented data's model with `structure`.
+pub(crate) fn invented(structure: Structure) -> SubjectBlocks {
+    let (y, design, rl) = invented_data();
     let times = rl.checked_times().unwrap();
     let subjects = rl.by_subject(y.len()).unwrap();
     SubjectBlocks::new(&y, &design, &subjects, Pattern::new(structure, &times)).unwrap()

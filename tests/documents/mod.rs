@@ -1,0 +1,36 @@
+//! A document built by the binary in a temporary folder, for the tests that
+//! check a block's results file end to end (mixed models, repeated
+//! measures, covariance structures).
+
+use serde_json::Value;
+use std::process::Command;
+
+/// Builds `document` with `files` (name, contents) beside it; the results
+/// file, or the error output.
+pub fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    for (name, text) in files {
+        std::fs::write(p.join(name), text).expect("data");
+    }
+    std::fs::write(p.join("report.md"), document).expect("doc");
+    let o = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+        .current_dir(p)
+        .args(["build", "report.md", "-o", "out", "--to", "md"])
+        .output()
+        .expect("runs");
+    if !o.status.success() {
+        return Err(String::from_utf8_lossy(&o.stderr).into_owned());
+    }
+    let text = std::fs::read_to_string(p.join("out/report.results.json")).expect("results");
+    Ok(serde_json::from_str(&text).expect("json"))
+}
+
+/// An open dataset of tests/data/open (sources in its SOURCES.md).
+pub fn open(name: &str) -> String {
+    std::fs::read_to_string(format!(
+        "{}/tests/data/open/{name}",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .expect("data file")
+}
