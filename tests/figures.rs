@@ -181,3 +181,80 @@ fn html_inlines_svg_and_results_record_figures() {
         "report-growth-box.svg"
     );
 }
+
+/// sleepstudy (tests/data/open, complete and balanced, Days saturated): the
+/// mixed model's mean at each day is the day's observed mean, computed
+/// here by plain sums. The profile's markers sit there (half a pixel), and
+/// `plot: subjects` adds one faint line per subject (18).
+#[test]
+fn profile_markers_sit_at_the_day_means_with_a_line_per_subject() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let csv = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/open/sleepstudy.csv"),
+    )
+    .expect("data");
+    std::fs::write(dir.path().join("sleep.csv"), &csv).expect("copy");
+    let doc = "# Sleep\n\n```anova\nid: sleep\ndata: sleep.csv\nmodel: Reaction ~ Days\nsubject: Subject\ncompare: none\nplot: profile, subjects\n```\n";
+    let built = compile(
+        "report.md",
+        doc.as_bytes(),
+        &DiskWorld {
+            base: dir.path().to_path_buf(),
+        },
+        Format::Markdown,
+    )
+    .unwrap_or_else(|d| panic!("{d}"));
+    let mut sums = [(0.0, 0usize); 10];
+    for line in csv.lines().skip(1).filter(|l| !l.trim().is_empty()) {
+        let f: Vec<&str> = line.split(',').collect();
+        let day: usize = f[1].parse().unwrap();
+        sums[day].0 += f[0].parse::<f64>().unwrap();
+        sums[day].1 += 1;
+    }
+    let svg = String::from_utf8(file(&built, "sleep-profile.svg").to_vec()).expect("utf-8");
+    let ticks: Vec<(f64, f64)> = texts(&svg, "ytick")
+        .into_iter()
+        .map(|(y, t)| (y - 4.0, t.parse::<f64>().expect("tick value")))
+        .collect();
+    let ((p0, v0), (p1, v1)) = (ticks[0], ticks[ticks.len() - 1]);
+    let per_pixel = (v1 - v0) / (p1 - p0);
+    let markers: Vec<f64> = svg
+        .lines()
+        .filter(|l| l.starts_with("<circle") && l.contains("class=\"mean\""))
+        .map(|l| attr(l, "cy").parse().expect("cy"))
+        .collect();
+    assert_eq!(markers.len(), 10);
+    for (cy, (sum, n)) in markers.iter().zip(sums) {
+        let mean = sum / n as f64;
+        let at = v0 + (cy - p0) * per_pixel;
+        assert!((at - mean).abs() <= 0.5 * per_pixel.abs(), "{at} vs {mean}");
+    }
+    assert!(
+        !svg.contains("stroke-opacity"),
+        "the plain profile has no subject lines"
+    );
+    let traced = String::from_utf8(file(&built, "sleep-subjects.svg").to_vec()).expect("utf-8");
+    assert_eq!(traced.matches("stroke-opacity").count(), 18);
+}
+
+#[test]
+fn a_profile_needs_a_subject() {
+    let doc = "# T\n\n```anova\ndata: d.csv\nmodel: y ~ g * t\nplot: profile\n```\n";
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("d.csv"), "g,t,y\na,1,1\n").expect("data");
+    let err = compile(
+        "report.md",
+        doc.as_bytes(),
+        &DiskWorld {
+            base: dir.path().to_path_buf(),
+        },
+        Format::Markdown,
+    )
+    .map(|_| ())
+    .unwrap_err()
+    .to_string();
+    assert!(
+        err.contains("`plot: profile` draws repeated measures"),
+        "{err}"
+    );
+}

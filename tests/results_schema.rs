@@ -113,6 +113,61 @@ mod contract {
         pub univariate: Option<Vec<WithinTerm>>,
         #[serde(default, deserialize_with = "present")]
         pub univariate_not_computed: Option<String>,
+        #[serde(default, deserialize_with = "present")]
+        pub covariance: Option<Covariance>,
+    }
+
+    /// `repeated.covariance` (README, "The same units measured several
+    /// times").
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Covariance {
+        pub structure: String,
+        pub factor: String,
+        pub occasions: Vec<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub times: Option<Vec<f64>>,
+        pub parameters: Vec<CovarianceParameter>,
+        pub matrix: Vec<Vec<Option<f64>>>,
+        #[serde(deserialize_with = "nullable")]
+        pub log_likelihood: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub aic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub bic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub bic_subjects: Option<f64>,
+        pub kenward_roger_first_order: bool,
+        pub comparison: Vec<StructureRow>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct CovarianceParameter {
+        pub name: String,
+        #[serde(deserialize_with = "nullable")]
+        pub value: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub correlation: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct StructureRow {
+        pub structure: String,
+        pub parameters: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub log_likelihood: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub aic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub bic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub bic_subjects: Option<f64>,
+        pub lowest_aic: bool,
+        pub lowest_bic: bool,
+        #[serde(default, deserialize_with = "present")]
+        pub not_fitted: Option<String>,
     }
 
     #[derive(Deserialize)]
@@ -552,6 +607,8 @@ mod contract {
         Interaction,
         Residuals,
         Qq,
+        Profile,
+        Subjects,
         Power,
     }
 

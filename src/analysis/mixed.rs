@@ -17,6 +17,7 @@ mod fixed_terms;
 mod repeated;
 mod residuals;
 mod structured;
+mod time_profile;
 mod units;
 
 use super::binding::decimals_shown;
@@ -134,21 +135,16 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
     Ok((outcome, streamed))
 }
 
-/// The repeated-measures reading of a block with `subject` (classification
-/// and univariate analysis) and, with `covariance`, the structured fit.
+/// The repeated-measures reading of a block with `subject` (the subject
+/// column's index, the classification and the univariate analysis) and,
+/// with `covariance`, the structured fit.
 fn repeated_reading(
     errors: &Errors<'_>,
     names: &[String],
     data: &FactorialData,
     model: &Model,
     design: &FixedDesign,
-) -> Result<
-    (
-        Option<crate::outcome::repeated::RepeatedDetail>,
-        Option<structured::Structured>,
-    ),
-    Diagnostic,
-> {
+) -> Result<RepeatedReading, Diagnostic> {
     let spec = errors.spec;
     let repeated = spec
         .subject
@@ -188,8 +184,15 @@ fn repeated_reading(
         }
         _ => None,
     };
-    Ok((repeated.map(|(_, detail)| detail), structured))
+    Ok((repeated, structured))
 }
+
+/// The subject column's index with the repeated-measures reading, and the
+/// structured fit.
+type RepeatedReading = (
+    Option<(usize, crate::outcome::repeated::RepeatedDetail)>,
+    Option<structured::Structured>,
+);
 
 /// A fitted mixed model and what it was fitted to.
 struct Analysed {
@@ -203,7 +206,9 @@ struct Analysed {
     fit: mixed::MixedFit,
     predictions: mixed::Predictions,
     units: units::Units,
-    repeated: Option<crate::outcome::repeated::RepeatedDetail>,
+    /// The subject column's index among the data's factors, and the
+    /// repeated-measures reading (`subject`).
+    repeated: Option<(usize, crate::outcome::repeated::RepeatedDetail)>,
     /// The covariance structure `covariance` asks for, which then gives the
     /// tests, comparisons and checks in place of the random subject term.
     structured: Option<structured::Structured>,
@@ -296,7 +301,7 @@ impl Analysed {
             Some(s) => structured::notes(&s.detail, spec.ddf),
             None => self.notes(),
         };
-        if let Some(Err(reason)) = self.repeated.as_ref().map(|r| &r.univariate) {
+        if let Some(Err(reason)) = self.repeated.as_ref().map(|(_, r)| &r.univariate) {
             notes.push(Note::other(format!(
                 "The univariate repeated-measures analysis (with sphericity corrections) was not possible: {reason}. The mixed model's tests use every observation."
             )));
@@ -325,10 +330,7 @@ impl Analysed {
             ),
         };
         detail.predicted = predicted;
-        let mut repeated = self.repeated.clone();
-        if let (Some(r), Some(s)) = (repeated.as_mut(), &self.structured) {
-            r.covariance = Some(s.detail.clone());
-        }
+        let repeated = self.repeated_detail(spec);
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         let cells = cells.rows(data);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
@@ -490,6 +492,56 @@ impl Analysed {
         notes
     }
 
+    /// The repeated-measures detail with the structure and the profile.
+    fn repeated_detail(
+        &self,
+        spec: &crate::doc::block::AnovaSpec,
+    ) -> Option<crate::outcome::repeated::RepeatedDetail> {
+        let (subject, detail) = self.repeated.as_ref()?;
+        let count = |fixed: &[Option<usize>]| self.count(fixed);
+        Some(crate::outcome::repeated::RepeatedDetail {
+            covariance: self.structured.as_ref().map(|s| s.detail.clone()),
+            profile: time_profile::profile(
+                spec,
+                &self.estimating(&count),
+                &self.data,
+                detail,
+                *subject,
+            ),
+            ..detail.clone()
+        })
+    }
+
+    /// Observations at the given levels of the fixed factors.
+    fn count(&self, fixed: &[Option<usize>]) -> usize {
+        let data = &self.data;
+        (0..data.offsets.len())
+            .filter(|&i| {
+                let row = data.row(i);
+                fixed
+                    .iter()
+                    .enumerate()
+                    .all(|(f, l)| l.is_none_or(|l| row[f] == l))
+            })
+            .count()
+    }
+
+    /// What the means and comparisons read.
+    fn estimating<'a>(&'a self, count: &'a dyn Fn(&[Option<usize>]) -> usize) -> Estimating<'a> {
+        Estimating {
+            fit: self.inference(),
+            design: &self.design,
+            ddf: self.ddf,
+            terms: &self.model.terms,
+            levels: &self.layout.levels,
+            labels: &self.data.levels[..self.layout.levels.len()],
+            model: &self.model,
+            count,
+            origin: self.data.origin,
+            alpha: self.alpha,
+        }
+    }
+
     /// The comparison families `compare`, `within` and `cells` ask for; the
     /// marginal means alone with `compare: none`.
     fn families(
@@ -498,31 +550,9 @@ impl Analysed {
         terms: &[crate::outcome::linear::TermTest],
     ) -> Result<Vec<Family>, Diagnostic> {
         let spec = errors.spec;
-        let data = &self.data;
+        let count = |fixed: &[Option<usize>]| self.count(fixed);
+        let estimating = self.estimating(&count);
         let fixed_count = self.layout.levels.len();
-        let count = |fixed: &[Option<usize>]| {
-            (0..data.offsets.len())
-                .filter(|&i| {
-                    let row = data.row(i);
-                    fixed
-                        .iter()
-                        .enumerate()
-                        .all(|(f, l)| l.is_none_or(|l| row[f] == l))
-                })
-                .count()
-        };
-        let estimating = Estimating {
-            fit: self.inference(),
-            design: &self.design,
-            ddf: self.ddf,
-            terms: &self.model.terms,
-            levels: &self.layout.levels,
-            labels: &data.levels[..fixed_count],
-            model: &self.model,
-            count: &count,
-            origin: data.origin,
-            alpha: self.alpha,
-        };
         let compared: Vec<usize> = (0..fixed_count)
             .filter(|&f| !self.model.is_block(f) && self.model.terms.contains(&vec![f]))
             .filter(|&f| {

@@ -97,16 +97,23 @@ pub enum PlotKind {
     Interaction,
     Residuals,
     Qq,
+    /// Repeated measures: the means at each occasion with their intervals,
+    /// a line per between-subject group.
+    Profile,
+    /// The profile with each subject's observations as a faint line.
+    Subjects,
 }
 
 impl PlotKind {
-    pub const ALL: [PlotKind; 6] = [
+    pub const ALL: [PlotKind; 8] = [
         PlotKind::Box,
         PlotKind::Means,
         PlotKind::Strip,
         PlotKind::Interaction,
         PlotKind::Residuals,
         PlotKind::Qq,
+        PlotKind::Profile,
+        PlotKind::Subjects,
     ];
 
     pub fn key(self) -> &'static str {
@@ -117,6 +124,8 @@ impl PlotKind {
             PlotKind::Interaction => "interaction",
             PlotKind::Residuals => "residuals",
             PlotKind::Qq => "qq",
+            PlotKind::Profile => "profile",
+            PlotKind::Subjects => "subjects",
         }
     }
 }

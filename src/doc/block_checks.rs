@@ -175,6 +175,21 @@ fn model_keys(d: &mut AnovaDraft, formula: &Formula) -> Vec<SpecError> {
             "use box, means or strip for one factor",
         ));
     }
+    if let Some(e) = &d.plot
+        && d.subject.is_none()
+        && let Some(k) = d.plots.kinds.iter().find(|k| {
+            matches!(
+                k,
+                super::block::PlotKind::Profile | super::block::PlotKind::Subjects
+            )
+        })
+    {
+        errors.push(bad(
+            e,
+            format!("`plot: {}` draws repeated measures", k.key()),
+            "add `subject: <column>` naming the animal, plot or panellist measured repeatedly, or use means or interaction",
+        ));
+    }
     if let Some((e, true)) = &d.layout {
         if formula.terms.len() != 1 || formula.terms[0].factors.len() != 1 {
             errors.push(bad(

@@ -267,6 +267,8 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
     let note = dense_note(kind, count);
     match kind {
         PlotKind::Interaction => interaction_figure(o, id, n),
+        PlotKind::Profile => profile_figure(o, id, n, false),
+        PlotKind::Subjects => profile_figure(o, id, n, true),
         PlotKind::Residuals => {
             let many = dense::summarised(count);
             let lines: Vec<usize> = o.observations.iter().map(|obs| obs.line).collect();
@@ -368,7 +370,61 @@ fn interaction_figure(o: &LinearOutcome, id: &str, n: usize) -> Option<(String, 
         &caption,
         &x_labels,
         &series,
+        &[],
         (&axis_title(o), x_name, line_name),
+        spec.reference,
+    );
+    Some((caption, svg))
+}
+
+/// A repeated-measures profile: the model's means at each time with their
+/// intervals, a line per between-subject group, and for `plot: subjects`
+/// each subject's observations faintly behind them.
+fn profile_figure(
+    o: &LinearOutcome,
+    id: &str,
+    n: usize,
+    with_subjects: bool,
+) -> Option<(String, String)> {
+    let p = o.repeated.as_ref()?.profile.as_ref()?;
+    let traces = if with_subjects { &p.subjects[..] } else { &[] };
+    let spec = &o.presentation.plots;
+    let names: Vec<String> = match &p.group {
+        Some(_) => p.groups.clone(),
+        None => vec![subject(o).to_string()],
+    };
+    let series: Vec<Series> = names.into_iter().zip(p.means.iter().cloned()).collect();
+    let x_labels: Vec<&str> = p.times.iter().map(String::as_str).collect();
+    let time = spec.display(&p.time);
+    let group = p.group.as_deref().map_or("", |g| spec.display(g));
+    let lines = match &p.group {
+        Some(_) => format!(", one line per level of {group}"),
+        None => String::new(),
+    };
+    let traced = if traces.is_empty() {
+        String::new()
+    } else if p.subjects.len() < p.subjects_total {
+        format!(
+            "; faint lines: the first {} of {} subjects' observations",
+            p.subjects.len(),
+            p.subjects_total
+        )
+    } else {
+        "; faint lines: each subject's observations".to_string()
+    };
+    let caption = format!(
+        "Figure {n}. Estimated marginal means of {} at each level of {time}{lines}, with {} confidence intervals from the mixed model (each mean with its own SE and df){traced}.",
+        subject(o),
+        confidence_label(o.alpha)
+    );
+    let svg = interaction_plot(
+        id,
+        &caption,
+        &caption,
+        &x_labels,
+        &series,
+        traces,
+        (&axis_title(o), time, group),
         spec.reference,
     );
     Some((caption, svg))
@@ -405,7 +461,7 @@ fn dense_note(kind: PlotKind, observations: usize) -> String {
                 ),
             );
         }
-        PlotKind::Interaction => return String::new(),
+        PlotKind::Interaction | PlotKind::Profile | PlotKind::Subjects => return String::new(),
     };
     dense::caption_note(observations, what)
 }

@@ -295,6 +295,20 @@ impl Svg {
         );
     }
 
+    /// A thin, translucent line behind the main marks (one subject's
+    /// observations under the means).
+    pub fn faint_polyline(&mut self, points: &[(f64, f64)], stroke: &str) {
+        let pts: Vec<String> = points
+            .iter()
+            .map(|(x, y)| format!("{},{}", c(*x), c(*y)))
+            .collect();
+        let _ = writeln!(
+            self.out,
+            "<polyline points=\"{}\" fill=\"none\" stroke=\"{stroke}\" stroke-width=\"0.8\" stroke-opacity=\"0.35\"/>",
+            pts.join(" ")
+        );
+    }
+
     /// Text; `anchor` is start, middle or end; `rotate` in degrees about the anchor.
     pub fn text(
         &mut self,

@@ -568,7 +568,9 @@ pub(super) fn qq_plot(id: &str, title: &str, desc: &str, qq: &NormalQq) -> Strin
     svg.finish()
 }
 
-/// Interaction plot: x = levels of one factor, a line per level of another.
+/// Interaction plot: x = levels of one factor, a line per level of another;
+/// `traces` (series index, value per x level) are drawn faintly behind the
+/// means in their series' colour (a profile's subjects).
 #[allow(clippy::too_many_arguments)]
 pub(super) fn interaction_plot(
     id: &str,
@@ -576,23 +578,31 @@ pub(super) fn interaction_plot(
     desc: &str,
     x_labels: &[&str],
     series: &[Series],
+    traces: &[(usize, Vec<f64>)],
     (y_title, x_title, legend_title): (&str, &str, &str),
     reference: Option<f64>,
 ) -> String {
     let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
     let mut lo = f64::INFINITY;
     let mut hi = f64::NEG_INFINITY;
-    for (_, pts) in series {
-        for (m, l, u) in pts {
-            for v in [m, l, u] {
-                if v.is_finite() {
-                    lo = lo.min(*v);
-                    hi = hi.max(*v);
-                }
-            }
-        }
+    let means = series
+        .iter()
+        .flat_map(|(_, pts)| pts.iter().flat_map(|(m, l, u)| [*m, *l, *u]));
+    let traced = traces.iter().flat_map(|(_, v)| v.iter().copied());
+    for v in means.chain(traced).filter(|v| v.is_finite()) {
+        lo = lo.min(v);
+        hi = hi.max(v);
     }
     let (frame, xs) = Frame::categorical(&mut svg, x_labels, lo, hi, y_title, x_title, reference);
+    for (s, values) in traces {
+        let line: Vec<(f64, f64)> = values
+            .iter()
+            .zip(&xs)
+            .filter(|(v, _)| v.is_finite())
+            .map(|(v, x)| (*x, frame.y.map(*v)))
+            .collect();
+        svg.faint_polyline(&line, PALETTE[s % PALETTE.len()]);
+    }
     let legend_width = series
         .iter()
         .map(|(name, _)| text_width(name, TICK_SIZE as f32) as f64 + 14.0)

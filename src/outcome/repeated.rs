@@ -61,4 +61,31 @@ pub struct RepeatedDetail {
     /// The covariance structure the mixed model's tests use (`covariance`);
     /// `None` when the subject is a random term.
     pub covariance: Option<crate::outcome::covariance::CovarianceDetail>,
+    /// What the profile figure draws (`plot: profile` or `subjects`).
+    pub profile: Option<Profile>,
 }
+
+/// The means over time a profile figure draws: the model's estimated
+/// marginal means at each level of the time factor, one series per level
+/// of a between-subject factor, and, for `plot: subjects`, each subject's
+/// observations.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Profile {
+    /// The within-subject factor on the axis, and its levels.
+    pub time: String,
+    pub times: Vec<String>,
+    /// The between-subject factor whose levels are the lines (none: one
+    /// line), and its levels.
+    pub group: Option<String>,
+    pub groups: Vec<String>,
+    /// Per group, per time: (mean, lower, upper) at the block's confidence.
+    pub means: Vec<Vec<(f64, f64, f64)>>,
+    /// Per drawn subject: its group and its mean at each time (NaN where
+    /// not observed); at most `PROFILE_SUBJECTS` subjects, in label order.
+    pub subjects: Vec<(usize, Vec<f64>)>,
+    /// Subjects in all (more than drawn when there are very many).
+    pub subjects_total: usize,
+}
+
+/// Most subjects a profile figure draws as lines.
+pub const PROFILE_SUBJECTS: usize = 300;

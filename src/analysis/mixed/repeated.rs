@@ -90,6 +90,7 @@ pub(super) fn repeated(
         incomplete_count: incomplete.len(),
         univariate,
         covariance: None,
+        profile: None,
     })
 }
 
