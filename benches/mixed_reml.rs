@@ -92,7 +92,8 @@ fn time(name: &str, blocks: usize, a: usize, b: usize, reps: usize) {
     let fitted = start.elapsed().as_secs_f64();
     let tests: f64 = (0..3)
         .map(|t| {
-            fit.type3(&design, t, Ddf::KenwardRoger)
+            fit.fixed
+                .type3(&design, t, Ddf::KenwardRoger)
                 .map_or(f64::NAN, |w| w.f)
         })
         .sum();
