@@ -209,6 +209,7 @@ fn model_keys(d: &mut AnovaDraft, formula: &Formula) -> Vec<SpecError> {
             .random
             .iter()
             .flat_map(|(_, terms)| terms.iter().flat_map(|t| t.factors.iter()))
+            .chain(d.subject.iter().flat_map(|(_, t)| t.factors.iter()))
             .map(String::as_str)
             .collect();
         match display_names(e, formula, &random) {

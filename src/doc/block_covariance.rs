@@ -27,6 +27,15 @@ impl CovarianceStructure {
         Self::Unstructured,
     ];
 
+    /// The structure's name in a sentence.
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::CompoundSymmetry => "compound symmetry",
+            Self::Autoregressive => "first-order autoregressive",
+            Self::Unstructured => "unstructured",
+        }
+    }
+
     /// The name used in the block key and the results file.
     pub fn key(self) -> &'static str {
         match self {

@@ -34,6 +34,7 @@ pub const MAX_EXPRESSION_OUTPUT: usize = 10_000;
 /// The filter appended to every expression to learn the fuel it used.
 const FUEL_PROBE: &str = "sheaf_fuel_probe";
 
+mod covariance;
 mod names;
 
 /// Degrees of freedom as prose reads them: whole numbers stay integers, a
@@ -317,6 +318,9 @@ struct BlockContext {
     /// its corrected p-values and the sphericity test.
     #[serde(skip_serializing_if = "Option::is_none")]
     within: Option<BTreeMap<String, WithinContext>>,
+    /// With `covariance`: the structure, its parameters and criteria.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    covariance: Option<covariance::CovarianceContext>,
 }
 
 #[derive(Serialize)]
@@ -584,6 +588,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
             iterations: m.fit.iterations,
         }),
         within: within_context(o),
+        covariance: covariance::covariance_context(o),
     }
 }
 #[derive(Serialize)]

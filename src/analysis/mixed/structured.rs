@@ -85,7 +85,7 @@ pub(super) fn structured(r: &Repeats<'_>, covariance: Covariance) -> Result<Stru
     let detail = CovarianceDetail {
         structure: chosen,
         factor: r.factor_name(),
-        parameters: parameters(&fit, &occasions, layout.times.is_some(), &r.factor_name()),
+        parameters: parameters(&fit, &occasions, layout.times.is_some()),
         occasions,
         times: layout.times.clone(),
         covariance: fit.covariance.clone(),
@@ -245,12 +245,7 @@ fn failed(structure: CovarianceStructure, reason: String) -> StructureFit {
 
 /// The parameters named with the occasions' labels, with the
 /// correlations they imply.
-fn parameters(
-    fit: &RepeatedFit,
-    occasions: &[String],
-    timed: bool,
-    factor: &str,
-) -> Vec<CovarianceParameter> {
+fn parameters(fit: &RepeatedFit, occasions: &[String], timed: bool) -> Vec<CovarianceParameter> {
     let v: Vec<f64> = fit.parameters.iter().map(|p| p.value).collect();
     let param = |name: String, label: String, value: f64, correlation: f64| CovarianceParameter {
         name,
@@ -278,7 +273,7 @@ fn parameters(
             param(
                 "correlation".into(),
                 if timed {
-                    format!("Correlation one unit of {factor} apart")
+                    "Correlation one time unit apart".to_string()
                 } else {
                     "Correlation of adjacent occasions".into()
                 },

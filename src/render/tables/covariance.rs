@@ -3,7 +3,8 @@
 //! asked, every structure's REML information criteria side by side.
 
 use super::keys::Keys;
-use super::{cell, col, measure, text};
+use super::{cell, col, measure, shown_term, text};
+use crate::doc::block::PlotSpec;
 use crate::doc::block_covariance::CovarianceStructure;
 use crate::format::{fixed, significant};
 use crate::outcome::covariance::{CovarianceDetail, StructureFit};
@@ -11,23 +12,14 @@ use crate::outcome::linear::LinearOutcome;
 use crate::outcome::repeated::RepeatedDetail;
 use crate::render::view::TableView;
 
-/// A structure's name in a sentence.
-pub fn structure_name(s: CovarianceStructure) -> &'static str {
-    match s {
-        CovarianceStructure::CompoundSymmetry => "compound symmetry",
-        CovarianceStructure::Autoregressive => "first-order autoregressive",
-        CovarianceStructure::Unstructured => "unstructured",
-    }
-}
-
 /// What a structure assumes, in plain words.
-fn structure_meaning(c: &CovarianceDetail) -> String {
+fn structure_meaning(plots: &PlotSpec, c: &CovarianceDetail) -> String {
     match c.structure {
         CovarianceStructure::CompoundSymmetry => "Compound symmetry: the same variance at every occasion and the same correlation between any two occasions of a subject, however far apart.".to_string(),
         CovarianceStructure::Autoregressive => format!(
             "First-order autoregressive: the same variance at every occasion, and a correlation that shrinks with the time between occasions (the correlation one unit apart raised to the power of the distance{}).",
             match &c.times {
-                Some(_) => format!(", taken from the levels of {} as numbers", c.factor),
+                Some(_) => format!(", taken from the levels of {} as numbers", shown_term(plots, &c.factor)),
                 None => ", with the occasions taken as equally spaced".to_string(),
             }
         ),
@@ -59,11 +51,13 @@ pub fn structure_table(
             ]
         })
         .collect();
-    let mut footnotes = vec![structure_meaning(c)];
+    let plots = &o.presentation.plots;
+    let mut footnotes = vec![structure_meaning(plots, c)];
     footnotes.push(format!(
-        "Fitted by REML on all {} observations of {} subjects (subjects with missing occasions included), {}",
+        "Fitted by REML on all {} observations of {} subjects ({}; those with missing occasions included), {}",
         o.n,
         r.subjects,
+        plots.display(&r.subject),
         "which is valid when whether an observation is missing depends only on what was observed (missing at random); nothing was imputed."
     ));
     TableView {
@@ -72,8 +66,8 @@ pub fn structure_table(
         caption: format!(
             "Table {number}. Covariance of a subject's observations of {} over {}: {}.",
             measure(o),
-            c.factor,
-            structure_name(c.structure)
+            shown_term(plots, &c.factor),
+            c.structure.name()
         ),
         columns: vec![
             col("Parameter", false),
@@ -98,7 +92,7 @@ pub fn comparison_table(
         .enumerate()
         .map(|(i, s)| {
             let k = |q: &str| keys.field(&format!("repeated.covariance.comparison.{i}.{q}"));
-            let name = text(capitalised(structure_name(s.structure)));
+            let name = text(capitalised(s.structure.name()));
             match &s.failed {
                 Some(_) => vec![name, text("–"), text("not fitted"), text(""), text("")],
                 None => vec![
@@ -116,7 +110,7 @@ pub fn comparison_table(
         id: format!("{}-structures", o.id),
         caption: format!(
             "Table {number}. Covariance structures over {} compared (REML, same fixed effects).",
-            c.factor
+            shown_term(&o.presentation.plots, &c.factor)
         ),
         columns: vec![
             col("Structure", false),
@@ -138,7 +132,7 @@ fn comparison_notes(o: &LinearOutcome, c: &CovarianceDetail) -> Vec<String> {
         fitted
             .iter()
             .min_by(|a, b| key(a).total_cmp(&key(b)))
-            .map(|s| structure_name(s.structure))
+            .map(|s| s.structure.name())
     };
     let mut notes = vec![format!(
         "Lower is better. AIC = −2 log-likelihood + 2q and BIC = −2 log-likelihood + q·ln(N − p), with q covariance parameters, N = {} observations and p = {} fixed-effect parameters (some programs use the number of subjects in BIC instead; the results file has both). The log-likelihood is REML's in the form that does not depend on how the fixed effects are coded, so it may differ from other programs' by a constant that is the same for every structure. The criteria compare structures only with the same fixed effects; differences below about 2 are commonly read as no clear preference.",
@@ -146,7 +140,7 @@ fn comparison_notes(o: &LinearOutcome, c: &CovarianceDetail) -> Vec<String> {
         o.mixed.as_ref().map_or(0, |m| m.fit.p)
     )];
     if let (Some(aic), Some(bic)) = (lowest(|s| s.aic), lowest(|s| s.bic)) {
-        let chosen = structure_name(c.structure);
+        let chosen = c.structure.name();
         let agree = if aic == bic {
             format!("Both criteria are lowest for {aic}.")
         } else {
@@ -159,7 +153,7 @@ fn comparison_notes(o: &LinearOutcome, c: &CovarianceDetail) -> Vec<String> {
     for s in c.compared.iter().filter(|s| s.failed.is_some()) {
         notes.push(format!(
             "{} was not fitted: {}.",
-            capitalised(structure_name(s.structure)),
+            capitalised(s.structure.name()),
             s.failed.as_deref().unwrap_or_default()
         ));
     }

@@ -12,6 +12,12 @@ use crate::render::view::TableView;
 
 /// The error a term is tested against, for people.
 fn error_text(o: &LinearOutcome, t: &TermTest) -> String {
+    if let Some(r) = o.repeated.as_ref().filter(|r| r.covariance.is_some()) {
+        return format!(
+            "{} covariance",
+            shown_term(&o.presentation.plots, &r.subject)
+        );
+    }
     t.stratum.and_then(|s| o.strata.get(s)).map_or_else(
         || "combined".to_string(),
         |s| shown_term(&o.presentation.plots, &s.name),

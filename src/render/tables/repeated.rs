@@ -60,23 +60,27 @@ pub fn within_table(
             col("p (HF)", true),
         ],
         rows,
-        footnotes: within_notes(r, tests),
+        footnotes: within_notes(o, r, tests),
     }
 }
 
 /// The classification, the subjects used, and which p to read.
-fn within_notes(r: &RepeatedDetail, tests: &[WithinTest]) -> Vec<String> {
+fn within_notes(o: &LinearOutcome, r: &RepeatedDetail, tests: &[WithinTest]) -> Vec<String> {
+    let plots = &o.presentation.plots;
     let list = |v: &[String]| {
         if v.is_empty() {
             "none".to_string()
         } else {
-            v.join(", ")
+            v.iter()
+                .map(|f| plots.display(f).to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
         }
     };
     let mut notes = vec![format!(
-        "Subjects: {} (`{}`). Within-subject factors: {}; between-subject factors: {}.",
+        "Subjects: {} ({}). Within-subject factors: {}; between-subject factors: {}.",
         r.subjects,
-        r.subject,
+        plots.display(&r.subject),
         list(&r.within),
         list(&r.between)
     )];
@@ -99,15 +103,15 @@ fn within_notes(r: &RepeatedDetail, tests: &[WithinTest]) -> Vec<String> {
     if let Some(t) = tests.iter().find(|t| t.gg_epsilon < HF_ABOVE) {
         let mixed = match r.covariance.as_ref().map(|c| c.structure) {
             None | Some(CovarianceStructure::CompoundSymmetry) => {
-                "and so are the mixed model's tests of the within-subject terms, which assume the same correlation between any two occasions (compound symmetry); `covariance: compare` fits structures that do not"
+                ", and so are the mixed model's tests of the within-subject terms, which assume the same correlation between any two occasions (compound symmetry); `covariance: compare` fits structures that do not"
             }
             Some(_) => {
-                "the mixed model's tests above use a covariance structure that does not assume sphericity"
+                "; the mixed model's tests above use a covariance structure that does not assume sphericity"
             }
         };
         notes.push(format!(
-            "Sphericity is doubtful for {} (ε (GG) = {}): read its corrected p; the uncorrected one is too optimistic, {mixed}.",
-            t.term,
+            "Sphericity is doubtful for {} (ε (GG) = {}): read its corrected p; the uncorrected one is too optimistic{mixed}.",
+            shown_term(plots, &t.term),
             fixed(t.gg_epsilon, 3)
         ));
     }
