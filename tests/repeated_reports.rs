@@ -152,10 +152,16 @@ fn a_between_subject_factor_matches_pingouin() {
 /// with the subjects that break it (invented data).
 #[test]
 fn a_factor_neither_within_nor_between_is_refused() {
-    let csv = "animal,diet,week,w\n1,A,1,10\n1,A,2,12\n2,A,1,11\n2,B,2,13\n3,B,1,9\n3,B,1,10\n";
+    // Invented: ewe-1, ewe-2 and ewe-4 change week (within) while ewe-3 is
+    // seen twice in week 1, so week is neither within nor between.
+    let csv = "animal,diet,week,w\newe-1,A,1,10\newe-1,A,2,12\newe-2,B,1,11\newe-2,B,2,13\newe-3,A,1,9\newe-3,A,1,10\newe-4,B,1,12\newe-4,B,2,15\n";
     let doc = "# Pens\n\n```anova\nid: p\ndata: d.csv\nmodel: w ~ diet * week\nsubject: animal\ncompare: none\n```\n";
     let err = build(doc, &[("d.csv", csv.to_string())]).expect_err("refused");
     assert!(err.contains("varies within some subjects"), "{err}");
+    assert!(
+        err.contains("(subjects `ewe-3`)"),
+        "the subject by its label: {err}"
+    );
 }
 
 #[test]

@@ -42,7 +42,11 @@ pub(super) fn repeated(
                     format!(
                         "`{}` varies within some subjects and is constant within others with several observations (subjects {})",
                         model.factor_names[f],
-                        examples.join(", ")
+                        examples
+                            .iter()
+                            .map(|&s| format!("`{}`", data.levels[subject][s]))
+                            .collect::<Vec<_>>()
+                            .join(", ")
                     ),
                     "each factor must either change within every subject (time) or stay the same for each subject (diet); check the subject and factor columns".into(),
                 ));
@@ -97,8 +101,9 @@ pub(super) fn repeated(
 enum Class {
     Between,
     Within,
-    /// Subjects where the factor is constant although others vary in it.
-    Neither(Vec<String>),
+    /// Subjects where the factor is constant although others vary in it
+    /// (their indices, at most five).
+    Neither(Vec<usize>),
 }
 
 /// Constant within every subject (between), varying within every subject
@@ -115,11 +120,11 @@ fn classify(data: &FactorialData, subject_of: &[usize], subjects: usize, f: usiz
     if varying == 0 {
         return Class::Between;
     }
-    let constant: Vec<String> = several
+    let constant: Vec<usize> = several
         .iter()
-        .filter(|&&s| seen[s].len() == 1)
+        .copied()
+        .filter(|&s| seen[s].len() == 1)
         .take(5)
-        .map(|s| s.to_string())
         .collect();
     if constant.is_empty() {
         Class::Within
