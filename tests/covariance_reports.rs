@@ -8,7 +8,7 @@
 
 mod documents;
 
-use documents::{build, open};
+use documents::{build, open, sleepstudy_with_deletions};
 use serde_json::Value;
 
 /// The spec prints 10 to 12 digits; the fit stops at a relative step of
@@ -171,18 +171,7 @@ fn the_comparison_reports_both_criteria_without_choosing() {
 /// and the report says so in plain words.
 #[test]
 fn incomplete_subjects_stay_in_the_structured_model() {
-    let text = open("sleepstudy.csv");
-    let mut lines = text.lines();
-    let header = lines.next().unwrap();
-    let kept: String = std::iter::once(header)
-        .chain(
-            lines
-                .enumerate()
-                .filter(|(i, _)| (i + 1) % 17 != 0)
-                .map(|(_, l)| l),
-        )
-        .map(|l| format!("{l}\n"))
-        .collect();
+    let kept = sleepstudy_with_deletions();
     let doc = |c: &str| {
         format!(
             "# Sleep\n\n```anova\nid: s\ndata: sleepstudy.csv\nmodel: Reaction ~ Days\nsubject: Subject\ncovariance: {c}\ncompare: tukey\n```\n"

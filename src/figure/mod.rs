@@ -283,29 +283,25 @@ impl Svg {
     }
 
     pub fn polyline(&mut self, points: &[(f64, f64)], stroke: &str, width: f64) {
-        let pts: Vec<String> = points
-            .iter()
-            .map(|(x, y)| format!("{},{}", c(*x), c(*y)))
-            .collect();
-        let _ = writeln!(
-            self.out,
-            "<polyline points=\"{}\" fill=\"none\" stroke=\"{stroke}\" stroke-width=\"{}\"/>",
-            pts.join(" "),
-            c(width)
-        );
+        self.polyline_with(points, stroke, width, "");
     }
 
     /// A thin, translucent line behind the main marks (one subject's
     /// observations under the means).
     pub fn faint_polyline(&mut self, points: &[(f64, f64)], stroke: &str) {
+        self.polyline_with(points, stroke, 0.8, " stroke-opacity=\"0.35\"");
+    }
+
+    fn polyline_with(&mut self, points: &[(f64, f64)], stroke: &str, width: f64, extra: &str) {
         let pts: Vec<String> = points
             .iter()
             .map(|(x, y)| format!("{},{}", c(*x), c(*y)))
             .collect();
         let _ = writeln!(
             self.out,
-            "<polyline points=\"{}\" fill=\"none\" stroke=\"{stroke}\" stroke-width=\"0.8\" stroke-opacity=\"0.35\"/>",
-            pts.join(" ")
+            "<polyline points=\"{}\" fill=\"none\" stroke=\"{stroke}\" stroke-width=\"{}\"{extra}/>",
+            pts.join(" "),
+            c(width)
         );
     }
 

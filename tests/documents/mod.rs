@@ -34,3 +34,23 @@ pub fn open(name: &str) -> String {
     ))
     .expect("data file")
 }
+
+/// sleepstudy with rows 17, 34, …, 170 deleted (mixed-models spec 7.5 and
+/// 9.4 D; an invented pattern): each deleted row is a different subject's
+/// and a different day, leaving 8 complete subjects of 18. (Each test file
+/// compiles this module on its own and not all of them use this.)
+#[allow(dead_code)]
+pub fn sleepstudy_with_deletions() -> String {
+    let text = open("sleepstudy.csv");
+    let mut lines = text.lines();
+    let header = lines.next().unwrap_or_default();
+    std::iter::once(header)
+        .chain(
+            lines
+                .enumerate()
+                .filter(|(i, _)| (i + 1) % 17 != 0)
+                .map(|(_, l)| l),
+        )
+        .map(|l| format!("{l}\n"))
+        .collect()
+}
