@@ -52,6 +52,9 @@ pub struct RepeatedDetail {
     /// combination of the within-subject factors' levels).
     pub subjects: usize,
     pub complete_subjects: usize,
+    /// Every between-subject group has the same number of complete
+    /// subjects (then weighting subjects or groups equally agrees).
+    pub equal_groups: bool,
     /// Subjects left out of the univariate analysis (at most 100 listed).
     pub incomplete: Vec<String>,
     pub incomplete_count: usize,

@@ -74,7 +74,19 @@ pub(super) fn repeated(
         first_row: &first_row,
     };
     let univariate = univariate(data, model, &shape, &complete, &names);
+    let group_of = |s: usize| {
+        between
+            .iter()
+            .map(|&f| data.row(first_row[s])[f])
+            .collect::<Vec<usize>>()
+    };
+    let mut sizes: std::collections::BTreeMap<Vec<usize>, usize> = Default::default();
+    for &s in &complete {
+        *sizes.entry(group_of(s)).or_default() += 1;
+    }
+    let equal_groups = sizes.values().min() == sizes.values().max();
     Ok(RepeatedDetail {
+        equal_groups,
         subject: subject_name.to_string(),
         within: within
             .iter()

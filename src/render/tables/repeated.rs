@@ -97,6 +97,9 @@ fn within_notes(o: &LinearOutcome, r: &RepeatedDetail, tests: &[WithinTest]) -> 
             if r.incomplete_count == 1 { "is" } else { "are" }
         ));
     }
+    if !r.equal_groups {
+        notes.push("The between-subject groups have unequal numbers of complete subjects. Here a within-subject main effect is tested on the mean over all subjects, each subject weighted equally; the mixed model's Type III test above weights each group equally, so the two F values for that effect differ (the interactions do not). Report the one that matches the question: the average over the subjects studied, or over the groups as designed.".to_string());
+    }
     notes.push(format!(
         "The uncorrected F assumes sphericity (equal variances of the differences between occasions); the corrected p-values multiply both df by ε. Read the Greenhouse-Geisser p, or the Huynh-Feldt p (Lecoutre's form, capped at 1) when ε (GG) is above {HF_ABOVE}; Mauchly's test has little power with few subjects and should not decide the choice. Terms with 1 df need no correction."
     ));
