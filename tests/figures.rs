@@ -258,3 +258,43 @@ fn a_profile_needs_a_subject() {
         "{err}"
     );
 }
+
+/// Times named by numbers stand in proportion on the profile's axis: weeks
+/// 0, 1, 2 and 4 (invented data, 5 animals) give tick gaps of 1 : 1 : 2.
+#[test]
+fn profile_times_are_spaced_in_proportion() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let mut csv = String::from("animal,week,w\n");
+    for a in 0u32..5 {
+        for (k, week) in [0u32, 1, 2, 4].into_iter().enumerate() {
+            let wobble = f64::from((a + k as u32) % 3) * 0.4;
+            let w = 10.0 + 2.0 * f64::from(week) + f64::from(a) * 0.7 + wobble;
+            csv.push_str(&format!("a{a},{week},{w:.1}\n"));
+        }
+    }
+    std::fs::write(dir.path().join("d.csv"), csv).expect("data");
+    let doc = "# T\n\n```anova\nid: g\ndata: d.csv\nmodel: w ~ week\nsubject: animal\ncompare: none\nplot: profile\n```\n";
+    let built = compile(
+        "report.md",
+        doc.as_bytes(),
+        &DiskWorld {
+            base: dir.path().to_path_buf(),
+        },
+        Format::Markdown,
+    )
+    .unwrap_or_else(|d| panic!("{d}"));
+    let svg = String::from_utf8(file(&built, "g-profile.svg").to_vec()).expect("utf-8");
+    let xs: Vec<f64> = svg
+        .lines()
+        .filter(|l| l.starts_with("<text") && l.contains("class=\"xtick\""))
+        .map(|l| attr(l, "x").parse().expect("x"))
+        .collect();
+    assert_eq!(xs.len(), 4);
+    let (g1, g2, g3) = (xs[1] - xs[0], xs[2] - xs[1], xs[3] - xs[2]);
+    // Coordinates are printed to 0.01 px.
+    assert!(
+        (g1 - g2).abs() < 0.02 && (g3 - 2.0 * g1).abs() < 0.03,
+        "{xs:?}"
+    );
+    assert!(svg.contains("spaced in proportion to its values"));
+}

@@ -6,7 +6,7 @@
 use super::Figure;
 use super::dense;
 use super::plots::{
-    CategoricalPlot, Chart, Group, Series, box_plot, interaction_plot, means_plot, qq_plot,
+    CategoricalPlot, Chart, Group, Series, XAxis, box_plot, interaction_plot, means_plot, qq_plot,
     residual_plot, strip_plot,
 };
 use crate::doc::block::PlotKind;
@@ -368,7 +368,10 @@ fn interaction_figure(o: &LinearOutcome, id: &str, n: usize) -> Option<(String, 
         id,
         &caption,
         &caption,
-        &x_labels,
+        XAxis {
+            labels: &x_labels,
+            at: None,
+        },
         &series,
         &[],
         (&axis_title(o), x_name, line_name),
@@ -412,8 +415,13 @@ fn profile_figure(
     } else {
         "; faint lines: each subject's observations".to_string()
     };
+    let spaced = if p.positions.is_some() {
+        format!("; {time} is spaced in proportion to its values")
+    } else {
+        String::new()
+    };
     let caption = format!(
-        "Figure {n}. Estimated marginal means of {} at each level of {time}{lines}, with {} confidence intervals from the mixed model (each mean with its own SE and df){traced}.",
+        "Figure {n}. Estimated marginal means of {} at each level of {time}{lines}, with {} confidence intervals from the mixed model (each mean with its own SE and df){traced}{spaced}.",
         subject(o),
         confidence_label(o.alpha)
     );
@@ -421,7 +429,10 @@ fn profile_figure(
         id,
         &caption,
         &caption,
-        &x_labels,
+        XAxis {
+            labels: &x_labels,
+            at: p.positions.as_deref(),
+        },
         &series,
         traces,
         (&axis_title(o), time, group),

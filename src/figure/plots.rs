@@ -39,7 +39,10 @@ impl Chart<'_> {
         let (lo, hi) = range(groups);
         let (frame, xs) = Frame::categorical(
             &mut svg,
-            &labels,
+            XAxis {
+                labels: &labels,
+                at: None,
+            },
             lo,
             hi,
             self.y_title,
@@ -82,11 +85,49 @@ struct Frame {
     bottom: f64,
 }
 
+/// The categories along the x axis, and where they stand: evenly spaced,
+/// or at numeric positions (a profile's times) spread proportionally.
+#[derive(Clone, Copy)]
+pub(super) struct XAxis<'a> {
+    pub labels: &'a [&'a str],
+    pub at: Option<&'a [f64]>,
+}
+
+impl XAxis<'_> {
+    /// The centre of each category between `left` and `right`, and the
+    /// narrowest gap between neighbours (the room a label has).
+    fn centres(&self, left: f64, right: f64) -> (Vec<f64>, f64) {
+        let n = self.labels.len().max(1);
+        let slot = (right - left) / n as f64;
+        let even = || (0..n).map(|i| left + slot * (i as f64 + 0.5)).collect();
+        let Some(at) = self.at.filter(|a| a.len() == n && n > 1) else {
+            return (even(), slot);
+        };
+        let (lo, hi) = at
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &t| {
+                (l.min(t), h.max(t))
+            });
+        if hi <= lo {
+            return (even(), slot);
+        }
+        let span = right - left - slot;
+        let centres: Vec<f64> = at
+            .iter()
+            .map(|t| left + slot / 2.0 + (t - lo) / (hi - lo) * span)
+            .collect();
+        let mut sorted = centres.clone();
+        sorted.sort_by(f64::total_cmp);
+        let gap = sorted.windows(2).map(|w| w[1] - w[0]).fold(slot, f64::min);
+        (centres, gap)
+    }
+}
+
 impl Frame {
-    /// Lays out axes for `n_slots` categories and the data range [lo, hi].
+    /// Lays out axes for the categories of `axis` and the data range [lo, hi].
     fn categorical(
         svg: &mut Svg,
-        labels: &[&str],
+        axis: XAxis<'_>,
         lo: f64,
         hi: f64,
         y_title: &str,
@@ -111,7 +152,8 @@ impl Frame {
             .fold(0.0, f64::max);
         let left = 28.0 + tick_w + 8.0;
         let right = WIDTH - 14.0;
-        let slot = (right - left) / labels.len().max(1) as f64;
+        let labels = axis.labels;
+        let (centres, slot) = axis.centres(left, right);
         let widest = labels
             .iter()
             .map(|l| text_width(l, TICK_SIZE as f32) as f64)
@@ -130,9 +172,6 @@ impl Frame {
         if let Some(r) = reference {
             svg.line(left, y.map(r), right, y.map(r), MUTED, 1.0, Some("4 3"));
         }
-        let centres: Vec<f64> = (0..labels.len())
-            .map(|i| left + slot * (i as f64 + 0.5))
-            .collect();
         for (x, label) in centres.iter().zip(labels) {
             if let Some(a) = angle {
                 svg.text(
@@ -576,7 +615,7 @@ pub(super) fn interaction_plot(
     id: &str,
     title: &str,
     desc: &str,
-    x_labels: &[&str],
+    x: XAxis<'_>,
     series: &[Series],
     traces: &[(usize, Vec<f64>)],
     (y_title, x_title, legend_title): (&str, &str, &str),
@@ -593,7 +632,7 @@ pub(super) fn interaction_plot(
         lo = lo.min(v);
         hi = hi.max(v);
     }
-    let (frame, xs) = Frame::categorical(&mut svg, x_labels, lo, hi, y_title, x_title, reference);
+    let (frame, xs) = Frame::categorical(&mut svg, x, lo, hi, y_title, x_title, reference);
     for (s, values) in traces {
         let line: Vec<(f64, f64)> = values
             .iter()
@@ -608,7 +647,7 @@ pub(super) fn interaction_plot(
         .map(|(name, _)| text_width(name, TICK_SIZE as f32) as f64 + 14.0)
         .chain([text_width(legend_title, TICK_SIZE as f32) as f64])
         .fold(60.0, f64::max);
-    let dodge = (frame.slot(x_labels.len()) * 0.08).min(8.0);
+    let dodge = (frame.slot(x.labels.len()) * 0.08).min(8.0);
     let offset = |s: usize| (s as f64 - (series.len() as f64 - 1.0) / 2.0) * dodge;
     for (s, (name, pts)) in series.iter().enumerate() {
         let colour = PALETTE[s % PALETTE.len()];

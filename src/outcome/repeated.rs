@@ -77,6 +77,9 @@ pub struct Profile {
     /// The within-subject factor on the axis, and its levels.
     pub time: String,
     pub times: Vec<String>,
+    /// The levels as numbers, when every level is one and they increase
+    /// in level order: the axis then spaces them proportionally.
+    pub positions: Option<Vec<f64>>,
     /// The between-subject factor whose levels are the lines (none: one
     /// line), and its levels.
     pub group: Option<String>,

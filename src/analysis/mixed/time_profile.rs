@@ -45,9 +45,16 @@ pub(super) fn profile(
         .chunks(times)
         .map(|c| c.iter().map(|e| (e.mean, e.ci_lower, e.ci_upper)).collect())
         .collect();
+    let labels = &estimating.labels[time];
+    let positions = labels
+        .iter()
+        .map(|l| l.trim().parse::<f64>().ok().filter(|t| t.is_finite()))
+        .collect::<Option<Vec<f64>>>()
+        .filter(|p| p.windows(2).all(|w| w[0] < w[1]));
     Some(Profile {
         time: model.factor_names[time].clone(),
-        times: estimating.labels[time].clone(),
+        times: labels.clone(),
+        positions,
         group: group.map(|g| model.factor_names[g].clone()),
         groups: group.map_or_else(Vec::new, |g| estimating.labels[g].clone()),
         means,
