@@ -9,11 +9,15 @@ use crate::outcome::{Checks, OUTLIERS_LISTED, ResidualKind, most_extreme};
 use crate::render::view::{Cell, TableView};
 use crate::stats::assumptions::{FTest, OUTLIER_THRESHOLD, ShapiroWilkSkip};
 
+/// Each random term's predicted effects, and how a term is displayed.
+type Predicted<'a> = (&'a [PredictedEffects], &'a dyn Fn(&str) -> String);
+
 /// The table; `subject` reads like "weight by group". A model with random
-/// terms adds a row per random term for its predicted effects.
+/// terms adds a row per random term for its predicted effects, named as
+/// `shown` displays a term.
 pub fn checks_table(
     c: &Checks,
-    predicted: &[PredictedEffects],
+    (predicted, shown): Predicted<'_>,
     keys: &Keys,
     alpha: f64,
     subject: &str,
@@ -102,7 +106,11 @@ pub fn checks_table(
         text(""),
         text(moment_note("0 for a normal distribution")),
     ]);
-    rows.extend(predicted.iter().map(|p| predicted_row(p, keys, alpha)));
+    rows.extend(
+        predicted
+            .iter()
+            .map(|p| predicted_row(p, &shown(&p.term), keys, alpha)),
+    );
     TableView {
         number,
         id: format!("{}-checks", keys.block()),
@@ -115,13 +123,13 @@ pub fn checks_table(
             col("Reading at α", false),
         ],
         rows,
-        footnotes: footnotes(c, predicted, alpha),
+        footnotes: footnotes(c, (predicted, shown), alpha),
     }
 }
 
 /// How to read the table, the flagged observations and, with random terms,
 /// what conditional residuals are and the flagged units.
-fn footnotes(c: &Checks, predicted: &[PredictedEffects], alpha: f64) -> Vec<String> {
+fn footnotes(c: &Checks, (predicted, shown): Predicted<'_>, alpha: f64) -> Vec<String> {
     let mut footnotes = vec![
         format!(
             "Readings use α = {}. A check that passes does not prove an assumption holds, and with many observations small, harmless departures reach significance: look at the data as well. Skewness and kurtosis are the bias-adjusted sample estimates.",
@@ -134,7 +142,11 @@ fn footnotes(c: &Checks, predicted: &[PredictedEffects], alpha: f64) -> Vec<Stri
         ResidualKind::Conditional => footnotes.push(CONDITIONAL_NOTE.to_string()),
         ResidualKind::Normalised => footnotes.push(NORMALISED_NOTE.to_string()),
     }
-    footnotes.extend(predicted.iter().map(flagged_units_note));
+    footnotes.extend(
+        predicted
+            .iter()
+            .map(|p| flagged_units_note(p, &shown(&p.term))),
+    );
     footnotes
 }
 
@@ -146,8 +158,8 @@ const CONDITIONAL_NOTE: &str = "With random terms, the residuals are conditional
 const NORMALISED_NOTE: &str = "With a covariance structure over the repeated factor, the residuals are normalised: each subject's residuals (observation less the fixed effects) transformed by the fitted covariance of its observations, so that under the model they are uncorrelated with unit variance. Outliers are flagged by their size on that scale.";
 
 /// Shapiro-Wilk on a random term's standardised predicted effects.
-fn predicted_row(p: &PredictedEffects, keys: &Keys, alpha: f64) -> Vec<Cell> {
-    let name = format!("Shapiro-Wilk (predicted effects of {})", p.term);
+fn predicted_row(p: &PredictedEffects, term: &str, keys: &Keys, alpha: f64) -> Vec<Cell> {
+    let name = format!("Shapiro-Wilk (predicted effects of {term})");
     let k = |q: &str| {
         keys.field(&format!(
             "variance_components.{}.predicted_effects.shapiro_wilk.{q}",
@@ -178,11 +190,10 @@ fn predicted_row(p: &PredictedEffects, keys: &Keys, alpha: f64) -> Vec<Cell> {
 }
 
 /// Units whose predicted effect is beyond the threshold, or that none is.
-fn flagged_units_note(p: &PredictedEffects) -> String {
+fn flagged_units_note(p: &PredictedEffects, term: &str) -> String {
     if p.flagged_count == 0 {
         return format!(
-            "No unit of `{}` has a standardised predicted effect beyond ±{OUTLIER_THRESHOLD}.",
-            p.term
+            "No unit of {term} has a standardised predicted effect beyond ±{OUTLIER_THRESHOLD}."
         );
     }
     let mut worst: Vec<&crate::outcome::mixed::FlaggedUnit> = p.flagged.iter().collect();
@@ -193,9 +204,8 @@ fn flagged_units_note(p: &PredictedEffects) -> String {
         .map(|u| format!("`{}`", u.unit))
         .collect();
     format!(
-        "{} of `{}` {} a standardised predicted effect beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded){}: {}.",
+        "{} of {term} {} a standardised predicted effect beyond ±{OUTLIER_THRESHOLD} (flagged, not excluded){}: {}.",
         crate::format::counted(p.flagged_count, "unit", "units"),
-        p.term,
         if p.flagged_count == 1 { "has" } else { "have" },
         if p.flagged_count > names.len() {
             ", the most extreme"

@@ -67,9 +67,10 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     }
     if o.checks.shown {
         let subject = format!("{} by {}", measure(o), factors_text(o));
+        let shown = |term: &str| shown_term(&o.presentation.plots, term);
         tables.push(checks::checks_table(
             &o.checks,
-            o.mixed.as_ref().map_or(&[][..], |m| &m.predicted),
+            (o.mixed.as_ref().map_or(&[][..], |m| &m.predicted), &shown),
             &keys,
             o.alpha,
             &subject,
