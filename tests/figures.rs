@@ -182,20 +182,12 @@ fn html_inlines_svg_and_results_record_figures() {
     );
 }
 
-/// sleepstudy (tests/data/open, complete and balanced, Days saturated): the
-/// mixed model's mean at each day is the day's observed mean, computed
-/// here by plain sums. The profile's markers sit there (half a pixel), and
-/// `plot: subjects` adds one faint line per subject (18).
-#[test]
-fn profile_markers_sit_at_the_day_means_with_a_line_per_subject() {
+/// Builds `doc` as Markdown with one data file beside it in a temporary
+/// folder: the built files, or the error's text.
+fn build_with(doc: &str, (name, data): (&str, &str)) -> Result<Built, String> {
     let dir = tempfile::tempdir().expect("temp dir");
-    let csv = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/open/sleepstudy.csv"),
-    )
-    .expect("data");
-    std::fs::write(dir.path().join("sleep.csv"), &csv).expect("copy");
-    let doc = "# Sleep\n\n```anova\nid: sleep\ndata: sleep.csv\nmodel: Reaction ~ Days\nsubject: Subject\ncompare: none\nplot: profile, subjects\n```\n";
-    let built = compile(
+    std::fs::write(dir.path().join(name), data).expect("data");
+    compile(
         "report.md",
         doc.as_bytes(),
         &DiskWorld {
@@ -203,7 +195,21 @@ fn profile_markers_sit_at_the_day_means_with_a_line_per_subject() {
         },
         Format::Markdown,
     )
-    .unwrap_or_else(|d| panic!("{d}"));
+    .map_err(|d| d.to_string())
+}
+
+/// sleepstudy (tests/data/open, complete and balanced, Days saturated): the
+/// mixed model's mean at each day is the day's observed mean, computed
+/// here by plain sums. The profile's markers sit there (half a pixel), and
+/// `plot: subjects` adds one faint line per subject (18).
+#[test]
+fn profile_markers_sit_at_the_day_means_with_a_line_per_subject() {
+    let csv = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/open/sleepstudy.csv"),
+    )
+    .expect("data");
+    let doc = "# Sleep\n\n```anova\nid: sleep\ndata: sleep.csv\nmodel: Reaction ~ Days\nsubject: Subject\ncompare: none\nplot: profile, subjects\n```\n";
+    let built = build_with(doc, ("sleep.csv", &csv)).unwrap_or_else(|d| panic!("{d}"));
     let mut sums = [(0.0, 0usize); 10];
     for line in csv.lines().skip(1).filter(|l| !l.trim().is_empty()) {
         let f: Vec<&str> = line.split(',').collect();
@@ -240,19 +246,9 @@ fn profile_markers_sit_at_the_day_means_with_a_line_per_subject() {
 #[test]
 fn a_profile_needs_a_subject() {
     let doc = "# T\n\n```anova\ndata: d.csv\nmodel: y ~ g * t\nplot: profile\n```\n";
-    let dir = tempfile::tempdir().expect("temp dir");
-    std::fs::write(dir.path().join("d.csv"), "g,t,y\na,1,1\n").expect("data");
-    let err = compile(
-        "report.md",
-        doc.as_bytes(),
-        &DiskWorld {
-            base: dir.path().to_path_buf(),
-        },
-        Format::Markdown,
-    )
-    .map(|_| ())
-    .unwrap_err()
-    .to_string();
+    let err = build_with(doc, ("d.csv", "g,t,y\na,1,1\n"))
+        .map(|_| ())
+        .unwrap_err();
     assert!(
         err.contains("`plot: profile` draws repeated measures"),
         "{err}"
@@ -263,7 +259,6 @@ fn a_profile_needs_a_subject() {
 /// 0, 1, 2 and 4 (invented data, 5 animals) give tick gaps of 1 : 1 : 2.
 #[test]
 fn profile_times_are_spaced_in_proportion() {
-    let dir = tempfile::tempdir().expect("temp dir");
     let mut csv = String::from("animal,week,w\n");
     for a in 0u32..5 {
         for (k, week) in [0u32, 1, 2, 4].into_iter().enumerate() {
@@ -272,17 +267,8 @@ fn profile_times_are_spaced_in_proportion() {
             csv.push_str(&format!("a{a},{week},{w:.1}\n"));
         }
     }
-    std::fs::write(dir.path().join("d.csv"), csv).expect("data");
     let doc = "# T\n\n```anova\nid: g\ndata: d.csv\nmodel: w ~ week\nsubject: animal\ncompare: none\nplot: profile\n```\n";
-    let built = compile(
-        "report.md",
-        doc.as_bytes(),
-        &DiskWorld {
-            base: dir.path().to_path_buf(),
-        },
-        Format::Markdown,
-    )
-    .unwrap_or_else(|d| panic!("{d}"));
+    let built = build_with(doc, ("d.csv", &csv)).unwrap_or_else(|d| panic!("{d}"));
     let svg = String::from_utf8(file(&built, "g-profile.svg").to_vec()).expect("utf-8");
     let xs: Vec<f64> = svg
         .lines()
