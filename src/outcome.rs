@@ -63,5 +63,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 9;
+    const SCHEMA: u32 = 10;
 }

@@ -10,6 +10,7 @@
 //! `residuals` (checks on the conditional residuals and the predicted unit
 //! effects).
 
+mod cell_letters;
 mod control;
 mod detail;
 mod families;
@@ -30,11 +31,12 @@ use super::observed::{FactorialLayout, PooledError};
 use super::request::{Analysis, Request};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
-use crate::doc::block::{DdfMethod, Omnibus};
+use crate::doc::block::{CellComparison, DdfMethod, Omnibus};
 use crate::outcome::ResidualKind;
 use crate::outcome::linear::{
     Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Role,
 };
+use crate::outcome::mixed::CellLetters;
 use crate::stats::linear::Layout;
 use crate::stats::mixed::{self, Ddf, FixedDesign, Information};
 use crate::stats::oneway::GroupSummary;
@@ -292,7 +294,7 @@ impl Analysed {
                 tested.term(i, &self.model.term_names[i], factors, !block_term)
             })
             .collect();
-        let families = self.families(errors, &terms)?;
+        let (families, cell_letters) = self.families(errors, &terms)?;
         let data = &self.data;
         let treatments = self.model.treatment_factors();
         let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data));
@@ -330,6 +332,7 @@ impl Analysed {
             ),
         };
         detail.predicted = predicted;
+        detail.cell_letters = cell_letters;
         let repeated = self.repeated_detail(spec);
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         let cells = cells.rows(data);
@@ -542,13 +545,14 @@ impl Analysed {
         }
     }
 
-    /// The comparison families `compare`, `within` and `cells` ask for; the
-    /// marginal means alone with `compare: none`.
+    /// The comparison families `compare`, `within` and `cells` ask for (and
+    /// the two-way table's letters); the marginal means alone with
+    /// `compare: none`.
     fn families(
         &self,
         errors: &Errors<'_>,
         terms: &[crate::outcome::linear::TermTest],
-    ) -> Result<Vec<Family>, Diagnostic> {
+    ) -> Result<(Vec<Family>, Option<CellLetters>), Diagnostic> {
         let spec = errors.spec;
         let count = |fixed: &[Option<usize>]| self.count(fixed);
         let estimating = self.estimating(&count);
@@ -563,7 +567,7 @@ impl Analysed {
             .filter(|&f| estimating.comparable(f))
             .collect();
         let Some(method) = spec.compare else {
-            return Ok(compared
+            let marginal = compared
                 .iter()
                 .map(|&f| Family {
                     term: self.model.factor_names[f].clone(),
@@ -576,10 +580,14 @@ impl Analysed {
                         .0,
                     comparison: None,
                 })
-                .collect());
+                .collect();
+            return Ok((marginal, None));
         };
         if method == crate::stats::compare::Method::Dunnett {
-            return Ok(vec![control::dunnett(errors, &estimating, &compared)?]);
+            return Ok((
+                vec![control::dunnett(errors, &estimating, &compared)?],
+                None,
+            ));
         }
         let within = spec
             .within
@@ -594,7 +602,8 @@ impl Analysed {
             })
         };
         let mut families = Vec::new();
-        let cells_wanted = spec.cells.as_ref().is_some_and(|c| c.value);
+        let cells = spec.cells.as_ref().map_or(CellComparison::No, |c| c.value);
+        let cells_wanted = cells.wanted();
         if !cells_wanted || spec.compare_terms.is_some() || within.is_some() {
             for &f in compared.iter().filter(|&&f| Some(f) != within) {
                 let name = &self.model.factor_names[f];
@@ -618,14 +627,25 @@ impl Analysed {
                 }
             }
         }
-        if cells_wanted {
+        let treatments = self.model.treatment_factors();
+        let mut letters = None;
+        if let (CellComparison::Yes, &[a, b]) = (cells, &treatments[..]) {
+            letters = Some(cell_letters::row_and_column_families(
+                &estimating,
+                &self.model,
+                terms,
+                [a, b],
+                method,
+                &mut families,
+            ));
+        } else if cells_wanted {
             let slice = Slice {
-                vary: self.model.treatment_factors(),
+                vary: treatments,
                 within: None,
             };
             families.push(estimating.family("cells", &slice, method, None));
         }
-        Ok(families)
+        Ok((families, letters))
     }
 }
 

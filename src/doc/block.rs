@@ -174,6 +174,24 @@ pub struct Show {
     pub pairs: bool,
 }
 
+/// `cells`: how the cell means of a factorial block are compared.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CellComparison {
+    No,
+    /// The design's usual display: one letter set over all cells, except
+    /// for two factors with random terms, where letters run within rows
+    /// (lowercase) and within columns (uppercase), each with its own error.
+    Yes,
+    /// One letter set over all cells, whatever the design.
+    All,
+}
+
+impl CellComparison {
+    pub fn wanted(self) -> bool {
+        self != CellComparison::No
+    }
+}
+
 /// `checks`: which assumption checks a block computes, and whether the
 /// table is shown.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -227,8 +245,8 @@ pub struct AnovaSpec {
     pub compare_terms: Option<Located<Vec<String>>>,
     /// Factorial designs: compare within each level of this factor (simple effects).
     pub within: Option<Located<String>>,
-    /// Factorial designs: compare all cell means with one letter set.
-    pub cells: Option<Located<bool>>,
+    /// Factorial designs: whether and how the cell means are compared.
+    pub cells: Option<Located<CellComparison>>,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
     /// Random terms (the unit structure): blocks, whole plots, batches.

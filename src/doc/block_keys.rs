@@ -45,7 +45,7 @@ pub struct AnovaDraft {
     pub ss_type: Option<Located<SsType>>,
     pub compare_terms: Option<Located<Vec<String>>>,
     pub within: Option<Located<String>>,
-    pub cells: Option<Located<bool>>,
+    pub cells: Option<Located<super::block::CellComparison>>,
     pub blocks: Option<Located<Vec<String>>>,
     /// Keys that need two or more factors (`ss`, `compare_term`, `within`,
     /// `cells`), in that order.
@@ -254,8 +254,22 @@ fn read_within(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
 }
 
 fn read_cells(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
+    use super::block::CellComparison;
+    let value = if e.value.trim().eq_ignore_ascii_case("all") {
+        CellComparison::All
+    } else if parse_yes_no(e).map_err(|_| {
+        bad(
+            e,
+            format!("`cells` must be yes, no or all, found `{}`", e.value),
+            "write `yes` (the design's usual display), `all` (one letter set over every cell) or `no`",
+        )
+    })? {
+        CellComparison::Yes
+    } else {
+        CellComparison::No
+    };
     d.cells = Some(Located {
-        value: parse_yes_no(e)?,
+        value,
         line: e.line,
         column: e.value_column,
     });

@@ -138,4 +138,25 @@ pub struct MixedDetail {
     pub predicted: Vec<PredictedEffects>,
     #[serde(default)]
     pub interval_method: IntervalMethod,
+    /// `cells: yes` with two treatment factors: the two-way table's letters.
+    #[serde(default)]
+    pub cell_letters: Option<CellLetters>,
+}
+
+/// A two-way table of cell means lettered within rows and within columns:
+/// lowercase letters compare the column factor's levels at one row level,
+/// uppercase letters the row factor's levels at one column level. Each is
+/// an ordinary simple-effects family, so each pair keeps its own SED and df
+/// (in a split-plot, the rows are whole-plot levels: their lowercase
+/// letters use the subplot error, the uppercase ones a combined error).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct CellLetters {
+    /// Factor indices (into `LinearOutcome::factors`).
+    pub rows: usize,
+    pub columns: usize,
+    /// Index into `LinearOutcome::families` of each row level's family (the
+    /// column factor compared at that level), in level order.
+    pub row_families: Vec<usize>,
+    /// Index of each column level's family (the row factor compared there).
+    pub column_families: Vec<usize>,
 }

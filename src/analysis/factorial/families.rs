@@ -57,7 +57,7 @@ impl Comparing<'_> {
         let spec = self.errors.spec;
         let compared = self.compared()?;
         let within = self.within()?;
-        let cells_wanted = spec.cells.as_ref().is_some_and(|c| c.value);
+        let cells_wanted = spec.cells.as_ref().is_some_and(|c| c.value.wanted());
         let marginal_wanted = !cells_wanted || spec.compare_terms.is_some() || within.is_some();
         if marginal_wanted && self.fitted.rank_deficient {
             return Err(self.errors.model(

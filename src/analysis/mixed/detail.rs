@@ -92,6 +92,7 @@ pub(super) fn detail(
         seds,
         predicted: Vec::new(),
         interval_method,
+        cell_letters: None,
     }
 }
 
@@ -117,6 +118,7 @@ pub(super) fn structured(fit: &RepeatedFit, ddf: DdfMethod) -> MixedDetail {
         seds: Vec::new(),
         predicted: Vec::new(),
         interval_method: IntervalMethod::Profile,
+        cell_letters: None,
     }
 }
 

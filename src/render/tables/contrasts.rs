@@ -60,7 +60,7 @@ pub fn contrasts_table(
 
 /// The first columns and every row (the adjusted p and verdict included) for
 /// procedures on means.
-fn difference_rows(
+pub(super) fn difference_rows(
     o: &LinearOutcome,
     family: &Family,
     c: &Comparison,

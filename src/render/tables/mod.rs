@@ -13,6 +13,7 @@ mod means;
 mod mixed;
 mod power;
 mod repeated;
+mod two_way;
 
 pub use power::power_view;
 
@@ -77,11 +78,21 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
             numbers.next(),
         ));
     }
-    if show.means && o.cell_factors.len() >= 2 && o.cells.iter().any(|c| c.n > 1) {
+    let cell_letters = o.mixed.as_ref().and_then(|m| m.cell_letters.as_ref());
+    if let Some(layout) = cell_letters {
+        if show.means {
+            tables.push(two_way::letter_table(o, layout, &keys, numbers.next()));
+        }
+    } else if show.means && o.cell_factors.len() >= 2 && o.cells.iter().any(|c| c.n > 1) {
         tables.push(cells::cell_table(o, &keys, numbers.next()));
     }
+    // The two-way table's families are shown in it and in one table of
+    // pairs, not one pair of tables per row and column.
+    let in_two_way = |i: usize| {
+        cell_letters.is_some_and(|l| l.row_families.contains(&i) || l.column_families.contains(&i))
+    };
     let mut notes = Vec::new();
-    for family in &o.families {
+    for (i, family) in o.families.iter().enumerate() {
         if let Some(c) = &family.comparison {
             // Families of one block often share their notes: say each once.
             for n in &c.notes {
@@ -89,6 +100,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
                     notes.push(n.clone());
                 }
             }
+        }
+        if in_two_way(i) {
+            continue;
         }
         // A factorial block without comparisons shows its marginal means in
         // figures only; its tables are the ANOVA and cell tables.
@@ -109,6 +123,13 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
                 &keys,
                 numbers.next(),
             ));
+        }
+    }
+    if let Some(layout) = cell_letters.filter(|_| show.pairs) {
+        let number = *numbers.0;
+        if let Some(t) = two_way::slice_pairs_table(o, layout, &keys, number) {
+            numbers.next();
+            tables.push(t);
         }
     }
     typeset(BlockView {
