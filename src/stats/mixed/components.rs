@@ -99,6 +99,13 @@ impl VarianceComponents {
         })
     }
 
+    /// A⁻¹ = (ΛZ'ZΛ + I)⁻¹ at ψ, Λ the random columns' relative SDs.
+    pub fn random_inverse(&self, psi: &[f64]) -> Result<DMatrix<f64>, MixedError> {
+        let (_, lambda) = self.relative(psi)?;
+        let factor = self.elimination.factor(&lambda)?;
+        self.elimination.random_inverse(&factor)
+    }
+
     /// M = W'V⁻¹W over all of W.
     fn inverse_all(&self, psi: &[f64]) -> Result<(f64, DMatrix<f64>), MixedError> {
         let (sigma2, lambda) = self.relative(psi)?;

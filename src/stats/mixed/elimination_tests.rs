@@ -96,6 +96,18 @@ fn check(random: &[RandomTerm], theta: &[f64]) {
     let fixed = cp.q..cp.ww.ncols();
     let want_corner = want.view((cp.q, cp.q), (fixed.len(), fixed.len()));
     assert!((corner - want_corner).amax() <= TOL * scale);
+    // A⁻¹ against the dense Cholesky inverse; its entries are at most 1.
+    let q = cp.q;
+    let a = DMatrix::from_fn(q, q, |r, c| {
+        lambda[r] * cp.ww[(r, c)] * lambda[c] + if r == c { 1.0 } else { 0.0 }
+    });
+    let want_inverse = a.cholesky().unwrap().inverse();
+    let got_inverse = elimination.random_inverse(&factor).unwrap();
+    assert!(
+        (&got_inverse - &want_inverse).amax() <= TOL,
+        "A⁻¹ differs by {}",
+        (&got_inverse - &want_inverse).amax()
+    );
 }
 
 #[test]

@@ -138,15 +138,9 @@ impl Scale {
                 lambda[k] = (fit.psi[t] / sigma2).sqrt();
             }
         }
-        let a = DMatrix::from_fn(cp.q, cp.q, |r, c| {
-            lambda[r] * cp.ww[(r, c)] * lambda[c] + if r == c { 1.0 } else { 0.0 }
-        });
-        let a_inv = a
-            .cholesky()
-            .ok_or(MixedError::Singular {
-                what: "the random-effects system",
-            })?
-            .inverse();
+        // The partitioned inverse of the fit's elimination: a dense
+        // inverse of A took a quarter of a 20,000-row build.
+        let a_inv = fit.model.random_inverse(&fit.psi)?;
         Ok(Self {
             sigma2,
             lambda,
