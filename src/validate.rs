@@ -21,6 +21,7 @@ use serde_json::Value;
 use std::path::{Path, PathBuf};
 
 mod mixed;
+mod repeated;
 mod report;
 pub use report::text;
 
@@ -53,10 +54,11 @@ pub enum Area {
     Dunnett,
     Power,
     MixedModels,
+    RepeatedMeasures,
 }
 
 impl Area {
-    pub const ALL: [Area; 9] = [
+    pub const ALL: [Area; 10] = [
         Area::NistAnova,
         Area::TAndF,
         Area::StudentizedRange,
@@ -66,6 +68,7 @@ impl Area {
         Area::Dunnett,
         Area::Power,
         Area::MixedModels,
+        Area::RepeatedMeasures,
     ];
 
     pub fn title(self) -> &'static str {
@@ -78,7 +81,10 @@ impl Area {
             Area::Factorial => "Factorial sums of squares (Types I, II, III)",
             Area::Dunnett => "Dunnett's procedure",
             Area::Power => "Power and sample size",
-            Area::MixedModels => "Mixed models: strata, REML and Kenward-Roger df",
+            Area::MixedModels => "Mixed models: strata, REML, Kenward-Roger df, predicted effects",
+            Area::RepeatedMeasures => {
+                "Repeated measures: sphericity corrections and covariance structures"
+            }
         }
     }
 
@@ -94,6 +100,7 @@ impl Area {
             Area::Dunnett => "dunnett",
             Area::Power => "power",
             Area::MixedModels => "mixed-models",
+            Area::RepeatedMeasures => "repeated-measures",
         }
     }
 }
@@ -272,6 +279,7 @@ pub fn run() -> Validation {
     factorial_cases(&mut checks);
     published(&mut checks);
     mixed::mixed_cases(&mut checks);
+    repeated::repeated_cases(&mut checks);
     // Stable: within an area the checks keep the order they were run in.
     checks.sort_by_key(|c| c.area);
     Validation {

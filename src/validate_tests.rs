@@ -144,6 +144,18 @@ fn every_engine_case_yields_its_checks_and_passes() {
         })
         .sum::<usize>();
     assert_eq!(count(Area::Factorial), tables);
+    // Mixed models: 12 F, df, SE and component checks; per dataset (oats,
+    // Machines) Shapiro-Wilk W and p of the conditional residuals, three
+    // residuals, W and p of each of two random terms' predicted effects;
+    // and Machines' one flagged unit (worker 6 on machine B, standardised
+    // effect −3.13 in the reference), its effect and standardised effect.
+    assert_eq!(count(Area::MixedModels), 12 + 2 * (2 + 3 + 2 * 2) + 2);
+    // Repeated measures: sleepstudy 11, anorexia 7, the three structures
+    // (criterion, parameters 2, 2, 3, Wald F and df) and Hotelling 3.
+    assert_eq!(
+        count(Area::RepeatedMeasures),
+        11 + 7 + (3 * 3 + 2 + 2 + 3) + 3
+    );
     let failed: Vec<String> = v
         .checks
         .iter()
