@@ -26,7 +26,7 @@ mod power;
 mod request;
 
 pub(crate) use binding::reads_csv_rows;
-pub use binding::{Data, streams};
+pub use binding::{Data, presentation, streams};
 pub use notes::{Note, NoteKind};
 pub use one_way::RoundingRange;
 pub use power::run_power;

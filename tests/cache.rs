@@ -310,3 +310,34 @@ proptest::proptest! {
         proptest::prop_assert!(same_outputs(&built, &cold));
     }
 }
+
+#[test]
+fn presentation_edits_reuse_the_computation_and_show_the_new_presentation() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    std::fs::write(p.join("a.csv"), "y,g\n1,a\n2,a\n3,a\n4,b\n5,b\n7,b\n").expect("a");
+    let doc = "# T\n\n```anova\nid: first\ndata: a.csv\nmodel: y ~ g\nplot: box\n```\n";
+    std::fs::write(p.join("report.md"), doc).expect("doc");
+    assert_eq!(build(p, "out").1, 1);
+    // A caption, display names, a unit and a comment: shown, not computed.
+    let edited = doc.replace(
+        "plot: box\n",
+        "plot: box   # spread by group\ncaption: Growth by group\nnames: g = Growth regime\nunit: cm\norder: levels\n",
+    );
+    std::fs::write(p.join("report.md"), &edited).expect("edit");
+    assert_eq!(build(p, "out").1, 0, "presentation edits recompute nothing");
+    let report = std::fs::read_to_string(p.join("out/report.md")).expect("report");
+    assert!(report.contains("Growth by group"), "{report}");
+    assert!(report.contains("Growth regime"), "{report}");
+    // The cached build equals an uncached one, byte for byte.
+    std::fs::remove_dir_all(p.join("fresh")).ok();
+    assert_eq!(build(p, "fresh").1, 1);
+    assert_eq!(files(&p.join("out")), files(&p.join("fresh")));
+    // A setting that enters the computation is recomputed.
+    std::fs::write(
+        p.join("report.md"),
+        edited.replace("model: y ~ g\n", "model: y ~ g\nalpha: 0.01\n"),
+    )
+    .expect("edit");
+    assert_eq!(build(p, "out").1, 1);
+}

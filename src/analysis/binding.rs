@@ -249,10 +249,7 @@ pub(crate) fn decimals_shown(doc: &Document, spec: &AnovaSpec, data_decimals: u3
 }
 
 /// What shapes the presentation only.
-pub(crate) fn presentation(
-    spec: &AnovaSpec,
-    decimals: u32,
-) -> crate::outcome::linear::Presentation {
+pub fn presentation(spec: &AnovaSpec, decimals: u32) -> crate::outcome::linear::Presentation {
     crate::outcome::linear::Presentation {
         decimals,
         caption: spec.caption.clone(),

@@ -1,7 +1,7 @@
 //! The data and engine steps of a build: each block's data read (or
 //! streamed past), hashed, looked up in the cache, and computed by its engine.
 
-use crate::analysis::{Data, Request, reads_csv_rows, run_linear, run_power};
+use crate::analysis::{Data, Request, presentation, reads_csv_rows, run_linear, run_power};
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
 use crate::doc::{Block, BlockSpec, Document};
@@ -67,6 +67,11 @@ impl Computation {
             .and_then(|entry| crate::cache::open::<BlockResult>(&key, &entry))
         {
             cached.set_line(block.line);
+            if let (BlockResult::Linear(o), BlockSpec::Anova(spec)) = (&mut cached, &block.spec) {
+                // The key leaves out presentation-only keys: apply them as
+                // the block now reads.
+                o.presentation = presentation(spec, o.presentation.decimals);
+            }
             self.results.push(cached);
             return Ok(());
         }
@@ -182,7 +187,21 @@ fn remember(inputs: &mut Vec<Input>, input: Input) {
     }
 }
 
-/// A block's result depends only on its text, its id, its data and the
+/// Keys of an analysis block that change how its results are shown, never
+/// what is computed: an edit to them (a caption, a display name) reuses the
+/// cached outcome, whose presentation is rebuilt from the block as it reads
+/// now. `decimals` stays in the key: it is derived with the data.
+const PRESENTATION_KEYS: [&str; 7] = [
+    "caption",
+    "order",
+    "show",
+    "label",
+    "unit",
+    "reference",
+    "names",
+];
+
+/// A block's result depends only on its settings, its id, its data and the
 /// document-wide defaults, so those (and sheaf's version) key the cache.
 fn cache_key(doc: &Document, block: &Block, input_hash: &str) -> String {
     sha256_hex(
@@ -190,7 +209,7 @@ fn cache_key(doc: &Document, block: &Block, input_hash: &str) -> String {
             "sheaf {}\0{}\0{}\0{}\0{:?}\0{:?}\0{:?}",
             crate::VERSION,
             block.id,
-            &doc.source[block.range.clone()],
+            computed_settings(doc, block),
             input_hash,
             doc.front.alpha,
             doc.front.decimals,
@@ -198,6 +217,24 @@ fn cache_key(doc: &Document, block: &Block, input_hash: &str) -> String {
         )
         .as_bytes(),
     )
+}
+
+/// The block's settings that enter the computation, one `key\0value` per
+/// line in document order (comments and spacing dropped); the block's
+/// text itself when it does not parse as settings.
+fn computed_settings(doc: &Document, block: &Block) -> String {
+    let text = &doc.source[block.range.clone()];
+    let body: String = text.lines().skip(1).collect::<Vec<_>>().join("\n");
+    let body = body.trim_end().trim_end_matches(['`', '~']);
+    let anova = matches!(block.spec, BlockSpec::Anova(_));
+    match crate::doc::keyvalue::parse_entries(body, block.line + 1) {
+        Ok(entries) if anova => entries
+            .iter()
+            .filter(|e| !PRESENTATION_KEYS.contains(&e.key.as_str()))
+            .map(|e| format!("{}\0{}\n", e.key, e.value))
+            .collect(),
+        _ => text.to_string(),
+    }
 }
 
 /// The block's linear engine, its outcome boxed as a block result.
