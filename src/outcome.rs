@@ -7,6 +7,7 @@ pub mod covariance;
 pub mod linear;
 pub mod mixed;
 mod power;
+pub mod procedure_note;
 pub mod repeated;
 
 pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, ResidualKind, most_extreme};
@@ -63,5 +64,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 10;
+    const SCHEMA: u32 = 11;
 }

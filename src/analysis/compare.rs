@@ -2,12 +2,10 @@
 //! protection, the notes on a procedure's intervals, and the letters.
 
 use crate::outcome::linear::{Comparison, Contrast};
+use crate::outcome::procedure_note::ProcedureNote;
 use crate::stats::compare::{Method, Pair, Pairwise};
 use crate::stats::dunnett::Sides;
 use crate::stats::letters::compact_letters;
-
-/// Said of Holm's procedure in every engine.
-pub(crate) const HOLM_NOTE: &str = "Holm's procedure has no matching simultaneous intervals; the intervals shown are Bonferroni's.";
 
 /// Fisher's protection: unless the F test guarding the family rejected at
 /// α (an undefined p counts as not rejected), no pair is declared
@@ -39,7 +37,7 @@ pub(crate) fn letters(pairs: &[Pair], order_by: &[f64]) -> Vec<String> {
 pub(crate) struct Declared {
     pub letters: Vec<String>,
     pub withheld: bool,
-    pub notes: Vec<String>,
+    pub notes: Vec<ProcedureNote>,
 }
 
 /// The outcome of a family of comparisons: each pair becomes a contrast

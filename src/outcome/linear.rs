@@ -176,8 +176,8 @@ pub struct Comparison {
     pub sides: Sides,
     /// Fisher's protection withheld every declaration (F not significant).
     pub withheld: bool,
-    /// Plain-language notes on the procedure.
-    pub notes: Vec<String>,
+    /// Notes on the procedure (worded by the rendering layer).
+    pub notes: Vec<super::procedure_note::ProcedureNote>,
 }
 
 /// A family of estimates: a term's marginal means, a slice of them (`within`),

@@ -6,11 +6,12 @@ use super::cells::TreatmentCells;
 use super::fit::Fitted;
 use super::model::{Errors, Model};
 use crate::analysis::MAX_COMPARED_LEVELS;
-use crate::analysis::compare::{Declared, HOLM_NOTE, comparison_result, letters, protect};
+use crate::analysis::compare::{Declared, comparison_result, letters, protect};
 use crate::analysis::notes::{Note, NoteKind};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::outcome::linear::{CellRow, Estimate, Family, TermTest, term_label};
+use crate::outcome::procedure_note::ProcedureNote;
 use crate::stats::compare::{Method, Pairwise, pairwise_with_se};
 use crate::stats::dist::t_isf;
 use crate::stats::dunnett::Sides;
@@ -324,15 +325,19 @@ impl Comparing<'_> {
         let mut withheld = false;
         if method == Method::Lsd {
             if !protected {
-                notes
-                    .push("Unprotected LSD: pairs were tested whatever the F tests showed.".into());
+                notes.push(ProcedureNote::Unprotected {
+                    several_tests: true,
+                });
             } else if protect(&mut family.pairs, p, alpha) {
                 withheld = true;
-                notes.push(format!("Fisher's protected LSD: the F test for `{term}` was not significant at α = {alpha}, so no pair is declared different."));
+                notes.push(ProcedureNote::ProtectionWithheld {
+                    term: Some(term.to_string()),
+                    alpha,
+                });
             }
         }
         if method == Method::Holm {
-            notes.push(HOLM_NOTE.into());
+            notes.push(ProcedureNote::Holm);
         }
         let values: Vec<f64> = means.iter().map(|m| m.mean).collect();
         let declared = Declared {

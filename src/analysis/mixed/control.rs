@@ -76,9 +76,7 @@ impl Estimating<'_> {
         let declared = Declared {
             letters: Vec::new(),
             withheld: false,
-            notes: vec![
-                "Each treatment is compared with the control with its own standard error and df from the mixed model; Dunnett's joint critical value applies because the comparisons share one df and the product correlation.".to_string(),
-            ],
+            notes: vec![crate::outcome::procedure_note::ProcedureNote::MixedDunnett],
         };
         Ok(Family {
             term: term.to_string(),

@@ -5,9 +5,10 @@
 
 use super::detail::whole_if_whole;
 use crate::analysis::MAX_COMPARED_LEVELS;
-use crate::analysis::compare::{Declared, HOLM_NOTE, comparison_result, letters, protect};
+use crate::analysis::compare::{Declared, comparison_result, letters, protect};
 use crate::analysis::factorial::model::Model;
 use crate::outcome::linear::{Estimate, Family};
+use crate::outcome::procedure_note::ProcedureNote;
 use crate::stats::compare::{Method, pairwise_with_own_df};
 use crate::stats::dist::t_isf;
 use crate::stats::dunnett::Sides;
@@ -133,14 +134,12 @@ impl Estimating<'_> {
         let means: Vec<f64> = estimates.iter().map(|e| e.mean - self.origin).collect();
         let mut pairs =
             pairwise_with_own_df(&means, |a, b| se_df[a.max(b)][a.min(b)], self.alpha, method);
-        let mut notes = vec![
-            "Each pair is compared with its own standard error and df from the mixed model (Kenward-Roger or Satterthwaite, as the tests).".to_string(),
-        ];
+        let mut notes = vec![ProcedureNote::MixedOwnDf];
         if method == Method::Tukey {
-            notes.push("Tukey's procedure with a df per pair is exact when every pair lies in one stratum of a balanced design, and an approximation otherwise.".into());
+            notes.push(ProcedureNote::MixedTukeyApproximate);
         }
         if method == Method::Holm {
-            notes.push(HOLM_NOTE.into());
+            notes.push(ProcedureNote::Holm);
         }
         let mut withheld = false;
         if method == Method::Lsd
@@ -148,7 +147,10 @@ impl Estimating<'_> {
             && protect(&mut pairs.pairs, p, self.alpha)
         {
             withheld = true;
-            notes.push(format!("Fisher's protected LSD: the F test for `{term}` was not significant at α = {}, so no pair is declared different.", self.alpha));
+            notes.push(ProcedureNote::ProtectionWithheld {
+                term: Some(term.to_string()),
+                alpha: self.alpha,
+            });
         }
         let declared = Declared {
             letters: letters(&pairs.pairs, &means),

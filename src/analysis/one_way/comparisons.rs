@@ -4,15 +4,14 @@
 use super::sample::Sample;
 use super::{Alternatives, Engine};
 use crate::analysis::MAX_COMPARED_LEVELS;
-use crate::analysis::compare::{
-    Declared, HOLM_NOTE, comparison_result, has_letters, letters, protect,
-};
+use crate::analysis::compare::{Declared, comparison_result, has_letters, letters, protect};
 use crate::analysis::notes::Note;
 use crate::diag::Diagnostic;
 use crate::doc::block::Omnibus;
 use crate::outcome::linear::{Comparison, LevelSummary};
+use crate::outcome::procedure_note::ProcedureNote;
 use crate::stats::compare::{LevelMean, Method, Pairwise, pairwise};
-use crate::stats::dunnett::{DUNNETT_MIN_ALPHA, Sides, dunnett};
+use crate::stats::dunnett::{DUNNETT_MIN_ALPHA, dunnett};
 use crate::stats::letters::letter_count;
 use crate::stats::oneway::{GroupSummary, OneWay};
 use crate::stats::ranks::dunn;
@@ -159,36 +158,33 @@ impl Engine<'_> {
         family: &mut Pairwise,
         p: f64,
         k: usize,
-    ) -> (bool, Vec<String>) {
+    ) -> (bool, Vec<ProcedureNote>) {
         let (spec, alpha) = (self.spec, self.alpha);
         let mut notes = Vec::new();
         let mut withheld = false;
         match method {
             Method::Lsd => {
                 if !spec.protected {
-                    notes.push("Unprotected LSD: pairs were tested whatever the F test showed.".into());
+                    notes.push(ProcedureNote::Unprotected {
+                        several_tests: false,
+                    });
                 } else if protect(&mut family.pairs, p, alpha) {
                     withheld = true;
-                    notes.push(format!("Fisher's protected LSD: the F test was not significant at α = {alpha}, so no pair is declared different."));
+                    notes.push(ProcedureNote::ProtectionWithheld { term: None, alpha });
                 } else {
-                    notes.push(format!("Fisher's protected LSD: the F test was significant at α = {alpha}, so pairs were tested."));
+                    notes.push(ProcedureNote::ProtectionPassed { alpha });
                 }
                 if k >= 4 {
-                    notes.push("With four or more levels the LSD does not hold the familywise error rate at α; Tukey-Kramer does.".into());
+                    notes.push(ProcedureNote::LsdManyLevels);
                 }
             }
-            Method::Holm => notes.push(HOLM_NOTE.into()),
-            Method::Scheffe => notes.push("Scheffé's procedure covers every contrast, not only pairs, so it is the most conservative choice for pairwise comparisons.".into()),
-            Method::Dunn => notes.push(format!(
-                "Dunn's test compares mean ranks from the joint Kruskal-Wallis ranking, with {} adjustment.",
-                spec.adjust.title()
-            )),
-            Method::GamesHowell => notes.push("Games-Howell uses each pair's own variances and Welch-Satterthwaite degrees of freedom.".into()),
-            Method::Dunnett => notes.push(match spec.sides {
-                Sides::Two => "Dunnett's procedure compares each treatment with the control, two-sided.".to_string(),
-                Sides::Greater => "Dunnett's procedure compares each treatment with the control, one-sided: is the treatment above the control?".to_string(),
-                Sides::Less => "Dunnett's procedure compares each treatment with the control, one-sided: is the treatment below the control?".to_string(),
+            Method::Holm => notes.push(ProcedureNote::Holm),
+            Method::Scheffe => notes.push(ProcedureNote::Scheffe),
+            Method::Dunn => notes.push(ProcedureNote::Dunn {
+                adjust: spec.adjust,
             }),
+            Method::GamesHowell => notes.push(ProcedureNote::GamesHowell),
+            Method::Dunnett => notes.push(ProcedureNote::Dunnett { sides: spec.sides }),
             _ => {}
         }
         (withheld, notes)

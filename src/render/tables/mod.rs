@@ -12,6 +12,7 @@ mod keys;
 mod means;
 mod mixed;
 mod power;
+mod procedure_note;
 mod repeated;
 mod two_way;
 
@@ -95,9 +96,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     for (i, family) in o.families.iter().enumerate() {
         if let Some(c) = &family.comparison {
             // Families of one block often share their notes: say each once.
-            for n in &c.notes {
-                if !notes.contains(n) {
-                    notes.push(n.clone());
+            for n in c.notes.iter().map(procedure_note::procedure_note_text) {
+                if !notes.contains(&n) {
+                    notes.push(n);
                 }
             }
         }
