@@ -8,7 +8,7 @@ use std::hint::black_box;
 use std::time::Instant;
 
 use sheaf::stats::compare::{LevelMean, Method, pairwise};
-use sheaf::stats::ptukey::ptukey_cdf;
+use sheaf::stats::ptukey::{ptukey_cdf, ptukey_sf};
 
 /// The grid the script also gives scipy: q, k, ν as a practitioner meets them.
 fn grid() -> Vec<(f64, usize, f64)> {
@@ -40,6 +40,24 @@ fn main() {
     let evaluations = rounds * points.len();
     let per_eval = start.elapsed().as_secs_f64() / evaluations as f64;
     println!("ptukey_cdf {per_eval:.3e} {evaluations}");
+
+    // Upper tails below 0.01, each computed directly (never as 1 − cdf):
+    // Tukey p-values of clearly different means, as split-plot reports
+    // meet them (k = 3..12, ν from 5 to ∞, p from about 1e-3 to 1e-15).
+    let tails: Vec<(f64, usize, f64)> = [3usize, 4, 6, 12]
+        .iter()
+        .flat_map(|&k| {
+            [5.0, 10.0, 30.23, 45.0, f64::INFINITY]
+                .into_iter()
+                .flat_map(move |df| [6.0, 9.0, 14.0].map(|q| (q, k, df)))
+        })
+        .collect();
+    let start = Instant::now();
+    for &(q, k, df) in &tails {
+        sink += ptukey_sf(black_box(q), black_box(k), black_box(df));
+    }
+    let per_tail = start.elapsed().as_secs_f64() / tails.len() as f64;
+    println!("ptukey_sf_tail {per_tail:.3e} {}", tails.len());
 
     // A 100-level one-way layout with unequal n: 4,950 Tukey-Kramer pairs.
     let levels: Vec<LevelMean> = (0..100)

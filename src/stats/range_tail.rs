@@ -115,6 +115,8 @@ pub(crate) fn integrate_bump(
     let mut total = 0.0;
     for direction in [1.0, -1.0] {
         let (mut edge, mut step) = (top, width);
+        // How far below the peak the panel's near edge lies.
+        let mut fall = height - ln_g(top);
         for _ in 0..200 {
             let next = edge + direction * step;
             total += direction * rule.integrate(edge, next, &g);
@@ -123,9 +125,8 @@ pub(crate) fn integrate_bump(
                 break;
             }
             // Panels grow while each spans a fall of under 10 in the log.
-            let fall = height - ln_g(edge);
             step *= (10.0 / (drop - fall).max(1e-3)).clamp(1.0, 2.0);
-            edge = next;
+            (edge, fall) = (next, drop);
         }
     }
     total
