@@ -133,3 +133,25 @@ fn a_good_document_reads_each_file_once_after_the_plan() {
     assert_eq!(*world.probes.borrow(), ["plants.csv"]);
     assert_eq!(*world.reads.borrow(), ["plants.csv"]);
 }
+
+#[test]
+fn errors_found_in_the_data_are_reported_for_every_block_at_once() {
+    // Three blocks read the same file: the first and the third name a
+    // column it does not have, the second is good. Both errors come from
+    // one build, in document order.
+    let doc = "```anova\nid: first\ndata: plants.csv\nmodel: height ~ group\n```\n\n```anova\nid: second\ndata: plants.csv\nmodel: weight ~ group\n```\n\n```anova\nid: third\ndata: plants.csv\nmodel: height ~ group\n```\n";
+    let world = Recording::default();
+    let err = compile("report.md", doc.as_bytes(), &world, Format::Html)
+        .expect_err("two blocks name a missing column");
+    let text = err.to_string();
+    assert_eq!(err.count(), 2, "{text}");
+    let first = text
+        .find("the block `first`")
+        .expect("the first block named");
+    let third = text
+        .find("the block `third`")
+        .expect("the third block named");
+    assert!(first < third, "{text}");
+    assert!(!text.contains("the block `second`"), "{text}");
+    assert!(err.message.contains("height"), "{err}");
+}

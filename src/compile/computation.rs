@@ -33,16 +33,29 @@ pub struct Computation {
 }
 
 impl Computation {
-    /// Computes every block of a planned document, in document order.
+    /// Computes every block of a planned document, in document order. A
+    /// block whose data or analysis fails does not stop the others: every
+    /// failure is reported, once each (blocks sharing an unreadable file
+    /// give one message), in document order.
     pub fn run(doc: &Document, world: &dyn World) -> Result<Computation, Diagnostic> {
         let mut c = Computation {
             results: Vec::with_capacity(doc.blocks.len()),
             ..Computation::default()
         };
+        let mut errors: Vec<Diagnostic> = Vec::new();
         for block in &doc.blocks {
-            c.block(doc, world, block)?;
+            if let Err(d) = c.block(doc, world, block) {
+                for e in d.each() {
+                    if !errors.contains(&e) {
+                        errors.push(e);
+                    }
+                }
+            }
         }
-        Ok(c)
+        match Diagnostic::several(errors) {
+            Some(d) => Err(d),
+            None => Ok(c),
+        }
     }
 
     fn block(
