@@ -102,7 +102,7 @@ fn time(name: &str, blocks: usize, a: usize, b: usize, reps: usize) {
     println!(
         "{name} fit {fitted:.3} fit+3 KR tests {total:.3} rows {} random_levels {q} iterations {} (F sum {tests:.4})",
         y.len(),
-        fit.iterations
+        fit.statistics.iterations
     );
 }
 

@@ -141,7 +141,7 @@ fn oats(delete_two: bool) -> Oats {
 fn variances(fit: &MixedFit) -> Vec<f64> {
     eprintln!(
         "iterations {}, max scaled gradient {:e}",
-        fit.iterations, fit.max_scaled_gradient
+        fit.statistics.iterations, fit.statistics.max_scaled_gradient
     );
     fit.components.iter().map(|c| c.variance).collect()
 }
@@ -152,7 +152,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
     let v = variances(&o.fit);
     eprintln!(
         "iterations {}, scaled gradient {:e}",
-        o.fit.iterations, o.fit.max_scaled_gradient
+        o.fit.statistics.iterations, o.fit.statistics.max_scaled_gradient
     );
     // mixed-models spec 9.1, closed form (ANOVA = REML)
     close(v[0], 214.477083333, TIGHT, "oats sigma2 B");
@@ -166,9 +166,14 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
         "oats sigma2 B vs statsmodels",
     );
     // mixed-models spec 9.1, own = statsmodels
-    close(o.fit.criterion, 507.527393376, TIGHT, "oats d invariant");
     close(
-        o.fit.criterion_as_fitted,
+        o.fit.statistics.criterion,
+        507.527393376,
+        TIGHT,
+        "oats d invariant",
+    );
+    close(
+        o.fit.statistics.criterion_as_fitted,
         546.135171483,
         TIGHT,
         "oats d as fitted",
@@ -266,7 +271,7 @@ fn oats_split_plot_reproduces_the_stratum_analysis() {
 #[test]
 fn oats_with_two_subplots_deleted_kenward_roger_and_both_satterthwaites() {
     let o = oats(true);
-    assert_eq!(o.fit.observations, 70);
+    assert_eq!(o.fit.statistics.observations, 70);
     let v = variances(&o.fit);
     // mixed-models spec 9.2, own REML
     close(v[0], 214.438407669, TIGHT, "oats-2 sigma2 B");
@@ -277,12 +282,17 @@ fn oats_with_two_subplots_deleted_kenward_roger_and_both_satterthwaites() {
         close(*found, sm, STATSMODELS, "oats-2 component vs statsmodels");
     }
     close(
-        o.fit.criterion_as_fitted,
+        o.fit.statistics.criterion_as_fitted,
         531.234892704,
         TIGHT,
         "oats-2 d as fitted",
     );
-    close(o.fit.criterion, 492.99175771, TIGHT, "oats-2 d invariant");
+    close(
+        o.fit.statistics.criterion,
+        492.99175771,
+        TIGHT,
+        "oats-2 d invariant",
+    );
     // Per term: Wald F; Satterthwaite observed, expected; KR F, df, lambda; KR p (spec 9.2, own)
     let expected = [
         (
@@ -373,9 +383,14 @@ fn machines_workers_random() {
         close(*found, sm, STATSMODELS, "Machines component vs statsmodels");
     }
     // spec 9.3, own = statsmodels
-    close(fit.criterion, 207.016452735, TIGHT, "Machines d invariant");
     close(
-        fit.criterion_as_fitted,
+        fit.statistics.criterion,
+        207.016452735,
+        TIGHT,
+        "Machines d invariant",
+    );
+    close(
+        fit.statistics.criterion_as_fitted,
         217.884792586,
         TIGHT,
         "Machines d as fitted",
@@ -457,13 +472,13 @@ fn sleepstudy_days_as_factor_with_random_subject_intercept() {
     );
     // spec 9.4 C: d invariant and as fitted (sum-to-zero coding)
     close(
-        fit.criterion,
+        fit.statistics.criterion,
         1700.58884266,
         TIGHT,
         "sleepstudy d invariant",
     );
     close(
-        fit.criterion_as_fitted,
+        fit.statistics.criterion_as_fitted,
         1734.09773042,
         TIGHT,
         "sleepstudy d as fitted",
@@ -506,13 +521,13 @@ fn penicillin_crossed_random_effects() {
         );
     }
     close(
-        fit.criterion,
+        fit.statistics.criterion,
         325.890775692,
         TIGHT,
         "Penicillin d invariant",
     );
     close(
-        fit.criterion_as_fitted,
+        fit.statistics.criterion_as_fitted,
         330.860588991,
         TIGHT,
         "Penicillin d as fitted",
@@ -577,8 +592,8 @@ fn row_order_does_not_matter() {
         close(*a, c, 1e-10, "permuted component");
     }
     close(
-        fit.criterion,
-        reference.fit.criterion,
+        fit.statistics.criterion,
+        reference.fit.statistics.criterion,
         1e-12,
         "permuted criterion",
     );

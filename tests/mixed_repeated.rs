@@ -70,7 +70,7 @@ fn fit(structure: Structure) -> (RepeatedFit, FixedDesign) {
     let f = mixed::fit_repeated(&s.y, &d, &layout(&s), structure).expect("fit");
     eprintln!(
         "{structure:?}: iterations {}, max scaled gradient {:e}",
-        f.iterations, f.max_scaled_gradient
+        f.statistics.iterations, f.statistics.max_scaled_gradient
     );
     (f, d)
 }
@@ -96,20 +96,25 @@ fn check_criteria(f: &RepeatedFit, row: [f64; 5], what: &str) {
     let [fitted, invariant, aic, bic_n, bic_subjects] = row;
     let ln_xtx = fitted - invariant;
     close(
-        f.criterion_as_fitted,
+        f.statistics.criterion_as_fitted,
         fitted,
         TIGHT,
         &format!("{what} d as fitted"),
     );
     close(
-        f.criterion,
+        f.statistics.criterion,
         invariant,
         TIGHT,
         &format!("{what} d invariant"),
     );
-    close(f.aic, aic - ln_xtx, TIGHT, &format!("{what} AIC"));
     close(
-        f.bic,
+        f.statistics.aic,
+        aic - ln_xtx,
+        TIGHT,
+        &format!("{what} AIC"),
+    );
+    close(
+        f.statistics.bic,
         bic_n - ln_xtx,
         TIGHT,
         &format!("{what} BIC ln(N - p)"),
@@ -287,7 +292,12 @@ fn row_order_does_not_matter() {
         let (a, da) = fit(structure);
         let dt = design(&t.days);
         let b = mixed::fit_repeated(&t.y, &dt, &layout(&t), structure).unwrap();
-        close(b.criterion, a.criterion, 1e-12, "permuted criterion");
+        close(
+            b.statistics.criterion,
+            a.statistics.criterion,
+            1e-12,
+            "permuted criterion",
+        );
         for (x, y) in a.parameters.iter().zip(&b.parameters) {
             close(y.value, x.value, 1e-10, "permuted parameter");
         }
@@ -315,7 +325,7 @@ fn incomplete_subjects_stay_in_and_cs_equals_a_random_intercept() {
     assert_eq!(t.y.len(), 170);
     let d = design(&t.days);
     let cs = mixed::fit_repeated(&t.y, &d, &layout(&t), Structure::CompoundSymmetry).unwrap();
-    assert_eq!((cs.observations, cs.subjects), (170, 18));
+    assert_eq!((cs.statistics.observations, cs.subjects), (170, 18));
     let subject = mixed::RandomTerm {
         name: "Subject".into(),
         levels: 18,
@@ -334,10 +344,15 @@ fn incomplete_subjects_stay_in_and_cs_equals_a_random_intercept() {
         1e-8,
         "D: residual",
     );
-    close(cs.criterion, vc.criterion, 1e-12, "D: criterion");
     close(
-        cs.criterion_as_fitted,
-        vc.criterion_as_fitted,
+        cs.statistics.criterion,
+        vc.statistics.criterion,
+        1e-12,
+        "D: criterion",
+    );
+    close(
+        cs.statistics.criterion_as_fitted,
+        vc.statistics.criterion_as_fitted,
         1e-12,
         "D: criterion as fitted",
     );
@@ -359,7 +374,7 @@ fn incomplete_subjects_stay_in_and_cs_equals_a_random_intercept() {
         close(ca.df, cb.df, 1e-8, "D: contrast df");
     }
     let ar = mixed::fit_repeated(&t.y, &d, &layout(&t), Structure::Autoregressive).unwrap();
-    assert_eq!((ar.observations, ar.subjects), (170, 18));
+    assert_eq!((ar.statistics.observations, ar.subjects), (170, 18));
     let kr = ar.fixed.type3(&d, 0, Ddf::KenwardRoger).unwrap();
     assert!(kr.df_den > 1.0 && kr.f > 0.0 && kr.p_value < 0.05, "{kr:?}");
     // UN here has no maximum: the 8 complete subjects' residuals span at
@@ -381,12 +396,12 @@ fn autoregressive_time_units_change_only_rho() {
     let mut lay = layout(&s);
     lay.times = Some((0..10).map(|j| j as f64).collect());
     let same = mixed::fit_repeated(&s.y, &d, &lay, Structure::Autoregressive).unwrap();
-    assert_eq!(same.criterion, base.criterion);
+    assert_eq!(same.statistics.criterion, base.statistics.criterion);
     lay.times = Some((0..10).map(|j| 2.0 * j as f64).collect());
     let doubled = mixed::fit_repeated(&s.y, &d, &lay, Structure::Autoregressive).unwrap();
     close(
-        doubled.criterion,
-        base.criterion,
+        doubled.statistics.criterion,
+        base.statistics.criterion,
         1e-12,
         "time units: criterion",
     );

@@ -211,7 +211,7 @@ fn fit(data: &Data, structure: Structure) -> (RepeatedFit, FixedDesign) {
     let f = mixed::fit_repeated(&data.y, &design, &data.layout(), structure).expect("fit");
     eprintln!(
         "{structure:?}: iterations {}, max scaled gradient {:e}",
-        f.iterations, f.max_scaled_gradient
+        f.statistics.iterations, f.statistics.max_scaled_gradient
     );
     (f, design)
 }
@@ -252,10 +252,20 @@ fn check_structure(data: &Data, r: &Value, structure: Structure, what: &str) {
     // Criterion: reference REML, same constant and −ln|X'X| (invariant),
     // and with ln|X'X| of the sum-to-zero coding (as fitted).
     let d = r["criterion"].as_f64().unwrap();
-    close(f.criterion, d, CRITERION, &format!("{what} criterion"));
+    close(
+        f.statistics.criterion,
+        d,
+        CRITERION,
+        &format!("{what} criterion"),
+    );
     let as_fitted = r["criterion_as_fitted_sum_to_zero"].as_f64().unwrap();
     let label = format!("{what} criterion as fitted");
-    close(f.criterion_as_fitted, as_fitted, CRITERION, &label);
+    close(
+        f.statistics.criterion_as_fitted,
+        as_fitted,
+        CRITERION,
+        &label,
+    );
     // Cell means: reference REML, (X'V̂⁻¹X)⁻¹X'V̂⁻¹y on the cell-means design.
     let means = cell_means(data, &design, &f.fixed.beta);
     for (c, (m, e)) in means.iter().zip(numbers(&r["cell_means"])).enumerate() {
@@ -419,7 +429,7 @@ fn compound_symmetry_matches_a_statsmodels_random_intercept() {
         // statsmodels MixedLM: −2·llf − ln|X'X| of its (cell-means) design
         let label = format!("{set} statsmodels criterion");
         close(
-            f.criterion,
+            f.statistics.criterion,
             sm["criterion"].as_f64().unwrap(),
             CRITERION,
             &label,

@@ -7,7 +7,7 @@ use crate::doc::block::DdfMethod;
 use crate::outcome::mixed::{
     Fit, IntervalMethod, MixedDetail, NotClassical, Sed, VarianceComponent,
 };
-use crate::stats::mixed::{MixedFit, RepeatedFit, SdInterval};
+use crate::stats::mixed::{FitStatistics, MixedFit, RepeatedFit, SdInterval};
 use crate::stats::strata::{self, ComparisonKind, StratumAnalysis, StratumId};
 
 /// Most random-effect levels for which profile intervals are computed.
@@ -75,17 +75,7 @@ pub(super) fn detail(
         Err(reason) => (Some(reason), Vec::new(), Vec::new()),
     };
     MixedDetail {
-        fit: Fit {
-            ddf,
-            converged: fit.converged,
-            iterations: fit.iterations,
-            log_likelihood: -fit.criterion / 2.0,
-            aic: fit.aic,
-            bic: fit.bic,
-            max_gradient: fit.max_scaled_gradient,
-            n: fit.observations,
-            p: fit.fixed_columns,
-        },
+        fit: fit_of(&fit.statistics, ddf),
         components,
         not_classical,
         cvs,
@@ -101,17 +91,7 @@ pub(super) fn detail(
 /// the repeated-measures detail) and no strata.
 pub(super) fn structured(fit: &RepeatedFit, ddf: DdfMethod) -> MixedDetail {
     MixedDetail {
-        fit: Fit {
-            ddf,
-            converged: fit.converged,
-            iterations: fit.iterations,
-            log_likelihood: -fit.criterion / 2.0,
-            aic: fit.aic,
-            bic: fit.bic,
-            max_gradient: fit.max_scaled_gradient,
-            n: fit.observations,
-            p: fit.fixed_columns,
-        },
+        fit: fit_of(&fit.statistics, ddf),
         components: Vec::new(),
         not_classical: Some(NotClassical::Structured),
         cvs: Vec::new(),
@@ -119,6 +99,21 @@ pub(super) fn structured(fit: &RepeatedFit, ddf: DdfMethod) -> MixedDetail {
         predicted: Vec::new(),
         interval_method: IntervalMethod::Profile,
         cell_letters: None,
+    }
+}
+
+/// How the model was fitted, for the outcome.
+fn fit_of(s: &FitStatistics, ddf: DdfMethod) -> Fit {
+    Fit {
+        ddf,
+        converged: s.converged,
+        iterations: s.iterations,
+        log_likelihood: -s.criterion / 2.0,
+        aic: s.aic,
+        bic: s.bic,
+        max_gradient: s.max_scaled_gradient,
+        n: s.observations,
+        p: s.fixed_columns,
     }
 }
 

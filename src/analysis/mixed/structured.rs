@@ -222,9 +222,9 @@ fn fit_statistics(fit: &RepeatedFit, structure: CovarianceStructure) -> Structur
     StructureFit {
         structure,
         parameters: fit.parameters.len(),
-        log_likelihood: -fit.criterion / 2.0,
-        aic: fit.aic,
-        bic: fit.bic,
+        log_likelihood: -fit.statistics.criterion / 2.0,
+        aic: fit.statistics.aic,
+        bic: fit.statistics.bic,
         bic_subjects: fit.bic_subjects,
         failed: None,
     }

@@ -7,6 +7,7 @@ use super::crossprod::CrossProducts;
 use super::ddf::{self, DfInputs};
 use super::design::{FixedDesign, RandomTerm};
 use super::error::MixedError;
+use super::fit_statistics::FitStatistics;
 use super::inference::FixedInference;
 use super::model::CovarianceModel;
 use super::optimiser;
@@ -43,21 +44,8 @@ pub struct MixedFit {
     pub phi: Vec<Vec<f64>>,
     /// Kenward-Roger's Φ_A = Φ + 2Λ.
     pub phi_adjusted: Vec<Vec<f64>>,
-    /// d = −2ℓ_R in the coding-invariant form (with −ln|X'X|; spec 2.2).
-    pub criterion: f64,
-    /// d as most programs print it (without −ln|X'X|; depends on the coding).
-    pub criterion_as_fitted: f64,
-    /// d + 2k with k covariance parameters (invariant d).
-    pub aic: f64,
-    /// d + k·ln(N − p) (invariant d).
-    pub bic: f64,
-    pub iterations: usize,
-    /// maxᵢ |∂d/∂ψᵢ|·|ψᵢ| over the free parameters at the estimate.
-    pub max_scaled_gradient: f64,
-    /// Always true: a fit that does not converge is an `Err`.
-    pub converged: bool,
-    pub observations: usize,
-    pub fixed_columns: usize,
+    /// The criterion at the estimate, AIC, BIC and how it was reached.
+    pub statistics: FitStatistics,
     pub(crate) model: VarianceComponents,
     pub(crate) psi: Vec<f64>,
 }
@@ -79,7 +67,6 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
         .collect();
     let (df_inputs, beta) = df_inputs(&model, &opt.psi, &opt.derivatives, &df_free)?;
     let (n, p) = model.sizes();
-    let k = np as f64;
     let mut components: Vec<VarianceComponent> = random
         .iter()
         .enumerate()
@@ -100,15 +87,7 @@ pub fn fit(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<Mixe
         components,
         phi: rows_of(&df_inputs.phi),
         phi_adjusted: rows_of(&df_inputs.phi_adjusted),
-        criterion: opt.criterion,
-        criterion_as_fitted: opt.criterion + model.ln_det_xtx(),
-        aic: opt.criterion + 2.0 * k,
-        bic: opt.criterion + k * ((n - p) as f64).ln(),
-        iterations: opt.iterations,
-        max_scaled_gradient: opt.max_scaled_gradient,
-        converged: true,
-        observations: n,
-        fixed_columns: p,
+        statistics: FitStatistics::new(&opt, np, (n, p), model.ln_det_xtx()),
         model,
         psi: opt.psi,
         fixed: FixedInference { beta, df_inputs },

@@ -56,7 +56,7 @@ fn a_zero_variance_term_changes_nothing() {
     assert!(with.components[0].on_boundary);
     let rel = |a: f64, b: f64| ((a - b) / b).abs();
     assert!(rel(with.components[1].variance, without.components[0].variance) < 1e-12);
-    assert!(rel(with.criterion, without.criterion) < 1e-12);
+    assert!(rel(with.statistics.criterion, without.statistics.criterion) < 1e-12);
     for method in [Ddf::KenwardRoger, Ddf::Satterthwaite(Information::Observed)] {
         let a = with.fixed.type3(&design, 0, method).unwrap();
         let b = without.fixed.type3(&design, 0, method).unwrap();
@@ -142,8 +142,8 @@ fn the_fit_is_reproducible_and_converges_with_a_small_gradient() {
     let b = fit(&y, &design, &random).unwrap();
     assert_eq!(a.components, b.components);
     assert_eq!(a.fixed.beta, b.fixed.beta);
-    assert!(a.converged && a.iterations <= optimiser::MAX_ITERATIONS);
-    assert!(a.max_scaled_gradient <= 1e-6);
+    assert!(a.statistics.converged && a.statistics.iterations <= optimiser::MAX_ITERATIONS);
+    assert!(a.statistics.max_scaled_gradient <= 1e-6);
 }
 
 /// Invented unbalanced data with block and plot effects of the given sizes
@@ -201,7 +201,10 @@ fn converges_from_the_fixed_start_over_a_range_of_component_sizes() {
             let (y, design, random) = scaled_effects(block_sd, plot_sd);
             let fit =
                 fit(&y, &design, &random).unwrap_or_else(|e| panic!("{block_sd} {plot_sd}: {e}"));
-            assert!(fit.max_scaled_gradient <= 1e-6, "{block_sd} {plot_sd}");
+            assert!(
+                fit.statistics.max_scaled_gradient <= 1e-6,
+                "{block_sd} {plot_sd}"
+            );
             assert!(fit.components.iter().all(|c| c.variance >= 0.0));
             let test = fit.fixed.type3(&design, 0, Ddf::KenwardRoger).unwrap();
             assert!(

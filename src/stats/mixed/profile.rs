@@ -53,7 +53,7 @@ impl MixedFit {
         held[k] = true;
         let opt = optimiser::minimise(&self.model, start, &held)?;
         *warm = opt.psi;
-        Ok(opt.criterion - self.criterion - cutoff)
+        Ok(opt.criterion - self.statistics.criterion - cutoff)
     }
 
     fn profile_interval(&self, k: usize, cutoff: f64) -> Result<SdInterval, MixedError> {

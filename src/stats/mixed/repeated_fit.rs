@@ -19,6 +19,7 @@ use super::ddf::{self, DfInputs};
 use super::design::FixedDesign;
 use super::error::MixedError;
 use super::fit::{MAX_FIXED_COLUMNS, check_identified, rows_of};
+use super::fit_statistics::FitStatistics;
 use super::inference::FixedInference;
 use super::model::{CovarianceModel, Derivatives};
 use super::optimiser::{self, Optimum};
@@ -55,25 +56,12 @@ pub struct RepeatedFit {
     pub phi: Vec<Vec<f64>>,
     /// Kenward-Roger's Φ_A = Φ + 2Λ (with Rᵢⱼ for AR(1)).
     pub phi_adjusted: Vec<Vec<f64>>,
-    /// d = −2ℓ_R in the coding-invariant form (with −ln|X'X|; spec 2.2).
-    pub criterion: f64,
-    /// d without −ln|X'X| (depends on the coding).
-    pub criterion_as_fitted: f64,
-    /// d + 2q with q covariance parameters (invariant d, as `MixedFit`).
-    pub aic: f64,
-    /// d + q·ln(N − p) (invariant d).
-    pub bic: f64,
+    /// The criterion at the estimate, AIC, BIC and how it was reached.
+    pub statistics: FitStatistics,
     /// d + q·ln(number of subjects), the other convention (spec 7.4).
     pub bic_subjects: f64,
-    pub iterations: usize,
-    /// maxᵢ |∂d/∂ψᵢ|·|ψᵢ| at the estimate.
-    pub max_scaled_gradient: f64,
-    /// Always true: a fit that does not converge is an `Err`.
-    pub converged: bool,
-    pub observations: usize,
     /// Subjects with at least one observation.
     pub subjects: usize,
-    pub fixed_columns: usize,
     /// True when Kenward-Roger's Rᵢⱼ are not zero (AR(1)).
     pub second_derivative_terms: bool,
 }
@@ -106,17 +94,9 @@ pub fn fit_repeated(
         covariance: rows_of(&sigma),
         phi: rows_of(&df_inputs.phi),
         phi_adjusted: rows_of(&df_inputs.phi_adjusted),
-        criterion: opt.criterion,
-        criterion_as_fitted: opt.criterion + model.ln_det_xtx(),
-        aic: opt.criterion + 2.0 * q,
-        bic: opt.criterion + q * ((n - p) as f64).ln(),
+        statistics: FitStatistics::new(&opt, np, (n, p), model.ln_det_xtx()),
         bic_subjects: opt.criterion + q * (model.subjects() as f64).ln(),
-        iterations: opt.iterations,
-        max_scaled_gradient: opt.max_scaled_gradient,
-        converged: true,
-        observations: n,
         subjects: model.subjects(),
-        fixed_columns: p,
         second_derivative_terms: !model.pattern.linear(),
         fixed: FixedInference {
             beta: beta.clone(),
