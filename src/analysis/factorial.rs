@@ -56,16 +56,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     let (data, streamed) =
         read::read_observations(&errors, block, request.data, &names, request.display_path)?;
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
-    if let Some(f) = levels.iter().position(|&l| l < 2) {
-        return Err(errors.model(
-            format!(
-                "`{}` has {} with data; a factor needs two or more",
-                model.factor_names[f],
-                crate::format::counted(levels[f], "level", "levels")
-            ),
-            "check the factor column and the missing-value markers",
-        ));
-    }
+    errors.two_levels_each(&model.factor_names, &levels)?;
     // From here on a model error also explains block labels reused within
     // another block factor, the usual cause when blocks are nested.
     errors.reused = design_notes::reused_block_labels(&data, &model);

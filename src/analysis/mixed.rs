@@ -81,16 +81,7 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             .map(|i| data.row(i)[..fixed_count].to_vec())
             .collect(),
     };
-    if let Some(f) = levels.iter().position(|&l| l < 2) {
-        return Err(errors.model(
-            format!(
-                "`{}` has {} with data; a factor needs two or more",
-                model.factor_names[f],
-                crate::format::counted(levels[f], "level", "levels")
-            ),
-            "check the factor column and the missing-value markers",
-        ));
-    }
+    errors.two_levels_each(&model.factor_names, &levels)?;
     let design = FixedDesign::new(&layout, &model.terms);
     // Aliased columns (empty cells under an interaction) leave Type III
     // tests and marginal means depending on the coding: refuse, as the

@@ -102,6 +102,21 @@ impl Errors<'_> {
         self.explain(d)
     }
 
+    /// Refuses a factor left with fewer than two levels that have data.
+    pub fn two_levels_each(&self, names: &[String], levels: &[usize]) -> Result<(), Diagnostic> {
+        match levels.iter().position(|&l| l < 2) {
+            Some(f) => Err(self.model(
+                format!(
+                    "`{}` has {} with data; a factor needs two or more",
+                    names[f],
+                    crate::format::counted(levels[f], "level", "levels")
+                ),
+                "check the factor column and the missing-value markers",
+            )),
+            None => Ok(()),
+        }
+    }
+
     /// Adds the note on reused block labels, where there is one.
     pub fn explain(&self, d: Diagnostic) -> Diagnostic {
         match &self.reused {
