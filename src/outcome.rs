@@ -4,6 +4,7 @@
 
 mod checks;
 pub mod covariance;
+pub mod covariates;
 pub mod linear;
 pub mod mixed;
 mod power;
@@ -64,5 +65,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 11;
+    const SCHEMA: u32 = 12;
 }

@@ -6,6 +6,7 @@
 //! A value that is not finite is written as `null`, and the block's
 //! `warnings` say why.
 
+mod covariates;
 mod mixed;
 mod repeated;
 
@@ -193,6 +194,9 @@ pub struct BlockRecord {
     /// Repeated-measures blocks (`subject`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub repeated: Option<repeated::RepeatedRecord>,
+    /// Blocks with covariates (`covariate`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub covariates: Option<covariates::CovariatesRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -487,6 +491,10 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
         strata,
         seds,
         repeated: o.repeated.as_deref().map(repeated::repeated_record),
+        covariates: o
+            .covariates
+            .as_deref()
+            .map(|d| covariates::covariates_record(o, d)),
     }
 }
 

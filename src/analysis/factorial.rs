@@ -11,12 +11,15 @@
 
 pub(super) mod cells;
 pub(super) mod checks;
+mod covariate_notes;
+mod covariates;
 mod design_notes;
 mod families;
 mod fit;
 pub(super) mod model;
 pub(super) mod read;
 pub(super) mod residuals;
+mod separate_slopes;
 mod table;
 mod terms;
 
@@ -31,12 +34,14 @@ use crate::doc::block::AnovaSpec;
 use crate::doc::block::Omnibus;
 use crate::doc::{Block, Document};
 use crate::outcome::Checks;
+use crate::outcome::covariates::CovariateDetail;
 use crate::outcome::linear::{
     Alternatives, CellRow, Factor, Family, LinearOutcome, Observation, Observed, RESIDUAL, Role,
     Stratum, TermTest,
 };
 use crate::stats::oneway::GroupSummary;
 use cells::TreatmentCells;
+use covariates::Centred;
 use fit::Fitted;
 use model::{Errors, Model};
 use residuals::Residuals;
@@ -52,18 +57,20 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     };
     model::refuse_one_factor_keys(&errors)?;
     let mut model = Model::from_spec(doc, spec)?;
-    let names: Vec<&str> = model.factor_names.iter().map(String::as_str).collect();
-    let (data, streamed) =
-        read::read_observations(&errors, block, request.data, &names, request.display_path)?;
+    let (data, streamed, centred) =
+        read::read_with_covariates(&errors, block, (request.data, request.display_path), &model)?;
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
     errors.two_levels_each(&model.factor_names, &levels)?;
+    if let Some(c) = &centred {
+        c.check_varies(&data, &errors)?;
+    }
     // From here on a model error also explains block labels reused within
     // another block factor, the usual cause when blocks are nested.
     errors.reused = design_notes::reused_block_labels(&data, &model);
     let mut notes = terms::drop_confounded(&mut model, &data, &levels, &errors)?;
     let empty = terms::empty_cells(&model, &data, &levels);
     terms::check_size(&model, &levels, &errors)?;
-    let fitted = Fitted::new(&data, &model, &levels, &errors)?;
+    let fitted = Fitted::new(&data, &model, &levels, centred.as_ref(), &errors)?;
     let chosen = table::choose(&fitted, &model, &empty, &errors)?;
     let alpha = spec.alpha.unwrap_or(doc.front.alpha);
     let rows = table::term_rows(&chosen.table, &model, &fitted, alpha, data.offsets.len());
@@ -89,10 +96,14 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         alpha,
     };
     let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
-    Ok((
-        analysed.into_result(block, spec, checks, families, notes, doc),
-        streamed,
-    ))
+    let covariates = centred.map(|c| {
+        let detail = analysed.covariate_detail(&c, &families);
+        notes.extend(covariate_notes::notes(&detail, alpha));
+        Box::new(detail)
+    });
+    let mut outcome = analysed.into_result(block, spec, checks, families, notes, doc);
+    outcome.covariates = covariates;
+    Ok((outcome, streamed))
 }
 
 /// A fitted factorial model and what was computed from it.
@@ -111,6 +122,20 @@ struct Analysed {
 }
 
 impl Analysed {
+    /// Slopes, the balance check and the test of equal slopes.
+    fn covariate_detail(&self, centred: &Centred, families: &[Family]) -> CovariateDetail {
+        covariates::Adjusting {
+            data: &self.data,
+            model: &self.model,
+            levels: &self.levels,
+            fitted: &self.fitted,
+            centred,
+            treatment: &self.treatment,
+            alpha: self.alpha,
+        }
+        .detail(families)
+    }
+
     /// The checks with their advice, then the comparison families.
     fn checks_and_families(
         &self,
@@ -241,6 +266,7 @@ impl Analysed {
             observed,
             mixed: None,
             repeated: None,
+            covariates: None,
         }
     }
 }

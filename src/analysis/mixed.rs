@@ -366,6 +366,7 @@ impl Analysed {
             observations,
             mixed: Some(Box::new(detail)),
             repeated: repeated.map(Box::new),
+            covariates: None,
         })
     }
 

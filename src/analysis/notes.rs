@@ -16,6 +16,11 @@ pub enum NoteKind {
     EmptyCells,
     SmallLevels,
     Summary,
+    /// The test of equal slopes rejected.
+    Slopes,
+    /// A covariate differs among the groups, or a group's range leaves out
+    /// the value means are adjusted to.
+    Covariate,
     Planned,
     Other,
 }
@@ -34,6 +39,8 @@ impl NoteKind {
             NoteKind::EmptyCells => "empty-cells",
             NoteKind::SmallLevels => "small-levels",
             NoteKind::Summary => "summary",
+            NoteKind::Slopes => "slopes",
+            NoteKind::Covariate => "covariate",
             NoteKind::Planned | NoteKind::Other => return None,
         })
     }

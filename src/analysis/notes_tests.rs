@@ -1,7 +1,7 @@
 use super::*;
 use crate::doc::block::NOTE_KINDS;
 
-const ALL: [NoteKind; 11] = [
+const ALL: [NoteKind; 13] = [
     NoteKind::Missing,
     NoteKind::Unbalanced,
     NoteKind::Variances,
@@ -11,6 +11,8 @@ const ALL: [NoteKind; 11] = [
     NoteKind::EmptyCells,
     NoteKind::SmallLevels,
     NoteKind::Summary,
+    NoteKind::Slopes,
+    NoteKind::Covariate,
     NoteKind::Planned,
     NoteKind::Other,
 ];

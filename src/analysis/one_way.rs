@@ -132,6 +132,7 @@ impl Engine<'_> {
             observed,
             mixed: None,
             repeated: None,
+            covariates: None,
         })
     }
 

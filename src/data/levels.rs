@@ -69,7 +69,7 @@ fn numeric_warning(factor: &str, levels: &[(&str, usize)], rows: usize) -> Optio
     let numeric = levels.iter().all(|(n, _)| parse_number(n).is_some());
     (numeric && k >= MANY_LEVELS && rows < FEW_PER_LEVEL * k).then(|| {
         format!(
-            "`{factor}` is used as a factor, but its values are all numbers and it has {k} distinct levels for {rows} observations: if it is a measurement (such as an initial weight) rather than a set of treatment levels, this analysis is not the one intended. If the numbers are treatment levels, list them with `levels:` to confirm; a measured covariate needs a model with covariates, which this version does not fit"
+            "`{factor}` is used as a factor, but its values are all numbers and it has {k} distinct levels for {rows} observations: if it is a measurement (such as an initial weight) rather than a set of treatment levels, this analysis is not the one intended. If the numbers are treatment levels, list them with `levels:` to confirm; if it is a measured covariate, declare it with `covariate: {factor}` and write the model without it as a factor (`response ~ treatment`)"
         )
     })
 }

@@ -2,6 +2,7 @@
 //! factor columns an analysis needs, with missing values counted and every
 //! number kept to its written precision.
 
+pub mod covariates;
 pub mod csv;
 pub mod decimal;
 pub mod levels;

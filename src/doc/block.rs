@@ -17,7 +17,7 @@ pub const BLOCK_KINDS: [&str; 2] = ["anova", "power"];
 /// Kinds of "check before use" note an author can acknowledge with
 /// `acknowledge:`, and what each covers. Planned exclusions (`where`,
 /// `exclude`) count as acknowledged without being listed.
-pub const NOTE_KINDS: [(&str, &str); 9] = [
+pub const NOTE_KINDS: [(&str, &str); 11] = [
     ("missing", "rows left out because a value was missing"),
     ("unbalanced", "unbalanced data: the SS types differ"),
     ("variances", "unequal variances among levels or cells"),
@@ -36,6 +36,14 @@ pub const NOTE_KINDS: [(&str, &str); 9] = [
     ("empty-cells", "combinations of levels without observations"),
     ("small-levels", "levels with one or few observations"),
     ("summary", "results computed from published summaries"),
+    (
+        "slopes",
+        "a covariate's slope that differs among the groups",
+    ),
+    (
+        "covariate",
+        "a covariate that differs among the groups, or adjusted means outside a group's covariate range",
+    ),
 ];
 
 /// A value with the document line (and value column) it came from.
@@ -247,6 +255,9 @@ pub struct AnovaSpec {
     pub within: Option<Located<String>>,
     /// Factorial designs: whether and how the cell means are compared.
     pub cells: Option<Located<CellComparison>>,
+    /// Covariates: numeric columns entering the model as straight lines
+    /// (each also a term of `model`, added first where not written).
+    pub covariates: Option<Located<Vec<String>>>,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
     /// Random terms (the unit structure): blocks, whole plots, batches.

@@ -284,7 +284,7 @@ pub(super) fn resolve(
         }
         return Err(errors);
     }
-    let (Some(data), Some(model)) = (d.data.clone(), d.model.take()) else {
+    let (Some(data), Some(mut model)) = (d.data.clone(), d.model.take()) else {
         return Err(Vec::new());
     };
     let method = d.method.unwrap_or(Omnibus::Anova);
@@ -297,6 +297,10 @@ pub(super) fn resolve(
         errors.extend(procedure_keys(&d, compare, fence_line));
     }
     errors.extend(reading_keys(&d, &data));
+    errors.extend(super::block_covariates::covariate_keys(
+        &d,
+        &mut model.value,
+    ));
     errors.extend(model_keys(&mut d, &model.value));
     errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
@@ -317,7 +321,9 @@ pub(super) fn resolve(
     };
     let random = super::block_random::located_terms(&d);
     let covariance = super::block_covariance::located_covariance(&d);
+    let covariates = super::block_covariates::located_covariates(&d);
     Ok(AnovaSpec {
+        covariates,
         acknowledge: d.acknowledge,
         sheet: d.sheet.map(|e| e.value),
         range: d.range.map(|e| e.value),

@@ -67,6 +67,8 @@ pub struct AnovaDraft {
     pub ddf: Option<(Entry, super::block::DdfMethod)>,
     /// `subject`: the unit measured repeatedly.
     pub subject: Option<(Entry, super::formula::Term)>,
+    /// `covariate`: numeric columns entering the model as straight lines.
+    pub covariates: Option<(Entry, Vec<String>)>,
     /// `covariance`: the repeated-measures error structure.
     pub covariance: Option<(Entry, super::block_covariance::Covariance)>,
 }
@@ -102,6 +104,7 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("within", read_within),
         ("cells", read_cells),
         ("block", read_block),
+        ("covariate", super::block_covariates::read_covariate),
         ("random", super::block_random::read_random),
         ("ddf", super::block_random::read_ddf),
         ("subject", super::block_random::read_subject),

@@ -49,6 +49,7 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("within", "model: y ~ g * h\nwithin: h"),
     ("cells", "model: y ~ g * h\ncells: yes"),
     ("block", "model: y ~ g + b\nblock: b"),
+    ("covariate", "model: y ~ g\ncovariate: x"),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

@@ -8,6 +8,7 @@
 pub mod block;
 mod block_checks;
 pub mod block_covariance;
+mod block_covariates;
 mod block_display;
 pub mod block_keys;
 mod block_random;

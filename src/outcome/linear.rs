@@ -273,6 +273,10 @@ pub struct LinearOutcome {
     /// and the univariate tests with sphericity corrections.
     #[serde(default)]
     pub repeated: Option<Box<super::repeated::RepeatedDetail>>,
+    /// Blocks with covariates: slopes, the value means are adjusted to,
+    /// the balance check and the test of equal slopes.
+    #[serde(default)]
+    pub covariates: Option<Box<super::covariates::CovariateDetail>>,
 }
 
 impl LinearOutcome {

@@ -9,7 +9,11 @@
 
 use super::sum::neumaier;
 
-/// A model term: the indices (into the factor list) of the factors it crosses.
+/// A model term: the indices of the variables it crosses. Factors come
+/// first (index < number of factors); a covariate (a numeric column that
+/// enters as a straight line) is numbered after them, so `[g, x]` with x a
+/// covariate is the term whose columns are g's effect codes times x: one
+/// slope per level of g.
 pub type TermFactors = Vec<usize>;
 
 /// The observations of a factorial layout: per row, each factor's level index.
@@ -38,8 +42,20 @@ fn effect_code(level: usize, n_levels: usize) -> impl Iterator<Item = f64> {
 /// The design columns of one term for one observation: the products of its
 /// factors' effect codes, first factor varying slowest.
 pub fn term_row(term: &[usize], levels: &[usize], row: &[usize]) -> Vec<f64> {
+    term_row_with(term, levels, row, &[])
+}
+
+/// As [`term_row`], with the observation's covariate values (centred);
+/// covariate `c` is variable `levels.len() + c`. A covariate not given is
+/// held at 0, its centred mean, as reference grids hold it.
+pub fn term_row_with(term: &[usize], levels: &[usize], row: &[usize], numbers: &[f64]) -> Vec<f64> {
     let mut out = vec![1.0];
     for &f in term {
+        if f >= levels.len() {
+            let x = numbers.get(f - levels.len()).copied().unwrap_or(0.0);
+            out.iter_mut().for_each(|a| *a *= x);
+            continue;
+        }
         let codes: Vec<f64> = effect_code(row[f], levels[f]).collect();
         out = out
             .iter()
@@ -49,16 +65,29 @@ pub fn term_row(term: &[usize], levels: &[usize], row: &[usize]) -> Vec<f64> {
     out
 }
 
-/// Number of design columns a term contributes before aliasing.
+/// Number of design columns a term contributes before aliasing (a
+/// covariate multiplies by one).
 pub fn term_width(term: &[usize], levels: &[usize]) -> usize {
-    term.iter().map(|&f| levels[f] - 1).product()
+    term.iter()
+        .map(|&f| levels.get(f).map_or(1, |l| l - 1))
+        .product()
 }
 
 /// The full design row (intercept, then every term in order).
 pub fn design_row(terms: &[TermFactors], levels: &[usize], row: &[usize]) -> Vec<f64> {
+    design_row_with(terms, levels, row, &[])
+}
+
+/// As [`design_row`], with the observation's centred covariate values.
+pub fn design_row_with(
+    terms: &[TermFactors],
+    levels: &[usize],
+    row: &[usize],
+    numbers: &[f64],
+) -> Vec<f64> {
     let mut out = vec![1.0];
     for t in terms {
-        out.extend(term_row(t, levels, row));
+        out.extend(term_row_with(t, levels, row, numbers));
     }
     out
 }
@@ -295,7 +324,9 @@ pub fn sums_of_squares(
 
 /// The average design row over the reference grid: every combination of
 /// the factors' levels, with the factors in `fixed` held at the given level
-/// (equal weights, as for estimated marginal means).
+/// (equal weights, as for estimated marginal means). Covariates are held
+/// at their means (0 after centring), so these are also the means adjusted
+/// for them.
 pub fn grid_average(terms: &[TermFactors], levels: &[usize], fixed: &[Option<usize>]) -> Vec<f64> {
     let mut combo = vec![0usize; levels.len()];
     for (f, v) in fixed.iter().enumerate() {
@@ -359,10 +390,24 @@ impl Fit {
 
 /// Column-major design matrix of a layout.
 pub fn design_matrix(layout: &Layout, terms: &[TermFactors]) -> Vec<Vec<f64>> {
+    design_matrix_with(layout, &[], terms)
+}
+
+/// Column-major design matrix of a layout whose row i has the centred
+/// covariate values `numbers[i]` (none when `numbers` is empty).
+pub fn design_matrix_with(
+    layout: &Layout,
+    numbers: &[Vec<f64>],
+    terms: &[TermFactors],
+) -> Vec<Vec<f64>> {
     let rows: Vec<Vec<f64>> = layout
         .rows
         .iter()
-        .map(|r| design_row(terms, &layout.levels, r))
+        .enumerate()
+        .map(|(i, r)| {
+            let x = numbers.get(i).map_or(&[][..], |v| &v[..]);
+            design_row_with(terms, &layout.levels, r, x)
+        })
         .collect();
     let p = rows.first().map_or(1, Vec::len);
     (0..p)

@@ -17,7 +17,9 @@ pub(super) fn design_notes(
     (path, reused): (&str, Option<&String>),
 ) -> Vec<Note> {
     let mut notes = Vec::new();
-    if !chosen.types_agree {
+    // A covariate is never orthogonal to the factors; the table's own
+    // footnote says which sums of squares it shows.
+    if !chosen.types_agree && model.covariate_names.is_empty() {
         notes.push(Note::new(
             NoteKind::Unbalanced,
             format!(

@@ -1,10 +1,12 @@
 //! The least-squares fit of a factorial model, on one weighted row per
-//! cell of the data.
+//! cell of the data, or on one row per observation when covariates vary
+//! within the cells.
 
+use super::covariates::Centred;
 use super::model::{Errors, Model};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
-use crate::stats::linear::{Fit, Layout, design_matrix, fit, term_columns};
+use crate::stats::linear::{Fit, Layout, design_matrix, design_matrix_with, fit, term_columns};
 use crate::stats::oneway::GroupSummary;
 use crate::stats::sum::neumaier;
 
@@ -13,8 +15,11 @@ pub(super) struct Fitted {
     /// n, mean and within sum of squares of each full cell (observations
     /// that share every factor's level).
     pub(super) cell_summaries: Vec<GroupSummary>,
-    /// The design over the cells, one row each, unweighted.
+    /// The design over the cells, one row each, unweighted; with
+    /// covariates, over the observations.
     pub(super) unweighted: Vec<Vec<f64>>,
+    /// The design has one row per observation (covariates), not per cell.
+    pub(super) per_observation: bool,
     /// The same rows weighted by √n, and the weighted cell means.
     pub(super) design: Vec<Vec<f64>>,
     pub(super) cell_y: Vec<f64>,
@@ -43,25 +48,43 @@ impl Fitted {
         data: &FactorialData,
         model: &Model,
         levels: &[usize],
+        covariates: Option<&Centred>,
         errors: &Errors<'_>,
     ) -> Result<Fitted, Diagnostic> {
         let cell_summaries = cell_summaries(data);
-        let within_cells = neumaier(cell_summaries.iter().map(|c| c.ss));
-        let layout = Layout {
-            levels: levels.to_vec(),
-            rows: data.cells.clone(),
+        let (unweighted, weights, within_cells) = match covariates {
+            // A covariate varies within a cell: the cell's n and mean no
+            // longer carry everything, so every observation is a row.
+            Some(c) => {
+                let layout = Layout {
+                    levels: levels.to_vec(),
+                    rows: data.rows(),
+                };
+                let design = design_matrix_with(&layout, &c.rows, &model.terms);
+                (design, vec![1.0; data.offsets.len()], 0.0)
+            }
+            None => {
+                let layout = Layout {
+                    levels: levels.to_vec(),
+                    rows: data.cells.clone(),
+                };
+                let weights = cell_summaries.iter().map(|c| (c.n as f64).sqrt()).collect();
+                let within = neumaier(cell_summaries.iter().map(|c| c.ss));
+                (design_matrix(&layout, &model.terms), weights, within)
+            }
         };
-        let unweighted = design_matrix(&layout, &model.terms);
-        let weights: Vec<f64> = cell_summaries.iter().map(|c| (c.n as f64).sqrt()).collect();
         let design: Vec<Vec<f64>> = unweighted
             .iter()
             .map(|col| col.iter().zip(&weights).map(|(x, w)| x * w).collect())
             .collect();
-        let cell_y: Vec<f64> = cell_summaries
-            .iter()
-            .zip(&weights)
-            .map(|(c, w)| c.mean * w)
-            .collect();
+        let cell_y: Vec<f64> = match covariates {
+            Some(_) => data.offsets.clone(),
+            None => cell_summaries
+                .iter()
+                .zip(&weights)
+                .map(|(c, w)| c.mean * w)
+                .collect(),
+        };
         let mut full = fit(&design, &cell_y);
         full.rss += within_cells;
         let residual_df = data.offsets.len() - full.rank;
@@ -75,12 +98,27 @@ impl Fitted {
             ranges: term_columns(&model.terms, levels),
             cell_summaries,
             unweighted,
+            per_observation: covariates.is_some(),
             design,
             cell_y,
             within_cells,
             full,
             residual_df,
         })
+    }
+
+    /// The design row of observation i.
+    pub fn row_of(&self, data: &FactorialData, i: usize) -> usize {
+        if self.per_observation {
+            i
+        } else {
+            data.cell_of[i]
+        }
+    }
+
+    /// The number of rows of the design.
+    pub fn rows(&self) -> usize {
+        self.unweighted.first().map_or(0, Vec::len)
     }
 
     /// The residual mean square.

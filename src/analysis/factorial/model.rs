@@ -8,9 +8,12 @@ use crate::doc::{Block, Document};
 use crate::stats::compare::Method;
 use crate::stats::linear::TermFactors;
 
-/// The factors and terms of a model, by index.
+/// The factors and terms of a model, by index. Covariates are numbered
+/// after the factors (see `stats::linear::TermFactors`).
 pub(crate) struct Model {
     pub factor_names: Vec<String>,
+    /// The columns declared by `covariate`, each a term of its own.
+    pub covariate_names: Vec<String>,
     /// The factors named in `blocks`.
     pub blocks: Vec<usize>,
     /// Each term's factors, in model order.
@@ -21,9 +24,19 @@ pub(crate) struct Model {
 impl Model {
     pub fn from_spec(doc: &Document, spec: &AnovaSpec) -> Result<Model, Diagnostic> {
         let formula = &spec.model.value;
-        let factor_names: Vec<String> = formula.factors().iter().map(|s| s.to_string()).collect();
+        let covariate_names = spec
+            .covariates
+            .as_ref()
+            .map_or(Vec::new(), |c| c.value.clone());
+        let factor_names: Vec<String> = formula
+            .factors()
+            .iter()
+            .filter(|f| !covariate_names.iter().any(|c| c == *f))
+            .map(|s| s.to_string())
+            .collect();
         let mut model = Model {
             factor_names,
+            covariate_names,
             blocks: Vec::new(),
             terms: Vec::new(),
             term_names: formula.terms.iter().map(|t| t.to_string()).collect(),
@@ -31,7 +44,12 @@ impl Model {
         model.terms = formula
             .terms
             .iter()
-            .map(|t| t.factors.iter().filter_map(|f| model.index_of(f)).collect())
+            .map(|t| {
+                t.factors
+                    .iter()
+                    .filter_map(|f| model.variable_index(f))
+                    .collect()
+            })
             .collect();
         if let Some(b) = &spec.blocks {
             model.blocks = b
@@ -47,8 +65,29 @@ impl Model {
         Ok(model)
     }
 
+    /// A factor's index (never a covariate's).
     pub fn index_of(&self, name: &str) -> Option<usize> {
         self.factor_names.iter().position(|f| f == name)
+    }
+
+    /// A term variable's index: a factor's, or a covariate's (numbered
+    /// after the factors).
+    fn variable_index(&self, name: &str) -> Option<usize> {
+        let covariate = || {
+            let c = self.covariate_names.iter().position(|c| c == name)?;
+            Some(self.factor_names.len() + c)
+        };
+        self.index_of(name).or_else(covariate)
+    }
+
+    /// Whether variable `v` of a term is a covariate.
+    pub fn is_covariate(&self, v: usize) -> bool {
+        v >= self.factor_names.len()
+    }
+
+    /// Whether a term is made of factors only.
+    pub fn is_factor_term(&self, term: &[usize]) -> bool {
+        term.iter().all(|&v| !self.is_covariate(v))
     }
 
     pub fn is_block(&self, factor: usize) -> bool {

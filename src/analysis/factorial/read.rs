@@ -1,15 +1,43 @@
 //! Reading a factorial block's rows: one response and one level per factor
 //! for each observation, with the document's labels.
 
+use super::covariates::Centred;
 use super::model::Errors;
+use super::model::Model;
 use crate::analysis::binding::{
     Data, apply_labels, check_labels, data_error, read_rows, reads_csv_rows, scan_csv,
 };
+use crate::data::covariates::split_covariates;
 use crate::data::scan::ScanSpec;
 use crate::data::{FactorialData, factorial_from_scan, factorial_response};
 use crate::diag::Diagnostic;
 use crate::doc::Block;
 use crate::provenance::Input;
+
+/// Reads the observations of the model's factors and covariates; the
+/// covariates come back centred at their grand means.
+pub(crate) fn read_with_covariates(
+    errors: &Errors<'_>,
+    block: &Block,
+    (data, display_path): (Data<'_>, &str),
+    model: &Model,
+) -> Result<(FactorialData, Option<Input>, Option<Centred>), Diagnostic> {
+    let names: Vec<&str> = model
+        .factor_names
+        .iter()
+        .chain(&model.covariate_names)
+        .map(String::as_str)
+        .collect();
+    let (data, streamed) = read_observations(errors, block, data, &names, display_path)?;
+    if model.covariate_names.is_empty() {
+        return Ok((data, streamed, None));
+    }
+    let spec = errors.spec;
+    let covariates: Vec<&str> = model.covariate_names.iter().map(String::as_str).collect();
+    let (data, read) = split_covariates(data, &covariates, spec.csv.decimal_comma)
+        .map_err(|e| data_error(errors.doc, block, spec.data.line, display_path, e))?;
+    Ok((data, streamed, Some(Centred::new(&read))))
+}
 
 /// Reads the observations; a streamed file comes back as the `Input` that
 /// records it.

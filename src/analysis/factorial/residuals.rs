@@ -8,11 +8,11 @@ use crate::stats::assumptions::{OUTLIER_THRESHOLD, OUTLIERS_KEPT, externally_stu
 use crate::stats::extremes::Extremes;
 use crate::stats::sum::neumaier;
 
-/// Per observation, its residual; per full cell, the leverage its
-/// observations share.
+/// Per observation, its residual; per design row (a full cell, or an
+/// observation when covariates vary within cells), its leverage.
 pub(super) struct Residuals {
     pub values: Vec<f64>,
-    cell_leverage: Vec<f64>,
+    row_leverage: Vec<f64>,
 }
 
 impl Residuals {
@@ -28,11 +28,11 @@ impl Residuals {
             .collect();
         let (b, cov) = (&fitted.coefficients, &fitted.covariance);
         let row_of = |c: usize| -> Vec<f64> { kept_design.iter().map(|col| col[c]).collect() };
-        let cells = data.cells.len();
-        let cell_fitted: Vec<f64> = (0..cells)
+        let rows = fitted.rows();
+        let row_fitted: Vec<f64> = (0..rows)
             .map(|c| neumaier(row_of(c).iter().zip(b).map(|(x, b)| x * b)))
             .collect();
-        let cell_leverage: Vec<f64> = (0..cells)
+        let row_leverage: Vec<f64> = (0..rows)
             .map(|c| {
                 let x = row_of(c);
                 neumaier(
@@ -41,11 +41,11 @@ impl Residuals {
             })
             .collect();
         let values = (0..data.offsets.len())
-            .map(|i| data.offsets[i] - cell_fitted[data.cell_of[i]])
+            .map(|i| data.offsets[i] - row_fitted[fitted.row_of(data, i)])
             .collect();
         Residuals {
             values,
-            cell_leverage,
+            row_leverage,
         }
     }
 
@@ -56,7 +56,7 @@ impl Residuals {
         // Only the most extreme are kept with their labels; the rest are counted.
         let mut flagged = Extremes::new(OUTLIERS_KEPT);
         for (i, &e) in self.values.iter().enumerate() {
-            let h = self.cell_leverage[data.cell_of[i]];
+            let h = self.row_leverage[fitted.row_of(data, i)];
             if h >= 1.0 - 1e-12 || fitted.residual_df < 2 {
                 continue;
             }

@@ -26,7 +26,9 @@ pub(super) fn ss_name(t: SsType) -> &'static str {
 }
 
 /// Computes every estimable type of sums of squares, and picks the one
-/// asked for (Type III unless `ss:` says otherwise).
+/// asked for (unless `ss:` says otherwise Type III, or Type II with
+/// covariates: each term adjusted for the others, the usual table of an
+/// analysis of covariance).
 pub(super) fn choose(
     fitted: &Fitted,
     model: &Model,
@@ -34,7 +36,11 @@ pub(super) fn choose(
     errors: &Errors<'_>,
 ) -> Result<Chosen, Diagnostic> {
     let spec = errors.spec;
-    let ss_type = spec.ss_type.as_ref().map_or(SsType::III, |l| l.value);
+    let default = match model.covariate_names.is_empty() {
+        true => SsType::III,
+        false => SsType::II,
+    };
+    let ss_type = spec.ss_type.as_ref().map_or(default, |l| l.value);
     if fitted.rank_deficient && ss_type == SsType::III {
         return Err(type_iii_not_estimable(empty, errors));
     }
@@ -121,7 +127,12 @@ pub(super) fn term_rows(
             let is_block = factors.len() == 1 && model.is_block(factors[0]);
             let row = TermTest {
                 name: model.term_names[i].clone(),
-                factors: factors.clone(),
+                // A covariate's row (its slope) has no factors.
+                factors: factors
+                    .iter()
+                    .copied()
+                    .filter(|&f| !model.is_covariate(f))
+                    .collect(),
                 df: t.df,
                 ss: t.ss,
                 ms,

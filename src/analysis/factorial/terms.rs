@@ -63,7 +63,8 @@ fn confounded_terms(design: &[Vec<f64>], ranges: &[std::ops::Range<usize>]) -> V
 /// A term confounded with an earlier main effect (the classical layout: a
 /// factorial's highest interaction given up to blocks) has no contrast left
 /// to test; the usual analysis leaves it in that factor's sum of squares
-/// and says so. Any other wholly aliased term is an error.
+/// and says so. Any other wholly aliased term is an error. Covariate
+/// terms vary within cells and are left to the fit (and its checks).
 pub(super) fn drop_confounded(
     model: &mut Model,
     data: &FactorialData,
@@ -74,12 +75,24 @@ pub(super) fn drop_confounded(
         levels: levels.to_vec(),
         rows: data.cells.clone(),
     };
+    // The factor terms, by their index in the model.
+    let factor_terms: Vec<usize> = (0..model.terms.len())
+        .filter(|&t| model.is_factor_term(&model.terms[t]))
+        .collect();
+    let terms: Vec<_> = factor_terms
+        .iter()
+        .map(|&t| model.terms[t].clone())
+        .collect();
     let found = confounded_terms(
-        &design_matrix(&layout, &model.terms),
-        &term_columns(&model.terms, levels),
+        &design_matrix(&layout, &terms),
+        &term_columns(&terms, levels),
     );
+    let found = found.into_iter().map(|c| Confounded {
+        term: factor_terms[c.term],
+        with: c.with.map(|w| factor_terms[w]),
+    });
     let mut notes = Vec::new();
-    for c in found.into_iter().rev() {
+    for c in found.rev() {
         let names = &model.term_names;
         let Some(with) = c.with.filter(|&j| model.terms[j].len() == 1) else {
             let hint = "check that the factors really cross (each combination of levels occurs), or remove the term";

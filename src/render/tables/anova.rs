@@ -3,7 +3,9 @@
 //! Kruskal-Wallis alternative.
 
 use super::keys::Keys;
-use super::{caption, cell, col, effect_decimals, factors_text, measure, shown_term, text};
+use super::{
+    caption, cell, col, effect_decimals, factors_text, join_words, measure, shown_term, text,
+};
 use crate::format::{
     alpha_text, column_decimals, confidence_label, df_text, f_stat, fixed, p_value,
 };
@@ -132,12 +134,26 @@ fn ss_text(ss_type: SsType) -> &'static str {
 }
 
 fn anova_caption(o: &LinearOutcome, number: usize) -> String {
-    let about = format!(
-        "Analysis of variance of {} by {} (N = {}",
-        measure(o),
-        factors_text(o),
-        o.n
-    );
+    let about = match o.covariates.as_deref() {
+        Some(d) => format!(
+            "Analysis of covariance of {} by {}, adjusted for {} (N = {}",
+            measure(o),
+            factors_text(o),
+            join_words(
+                &d.covariates
+                    .iter()
+                    .map(|c| o.presentation.plots.display(&c.name).to_string())
+                    .collect::<Vec<_>>()
+            ),
+            o.n
+        ),
+        None => format!(
+            "Analysis of variance of {} by {} (N = {}",
+            measure(o),
+            factors_text(o),
+            o.n
+        ),
+    };
     if o.mixed.is_some() {
         return match &o.presentation.caption {
             Some(c) => format!("Table {number}. {c}"),
@@ -149,7 +165,11 @@ fn anova_caption(o: &LinearOutcome, number: usize) -> String {
     }
     match (&o.presentation.caption, o.ss_type) {
         (Some(c), None) => format!("Table {number}. {c}"),
-        (Some(c), Some(ss)) => format!("Table {number}. {c} ({}).", ss_text(ss)),
+        (Some(c), Some(ss)) => format!(
+            "Table {number}. {} ({}).",
+            c.trim_end_matches('.'),
+            ss_text(ss)
+        ),
         (None, None) => format!("Table {number}. {about})."),
         (None, Some(ss)) => format!("Table {number}. {about}; {}).", ss_text(ss)),
     }
@@ -273,6 +293,7 @@ fn factorial_footnotes(o: &LinearOutcome) -> Vec<String> {
     if o.types_agree {
         footnotes.push("The design is balanced: Types I, II and III sums of squares agree.".into());
     }
+    footnotes.extend(super::covariates::anova_footnotes(o));
     footnotes
 }
 

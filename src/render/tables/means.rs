@@ -2,6 +2,7 @@
 //! level's own SD), a factor's estimated marginal means, a slice of them, or
 //! the cells; and for rank-based one-factor blocks, medians and mean ranks.
 
+use super::covariates;
 use super::keys::Keys;
 use super::{
     cell, col, display_order, family_slice, family_subject, family_table_id, measure, text,
@@ -37,8 +38,9 @@ pub fn means_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
             let mut row = vec![
                 text(e.label.clone()),
                 cell(e.n.to_string(), key(&e.label, "n")),
-                cell(fixed(e.mean, d), key(&e.label, "mean")),
             ];
+            row.extend(covariates::adjusted_cells(o, family, i, keys));
+            row.push(cell(fixed(e.mean, d), key(&e.label, "mean")));
             if let Some(level) = o.levels.get(i).filter(|_| one_factor) {
                 row.push(cell(fixed(level.sd, d), key(&e.label, "sd")));
             }
@@ -60,7 +62,15 @@ pub fn means_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
         })
         .collect();
     let what = family_subject(o, family);
-    let mut columns = vec![col(what.clone(), false), col("n", true), col("Mean", true)];
+    let mut columns = vec![col(what.clone(), false), col("n", true)];
+    let adjusted = covariates::adjusted_columns(o);
+    let mean_label = if adjusted.is_empty() {
+        "Mean"
+    } else {
+        "Adjusted mean"
+    };
+    columns.extend(adjusted);
+    columns.push(col(mean_label, true));
     if one_factor && !o.levels.is_empty() {
         columns.push(col("SD", true));
     }
@@ -70,6 +80,7 @@ pub fn means_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
     }
     columns.push(col(format!("{} CI", confidence_label(o.alpha)), true));
     let mut footnotes = vec![se_note(o, family)];
+    footnotes.extend(covariates::adjusted_footnote(o));
     if let Some(c) = letters {
         columns.push(col("Letters", false));
         footnotes.push(if one_factor {
@@ -111,6 +122,8 @@ fn means_caption(o: &LinearOutcome, family: &Family, number: usize) -> String {
     }
     let kind = if family.term == "cells" {
         "Cell means"
+    } else if o.covariates.is_some() {
+        "Adjusted means"
     } else {
         "Estimated marginal means"
     };

@@ -8,6 +8,7 @@ mod cells;
 mod checks;
 mod contrasts;
 mod covariance;
+mod covariates;
 mod keys;
 mod means;
 mod mixed;
@@ -66,6 +67,14 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     let mut tables = Vec::new();
     if show.anova {
         omnibus_tables(o, &keys, &mut numbers, &mut tables);
+    }
+    if let Some(d) = o.covariates.as_deref().filter(|_| show.anova) {
+        for c in 0..d.covariates.len() {
+            tables.push(covariates::covariate_table(o, d, c, &keys, numbers.next()));
+        }
+        if let Some(s) = &d.separate {
+            tables.push(covariates::lines_table(o, d, s, &keys, numbers.next()));
+        }
     }
     if o.checks.shown {
         let subject = format!("{} by {}", measure(o), factors_text(o));
