@@ -35,6 +35,7 @@ pub const MAX_EXPRESSION_OUTPUT: usize = 10_000;
 const FUEL_PROBE: &str = "sheaf_fuel_probe";
 
 mod covariance;
+mod covariates;
 mod names;
 
 /// Degrees of freedom as prose reads them: whole numbers stay integers, a
@@ -321,6 +322,9 @@ struct BlockContext {
     /// With `covariance`: the structure, its parameters and criteria.
     #[serde(skip_serializing_if = "Option::is_none")]
     covariance: Option<covariance::CovarianceContext>,
+    /// Blocks with covariates: `covariates`, `slopes`, `observed`.
+    #[serde(flatten)]
+    adjustment: Option<covariates::CovariatesContext>,
 }
 
 #[derive(Serialize)]
@@ -589,6 +593,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         }),
         within: within_context(o),
         covariance: covariance::covariance_context(o),
+        adjustment: covariates::covariates_context(o),
     }
 }
 #[derive(Serialize)]

@@ -69,9 +69,9 @@ pub fn adjusted_columns(o: &LinearOutcome) -> Vec<Column> {
     let mut columns: Vec<Column> = d
         .covariates
         .iter()
-        .map(|c| col(format!("{} mean", shown(&c.name)), true))
+        .map(|c| col(shown(&c.name), true))
         .collect();
-    columns.push(col("Unadjusted mean", true));
+    columns.push(col("Observed mean", true));
     columns
 }
 
@@ -94,7 +94,7 @@ pub fn adjusted_footnote(o: &LinearOutcome) -> Option<String> {
         })
         .collect();
     let mut note = format!(
-        "Means adjusted to {}. Unadjusted means are the observed means of each group. With a covariate, Tukey-Kramer p-values are approximate (the differences of adjusted means do not have the correlation the studentized range assumes; here they are slightly conservative); Bonferroni and Holm hold their level exactly.",
+        "Means adjusted to {}. The covariate columns and the observed mean are each group's means before adjustment. With a covariate, Tukey-Kramer p-values are approximate (the differences of adjusted means do not have the correlation the studentized range assumes); Bonferroni and Holm hold their level exactly.",
         parts.join("; ")
     );
     if d.slopes_differ(o.alpha) {
