@@ -302,3 +302,79 @@ fn two_builds_are_byte_identical() {
     assert_eq!(a.report, b.report);
     assert_eq!(a.files, b.files);
 }
+
+const PROSE_DOCUMENT: &str = "\
+# Prose of every kind
+
+A [safe link](https://example.org/x%20y) and an [unsafe one](javascript:alert(1)),
+an ![image](picture.svg), ~~struck words~~, a hard break\\
+and <b>raw HTML</b>, <mail@example.org>.
+
+> A quotation with `code`.
+
+1. one
+   - two
+     1. three
+        - four
+          - five, deeper than LaTeX nests lists
+2. back
+
+A paragraph between the lists.
+
+5. a list starting at five
+
+```python
+def f(x):
+    return x ** 2  # {braces} & 50%
+*starred line
+[bracketed line]
+```
+
+| Name | Value |
+|:-----|------:|
+| a_b  | 1.5   |
+| *c*  | 10%   |
+
+---
+
+### A subsection
+
+#### A subsubsection
+
+##### A paragraph heading
+";
+
+#[test]
+fn prose_of_every_kind_is_written_and_compiles() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("report.md"), PROSE_DOCUMENT).expect("document");
+    let built = build_in(dir.path(), "report.md");
+    let tex = String::from_utf8(built.report.clone()).expect("utf-8");
+    for written in [
+        r"\href{https://example.org/x\%20y}{safe link}",
+        // A target that could run script is shown as its text.
+        "and an unsafe one,",
+        r"\emph{image}",
+        r"\textless{}b\textgreater{}raw HTML\textless{}/b\textgreater{}",
+        r"\href{mailto:mail@example.org}{mail@example.org}",
+        r"\begin{quote}",
+        r"\setcounter{enumi}{4}",
+        r"\par\textbullet{} five, deeper than LaTeX nests lists",
+        r"~~~~return x ** 2 ~\# \{braces\} \& 50\%\mbox{}\newline",
+        // A line starting with `*` or `[` is not read as an argument.
+        r"\newline
+*starred line",
+        r"\begin{tabular}{lr}",
+        r"a\_b & 1.5 \\",
+        r"\emph{c} & 10\% \\",
+        r"\subsection{A subsection}",
+        r"\subsubsection{A subsubsection}",
+        r"\paragraph{A paragraph heading}",
+    ] {
+        assert!(tex.contains(written), "missing `{written}` in:\n{tex}");
+    }
+    assert!(!tex.contains("javascript"), "{tex}");
+    if let Some(log) = pdflatex(&write_outputs(&built, dir.path())) {
+        assert!(errors(&log).is_empty(), "{:?}", errors(&log));
+    }
+}
