@@ -277,6 +277,10 @@ fn the_demo_compiles_without_errors_or_tables_wider_than_the_page() {
         .map(|(_, l)| l)
         .collect();
     assert!(wide.is_empty(), "{wide:?}");
+    assert!(
+        !log.contains("Float too large"),
+        "a float runs off its page"
+    );
     let Ok(info) = Command::new("pdfinfo")
         .arg(out.path().join("report.pdf"))
         .output()
@@ -376,5 +380,37 @@ fn prose_of_every_kind_is_written_and_compiles() {
     assert!(!tex.contains("javascript"), "{tex}");
     if let Some(log) = pdflatex(&write_outputs(&built, dir.path())) {
         assert!(errors(&log).is_empty(), "{:?}", errors(&log));
+    }
+}
+
+#[test]
+fn a_table_longer_than_a_page_continues_in_further_floats() {
+    // 24 levels give 276 pairs: seven floats of at most 40 rows.
+    let dir = tempfile::tempdir().expect("temp dir");
+    let mut data = String::from("y,g\n");
+    for level in 0..24 {
+        for (r, noise) in [0.3, -0.2, 0.1, -0.4].iter().enumerate() {
+            let y = 10.0 + f64::from(level) * 0.3 + noise + r as f64 * 0.05;
+            data.push_str(&format!("{y:.2},level_{level:02}\n"));
+        }
+    }
+    std::fs::write(dir.path().join("d.csv"), data).expect("data");
+    let document =
+        "## Many levels\n\n```anova\nid: big\ndata: d.csv\nmodel: y ~ g\ncompare: tukey\n```\n";
+    std::fs::write(dir.path().join("report.md"), document).expect("document");
+    let built = build_in(dir.path(), "report.md");
+    let tex = String::from_utf8(built.report.clone()).expect("utf-8");
+    assert_eq!(
+        tex.matches(r"Table~\ref{tab:big-pairs} (continued)")
+            .count(),
+        6,
+        "{tex}"
+    );
+    if let Some(log) = pdflatex(&write_outputs(&built, dir.path())) {
+        assert!(errors(&log).is_empty(), "{:?}", errors(&log));
+        assert!(
+            !log.contains("Float too large"),
+            "a float runs off its page"
+        );
     }
 }

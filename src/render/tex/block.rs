@@ -55,43 +55,67 @@ fn caption_body<'a>(caption: &'a str, kind: &str) -> &'a str {
     }
 }
 
-/// A table as a float: caption and label above, the rules and cells in a
-/// box scaled down to the line width when wider, the notes below.
+/// Rows in one float: with the caption, header and notes, a float of 40
+/// rows in small type fits an A4 or letter page and most thesis layouts.
+const ROWS_PER_FLOAT: usize = 40;
+
+/// A table as floats: caption and label above, the rules and cells in a box
+/// scaled down to the line width when wider, the notes below. A table too
+/// long for one page is cut into floats of `ROWS_PER_FLOAT` rows, each
+/// after the first headed "Table n (continued)" and repeating the header.
 fn table_float(table: &TableView) -> String {
-    let mut out = String::from("\\begin{table}[htbp]\n\\centering\n");
-    // Captions stand above tables: the space goes below them instead.
-    out.push_str("\\setlength{\\abovecaptionskip}{0pt}\\setlength{\\belowcaptionskip}{6pt}\n");
-    out.push_str(&format!(
-        "\\caption{{{}}}\\label{{{}}}\n",
-        latex_escape(caption_body(&table.caption, "Table ")),
-        latex_label("tab:", &table.id)
-    ));
-    out.push_str("\\small\n");
-    let spec: String = table
-        .columns
-        .iter()
-        .map(|c| if c.numeric { 'r' } else { 'l' })
-        .collect();
-    let mut tabular = format!("\\begin{{tabular}}{{@{{}}{spec}@{{}}}}\n\\toprule\n");
+    let label = latex_label("tab:", &table.id);
     let header: Vec<String> = table
         .columns
         .iter()
         .map(|c| latex_escape(&c.label))
         .collect();
-    tabular.push_str(&row(&header));
-    tabular.push_str("\\midrule\n");
-    for cells in &table.rows {
-        let texts: Vec<String> = cells.iter().map(|c| latex_escape(&c.text)).collect();
-        tabular.push_str(&row(&texts));
+    let spec: String = table
+        .columns
+        .iter()
+        .map(|c| if c.numeric { 'r' } else { 'l' })
+        .collect();
+    let chunks: Vec<&[Vec<_>]> = if table.rows.is_empty() {
+        vec![&table.rows[..]]
+    } else {
+        table.rows.chunks(ROWS_PER_FLOAT).collect()
+    };
+    let mut out = String::new();
+    for (k, rows) in chunks.iter().enumerate() {
+        out.push_str("\\begin{table}[htbp]\n\\centering\n");
+        if k == 0 {
+            // Captions stand above tables: the space goes below them instead.
+            out.push_str(
+                "\\setlength{\\abovecaptionskip}{0pt}\\setlength{\\belowcaptionskip}{6pt}\n",
+            );
+            out.push_str(&format!(
+                "\\caption{{{}}}\\label{{{label}}}\n",
+                latex_escape(caption_body(&table.caption, "Table "))
+            ));
+        } else {
+            out.push_str(&format!(
+                "{{\\small Table~\\ref{{{label}}} (continued)}}\\par\\smallskip\n"
+            ));
+        }
+        out.push_str("\\small\n");
+        let mut tabular = format!("\\begin{{tabular}}{{@{{}}{spec}@{{}}}}\n\\toprule\n");
+        tabular.push_str(&row(&header));
+        tabular.push_str("\\midrule\n");
+        for cells in rows.iter() {
+            let texts: Vec<String> = cells.iter().map(|c| latex_escape(&c.text)).collect();
+            tabular.push_str(&row(&texts));
+        }
+        tabular.push_str("\\bottomrule\n\\end{tabular}");
+        out.push_str(&fit_to_width(&tabular));
+        if k + 1 == chunks.len() {
+            for note in &table.footnotes {
+                out.push_str("\\par\\smallskip{\\raggedright\\footnotesize ");
+                out.push_str(&code_spans(note));
+                out.push_str("\\par}\n");
+            }
+        }
+        out.push_str("\\end{table}\n\n");
     }
-    tabular.push_str("\\bottomrule\n\\end{tabular}");
-    out.push_str(&fit_to_width(&tabular));
-    for note in &table.footnotes {
-        out.push_str("\\par\\smallskip{\\raggedright\\footnotesize ");
-        out.push_str(&code_spans(note));
-        out.push_str("\\par}\n");
-    }
-    out.push_str("\\end{table}\n\n");
     out
 }
 
