@@ -338,6 +338,7 @@ def f(x):
 |:-----|------:|
 | a_b  | 1.5   |
 | *c*  | 10%   |
+| \\*d | 2     |
 
 ---
 
@@ -369,8 +370,9 @@ fn prose_of_every_kind_is_written_and_compiles() {
         r"\newline
 *starred line",
         r"\begin{tabular}{lr}",
-        r"a\_b & 1.5 \\",
-        r"\emph{c} & 10\% \\",
+        r"{}a\_b & 1.5 \\",
+        r"{}\emph{c} & 10\% \\",
+        r"{}*d & 2 \\",
         r"\subsection{A subsection}",
         r"\subsubsection{A subsubsection}",
         r"\paragraph{A paragraph heading}",

@@ -122,7 +122,7 @@ fn document_opening(report: &Report) -> String {
         crate::doc::Paper::Letter => "letterpaper",
     };
     let mut out = format!(
-        "% Written by sheaf {}. Run pdflatex twice, so that references find their numbers.\n",
+        "% Written by sheaf {}. Run pdflatex until it no longer asks for a rerun (twice;\n% three times with a table of contents), so that references find their numbers.\n",
         crate::VERSION
     );
     for line in [
@@ -152,7 +152,7 @@ fn document_opening(report: &Report) -> String {
     ));
     out.push_str("\n\\begin{document}\n\\maketitle\n");
     if front.contents {
-        out.push_str("\\tableofcontents\n\\listoftables\n\\listoffigures\n");
+        out.push_str("\\tableofcontents\n\\listoftables\n\\listoffigures\n\\clearpage\n");
     }
     out.push('\n');
     out

@@ -94,7 +94,9 @@ impl Prose {
             }
             Tag::TableCell => {
                 self.column += 1;
-                if self.column > 1 { " & " } else { "" }
+                // A row's first cell is shielded from the previous row's
+                // `\\`, which would read a leading `*` as its starred form.
+                if self.column > 1 { " & " } else { "{}" }
             }
             Tag::Emphasis => "\\emph{",
             Tag::Strong => "\\textbf{",
