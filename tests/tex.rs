@@ -124,13 +124,13 @@ author: Ana Łópez & Co_
 
 Prose with 5% & $3 for item #4, {braces}, ~tilde^, under_score, a back\\slash,
 `code_with_underscores & {x}`, *emphasis*, **strong**, a [link](https://example.org/a_b?x=1&y=50%25#top)
-and Größe with α. See {{ table(\"odd-anova\") }}.
+and Größe with α. See {{ table(\"odd_one-anova\") }}.
 
 - first item [with brackets]
 - second item
 
 ```anova
-id: odd
+id: odd_one
 data: odd.csv
 model: `amount_%` ~ `mix & {1}`
 compare: lsd
@@ -165,10 +165,10 @@ fn every_special_character_is_escaped_in_names_captions_and_prose() {
         r"\textbf{strong}",
         r"\href{https://example.org/a_b?x=1&y=50\%25\#top}{link}",
         r"Größe with \ensuremath{\alpha}",
-        r"See Table~\ref{tab:odd-anova}",
+        r"See Table~\ref{tab:odd_one-anova}",
         r"\item{} first item {[}with brackets{]}",
         // A caption, with its label.
-        r"\caption{Caption with 50\% \& \$1 and \#2\_x \{y\} \textasciitilde{}z \textasciicircum{}w}\label{tab:odd-anova}",
+        r"\caption{Caption with 50\% \& \$1 and \#2\_x \{y\} \textasciitilde{}z \textasciicircum{}w}\label{tab:odd_one-anova}",
         // Level names in table cells.
         r"a\_b",
         r"50\% \& \$5",

@@ -26,12 +26,18 @@ struct Prose {
     column: usize,
     /// Where the open table's `tabular` starts in `out`.
     table_start: usize,
+    /// Text read but not yet written: the parser splits a text at every
+    /// backslash escape, and a reference must be read whole.
+    text: String,
 }
 
 /// The body (with block markers at `markers`) as LaTeX.
 pub(super) fn prose_latex(body: &str, fragments: &[String], markers: &[MarkerAt]) -> String {
     let mut prose = Prose::default();
     for (event, range) in Parser::new_ext(body, markdown_options()).into_offset_iter() {
+        if !matches!(event, Event::Text(_)) {
+            prose.flush_text();
+        }
         match event {
             Event::Html(h) | Event::InlineHtml(h) => {
                 let block = markers
@@ -51,7 +57,7 @@ pub(super) fn prose_latex(body: &str, fragments: &[String], markers: &[MarkerAt]
             Event::End(tag) => prose.end(tag),
             Event::Text(t) => match &mut prose.code {
                 Some(code) => code.push_str(&t),
-                None => prose.out.push_str(&prose_text(&t)),
+                None => prose.text.push_str(&t),
             },
             Event::Code(t) => {
                 prose
@@ -66,10 +72,18 @@ pub(super) fn prose_latex(body: &str, fragments: &[String], markers: &[MarkerAt]
             _ => {}
         }
     }
+    prose.flush_text();
     prose.out
 }
 
 impl Prose {
+    fn flush_text(&mut self) {
+        if !self.text.is_empty() {
+            self.out.push_str(&prose_text(&self.text));
+            self.text.clear();
+        }
+    }
+
     fn start(&mut self, tag: Tag) {
         let text = match tag {
             Tag::Paragraph => "",
