@@ -75,3 +75,76 @@ fn latex_labels_are_safe_and_distinct() {
     assert_ne!(latex_label("tab:", "a b"), latex_label("tab:", "a_b"));
     assert_eq!(latex_label("fig:", "x}\\"), "fig:x+7D+5C");
 }
+
+/// Reads escaped LaTeX as TeX would at the top level: every special
+/// character must come as a control symbol (`\%`) or inside a command's
+/// empty or one-group argument we wrote, braces must balance, and no
+/// character outside ASCII may be one the fonts lack.
+fn inert(latex: &str) -> Result<(), String> {
+    let mut depth = 0i32;
+    let mut chars = latex.chars().peekable();
+    while let Some(c) = chars.next() {
+        match c {
+            '\\' => {
+                // A control word, or a control symbol of one character.
+                match chars.next() {
+                    Some(n) if n.is_ascii_alphabetic() => {
+                        while chars.peek().is_some_and(|n| n.is_ascii_alphabetic()) {
+                            chars.next();
+                        }
+                    }
+                    Some(_) => {}
+                    None => return Err("a trailing backslash".into()),
+                }
+            }
+            '{' => depth += 1,
+            '}' => {
+                depth -= 1;
+                if depth < 0 {
+                    return Err("a closing brace without its opening one".into());
+                }
+            }
+            // (`~` stays: it is written for a no-break space.)
+            '$' | '&' | '%' | '#' | '_' | '^' => return Err(format!("a bare `{c}`")),
+            c if !typeset(c) => return Err(format!("`{c}` reached the output")),
+            _ => {}
+        }
+    }
+    if depth != 0 {
+        return Err("unbalanced braces".into());
+    }
+    Ok(())
+}
+
+/// Whether pdflatex with UTF-8 input and T1 fonts sets `c` as written.
+fn typeset(c: char) -> bool {
+    c.is_ascii()
+        || ('\u{A1}'..='\u{17F}').contains(&c)
+        || "\u{2010}\u{2011}–—‘’‚“”„†‡•…‰‱‹›⁄€™№℃←→".contains(c)
+}
+
+proptest::proptest! {
+    #[test]
+    fn any_text_escapes_to_inert_latex(text in "\\PC*") {
+        let escaped = latex_escape(&text);
+        proptest::prop_assert!(inert(&escaped).is_ok(), "{text:?} -> {escaped:?}: {:?}", inert(&escaped));
+        let code = latex_code(&text);
+        proptest::prop_assert!(inert(&code).is_ok(), "{text:?} -> {code:?}: {:?}", inert(&code));
+    }
+
+    #[test]
+    fn specials_escape_to_inert_latex(text in "[\\\\{}$&%#_~^\\[\\]<>|\"`'\\-,a α中\u{A0}\n]*") {
+        let escaped = latex_escape(&text);
+        proptest::prop_assert!(inert(&escaped).is_ok(), "{text:?} -> {escaped:?}: {:?}", inert(&escaped));
+    }
+}
+
+#[test]
+fn the_inertness_check_rejects_raw_text() {
+    for raw in [
+        "50%", "a_b", "{", "}{", "x^2", "$", "a & b", "#1", "\\", "中",
+    ] {
+        assert!(inert(raw).is_err(), "{raw:?} passed");
+    }
+    assert!(inert(r"50\% a\_b \{x\} \textasciicircum{}").is_ok());
+}
