@@ -218,6 +218,7 @@ pub fn expression(data: &[u8]) {
     let doc = format!("{EXPRESSION_BLOCKS}Quoted: {{{{ {text} }}}}\n");
     let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Html);
     let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Markdown);
+    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Tex);
 }
 
 /// Template expansion and the whole pipeline: the input is a document whose
@@ -225,6 +226,7 @@ pub fn expression(data: &[u8]) {
 pub fn expand(data: &[u8]) {
     let _ = compile("fuzz.md", data, &Fixed, Format::Html);
     let _ = compile("fuzz.md", data, &Fixed, Format::Markdown);
+    let _ = compile("fuzz.md", data, &Fixed, Format::Tex);
 }
 
 /// Block-cache entries: arbitrary bytes as an entry, and as the payload of

@@ -276,6 +276,16 @@ fn cases() -> Vec<Case> {
             ],
         ),
         case(
+            "unknown LaTeX output kind",
+            format!("---\ntex: fragment\n---\n{}", doc_with(GOOD_BLOCK)),
+            vec![
+                "unknown LaTeX output `fragment`",
+                "report.md:2",
+                "`document`",
+                "`body`",
+            ],
+        ),
+        case(
             "unclosed front matter",
             format!("---\ntitle: A\n{}", doc_with(GOOD_BLOCK)),
             vec!["the front matter is never closed", "report.md:1"],

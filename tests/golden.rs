@@ -1,6 +1,6 @@
 //! Whole-document golden tests: each folder in tests/cases/ holds a report.md
-//! and its data; `expected/` holds the HTML, Markdown, results file and
-//! figure files sheaf must produce, byte for byte. Regenerate after an intended change with
+//! and its data; `expected/` holds the HTML, Markdown, LaTeX, results file
+//! and figure files sheaf must produce, byte for byte. Regenerate after an intended change with
 //!
 //!     SHEAF_BLESS=1 cargo test --test golden
 //!
@@ -20,7 +20,7 @@ fn every_case_matches_its_expected_output() {
     let mut failures = Vec::new();
     for dir in cases() {
         let expected = dir.join("expected");
-        for format in [Format::Html, Format::Markdown] {
+        for format in [Format::Html, Format::Markdown, Format::Tex] {
             let built = build(&dir, format);
             // The results file differs between formats only in figure file
             // names; keep one expected copy per format.
@@ -29,7 +29,7 @@ fn every_case_matches_its_expected_output() {
             } else {
                 built
                     .results_name
-                    .replace(".results.json", ".md.results.json")
+                    .replace(".results.json", &format!(".{}.results.json", format.name()))
             };
             let mut outputs = vec![
                 (&built.report_name, &built.report),
@@ -60,7 +60,7 @@ fn every_case_matches_its_expected_output() {
 #[test]
 fn two_builds_are_byte_identical() {
     for dir in cases() {
-        for format in [Format::Html, Format::Markdown] {
+        for format in [Format::Html, Format::Markdown, Format::Tex] {
             let (a, b) = (build(&dir, format), build(&dir, format));
             assert_eq!(a.report, b.report, "{}", dir.display());
             assert_eq!(a.results, b.results, "{}", dir.display());

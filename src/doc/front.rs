@@ -48,6 +48,7 @@ pub const FRONT_MATTER: KeyTable<FrontDraft> = KeyTable {
         ("dpi", read_dpi),
         ("paper", read_paper),
         ("contents", read_contents),
+        ("tex", read_tex),
     ],
 };
 
@@ -97,6 +98,13 @@ fn read_contents(e: &Entry, d: &mut FrontDraft) -> Result<(), SpecError> {
             ));
         }
     };
+    Ok(())
+}
+
+fn read_tex(e: &Entry, d: &mut FrontDraft) -> Result<(), SpecError> {
+    let choices: [(&[&str], bool); 2] = [(&["document"], false), (&["body"], true)];
+    let hint = "write `document` (the default: a whole LaTeX document) or `body` (a fragment for `\\input`)";
+    d.front.tex_body_only = one_of(e, "LaTeX output", &choices, hint)?;
     Ok(())
 }
 

@@ -16,6 +16,7 @@ const FRONT_SAMPLES: &[(&str, &str)] = &[
     ("dpi", "figures: png\ndpi: 300"),
     ("paper", "paper: letter"),
     ("contents", "contents: yes"),
+    ("tex", "tex: body"),
 ];
 
 /// Lines with which each `anova` key is accepted (with what it needs).

@@ -69,6 +69,9 @@ pub struct FrontMatter {
     pub paper: Paper,
     /// A table of contents and lists of tables and figures after the title.
     pub contents: bool,
+    /// LaTeX output as a fragment for `\input` (no preamble) rather than a
+    /// whole document.
+    pub tex_body_only: bool,
 }
 
 impl Default for FrontMatter {
@@ -83,6 +86,7 @@ impl Default for FrontMatter {
             figures: ImageFormat::Svg,
             paper: Paper::A4,
             contents: false,
+            tex_body_only: false,
         }
     }
 }

@@ -3,7 +3,7 @@
 //! text.
 
 use super::links::safe_url;
-use super::report::{ContentsEntry, MarkerAt, Report};
+use super::report::{ContentsEntry, MarkerAt, Report, block_marker as marker};
 use super::templates::{environment, render};
 use super::writer::Writer;
 use crate::diag::Diagnostic;
@@ -54,14 +54,6 @@ impl Writer for Html {
         let contents = numbered.then(|| report.contents(headings));
         render(&env, "report.html", report.context(content, contents))
     }
-}
-
-/// Marker standing for block `i` in the prose while it goes through the
-/// Markdown parser; replaced by the block's HTML afterwards. Only a marker
-/// at an offset where sheaf put one counts: the same text written in the
-/// document is shown as text like any other raw HTML.
-fn marker(i: usize) -> String {
-    format!("<!-- sheaf-block-{i} -->")
 }
 
 /// Markdown to HTML. Raw HTML written in the document is shown as text (a

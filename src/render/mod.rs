@@ -1,7 +1,8 @@
 //! Rendering stage: view models laid out by templates (embedded at compile
 //! time from `templates/`), prose from pulldown-cmark. HTML escaping happens
 //! in minijinja's HTML auto-escape, pulldown-cmark's writer and `html_escape`
-//! (for the `code_spans` filter); Markdown escaping in `markdown_escape`.
+//! (for the `code_spans` filter); Markdown escaping in `markdown_escape`;
+//! LaTeX escaping in `latex_escape` and its siblings, called by `tex`.
 //! Nowhere else.
 
 mod html;
@@ -11,6 +12,7 @@ mod markdown;
 pub mod report;
 mod tables;
 mod templates;
+mod tex;
 pub mod view;
 pub mod writer;
 
@@ -55,7 +57,7 @@ pub fn render_report(
         inputs,
         document,
         results_name,
-        writer.figures_inline(),
+        writer,
     )?;
     let mut text = writer.write(&report)?;
     if !text.ends_with('\n') {

@@ -4,6 +4,7 @@
 
 use super::templates::{template_source, to_value};
 use super::view::BlockView;
+use super::writer::Writer;
 use super::{CAUTIONS, RANDOM_TERMS_CAUTION, choices_of, inline, tables, view};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
@@ -51,9 +52,9 @@ pub(crate) struct ContentsView {
 
 /// A block's acknowledged notes, for the provenance section.
 #[derive(Serialize)]
-struct AcknowledgedView {
-    id: String,
-    notes: Vec<String>,
+pub(crate) struct AcknowledgedView {
+    pub(crate) id: String,
+    pub(crate) notes: Vec<String>,
 }
 
 /// Everything a writer needs, in no particular format.
@@ -74,10 +75,18 @@ pub struct Report<'a> {
 /// A block marker in the body: its byte offset and the block's index.
 pub(crate) type MarkerAt = (usize, usize);
 
+/// Marker standing for block `i` in the prose while it goes through the
+/// Markdown parser; replaced by the block's text afterwards. Only a marker
+/// at an offset where sheaf put one counts: the same text written in the
+/// document is shown as text like any other raw HTML.
+pub(crate) fn block_marker(i: usize) -> String {
+    format!("<!-- sheaf-block-{i} -->")
+}
+
 impl<'a> Report<'a> {
     /// The standing cautions, and the one on random terms where a block
     /// has them.
-    fn cautions(&self) -> Vec<&'static str> {
+    pub(crate) fn cautions(&self) -> Vec<&'static str> {
         let mut cautions = CAUTIONS.to_vec();
         if self
             .results
@@ -98,8 +107,9 @@ impl<'a> Report<'a> {
         inputs: &'a [Input],
         document: (&'a str, &'a [u8]),
         results_name: &'a str,
-        figures_inline: bool,
+        writer: &dyn Writer,
     ) -> Result<Report<'a>, Diagnostic> {
+        let figures_inline = writer.figures_inline();
         let mut next_table = 1;
         let mut views = Vec::with_capacity(results.len());
         for (r, figs) in results.iter().zip(figures) {
@@ -122,11 +132,13 @@ impl<'a> Report<'a> {
         let mut numbers: Vec<(String, String)> = Vec::new();
         for v in &views {
             for t in &v.tables {
-                numbers.push((t.id.clone(), format!("Table {}", t.number)));
+                let name = writer.cross_reference("Table", t.number, &t.id);
+                numbers.push((t.id.clone(), name));
             }
         }
         for p in figures.iter().flatten() {
-            numbers.push((p.figure.id.clone(), format!("Figure {}", p.figure.number)));
+            let name = writer.cross_reference("Figure", p.figure.number, &p.figure.id);
+            numbers.push((p.figure.id.clone(), name));
         }
         let values = inline::evaluate(doc, results, &doc.expressions, &numbers)?;
         Ok(Report {
@@ -205,10 +217,7 @@ impl<'a> Report<'a> {
     pub(crate) fn context(&self, content: String, contents: Option<ContentsView>) -> Value {
         let (document_name, document_bytes) = self.document;
         let front = &self.doc.front;
-        let title = front
-            .title
-            .clone()
-            .unwrap_or_else(|| document_name.trim_end_matches(".md").to_string());
+        let title = self.title();
         let inputs: Vec<InputView> = self
             .inputs
             .iter()
@@ -242,8 +251,17 @@ impl<'a> Report<'a> {
         }
     }
 
+    /// The report's title: the front matter's, else the document's name.
+    pub(crate) fn title(&self) -> String {
+        self.doc
+            .front
+            .title
+            .clone()
+            .unwrap_or_else(|| self.document.0.trim_end_matches(".md").to_string())
+    }
+
     /// Each block's acknowledged notes, for the provenance section.
-    fn acknowledged(&self) -> Vec<AcknowledgedView> {
+    pub(crate) fn acknowledged(&self) -> Vec<AcknowledgedView> {
         self.results
             .iter()
             .filter_map(|r| {

@@ -3,7 +3,7 @@
 //! and says where figures go.
 
 use super::report::Report;
-use super::{html, markdown};
+use super::{html, markdown, tex};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::figure::Figure;
@@ -26,6 +26,12 @@ pub trait Writer: Sync {
         figure: &Figure,
         images: ImageFormat,
     ) -> Result<Option<(String, Vec<u8>)>, String>;
+    /// How prose names a numbered table or figure (`kind` is `Table` or
+    /// `Figure`): the number as text, unless the format numbers them itself.
+    /// The text must start with `kind`.
+    fn cross_reference(&self, kind: &str, number: usize, _id: &str) -> String {
+        format!("{kind} {number}")
+    }
     /// The report's text.
     fn write(&self, report: &Report) -> Result<String, Diagnostic>;
 }
@@ -40,11 +46,12 @@ pub struct Format(&'static dyn Writer);
 impl Format {
     pub const Html: Format = Format(&html::Html);
     pub const Markdown: Format = Format(&markdown::Markdown);
+    pub const Tex: Format = Format(&tex::Tex);
 }
 
 /// Every output format, in the order `--to` lists them. A new format is a
 /// writer in its own file and one line here.
-pub const FORMATS: &[Format] = &[Format::Html, Format::Markdown];
+pub const FORMATS: &[Format] = &[Format::Html, Format::Markdown, Format::Tex];
 
 impl Format {
     /// The format `--to` or a results file names.

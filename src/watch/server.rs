@@ -213,6 +213,7 @@ fn content_type(name: &str) -> &'static str {
         Some("png") => "image/png",
         Some("json") => "application/json",
         Some("md") => "text/markdown; charset=utf-8",
+        Some("tex") => "text/x-tex; charset=utf-8",
         Some("css") => "text/css; charset=utf-8",
         _ => "application/octet-stream",
     }
