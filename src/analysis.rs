@@ -16,6 +16,7 @@
 mod binding;
 mod checks;
 mod compare;
+mod contrasts;
 mod exclusions;
 mod factorial;
 mod mixed;

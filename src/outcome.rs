@@ -3,6 +3,7 @@
 //! no engine and no output.
 
 mod checks;
+pub mod contrasts;
 pub mod covariance;
 pub mod covariates;
 pub mod linear;

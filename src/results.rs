@@ -6,6 +6,7 @@
 //! A value that is not finite is written as `null`, and the block's
 //! `warnings` say why.
 
+mod contrasts;
 mod covariates;
 mod mixed;
 mod repeated;
@@ -197,6 +198,9 @@ pub struct BlockRecord {
     /// Blocks with covariates (`covariate`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub covariates: Option<covariates::CovariatesRecord>,
+    /// Blocks with planned contrasts (`contrast`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub planned_contrasts: Option<contrasts::ContrastsRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -495,6 +499,7 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .covariates
             .as_deref()
             .map(|d| covariates::covariates_record(o, d)),
+        planned_contrasts: o.contrasts.as_deref().map(contrasts::contrasts_record),
     }
 }
 

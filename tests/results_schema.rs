@@ -36,6 +36,7 @@ mod contract {
     pub enum Format {
         Html,
         Md,
+        Tex,
     }
 
     #[derive(Deserialize)]
@@ -96,6 +97,145 @@ mod contract {
         pub seds: Option<Vec<SedRow>>,
         #[serde(default, deserialize_with = "present")]
         pub repeated: Option<Repeated>,
+        /// Blocks with `covariate` only.
+        #[serde(default, deserialize_with = "present")]
+        pub covariates: Option<Covariates>,
+        /// Blocks with `contrast` only.
+        #[serde(default, deserialize_with = "present")]
+        pub planned_contrasts: Option<PlannedContrasts>,
+    }
+
+    /// README: "Blocks with `covariate` add `covariates` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Covariates {
+        pub groups_of: String,
+        pub covariates: Vec<CovariateRecord>,
+        #[serde(deserialize_with = "nullable")]
+        pub equal_slopes: Option<FRow>,
+        #[serde(default, deserialize_with = "present")]
+        pub separate_slopes: Option<SeparateSlopes>,
+        pub unadjusted: Vec<Unadjusted>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct CovariateRecord {
+        pub name: String,
+        pub adjusted_to: f64,
+        pub min: f64,
+        pub max: f64,
+        pub slope: Option<f64>,
+        pub slope_se: Option<f64>,
+        pub slope_df: f64,
+        pub groups: Vec<CovariateGroup>,
+        pub balance: FRow,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct CovariateGroup {
+        pub level: String,
+        pub n: u64,
+        pub mean: f64,
+        pub min: f64,
+        pub max: f64,
+    }
+
+    /// An F test: `f`, `df1`, `df2`, `p` (and `ss` for the slopes test).
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct FRow {
+        #[serde(default)]
+        pub ss: Option<f64>,
+        pub f: Option<f64>,
+        pub df1: f64,
+        pub df2: f64,
+        pub p: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct SeparateSlopes {
+        pub ms: Option<f64>,
+        pub df: f64,
+        pub groups: Vec<OwnSlope>,
+        pub differences: Vec<LineDifference>,
+        pub regions: Vec<Region>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct OwnSlope {
+        pub level: String,
+        pub slope: Option<f64>,
+        pub se: Option<f64>,
+        pub mean_at: Option<f64>,
+        pub mean_at_se: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct LineDifference {
+        pub a: String,
+        pub b: String,
+        pub at: f64,
+        pub difference: Option<f64>,
+        pub se: Option<f64>,
+        pub t: Option<f64>,
+        pub p: Option<f64>,
+        pub ci_lower: Option<f64>,
+        pub ci_upper: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Region {
+        pub a: String,
+        pub b: String,
+        pub boundaries: Vec<f64>,
+        pub significant: Vec<[f64; 2]>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Unadjusted {
+        pub term: String,
+        #[serde(default)]
+        pub within: Option<String>,
+        pub means: std::collections::BTreeMap<String, Option<f64>>,
+        pub covariate_means:
+            std::collections::BTreeMap<String, std::collections::BTreeMap<String, Option<f64>>>,
+    }
+
+    /// README: "Blocks with `contrast` add `planned_contrasts` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct PlannedContrasts {
+        pub factor: String,
+        pub adjustment: String,
+        pub orthogonal: bool,
+        pub critical_value: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub joint: Option<FRow>,
+        pub contrasts: Vec<PlannedContrast>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct PlannedContrast {
+        pub name: String,
+        pub weights: std::collections::BTreeMap<String, f64>,
+        pub estimate: Option<f64>,
+        pub se: Option<f64>,
+        pub df: f64,
+        pub t: Option<f64>,
+        pub p: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_adj: Option<f64>,
+        pub ci_lower: Option<f64>,
+        pub ci_upper: Option<f64>,
+        pub in_response_units: bool,
     }
 
     /// README: "`repeated` with `subject`, `within` and `between` …".
@@ -727,7 +867,8 @@ fn cases() -> Vec<PathBuf> {
 }
 
 /// Every `*.results.json` under each case's `expected/` (tests/golden.rs writes one per format:
-/// `report.results.json` for HTML, `report.md.results.json` for Markdown).
+/// `report.results.json` for HTML, `report.md.results.json` for Markdown,
+/// `report.tex.results.json` for LaTeX).
 fn golden_files() -> Vec<Golden> {
     let mut found = Vec::new();
     for case in cases() {
@@ -738,8 +879,11 @@ fn golden_files() -> Vec<Golden> {
             .collect();
         files.sort();
         for file in files {
-            let format = if file.to_string_lossy().ends_with(".md.results.json") {
+            let name = file.to_string_lossy();
+            let format = if name.ends_with(".md.results.json") {
                 Format::Md
+            } else if name.ends_with(".tex.results.json") {
+                Format::Tex
             } else {
                 Format::Html
             };
@@ -762,7 +906,7 @@ fn read_golden(g: &Golden) -> Result<ResultsFile, String> {
 fn every_case_has_a_results_file_for_each_format() {
     let golden = golden_files();
     for case in cases() {
-        for format in [Format::Html, Format::Md] {
+        for format in [Format::Html, Format::Md, Format::Tex] {
             assert!(
                 golden.iter().any(|g| g.case == case && g.format == format),
                 "{} has no {format:?} results file",
@@ -971,7 +1115,15 @@ fn check_figures(
         );
         match (format, &fig.file) {
             (Format::Html, file) => p.require(file.is_none(), &at, "file is not null in HTML"),
-            (Format::Md, None) => p.require(false, &at, "file is null beside a Markdown report"),
+            (Format::Md | Format::Tex, None) => {
+                p.require(false, &at, "file is null beside a Markdown or LaTeX report")
+            }
+            // A LaTeX report's figures are PNG files beside it.
+            (Format::Tex, Some(file)) => p.require(
+                *file == format!("{stem}-{}.png", fig.id),
+                &at,
+                format!("file is `{file}`"),
+            ),
             (Format::Md, Some(file)) => {
                 let svg = format!("{stem}-{}.svg", fig.id);
                 let png = format!("{stem}-{}.png", fig.id);

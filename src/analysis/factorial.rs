@@ -17,6 +17,7 @@ mod design_notes;
 mod families;
 mod fit;
 pub(super) mod model;
+mod planned;
 pub(super) mod read;
 pub(super) mod residuals;
 mod separate_slopes;
@@ -96,6 +97,12 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         alpha,
     };
     let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
+    let contrasts = planned::contrasts(
+        &errors,
+        (&analysed.model, &analysed.data, &analysed.levels),
+        &analysed.fitted,
+        alpha,
+    )?;
     let covariates = centred.map(|c| {
         let detail = analysed.covariate_detail(&c, &families);
         notes.extend(covariate_notes::notes(&detail, alpha));
@@ -103,6 +110,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     });
     let mut outcome = analysed.into_result(block, spec, checks, families, notes, doc);
     outcome.covariates = covariates;
+    outcome.contrasts = contrasts.map(Box::new);
     Ok((outcome, streamed))
 }
 
@@ -267,6 +275,7 @@ impl Analysed {
             mixed: None,
             repeated: None,
             covariates: None,
+            contrasts: None,
         }
     }
 }

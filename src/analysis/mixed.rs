@@ -367,6 +367,7 @@ impl Analysed {
             mixed: Some(Box::new(detail)),
             repeated: repeated.map(Box::new),
             covariates: None,
+            contrasts: None,
         })
     }
 

@@ -86,6 +86,7 @@ impl Engine<'_> {
         let pooled = spec.method != Omnibus::Welch;
         let levels = levels::level_rows(&sample, &table, alpha, pooled);
         let comparison = self.comparison(&sample, &levels, &table, &alternatives, &mut notes)?;
+        let contrasts = self.contrasts(&factor, &levels, &table)?;
         let decimals = decimals_shown(self.doc, spec, sample.decimals);
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         // Only figures read the observations; without them the result (and
@@ -133,7 +134,38 @@ impl Engine<'_> {
             mixed: None,
             repeated: None,
             covariates: None,
+            contrasts: contrasts.map(Box::new),
         })
+    }
+
+    /// Planned contrasts over the level means, each mean's variance
+    /// MSE/nᵢ (the pooled error; independent levels).
+    fn contrasts(
+        &self,
+        factor: &str,
+        levels: &[crate::outcome::linear::LevelSummary],
+        table: &crate::stats::oneway::OneWay,
+    ) -> Result<Option<crate::outcome::contrasts::ContrastDetail>, Diagnostic> {
+        let labels: Vec<String> = levels.iter().map(|l| l.name.clone()).collect();
+        let k = levels.len();
+        let covariance = (0..k)
+            .map(|i| {
+                (0..k)
+                    .map(|j| match i == j {
+                        true => table.ms_within / levels[i].n as f64,
+                        false => 0.0,
+                    })
+                    .collect()
+            })
+            .collect();
+        let means = super::contrasts::LevelMeans {
+            factor,
+            labels: &labels,
+            means: levels.iter().map(|l| l.mean).collect(),
+            covariance,
+            df: table.df_within as f64,
+        };
+        super::contrasts::planned(self.doc, self.spec, &means, self.alpha)
     }
 
     /// The ANOVA table, with the total sum of squares from the raw values as

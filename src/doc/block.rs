@@ -255,6 +255,9 @@ pub struct AnovaSpec {
     pub within: Option<Located<String>>,
     /// Factorial designs: whether and how the cell means are compared.
     pub cells: Option<Located<CellComparison>>,
+    /// Planned contrasts among one factor's levels, and their adjustment.
+    pub contrasts: Vec<super::block_contrasts::ContrastSpec>,
+    pub contrast_adjust: super::block_contrasts::ContrastAdjust,
     /// Covariates: numeric columns entering the model as straight lines
     /// (each also a term of `model`, added first where not written).
     pub covariates: Option<Located<Vec<String>>>,

@@ -301,6 +301,7 @@ pub(super) fn resolve(
         &d,
         &mut model.value,
     ));
+    errors.extend(super::block_contrasts::contrast_keys(&d));
     errors.extend(model_keys(&mut d, &model.value));
     errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
@@ -324,6 +325,8 @@ pub(super) fn resolve(
     let covariates = super::block_covariates::located_covariates(&d);
     Ok(AnovaSpec {
         covariates,
+        contrasts: d.contrasts,
+        contrast_adjust: d.contrast_adjust.map(|c| c.value).unwrap_or_default(),
         acknowledge: d.acknowledge,
         sheet: d.sheet.map(|e| e.value),
         range: d.range.map(|e| e.value),

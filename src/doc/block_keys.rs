@@ -67,6 +67,9 @@ pub struct AnovaDraft {
     pub ddf: Option<(Entry, super::block::DdfMethod)>,
     /// `subject`: the unit measured repeatedly.
     pub subject: Option<(Entry, super::formula::Term)>,
+    /// `contrast`: planned contrasts, one line each.
+    pub contrasts: Vec<super::block_contrasts::ContrastSpec>,
+    pub contrast_adjust: Option<Located<super::block_contrasts::ContrastAdjust>>,
     /// `covariate`: numeric columns entering the model as straight lines.
     pub covariates: Option<(Entry, Vec<String>)>,
     /// `covariance`: the repeated-measures error structure.
@@ -105,6 +108,11 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("cells", read_cells),
         ("block", read_block),
         ("covariate", super::block_covariates::read_covariate),
+        ("contrast", super::block_contrasts::read_contrast),
+        (
+            "contrast_adjust",
+            super::block_contrasts::read_contrast_adjust,
+        ),
         ("random", super::block_random::read_random),
         ("ddf", super::block_random::read_ddf),
         ("subject", super::block_random::read_subject),

@@ -51,6 +51,14 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("cells", "model: y ~ g * h\ncells: yes"),
     ("block", "model: y ~ g + b\nblock: b"),
     ("covariate", "model: y ~ g\ncovariate: x"),
+    (
+        "contrast",
+        "contrast: a vs b = a 1, b -1\ncontrast: a vs c = a 1, c -1",
+    ),
+    (
+        "contrast_adjust",
+        "contrast: a vs b = a 1, b -1\ncontrast_adjust: holm",
+    ),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

@@ -28,6 +28,10 @@ pub struct EntryError {
     pub hint: Option<String>,
 }
 
+/// Keys written once per item, one line each (a block's planned
+/// contrasts); every other key may appear once.
+pub const REPEATABLE: [&str; 1] = ["contrast"];
+
 /// Parses `text`, whose first line is document line `first_line`.
 pub fn parse_entries(text: &str, first_line: usize) -> Result<Vec<Entry>, EntryError> {
     let mut entries: Vec<Entry> = Vec::new();
@@ -65,7 +69,10 @@ pub fn parse_entries(text: &str, first_line: usize) -> Result<Vec<Entry>, EntryE
         if value.len() >= 2 && value.starts_with('"') && value.ends_with('"') {
             value = value[1..value.len() - 1].replace("\\\"", "\"");
         }
-        if let Some(first) = entries.iter().find(|e| e.key == key) {
+        if let Some(first) = entries
+            .iter()
+            .find(|e| e.key == key && !REPEATABLE.contains(&key))
+        {
             return Err(EntryError {
                 line,
                 column: key_column,

@@ -7,6 +7,7 @@
 
 pub mod block;
 mod block_checks;
+pub mod block_contrasts;
 pub mod block_covariance;
 mod block_covariates;
 mod block_display;

@@ -277,6 +277,9 @@ pub struct LinearOutcome {
     /// the balance check and the test of equal slopes.
     #[serde(default)]
     pub covariates: Option<Box<super::covariates::CovariateDetail>>,
+    /// Planned contrasts (`contrast`).
+    #[serde(default)]
+    pub contrasts: Option<Box<super::contrasts::ContrastDetail>>,
 }
 
 impl LinearOutcome {

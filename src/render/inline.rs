@@ -34,6 +34,7 @@ pub const MAX_EXPRESSION_OUTPUT: usize = 10_000;
 /// The filter appended to every expression to learn the fuel it used.
 const FUEL_PROBE: &str = "sheaf_fuel_probe";
 
+mod contrasts;
 mod covariance;
 mod covariates;
 mod names;
@@ -325,6 +326,9 @@ struct BlockContext {
     /// Blocks with covariates: `covariates`, `slopes`, `observed`.
     #[serde(flatten)]
     adjustment: Option<covariates::CovariatesContext>,
+    /// Blocks with planned contrasts: `contrasts`, `contrast_set`.
+    #[serde(flatten)]
+    planned: Option<contrasts::ContrastsContext>,
 }
 
 #[derive(Serialize)]
@@ -594,6 +598,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         within: within_context(o),
         covariance: covariance::covariance_context(o),
         adjustment: covariates::covariates_context(o),
+        planned: contrasts::contrasts_context(o),
     }
 }
 #[derive(Serialize)]
@@ -636,8 +641,9 @@ fn statement(v: Value) -> Result<String, minijinja::Error> {
         return Ok(text.to_string());
     }
     let why = "`statement` prints a test: a block, a term (`id.terms.<term>`), `id.welch`, \
-               `id.kruskal` or a check (`id.checks.levene`, `brown_forsythe`, `bartlett`, \
-               `shapiro_wilk`)";
+               `id.kruskal`, a check (`id.checks.levene`, `brown_forsythe`, `bartlett`, \
+               `shapiro_wilk`), `id.slopes`, a covariate's `balance`, a contrast \
+               (`id.contrasts.<name>`) or `id.contrast_set` (with two or more contrasts)";
     Err(minijinja::Error::new(ErrorKind::InvalidOperation, why))
 }
 

@@ -12,6 +12,7 @@ mod covariates;
 mod keys;
 mod means;
 mod mixed;
+mod planned;
 mod power;
 mod procedure_note;
 mod repeated;
@@ -134,6 +135,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
                 numbers.next(),
             ));
         }
+    }
+    if let Some(d) = o.contrasts.as_deref() {
+        tables.push(planned::planned_table(o, d, &keys, numbers.next()));
     }
     if let Some(layout) = cell_letters.filter(|_| show.pairs) {
         let number = *numbers.0;
