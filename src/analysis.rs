@@ -25,6 +25,7 @@ mod observed;
 mod one_way;
 mod power;
 mod request;
+mod trend;
 
 pub(crate) use binding::reads_csv_rows;
 pub use binding::{Data, presentation, streams};

@@ -11,6 +11,7 @@ pub mod mixed;
 mod power;
 pub mod procedure_note;
 pub mod repeated;
+pub mod trend;
 
 pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, ResidualKind, most_extreme};
 pub use linear::{CellRow, RESIDUAL, term_label};

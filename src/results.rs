@@ -10,6 +10,7 @@ mod contrasts;
 mod covariates;
 mod mixed;
 mod repeated;
+mod trend;
 
 use crate::doc::power::EffectInput;
 use crate::outcome::linear::{Comparison, Estimate, Family, LinearOutcome};
@@ -201,6 +202,9 @@ pub struct BlockRecord {
     /// Blocks with planned contrasts (`contrast`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub planned_contrasts: Option<contrasts::ContrastsRecord>,
+    /// Blocks with `trend`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub trend: Option<trend::TrendRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -500,6 +504,7 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .as_deref()
             .map(|d| covariates::covariates_record(o, d)),
         planned_contrasts: o.contrasts.as_deref().map(contrasts::contrasts_record),
+        trend: o.trend.as_deref().map(trend::trend_record),
     }
 }
 

@@ -103,6 +103,58 @@ mod contract {
         /// Blocks with `contrast` only.
         #[serde(default, deserialize_with = "present")]
         pub planned_contrasts: Option<PlannedContrasts>,
+        /// Blocks with `trend` only.
+        #[serde(default, deserialize_with = "present")]
+        pub trend: Option<Trend>,
+    }
+
+    /// README: "Blocks with `trend` add `trend` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Trend {
+        pub factor: String,
+        pub scores: Vec<TrendScore>,
+        pub components: Vec<TrendRow>,
+        pub lack_of_fit: Vec<TrendRow>,
+        pub treatment_ss: Option<f64>,
+        pub treatment_df: f64,
+        pub error_ss: Option<f64>,
+        pub error_ms: Option<f64>,
+        pub error_df: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub degree: Option<u64>,
+        pub verdict: String,
+        #[serde(default, deserialize_with = "present")]
+        pub curve: Option<TrendCurve>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TrendScore {
+        pub level: String,
+        pub score: f64,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TrendRow {
+        pub term: String,
+        pub degree: u64,
+        pub df: f64,
+        pub ss: Option<f64>,
+        pub ms: Option<f64>,
+        pub f: Option<f64>,
+        pub p: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TrendCurve {
+        pub degree: u64,
+        pub coefficients: Vec<Option<f64>>,
+        pub se: Vec<Option<f64>>,
+        pub ms: Option<f64>,
+        pub df: f64,
     }
 
     /// README: "Blocks with `covariate` add `covariates` …".

@@ -97,12 +97,15 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         alpha,
     };
     let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
-    let contrasts = planned::contrasts(
-        &errors,
-        (&analysed.model, &analysed.data, &analysed.levels),
-        &analysed.fitted,
+    let planning = planned::Planning {
+        errors: &errors,
+        model: &analysed.model,
+        data: &analysed.data,
+        levels: &analysed.levels,
+        fitted: &analysed.fitted,
         alpha,
-    )?;
+    };
+    let (contrasts, trend) = (planning.contrasts()?, planning.trend()?);
     let covariates = centred.map(|c| {
         let detail = analysed.covariate_detail(&c, &families);
         notes.extend(covariate_notes::notes(&detail, alpha));
@@ -111,6 +114,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     let mut outcome = analysed.into_result(block, spec, checks, families, notes, doc);
     outcome.covariates = covariates;
     outcome.contrasts = contrasts.map(Box::new);
+    outcome.trend = trend.map(Box::new);
     Ok((outcome, streamed))
 }
 
@@ -276,6 +280,7 @@ impl Analysed {
             repeated: None,
             covariates: None,
             contrasts: None,
+            trend: None,
         }
     }
 }

@@ -368,6 +368,7 @@ impl Analysed {
             repeated: repeated.map(Box::new),
             covariates: None,
             contrasts: None,
+            trend: None,
         })
     }
 

@@ -60,6 +60,12 @@ pub(super) fn run_anova(request: Request<'_>) -> Analysis {
     Ok((result, streamed))
 }
 
+/// A block's planned contrasts and trend, each when asked for.
+type LevelAnalyses = (
+    Option<crate::outcome::contrasts::ContrastDetail>,
+    Option<crate::outcome::trend::TrendDetail>,
+);
+
 /// What every step of the analysis reads: the block and its α.
 struct Engine<'a> {
     doc: &'a Document,
@@ -86,7 +92,7 @@ impl Engine<'_> {
         let pooled = spec.method != Omnibus::Welch;
         let levels = levels::level_rows(&sample, &table, alpha, pooled);
         let comparison = self.comparison(&sample, &levels, &table, &alternatives, &mut notes)?;
-        let contrasts = self.contrasts(&factor, &levels, &table)?;
+        let (contrasts, trend) = self.contrasts_and_trend(&factor, &levels, &table)?;
         let decimals = decimals_shown(self.doc, spec, sample.decimals);
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         // Only figures read the observations; without them the result (and
@@ -135,17 +141,18 @@ impl Engine<'_> {
             repeated: None,
             covariates: None,
             contrasts: contrasts.map(Box::new),
+            trend: trend.map(Box::new),
         })
     }
 
-    /// Planned contrasts over the level means, each mean's variance
-    /// MSE/nᵢ (the pooled error; independent levels).
-    fn contrasts(
+    /// Planned contrasts and the trend over the level means, each mean's
+    /// variance MSE/nᵢ (the pooled error; independent levels).
+    fn contrasts_and_trend(
         &self,
         factor: &str,
         levels: &[crate::outcome::linear::LevelSummary],
         table: &crate::stats::oneway::OneWay,
-    ) -> Result<Option<crate::outcome::contrasts::ContrastDetail>, Diagnostic> {
+    ) -> Result<LevelAnalyses, Diagnostic> {
         let labels: Vec<String> = levels.iter().map(|l| l.name.clone()).collect();
         let k = levels.len();
         let covariance = (0..k)
@@ -165,7 +172,26 @@ impl Engine<'_> {
             covariance,
             df: table.df_within as f64,
         };
-        super::contrasts::planned(self.doc, self.spec, &means, self.alpha)
+        let contrasts = super::contrasts::planned(self.doc, self.spec, &means, self.alpha)?;
+        if let Some(t) = self.spec.trend.as_ref().filter(|t| t.factor != factor) {
+            return Err(self
+                .doc
+                .error_at(
+                    t.line,
+                    Some(t.column),
+                    format!("`{}` is not the model's factor", t.factor),
+                )
+                .hint(format!("write `trend: {factor}`")));
+        }
+        let n: Vec<usize> = levels.iter().map(|l| l.n).collect();
+        let trend = super::trend::trend(
+            self.doc,
+            self.spec,
+            &means,
+            (table.ms_within, Some(&n)),
+            self.alpha,
+        )?;
+        Ok((contrasts, trend))
     }
 
     /// The ANOVA table, with the total sum of squares from the raw values as

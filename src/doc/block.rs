@@ -255,6 +255,8 @@ pub struct AnovaSpec {
     pub within: Option<Located<String>>,
     /// Factorial designs: whether and how the cell means are compared.
     pub cells: Option<Located<CellComparison>>,
+    /// A polynomial trend over a quantitative factor's levels.
+    pub trend: Option<super::block_trend::TrendSpec>,
     /// Planned contrasts among one factor's levels, and their adjustment.
     pub contrasts: Vec<super::block_contrasts::ContrastSpec>,
     pub contrast_adjust: super::block_contrasts::ContrastAdjust,

@@ -302,6 +302,7 @@ pub(super) fn resolve(
         &mut model.value,
     ));
     errors.extend(super::block_contrasts::contrast_keys(&d));
+    errors.extend(super::block_trend::trend_keys(&d));
     errors.extend(model_keys(&mut d, &model.value));
     errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
@@ -326,6 +327,7 @@ pub(super) fn resolve(
     Ok(AnovaSpec {
         covariates,
         contrasts: d.contrasts,
+        trend: d.trend,
         contrast_adjust: d.contrast_adjust.map(|c| c.value).unwrap_or_default(),
         acknowledge: d.acknowledge,
         sheet: d.sheet.map(|e| e.value),

@@ -67,6 +67,8 @@ pub struct AnovaDraft {
     pub ddf: Option<(Entry, super::block::DdfMethod)>,
     /// `subject`: the unit measured repeatedly.
     pub subject: Option<(Entry, super::formula::Term)>,
+    /// `trend`: polynomial trend over a quantitative factor.
+    pub trend: Option<super::block_trend::TrendSpec>,
     /// `contrast`: planned contrasts, one line each.
     pub contrasts: Vec<super::block_contrasts::ContrastSpec>,
     pub contrast_adjust: Option<Located<super::block_contrasts::ContrastAdjust>>,
@@ -109,6 +111,7 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("block", read_block),
         ("covariate", super::block_covariates::read_covariate),
         ("contrast", super::block_contrasts::read_contrast),
+        ("trend", super::block_trend::read_trend),
         (
             "contrast_adjust",
             super::block_contrasts::read_contrast_adjust,

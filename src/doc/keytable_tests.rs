@@ -59,6 +59,7 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
         "contrast_adjust",
         "contrast: a vs b = a 1, b -1\ncontrast_adjust: holm",
     ),
+    ("trend", "trend: g = a 0, b 10, c 40"),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

@@ -280,6 +280,9 @@ pub struct LinearOutcome {
     /// Planned contrasts (`contrast`).
     #[serde(default)]
     pub contrasts: Option<Box<super::contrasts::ContrastDetail>>,
+    /// A polynomial trend over a quantitative factor (`trend`).
+    #[serde(default)]
+    pub trend: Option<Box<super::trend::TrendDetail>>,
 }
 
 impl LinearOutcome {

@@ -38,6 +38,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod names;
+mod trend;
 
 /// Degrees of freedom as prose reads them: whole numbers stay integers, a
 /// real-valued denominator df (an approximation) stays real.
@@ -329,6 +330,9 @@ struct BlockContext {
     /// Blocks with planned contrasts: `contrasts`, `contrast_set`.
     #[serde(flatten)]
     planned: Option<contrasts::ContrastsContext>,
+    /// Blocks with `trend`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    trend: Option<trend::TrendContext>,
 }
 
 #[derive(Serialize)]
@@ -599,6 +603,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         covariance: covariance::covariance_context(o),
         adjustment: covariates::covariates_context(o),
         planned: contrasts::contrasts_context(o),
+        trend: trend::trend_context(o),
     }
 }
 #[derive(Serialize)]

@@ -16,6 +16,7 @@ mod planned;
 mod power;
 mod procedure_note;
 mod repeated;
+mod trend;
 mod two_way;
 
 pub use power::power_view;
@@ -138,6 +139,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     }
     if let Some(d) = o.contrasts.as_deref() {
         tables.push(planned::planned_table(o, d, &keys, numbers.next()));
+    }
+    if let Some(t) = o.trend.as_deref() {
+        tables.push(trend::trend_table(o, t, &keys, numbers.next()));
     }
     if let Some(layout) = cell_letters.filter(|_| show.pairs) {
         let number = *numbers.0;

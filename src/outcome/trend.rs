@@ -1,0 +1,75 @@
+//! A polynomial trend over a quantitative factor's levels
+//! (linear-extensions specification B.3, B.4): the orthogonal components
+//! for the actual spacing and replication, the lack of fit after each, the
+//! degree the curve uses, and the fitted curve.
+
+/// One line of the trend table.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct TrendRow {
+    pub degree: usize,
+    pub df: f64,
+    pub ss: f64,
+    pub f: f64,
+    pub p: f64,
+}
+
+/// What the degree rule found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum TrendVerdict {
+    /// The highest significant degree (at most 3) with no significant lack
+    /// of fit after it.
+    Degree(usize),
+    /// No component is significant.
+    NoTrend,
+    /// Lack of fit is significant after every significant degree: no
+    /// low-order polynomial describes the means.
+    NotPolynomial,
+}
+
+/// The fitted polynomial in the factor's units: ŷ = Σ coefficients[j]·xʲ.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct TrendCurve {
+    pub degree: usize,
+    pub coefficients: Vec<f64>,
+    pub se: Vec<f64>,
+    /// The residual mean square of the polynomial regression (lack of fit
+    /// pooled with pure error) and its df.
+    pub ms: f64,
+    pub df: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct TrendDetail {
+    pub factor: String,
+    /// Each level's score, in level order.
+    pub scores: Vec<(String, f64)>,
+    /// Linear, quadratic, cubic (as the levels allow).
+    pub components: Vec<TrendRow>,
+    /// Lack of fit after each shown degree that leaves df.
+    pub lack_of_fit: Vec<TrendRow>,
+    /// The treatment sum of squares the components split.
+    pub treatment_ss: f64,
+    pub treatment_df: f64,
+    pub error_ms: f64,
+    pub error_df: f64,
+    pub verdict: TrendVerdict,
+    /// One-factor blocks with a chosen degree.
+    pub curve: Option<TrendCurve>,
+}
+
+impl TrendDetail {
+    /// The lack of fit after `degree`, if any df are left.
+    pub fn lack_of_fit_after(&self, degree: usize) -> Option<&TrendRow> {
+        self.lack_of_fit.iter().find(|r| r.degree == degree)
+    }
+}
+
+/// "linear", "quadratic", "cubic", then "degree 4" and on.
+pub fn degree_name(d: usize) -> String {
+    match d {
+        1 => "linear".into(),
+        2 => "quadratic".into(),
+        3 => "cubic".into(),
+        _ => format!("degree {d}"),
+    }
+}

@@ -1,0 +1,111 @@
+//! The results-file record of a block's polynomial trend.
+
+use super::finite;
+use crate::outcome::trend::{TrendDetail, TrendRow, TrendVerdict, degree_name};
+use serde::Serialize;
+
+#[derive(Serialize)]
+pub struct TrendRecord {
+    pub factor: String,
+    /// Level → score, in level order.
+    pub scores: Vec<ScoreRecord>,
+    /// `linear`, `quadratic`, `cubic` as the levels allow.
+    pub components: Vec<RowRecord>,
+    /// After each shown degree that leaves df.
+    pub lack_of_fit: Vec<RowRecord>,
+    pub treatment_ss: Option<f64>,
+    pub treatment_df: f64,
+    pub error_ss: Option<f64>,
+    pub error_ms: Option<f64>,
+    pub error_df: f64,
+    /// The degree the rule chose; null with `no_trend` or
+    /// `not_polynomial` in `verdict`.
+    pub degree: Option<usize>,
+    /// "degree", "no_trend" or "not_polynomial".
+    pub verdict: &'static str,
+    /// One-factor blocks with a chosen degree.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub curve: Option<CurveRecord>,
+}
+
+#[derive(Serialize)]
+pub struct ScoreRecord {
+    pub level: String,
+    pub score: f64,
+}
+
+#[derive(Serialize)]
+pub struct RowRecord {
+    pub term: String,
+    pub degree: usize,
+    pub df: f64,
+    pub ss: Option<f64>,
+    pub ms: Option<f64>,
+    pub f: Option<f64>,
+    pub p: Option<f64>,
+}
+
+#[derive(Serialize)]
+pub struct CurveRecord {
+    pub degree: usize,
+    /// ŷ = Σ coefficients[j]·xʲ in the factor's units.
+    pub coefficients: Vec<Option<f64>>,
+    pub se: Vec<Option<f64>>,
+    pub ms: Option<f64>,
+    pub df: f64,
+}
+
+fn row(r: &TrendRow, term: String) -> RowRecord {
+    RowRecord {
+        term,
+        degree: r.degree,
+        df: r.df,
+        ss: finite(r.ss),
+        ms: finite(r.ss / r.df),
+        f: finite(r.f),
+        p: finite(r.p),
+    }
+}
+
+pub fn trend_record(t: &TrendDetail) -> TrendRecord {
+    let (degree, verdict) = match t.verdict {
+        TrendVerdict::Degree(d) => (Some(d), "degree"),
+        TrendVerdict::NoTrend => (None, "no_trend"),
+        TrendVerdict::NotPolynomial => (None, "not_polynomial"),
+    };
+    TrendRecord {
+        factor: t.factor.clone(),
+        scores: t
+            .scores
+            .iter()
+            .map(|(l, s)| ScoreRecord {
+                level: l.clone(),
+                score: *s,
+            })
+            .collect(),
+        components: t
+            .components
+            .iter()
+            .map(|c| row(c, degree_name(c.degree)))
+            .collect(),
+        lack_of_fit: t
+            .lack_of_fit
+            .iter()
+            .map(|c| row(c, format!("after {}", degree_name(c.degree))))
+            .collect(),
+        treatment_ss: finite(t.treatment_ss),
+        treatment_df: t.treatment_df,
+        error_ss: finite(t.error_ms * t.error_df),
+        error_ms: finite(t.error_ms),
+        error_df: t.error_df,
+        degree,
+        verdict,
+        curve: t.curve.as_ref().map(|c| CurveRecord {
+            degree: c.degree,
+            coefficients: c.coefficients.iter().map(|&v| finite(v)).collect(),
+            se: c.se.iter().map(|&v| finite(v)).collect(),
+            ms: finite(c.ms),
+            df: c.df,
+        }),
+    }
+}
