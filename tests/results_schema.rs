@@ -801,6 +801,7 @@ mod contract {
         Qq,
         Profile,
         Subjects,
+        Trend,
         Power,
     }
 

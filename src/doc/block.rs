@@ -110,10 +110,13 @@ pub enum PlotKind {
     Profile,
     /// The profile with each subject's observations as a faint line.
     Subjects,
+    /// A quantitative factor's means at their values, with the fitted
+    /// trend (`trend`).
+    Trend,
 }
 
 impl PlotKind {
-    pub const ALL: [PlotKind; 8] = [
+    pub const ALL: [PlotKind; 9] = [
         PlotKind::Box,
         PlotKind::Means,
         PlotKind::Strip,
@@ -122,6 +125,7 @@ impl PlotKind {
         PlotKind::Qq,
         PlotKind::Profile,
         PlotKind::Subjects,
+        PlotKind::Trend,
     ];
 
     pub fn key(self) -> &'static str {
@@ -134,6 +138,7 @@ impl PlotKind {
             PlotKind::Qq => "qq",
             PlotKind::Profile => "profile",
             PlotKind::Subjects => "subjects",
+            PlotKind::Trend => "trend",
         }
     }
 }

@@ -70,7 +70,14 @@ pub(super) fn read_trend(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError>
 /// A trend with the keys it cannot be combined with yet.
 pub(super) fn trend_keys(d: &AnovaDraft) -> Vec<SpecError> {
     let Some(t) = &d.trend else {
-        return Vec::new();
+        return match &d.plot {
+            Some(e) if d.plots.kinds.contains(&super::block::PlotKind::Trend) => vec![bad(
+                e,
+                "`plot: trend` draws the trend that `trend` asks for".into(),
+                HINT,
+            )],
+            _ => Vec::new(),
+        };
     };
     let at = |message: String, hint: &str| SpecError {
         line: t.line,

@@ -269,6 +269,13 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
         PlotKind::Interaction => interaction_figure(o, id, n),
         PlotKind::Profile => profile_figure(o, id, n, false),
         PlotKind::Subjects => profile_figure(o, id, n, true),
+        PlotKind::Trend => {
+            let x_title = o
+                .trend
+                .as_deref()
+                .map_or("", |t| o.presentation.plots.display(&t.factor));
+            super::trend::trend_figure(o, id, n, (x_title, &axis_title(o)))
+        }
         PlotKind::Residuals => {
             let many = dense::summarised(count);
             let lines: Vec<usize> = o.observations.iter().map(|obs| obs.line).collect();
@@ -472,7 +479,9 @@ fn dense_note(kind: PlotKind, observations: usize) -> String {
                 ),
             );
         }
-        PlotKind::Interaction | PlotKind::Profile | PlotKind::Subjects => return String::new(),
+        PlotKind::Interaction | PlotKind::Profile | PlotKind::Subjects | PlotKind::Trend => {
+            return String::new();
+        }
     };
     dense::caption_note(observations, what)
 }

@@ -9,6 +9,7 @@
 pub mod dense;
 pub mod linear;
 pub mod plots;
+mod trend;
 
 use crate::escape::xml_escape;
 use crate::outcome::BlockResult;

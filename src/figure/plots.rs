@@ -470,7 +470,7 @@ fn scatter_frame(
     x_title: &str,
     y_title: &str,
 ) -> (Scale, Scale) {
-    scatter_frame_in(svg, xs, ys, x_title, y_title, None)
+    scatter_frame_in(svg, xs, ys, (x_title, y_title), (None, false))
 }
 
 /// As `scatter_frame`, optionally with a fixed y range (probabilities).
@@ -478,9 +478,8 @@ fn scatter_frame_in(
     svg: &mut Svg,
     xs: &[f64],
     ys: &[f64],
-    x_title: &str,
-    y_title: &str,
-    y_fixed: Option<(f64, f64)>,
+    (x_title, y_title): (&str, &str),
+    (y_fixed, x_from_zero): (Option<(f64, f64)>, bool),
 ) -> (Scale, Scale) {
     let finite = |v: &[f64]| {
         v.iter()
@@ -493,7 +492,12 @@ fn scatter_frame_in(
     let (xl, xh) = finite(xs);
     let (yl, yh) = finite(ys);
     let pad = |l: f64, h: f64| ((h - l).abs().max(1e-9)) * 0.06;
-    let xt = nice_ticks(xl - pad(xl, xh), xh + pad(xl, xh), 5);
+    // Amounts that start at zero (doses, rates) keep their axis at zero.
+    let x_low = match x_from_zero && xl >= 0.0 {
+        true => (xl - pad(xl, xh)).max(0.0),
+        false => xl - pad(xl, xh),
+    };
+    let xt = nice_ticks(x_low, xh + pad(xl, xh), 5);
     let yt = match y_fixed {
         Some((a, b)) => nice_ticks(a, b, 5),
         None => nice_ticks(yl - pad(yl, yh), yh + pad(yl, yh), 5),
@@ -526,6 +530,41 @@ fn scatter_frame_in(
     svg.line(left, bottom, right, bottom, INK, 1.0, None);
     axis_titles(svg, (y_title, x_title), (left, right), (top, bottom));
     (xs_scale, ys_scale)
+}
+
+/// Means (x, mean, interval) at a quantitative factor's values, and a
+/// fitted curve through `curve` (empty for none).
+pub(super) fn trend_plot(
+    id: &str,
+    title: &str,
+    desc: &str,
+    points: &[(f64, f64, f64, f64)],
+    curve: &[(f64, f64)],
+    (x_title, y_title): (&str, &str),
+) -> String {
+    let mut svg = Svg::new(id, WIDTH, HEIGHT, title, desc);
+    let xs: Vec<f64> = points.iter().map(|p| p.0).collect();
+    let ys: Vec<f64> = points
+        .iter()
+        .flat_map(|p| [p.2, p.3])
+        .chain(curve.iter().map(|c| c.1))
+        .collect();
+    let (x, y) = scatter_frame_in(&mut svg, &xs, &ys, (x_title, y_title), (None, true));
+    if !curve.is_empty() {
+        let line: Vec<(f64, f64)> = curve.iter().map(|&(a, b)| (x.map(a), y.map(b))).collect();
+        svg.polyline(&line, PALETTE[1], 2.0);
+    }
+    for &(px, mean, lo, hi) in points {
+        let cx = x.map(px);
+        if lo.is_finite() && hi.is_finite() {
+            let (a, b) = (y.map(lo), y.map(hi));
+            svg.line(cx, a, cx, b, INK, 1.5, None);
+            svg.line(cx - 5.0, a, cx + 5.0, a, INK, 1.5, None);
+            svg.line(cx - 5.0, b, cx + 5.0, b, INK, 1.5, None);
+        }
+        svg.marker(cx, y.map(mean), 4.5, 0, PALETTE[0], INK, "mean");
+    }
+    svg.finish()
 }
 
 /// Residuals against fitted values; `flags` are (index, label) of points to name.
@@ -712,9 +751,8 @@ pub fn power_figures(r: &crate::outcome::PowerResult, number: &mut usize) -> Vec
         &mut svg,
         &xs,
         &ps,
-        "Observations per group",
-        "Power",
-        Some((0.0, 1.0)),
+        ("Observations per group", "Power"),
+        (Some((0.0, 1.0)), false),
     );
     let pts: Vec<(f64, f64)> = xs
         .iter()
