@@ -9,6 +9,7 @@ pub mod covariates;
 pub mod linear;
 pub mod mixed;
 mod power;
+pub mod precision;
 pub mod procedure_note;
 pub mod repeated;
 pub mod trend;

@@ -268,6 +268,10 @@ pub struct AnovaRecord {
     pub residual: ResidualRecord,
     pub total: TotalRecord,
     pub r_squared: Option<f64>,
+    /// The residual SD as a percentage of the grand mean (models without
+    /// random terms).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cv_percent: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -421,6 +425,13 @@ pub struct ComparisonRecord {
     pub means: Option<Vec<MeanRecord>>,
     pub pairs: Vec<PairRecord>,
     pub letters: Letters,
+    /// The standard error of a difference, `[smallest, largest]` (equal
+    /// under equal replication), and the least significant difference at
+    /// the family's α; absent where each pair has its own df.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sed: Option<[f64; 2]>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub lsd: Option<[f64; 2]>,
 }
 
 #[derive(Serialize)]
@@ -550,6 +561,7 @@ fn anova_record(o: &LinearOutcome) -> AnovaRecord {
             ss: finite(o.total_ss),
         },
         r_squared: finite(o.r_squared),
+        cv_percent: o.cv_percent().and_then(finite),
     }
 }
 
@@ -664,6 +676,12 @@ fn comparison_record(o: &LinearOutcome, fam: &Family, c: &Comparison) -> Compari
                 .map(|(m, l)| (m.label.clone(), l.clone()))
                 .collect(),
         ),
+        sed: crate::outcome::precision::sed(c)
+            .filter(|_| o.mixed.is_none())
+            .map(|s| [s.min, s.max]),
+        lsd: crate::outcome::precision::sed(c)
+            .filter(|_| o.mixed.is_none())
+            .map(|s| [s.lsd_min, s.lsd_max]),
     }
 }
 

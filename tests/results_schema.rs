@@ -504,6 +504,9 @@ mod contract {
         pub total: Total,
         #[serde(deserialize_with = "nullable")]
         pub r_squared: Option<f64>,
+        /// Models without random terms.
+        #[serde(default, deserialize_with = "present")]
+        pub cv_percent: Option<f64>,
     }
 
     #[derive(Deserialize)]
@@ -716,6 +719,11 @@ mod contract {
         pub pairs: Vec<Pair>,
         /// Level → letters.
         pub letters: BTreeMap<String, String>,
+        /// Pairs sharing one error df: `[smallest, largest]`.
+        #[serde(default, deserialize_with = "present")]
+        pub sed: Option<[f64; 2]>,
+        #[serde(default, deserialize_with = "present")]
+        pub lsd: Option<[f64; 2]>,
     }
 
     #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]

@@ -282,6 +282,14 @@ struct BlockContext {
     df2: Option<Df>,
     critical_f: Option<f64>,
     r_squared: f64,
+    /// CV% of the residual error (models without random terms).
+    cv: Option<f64>,
+    /// The primary family's SED and LSD: one value under equal
+    /// replication (else null), and their `[smallest, largest]`.
+    sed: Option<f64>,
+    lsd: Option<f64>,
+    sed_range: Option<[f64; 2]>,
+    lsd_range: Option<[f64; 2]>,
     n: usize,
     n_excluded: usize,
     alpha: f64,
@@ -533,6 +541,10 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
     let alternatives = alternatives_context(o);
     let one_factor = o.is_one_factor();
     let residual = o.residual();
+    let precision = family
+        .and_then(|f| f.comparison.as_ref())
+        .and_then(crate::outcome::precision::sed)
+        .filter(|_| o.mixed.is_none());
     BlockContext {
         f: head.as_ref().and_then(|t| t.f),
         p: head.as_ref().and_then(|t| t.p),
@@ -540,6 +552,11 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         df2: head.as_ref().map(|t| t.df2),
         critical_f: head.as_ref().and_then(|t| t.critical_f),
         r_squared: o.r_squared,
+        cv: o.cv_percent(),
+        sed: precision.filter(|s| s.single()).map(|s| s.min),
+        lsd: precision.filter(|s| s.single()).map(|s| s.lsd_min),
+        sed_range: precision.map(|s| [s.min, s.max]),
+        lsd_range: precision.map(|s| [s.lsd_min, s.lsd_max]),
         n: o.n,
         n_excluded: o.exclusions.len(),
         alpha: o.alpha,

@@ -81,6 +81,7 @@ pub fn means_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
     columns.push(col(format!("{} CI", confidence_label(o.alpha)), true));
     let mut footnotes = vec![se_note(o, family)];
     footnotes.extend(covariates::adjusted_footnote(o));
+    footnotes.extend(super::precision::precision_note(o, family));
     if let Some(c) = letters {
         columns.push(col("Letters", false));
         footnotes.push(if one_factor {

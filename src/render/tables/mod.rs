@@ -14,6 +14,7 @@ mod means;
 mod mixed;
 mod planned;
 mod power;
+mod precision;
 mod procedure_note;
 mod repeated;
 mod trend;
