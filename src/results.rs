@@ -449,10 +449,13 @@ pub struct PairRecord {
     pub df: Option<f64>,
 }
 
-/// Level → letters, written in design order (not sorted by key).
-pub struct Letters(pub Vec<(String, String)>);
+/// Level → letters (or a cell's factor → level), in design order.
+pub type Letters = OrderedMap<String>;
 
-impl Serialize for Letters {
+/// Name → value, written in the order given (not sorted by key).
+pub struct OrderedMap<V>(pub Vec<(String, V)>);
+
+impl<V: Serialize> Serialize for OrderedMap<V> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
         let mut map = serializer.serialize_map(Some(self.0.len()))?;
         for (k, v) in &self.0 {
@@ -608,7 +611,7 @@ fn cells_record(o: &LinearOutcome) -> Vec<CellRecord> {
     o.cells
         .iter()
         .map(|c| CellRecord {
-            levels: Letters(
+            levels: OrderedMap(
                 o.cell_factors
                     .iter()
                     .zip(&c.levels)
@@ -669,7 +672,7 @@ fn comparison_record(o: &LinearOutcome, fam: &Family, c: &Comparison) -> Compari
                 df: if p.own_df { finite(p.df) } else { None },
             })
             .collect(),
-        letters: Letters(
+        letters: OrderedMap(
             fam.estimates
                 .iter()
                 .zip(&c.letters)

@@ -1,22 +1,8 @@
 //! The results-file record of a block's planned contrasts.
 
-use super::finite;
+use super::{OrderedMap, finite};
 use crate::outcome::contrasts::ContrastDetail;
-use serde::ser::SerializeMap;
-use serde::{Serialize, Serializer};
-
-/// Level → weight, in the order written.
-pub struct Weights(Vec<(String, f64)>);
-
-impl Serialize for Weights {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut map = serializer.serialize_map(Some(self.0.len()))?;
-        for (k, v) in &self.0 {
-            map.serialize_entry(k, v)?;
-        }
-        map.end()
-    }
-}
+use serde::Serialize;
 
 #[derive(Serialize)]
 pub struct ContrastsRecord {
@@ -42,7 +28,8 @@ pub struct JointRecord {
 #[derive(Serialize)]
 pub struct ContrastRecord {
     pub name: String,
-    pub weights: Weights,
+    /// Level → weight, in the order written.
+    pub weights: OrderedMap<f64>,
     pub estimate: Option<f64>,
     pub se: Option<f64>,
     pub df: f64,
@@ -74,7 +61,7 @@ pub fn contrasts_record(c: &ContrastDetail) -> ContrastsRecord {
             .iter()
             .map(|k| ContrastRecord {
                 name: k.name.clone(),
-                weights: Weights(k.weights.clone()),
+                weights: OrderedMap(k.weights.clone()),
                 estimate: finite(k.estimate),
                 se: finite(k.se),
                 df: k.df,

@@ -3,24 +3,13 @@
 //! means and ranges, the balance check, the test of equal slopes, the
 //! separate slopes where it fails, and each family's unadjusted means.
 
-use super::finite;
+use super::{OrderedMap, finite};
 use crate::outcome::covariates::{CovariateDetail, FTest, SeparateSlopes};
 use crate::outcome::linear::LinearOutcome;
-use serde::ser::SerializeMap;
-use serde::{Serialize, Serializer};
+use serde::Serialize;
 
-/// Level → value, written in design order (not sorted by key).
-pub struct ByLevel(Vec<(String, Option<f64>)>);
-
-impl Serialize for ByLevel {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut map = serializer.serialize_map(Some(self.0.len()))?;
-        for (k, v) in &self.0 {
-            map.serialize_entry(k, v)?;
-        }
-        map.end()
-    }
-}
+/// Level → value, in design order.
+type ByLevel = OrderedMap<Option<f64>>;
 
 #[derive(Serialize)]
 pub struct CovariatesRecord {
@@ -177,8 +166,8 @@ pub fn covariates_record(o: &LinearOutcome, d: &CovariateDetail) -> CovariatesRe
             .filter_map(|fam| {
                 let a = d.family(&fam.term, fam.within.as_deref())?;
                 let labels: Vec<String> = fam.estimates.iter().map(|e| e.label.clone()).collect();
-                let by_level = |values: &[f64]| {
-                    ByLevel(
+                let by_level = |values: &[f64]| -> ByLevel {
+                    OrderedMap(
                         labels
                             .iter()
                             .cloned()
