@@ -119,11 +119,13 @@ fn footnotes(o: &LinearOutcome, d: &ContrastDetail) -> Vec<String> {
         ContrastAdjust::Holm => "p-values by Holm's step-down procedure (Holm 1979); the intervals are Bonferroni's, which contain Holm's.".into(),
         ContrastAdjust::Scheffe => "p-values and intervals by Scheffé's method (Scheffé 1953), valid for any contrast, including those suggested by the data.".into(),
     });
-    notes.push(if d.orthogonal {
-        "The contrasts are orthogonal (uncorrelated under the model), so their sums of squares add up.".into()
-    } else {
-        "The contrasts are not orthogonal: their tests are correlated, and their sums of squares do not add up.".into()
-    });
+    if d.contrasts.len() > 1 {
+        notes.push(if d.orthogonal {
+            "The contrasts are orthogonal (uncorrelated under the model), so their sums of squares add up.".into()
+        } else {
+            "The contrasts are not orthogonal: their tests are correlated, and their sums of squares do not add up.".into()
+        });
+    }
     if let Some(j) = &d.joint {
         notes.push(format!(
             "All contrasts at once: {}.",
