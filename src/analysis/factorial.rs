@@ -144,6 +144,7 @@ impl Analysed {
             centred,
             treatment: &self.treatment,
             alpha: self.alpha,
+            groups: covariates::groups(&self.data, &self.treatment),
         }
         .detail(families)
     }

@@ -90,6 +90,34 @@ pub(super) struct Adjusting<'a> {
     pub centred: &'a Centred,
     pub treatment: &'a TreatmentCells,
     pub alpha: f64,
+    /// The groups (treatment cells with data): labels and members, found
+    /// once with `groups`.
+    pub groups: Vec<(String, Vec<usize>)>,
+}
+
+/// The groups (treatment cells with data): each one's label and the
+/// observations in it.
+pub(super) fn groups(
+    data: &FactorialData,
+    treatment: &TreatmentCells,
+) -> Vec<(String, Vec<usize>)> {
+    let members = treatment.group(data, &|i| i as f64);
+    treatment
+        .combos
+        .iter()
+        .zip(members)
+        .filter(|(_, m)| !m.is_empty())
+        .map(|(combo, m)| {
+            let label = treatment
+                .factors
+                .iter()
+                .zip(combo)
+                .map(|(&f, &l)| data.levels[f][l].clone())
+                .collect::<Vec<_>>()
+                .join(" × ");
+            (label, m.into_iter().map(|i| i as usize).collect())
+        })
+        .collect()
 }
 
 impl Adjusting<'_> {
@@ -119,28 +147,6 @@ impl Adjusting<'_> {
         }
     }
 
-    /// The groups (treatment cells with data): labels and members.
-    pub fn groups(&self) -> Vec<(String, Vec<usize>)> {
-        let members = self.treatment.group(self.data, &|i| i as f64);
-        self.treatment
-            .combos
-            .iter()
-            .zip(members)
-            .filter(|(_, m)| !m.is_empty())
-            .map(|(combo, m)| {
-                let label = self
-                    .treatment
-                    .factors
-                    .iter()
-                    .zip(combo)
-                    .map(|(&f, &l)| self.data.levels[f][l].clone())
-                    .collect::<Vec<_>>()
-                    .join(" × ");
-                (label, m.into_iter().map(|i| i as usize).collect())
-            })
-            .collect()
-    }
-
     fn covariate(&self, c: usize) -> Covariate {
         let column = &self.centred.columns[c];
         let mean = self.centred.means[c];
@@ -150,13 +156,13 @@ impl Adjusting<'_> {
             })
         };
         let groups: Vec<CovariateGroup> = self
-            .groups()
-            .into_iter()
+            .groups
+            .iter()
             .map(|(label, members)| {
                 let values: Vec<f64> = members.iter().map(|&i| column[i]).collect();
                 let (min, max) = range(&mut values.iter().copied());
                 CovariateGroup {
-                    label,
+                    label: label.clone(),
                     n: values.len(),
                     mean: mean + GroupSummary::from_values(&values).mean,
                     min: mean + min,
@@ -195,7 +201,7 @@ impl Adjusting<'_> {
     /// The covariate compared among the groups by one-way F.
     fn balance(&self, column: &[f64]) -> FTest {
         let groups: Vec<GroupSummary> = self
-            .groups()
+            .groups
             .iter()
             .map(|(_, m)| {
                 GroupSummary::from_values(&m.iter().map(|&i| column[i]).collect::<Vec<_>>())

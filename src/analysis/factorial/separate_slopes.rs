@@ -39,7 +39,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
     }
     let x = &a.centred.columns[0];
     let y = &a.data.offsets;
-    let groups = a.groups();
+    let groups = &a.groups;
     if groups.len() > MAX_GROUPS {
         return None;
     }
@@ -69,7 +69,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
     if lines.iter().any(|l| l.sxx.is_nan() || l.sxx <= 0.0) {
         return None;
     }
-    let rss = within_y(a, &groups) - neumaier(lines.iter().map(|l| l.sxy * l.sxy / l.sxx));
+    let rss = within_y(a, groups) - neumaier(lines.iter().map(|l| l.sxy * l.sxy / l.sxx));
     let df = y.len() as f64 - 2.0 * lines.len() as f64;
     if df < 1.0 {
         return None;
