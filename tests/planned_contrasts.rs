@@ -7,7 +7,7 @@
 
 mod documents;
 
-use documents::{build, open};
+use documents::{assert_close, build, open, reference_number};
 use serde_json::Value;
 
 fn reference(name: &str) -> Value {
@@ -18,14 +18,7 @@ fn reference(name: &str) -> Value {
 /// 1e-10 relative: both sides compute the same closed forms (estimate,
 /// SE from the pooled error, t and F tails) in double precision.
 fn close(got: &Value, want: &Value, what: &str) {
-    let g = got.as_f64().unwrap_or_else(|| panic!("{what}: {got}"));
-    let w = want
-        .get("value")
-        .unwrap_or(want)
-        .as_f64()
-        .unwrap_or_else(|| panic!("{what}: {want}"));
-    let rel = (g - w).abs() / w.abs().max(1e-300);
-    assert!(rel < 1e-10, "{what}: {g} vs {w} (rel {rel:e})");
+    assert_close(got, reference_number(want), 1e-10, what);
 }
 
 fn plant_growth(extra: &str) -> Value {

@@ -6,7 +6,7 @@
 
 mod documents;
 
-use documents::{build, open};
+use documents::{assert_close, build, open, reference_number};
 use serde_json::Value;
 
 fn reference() -> Value {
@@ -22,14 +22,7 @@ fn reference() -> Value {
 /// 1e-9 relative: the reference fits nested least squares in double
 /// precision, sheaf weighs level means; both agree to about 1e-12.
 fn close(got: &Value, want: &Value, what: &str) {
-    let g = got.as_f64().unwrap_or_else(|| panic!("{what}: {got}"));
-    let w = want
-        .get("value")
-        .unwrap_or(want)
-        .as_f64()
-        .unwrap_or_else(|| panic!("{what}: {want}"));
-    let rel = (g - w).abs() / w.abs().max(1e-300);
-    assert!(rel < 1e-9, "{what}: {g} vs {w} (rel {rel:e})");
+    assert_close(got, reference_number(want), 1e-9, what);
 }
 
 fn trend(file: &str, data: &str, extra: &str) -> Value {

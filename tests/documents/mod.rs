@@ -54,3 +54,22 @@ pub fn sleepstudy_with_deletions() -> String {
         .map(|l| format!("{l}\n"))
         .collect()
 }
+
+/// A reference value: a number, or an object holding it in `value` (the
+/// reference scripts' `{value, spec_value, agrees}` records).
+#[allow(dead_code)]
+pub fn reference_number(v: &Value) -> f64 {
+    v.get("value")
+        .unwrap_or(v)
+        .as_f64()
+        .unwrap_or_else(|| panic!("not a number: {v}"))
+}
+
+/// Asserts that the results-file number `got` is within `tolerance`
+/// (relative) of `want`, naming `what` in the failure.
+#[allow(dead_code)]
+pub fn assert_close(got: &Value, want: f64, tolerance: f64, what: &str) {
+    let g = got.as_f64().unwrap_or_else(|| panic!("{what}: {got}"));
+    let rel = (g - want).abs() / want.abs().max(1e-300);
+    assert!(rel < tolerance, "{what}: {g} vs {want} (rel {rel:e})");
+}
