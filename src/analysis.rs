@@ -25,6 +25,7 @@ mod observed;
 mod one_way;
 mod power;
 mod request;
+mod transformation;
 mod trend;
 
 pub(crate) use binding::reads_csv_rows;

@@ -12,6 +12,7 @@ mod power;
 pub mod precision;
 pub mod procedure_note;
 pub mod repeated;
+pub mod transform;
 pub mod trend;
 
 pub use checks::{Checks, OUTLIERS_LISTED, OutlierRow, ResidualKind, most_extreme};

@@ -10,6 +10,7 @@ mod contrasts;
 mod covariates;
 mod mixed;
 mod repeated;
+mod transform;
 mod trend;
 
 use crate::doc::power::EffectInput;
@@ -71,6 +72,12 @@ pub struct MeanRecord {
     pub df: Option<f64>,
     pub ci_lower: Option<f64>,
     pub ci_upper: Option<f64>,
+    /// With `transform`: the arithmetic mean on the data's scale, and the
+    /// mean and limits back-transformed.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub arithmetic_mean: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub back: Option<transform::BackRecord>,
 }
 
 /// A figure: its id, kind as written in `plot`, the file beside the report
@@ -205,6 +212,9 @@ pub struct BlockRecord {
     /// Blocks with `trend`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub trend: Option<trend::TrendRecord>,
+    /// Blocks with `transform`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub transform: Option<transform::TransformRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -406,6 +416,11 @@ pub struct GroupRecord {
     pub median: Option<f64>,
     pub q1: Option<f64>,
     pub q3: Option<f64>,
+    /// With `transform`: as for a comparison's means.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub arithmetic_mean: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub back: Option<transform::BackRecord>,
 }
 
 #[derive(Serialize)]
@@ -447,6 +462,10 @@ pub struct PairRecord {
     /// Games-Howell: the pair's own Welch-Satterthwaite df.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub df: Option<f64>,
+    /// With `transform: log` or `logit`: the difference as a ratio (of
+    /// geometric means, or of odds) with its interval.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub ratio: Option<transform::RatioRecord>,
 }
 
 /// Level → letters (or a cell's factor → level), in design order.
@@ -519,6 +538,10 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .map(|d| covariates::covariates_record(o, d)),
         planned_contrasts: o.contrasts.as_deref().map(contrasts::contrasts_record),
         trend: o.trend.as_deref().map(trend::trend_record),
+        transform: o
+            .transform
+            .as_deref()
+            .map(|d| transform::transform_record(d, &o.response)),
     }
 }
 
@@ -571,7 +594,9 @@ fn anova_record(o: &LinearOutcome) -> AnovaRecord {
 /// One factor: its levels with their spread. Several factors: the
 /// estimated marginal means of the first family (no SD or quartiles).
 fn groups_record(o: &LinearOutcome) -> Vec<GroupRecord> {
-    let group = |m: &Estimate, ci_error: &'static str| GroupRecord {
+    let group = |m: &Estimate, ci_error: &'static str, family: Option<(&Family, usize)>| GroupRecord {
+        arithmetic_mean: family.and_then(|(f, i)| transform::arithmetic_record(o, f, i)),
+        back: transform::back_record(o, m),
         level: m.label.clone(),
         n: m.n,
         mean: finite(m.mean),
@@ -586,22 +611,24 @@ fn groups_record(o: &LinearOutcome) -> Vec<GroupRecord> {
     };
     if !o.is_one_factor() {
         // The first compared family's means (empty when nothing is compared).
-        let estimates = o
-            .families
-            .iter()
-            .find(|f| f.comparison.is_some())
-            .map_or(&[][..], |f| &f.estimates[..]);
-        return estimates.iter().map(|m| group(m, "pooled")).collect();
+        let Some(family) = o.families.iter().find(|f| f.comparison.is_some()) else {
+            return Vec::new();
+        };
+        return (family.estimates.iter().enumerate())
+            .map(|(i, m)| group(m, "pooled", Some((family, i))))
+            .collect();
     }
     let ci_error = if o.ci_pooled { "pooled" } else { "level" };
+    let family = o.families.first();
     o.levels
         .iter()
-        .map(|l| GroupRecord {
+        .enumerate()
+        .map(|(i, l)| GroupRecord {
             sd: finite(l.sd),
             median: finite(l.median),
             q1: finite(l.q1),
             q3: finite(l.q3),
-            ..group(&l.estimate(), ci_error)
+            ..group(&l.estimate(), ci_error, family.map(|f| (f, i)))
         })
         .collect()
 }
@@ -634,7 +661,10 @@ fn comparison_record(o: &LinearOutcome, fam: &Family, c: &Comparison) -> Compari
     let means = fam
         .estimates
         .iter()
-        .map(|m| MeanRecord {
+        .enumerate()
+        .map(|(i, m)| MeanRecord {
+            arithmetic_mean: transform::arithmetic_record(o, fam, i),
+            back: transform::back_record(o, m),
             level: m.label.clone(),
             n: m.n,
             mean: finite(m.mean),
@@ -670,6 +700,7 @@ fn comparison_record(o: &LinearOutcome, fam: &Family, c: &Comparison) -> Compari
                 p_adj: finite(p.p_adj),
                 significant: p.significant,
                 df: if p.own_df { finite(p.df) } else { None },
+                ratio: transform::ratio_record(o, p),
             })
             .collect(),
         letters: OrderedMap(

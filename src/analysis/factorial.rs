@@ -58,8 +58,12 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     };
     model::refuse_one_factor_keys(&errors)?;
     let mut model = Model::from_spec(doc, spec)?;
-    let (data, streamed, centred) =
-        read::read_with_covariates(&errors, block, (request.data, request.display_path), &model)?;
+    let read::Observations {
+        data,
+        streamed,
+        centred,
+        arithmetic,
+    } = read::read_with_covariates(&errors, block, (request.data, request.display_path), &model)?;
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
     errors.two_levels_each(&model.factor_names, &levels)?;
     if let Some(c) = &centred {
@@ -111,7 +115,9 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         notes.extend(covariate_notes::notes(&detail, alpha));
         Box::new(detail)
     });
+    let transform = analysed.transform_detail(doc, spec, arithmetic, &families, &mut notes)?;
     let mut outcome = analysed.into_result(block, spec, checks, families, notes, doc);
+    outcome.transform = transform.map(Box::new);
     outcome.covariates = covariates;
     outcome.contrasts = contrasts.map(Box::new);
     outcome.trend = trend.map(Box::new);
@@ -133,7 +139,68 @@ struct Analysed {
     alpha: f64,
 }
 
+/// Decimals on the analysis scale: the data's, or those that resolve them
+/// through the transformation.
+fn scale_decimals(spec: &AnovaSpec, data: &FactorialData) -> u32 {
+    let Some(t) = &spec.transform else {
+        return data.decimals;
+    };
+    let mean_z = data.origin + crate::stats::sum::neumaier(data.offsets.iter().copied())
+        / data.offsets.len().max(1) as f64;
+    super::transformation::scale_decimals(&t.value, t.value.back(mean_z), data.decimals)
+}
+
 impl Analysed {
+    /// The transformation's detail, and the Box-Cox profile of this model
+    /// when the block asked for it.
+    fn transform_detail(
+        &self,
+        doc: &Document,
+        spec: &AnovaSpec,
+        arithmetic: Vec<Vec<f64>>,
+        families: &[Family],
+        notes: &mut Vec<Note>,
+    ) -> Result<Option<crate::outcome::transform::TransformDetail>, Diagnostic> {
+        if spec.transform.is_none() && !spec.box_cox {
+            return Ok(None);
+        }
+        let box_cox = match spec.box_cox && !self.fitted.per_observation {
+            true => {
+                let y: Vec<f64> = self.data.offsets.iter().map(|d| self.data.origin + d).collect();
+                let model = super::transformation::CellModel {
+                    cell_of: &self.data.cell_of,
+                    cells: self.data.cells.len(),
+                    design: Some(&self.fitted.unweighted),
+                };
+                let level = 1.0 - self.alpha.min(0.5);
+                Some(model.box_cox(&y, level).map_err(|i| {
+                    doc.error_at(spec.model.line, None, format!("`transform: boxcox` needs values above 0 in `{}`; data line {} has one of 0 or less", spec.model.value.response, self.data.lines[i]))
+                        .hint("Box-Cox is defined for positive values only: leave such rows out with `exclude`, or remove `transform`")
+                        .note(format!("data file {}", spec.data.value))
+                })?)
+            }
+            false => None,
+        };
+        let arithmetic = (self.model.factor_names.iter())
+            .zip(arithmetic)
+            .map(|(factor, means)| crate::outcome::transform::ArithmeticMeans {
+                factor: factor.clone(),
+                means,
+            })
+            .collect();
+        let data_decimals = decimals_shown(doc, spec, self.data.decimals);
+        let declared = spec.transform.as_ref().map(|t| t.value);
+        let (detail, more) = super::transformation::detail(
+            declared,
+            data_decimals,
+            arithmetic,
+            box_cox,
+            families,
+        );
+        notes.extend(more);
+        Ok(Some(detail))
+    }
+
     /// Slopes, the balance check and the test of equal slopes.
     fn covariate_detail(&self, centred: &Centred, families: &[Family]) -> CovariateDetail {
         covariates::Adjusting {
@@ -156,7 +223,7 @@ impl Analysed {
         notes: &mut Vec<Note>,
     ) -> Result<(Checks, Vec<Family>), Diagnostic> {
         let spec = errors.spec;
-        let (checks, spread_note) = checks::checks(
+        let (mut checks, spread_note) = checks::checks(
             spec,
             &checks::Fit {
                 data: &self.data,
@@ -167,6 +234,7 @@ impl Analysed {
             },
             || self.residuals.outliers(&self.data, &self.fitted),
         );
+        crate::analysis::transformation::outliers_as_written(&mut checks, spec);
         notes.extend(spread_note);
         notes.extend(advice(
             &checks,
@@ -205,7 +273,7 @@ impl Analysed {
         doc: &Document,
     ) -> LinearOutcome {
         let data = self.data;
-        let decimals = decimals_shown(doc, spec, data.decimals);
+        let decimals = decimals_shown(doc, spec, scale_decimals(spec, &data));
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         let fitted = self.fitted;
@@ -282,6 +350,7 @@ impl Analysed {
             covariates: None,
             contrasts: None,
             trend: None,
+            transform: None,
         }
     }
 }

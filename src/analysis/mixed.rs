@@ -369,6 +369,7 @@ impl Analysed {
             covariates: None,
             contrasts: None,
             trend: None,
+            transform: None,
         })
     }
 

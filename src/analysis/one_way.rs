@@ -15,6 +15,8 @@ use super::binding::{apply_labels, check_labels, decimals_shown};
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
 use super::request::{Analysis, Request};
+use super::transformation;
+use crate::stats::sum::neumaier;
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus};
 use crate::doc::{Block, Document};
@@ -80,7 +82,8 @@ impl Engine<'_> {
         let (spec, alpha) = (self.spec, self.alpha);
         let table = self.table(&sample)?;
         let mut notes = notes::sample_notes(&sample, &table, &factor, spec);
-        let checks = checks::checks(spec, &sample, &table);
+        let mut checks = checks::checks(spec, &sample, &table);
+        transformation::outliers_as_written(&mut checks, spec);
         notes.extend(advice(
             &checks,
             Remedies::OneFactor(spec.method),
@@ -93,7 +96,21 @@ impl Engine<'_> {
         let levels = levels::level_rows(&sample, &table, alpha, pooled);
         let comparison = self.comparison(&sample, &levels, &table, &alternatives, &mut notes)?;
         let (contrasts, trend) = self.contrasts_and_trend(&factor, &levels, &table)?;
-        let decimals = decimals_shown(self.doc, spec, sample.decimals);
+        let families = vec![outcome::level_family(&factor, &levels, comparison)];
+        let transform = self.transform_detail(&sample, &factor, &families, &mut notes)?;
+        let decimals = decimals_shown(
+            self.doc,
+            spec,
+            match &spec.transform {
+                Some(t) => transformation::scale_decimals(
+                    &t.value,
+                    neumaier(sample.arithmetic.iter().zip(&levels).map(|(m, l)| m * l.n as f64))
+                        / table.n as f64,
+                    sample.decimals,
+                ),
+                None => sample.decimals,
+            },
+        );
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         // Only figures read the observations; without them the result (and
         // the cache entry) stays small whatever the number of rows.
@@ -128,7 +145,7 @@ impl Engine<'_> {
             ci_pooled: pooled,
             cells: Vec::new(),
             cell_factors: vec![0],
-            families: vec![outcome::level_family(&factor, &levels, comparison)],
+            families,
             levels,
             alternatives,
             checks,
@@ -142,7 +159,60 @@ impl Engine<'_> {
             covariates: None,
             contrasts: contrasts.map(Box::new),
             trend: trend.map(Box::new),
+            transform: transform.map(Box::new),
         })
+    }
+
+    /// The transformation's detail (and the Box-Cox profile when asked).
+    fn transform_detail(
+        &self,
+        sample: &Sample,
+        factor: &str,
+        families: &[crate::outcome::linear::Family],
+        notes: &mut Vec<Note>,
+    ) -> Result<Option<crate::outcome::transform::TransformDetail>, Diagnostic> {
+        let spec = self.spec;
+        if spec.transform.is_none() && !spec.box_cox {
+            return Ok(None);
+        }
+        let box_cox = match (spec.box_cox, &sample.raw) {
+            (true, Some((offsets, lines))) => {
+                let cell_of: Vec<usize> = (offsets.iter().enumerate())
+                    .flat_map(|(i, g)| std::iter::repeat_n(i, g.len()))
+                    .collect();
+                let y: Vec<f64> = offsets.iter().flatten().map(|d| sample.origin + d).collect();
+                let model = transformation::CellModel {
+                    cell_of: &cell_of,
+                    cells: offsets.len(),
+                    design: None,
+                };
+                let at = |i: usize| lines.iter().flatten().nth(i).copied().unwrap_or(0);
+                Some(
+                    model
+                        .box_cox(&y, 1.0 - self.alpha.min(0.5))
+                        .map_err(|i| self.box_cox_refused(at(i)))?,
+                )
+            }
+            _ => None,
+        };
+        let arithmetic = vec![crate::outcome::transform::ArithmeticMeans {
+            factor: factor.to_string(),
+            means: sample.arithmetic.clone(),
+        }];
+        let data_decimals = decimals_shown(self.doc, spec, sample.decimals);
+        let declared = spec.transform.as_ref().map(|t| t.value);
+        let (detail, more) =
+            transformation::detail(declared, data_decimals, arithmetic, box_cox, families);
+        notes.extend(more);
+        Ok(Some(detail))
+    }
+
+    fn box_cox_refused(&self, line: usize) -> Diagnostic {
+        let spec = self.spec;
+        self.doc
+            .error_at(spec.model.line, None, format!("`transform: boxcox` needs values above 0 in `{}`; data line {line} has one of 0 or less", spec.model.value.response))
+            .hint("Box-Cox is defined for positive values only: leave such rows out with `exclude`, or remove `transform`")
+            .note(format!("data file {}", spec.data.value))
     }
 
     /// Planned contrasts and the trend over the level means, each mean's

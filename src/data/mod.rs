@@ -9,6 +9,7 @@ pub mod levels;
 pub mod reader;
 pub mod scan;
 pub mod spreadsheet;
+pub mod transform;
 
 use decimal::{Number, parse_number};
 

@@ -268,6 +268,11 @@ pub struct AnovaSpec {
     /// Covariates: numeric columns entering the model as straight lines
     /// (each also a term of `model`, added first where not written).
     pub covariates: Option<Located<Vec<String>>>,
+    /// The transformation the analysis runs on (`transform`), with any
+    /// declared offset; `None` for the data's own scale.
+    pub transform: Option<Located<crate::stats::transform::Declared>>,
+    /// `transform: boxcox`: report the Box-Cox profile of the model.
+    pub box_cox: bool,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
     /// Random terms (the unit structure): blocks, whole plots, batches.

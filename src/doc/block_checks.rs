@@ -303,6 +303,7 @@ pub(super) fn resolve(
     ));
     errors.extend(super::block_contrasts::contrast_keys(&d));
     errors.extend(super::block_trend::trend_keys(&d));
+    errors.extend(super::block_transform::transform_keys(&d));
     errors.extend(model_keys(&mut d, &model.value));
     errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
@@ -325,6 +326,8 @@ pub(super) fn resolve(
     let covariance = super::block_covariance::located_covariance(&d);
     let covariates = super::block_covariates::located_covariates(&d);
     Ok(AnovaSpec {
+        transform: super::block_transform::declared(&d),
+        box_cox: super::block_transform::box_cox(&d),
         covariates,
         contrasts: d.contrasts,
         trend: d.trend,

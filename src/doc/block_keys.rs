@@ -76,6 +76,10 @@ pub struct AnovaDraft {
     pub covariates: Option<(Entry, Vec<String>)>,
     /// `covariance`: the repeated-measures error structure.
     pub covariance: Option<(Entry, super::block_covariance::Covariance)>,
+    /// `transform`: the scale the analysis runs on, or the Box-Cox profile.
+    pub transform: Option<(Entry, super::block_transform::TransformChoice)>,
+    /// `offset`: a constant added before a log or square root.
+    pub offset: Option<(Entry, f64)>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -112,6 +116,8 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("covariate", super::block_covariates::read_covariate),
         ("contrast", super::block_contrasts::read_contrast),
         ("trend", super::block_trend::read_trend),
+        ("transform", super::block_transform::read_transform),
+        ("offset", super::block_transform::read_offset),
         (
             "contrast_adjust",
             super::block_contrasts::read_contrast_adjust,

@@ -283,6 +283,9 @@ pub struct LinearOutcome {
     /// A polynomial trend over a quantitative factor (`trend`).
     #[serde(default)]
     pub trend: Option<Box<super::trend::TrendDetail>>,
+    /// A transformed response (`transform`), or the Box-Cox profile.
+    #[serde(default)]
+    pub transform: Option<Box<super::transform::TransformDetail>>,
 }
 
 impl LinearOutcome {

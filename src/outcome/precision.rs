@@ -52,7 +52,9 @@ impl LinearOutcome {
     /// one error (fixed effects); `None` with random terms, where each
     /// stratum has its own, or when the mean is zero.
     pub fn cv_percent(&self) -> Option<f64> {
-        if self.mixed.is_some() || self.repeated.is_some() {
+        // On a transformed scale the ratio of SD to mean has no meaning.
+        let transformed = self.transform.as_ref().is_some_and(|t| t.declared.is_some());
+        if self.mixed.is_some() || self.repeated.is_some() || transformed {
             return None;
         }
         let (n, sum) = if self.levels.is_empty() {

@@ -38,6 +38,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod names;
+mod transform;
 mod trend;
 
 /// Degrees of freedom as prose reads them: whole numbers stay integers, a
@@ -245,6 +246,10 @@ struct GroupContext {
     #[serde(skip_serializing_if = "Option::is_none")]
     q3: Option<f64>,
     letters: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    arithmetic_mean: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    back: Option<transform::BackContext>,
 }
 
 #[derive(Serialize)]
@@ -257,6 +262,8 @@ struct PairContext {
     upper: f64,
     p: f64,
     significant: bool,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    ratio: Option<transform::RatioContext>,
 }
 
 /// An estimate of a comparison family (`means.<family>.<level>`).
@@ -268,6 +275,10 @@ struct EmmContext {
     ci_lower: f64,
     ci_upper: f64,
     letters: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    arithmetic_mean: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    back: Option<transform::BackContext>,
 }
 
 /// The namespace of every linear block, one-factor or factorial. The
@@ -341,6 +352,9 @@ struct BlockContext {
     /// Blocks with `trend`.
     #[serde(skip_serializing_if = "Option::is_none")]
     trend: Option<trend::TrendContext>,
+    /// Blocks with `transform`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    transform: Option<transform::TransformContext>,
 }
 
 #[derive(Serialize)]
@@ -460,6 +474,8 @@ fn means_context(o: &LinearOutcome) -> BTreeMap<String, BTreeMap<String, EmmCont
                         ci_lower: m.ci_lower,
                         ci_upper: m.ci_upper,
                         letters: letters_of(fam, i),
+                        arithmetic_mean: transform::arithmetic(o, Some(fam), i),
+                        back: transform::back(o, m),
                     };
                     (m.label.clone(), e)
                 })
@@ -488,6 +504,8 @@ fn groups_context(o: &LinearOutcome, fam: Option<&Family>) -> BTreeMap<String, G
         q1: None,
         q3: None,
         letters: fam.and_then(|f| letters_of(f, i)),
+        arithmetic_mean: transform::arithmetic(o, fam, i),
+        back: transform::back(o, m),
     };
     if !o.is_one_factor() {
         let estimates = fam.map_or(&[][..], |f| &f.estimates[..]);
@@ -512,7 +530,7 @@ fn groups_context(o: &LinearOutcome, fam: Option<&Family>) -> BTreeMap<String, G
 }
 
 /// `pairs`: the primary family's contrasts, in table order.
-fn pairs_context(fam: Option<&Family>) -> Vec<PairContext> {
+fn pairs_context(o: &LinearOutcome, fam: Option<&Family>) -> Vec<PairContext> {
     let Some(fam) = fam else {
         return Vec::new();
     };
@@ -529,6 +547,7 @@ fn pairs_context(fam: Option<&Family>) -> Vec<PairContext> {
             upper: p.upper,
             p: p.p_adj,
             significant: p.significant,
+            ratio: transform::ratio(o, p),
         })
         .collect()
 }
@@ -596,7 +615,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
                     .collect()
             })
             .unwrap_or_default(),
-        pairs: pairs_context(family),
+        pairs: pairs_context(o, family),
         means: means_context(o),
         variance: o.mixed.as_ref().map(|m| {
             m.components
@@ -621,6 +640,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         adjustment: covariates::covariates_context(o),
         planned: contrasts::contrasts_context(o),
         trend: trend::trend_context(o),
+        transform: transform::transform_context(o),
     }
 }
 #[derive(Serialize)]

@@ -110,8 +110,16 @@ fn linear_choices(o: &LinearOutcome) -> String {
             )
         }
     };
+    let scale = o.transform.as_deref().map_or(String::new(), |d| {
+        use crate::outcome::transform::Wording;
+        match (d.applied(), &d.box_cox) {
+            (Some(t), _) => format!(" of {}", t.label(&o.response)),
+            (None, Some(_)) => " (Box-Cox profile consulted, not applied)".into(),
+            (None, None) => String::new(),
+        }
+    });
     format!(
-        "`{}` (line {}): {model}; {}; α = {}; {} used, {} left out.",
+        "`{}` (line {}): {model}{scale}; {}; α = {}; {} used, {} left out.",
         o.id,
         o.line,
         compare.unwrap_or_else(|| "no pairwise comparisons".to_string()),

@@ -21,6 +21,7 @@ pub mod roots;
 pub mod special;
 pub mod strata;
 pub mod sum;
+pub mod transform;
 pub mod welch;
 
 /// True for a positive number; false for zero, negatives and NaN. Reads

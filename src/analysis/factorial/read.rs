@@ -9,14 +9,48 @@ use crate::analysis::binding::{
 };
 use crate::data::covariates::split_covariates;
 use crate::data::scan::ScanSpec;
+use crate::data::transform::transform_factorial;
 use crate::data::{FactorialData, factorial_from_scan, factorial_response};
 use crate::diag::Diagnostic;
 use crate::doc::Block;
 use crate::provenance::Input;
 
-/// Reads the observations of the model's factors and covariates; the
-/// covariates come back centred at their grand means.
+/// A factorial block's observations as read: on the analysis scale, with
+/// the covariates centred at their grand means.
+pub(crate) struct Observations {
+    pub data: FactorialData,
+    pub streamed: Option<Input>,
+    pub centred: Option<Centred>,
+    /// With `transform`: per factor and level, the arithmetic mean on the
+    /// data's scale.
+    pub arithmetic: Vec<Vec<f64>>,
+}
+
+/// Reads the observations of the model's factors and covariates, and
+/// applies the block's transformation.
 pub(crate) fn read_with_covariates(
+    errors: &Errors<'_>,
+    block: &Block,
+    (data, display_path): (Data<'_>, &str),
+    model: &Model,
+) -> Result<Observations, Diagnostic> {
+    let (mut data, streamed, centred) =
+        read_covariates(errors, block, (data, display_path), model)?;
+    let spec = errors.spec;
+    let arithmetic = match &spec.transform {
+        Some(t) => transform_factorial(&mut data, &t.value, &spec.model.value.response)
+            .map_err(|e| data_error(errors.doc, block, spec.data.line, display_path, e))?,
+        None => Vec::new(),
+    };
+    Ok(Observations {
+        data,
+        streamed,
+        centred,
+        arithmetic,
+    })
+}
+
+fn read_covariates(
     errors: &Errors<'_>,
     block: &Block,
     (data, display_path): (Data<'_>, &str),

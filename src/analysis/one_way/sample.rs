@@ -5,6 +5,7 @@
 use crate::analysis::binding::formula_text;
 use crate::analysis::binding::{Data, data_error, design_order, read_rows, scan_csv, streams};
 use crate::data::decimal::Number;
+use crate::data::transform::transform_scanned;
 use crate::data::scan::{ScanSpec, Scanned, ScannedLevel, scan_table};
 use crate::data::{DataError, Exclusion, SummaryColumns, SummaryRow, Table, summary_rows};
 use crate::diag::Diagnostic;
@@ -29,6 +30,9 @@ pub(super) struct Sample {
     pub(super) empty: Vec<String>,
     /// Range of F over the rounding of published summaries.
     pub(super) rounding: Option<RoundingRange>,
+    /// With `transform`: each level's arithmetic mean on the data's scale
+    /// (the summaries and offsets are on the analysis scale).
+    pub(super) arithmetic: Vec<f64>,
 }
 
 /// Raw observations per level: offsets from the origin and their data lines.
@@ -58,6 +62,8 @@ pub(super) struct Reading<'a> {
 fn keeps_values(spec: &AnovaSpec) -> bool {
     spec.checks != CheckSet::Summary
         || spec.method == Omnibus::Ranks
+        || spec.transform.is_some()
+        || spec.box_cox
         || !spec.plots.kinds.is_empty()
 }
 
@@ -109,7 +115,7 @@ impl Reading<'_> {
             exclude: &spec.rows.exclude,
             keep_values: keeps_values(spec),
         };
-        let (scanned, ruled_out, streamed) = match data {
+        let (mut scanned, ruled_out, streamed) = match data {
             data if streams(spec) => {
                 let (scanned, input) = scan_csv(data, &scan_spec).map_err(|e| self.fail(e))?;
                 (scanned, Vec::new(), input)
@@ -128,8 +134,22 @@ impl Reading<'_> {
         let path = streamed
             .as_ref()
             .map_or(spec.data.value.as_str(), |i| i.path.as_str());
+        let arithmetic = match &spec.transform {
+            Some(t) => {
+                let means = transform_scanned(&mut scanned, &t.value, response)
+                    .map_err(|e| self.fail(e))?;
+                let names = scanned.levels.iter().map(|l| l.name.clone());
+                names.zip(means).collect()
+            }
+            None => Vec::new(),
+        };
         let mut sample = self.levels_of_scan(scanned, path)?;
         sample.excluded.extend(ruled_out);
+        // Levels in design order, each with its own arithmetic mean.
+        let arithmetic: Vec<(String, f64)> = arithmetic;
+        sample.arithmetic = (sample.names.iter())
+            .filter_map(|n| arithmetic.iter().find(|(a, _)| a == n).map(|a| a.1))
+            .collect();
         Ok((sample, streamed))
     }
 
@@ -176,6 +196,7 @@ impl Reading<'_> {
             excluded: scanned.excluded,
             empty,
             rounding: None,
+            arithmetic: Vec::new(),
         })
     }
 
@@ -236,6 +257,7 @@ impl Reading<'_> {
         Ok(Sample {
             names,
             rounding: Some(published.rounding_range(&summaries)),
+            arithmetic: Vec::new(),
             summaries,
             raw: None,
             origin: published.origin,

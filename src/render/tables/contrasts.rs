@@ -93,6 +93,8 @@ pub(super) fn difference_rows(
     if own_df {
         columns.push(col("df", true));
     }
+    let ratio = super::transform::ratio_columns(o, c);
+    columns.extend(ratio.columns());
     let rows = rows_of(family, c, keys, |p, k| {
         let mut middle = vec![
             cell(fixed(p.estimate, d), k("diff")),
@@ -102,6 +104,7 @@ pub(super) fn difference_rows(
         if own_df {
             middle.push(cell(crate::format::df_text(p.df), k("df")));
         }
+        middle.extend(ratio.cells(p, k));
         middle
     });
     (columns, rows)

@@ -136,7 +136,7 @@ fn means_caption(o: &LinearOutcome, family: &Family, number: usize) -> String {
 }
 
 /// `control` for the control, `*` for a treatment that differs from it.
-fn control_mark(c: &Comparison, i: usize) -> String {
+pub(super) fn control_mark(c: &Comparison, i: usize) -> String {
     if c.control == Some(i) {
         return "control".to_string();
     }

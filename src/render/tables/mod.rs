@@ -17,6 +17,7 @@ mod power;
 mod precision;
 mod procedure_note;
 mod repeated;
+mod transform;
 mod trend;
 mod two_way;
 
@@ -79,6 +80,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
             tables.push(covariates::lines_table(o, d, s, &keys, numbers.next()));
         }
     }
+    if let Some(b) = o.transform.as_deref().and_then(|t| t.box_cox.as_ref()) {
+        tables.push(transform::box_cox_table(o, b, &keys, numbers.next()));
+    }
     if o.checks.shown {
         let subject = format!("{} by {}", measure(o), factors_text(o));
         let shown = |term: &str| shown_term(&o.presentation.plots, term);
@@ -122,8 +126,11 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         let compared = family.comparison.is_some() || o.is_one_factor();
         if show.means && compared {
             let number = numbers.next();
+            let transformed = transform::applied(o);
             tables.push(if o.is_one_factor() && o.method == Omnibus::Ranks {
                 means::ranks_table(o, family, &keys, number)
+            } else if let Some(t) = transformed.filter(|_| family.term != "cells") {
+                transform::transformed_means_table(o, family, t, &keys, number)
             } else {
                 means::means_table(o, family, &keys, number)
             });
@@ -315,7 +322,20 @@ fn family_table_id(o: &LinearOutcome, what: &str, family: &Family) -> String {
 
 /// The response as captions name it: its label (or display name, or column
 /// name) and unit.
+/// The response as the tables name it: its label and unit, or on a
+/// transformed scale `ln(label)`.
 fn measure(o: &LinearOutcome) -> String {
+    let plots = &o.presentation.plots;
+    if let Some(t) = transform::applied(o) {
+        let name = plots.label.clone();
+        let name = name.unwrap_or_else(|| plots.display(&o.response).to_string());
+        return crate::outcome::transform::Wording::label(t, &name);
+    }
+    data_measure(o)
+}
+
+/// The response on the data's own scale: its label and unit.
+fn data_measure(o: &LinearOutcome) -> String {
     let plots = &o.presentation.plots;
     let name = plots
         .label

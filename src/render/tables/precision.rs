@@ -12,12 +12,10 @@ pub fn precision_note(o: &LinearOutcome, family: &Family) -> Option<String> {
         return None;
     }
     let d = o.presentation.decimals;
-    let unit = o
-        .presentation
-        .plots
-        .unit
-        .as_ref()
-        .map_or(String::new(), |u| format!(" {u}"));
+    let unit = match super::transform::applied(o) {
+        Some(t) => format!(" ({})", super::transform::short_scale(t)),
+        None => (o.presentation.plots.unit.as_ref()).map_or(String::new(), |u| format!(" {u}")),
+    };
     let cv = o.cv_percent().map(|cv| {
         format!(
             "CV = {}% (residual SD over the grand mean).",
