@@ -594,21 +594,22 @@ fn anova_record(o: &LinearOutcome) -> AnovaRecord {
 /// One factor: its levels with their spread. Several factors: the
 /// estimated marginal means of the first family (no SD or quartiles).
 fn groups_record(o: &LinearOutcome) -> Vec<GroupRecord> {
-    let group = |m: &Estimate, ci_error: &'static str, family: Option<(&Family, usize)>| GroupRecord {
-        arithmetic_mean: family.and_then(|(f, i)| transform::arithmetic_record(o, f, i)),
-        back: transform::back_record(o, m),
-        level: m.label.clone(),
-        n: m.n,
-        mean: finite(m.mean),
-        sd: None,
-        se: finite(m.se),
-        ci_lower: finite(m.ci_lower),
-        ci_upper: finite(m.ci_upper),
-        ci_error,
-        median: None,
-        q1: None,
-        q3: None,
-    };
+    let group =
+        |m: &Estimate, ci_error: &'static str, family: Option<(&Family, usize)>| GroupRecord {
+            arithmetic_mean: family.and_then(|(f, i)| transform::arithmetic_record(o, f, i)),
+            back: transform::back_record(o, m),
+            level: m.label.clone(),
+            n: m.n,
+            mean: finite(m.mean),
+            sd: None,
+            se: finite(m.se),
+            ci_lower: finite(m.ci_lower),
+            ci_upper: finite(m.ci_upper),
+            ci_error,
+            median: None,
+            q1: None,
+            q3: None,
+        };
     if !o.is_one_factor() {
         // The first compared family's means (empty when nothing is compared).
         let Some(family) = o.families.iter().find(|f| f.comparison.is_some()) else {

@@ -106,6 +106,82 @@ mod contract {
         /// Blocks with `trend` only.
         #[serde(default, deserialize_with = "present")]
         pub trend: Option<Trend>,
+        /// Blocks with `transform` only.
+        #[serde(default, deserialize_with = "present")]
+        pub transform: Option<Transform>,
+    }
+
+    /// README: "Blocks with `transform` add `transform` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Transform {
+        #[serde(deserialize_with = "nullable")]
+        pub name: Option<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub scale: Option<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub analysed: Option<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub offset: Option<f64>,
+        pub percent: bool,
+        #[serde(deserialize_with = "nullable")]
+        pub back_transformed: Option<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub difference: Option<String>,
+        #[serde(default, deserialize_with = "present")]
+        pub box_cox: Option<BoxCox>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct BoxCox {
+        #[serde(deserialize_with = "nullable")]
+        pub lambda: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
+        pub level: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub log_likelihood: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub suggestion: Option<f64>,
+        pub no_transformation_indicated: bool,
+        pub at_boundary: bool,
+        pub profile: Vec<ProfilePoint>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct ProfilePoint {
+        pub lambda: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub log_likelihood: Option<f64>,
+    }
+
+    /// A mean and its limits back on the data's scale.
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Back {
+        #[serde(deserialize_with = "nullable")]
+        pub mean: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Ratio {
+        #[serde(deserialize_with = "nullable")]
+        pub estimate: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
+        #[serde(default, deserialize_with = "present")]
+        pub percent_change: Option<f64>,
     }
 
     /// README: "Blocks with `trend` add `trend` …".
@@ -678,6 +754,11 @@ mod contract {
         pub q1: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub q3: Option<f64>,
+        /// Blocks with `transform` only.
+        #[serde(default, deserialize_with = "present")]
+        pub arithmetic_mean: Option<f64>,
+        #[serde(default, deserialize_with = "present")]
+        pub back: Option<Back>,
     }
 
     #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
@@ -764,6 +845,11 @@ mod contract {
         pub ci_lower: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub ci_upper: Option<f64>,
+        /// Blocks with `transform` only.
+        #[serde(default, deserialize_with = "present")]
+        pub arithmetic_mean: Option<f64>,
+        #[serde(default, deserialize_with = "present")]
+        pub back: Option<Back>,
     }
 
     #[derive(Deserialize)]
@@ -785,6 +871,9 @@ mod contract {
         /// Games-Howell only.
         #[serde(default, deserialize_with = "present")]
         pub df: Option<f64>,
+        /// Blocks with `transform: log` or `logit` only.
+        #[serde(default, deserialize_with = "present")]
+        pub ratio: Option<Ratio>,
     }
 
     #[derive(Deserialize)]

@@ -46,8 +46,18 @@ fn the_log_scale_anova_matches_scipy_and_the_base_does_not_matter() {
     for transform in ["log", "log10"] {
         let b = fry(&format!("transform: {transform}\n")).expect("builds");
         let term = &b["anova"]["terms"][0];
-        assert_close(&term["f"], reference_number(&r["anova_log"]["F"]), TIGHT, "F");
-        assert_close(&term["p"], reference_number(&r["anova_log"]["p"]), TIGHT, "p");
+        assert_close(
+            &term["f"],
+            reference_number(&r["anova_log"]["F"]),
+            TIGHT,
+            "F",
+        );
+        assert_close(
+            &term["p"],
+            reference_number(&r["anova_log"]["p"]),
+            TIGHT,
+            "p",
+        );
         if transform == "log" {
             let mse = reference_number(&r["anova_log"]["mse"]);
             assert_close(&b["anova"]["residual"]["ms"], mse, TIGHT, "MSE");
@@ -145,7 +155,12 @@ fn box_cox_profiles_the_blocks_own_model() {
     let one_way = &r["box_cox"]["one_way_model"];
     // The reference's λ̂ is the root of dℓ/dλ confirmed in 50-digit mpmath;
     // sheaf solves the same equation with Brent to 1e-13.
-    assert_close(&bc["lambda"], reference_number(&one_way["mpmath_lambda"]), 1e-10, "λ");
+    assert_close(
+        &bc["lambda"],
+        reference_number(&one_way["mpmath_lambda"]),
+        1e-10,
+        "λ",
+    );
     let interval = numbers(&one_way["interval"]);
     assert_close(&bc["lower"], interval[0], 1e-10, "lower");
     assert_close(&bc["upper"], interval[1], 1e-10, "upper");
@@ -199,13 +214,18 @@ fn values_outside_the_domain_name_their_lines_and_the_offset() {
     let t = &results["blocks"][0]["transform"];
     assert_eq!(t["offset"].as_f64(), Some(1.0));
     assert_eq!(t["back_transformed"], "shifted geometric mean");
-    assert!(results["blocks"][0]["comparisons"][0]["pairs"][0].get("ratio").is_none());
+    assert!(
+        results["blocks"][0]["comparisons"][0]["pairs"][0]
+            .get("ratio")
+            .is_none()
+    );
 }
 
 #[test]
 fn proportions_say_when_the_column_holds_percentages() {
     let text = "dose,germinated\na,45\na,50\na,55\nb,70\nb,75\nb,72\n".to_string();
-    let doc = "# G\n\n```anova\nid: g\ndata: g.csv\nmodel: germinated ~ dose\ntransform: logit\n```\n";
+    let doc =
+        "# G\n\n```anova\nid: g\ndata: g.csv\nmodel: germinated ~ dose\ntransform: logit\n```\n";
     let e = build(doc, &[("g.csv", text.clone())]).expect_err("refused");
     assert!(e.contains("transform: logit percent"), "{e}");
     let percent = doc.replace("logit", "logit percent");
@@ -213,7 +233,12 @@ fn proportions_say_when_the_column_holds_percentages() {
     let g = &results["blocks"][0]["groups"];
     // Back-transformed proportions come back as percentages: the level
     // with 45, 50, 55 % has a mean logit near 0, so about 50 %.
-    let a = g.as_array().expect("groups").iter().find(|x| x["level"] == "a").expect("a");
+    let a = g
+        .as_array()
+        .expect("groups")
+        .iter()
+        .find(|x| x["level"] == "a")
+        .expect("a");
     let back = a["back"]["mean"].as_f64().expect("mean");
     assert!((back - 50.0).abs() < 0.5, "{back}");
 }

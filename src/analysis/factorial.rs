@@ -145,8 +145,9 @@ fn scale_decimals(spec: &AnovaSpec, data: &FactorialData) -> u32 {
     let Some(t) = &spec.transform else {
         return data.decimals;
     };
-    let mean_z = data.origin + crate::stats::sum::neumaier(data.offsets.iter().copied())
-        / data.offsets.len().max(1) as f64;
+    let mean_z = data.origin
+        + crate::stats::sum::neumaier(data.offsets.iter().copied())
+            / data.offsets.len().max(1) as f64;
     super::transformation::scale_decimals(&t.value, t.value.back(mean_z), data.decimals)
 }
 
@@ -166,7 +167,12 @@ impl Analysed {
         }
         let box_cox = match spec.box_cox && !self.fitted.per_observation {
             true => {
-                let y: Vec<f64> = self.data.offsets.iter().map(|d| self.data.origin + d).collect();
+                let y: Vec<f64> = self
+                    .data
+                    .offsets
+                    .iter()
+                    .map(|d| self.data.origin + d)
+                    .collect();
                 let model = super::transformation::CellModel {
                     cell_of: &self.data.cell_of,
                     cells: self.data.cells.len(),
@@ -183,20 +189,17 @@ impl Analysed {
         };
         let arithmetic = (self.model.factor_names.iter())
             .zip(arithmetic)
-            .map(|(factor, means)| crate::outcome::transform::ArithmeticMeans {
-                factor: factor.clone(),
-                means,
-            })
+            .map(
+                |(factor, means)| crate::outcome::transform::ArithmeticMeans {
+                    factor: factor.clone(),
+                    means,
+                },
+            )
             .collect();
         let data_decimals = decimals_shown(doc, spec, self.data.decimals);
         let declared = spec.transform.as_ref().map(|t| t.value);
-        let (detail, more) = super::transformation::detail(
-            declared,
-            data_decimals,
-            arithmetic,
-            box_cox,
-            families,
-        );
+        let (detail, more) =
+            super::transformation::detail(declared, data_decimals, arithmetic, box_cox, families);
         notes.extend(more);
         Ok(Some(detail))
     }

@@ -16,7 +16,6 @@ use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
 use super::request::{Analysis, Request};
 use super::transformation;
-use crate::stats::sum::neumaier;
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, Omnibus};
 use crate::doc::{Block, Document};
@@ -24,6 +23,7 @@ use crate::outcome::linear::{Alternatives, LinearOutcome, Observed};
 use crate::stats::effect::{EffectSizes, one_way_effects};
 use crate::stats::oneway::{OneWay, OneWayError, one_way, total_sum_of_squares};
 use crate::stats::ranks::{KruskalWallis, kruskal_wallis};
+use crate::stats::sum::neumaier;
 use crate::stats::welch::welch_anova;
 use sample::{Reading, Sample};
 
@@ -104,8 +104,13 @@ impl Engine<'_> {
             match &spec.transform {
                 Some(t) => transformation::scale_decimals(
                     &t.value,
-                    neumaier(sample.arithmetic.iter().zip(&levels).map(|(m, l)| m * l.n as f64))
-                        / table.n as f64,
+                    neumaier(
+                        sample
+                            .arithmetic
+                            .iter()
+                            .zip(&levels)
+                            .map(|(m, l)| m * l.n as f64),
+                    ) / table.n as f64,
                     sample.decimals,
                 ),
                 None => sample.decimals,
@@ -180,7 +185,11 @@ impl Engine<'_> {
                 let cell_of: Vec<usize> = (offsets.iter().enumerate())
                     .flat_map(|(i, g)| std::iter::repeat_n(i, g.len()))
                     .collect();
-                let y: Vec<f64> = offsets.iter().flatten().map(|d| sample.origin + d).collect();
+                let y: Vec<f64> = offsets
+                    .iter()
+                    .flatten()
+                    .map(|d| sample.origin + d)
+                    .collect();
                 let model = transformation::CellModel {
                     cell_of: &cell_of,
                     cells: offsets.len(),

@@ -81,7 +81,12 @@ pub fn transform_scanned(
     Ok(arithmetic)
 }
 
-fn domain_error(t: &Declared, response: &str, mut bad: Vec<(usize, f64)>, decimals: u32) -> DataError {
+fn domain_error(
+    t: &Declared,
+    response: &str,
+    mut bad: Vec<(usize, f64)>,
+    decimals: u32,
+) -> DataError {
     bad.sort_by_key(|b| b.0);
     let values: Vec<f64> = bad.iter().map(|b| b.1).collect();
     let shown: Vec<String> = bad

@@ -48,7 +48,11 @@ pub(super) fn read_transform(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecEr
         _ => {
             return Err(bad(
                 e,
-                format!("`{}` after `{}` is not understood", words[1..].join(" "), words[0]),
+                format!(
+                    "`{}` after `{}` is not understood",
+                    words[1..].join(" "),
+                    words[0]
+                ),
                 HINT,
             ));
         }
@@ -66,7 +70,10 @@ pub(super) fn read_offset(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError
         }
         _ => Err(bad(
             e,
-            format!("`offset` must be a positive number, found `{}`", e.value.trim()),
+            format!(
+                "`offset` must be a positive number, found `{}`",
+                e.value.trim()
+            ),
             "the constant added to every value before the transformation, e.g. `offset: 1` for counts with zeros; it is printed with the results and changes them",
         )),
     }

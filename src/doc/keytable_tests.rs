@@ -60,6 +60,8 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
         "contrast: a vs b = a 1, b -1\ncontrast_adjust: holm",
     ),
     ("trend", "trend: g = a 0, b 10, c 40"),
+    ("transform", "transform: log"),
+    ("offset", "transform: sqrt\noffset: 0.375"),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

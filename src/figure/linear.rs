@@ -116,7 +116,22 @@ pub(super) fn factor_groups<'a>(
                 ci: estimate.map_or((f64::NAN, f64::NAN), |e| (e.ci_lower, e.ci_upper)),
             }
         })
-        .collect();
+        .collect::<Vec<Group<'a>>>();
+    let groups = match transformed(o) {
+        None => groups,
+        Some(t) => (groups.into_iter())
+            .map(|g| Group {
+                quartiles: (
+                    t.back(g.quartiles.0),
+                    t.back(g.quartiles.1),
+                    t.back(g.quartiles.2),
+                ),
+                mean: t.back(g.mean),
+                ci: (t.back(g.ci.0), t.back(g.ci.1)),
+                ..g
+            })
+            .collect(),
+    };
     let source = match family {
         Some(_) if o.is_one_factor() => MeansSource::Levels,
         Some(_) => MeansSource::Marginal,
@@ -125,15 +140,25 @@ pub(super) fn factor_groups<'a>(
     (groups, source)
 }
 
-/// The observations at each level of factor `f`, in data order.
+/// The observations at each level of factor `f`, in data order, on the
+/// data's scale (a transformed block's values taken back).
 fn values_by_level(o: &LinearOutcome, f: usize) -> Vec<Vec<f64>> {
+    let back = |z: f64| transformed(o).map_or(z, |t| t.back(z));
     let mut values = vec![Vec::new(); o.factors[f].levels.len()];
     for obs in &o.observations {
         if let Some(v) = obs.levels.get(f).and_then(|&l| values.get_mut(l)) {
-            v.push(obs.value);
+            v.push(back(obs.value));
         }
     }
     values
+}
+
+/// The transformation a block's numbers are on, if any: factor figures
+/// draw on the data's scale, with means and limits taken back.
+fn transformed(o: &LinearOutcome) -> Option<&crate::stats::transform::Declared> {
+    o.transform
+        .as_deref()
+        .and_then(crate::outcome::transform::TransformDetail::applied)
 }
 
 /// Captions name the response as the tables do: its label, else its column.
@@ -213,7 +238,12 @@ fn factor_figure(
             .join(", "),
         groups
             .iter()
-            .map(|g| fixed(g.mean, o.presentation.decimals))
+            .map(|g| fixed(
+                g.mean,
+                o.transform
+                    .as_deref()
+                    .map_or(o.presentation.decimals, |t| t.data_decimals)
+            ))
             .collect::<Vec<_>>()
             .join(", ")
     );
@@ -233,6 +263,14 @@ fn factor_figure(
 /// What a means plot shows, as its caption's first words say it.
 fn means_phrase(o: &LinearOutcome, source: MeansSource, subject: &str, factor: &str) -> String {
     let conf = confidence_label(o.alpha);
+    if let (Some(t), MeansSource::Levels | MeansSource::Marginal) = (transformed(o), source) {
+        use crate::outcome::transform::Wording;
+        return format!(
+            "{} of {subject} by {factor} with {conf} confidence intervals, back-transformed from the {} scale",
+            crate::outcome::transform::plural_capitalised(t.back_name()),
+            t.scale()
+        );
+    }
     match source {
         MeansSource::Levels => format!(
             "Means of {subject} by {factor} with {conf} confidence intervals ({})",

@@ -53,7 +53,10 @@ impl LinearOutcome {
     /// stratum has its own, or when the mean is zero.
     pub fn cv_percent(&self) -> Option<f64> {
         // On a transformed scale the ratio of SD to mean has no meaning.
-        let transformed = self.transform.as_ref().is_some_and(|t| t.declared.is_some());
+        let transformed = self
+            .transform
+            .as_ref()
+            .is_some_and(|t| t.declared.is_some());
         if self.mixed.is_some() || self.repeated.is_some() || transformed {
             return None;
         }

@@ -115,3 +115,42 @@ impl Wording for Declared {
         }
     }
 }
+
+/// `Geometric means`, `Squared mean roots`, `Back-transformed proportions`:
+/// a back-transformed mean's name as a plural heading.
+pub fn plural_capitalised(name: &str) -> String {
+    let plural = match name.strip_suffix("mean root") {
+        Some(head) => format!("{head}mean roots"),
+        None => format!("{name}s"),
+    };
+    let mut c = plural.chars();
+    c.next().map_or(String::new(), |f| {
+        f.to_uppercase().collect::<String>() + c.as_str()
+    })
+}
+
+/// A difference on the analysis scale as a ratio on the data's scale, with
+/// the procedure's limits taken through the same function.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RatioEstimate {
+    pub estimate: f64,
+    pub lower: f64,
+    pub upper: f64,
+    /// 100 (ratio − 1), for a ratio of geometric means (not of odds).
+    pub percent_change: Option<f64>,
+}
+
+impl RatioEstimate {
+    /// The ratio of a contrast, where the transformation gives one; an
+    /// open interval end (one-sided procedures) stays NaN.
+    pub fn of(t: &Declared, c: &crate::outcome::linear::Contrast) -> Option<RatioEstimate> {
+        let estimate = t.ratio(c.estimate)?;
+        let limit = |x: f64| t.ratio(x).filter(|_| x.is_finite()).unwrap_or(f64::NAN);
+        Some(RatioEstimate {
+            estimate,
+            lower: limit(c.lower),
+            upper: limit(c.upper),
+            percent_change: (t.ratio_name() == Some("ratio")).then_some(100.0 * (estimate - 1.0)),
+        })
+    }
+}

@@ -134,13 +134,11 @@ pub fn arithmetic_record(o: &LinearOutcome, family: &Family, i: usize) -> Option
 
 /// A pair's difference as a ratio, where the transformation gives one.
 pub fn ratio_record(o: &LinearOutcome, p: &Contrast) -> Option<RatioRecord> {
-    let t = applied(o)?;
-    let estimate = t.ratio(p.estimate)?;
-    let limit = |x: f64| if x.is_finite() { t.ratio(x) } else { None };
+    let r = crate::outcome::transform::RatioEstimate::of(applied(o)?, p)?;
     Some(RatioRecord {
-        estimate: finite(estimate),
-        lower: limit(p.lower).and_then(finite),
-        upper: limit(p.upper).and_then(finite),
-        percent_change: (t.ratio_name() == Some("ratio")).then(|| 100.0 * (estimate - 1.0)),
+        estimate: finite(r.estimate),
+        lower: finite(r.lower),
+        upper: finite(r.upper),
+        percent_change: r.percent_change.and_then(finite),
     })
 }

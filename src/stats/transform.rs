@@ -177,11 +177,8 @@ impl<'a> Profile<'a> {
     /// ℓ(λ) and dℓ/dλ. SSE′ = 2 rᵀ(dz/dλ): the residual projection does
     /// not depend on λ.
     fn at(&self, lambda: f64) -> (f64, f64) {
-        let (z, dz): (Vec<f64>, Vec<f64>) = self
-            .ln_y
-            .iter()
-            .map(|&l| box_cox_value(l, lambda))
-            .unzip();
+        let (z, dz): (Vec<f64>, Vec<f64>) =
+            self.ln_y.iter().map(|&l| box_cox_value(l, lambda)).unzip();
         let r = (self.residuals)(&z);
         let n = self.ln_y.len() as f64;
         let sse = super::sum::neumaier(r.iter().map(|v| v * v));

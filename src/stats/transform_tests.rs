@@ -25,7 +25,10 @@ fn exact_identities_of_the_specification() {
     // y = (1, 4, 9): the mean root 2 back-transforms to 4, below the
     // arithmetic mean 14/3.
     let sqrt = declared(Transform::Sqrt);
-    let roots: f64 = [1.0, 4.0, 9.0].iter().map(|&y| sqrt.apply(y).unwrap()).sum();
+    let roots: f64 = [1.0, 4.0, 9.0]
+        .iter()
+        .map(|&y| sqrt.apply(y).unwrap())
+        .sum();
     assert!(rel(sqrt.back(roots / 3.0), 4.0) < 1e-15);
 }
 
@@ -37,7 +40,10 @@ fn domains_refuse_what_the_transformation_cannot_take() {
     assert_eq!(declared(Transform::Logit).apply(0.0), None);
     assert_eq!(declared(Transform::Arcsine).apply(1.5), None);
     assert_eq!(declared(Transform::Sqrt).apply(-0.5), None);
-    assert_eq!(declared(Transform::Arcsine).apply(1.0), Some(std::f64::consts::FRAC_PI_2));
+    assert_eq!(
+        declared(Transform::Arcsine).apply(1.0),
+        Some(std::f64::consts::FRAC_PI_2)
+    );
     let shifted = Declared {
         offset: 1.0,
         ..declared(Transform::Ln)
@@ -78,11 +84,14 @@ fn the_derivative_in_lambda_is_continuous_across_the_series() {
         let e = u.exp_m1();
         let closed = (u * (e + 1.0) - e) / (lambda * lambda);
         let (_, series) = box_cox_value(ln_y, lambda);
-        assert!(rel(series, closed) < 1e-12, "ln y {ln_y}: {series} {closed}");
+        assert!(
+            rel(series, closed) < 1e-12,
+            "ln y {ln_y}: {series} {closed}"
+        );
         for lambda in [-1.3, -0.002, 0.0, 0.004, 0.5, 2.2] {
             let h = 1e-5;
-            let numeric = (box_cox_value(ln_y, lambda + h).0 - box_cox_value(ln_y, lambda - h).0)
-                / (2.0 * h);
+            let numeric =
+                (box_cox_value(ln_y, lambda + h).0 - box_cox_value(ln_y, lambda - h).0) / (2.0 * h);
             let (_, dz) = box_cox_value(ln_y, lambda);
             // Central difference error O(h² z‴) ≈ 1e-10 relative here.
             assert!(rel(dz, numeric) < 1e-8, "ln y {ln_y}, λ {lambda}");

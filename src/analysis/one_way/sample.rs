@@ -5,8 +5,8 @@
 use crate::analysis::binding::formula_text;
 use crate::analysis::binding::{Data, data_error, design_order, read_rows, scan_csv, streams};
 use crate::data::decimal::Number;
-use crate::data::transform::transform_scanned;
 use crate::data::scan::{ScanSpec, Scanned, ScannedLevel, scan_table};
+use crate::data::transform::transform_scanned;
 use crate::data::{DataError, Exclusion, SummaryColumns, SummaryRow, Table, summary_rows};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus, PlotKind};

@@ -63,14 +63,12 @@ pub(super) fn arithmetic(o: &LinearOutcome, fam: Option<&Family>, i: usize) -> O
 }
 
 pub(super) fn ratio(o: &LinearOutcome, p: &Contrast) -> Option<RatioContext> {
-    let t = applied(o)?;
-    let estimate = t.ratio(p.estimate)?;
-    let limit = |x: f64| t.ratio(x).unwrap_or(f64::NAN);
+    let r = crate::outcome::transform::RatioEstimate::of(applied(o)?, p)?;
     Some(RatioContext {
-        estimate,
-        lower: limit(p.lower),
-        upper: limit(p.upper),
-        percent_change: (t.ratio_name() == Some("ratio")).then(|| 100.0 * (estimate - 1.0)),
+        estimate: r.estimate,
+        lower: r.lower,
+        upper: r.upper,
+        percent_change: r.percent_change,
     })
 }
 

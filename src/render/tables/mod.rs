@@ -329,6 +329,11 @@ fn measure(o: &LinearOutcome) -> String {
     if let Some(t) = transform::applied(o) {
         let name = plots.label.clone();
         let name = name.unwrap_or_else(|| plots.display(&o.response).to_string());
+        // `Dry weight (mg)` → `ln(Dry weight)`: a unit has no log.
+        let name = match name.rsplit_once(" (") {
+            Some((head, _)) if name.ends_with(')') => head.to_string(),
+            _ => name,
+        };
         return crate::outcome::transform::Wording::label(t, &name);
     }
     data_measure(o)

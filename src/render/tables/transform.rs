@@ -45,7 +45,7 @@ fn plain_words(t: &Declared) -> String {
 
 /// The footnote every table of a transformed block carries.
 pub fn scale_footnote(o: &LinearOutcome, t: &Declared) -> String {
-    let analysed = t.label(&o.response);
+    let analysed = super::measure(o);
     format!(
         "Analysis of {analysed}, on the {} scale: means, SEs and differences of {analysed}; the {} and its limits are back-transformed point by point, so the interval is not symmetric and no SE is given on the data's scale. {}",
         t.scale(),
@@ -84,7 +84,10 @@ pub fn transformed_means_table(
         .map(|i| {
             let e = &family.estimates[i];
             let back = TransformDetail::back(t, e.mean, e.ci_lower, e.ci_upper);
-            let mut row = vec![text(e.label.clone()), cell(e.n.to_string(), key(&e.label, "n"))];
+            let mut row = vec![
+                text(e.label.clone()),
+                cell(e.n.to_string(), key(&e.label, "n")),
+            ];
             if let Some(a) = arithmetic(i) {
                 row.push(cell(fixed(a, back_d), key(&e.label, "arithmetic_mean")));
             }
@@ -92,7 +95,11 @@ pub fn transformed_means_table(
             row.push(cell(fixed(e.se, d), key(&e.label, "se")));
             row.push(cell(fixed(back.mean, back_d), key(&e.label, "back.mean")));
             row.push(cell(
-                format!("{} to {}", fixed(back.lower, back_d), fixed(back.upper, back_d)),
+                format!(
+                    "{} to {}",
+                    fixed(back.lower, back_d),
+                    fixed(back.upper, back_d)
+                ),
                 key(&e.label, "back.ci"),
             ));
             if let Some(c) = letters {
@@ -142,7 +149,7 @@ pub fn transformed_means_table(
         },
         caption: format!(
             "Table {number}. {} of {} by {}{}, {}.",
-            capitalised(&plural(t.back_name())),
+            crate::outcome::transform::plural_capitalised(t.back_name()),
             super::data_measure(o),
             family_subject(o, family),
             super::family_slice(o, family),
@@ -152,14 +159,6 @@ pub fn transformed_means_table(
         columns,
         rows,
         footnotes,
-    }
-}
-
-/// `geometric means`, `squared mean roots`, `back-transformed proportions`.
-fn plural(name: &str) -> String {
-    match name.strip_suffix("mean root") {
-        Some(head) => format!("{head}mean roots"),
-        None => format!("{name}s"),
     }
 }
 
@@ -276,14 +275,26 @@ pub fn ratio_columns<'a>(
     c: &crate::outcome::linear::Comparison,
 ) -> RatioColumns<'a> {
     let t = applied(o).filter(|t| t.ratio_name().is_some());
-    // Ratios near 1 need the analysis scale's decimals to separate a
-    // limit of 0.9999 from 1 (spec C.4).
-    let decimals = o.presentation.decimals.max(3);
+    let decimals = ratio_decimals(t, c);
     let conf = match c.method {
         Method::Lsd => format!("{} CI", confidence_label(o.alpha)),
         _ => format!("{} simultaneous CI", confidence_label(o.alpha)),
     };
     RatioColumns { t, decimals, conf }
+}
+
+/// Three decimals, or more until no limit that differs from 1 prints as
+/// 1.000: a limit of 0.99990 must not read as touching 1 (spec C.4).
+fn ratio_decimals(t: Option<&Declared>, c: &crate::outcome::linear::Comparison) -> u32 {
+    let Some(t) = t else { return 3 };
+    let limits: Vec<f64> = (c.contrasts.iter())
+        .flat_map(|p| [p.lower, p.upper])
+        .filter_map(|x| t.ratio(x))
+        .filter(|x| x.is_finite() && *x != 1.0)
+        .collect();
+    (3..=6)
+        .find(|&d| limits.iter().all(|&x| fixed(x, d) != fixed(1.0, d)))
+        .unwrap_or(6)
 }
 
 impl RatioColumns<'_> {
@@ -315,7 +326,10 @@ impl RatioColumns<'_> {
             (None, None) => "–".into(),
         };
         vec![
-            cell(r(p.estimate).map_or("–".into(), |v| fixed(v, d)), k("ratio.estimate")),
+            cell(
+                r(p.estimate).map_or("–".into(), |v| fixed(v, d)),
+                k("ratio.estimate"),
+            ),
             cell(limits, k("ratio.ci")),
         ]
     }
