@@ -54,7 +54,9 @@ pub fn contrasts_table(
         caption,
         columns,
         rows,
-        footnotes: vec![footnote],
+        footnotes: std::iter::once(footnote)
+            .chain(super::transform::ratio_columns(o, c).footnote())
+            .collect(),
     }
 }
 
@@ -82,25 +84,29 @@ pub(super) fn difference_rows(
         (false, true) => format!("below {}", fixed(p.upper, d)),
         _ => "–".into(),
     };
+    let ratio = super::transform::ratio_columns(o, c);
     let mut columns = vec![
         col("Comparison", false),
         col("Difference", true),
         col("SE", true),
-        col(interval_label, true),
     ];
+    if !ratio.shown() {
+        columns.push(col(interval_label, true));
+    }
     // Games-Howell and mixed models give each pair its own df.
     let own_df = c.contrasts.iter().any(|p| p.own_df);
     if own_df {
         columns.push(col("df", true));
     }
-    let ratio = super::transform::ratio_columns(o, c);
     columns.extend(ratio.columns());
     let rows = rows_of(family, c, keys, |p, k| {
         let mut middle = vec![
             cell(fixed(p.estimate, d), k("diff")),
             cell(fixed(p.se, d), k("se")),
-            cell(interval(p), k("ci")),
         ];
+        if !ratio.shown() {
+            middle.push(cell(interval(p), k("ci")));
+        }
         if own_df {
             middle.push(cell(crate::format::df_text(p.df), k("df")));
         }

@@ -91,8 +91,6 @@ pub fn transformed_means_table(
             if let Some(a) = arithmetic(i) {
                 row.push(cell(fixed(a, back_d), key(&e.label, "arithmetic_mean")));
             }
-            row.push(cell(fixed(e.mean, d), key(&e.label, "mean")));
-            row.push(cell(fixed(e.se, d), key(&e.label, "se")));
             row.push(cell(fixed(back.mean, back_d), key(&e.label, "back.mean")));
             row.push(cell(
                 format!(
@@ -102,6 +100,7 @@ pub fn transformed_means_table(
                 ),
                 key(&e.label, "back.ci"),
             ));
+            row.push(cell(fixed(e.mean, d), key(&e.label, "mean")));
             if let Some(c) = letters {
                 row.push(cell(c.letters[i].clone(), keys.family(family, "letters")));
             }
@@ -117,12 +116,11 @@ pub fn transformed_means_table(
         columns.push(col("Arithmetic mean", true));
     }
     columns.extend([
-        col(format!("Mean ({scale})"), true),
-        col(format!("SE ({scale})"), true),
         col(capitalised(t.back_name()), true),
         col(format!("{} CI", confidence_label(o.alpha)), true),
+        col(format!("Mean ({scale})"), true),
     ]);
-    let mut footnotes = vec![scale_footnote(o, t)];
+    let mut footnotes = vec![scale_footnote(o, t), se_range(family, d, scale)];
     footnotes.extend(super::precision::precision_note(o, family));
     if let Some(c) = letters {
         columns.push(col("Letters", false));
@@ -159,6 +157,28 @@ pub fn transformed_means_table(
         columns,
         rows,
         footnotes,
+    }
+}
+
+/// The SEs of the means on the analysis scale, in a sentence (the table
+/// leaves them out to stay narrow; the results file has each).
+fn se_range(family: &Family, d: u32, scale: &str) -> String {
+    let ses = family
+        .estimates
+        .iter()
+        .map(|e| e.se)
+        .filter(|s| s.is_finite());
+    let (lo, hi) = ses.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), s| {
+        (a.min(s), b.max(s))
+    });
+    if fixed(lo, d) == fixed(hi, d) {
+        format!("SE of each mean ({scale}): {}.", fixed(lo, d))
+    } else {
+        format!(
+            "SE of the means ({scale}): {} to {}.",
+            fixed(lo, d),
+            fixed(hi, d)
+        )
     }
 }
 
@@ -276,10 +296,7 @@ pub fn ratio_columns<'a>(
 ) -> RatioColumns<'a> {
     let t = applied(o).filter(|t| t.ratio_name().is_some());
     let decimals = ratio_decimals(t, c);
-    let conf = match c.method {
-        Method::Lsd => format!("{} CI", confidence_label(o.alpha)),
-        _ => format!("{} simultaneous CI", confidence_label(o.alpha)),
-    };
+    let conf = format!("{} CI", confidence_label(o.alpha));
     RatioColumns { t, decimals, conf }
 }
 
@@ -298,15 +315,32 @@ fn ratio_decimals(t: Option<&Declared>, c: &crate::outcome::linear::Comparison) 
 }
 
 impl RatioColumns<'_> {
+    /// Whether the table gives ratios (and then leaves out the interval of
+    /// the difference on the analysis scale, which says the same).
+    pub fn shown(&self) -> bool {
+        self.t.is_some()
+    }
+
+    /// What the ratio columns hold.
+    pub fn footnote(&self) -> Option<String> {
+        let t = self.t?;
+        let what = match t.transform {
+            Transform::Logit => "the odds of the first level over those of the second",
+            _ => "the first level's geometric mean over the second's",
+        };
+        Some(format!(
+            "Differences and SEs are on the {} scale. A {} is the difference taken back ({what}), and its interval is the procedure's interval taken back the same way.",
+            t.scale(),
+            t.ratio_name().unwrap_or("ratio")
+        ))
+    }
+
     pub fn columns(&self) -> Vec<Column> {
         let Some(t) = self.t else {
             return Vec::new();
         };
         let name = capitalised(t.ratio_name().unwrap_or("ratio"));
-        vec![
-            col(name.clone(), true),
-            col(format!("{name}, {}", self.conf), true),
-        ]
+        vec![col(name, true), col(self.conf.clone(), true)]
     }
 
     pub fn cells(
