@@ -231,6 +231,24 @@ mod contract {
         pub se: Vec<Option<f64>>,
         pub ms: Option<f64>,
         pub df: f64,
+        /// Quadratic curves only.
+        #[serde(default, deserialize_with = "present")]
+        pub optimum: Option<TrendOptimum>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TrendOptimum {
+        #[serde(deserialize_with = "nullable")]
+        pub x: Option<f64>,
+        pub kind: String,
+        pub within_range: bool,
+        pub level: f64,
+        pub set: String,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
     }
 
     /// README: "Blocks with `covariate` add `covariates` …".

@@ -142,3 +142,30 @@ fn scores_can_be_given_and_bad_ones_are_refused() {
         build(&doc("trend: group = ctrl 0, trt1 1"), &[("p.csv", plants)]).expect_err("missing");
     assert!(e.contains("no value for the level `trt2`"), "{e}");
 }
+
+/// An invented nutrient series (tests/data/invented/nutrient.csv, the demo's)
+/// with a significant quadratic: its maximum and the Fieller interval,
+/// against statsmodels `ols` of `y ~ x + I(x**2)` with `cov_params` and the
+/// scipy t quantile in the reference.
+#[test]
+fn a_significant_quadratic_locates_its_maximum_with_a_fieller_interval() {
+    let r = reference();
+    let want = &r["nutrient_quadratic"];
+    let text = std::fs::read_to_string(format!(
+        "{}/tests/data/invented/nutrient.csv",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .expect("data");
+    let doc = "# N\n\n```anova\nid: n\ndata: n.csv\nmodel: fresh_weight_g ~ strength_pct\ntrend: strength_pct\n```\n";
+    let results = build(doc, &[("n.csv", text)]).expect("builds");
+    let t = &results["blocks"][0]["trend"];
+    assert_eq!(t["degree"], 2);
+    let o = &t["curve"]["optimum"];
+    assert_eq!(o["kind"], "maximum");
+    assert_eq!(o["set"], "bounded");
+    assert_eq!(o["within_range"], true);
+    close(&o["x"], &want["x_star"], "x*");
+    close(&o["lower"], &want["fieller_limits"][0], "Fieller lower");
+    close(&o["upper"], &want["fieller_limits"][1], "Fieller upper");
+    close(&t["curve"]["coefficients"][2], &want["b2"], "b2");
+}

@@ -12,7 +12,7 @@ use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::doc::block::AnovaSpec;
 use crate::doc::block_trend::TrendSpec;
-use crate::outcome::trend::{TrendCurve, TrendDetail, TrendRow, TrendVerdict};
+use crate::outcome::trend::{FiellerSet, Optimum, TrendCurve, TrendDetail, TrendRow, TrendVerdict};
 use crate::stats::dist::f_sf;
 use crate::stats::sum::neumaier;
 
@@ -185,7 +185,7 @@ pub(crate) fn trend(
     };
     detail.verdict = verdict(&detail, alpha);
     if let (TrendVerdict::Degree(d), Some(n)) = (detail.verdict, n) {
-        detail.curve = Some(curve(&detail, m, n, (centre, half), d));
+        detail.curve = Some(curve(&detail, m, n, (centre, half), d, 1.0 - alpha));
     }
     Ok(Some(detail))
 }
@@ -236,6 +236,7 @@ fn curve(
     n: &[usize],
     (centre, half): (f64, f64),
     d: usize,
+    level: f64,
 ) -> TrendCurve {
     let u: Vec<f64> = t.scores.iter().map(|(_, x)| (x - centre) / half).collect();
     let cols = d + 1;
@@ -276,16 +277,60 @@ fn curve(
         .iter()
         .map(|r| neumaier(r.iter().zip(&beta).map(|(a, b)| a * b)))
         .collect();
-    let se = transform
-        .iter()
-        .map(|r| (ms * dot(r, &inv, r)).sqrt())
+    let covariance: Vec<Vec<f64>> = (transform.iter())
+        .map(|a| transform.iter().map(|b| ms * dot(a, &inv, b)).collect())
         .collect();
+    let se = (0..cols).map(|i| covariance[i][i].sqrt()).collect();
+    let tested = t.scores.iter().map(|s| s.1);
+    let range = (
+        tested.clone().fold(f64::INFINITY, f64::min),
+        tested.fold(f64::NEG_INFINITY, f64::max),
+    );
+    let optimum = (d == 2).then(|| optimum(&coefficients, &covariance, df, level, range));
     TrendCurve {
         degree: d,
         coefficients,
         se,
         ms,
         df,
+        optimum,
+    }
+}
+
+/// The quadratic's turning point and its Fieller set at `level`: the x
+/// where (b₁ + 2b₂x)² − t²(v₁₁ + 4xv₁₂ + 4x²v₂₂) ≤ 0, a quadratic in x.
+fn optimum(b: &[f64], v: &[Vec<f64>], df: f64, level: f64, (low, high): (f64, f64)) -> Optimum {
+    let (b1, b2) = (b[1], b[2]);
+    let x = -b1 / (2.0 * b2);
+    let t2 = crate::stats::dist::t_isf((1.0 - level) / 2.0, df).powi(2);
+    let qa = 4.0 * (b2 * b2 - t2 * v[2][2]);
+    let qb = 4.0 * (b1 * b2 - t2 * v[1][2]);
+    let qc = b1 * b1 - t2 * v[1][1];
+    let disc = qb * qb - 4.0 * qa * qc;
+    let roots = || {
+        let r = disc.sqrt();
+        // The root without cancellation first, the other from their product.
+        let q = -0.5 * (qb + qb.signum() * r);
+        let (x1, x2) = (q / qa, qc / q);
+        (x1.min(x2), x1.max(x2))
+    };
+    let set = match (qa > 0.0, disc > 0.0) {
+        (true, true) => {
+            let (l, u) = roots();
+            FiellerSet::Bounded(l, u)
+        }
+        (false, true) => {
+            let (l, u) = roots();
+            FiellerSet::TwoHalfLines(l, u)
+        }
+        _ => FiellerSet::WholeLine,
+    };
+    Optimum {
+        x,
+        maximum: b2 < 0.0,
+        set,
+        level,
+        within_range: (low..=high).contains(&x),
     }
 }
 

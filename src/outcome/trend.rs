@@ -36,6 +36,33 @@ pub struct TrendCurve {
     /// pooled with pure error) and its df.
     pub ms: f64,
     pub df: f64,
+    /// A quadratic's turning point with its Fieller set.
+    #[serde(default)]
+    pub optimum: Option<Optimum>,
+}
+
+/// The turning point x* = −b₁/(2b₂) of a fitted quadratic, with its
+/// Fieller (1954) set {x : (b₁ + 2b₂x)² ≤ t² var(b₁ + 2b₂x)}.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Optimum {
+    pub x: f64,
+    /// A maximum (b₂ < 0) or a minimum.
+    pub maximum: bool,
+    pub set: FiellerSet,
+    /// The confidence level of the set.
+    pub level: f64,
+    /// Whether x* lies within the tested values.
+    pub within_range: bool,
+}
+
+/// The shape of a Fieller set: an interval only when the quadratic term is
+/// clearly non-zero; otherwise the data do not locate the turning point.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+pub enum FiellerSet {
+    Bounded(f64, f64),
+    /// Everything below the first value and above the second.
+    TwoHalfLines(f64, f64),
+    WholeLine,
 }
 
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]

@@ -1,7 +1,9 @@
 //! The results-file record of a block's polynomial trend.
 
 use super::finite;
-use crate::outcome::trend::{TrendDetail, TrendRow, TrendVerdict, degree_name};
+use crate::outcome::trend::{
+    FiellerSet, Optimum, TrendDetail, TrendRow, TrendVerdict, degree_name,
+};
 use serde::Serialize;
 
 #[derive(Serialize)]
@@ -53,6 +55,40 @@ pub struct CurveRecord {
     pub se: Vec<Option<f64>>,
     pub ms: Option<f64>,
     pub df: f64,
+    /// A quadratic's turning point.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub optimum: Option<OptimumRecord>,
+}
+
+#[derive(Serialize)]
+pub struct OptimumRecord {
+    pub x: Option<f64>,
+    /// "maximum" or "minimum".
+    pub kind: &'static str,
+    pub within_range: bool,
+    pub level: f64,
+    /// "bounded" (`lower` to `upper`), "two_half_lines" (below `lower` and
+    /// above `upper`) or "whole_line" (both null).
+    pub set: &'static str,
+    pub lower: Option<f64>,
+    pub upper: Option<f64>,
+}
+
+fn optimum_record(o: &Optimum) -> OptimumRecord {
+    let (set, lower, upper) = match o.set {
+        FiellerSet::Bounded(l, u) => ("bounded", finite(l), finite(u)),
+        FiellerSet::TwoHalfLines(l, u) => ("two_half_lines", finite(l), finite(u)),
+        FiellerSet::WholeLine => ("whole_line", None, None),
+    };
+    OptimumRecord {
+        x: finite(o.x),
+        kind: if o.maximum { "maximum" } else { "minimum" },
+        within_range: o.within_range,
+        level: o.level,
+        set,
+        lower,
+        upper,
+    }
 }
 
 fn row(r: &TrendRow, term: String) -> RowRecord {
@@ -106,6 +142,7 @@ pub fn trend_record(t: &TrendDetail) -> TrendRecord {
             se: c.se.iter().map(|&v| finite(v)).collect(),
             ms: finite(c.ms),
             df: c.df,
+            optimum: c.optimum.as_ref().map(optimum_record),
         }),
     }
 }

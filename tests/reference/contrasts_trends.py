@@ -418,9 +418,9 @@ def fitted_line(data, mse_pe, nu_pe):
     }
 
 
-def quadratic_stationary_point(data):
+def quadratic_stationary_point(data, y="dryweight", x="conc", note=None):
     """x* = -b1/(2 b2) and its Fieller set {x: (b1 + 2 b2 x)^2 <= t^2 var(b1 + 2 b2 x)}."""
-    fit = smf.ols("dryweight ~ conc + I(conc**2)", data=data).fit()
+    fit = smf.ols(f"{y} ~ {x} + I({x}**2)", data=data).fit()
     b1, b2 = fit.params.iloc[1], fit.params.iloc[2]
     v = fit.cov_params().to_numpy()
     v11, v12, v22 = v[1, 1], v[1, 2], v[2, 2]
@@ -438,7 +438,7 @@ def quadratic_stationary_point(data):
         kind = "whole line (unbounded)" if qa < 0 else "empty"
         limits = []
     return {
-        "note": "not in the spec; quadratic not significant, so sheaf would not print it",
+        "note": note or "not in the spec; quadratic not significant, so sheaf would not print it",
         "b1": checked(b1), "b2": checked(b2), "b2_t": checked(b2 / math.sqrt(v22)),
         "b2_p": checked(fit.pvalues.iloc[2]), "df": int(fit.df_resid),
         "x_star": checked(-b1 / (2 * b2)), "fieller_kind": kind,
@@ -484,7 +484,11 @@ def promelas():
     return {"data": "tests/data/open/P.promelas.csv", "trend": trend,
             "fitted_line": fitted_line(data, mse, nu),
             "quadratic_stationary_point": quadratic_stationary_point(data),
-            "unequal_replication": unequal_replication()}
+            "unequal_replication": unequal_replication(),
+            "nutrient_quadratic": quadratic_stationary_point(
+                read("invented", "nutrient.csv"), "fresh_weight_g", "strength_pct",
+                "invented tests/data/invented/nutrient.csv (the demo's nutrient series); "
+                "significant quadratic, bounded Fieller interval")}
 
 
 def main():

@@ -27,6 +27,17 @@ pub(super) struct CurveContext {
     se: Vec<f64>,
     ms: f64,
     df: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    optimum: Option<OptimumContext>,
+}
+
+/// `trend.curve.optimum`: `x`, and the Fieller limits `lower` and `upper`
+/// (null when the set is not an interval).
+#[derive(Serialize)]
+pub(super) struct OptimumContext {
+    x: f64,
+    lower: Option<f64>,
+    upper: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -73,6 +84,17 @@ pub(super) fn trend_context(o: &LinearOutcome) -> Option<TrendContext> {
             se: c.se.clone(),
             ms: c.ms,
             df: c.df,
+            optimum: c.optimum.as_ref().map(|o| {
+                let (lower, upper) = match o.set {
+                    crate::outcome::trend::FiellerSet::Bounded(l, u) => (Some(l), Some(u)),
+                    _ => (None, None),
+                };
+                OptimumContext {
+                    x: o.x,
+                    lower,
+                    upper,
+                }
+            }),
         }),
     })
 }

@@ -133,8 +133,12 @@ fn verdict_note(o: &LinearOutcome, t: &TrendDetail) -> String {
                     format!("{}{power} (SE {})", significant(*b, 6), significant(*se, 3))
                 })
                 .collect();
+            let optimum = c
+                .optimum
+                .as_ref()
+                .map_or(String::new(), |p| optimum_sentence(p, &x));
             format!(
-                "{rule} It chose the {} trend: fitted {} = {}, with the regression's residual mean square {} ({} df, lack of fit pooled with pure error), within the tested range {} to {} only.",
+                "{rule} It chose the {} trend: fitted {} = {}, with the regression's residual mean square {} ({} df, lack of fit pooled with pure error), within the tested range {} to {} only.{optimum}",
                 degree_name(d),
                 super::measure(o),
                 crate::format::typographic_minus(&terms.join(" + ").replace("+ -", "− ")),
@@ -147,5 +151,34 @@ fn verdict_note(o: &LinearOutcome, t: &TrendDetail) -> String {
                     .fold(f64::NEG_INFINITY, f64::max),
             )
         }
+    }
+}
+
+/// The quadratic's turning point with its Fieller set, in words; a set
+/// that is not an interval says that the data do not locate the point.
+fn optimum_sentence(p: &crate::outcome::trend::Optimum, x: &str) -> String {
+    use crate::outcome::trend::FiellerSet;
+    let kind = if p.maximum { "maximum" } else { "minimum" };
+    let level = crate::format::confidence_label(1.0 - p.level);
+    let at = significant(p.x, 4);
+    let range = if p.within_range {
+        ""
+    } else {
+        " It lies outside the tested values: an extrapolation, not a finding."
+    };
+    match p.set {
+        FiellerSet::Bounded(l, u) => format!(
+            " The fitted curve has its {kind} at {x} = {at} ({level} Fieller interval {} to {}).{range}",
+            significant(l, 4),
+            significant(u, 4)
+        ),
+        FiellerSet::TwoHalfLines(l, u) => format!(
+            " The fitted curve has its {kind} at {x} = {at}, but its {level} Fieller set is unbounded (below {} and above {}): the data do not locate it.",
+            significant(l, 4),
+            significant(u, 4)
+        ),
+        FiellerSet::WholeLine => format!(
+            " The fitted curve has its {kind} at {x} = {at}, but its {level} Fieller set is the whole line: the data do not locate it."
+        ),
     }
 }
