@@ -368,6 +368,11 @@ pub fn draw_all(results: &[BlockResult]) -> Vec<Vec<Figure>> {
         .map(|r| match r {
             BlockResult::Power(p) => plots::power_figures(p, &mut number),
             BlockResult::Linear(o) => linear::linear_figures(o, &mut number),
+            BlockResult::Traits(t) => t
+                .traits
+                .iter()
+                .flat_map(|t| linear::linear_figures(&t.outcome, &mut number))
+                .collect(),
         })
         .collect()
 }

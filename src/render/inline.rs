@@ -38,6 +38,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod names;
+mod traits;
 mod trend;
 
 /// Degrees of freedom as prose reads them: whole numbers stay integers, a
@@ -754,6 +755,7 @@ fn context(results: &[BlockResult]) -> Value {
         .map(|r| match r {
             BlockResult::Linear(o) => (o.id.clone(), linear(o)),
             BlockResult::Power(p) => (p.id.clone(), to_value(power_context(p))),
+            BlockResult::Traits(t) => (t.id.clone(), traits::traits_context(t, linear)),
         })
         .collect();
     to_value(&ctx)
