@@ -37,6 +37,12 @@ pub fn trait_id(block: &str, response: &str) -> String {
     format!("{block}.traits.{response}")
 }
 
+/// What a trait's figure ids start with, followed by `-`: `weights-Prewt`
+/// (no dots, which LaTeX file names would need escaped).
+pub fn figure_stem(block: &str, response: &str) -> String {
+    format!("{block}-{response}")
+}
+
 /// The conventional significance marks of an F test's p-value.
 pub fn mark(p: f64) -> Option<&'static str> {
     if !p.is_finite() {

@@ -135,7 +135,7 @@ impl<'a> Report<'a> {
             if v.parts.is_empty() {
                 v.figures = figure_views.collect();
             } else {
-                // A part's figures carry its id first (`growth.traits.yield-box`).
+                // A part's figures carry its id first (`growth-yield-box`).
                 for f in figure_views {
                     let part = v.parts.iter_mut().find(|p| {
                         f.id.strip_prefix(p.id.as_str())

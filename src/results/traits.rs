@@ -4,7 +4,7 @@
 
 use super::{BlockRecord, FigureRecord, block_record, finite};
 use crate::outcome::precision::sed;
-use crate::outcome::traits::{Trait, TraitsOutcome, mark};
+use crate::outcome::traits::{Trait, TraitsOutcome, figure_stem, mark};
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -75,7 +75,7 @@ pub struct TraitColumnRecord {
 }
 
 /// The block's record; `figures` gives each trait's figure records by the
-/// trait's outcome id.
+/// stem their ids start with (`figure_stem`).
 pub fn traits_record(
     t: &TraitsOutcome,
     figures: impl Fn(&str) -> Vec<FigureRecord>,
@@ -97,7 +97,7 @@ pub fn traits_record(
             .map(|x| {
                 let mut rec = block_record(&x.outcome);
                 rec.head.id = x.response.clone();
-                rec.figures = figures(&x.outcome.id);
+                rec.figures = figures(&figure_stem(&t.id, &x.response));
                 rec
             })
             .collect(),

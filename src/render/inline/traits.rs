@@ -3,6 +3,7 @@
 //! the trait table's own numbers under `trait_table.<response>`.
 
 use crate::outcome::linear::LinearOutcome;
+use crate::outcome::precision::{Sed, sed};
 use crate::outcome::traits::{TraitsOutcome, mark};
 use minijinja::value::Value;
 use serde::Serialize;
@@ -20,6 +21,12 @@ struct ColumnContext {
     minimum: f64,
     /// Each tested term's mark: `ns`, `*`, `**` or `***`.
     marks: BTreeMap<String, &'static str>,
+    /// Per compared factor: the SED and LSD (null under unequal
+    /// replication), and their `[smallest, largest]`.
+    sed: BTreeMap<String, Option<f64>>,
+    lsd: BTreeMap<String, Option<f64>>,
+    sed_range: BTreeMap<String, [f64; 2]>,
+    lsd_range: BTreeMap<String, [f64; 2]>,
     residual_df: f64,
 }
 
@@ -42,7 +49,29 @@ pub(super) fn traits_context(t: &TraitsOutcome, linear: impl Fn(&LinearOutcome) 
         .traits
         .iter()
         .map(|x| {
+            let seds: Vec<(String, Sed)> = x
+                .row_families()
+                .into_iter()
+                .filter_map(|f| Some((f.term.clone(), sed(f.comparison.as_ref()?)?)))
+                .collect();
+            let single = |s: &Sed, v: f64| s.single().then_some(v);
             let column = ColumnContext {
+                sed: seds
+                    .iter()
+                    .map(|(f, s)| (f.clone(), single(s, s.min)))
+                    .collect(),
+                lsd: seds
+                    .iter()
+                    .map(|(f, s)| (f.clone(), single(s, s.lsd_min)))
+                    .collect(),
+                sed_range: seds
+                    .iter()
+                    .map(|(f, s)| (f.clone(), [s.min, s.max]))
+                    .collect(),
+                lsd_range: seds
+                    .iter()
+                    .map(|(f, s)| (f.clone(), [s.lsd_min, s.lsd_max]))
+                    .collect(),
                 grand_mean: x.outcome.grand_mean(),
                 cv: x.outcome.cv_percent(),
                 cv_shown: x.cv_meaningful(),

@@ -9,7 +9,7 @@ use super::{Numbering, caption, cell, col, join_words, linear_view, shown_term, 
 use crate::format::{alpha_text, df_text, fixed};
 use crate::outcome::linear::Role;
 use crate::outcome::precision::{Sed, sed};
-use crate::outcome::traits::{MARKS_LEGEND, Trait, TraitsOutcome, mark};
+use crate::outcome::traits::{MARKS_LEGEND, Trait, TraitsOutcome, figure_stem, mark};
 use crate::render::view::{BlockView, Cell, TableView};
 use crate::stats::compare::Method;
 
@@ -28,6 +28,8 @@ pub fn traits_view(t: &TraitsOutcome, next_table: &mut usize) -> BlockView {
                     .display(&x.response)
                     .to_string(),
             );
+            // The part's figures are found by the stem their ids start with.
+            part.id = figure_stem(&t.id, &x.response);
             part
         })
         .collect();
