@@ -394,3 +394,46 @@ fn a_row_missing_one_trait_is_dropped_for_that_trait_only() {
         68.0
     );
 }
+
+#[test]
+fn a_significant_interaction_marks_the_factor_rows() {
+    // Invented 2 × 2 data, three plots a cell: `height` crosses over
+    // (A raises it under B1 and lowers it under B2), `mass` is additive.
+    let mut csv = String::from("A,B,height,mass\n");
+    let cells = [
+        ("A1", "B1", 10.0, 5.0),
+        ("A2", "B1", 14.0, 6.0),
+        ("A1", "B2", 14.0, 7.0),
+        ("A2", "B2", 10.0, 8.0),
+    ];
+    for (a, b, h, m) in cells {
+        for e in [-0.5, 0.0, 0.5] {
+            csv.push_str(&format!("{a},{b},{},{}\n", h + e, m + e));
+        }
+    }
+    let doc =
+        "# I\n\n```anova\nid: ab\ndata: d.csv\nmodel: height, mass ~ A * B\ncompare: tukey\n```\n";
+    let (report, results) = build_report(doc, &[("d.csv", csv)]).expect("builds");
+    let columns = &results["blocks"][0]["trait_table"]["columns"];
+    assert_eq!(
+        columns["height"]["interactions"],
+        serde_json::json!(["A:B"])
+    );
+    assert_eq!(columns["mass"]["interactions"], serde_json::json!([]));
+    let table = report.split("**height**").next().expect("table first");
+    // Every height cell of the factor rows carries the mark; no mass cell does.
+    let marked: Vec<&str> = table
+        .lines()
+        .filter(|l| l.starts_with('|') && l.contains('†'))
+        .collect();
+    assert_eq!(marked.len(), 4, "{table}");
+    assert!(
+        marked.iter().all(|l| l.matches('†').count() == 1),
+        "{table}"
+    );
+    assert!(
+        table.contains("† For height, A × B is significant"),
+        "{table}"
+    );
+    assert!(!table.contains("For mass"), "{table}");
+}

@@ -13,7 +13,8 @@ use crate::outcome::traits::{MARKS_LEGEND, Trait, TraitsOutcome, figure_stem, ma
 use crate::render::view::{BlockView, Cell, TableView};
 use crate::stats::compare::Method;
 
-/// The block's view: the trait table, then one part per trait.
+/// The block's view: the trait table, then one part per trait (left out
+/// when `show: none` and `checks: none` leave a trait nothing to print).
 pub fn traits_view(t: &TraitsOutcome, next_table: &mut usize) -> BlockView {
     let table = trait_table(t, Numbering(next_table).next());
     let parts = t
@@ -21,16 +22,15 @@ pub fn traits_view(t: &TraitsOutcome, next_table: &mut usize) -> BlockView {
         .iter()
         .map(|x| {
             let mut part = linear_view(&x.outcome, next_table);
-            part.heading = Some(
-                x.outcome
-                    .presentation
-                    .plots
-                    .display(&x.response)
-                    .to_string(),
-            );
+            let plots = &x.outcome.presentation.plots;
+            part.heading = Some(plots.display(&x.response).to_string());
             // The part's figures are found by the stem their ids start with.
             part.id = figure_stem(&t.id, &x.response);
             part
+        })
+        .filter(|p| {
+            let figures = !t.traits.is_empty() && figures_asked(t);
+            !(p.tables.is_empty() && p.notes.is_empty() && p.warnings.is_empty() && !figures)
         })
         .collect();
     typeset(BlockView {
@@ -39,6 +39,13 @@ pub fn traits_view(t: &TraitsOutcome, next_table: &mut usize) -> BlockView {
         parts,
         ..BlockView::default()
     })
+}
+
+/// Whether the block draws figures (each trait gets its own).
+fn figures_asked(t: &TraitsOutcome) -> bool {
+    t.traits
+        .iter()
+        .any(|x| !x.outcome.presentation.plots.kinds.is_empty())
 }
 
 /// What every column's cells share: the block's factors, α and procedure.
