@@ -33,8 +33,14 @@ pub fn run_traits(
     let mut warnings = Vec::new();
     for response in &spec.model.value.responses {
         let t = one_trait(doc, block, spec, input, display_path, response)?;
-        let shown = spec.plots.display(response);
-        warnings.extend(t.outcome.warnings.iter().map(|w| format!("{shown}: {w}")));
+        // The column's name, not its display name: `names` is a
+        // presentation key, and a cached outcome keeps these words.
+        warnings.extend(
+            t.outcome
+                .warnings
+                .iter()
+                .map(|w| format!("{response}: {w}")),
+        );
         traits.push(t);
     }
     Ok(TraitsOutcome {

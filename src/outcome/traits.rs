@@ -27,7 +27,7 @@ pub struct TraitsOutcome {
     pub traits: Vec<Trait>,
     /// The block's `caption`, for the trait table.
     pub caption: Option<String>,
-    /// Every trait's warnings, each opened by the trait's name.
+    /// Every trait's warnings, each opened by the trait's column name.
     pub warnings: Vec<String>,
 }
 
