@@ -17,6 +17,7 @@ use crate::stats::compare::Method;
 /// when `show: none` and `checks: none` leave a trait nothing to print).
 pub fn traits_view(t: &TraitsOutcome, next_table: &mut usize) -> BlockView {
     let table = trait_table(t, Numbering(next_table).next());
+    let figures = figures_asked(t);
     let parts = t
         .traits
         .iter()
@@ -29,8 +30,7 @@ pub fn traits_view(t: &TraitsOutcome, next_table: &mut usize) -> BlockView {
             part
         })
         .filter(|p| {
-            let figures = !t.traits.is_empty() && figures_asked(t);
-            !(p.tables.is_empty() && p.notes.is_empty() && p.warnings.is_empty() && !figures)
+            figures || !(p.tables.is_empty() && p.notes.is_empty() && p.warnings.is_empty())
         })
         .collect();
     typeset(BlockView {
