@@ -7,6 +7,7 @@
 //! - `one_way`: one factor, from raw observations or published summaries;
 //! - `factorial`: factorial, block and Latin-square designs (linear model);
 //! - `power`: the `power` block, which reads no data;
+//! - `traits`: several responses, each through its engine;
 //! - `request`: what an engine receives and returns, and which engine a
 //!   model goes to;
 //! - shared by the engines: `checks` (assumption checks and their advice),
@@ -25,6 +26,7 @@ mod observed;
 mod one_way;
 mod power;
 mod request;
+mod traits;
 mod transformation;
 mod trend;
 
@@ -34,6 +36,7 @@ pub use notes::{Note, NoteKind};
 pub use one_way::RoundingRange;
 pub use power::run_power;
 pub use request::{Analysis, Request, run_linear, run_on_csv};
+pub use traits::{represent, run_traits, trait_spec};
 
 /// Above this many levels pairwise comparisons are skipped with a warning
 /// (200 levels are 19,900 pairs, each with its own studentized-range tail).

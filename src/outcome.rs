@@ -12,6 +12,7 @@ mod power;
 pub mod precision;
 pub mod procedure_note;
 pub mod repeated;
+pub mod traits;
 pub mod transform;
 pub mod trend;
 
@@ -25,6 +26,8 @@ pub enum BlockResult {
     /// Every linear analysis, whatever its engine.
     Linear(Box<linear::LinearOutcome>),
     Power(PowerResult),
+    /// Several responses, each analysed as its own linear model.
+    Traits(Box<traits::TraitsOutcome>),
 }
 
 impl BlockResult {
@@ -32,6 +35,7 @@ impl BlockResult {
         match self {
             BlockResult::Linear(r) => &r.id,
             BlockResult::Power(r) => &r.id,
+            BlockResult::Traits(r) => &r.id,
         }
     }
 
@@ -39,6 +43,7 @@ impl BlockResult {
         match self {
             BlockResult::Linear(r) => r.line,
             BlockResult::Power(r) => r.line,
+            BlockResult::Traits(r) => r.line,
         }
     }
 
@@ -47,6 +52,12 @@ impl BlockResult {
         match self {
             BlockResult::Linear(r) => r.line = line,
             BlockResult::Power(r) => r.line = line,
+            BlockResult::Traits(r) => {
+                r.line = line;
+                for t in &mut r.traits {
+                    t.outcome.line = line;
+                }
+            }
         }
     }
 
@@ -54,7 +65,16 @@ impl BlockResult {
     pub fn linear(&self) -> Option<&linear::LinearOutcome> {
         match self {
             BlockResult::Linear(r) => Some(r),
-            BlockResult::Power(_) => None,
+            BlockResult::Power(_) | BlockResult::Traits(_) => None,
+        }
+    }
+
+    /// Every linear analysis of the block: its own, or one per trait.
+    pub fn linear_outcomes(&self) -> Vec<&linear::LinearOutcome> {
+        match self {
+            BlockResult::Linear(r) => vec![r],
+            BlockResult::Power(_) => Vec::new(),
+            BlockResult::Traits(r) => r.traits.iter().map(|t| &t.outcome).collect(),
         }
     }
 
@@ -62,6 +82,7 @@ impl BlockResult {
         match self {
             BlockResult::Linear(r) => &r.warnings,
             BlockResult::Power(r) => &r.warnings,
+            BlockResult::Traits(r) => &r.warnings,
         }
     }
 }
@@ -69,5 +90,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 12;
+    const SCHEMA: u32 = 13;
 }

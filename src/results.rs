@@ -10,6 +10,7 @@ mod contrasts;
 mod covariates;
 mod mixed;
 mod repeated;
+mod traits;
 mod transform;
 mod trend;
 
@@ -51,6 +52,7 @@ pub struct ResultsFile {
 pub enum BlockEntry {
     Anova(Box<BlockRecord>),
     Power(Box<PowerRecord>),
+    Traits(Box<traits::TraitsRecord>),
 }
 
 #[derive(Serialize)]
@@ -807,6 +809,23 @@ pub fn results_json(
                     let mut rec = power_record(r);
                     rec.figures = figure_records(i);
                     BlockEntry::Power(Box::new(rec))
+                }
+                BlockResult::Traits(t) => {
+                    // Each trait's figures carry its outcome's id first.
+                    let all = figure_records(i);
+                    let of_trait = |id: &str| -> Vec<FigureRecord> {
+                        let prefix = format!("{id}-");
+                        all.iter()
+                            .filter(|f| f.id.starts_with(&prefix))
+                            .map(|f| FigureRecord {
+                                id: f.id.clone(),
+                                kind: f.kind,
+                                file: f.file.clone(),
+                                sha256: f.sha256.clone(),
+                            })
+                            .collect()
+                    };
+                    BlockEntry::Traits(Box::new(traits::traits_record(t, of_trait)))
                 }
             })
             .collect(),

@@ -53,6 +53,74 @@ mod contract {
     pub enum Block {
         Anova(Box<AnovaBlock>),
         Power(Box<PowerBlock>),
+        Traits(Box<TraitsBlock>),
+    }
+
+    /// A block with several responses: one `anova` record per trait (its `id` the response)
+    /// and the trait table's numbers.
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TraitsBlock {
+        pub id: String,
+        pub line: u64,
+        pub data: String,
+        pub responses: Vec<String>,
+        pub factors: Vec<String>,
+        pub alpha: f64,
+        pub traits: Vec<Block>,
+        pub trait_table: TraitTable,
+        pub figures: Vec<Figure>,
+        pub warnings: Vec<String>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TraitTable {
+        #[serde(deserialize_with = "nullable")]
+        pub procedure: Option<String>,
+        pub factors: Vec<TraitTableFactor>,
+        pub columns: BTreeMap<String, TraitColumn>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TraitTableFactor {
+        pub term: String,
+        pub rows: Vec<TraitTableRow>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TraitTableRow {
+        pub level: String,
+        pub cells: BTreeMap<String, TraitTableCell>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TraitTableCell {
+        pub n: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub mean: Option<f64>,
+        pub letters: String,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct TraitColumn {
+        #[serde(deserialize_with = "nullable")]
+        pub grand_mean: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub minimum: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub cv_percent: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub cv_computed: Option<f64>,
+        pub sed: BTreeMap<String, [f64; 2]>,
+        pub lsd: BTreeMap<String, [f64; 2]>,
+        pub marks: BTreeMap<String, String>,
+        pub interactions: Vec<String>,
+        pub residual_df: f64,
     }
 
     /// One-factor and factorial `anova` blocks share a kind; factorial ones add `ss_type` and
@@ -1198,9 +1266,92 @@ fn check_file(case: &Path, format: Format, r: &ResultsFile, name: &str) -> Vec<S
                 check_power(&mut p, &at, b);
                 check_figures(&mut p, &at, &b.id, &b.figures, format, stem, &expected);
             }
+            Block::Traits(b) => {
+                let at = format!("blocks[{i}] (id `{}`)", b.id);
+                check_traits(&mut p, &at, b);
+                for (j, t) in b.traits.iter().enumerate() {
+                    let Block::Anova(t) = t else { continue };
+                    let at = format!("{at}.traits[{j}] (id `{}`)", t.id);
+                    check_anova(&mut p, &at, t);
+                    let figure_stem = format!("{}-{}", b.id, t.id);
+                    check_figures(
+                        &mut p,
+                        &at,
+                        &figure_stem,
+                        &t.figures,
+                        format,
+                        stem,
+                        &expected,
+                    );
+                }
+            }
         }
     }
     p.list
+}
+
+/// README: each trait is an `anova` record whose `id` is its response, in the order of
+/// `responses`; a column per response, its `cv_percent` null exactly when the trait has a
+/// value ≤ 0 and else equal to `cv_computed`; LSD above SED (t > 1 at usual α); marks among
+/// `ns`, `*`, `**`, `***`; the block's own `figures` empty.
+fn check_traits(p: &mut Problems, at: &str, b: &TraitsBlock) {
+    let ids: Vec<&str> = b
+        .traits
+        .iter()
+        .map(|t| match t {
+            Block::Anova(a) => a.id.as_str(),
+            _ => "",
+        })
+        .collect();
+    p.require(
+        ids == b.responses.iter().map(String::as_str).collect::<Vec<_>>(),
+        at,
+        "traits are not anova records named by `responses`, in order",
+    );
+    p.require(b.responses.len() >= 2, at, "fewer than two responses");
+    p.require(
+        b.figures.is_empty(),
+        at,
+        "the block's own figures are not empty",
+    );
+    let table = &b.trait_table;
+    p.require(
+        table.columns.keys().count() == b.responses.len()
+            && b.responses.iter().all(|r| table.columns.contains_key(r)),
+        at,
+        "trait_table.columns is not one per response",
+    );
+    for (name, c) in &table.columns {
+        let at = format!("{at}.trait_table.columns.{name}");
+        let positive = c.minimum.is_none_or(|m| m > 0.0);
+        p.require(
+            (c.cv_percent.is_some() == positive) && (!positive || c.cv_percent == c.cv_computed),
+            &at,
+            "cv_percent is not cv_computed for a positive trait, null otherwise",
+        );
+        for (factor, sed) in &c.sed {
+            let lsd = c.lsd.get(factor);
+            p.require(
+                sed[0] <= sed[1] && lsd.is_some_and(|l| l[0] > sed[0] && l[1] > sed[1]),
+                &at,
+                format!("SED and LSD of `{factor}` out of order"),
+            );
+        }
+        p.require(
+            c.marks
+                .values()
+                .all(|m| ["ns", "*", "**", "***"].contains(&m.as_str())),
+            &at,
+            "a mark outside ns, *, **, ***",
+        );
+    }
+    for f in &table.factors {
+        p.require(
+            b.factors.contains(&f.term),
+            at,
+            format!("trait_table factor `{}` is not a factor", f.term),
+        );
+    }
 }
 
 /// README: `complete_subjects` of `subjects`, the others counted in

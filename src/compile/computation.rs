@@ -1,7 +1,9 @@
 //! The data and engine steps of a build: each block's data read (or
 //! streamed past), hashed, looked up in the cache, and computed by its engine.
 
-use crate::analysis::{Data, Request, presentation, reads_csv_rows, run_linear, run_power};
+use crate::analysis::{
+    Data, Request, presentation, reads_csv_rows, represent, run_linear, run_power, run_traits,
+};
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
 use crate::doc::{Block, BlockSpec, Document};
@@ -66,7 +68,8 @@ impl Computation {
     ) -> Result<(), Diagnostic> {
         let input_hash = match &block.spec {
             BlockSpec::Anova(spec) => {
-                if self.streamed_past(doc, world, block, spec)? {
+                // Several responses read the file once, whole, for every trait.
+                if !spec.model.value.several() && self.streamed_past(doc, world, block, spec)? {
                     return Ok(());
                 }
                 self.load(doc, world, spec)?
@@ -80,10 +83,14 @@ impl Computation {
             .and_then(|entry| crate::cache::open::<BlockResult>(&key, &entry))
         {
             cached.set_line(block.line);
-            if let (BlockResult::Linear(o), BlockSpec::Anova(spec)) = (&mut cached, &block.spec) {
-                // The key leaves out presentation-only keys: apply them as
-                // the block now reads.
-                o.presentation = presentation(spec, o.presentation.decimals);
+            // The key leaves out presentation-only keys: apply them as the
+            // block now reads.
+            match (&mut cached, &block.spec) {
+                (BlockResult::Linear(o), BlockSpec::Anova(spec)) => {
+                    o.presentation = presentation(spec, o.presentation.decimals);
+                }
+                (BlockResult::Traits(o), BlockSpec::Anova(spec)) => represent(o, spec),
+                _ => {}
             }
             self.results.push(cached);
             return Ok(());
@@ -103,8 +110,13 @@ impl Computation {
                     .iter()
                     .find(|i| &i.path == path)
                     .ok_or_else(|| Diagnostic::new("internal error: input vanished"))?;
-                let data = Data::Loaded(input);
-                run_engine(doc, block, spec, data, &world.display(path))?.0
+                if spec.model.value.several() {
+                    let traits = run_traits(doc, block, spec, input, &world.display(path))?;
+                    BlockResult::Traits(Box::new(traits))
+                } else {
+                    let data = Data::Loaded(input);
+                    run_engine(doc, block, spec, data, &world.display(path))?.0
+                }
             }
         };
         self.recomputed += 1;

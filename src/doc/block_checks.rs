@@ -251,7 +251,10 @@ fn display_names(
             ));
         };
         let from = from.trim();
-        let columns: Vec<&str> = std::iter::once(formula.response.as_str())
+        let columns: Vec<&str> = formula
+            .responses
+            .iter()
+            .map(String::as_str)
             .chain(formula.factors())
             .chain(random.iter().copied())
             .collect();
@@ -308,6 +311,7 @@ pub(super) fn resolve(
     errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
     errors.extend(super::block_random::random_keys(&d, &model.value, method));
+    errors.extend(super::block_traits::traits_keys(&d, &model));
     if !errors.is_empty() {
         return Err(errors);
     }

@@ -13,7 +13,11 @@ pub const MAX_CROSSED: usize = 6;
 /// A parsed model: the response and its terms in model order.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Formula {
+    /// The first (usually only) response.
     pub response: String,
+    /// Every response named left of `~` (`yield, height ~ variety`), in
+    /// order; one entry for an ordinary model.
+    pub responses: Vec<String>,
     pub terms: Vec<Term>,
 }
 
@@ -30,6 +34,20 @@ impl fmt::Display for Term {
 }
 
 impl Formula {
+    /// True when several responses (traits) share the model.
+    pub fn several(&self) -> bool {
+        self.responses.len() > 1
+    }
+
+    /// The same model for one of its responses alone.
+    pub fn for_response(&self, response: &str) -> Formula {
+        Formula {
+            response: response.to_string(),
+            responses: vec![response.to_string()],
+            terms: self.terms.clone(),
+        }
+    }
+
     /// Every factor named in any term, in order of first mention.
     pub fn factors(&self) -> Vec<&str> {
         let mut out: Vec<&str> = Vec::new();
@@ -59,6 +77,7 @@ enum Token {
     Plus,
     Colon,
     Star,
+    Comma,
 }
 
 fn tokenize(text: &str) -> Result<Vec<(usize, Token)>, FormulaError> {
@@ -83,6 +102,10 @@ fn tokenize(text: &str) -> Result<Vec<(usize, Token)>, FormulaError> {
             }
             '*' => {
                 out.push((i, Token::Star));
+                i += 1
+            }
+            ',' => {
+                out.push((i, Token::Comma));
                 i += 1
             }
             '`' => {
@@ -127,31 +150,16 @@ fn tokenize(text: &str) -> Result<Vec<(usize, Token)>, FormulaError> {
     Ok(out)
 }
 
-/// Parses a formula such as `weight ~ group` or `y ~ A * B`.
+/// Parses a formula such as `weight ~ group`, `y ~ A * B` or, with several
+/// responses analysed one by one, `yield, height ~ variety + block`.
 pub fn parse_formula(text: &str) -> Result<Formula, FormulaError> {
     let tokens = tokenize(text)?;
     let end = text.chars().count();
     let mut it = tokens.into_iter().peekable();
-    let Some((_, Token::Name(response))) = it.next() else {
-        return Err(FormulaError {
-            offset: 0,
-            message: "the model must start with the response column".into(),
-            hint: "write `response ~ factor`, for example `weight ~ group`".into(),
-        });
-    };
-    match it.next() {
-        Some((_, Token::Tilde)) => {}
-        other => {
-            return Err(FormulaError {
-                offset: other.map_or(end, |(at, _)| at),
-                message: "expected `~` after the response".into(),
-                hint: "write `response ~ factor`, for example `weight ~ group`".into(),
-            });
-        }
-    }
+    let responses = response_list(&mut it, end)?;
     let mut terms = term_list(&mut it, end)?;
-    for t in &terms {
-        if t.factors.contains(&response) {
+    for response in &responses {
+        if terms.iter().any(|t| t.factors.contains(response)) {
             return Err(FormulaError {
                 offset: 0,
                 message: format!("`{response}` is both the response and a factor"),
@@ -162,7 +170,55 @@ pub fn parse_formula(text: &str) -> Result<Formula, FormulaError> {
     }
     // Main effects first, then interactions by order, as in the usual tables.
     terms.sort_by_key(|t| t.factors.len());
-    Ok(Formula { response, terms })
+    Ok(Formula {
+        response: responses[0].clone(),
+        responses,
+        terms,
+    })
+}
+
+/// The responses before `~`: one name, or several joined by `,`, each once.
+fn response_list(
+    it: &mut std::iter::Peekable<std::vec::IntoIter<(usize, Token)>>,
+    end: usize,
+) -> Result<Vec<String>, FormulaError> {
+    let mut responses: Vec<String> = Vec::new();
+    loop {
+        let (at, name) = match it.next() {
+            Some((at, Token::Name(name))) => (at, name),
+            other => {
+                let first = responses.is_empty();
+                return Err(FormulaError {
+                    offset: other.map_or(end, |(at, _)| at),
+                    message: if first {
+                        "the model must start with the response column".into()
+                    } else {
+                        "expected a response column after `,`".into()
+                    },
+                    hint: "write `response ~ factor`, for example `weight ~ group`, or several responses joined by `,`".into(),
+                });
+            }
+        };
+        if responses.contains(&name) {
+            return Err(FormulaError {
+                offset: at,
+                message: format!("`{name}` is named twice as a response"),
+                hint: "name each response once".into(),
+            });
+        }
+        responses.push(name);
+        match it.next() {
+            Some((_, Token::Tilde)) => return Ok(responses),
+            Some((_, Token::Comma)) => continue,
+            other => {
+                return Err(FormulaError {
+                    offset: other.map_or(end, |(at, _)| at),
+                    message: "expected `~` after the response".into(),
+                    hint: "write `response ~ factor`, for example `weight ~ group`; join several responses with `,`".into(),
+                });
+            }
+        }
+    }
 }
 
 /// The terms after `~` (or of a `random` list): `+`-separated chunks, each

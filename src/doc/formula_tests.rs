@@ -40,3 +40,20 @@ fn errors_point_at_the_problem() {
     assert!(parse_formula("y ~ a + $").is_err());
     assert!(parse_formula("y ~ y").is_err());
 }
+
+#[test]
+fn several_responses_share_the_terms() {
+    let f = parse_formula("yield, height , `dry mass` ~ variety + block").expect("parses");
+    assert_eq!(f.responses, vec!["yield", "height", "dry mass"]);
+    assert_eq!(f.response, "yield");
+    assert!(f.several());
+    let one = f.for_response("height");
+    assert_eq!((one.response.as_str(), one.responses.len()), ("height", 1));
+    assert_eq!(one.terms, f.terms);
+    assert!(!parse_formula("y ~ a").expect("parses").several());
+    // Errors point at the place: a missing name after `,`, a repeated one,
+    // a comma among the terms.
+    assert_eq!(parse_formula("a, ~ g").unwrap_err().offset, 3);
+    assert_eq!(parse_formula("a, b, a ~ g").unwrap_err().offset, 6);
+    assert_eq!(parse_formula("a ~ g, h").unwrap_err().offset, 5);
+}

@@ -14,6 +14,7 @@ mod block_display;
 pub mod block_keys;
 mod block_random;
 mod block_rows;
+mod block_traits;
 pub mod block_transform;
 pub mod block_trend;
 pub mod formula;

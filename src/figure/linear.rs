@@ -19,13 +19,19 @@ use crate::outcome::linear::{Family, LinearOutcome};
 /// others adding `-<factor>`; without comparisons, for the first treatment
 /// factor. The model's figures (interaction, residuals, Q-Q) are drawn once.
 pub fn linear_figures(o: &LinearOutcome, number: &mut usize) -> Vec<Figure> {
+    linear_figures_named(o, &o.id, number)
+}
+
+/// As `linear_figures`, with the ids opened by `name` rather than the
+/// outcome's id (a trait of a several-response block: `weights-Prewt`).
+pub fn linear_figures_named(o: &LinearOutcome, name: &str, number: &mut usize) -> Vec<Figure> {
     let plotted = plotted_factors(o);
     if plotted.is_empty() {
         return Vec::new();
     }
     let mut out = Vec::new();
     for &kind in &o.presentation.plots.kinds {
-        let id = figure_id(&o.id, kind);
+        let id = figure_id(name, kind);
         let targets: Vec<(Option<usize>, String)> = match kind {
             PlotKind::Box | PlotKind::Strip | PlotKind::Means => plotted
                 .iter()

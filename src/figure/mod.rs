@@ -13,6 +13,7 @@ mod trend;
 
 use crate::escape::xml_escape;
 use crate::outcome::BlockResult;
+use crate::outcome::traits::figure_stem;
 use ab_glyph::{Font, FontRef, PxScale, ScaleFont};
 use std::fmt::Write as _;
 use std::sync::OnceLock;
@@ -368,6 +369,14 @@ pub fn draw_all(results: &[BlockResult]) -> Vec<Vec<Figure>> {
         .map(|r| match r {
             BlockResult::Power(p) => plots::power_figures(p, &mut number),
             BlockResult::Linear(o) => linear::linear_figures(o, &mut number),
+            BlockResult::Traits(t) => t
+                .traits
+                .iter()
+                .flat_map(|x| {
+                    let name = figure_stem(&t.id, &x.response);
+                    linear::linear_figures_named(&x.outcome, &name, &mut number)
+                })
+                .collect(),
         })
         .collect()
 }

@@ -48,18 +48,9 @@ pub fn sed(c: &Comparison) -> Option<Sed> {
 }
 
 impl LinearOutcome {
-    /// The residual SD as a percentage of the grand mean, for models with
-    /// one error (fixed effects); `None` with random terms, where each
-    /// stratum has its own, or when the mean is zero.
-    pub fn cv_percent(&self) -> Option<f64> {
-        // On a transformed scale the ratio of SD to mean has no meaning.
-        let transformed = self
-            .transform
-            .as_ref()
-            .is_some_and(|t| t.declared.is_some());
-        if self.mixed.is_some() || self.repeated.is_some() || transformed {
-            return None;
-        }
+    /// The mean of the observations analysed, from the level or cell means
+    /// and their counts; `None` without observations.
+    pub fn grand_mean(&self) -> Option<f64> {
         let (n, sum) = if self.levels.is_empty() {
             let present = self.cells.iter().filter(|c| c.n > 0);
             let n: usize = present.clone().map(|c| c.n).sum();
@@ -68,8 +59,20 @@ impl LinearOutcome {
             let n: usize = self.levels.iter().map(|l| l.n).sum();
             (n, neumaier(self.levels.iter().map(|l| l.n as f64 * l.mean)))
         };
-        let mean = sum / n as f64;
+        (n > 0).then(|| sum / n as f64)
+    }
+
+    /// The residual SD as a percentage of the grand mean, for models with
+    /// one error (fixed effects); `None` with random terms, where each
+    /// stratum has its own, or when the mean is zero.
+    pub fn cv_percent(&self) -> Option<f64> {
+        // On a transformed scale the ratio of SD to mean has no meaning.
+        let transformed = (self.transform.as_ref()).is_some_and(|t| t.declared.is_some());
+        if self.mixed.is_some() || self.repeated.is_some() || transformed {
+            return None;
+        }
+        let mean = self.grand_mean()?;
         let cv = 100.0 * self.residual().ms.sqrt() / mean.abs();
-        (n > 0 && cv.is_finite()).then_some(cv)
+        cv.is_finite().then_some(cv)
     }
 }

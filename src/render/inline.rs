@@ -38,6 +38,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod names;
+mod traits;
 mod transform;
 mod trend;
 
@@ -774,6 +775,7 @@ fn context(results: &[BlockResult]) -> Value {
         .map(|r| match r {
             BlockResult::Linear(o) => (o.id.clone(), linear(o)),
             BlockResult::Power(p) => (p.id.clone(), to_value(power_context(p))),
+            BlockResult::Traits(t) => (t.id.clone(), traits::traits_context(t, linear)),
         })
         .collect();
     to_value(&ctx)

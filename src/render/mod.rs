@@ -38,6 +38,10 @@ pub const CAUTIONS: [&str; 5] = [
 /// Printed after the standing cautions when a block has random terms.
 pub const RANDOM_TERMS_CAUTION: &str = "A random term treats its units (blocks, whole plots, animals, sites) as a sample from a larger population, with independent, normally distributed effects of one variance; with fewer than about five units that variance is poorly known. Which terms are random follows from the design, from how treatments were randomised to units, not from which model fits the data better.";
 
+/// Printed after the second standing caution when a block has several
+/// responses.
+pub const TRAITS_CAUTION: &str = "A block with several responses tests each trait on its own: the more traits, the more tests, and the more likely one of them is significant by chance. No adjustment across traits is customary, and none is made; weigh a single significant trait among many accordingly, and name the traits of primary interest before the trial.";
+
 /// Renders the report. The document's name and bytes (as read, for its
 /// hash) and the results file's name appear in the provenance note.
 pub fn render_report(
@@ -71,6 +75,12 @@ pub fn render_report(
 fn choices_of(r: &BlockResult) -> String {
     match (r, r.linear()) {
         (_, Some(o)) => linear_choices(o),
+        (BlockResult::Traits(t), None) => t
+            .traits
+            .iter()
+            .map(|x| linear_choices(&x.outcome))
+            .collect::<Vec<_>>()
+            .join(" "),
         (BlockResult::Power(p), None) => format!(
             "`{}` (line {}): power of the one-way F test; α = {}.",
             p.id, p.line, p.alpha

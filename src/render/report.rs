@@ -5,7 +5,7 @@
 use super::templates::{template_source, to_value};
 use super::view::BlockView;
 use super::writer::Writer;
-use super::{CAUTIONS, RANDOM_TERMS_CAUTION, choices_of, inline, tables, view};
+use super::{CAUTIONS, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of, inline, tables, view};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::escape::markdown_escape;
@@ -95,6 +95,13 @@ impl<'a> Report<'a> {
         {
             cautions.insert(3, RANDOM_TERMS_CAUTION);
         }
+        if self
+            .results
+            .iter()
+            .any(|r| matches!(r, BlockResult::Traits(_)))
+        {
+            cautions.insert(2, TRAITS_CAUTION);
+        }
         cautions
     }
 
@@ -115,23 +122,36 @@ impl<'a> Report<'a> {
         for (r, figs) in results.iter().zip(figures) {
             let mut v = match (r, r.linear()) {
                 (BlockResult::Power(p), _) => tables::power_view(p, &mut next_table),
+                (BlockResult::Traits(t), _) => tables::traits_view(t, &mut next_table),
                 (_, Some(outcome)) => tables::linear_view(outcome, &mut next_table),
                 (_, None) => view::BlockView::default(),
             };
-            v.figures = figs
-                .iter()
-                .map(|p| view::FigureView {
-                    id: p.figure.id.clone(),
-                    caption: p.figure.caption.clone(),
-                    svg: figures_inline.then(|| p.figure.svg.clone()),
-                    file: p.file.clone(),
-                })
-                .collect();
+            let figure_views = figs.iter().map(|p| view::FigureView {
+                id: p.figure.id.clone(),
+                caption: p.figure.caption.clone(),
+                svg: figures_inline.then(|| p.figure.svg.clone()),
+                file: p.file.clone(),
+            });
+            if v.parts.is_empty() {
+                v.figures = figure_views.collect();
+            } else {
+                // A part's figures carry its id first (`growth-yield-box`).
+                for f in figure_views {
+                    let part = v.parts.iter_mut().find(|p| {
+                        f.id.strip_prefix(p.id.as_str())
+                            .is_some_and(|rest| rest.starts_with('-'))
+                    });
+                    match part {
+                        Some(part) => part.figures.push(f),
+                        None => v.figures.push(f),
+                    }
+                }
+            }
             views.push(v);
         }
         let mut numbers: Vec<(String, String)> = Vec::new();
         for v in &views {
-            for t in &v.tables {
+            for t in v.all_tables() {
                 let name = writer.cross_reference("Table", t.number, &t.id);
                 numbers.push((t.id.clone(), name));
             }
@@ -201,7 +221,7 @@ impl<'a> Report<'a> {
             tables: self
                 .views
                 .iter()
-                .flat_map(|v| &v.tables)
+                .flat_map(|v| v.all_tables())
                 .map(|t| entry(&t.id, &t.caption))
                 .collect(),
             figures: self
@@ -264,10 +284,11 @@ impl<'a> Report<'a> {
     pub(crate) fn acknowledged(&self) -> Vec<AcknowledgedView> {
         self.results
             .iter()
-            .filter_map(|r| {
-                let notes = r.linear()?.acknowledged.clone();
+            .flat_map(|r| r.linear_outcomes())
+            .filter_map(|o| {
+                let notes = o.acknowledged.clone();
                 (!notes.is_empty()).then(|| AcknowledgedView {
-                    id: r.id().to_string(),
+                    id: o.id.clone(),
                     notes,
                 })
             })

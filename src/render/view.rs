@@ -45,4 +45,20 @@ pub struct BlockView {
     pub tables: Vec<TableView>,
     pub notes: Vec<String>,
     pub warnings: Vec<String>,
+    /// A part's heading (a trait's name in a block with several responses).
+    pub heading: Option<String>,
+    /// Parts laid out after the block's own tables, each under its heading:
+    /// one per trait in a block with several responses.
+    pub parts: Vec<BlockView>,
+}
+
+impl BlockView {
+    /// The block's tables and then its parts', in the order they print.
+    pub fn all_tables(&self) -> Vec<&TableView> {
+        let mut out: Vec<&TableView> = self.tables.iter().collect();
+        for p in &self.parts {
+            out.extend(p.all_tables());
+        }
+        out
+    }
 }

@@ -8,6 +8,11 @@ use std::process::Command;
 /// Builds `document` with `files` (name, contents) beside it; the results
 /// file, or the error output.
 pub fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> {
+    build_report(document, files).map(|(_, results)| results)
+}
+
+/// As `build`, with the Markdown report too.
+pub fn build_report(document: &str, files: &[(&str, String)]) -> Result<(String, Value), String> {
     let dir = tempfile::tempdir().expect("temp dir");
     let p = dir.path();
     for (name, text) in files {
@@ -23,7 +28,8 @@ pub fn build(document: &str, files: &[(&str, String)]) -> Result<Value, String> 
         return Err(String::from_utf8_lossy(&o.stderr).into_owned());
     }
     let text = std::fs::read_to_string(p.join("out/report.results.json")).expect("results");
-    Ok(serde_json::from_str(&text).expect("json"))
+    let report = std::fs::read_to_string(p.join("out/report.md")).expect("report");
+    Ok((report, serde_json::from_str(&text).expect("json")))
 }
 
 /// An open dataset of tests/data/open (sources in its SOURCES.md).

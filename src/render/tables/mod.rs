@@ -17,11 +17,13 @@ mod power;
 mod precision;
 mod procedure_note;
 mod repeated;
+mod traits;
 mod transform;
 mod trend;
 mod two_way;
 
 pub use power::power_view;
+pub use traits::traits_view;
 
 use super::view::{BlockView, Cell, Column, TableView};
 use crate::doc::block::{Omnibus, Order, PlotSpec};
@@ -165,6 +167,7 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         tables,
         notes,
         warnings: o.warnings.clone(),
+        ..BlockView::default()
     })
 }
 

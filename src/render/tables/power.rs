@@ -90,5 +90,6 @@ pub fn power_view(r: &PowerResult, next_table: &mut usize) -> BlockView {
         tables,
         notes: Vec::new(),
         warnings: r.warnings.clone(),
+        ..BlockView::default()
     })
 }

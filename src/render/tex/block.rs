@@ -10,6 +10,11 @@ use crate::render::view::{BlockView, FigureView, TableView};
 /// The LaTeX of one block.
 pub(super) fn block_latex(view: &BlockView) -> String {
     let mut out = String::new();
+    if let Some(heading) = &view.heading {
+        out.push_str("\\par\\noindent\\textbf{");
+        out.push_str(&latex_escape(heading));
+        out.push_str("}\\par\n\n");
+    }
     if let Some(lead) = &view.lead {
         out.push_str(&latex_escape(lead));
         out.push_str("\n\n");
@@ -26,6 +31,9 @@ pub(super) fn block_latex(view: &BlockView) -> String {
     if !view.warnings.is_empty() {
         out.push_str("\\par\\noindent\\textbf{Check before use:}\n");
         out.push_str(&itemize(&view.warnings));
+    }
+    for part in &view.parts {
+        out.push_str(&block_latex(part));
     }
     out
 }
