@@ -103,7 +103,22 @@ fn paragraph_styles() -> String {
     for (level, size, before) in [(1, 30, 360), (2, 26, 240), (3, 24, 200), (4, 22, 160)] {
         out.push_str(&heading(level, size, before));
     }
-    for (id, name, based, ppr, rpr) in [
+    for (id, name, based, ppr, rpr) in caption_and_table_styles(&small)
+        .into_iter()
+        .chain(other_styles(&small))
+    {
+        out.push_str(&paragraph_style(id, name, based, &ppr, &rpr));
+    }
+    out
+}
+
+/// A style's id, name, parent, paragraph and run properties.
+type StyleSpec = (&'static str, &'static str, &'static str, String, String);
+
+/// Captions, table text and table notes (`small` is the table type size).
+fn caption_and_table_styles(small: &str) -> Vec<StyleSpec> {
+    let small = small.to_string();
+    vec![
         (
             "Caption",
             "caption",
@@ -154,6 +169,13 @@ fn paragraph_styles() -> String {
             "<w:keepNext/>".to_string(),
             "<w:b/>".to_string(),
         ),
+    ]
+}
+
+/// Lists, quotes, code, the title block's lines, the footer and contents.
+fn other_styles(small: &str) -> Vec<StyleSpec> {
+    let small = small.to_string();
+    vec![
         (
             "ListParagraph",
             "List Paragraph",
@@ -219,10 +241,7 @@ fn paragraph_styles() -> String {
             r#"<w:outlineLvl w:val="9"/>"#.to_string(),
             String::new(),
         ),
-    ] {
-        out.push_str(&paragraph_style(id, name, based, &ppr, &rpr));
-    }
-    out
+    ]
 }
 
 /// The character styles: inline code and links.
