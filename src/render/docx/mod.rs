@@ -119,6 +119,7 @@ impl Writer for Docx {
             numbering: numbering.xml(),
             settings: page::settings_xml(),
             footer: page::footer_xml(),
+            fonts: styles::fonts_xml(),
             core: page::core_xml(&report.title(), front.author.as_deref()),
             app: page::app_xml(),
         };
@@ -220,12 +221,13 @@ fn closing_sections(report: &Report, text_width: u32) -> String {
     out
 }
 
+/// Sizes (half-points) of the file names and hashes in the inputs table:
+/// a SHA-256 of 64 digits in 7.5 pt fits beside a name on A4 and letter.
+const PATH_SIZE: u32 = 16;
+const HASH_SIZE: u32 = 15;
+
 /// The inputs with their sizes and SHA-256.
 fn inputs_table(report: &Report, text_width: u32) -> String {
-    let code = Emphasis {
-        code: true,
-        ..Emphasis::default()
-    };
     let header: Vec<Cell> = ["Input", "Bytes", "SHA-256"]
         .iter()
         .map(|l| Cell::text(l))
@@ -235,15 +237,9 @@ fn inputs_table(report: &Report, text_width: u32) -> String {
         .iter()
         .map(|input| {
             vec![
-                Cell {
-                    runs: run(&input.path, code),
-                    text: input.path.clone(),
-                },
+                Cell::code(&input.path, PATH_SIZE),
                 Cell::text(&input.size.to_string()),
-                Cell {
-                    runs: run(&input.sha256, code),
-                    text: input.sha256.clone(),
-                },
+                Cell::code(&input.sha256, HASH_SIZE),
             ]
         })
         .collect();

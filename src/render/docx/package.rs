@@ -13,11 +13,12 @@ const PACKAGE_RELATIONSHIPS: &str = "http://schemas.openxmlformats.org/package/2
 
 /// Relationships of the document part that are always there, with their
 /// ids: the parts `parts` writes.
-const FIXED: [(&str, &str, &str); 4] = [
+const FIXED: [(&str, &str, &str); 5] = [
     ("rId1", "styles", "styles.xml"),
     ("rId2", "numbering", "numbering.xml"),
     ("rId3", "settings", "settings.xml"),
     ("rId4", "footer", "footer1.xml"),
+    ("rId5", "fontTable", "fontTable.xml"),
 ];
 
 /// The footer's relationship id, for the section properties.
@@ -108,6 +109,7 @@ pub(super) struct Parts {
     pub(super) numbering: String,
     pub(super) settings: String,
     pub(super) footer: String,
+    pub(super) fonts: String,
     pub(super) core: String,
     pub(super) app: String,
 }
@@ -134,6 +136,7 @@ fn content_types(media: &[(String, Vec<u8>)]) -> String {
         ("/word/numbering.xml", format!("{main}.numbering+xml")),
         ("/word/settings.xml", format!("{main}.settings+xml")),
         ("/word/footer1.xml", format!("{main}.footer+xml")),
+        ("/word/fontTable.xml", format!("{main}.fontTable+xml")),
         (
             "/docProps/core.xml",
             "application/vnd.openxmlformats-package.core-properties+xml".to_string(),
@@ -176,6 +179,7 @@ pub(super) fn archive(parts: Parts, relations: Relations) -> Result<Vec<u8>, Str
         ("word/numbering.xml".into(), parts.numbering.into_bytes()),
         ("word/settings.xml".into(), parts.settings.into_bytes()),
         ("word/footer1.xml".into(), parts.footer.into_bytes()),
+        ("word/fontTable.xml".into(), parts.fonts.into_bytes()),
     ];
     entries.extend(
         relations

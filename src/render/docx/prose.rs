@@ -283,6 +283,7 @@ impl Prose<'_> {
                     t.cell = Some(Cell {
                         runs: String::new(),
                         text: String::new(),
+                        mono: None,
                     });
                 }
             }

@@ -248,7 +248,7 @@ fn other_styles(small: &str) -> Vec<StyleSpec> {
 fn character_styles() -> String {
     format!(
         r#"<w:style w:type="character" w:default="1" w:styleId="DefaultParagraphFont"><w:name w:val="Default Paragraph Font"/><w:uiPriority w:val="1"/><w:semiHidden/></w:style>
-<w:style w:type="character" w:customStyle="1" w:styleId="CodeChar"><w:name w:val="Code"/><w:basedOn w:val="DefaultParagraphFont"/><w:qFormat/><w:rPr>{}<w:sz w:val="20"/><w:szCs w:val="20"/></w:rPr></w:style>
+<w:style w:type="character" w:customStyle="1" w:styleId="CodeChar"><w:name w:val="Code"/><w:basedOn w:val="DefaultParagraphFont"/><w:qFormat/><w:rPr>{}</w:rPr></w:style>
 <w:style w:type="character" w:styleId="Hyperlink"><w:name w:val="Hyperlink"/><w:basedOn w:val="DefaultParagraphFont"/><w:rPr><w:color w:val="0563C1"/><w:u w:val="single"/></w:rPr></w:style>
 "#,
         fonts(MONO)
@@ -284,4 +284,24 @@ pub(super) fn styles_xml() -> String {
         character_styles(),
         table_style()
     )
+}
+
+/// `word/fontTable.xml`: the kind of each face the styles name, so that a
+/// word processor without it substitutes one of the same kind (above all a
+/// monospaced face for code).
+pub(super) fn fonts_xml() -> String {
+    let mut out = String::from(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\" standalone=\"yes\"?>\n<w:fonts xmlns:w=\"http://schemas.openxmlformats.org/wordprocessingml/2006/main\">\n",
+    );
+    for (name, family, pitch) in [
+        (SERIF, "roman", "variable"),
+        (SANS, "swiss", "variable"),
+        (MONO, "modern", "fixed"),
+    ] {
+        out.push_str(&format!(
+            "<w:font w:name=\"{name}\"><w:family w:val=\"{family}\"/><w:pitch w:val=\"{pitch}\"/></w:font>\n"
+        ));
+    }
+    out.push_str("</w:fonts>\n");
+    out
 }

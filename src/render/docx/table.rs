@@ -5,13 +5,16 @@
 //! be wider. A report table has its caption above ("Table 3. …", the number
 //! a `SEQ` field) and its notes below.
 
-use super::xml::{Props, code_spans, numbered_caption, paragraph, plain};
+use super::xml::{Props, code_run, code_spans, numbered_caption, paragraph, plain};
 use crate::render::view::TableView;
 
 /// One cell: its runs (written) and its text, for the column's width.
 pub(super) struct Cell {
     pub(super) runs: String,
     pub(super) text: String,
+    /// Set in a monospaced face at this size (half-points), which the
+    /// width follows.
+    pub(super) mono: Option<u32>,
 }
 
 impl Cell {
@@ -19,6 +22,33 @@ impl Cell {
         Cell {
             runs: plain(text),
             text: text.to_string(),
+            mono: None,
+        }
+    }
+
+    /// Code (a file name, a hash) in a monospaced face of `size` half-points.
+    pub(super) fn code(text: &str, size: u32) -> Cell {
+        Cell {
+            runs: code_run(text, size),
+            text: text.to_string(),
+            mono: Some(size),
+        }
+    }
+
+    /// The width of its text and of its longest word.
+    fn widths(&self) -> (u32, u32) {
+        match self.mono {
+            // 0.6 em a character, the width of the common monospaced faces.
+            Some(size) => {
+                let width = self.text.chars().count() as u32 * size * 6;
+                let word = self
+                    .text
+                    .split_whitespace()
+                    .map(|w| w.chars().count())
+                    .max();
+                (width, word.unwrap_or(0) as u32 * size * 6)
+            }
+            None => (text_width(&self.text), longest_word(&self.text)),
         }
     }
 }
@@ -61,8 +91,9 @@ fn column_needs(header: &[Cell], rows: &[Vec<Cell>]) -> Vec<(u32, u32)> {
             let cells = rows.iter().filter_map(|r| r.get(k));
             let (mut full, mut word) = (heading.max(100), heading);
             for cell in cells {
-                full = full.max(text_width(&cell.text));
-                word = word.max(longest_word(&cell.text));
+                let (width, longest) = cell.widths();
+                full = full.max(width);
+                word = word.max(longest);
             }
             (full + CELL_PADDING, word + CELL_PADDING)
         })

@@ -4,6 +4,11 @@
 
 use crate::escape::ooxml_escape;
 
+/// The code style, with its face repeated on the run: a word processor
+/// that applies a table style as direct formatting would otherwise set
+/// code in a table in the table's face.
+const CODE_STYLE: &str = r#"<w:rStyle w:val="CodeChar"/><w:rFonts w:ascii="Consolas" w:hAnsi="Consolas" w:cs="Consolas"/>"#;
+
 /// Character formatting of a run: direct emphasis, or a character style.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub(super) struct Emphasis {
@@ -24,7 +29,7 @@ pub(super) fn run(text: &str, emphasis: Emphasis) -> String {
     }
     let mut props = String::new();
     if emphasis.code {
-        props.push_str(r#"<w:rStyle w:val="CodeChar"/>"#);
+        props.push_str(CODE_STYLE);
     } else if emphasis.link {
         props.push_str(r#"<w:rStyle w:val="Hyperlink"/>"#);
     }
@@ -59,6 +64,14 @@ pub(super) fn run(text: &str, emphasis: Emphasis) -> String {
     }
     out.push_str("</w:r>");
     out
+}
+
+/// Code in the `CodeChar` style at `size` half-points, as one run.
+pub(super) fn code_run(text: &str, size: u32) -> String {
+    format!(
+        r#"<w:r><w:rPr>{CODE_STYLE}<w:sz w:val="{size}"/><w:szCs w:val="{size}"/></w:rPr><w:t xml:space="preserve">{}</w:t></w:r>"#,
+        ooxml_escape(text)
+    )
 }
 
 /// Plain text as one run.
