@@ -359,14 +359,19 @@ impl Prose<'_> {
             TagEnd::Emphasis => self.italic = self.italic.saturating_sub(1),
             TagEnd::Strong => self.bold = self.bold.saturating_sub(1),
             TagEnd::Strikethrough => self.strike = self.strike.saturating_sub(1),
-            TagEnd::Link if self.links.pop().unwrap_or(false) => {
-                self.push_runs("</w:hyperlink>", "");
-            }
+            TagEnd::Link => self.close_link(),
             TagEnd::Image => {
                 self.links.pop();
                 self.italic = self.italic.saturating_sub(1);
             }
             _ => {}
+        }
+    }
+
+    /// Closes the innermost link, where it was written as one.
+    fn close_link(&mut self) {
+        if self.links.pop().unwrap_or(false) {
+            self.push_runs("</w:hyperlink>", "");
         }
     }
 

@@ -160,8 +160,11 @@ fn widths(
     capped(low, whole_words)
 }
 
+/// Tables of at most this many rows are kept on one page.
+const KEEP_TOGETHER_ROWS: usize = 20;
+
 /// One row: header rows repeat on each page and carry the rule below them.
-fn row(cells: &[Cell], widths: &[u32], align: &[Option<&str>], header: bool) -> String {
+fn row(cells: &[Cell], widths: &[u32], align: &[Option<&str>], header: bool, keep: bool) -> String {
     let mut out = String::from("<w:tr><w:trPr><w:cantSplit/>");
     if header {
         out.push_str("<w:tblHeader/>");
@@ -175,6 +178,7 @@ fn row(cells: &[Cell], widths: &[u32], align: &[Option<&str>], header: bool) -> 
         };
         let props = Props {
             style: Some(if header { "TableHeading" } else { "TableText" }),
+            keep_next: keep,
             align: align.get(k).copied().flatten(),
             ..Props::default()
         };
@@ -205,9 +209,18 @@ pub(super) fn table(
         out.push_str(&format!(r#"<w:gridCol w:w="{w}"/>"#));
     }
     out.push_str("</w:tblGrid>\n");
-    out.push_str(&row(header, &widths, align, true));
-    for cells in rows {
-        out.push_str(&row(cells, &widths, align, false));
+    // A short table stays on one page with its caption: each row keeps
+    // with the next (a longer one runs on, its header repeated).
+    let short = rows.len() <= KEEP_TOGETHER_ROWS;
+    out.push_str(&row(header, &widths, align, true, true));
+    for (k, cells) in rows.iter().enumerate() {
+        out.push_str(&row(
+            cells,
+            &widths,
+            align,
+            false,
+            short && k + 1 < rows.len(),
+        ));
     }
     out.push_str("</w:tbl>\n");
     out
