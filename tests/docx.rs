@@ -757,3 +757,85 @@ fn libreoffice_converts_the_demo_to_pages_none_blank() {
         assert!(all.contains(shown), "`{shown}` not in the PDF's text");
     }
 }
+
+const PROSE_DOCUMENT: &str = "\
+## Prose of every kind
+
+A [safe link](https://example.org/x%20y) and an [unsafe one](javascript:alert(1)),
+*emphasis*, **strong**, ~~struck~~, `code`, an ![image](picture.svg) and <b>raw</b>.
+
+> A quotation.
+
+1. one
+   - two
+2. back
+
+A paragraph between the lists.
+
+5. a list starting at five
+
+```python
+def f(x):
+    return x  # & <
+```
+
+| Name | Value |
+|:-----|------:|
+| a_b  | 1.5   |
+
+### A subsection
+";
+
+#[test]
+fn prose_keeps_headings_emphasis_links_lists_quotes_and_code() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(dir.path().join("report.md"), PROSE_DOCUMENT).expect("document");
+    let built = build(dir.path(), Format::Docx);
+    let parts = parts(&built.report);
+    let problems = package_problems(&parts);
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+    let document = part(&parts, "word/document.xml");
+    let rels = part(&parts, "word/_rels/document.xml.rels");
+    for written in [
+        "<w:pStyle w:val=\"Heading1\"/></w:pPr><w:r><w:t xml:space=\"preserve\">Prose of every kind</w:t>",
+        "<w:pStyle w:val=\"Heading2\"/></w:pPr><w:r><w:t xml:space=\"preserve\">A subsection</w:t>",
+        "<w:rStyle w:val=\"Hyperlink\"/></w:rPr><w:t xml:space=\"preserve\">safe link</w:t>",
+        "<w:t xml:space=\"preserve\">unsafe one</w:t>",
+        "<w:i/></w:rPr><w:t xml:space=\"preserve\">emphasis</w:t>",
+        "<w:b/></w:rPr><w:t xml:space=\"preserve\">strong</w:t>",
+        "<w:strike/></w:rPr><w:t xml:space=\"preserve\">struck</w:t>",
+        "<w:rStyle w:val=\"CodeChar\"/>",
+        "<w:i/></w:rPr><w:t xml:space=\"preserve\">image</w:t>",
+        "&lt;b&gt;",
+        "<w:pStyle w:val=\"Quote\"/>",
+        "<w:pStyle w:val=\"CodeBlock\"/></w:pPr><w:r><w:t xml:space=\"preserve\">    return x  # &amp; &lt;</w:t>",
+        "<w:ilvl w:val=\"1\"/>",
+    ] {
+        assert!(
+            document.contains(written),
+            "missing `{written}` in:\n{document}"
+        );
+    }
+    assert!(rels.contains("Target=\"https://example.org/x%20y\" TargetMode=\"External\""));
+    assert!(!rels.contains("javascript") && !document.contains("javascript"));
+    // The list starting at five starts there; the first restarts at one.
+    let numbering = part(&parts, "word/numbering.xml");
+    assert!(
+        numbering.contains("<w:startOverride w:val=\"1\"/>"),
+        "{numbering}"
+    );
+    assert!(
+        numbering.contains("<w:startOverride w:val=\"5\"/>"),
+        "{numbering}"
+    );
+    // The Markdown table is a native table, its number column right-aligned.
+    let table = &tables(document)[0];
+    assert_eq!(
+        table[0],
+        (true, vec!["Name".to_string(), "Value".to_string()])
+    );
+    assert_eq!(
+        table[1],
+        (false, vec!["a_b".to_string(), "1.5".to_string()])
+    );
+}

@@ -101,7 +101,7 @@ pub(super) fn prose_xml(
                         prose.close();
                         prose.out.push_str(&fragments[i]);
                     }
-                    None => prose.text(h.trim_end_matches('\n')),
+                    None => prose.raw_html(&h),
                 }
             }
             Event::Start(tag) => prose.start(tag),
@@ -162,6 +162,17 @@ impl Prose<'_> {
         {
             heading.push_str(text);
         }
+    }
+
+    /// Raw HTML, shown as text: an HTML block comes a line at a time, and
+    /// its lines stay lines.
+    fn raw_html(&mut self, html: &str) {
+        let line = html.trim_end_matches('\n');
+        let continues = self.open.as_ref().is_some_and(|o| !o.runs.is_empty());
+        if continues && html.ends_with('\n') {
+            self.push_runs("<w:r><w:br/></w:r>", " ");
+        }
+        self.text(line);
     }
 
     /// Text in the current emphasis.
