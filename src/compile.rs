@@ -97,7 +97,7 @@ pub fn compile(
     );
     Ok(Built {
         report_name: format!("{stem}.{}", format.extension()),
-        report: report.into_bytes(),
+        report,
         results_name,
         results,
         files,

@@ -74,6 +74,27 @@ pub fn xml_escape(text: &str) -> String {
     html_escape(text)
 }
 
+/// Escapes text for an Office Open XML part (element content and attribute
+/// values alike): the five XML specials as entities, and characters XML 1.0
+/// forbids (control characters other than tab, line feed and carriage
+/// return; U+FFFE and U+FFFF) dropped, since no entity can stand for them.
+pub fn ooxml_escape(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for c in text.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&apos;"),
+            '\t' | '\n' | '\r' => out.push(c),
+            c if c < ' ' || c == '\u{FFFE}' || c == '\u{FFFF}' => {}
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
 /// Escapes text for LaTeX (UTF-8 input, T1 font encoding): the ten special
 /// characters, brackets (which could start an optional argument), pairs that
 /// TeX fonts join into other glyphs (`--`, `\'\'`, `,,`, `<<`), and characters

@@ -148,3 +148,19 @@ fn the_inertness_check_rejects_raw_text() {
     }
     assert!(inert(r"50\% a\_b \{x\} \textasciicircum{}").is_ok());
 }
+
+#[test]
+fn ooxml_escapes_the_specials_and_drops_what_xml_forbids() {
+    assert_eq!(
+        ooxml_escape("a & b < c > d \"e\" 'f'"),
+        "a &amp; b &lt; c &gt; d &quot;e&quot; &apos;f&apos;"
+    );
+    // XML 1.0 (Fifth Edition) section 2.2: Char excludes C0 controls other
+    // than tab, LF and CR, and U+FFFE and U+FFFF.
+    assert_eq!(
+        ooxml_escape("x\u{0}\u{1}\u{b}\u{1f}\u{fffe}\u{ffff}y"),
+        "xy"
+    );
+    assert_eq!(ooxml_escape("tab\there\nand\r"), "tab\there\nand\r");
+    assert_eq!(ooxml_escape("Größe α − β 中"), "Größe α − β 中");
+}

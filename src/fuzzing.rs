@@ -208,7 +208,7 @@ const EXPRESSION_BLOCKS: &str = "```anova\nid: a\ndata: d.csv\nmodel: y ~ g\n```
 ```power\nid: p\ngroups: 3\neffect: f = 0.4\npower: 0.8\n```\n\n";
 
 /// Prose expressions: the input is the text of one `{{ … }}` expression,
-/// evaluated against blocks of every kind in both output formats. Run with
+/// evaluated against blocks of every kind in every output format. Run with
 /// a memory cap (`-malloc_limit_mb`) so that an unbounded allocation is a
 /// finding, not just a slow input.
 pub fn expression(data: &[u8]) {
@@ -219,6 +219,7 @@ pub fn expression(data: &[u8]) {
     let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Html);
     let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Markdown);
     let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Tex);
+    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Docx);
 }
 
 /// Template expansion and the whole pipeline: the input is a document whose
@@ -227,6 +228,7 @@ pub fn expand(data: &[u8]) {
     let _ = compile("fuzz.md", data, &Fixed, Format::Html);
     let _ = compile("fuzz.md", data, &Fixed, Format::Markdown);
     let _ = compile("fuzz.md", data, &Fixed, Format::Tex);
+    let _ = compile("fuzz.md", data, &Fixed, Format::Docx);
 }
 
 /// Block-cache entries: arbitrary bytes as an entry, and as the payload of

@@ -214,6 +214,8 @@ pub fn verify(built: &Built, dir: &Path) -> Result<Drift, Diagnostic> {
         explained = true;
         if *name == built.results_name {
             compare_results(old, fresh, results_edited, &mut drift);
+        } else if *name == built.report_name {
+            compare_report(name, old, fresh, &mut drift);
         } else {
             compare_text(name, old, fresh, &mut drift);
         }
@@ -424,6 +426,60 @@ fn compact(v: &Value) -> String {
         format!("{}…", s.chars().take(60).collect::<String>())
     } else {
         s
+    }
+}
+
+/// The report's format, known by its extension.
+fn format_of(report_name: &str) -> Option<Format> {
+    FORMATS
+        .iter()
+        .copied()
+        .find(|f| report_name.ends_with(&format!(".{}", f.extension())))
+}
+
+/// Compares a report part by part as its format reads it: a text report is
+/// one part, a docx the entries of its archive, each compared as text.
+fn compare_report(name: &str, old: &[u8], fresh: &[u8], drift: &mut Drift) {
+    let Some(writer) = format_of(name).map(Format::writer) else {
+        return compare_text(name, old, fresh, drift);
+    };
+    let (was, now) = match (writer.parts(old), writer.parts(fresh)) {
+        (Ok(was), Ok(now)) => (was, now),
+        (Err(why), _) | (_, Err(why)) => {
+            drift.text.push(format!("{name}: {why}"));
+            return;
+        }
+    };
+    let before = drift.text.len();
+    for (part, bytes) in &now {
+        let label = if part.is_empty() {
+            name.to_string()
+        } else {
+            format!("{name}: {part}")
+        };
+        match was.iter().find(|(p, _)| p == part) {
+            None => drift
+                .text
+                .push(format!("{label}: absent from the file on disk")),
+            Some((_, old)) if old != bytes => {
+                if std::str::from_utf8(bytes).is_ok() {
+                    compare_text(&label, old, bytes, drift);
+                } else {
+                    drift.text.push(format!("{label} differs"));
+                }
+            }
+            Some(_) => {}
+        }
+    }
+    for (part, _) in was.iter().filter(|(p, _)| !now.iter().any(|(q, _)| q == p)) {
+        drift
+            .text
+            .push(format!("{name}: {part}: not written by a fresh build"));
+    }
+    if drift.text.len() == before {
+        drift.text.push(format!(
+            "{name} holds the same parts as a fresh build's, packed differently"
+        ));
     }
 }
 

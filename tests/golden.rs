@@ -1,6 +1,8 @@
 //! Whole-document golden tests: each folder in tests/cases/ holds a report.md
 //! and its data; `expected/` holds the HTML, Markdown, LaTeX, results file
-//! and figure files sheaf must produce, byte for byte. Regenerate after an intended change with
+//! and figure files sheaf must produce, byte for byte, and the parts of the
+//! docx (`report.docx.parts.txt`: every XML part as written, every media
+//! file by its size and SHA-256). Regenerate after an intended change with
 //!
 //!     SHEAF_BLESS=1 cargo test --test golden
 //!
@@ -11,8 +13,41 @@
 mod common;
 
 use common::{build, cases};
-use sheaf::render::Format;
+use sheaf::provenance::sha256_hex;
+use sheaf::render::{FORMATS, Format};
+use std::io::Read;
 use std::path::Path;
+
+/// A report as the expected folder keeps it: a text report as written; a
+/// docx as the text of its parts in archive order (XML as written, media
+/// by size and SHA-256), so that a change reads as a diff.
+fn comparable(name: &str, bytes: &[u8]) -> (String, Vec<u8>) {
+    if !name.ends_with(".docx") {
+        return (name.to_string(), bytes.to_vec());
+    }
+    let mut archive = zip::ZipArchive::new(std::io::Cursor::new(bytes)).expect("a zip archive");
+    let mut text = String::new();
+    for i in 0..archive.len() {
+        let mut entry = archive.by_index(i).expect("entry");
+        let mut data = Vec::new();
+        entry.read_to_end(&mut data).expect("entry bytes");
+        text.push_str(&format!("==== {} ====\n", entry.name()));
+        match String::from_utf8(data) {
+            Ok(xml) if !entry.name().starts_with("word/media/") => text.push_str(&xml),
+            Ok(other) => text.push_str(&format!(
+                "{} bytes, SHA-256 {}\n",
+                other.len(),
+                sha256_hex(other.as_bytes())
+            )),
+            Err(e) => text.push_str(&format!(
+                "{} bytes, SHA-256 {}\n",
+                e.as_bytes().len(),
+                sha256_hex(e.as_bytes())
+            )),
+        }
+    }
+    (format!("{name}.parts.txt"), text.into_bytes())
+}
 
 #[test]
 fn every_case_matches_its_expected_output() {
@@ -20,7 +55,7 @@ fn every_case_matches_its_expected_output() {
     let mut failures = Vec::new();
     for dir in cases() {
         let expected = dir.join("expected");
-        for format in [Format::Html, Format::Markdown, Format::Tex] {
+        for format in FORMATS.iter().copied() {
             let built = build(&dir, format);
             // The results file differs between formats only in figure file
             // names; keep one expected copy per format.
@@ -31,10 +66,8 @@ fn every_case_matches_its_expected_output() {
                     .results_name
                     .replace(".results.json", &format!(".{}.results.json", format.name()))
             };
-            let mut outputs = vec![
-                (&built.report_name, &built.report),
-                (&results_name, &built.results),
-            ];
+            let (report_name, report) = comparable(&built.report_name, &built.report);
+            let mut outputs = vec![(&report_name, &report), (&results_name, &built.results)];
             outputs.extend(built.files.iter().map(|(n, b)| (n, b)));
             for (name, bytes) in outputs {
                 let path = expected.join(name);
@@ -60,7 +93,7 @@ fn every_case_matches_its_expected_output() {
 #[test]
 fn two_builds_are_byte_identical() {
     for dir in cases() {
-        for format in [Format::Html, Format::Markdown, Format::Tex] {
+        for format in FORMATS.iter().copied() {
             let (a, b) = (build(&dir, format), build(&dir, format));
             assert_eq!(a.report, b.report, "{}", dir.display());
             assert_eq!(a.results, b.results, "{}", dir.display());

@@ -37,6 +37,7 @@ mod contract {
         Html,
         Md,
         Tex,
+        Docx,
     }
 
     #[derive(Deserialize)]
@@ -1104,7 +1105,7 @@ fn cases() -> Vec<PathBuf> {
 
 /// Every `*.results.json` under each case's `expected/` (tests/golden.rs writes one per format:
 /// `report.results.json` for HTML, `report.md.results.json` for Markdown,
-/// `report.tex.results.json` for LaTeX).
+/// `report.tex.results.json` for LaTeX, `report.docx.results.json` for docx).
 fn golden_files() -> Vec<Golden> {
     let mut found = Vec::new();
     for case in cases() {
@@ -1120,6 +1121,8 @@ fn golden_files() -> Vec<Golden> {
                 Format::Md
             } else if name.ends_with(".tex.results.json") {
                 Format::Tex
+            } else if name.ends_with(".docx.results.json") {
+                Format::Docx
             } else {
                 Format::Html
             };
@@ -1142,7 +1145,7 @@ fn read_golden(g: &Golden) -> Result<ResultsFile, String> {
 fn every_case_has_a_results_file_for_each_format() {
     let golden = golden_files();
     for case in cases() {
-        for format in [Format::Html, Format::Md, Format::Tex] {
+        for format in [Format::Html, Format::Md, Format::Tex, Format::Docx] {
             assert!(
                 golden.iter().any(|g| g.case == case && g.format == format),
                 "{} has no {format:?} results file",
@@ -1433,7 +1436,11 @@ fn check_figures(
             "sha256 is not 64 lowercase hex digits",
         );
         match (format, &fig.file) {
-            (Format::Html, file) => p.require(file.is_none(), &at, "file is not null in HTML"),
+            (Format::Html | Format::Docx, file) => p.require(
+                file.is_none(),
+                &at,
+                "file is not null in HTML or docx, which hold their figures",
+            ),
             (Format::Md | Format::Tex, None) => {
                 p.require(false, &at, "file is null beside a Markdown or LaTeX report")
             }

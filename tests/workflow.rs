@@ -29,7 +29,7 @@ fn study() -> tempfile::TempDir {
 fn verify_passes_on_a_fresh_build_and_explains_each_kind_of_drift() {
     let dir = study();
     let p = dir.path();
-    for to in ["html", "md", "tex"] {
+    for to in ["html", "md", "tex", "docx"] {
         let out = format!("out-{to}");
         assert!(
             sheaf(p, &["build", "report.md", "-o", &out, "--to", to])

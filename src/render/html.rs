@@ -5,7 +5,7 @@
 use super::links::safe_url;
 use super::report::{ContentsEntry, MarkerAt, Report, block_marker as marker};
 use super::templates::{environment, render};
-use super::writer::Writer;
+use super::writer::{Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::doc::markdown::markdown_options;
@@ -41,7 +41,7 @@ impl Writer for Html {
         Ok(None)
     }
 
-    fn write(&self, report: &Report) -> Result<String, Diagnostic> {
+    fn write(&self, report: &Report) -> Result<Written, Diagnostic> {
         let env = environment();
         let fragments = report
             .views
@@ -52,7 +52,7 @@ impl Writer for Html {
         let numbered = report.doc.front.contents;
         let (content, headings) = prose_html(&body, &fragments, &markers, numbered);
         let contents = numbered.then(|| report.contents(headings));
-        render(&env, "report.html", report.context(content, contents))
+        render(&env, "report.html", report.context(content, contents)).map(Written::Text)
     }
 }
 

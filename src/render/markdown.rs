@@ -4,7 +4,7 @@
 use super::links::safe_url;
 use super::report::Report;
 use super::templates::{environment, render};
-use super::writer::Writer;
+use super::writer::{Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::doc::markdown::markdown_options;
@@ -49,7 +49,7 @@ impl Writer for Markdown {
         }))
     }
 
-    fn write(&self, report: &Report) -> Result<String, Diagnostic> {
+    fn write(&self, report: &Report) -> Result<Written, Diagnostic> {
         let env = environment();
         let fragments = report
             .views
@@ -58,7 +58,7 @@ impl Writer for Markdown {
             .collect::<Result<Vec<_>, _>>()?;
         let (body, _) = report.body_with(|i| fragments[i].clone());
         let content = inert_links_markdown(&body).trim().to_string();
-        render(&env, "report.md", report.context(content, None))
+        render(&env, "report.md", report.context(content, None)).map(Written::Text)
     }
 }
 

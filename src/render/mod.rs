@@ -2,9 +2,11 @@
 //! time from `templates/`), prose from pulldown-cmark. HTML escaping happens
 //! in minijinja's HTML auto-escape, pulldown-cmark's writer and `html_escape`
 //! (for the `code_spans` filter); Markdown escaping in `markdown_escape`;
-//! LaTeX escaping in `latex_escape` and its siblings, called by `tex`.
+//! LaTeX escaping in `latex_escape` and its siblings, called by `tex`;
+//! Office Open XML escaping in `ooxml_escape`, called by `docx`.
 //! Nowhere else.
 
+mod docx;
 mod html;
 pub mod inline;
 mod links;
@@ -16,7 +18,7 @@ mod tex;
 pub mod view;
 pub mod writer;
 
-pub use writer::{FORMATS, Format, Writer};
+pub use writer::{FORMATS, Format, Writer, Written};
 
 use crate::diag::Diagnostic;
 use crate::doc::Document;
@@ -52,7 +54,7 @@ pub fn render_report(
     format: Format,
     document: (&str, &[u8]),
     results_name: &str,
-) -> Result<String, Diagnostic> {
+) -> Result<Vec<u8>, Diagnostic> {
     let writer = format.writer();
     let report = Report::assemble(
         doc,
@@ -63,11 +65,15 @@ pub fn render_report(
         results_name,
         writer,
     )?;
-    let mut text = writer.write(&report)?;
-    if !text.ends_with('\n') {
-        text.push('\n');
-    }
-    Ok(text)
+    Ok(match writer.write(&report)? {
+        Written::Text(mut text) => {
+            if !text.ends_with('\n') {
+                text.push('\n');
+            }
+            text.into_bytes()
+        }
+        Written::Binary(bytes) => bytes,
+    })
 }
 
 /// The analysis choices in effect for one block, as one line for the

@@ -1,9 +1,9 @@
 //! Output formats: each is one writer (one file) registered in `FORMATS`.
 //! A writer turns the format-independent `Report` into the report's text
-//! and says where figures go.
+//! (or, for an archive format, its bytes) and says where figures go.
 
 use super::report::Report;
-use super::{html, markdown, tex};
+use super::{docx, html, markdown, tex};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::figure::Figure;
@@ -32,8 +32,21 @@ pub trait Writer: Sync {
     fn cross_reference(&self, kind: &str, number: usize, _id: &str) -> String {
         format!("{kind} {number}")
     }
-    /// The report's text.
-    fn write(&self, report: &Report) -> Result<String, Diagnostic>;
+    /// The report: text, or the bytes of an archive.
+    fn write(&self, report: &Report) -> Result<Written, Diagnostic>;
+    /// The parts a written report is compared by (`verify`): a text format
+    /// is one part, named `""`; an archive its entries, in archive order.
+    fn parts(&self, report: &[u8]) -> Result<Vec<(String, Vec<u8>)>, String> {
+        Ok(vec![(String::new(), report.to_vec())])
+    }
+}
+
+/// What a writer produces.
+pub enum Written {
+    /// A text report (HTML, Markdown, LaTeX): ends with one newline.
+    Text(String),
+    /// A binary report (an archive such as a docx), written as it is.
+    Binary(Vec<u8>),
 }
 
 /// An output format: a handle on its registered writer.
@@ -47,11 +60,12 @@ impl Format {
     pub const Html: Format = Format(&html::Html);
     pub const Markdown: Format = Format(&markdown::Markdown);
     pub const Tex: Format = Format(&tex::Tex);
+    pub const Docx: Format = Format(&docx::Docx);
 }
 
 /// Every output format, in the order `--to` lists them. A new format is a
 /// writer in its own file and one line here.
-pub const FORMATS: &[Format] = &[Format::Html, Format::Markdown, Format::Tex];
+pub const FORMATS: &[Format] = &[Format::Html, Format::Markdown, Format::Tex, Format::Docx];
 
 impl Format {
     /// The format `--to` or a results file names.

@@ -214,6 +214,7 @@ fn content_type(name: &str) -> &'static str {
         Some("json") => "application/json",
         Some("md") => "text/markdown; charset=utf-8",
         Some("tex") => "text/x-tex; charset=utf-8",
+        Some("docx") => "application/vnd.openxmlformats-officedocument.wordprocessingml.document",
         Some("css") => "text/css; charset=utf-8",
         _ => "application/octet-stream",
     }

@@ -8,7 +8,7 @@ mod block;
 mod prose;
 
 use super::report::{Report, block_marker};
-use super::writer::Writer;
+use super::writer::{Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::escape::{latex_code, latex_escape, latex_label};
@@ -72,7 +72,7 @@ impl Writer for Tex {
         format!("{kind}{REF_OPEN}{}{REF_CLOSE}", latex_label(prefix, id))
     }
 
-    fn write(&self, report: &Report) -> Result<String, Diagnostic> {
+    fn write(&self, report: &Report) -> Result<Written, Diagnostic> {
         let fragments: Vec<String> = report.views.iter().map(block::block_latex).collect();
         let (body, markers) = report.body_with(|i| format!("{}\n", block_marker(i)));
         let content = prose::prose_latex(&body, &fragments, &markers);
@@ -88,7 +88,7 @@ impl Writer for Tex {
         if !front.tex_body_only {
             out.push_str("\\end{document}\n");
         }
-        Ok(out)
+        Ok(Written::Text(out))
     }
 }
 
