@@ -384,8 +384,9 @@ fn table_problems(study: &str, docx: &Built, html: &Built) -> Vec<String> {
                 continue;
             };
             // The covariance-structure table prints −2 log-likelihood from
-            // the log-likelihood field (src/render/tables/covariance.rs).
-            if key.ends_with(".log_likelihood") {
+            // the log-likelihood field (src/render/tables/covariance.rs);
+            // the Box-Cox table prints the log-likelihood itself.
+            if key.ends_with(".log_likelihood") && !key.contains(".box_cox.") {
                 value *= -2.0;
             }
             checked += 1;

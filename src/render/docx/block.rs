@@ -1,6 +1,7 @@
 //! One analysis block: its lead sentence, its tables (caption above, notes
 //! below), its figures (caption below), its notes as a bulleted list and
-//! its warnings under "Check before use:".
+//! its warnings under "Check before use:"; then its parts (one per trait of
+//! a block with several responses), each under its name.
 
 use super::figure::figure;
 use super::numbering::BULLETS;
@@ -21,6 +22,18 @@ pub(super) struct Pictures<'a> {
 /// The body XML of one block.
 pub(super) fn block_xml(view: &BlockView, pictures: &mut Pictures) -> Result<String, String> {
     let mut out = String::new();
+    // A part of a block (one trait of several) opens with its name.
+    if let Some(heading) = &view.heading {
+        let bold = Emphasis {
+            bold: true,
+            ..Emphasis::default()
+        };
+        let props = Props {
+            keep_next: true,
+            ..Props::default()
+        };
+        out.push_str(&paragraph(&props, &run(heading, bold)));
+    }
     if let Some(lead) = &view.lead {
         out.push_str(&paragraph(&Props::default(), &plain(lead)));
     }
@@ -55,6 +68,9 @@ pub(super) fn block_xml(view: &BlockView, pictures: &mut Pictures) -> Result<Str
         };
         out.push_str(&paragraph(&lead, &run("Check before use:", bold)));
         out.push_str(&bullets(&view.warnings));
+    }
+    for part in &view.parts {
+        out.push_str(&block_xml(part, pictures)?);
     }
     Ok(out)
 }
