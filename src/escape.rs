@@ -69,9 +69,17 @@ pub fn html_escape(text: &str) -> String {
     out
 }
 
-/// Escapes text for SVG (XML) content and attributes.
+/// Escapes text for SVG (XML) content and attributes; a character XML 1.0
+/// forbids (a control character from a data file) is dropped, so that a
+/// figure written beside the report stays a well-formed file.
 pub fn xml_escape(text: &str) -> String {
-    html_escape(text)
+    let allowed: String = text.chars().filter(|&c| xml_allows(c)).collect();
+    html_escape(&allowed)
+}
+
+/// Whether XML 1.0 allows `c` in a document.
+fn xml_allows(c: char) -> bool {
+    !matches!(c, '\u{0}'..='\u{8}' | '\u{b}' | '\u{c}' | '\u{e}'..='\u{1f}' | '\u{fffe}' | '\u{ffff}')
 }
 
 /// Escapes text for an Office Open XML part (element content and attribute
@@ -87,9 +95,8 @@ pub fn ooxml_escape(text: &str) -> String {
             '>' => out.push_str("&gt;"),
             '"' => out.push_str("&quot;"),
             '\'' => out.push_str("&apos;"),
-            '\t' | '\n' | '\r' => out.push(c),
-            c if c < ' ' || c == '\u{FFFE}' || c == '\u{FFFF}' => {}
-            _ => out.push(c),
+            c if xml_allows(c) => out.push(c),
+            _ => {}
         }
     }
     out

@@ -164,3 +164,11 @@ fn ooxml_escapes_the_specials_and_drops_what_xml_forbids() {
     assert_eq!(ooxml_escape("tab\there\nand\r"), "tab\there\nand\r");
     assert_eq!(ooxml_escape("Größe α − β 中"), "Größe α − β 中");
 }
+
+#[test]
+fn svg_text_drops_what_xml_forbids() {
+    // A level name read from a data file with a stray control character:
+    // the figure file must stay well-formed XML (XML 1.0, section 2.2).
+    assert_eq!(xml_escape("A\u{1}B & <c>"), "AB &amp; &lt;c&gt;");
+    assert_eq!(xml_escape("tab\tok"), "tab\tok");
+}

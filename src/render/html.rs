@@ -7,9 +7,7 @@ use super::report::{ContentsEntry, MarkerAt, Report, block_marker as marker};
 use super::templates::{environment, render};
 use super::writer::{Writer, Written};
 use crate::diag::Diagnostic;
-use crate::doc::ImageFormat;
 use crate::doc::markdown::markdown_options;
-use crate::figure::Figure;
 use pulldown_cmark::{CowStr, Event, LinkType, Parser, Tag, TagEnd};
 
 /// The HTML writer.
@@ -30,15 +28,6 @@ impl Writer for Html {
 
     fn figures_inline(&self) -> bool {
         true
-    }
-
-    fn figure_file(
-        &self,
-        _stem: &str,
-        _figure: &Figure,
-        _images: ImageFormat,
-    ) -> Result<Option<(String, Vec<u8>)>, String> {
-        Ok(None)
     }
 
     fn write(&self, report: &Report) -> Result<Written, Diagnostic> {

@@ -19,13 +19,16 @@ pub trait Writer: Sync {
     /// Whether the report holds its figures (else they are files beside it).
     fn figures_inline(&self) -> bool;
     /// A figure's file beside the report (name and bytes), or `None` where
-    /// the report holds the figure itself.
+    /// the report holds the figure itself (the default, for formats whose
+    /// figures are inside the report).
     fn figure_file(
         &self,
-        stem: &str,
-        figure: &Figure,
-        images: ImageFormat,
-    ) -> Result<Option<(String, Vec<u8>)>, String>;
+        _stem: &str,
+        _figure: &Figure,
+        _images: ImageFormat,
+    ) -> Result<Option<(String, Vec<u8>)>, String> {
+        Ok(None)
+    }
     /// How prose names a numbered table or figure (`kind` is `Table` or
     /// `Figure`): the number as text, unless the format numbers them itself.
     /// The text must start with `kind`.

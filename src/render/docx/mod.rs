@@ -25,7 +25,6 @@ use super::report::{Report, block_marker};
 use super::writer::{Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
-use crate::figure::Figure;
 use crate::provenance::sha256_hex;
 use block::{Pictures, block_xml, bullets};
 use numbering::Numbering;
@@ -57,15 +56,6 @@ impl Writer for Docx {
 
     fn figures_inline(&self) -> bool {
         true
-    }
-
-    fn figure_file(
-        &self,
-        _stem: &str,
-        _figure: &Figure,
-        _images: ImageFormat,
-    ) -> Result<Option<(String, Vec<u8>)>, String> {
-        Ok(None)
     }
 
     fn write(&self, report: &Report) -> Result<Written, Diagnostic> {
