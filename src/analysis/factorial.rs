@@ -178,12 +178,8 @@ impl Analysed {
                     cells: self.data.cells.len(),
                     design: Some(&self.fitted.unweighted),
                 };
-                let level = 1.0 - self.alpha.min(0.5);
-                Some(model.box_cox(&y, level).map_err(|i| {
-                    doc.error_at(spec.model.line, None, format!("`transform: boxcox` needs values above 0 in `{}`; data line {} has one of 0 or less", spec.model.value.response, self.data.lines[i]))
-                        .hint("Box-Cox is defined for positive values only: leave such rows out with `exclude`, or remove `transform`")
-                        .note(format!("data file {}", spec.data.value))
-                })?)
+                let line = |i: usize| self.data.lines[i];
+                Some(model.box_cox((doc, spec), &y, line, self.alpha)?)
             }
             false => None,
         };

@@ -196,11 +196,7 @@ impl Engine<'_> {
                     design: None,
                 };
                 let at = |i: usize| lines.iter().flatten().nth(i).copied().unwrap_or(0);
-                Some(
-                    model
-                        .box_cox(&y, 1.0 - self.alpha.min(0.5))
-                        .map_err(|i| self.box_cox_refused(at(i)))?,
-                )
+                Some(model.box_cox((self.doc, self.spec), &y, at, self.alpha)?)
             }
             _ => None,
         };
@@ -214,14 +210,6 @@ impl Engine<'_> {
             transformation::detail(declared, data_decimals, arithmetic, box_cox, families);
         notes.extend(more);
         Ok(Some(detail))
-    }
-
-    fn box_cox_refused(&self, line: usize) -> Diagnostic {
-        let spec = self.spec;
-        self.doc
-            .error_at(spec.model.line, None, format!("`transform: boxcox` needs values above 0 in `{}`; data line {line} has one of 0 or less", spec.model.value.response))
-            .hint("Box-Cox is defined for positive values only: leave such rows out with `exclude`, or remove `transform`")
-            .note(format!("data file {}", spec.data.value))
     }
 
     /// Planned contrasts and the trend over the level means, each mean's

@@ -4,6 +4,8 @@
 //! outcome carries.
 
 use super::notes::Note;
+use crate::diag::Diagnostic;
+use crate::doc::Document;
 use crate::doc::block::AnovaSpec;
 use crate::outcome::linear::Family;
 use crate::outcome::transform::{ArithmeticMeans, TransformDetail};
@@ -66,14 +68,24 @@ impl CellModel<'_> {
             .collect()
     }
 
-    /// The Box-Cox profile of this model for the positive responses `y`,
-    /// or the first line (index into `y`) holding a value of 0 or less.
-    pub fn box_cox(&self, y: &[f64], level: f64) -> Result<BoxCox, usize> {
+    /// The Box-Cox profile of this model for the positive responses `y`
+    /// (observation i from data line `line(i)`), its interval at 1 − α; a
+    /// value of 0 or less is an error naming its line.
+    pub fn box_cox(
+        &self,
+        (doc, spec): (&Document, &AnovaSpec),
+        y: &[f64],
+        line: impl Fn(usize) -> usize,
+        alpha: f64,
+    ) -> Result<BoxCox, Diagnostic> {
         if let Some(i) = y.iter().position(|&v| v <= 0.0 || !v.is_finite()) {
-            return Err(i);
+            return Err(doc
+                .error_at(spec.model.line, None, format!("`transform: boxcox` needs values above 0 in `{}`; data line {} has one of 0 or less", spec.model.value.response, line(i)))
+                .hint("Box-Cox is defined for positive values only: leave such rows out with `exclude`, or remove `transform`")
+                .note(format!("data file {}", spec.data.value)));
         }
         let residuals = |z: &[f64]| self.residuals(z);
-        Ok(Profile::new(y, &residuals).estimate(level))
+        Ok(Profile::new(y, &residuals).estimate(1.0 - alpha.min(0.5)))
     }
 }
 

@@ -123,7 +123,7 @@ pub(super) fn factor_groups<'a>(
             }
         })
         .collect::<Vec<Group<'a>>>();
-    let groups = match transformed(o) {
+    let groups = match o.transformation() {
         None => groups,
         Some(t) => (groups.into_iter())
             .map(|g| Group {
@@ -149,7 +149,7 @@ pub(super) fn factor_groups<'a>(
 /// The observations at each level of factor `f`, in data order, on the
 /// data's scale (a transformed block's values taken back).
 fn values_by_level(o: &LinearOutcome, f: usize) -> Vec<Vec<f64>> {
-    let back = |z: f64| transformed(o).map_or(z, |t| t.back(z));
+    let back = |z: f64| o.transformation().map_or(z, |t| t.back(z));
     let mut values = vec![Vec::new(); o.factors[f].levels.len()];
     for obs in &o.observations {
         if let Some(v) = obs.levels.get(f).and_then(|&l| values.get_mut(l)) {
@@ -157,14 +157,6 @@ fn values_by_level(o: &LinearOutcome, f: usize) -> Vec<Vec<f64>> {
         }
     }
     values
-}
-
-/// The transformation a block's numbers are on, if any: factor figures
-/// draw on the data's scale, with means and limits taken back.
-fn transformed(o: &LinearOutcome) -> Option<&crate::stats::transform::Declared> {
-    o.transform
-        .as_deref()
-        .and_then(crate::outcome::transform::TransformDetail::applied)
 }
 
 /// Captions name the response as the tables do: its label, else its column.
@@ -269,7 +261,7 @@ fn factor_figure(
 /// What a means plot shows, as its caption's first words say it.
 fn means_phrase(o: &LinearOutcome, source: MeansSource, subject: &str, factor: &str) -> String {
     let conf = confidence_label(o.alpha);
-    if let (Some(t), MeansSource::Levels | MeansSource::Marginal) = (transformed(o), source) {
+    if let (Some(t), MeansSource::Levels | MeansSource::Marginal) = (o.transformation(), source) {
         use crate::outcome::transform::Wording;
         return format!(
             "{} of {subject} by {factor} with {conf} confidence intervals, back-transformed from the {} scale",

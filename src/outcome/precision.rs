@@ -67,7 +67,7 @@ impl LinearOutcome {
     /// stratum has its own, or when the mean is zero.
     pub fn cv_percent(&self) -> Option<f64> {
         // On a transformed scale the ratio of SD to mean has no meaning.
-        let transformed = (self.transform.as_ref()).is_some_and(|t| t.declared.is_some());
+        let transformed = self.transformation().is_some();
         if self.mixed.is_some() || self.repeated.is_some() || transformed {
             return None;
         }

@@ -154,3 +154,11 @@ impl RatioEstimate {
         })
     }
 }
+
+impl crate::outcome::linear::LinearOutcome {
+    /// The transformation this block's numbers are on, if any (none for a
+    /// block that only asked for the Box-Cox profile).
+    pub fn transformation(&self) -> Option<&Declared> {
+        self.transform.as_deref().and_then(TransformDetail::applied)
+    }
+}

@@ -5,7 +5,7 @@
 use super::finite;
 use crate::outcome::linear::{Contrast, Estimate, Family, LinearOutcome};
 use crate::outcome::transform::{TransformDetail, Wording};
-use crate::stats::transform::{BoxCox, Declared};
+use crate::stats::transform::BoxCox;
 use serde::Serialize;
 
 #[derive(Serialize)]
@@ -107,13 +107,9 @@ fn box_cox_record(b: &BoxCox) -> BoxCoxRecord {
     }
 }
 
-fn applied(o: &LinearOutcome) -> Option<&Declared> {
-    o.transform.as_deref().and_then(TransformDetail::applied)
-}
-
 /// An estimate's mean and limits back on the data's scale.
 pub fn back_record(o: &LinearOutcome, e: &Estimate) -> Option<BackRecord> {
-    let t = applied(o)?;
+    let t = o.transformation()?;
     let b = TransformDetail::back(t, e.mean, e.ci_lower, e.ci_upper);
     Some(BackRecord {
         mean: finite(b.mean),
@@ -125,16 +121,19 @@ pub fn back_record(o: &LinearOutcome, e: &Estimate) -> Option<BackRecord> {
 /// The arithmetic mean on the data's scale of a main-effect family's
 /// estimate `i`.
 pub fn arithmetic_record(o: &LinearOutcome, family: &Family, i: usize) -> Option<f64> {
-    let d = o.transform.as_deref().filter(|d| d.declared.is_some())?;
+    o.transformation()?;
     if family.within.is_some() {
         return None;
     }
-    d.arithmetic_mean(&family.term, i).and_then(finite)
+    o.transform
+        .as_deref()?
+        .arithmetic_mean(&family.term, i)
+        .and_then(finite)
 }
 
 /// A pair's difference as a ratio, where the transformation gives one.
 pub fn ratio_record(o: &LinearOutcome, p: &Contrast) -> Option<RatioRecord> {
-    let r = crate::outcome::transform::RatioEstimate::of(applied(o)?, p)?;
+    let r = crate::outcome::transform::RatioEstimate::of(o.transformation()?, p)?;
     Some(RatioRecord {
         estimate: finite(r.estimate),
         lower: finite(r.lower),

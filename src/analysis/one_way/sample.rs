@@ -146,7 +146,6 @@ impl Reading<'_> {
         let mut sample = self.levels_of_scan(scanned, path)?;
         sample.excluded.extend(ruled_out);
         // Levels in design order, each with its own arithmetic mean.
-        let arithmetic: Vec<(String, f64)> = arithmetic;
         sample.arithmetic = (sample.names.iter())
             .filter_map(|n| arithmetic.iter().find(|(a, _)| a == n).map(|a| a.1))
             .collect();

@@ -43,12 +43,8 @@ pub(super) struct TransformContext {
     box_cox: Option<BoxCoxContext>,
 }
 
-fn applied(o: &LinearOutcome) -> Option<&crate::stats::transform::Declared> {
-    o.transform.as_deref().and_then(TransformDetail::applied)
-}
-
 pub(super) fn back(o: &LinearOutcome, e: &Estimate) -> Option<BackContext> {
-    let b = TransformDetail::back(applied(o)?, e.mean, e.ci_lower, e.ci_upper);
+    let b = TransformDetail::back(o.transformation()?, e.mean, e.ci_lower, e.ci_upper);
     Some(BackContext {
         mean: b.mean,
         lower: b.lower,
@@ -58,12 +54,12 @@ pub(super) fn back(o: &LinearOutcome, e: &Estimate) -> Option<BackContext> {
 
 pub(super) fn arithmetic(o: &LinearOutcome, fam: Option<&Family>, i: usize) -> Option<f64> {
     let fam = fam.filter(|f| f.within.is_none())?;
-    applied(o)?;
+    o.transformation()?;
     o.transform.as_deref()?.arithmetic_mean(&fam.term, i)
 }
 
 pub(super) fn ratio(o: &LinearOutcome, p: &Contrast) -> Option<RatioContext> {
-    let r = crate::outcome::transform::RatioEstimate::of(applied(o)?, p)?;
+    let r = crate::outcome::transform::RatioEstimate::of(o.transformation()?, p)?;
     Some(RatioContext {
         estimate: r.estimate,
         lower: r.lower,

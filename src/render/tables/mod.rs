@@ -128,7 +128,7 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         let compared = family.comparison.is_some() || o.is_one_factor();
         if show.means && compared {
             let number = numbers.next();
-            let transformed = transform::applied(o);
+            let transformed = o.transformation();
             tables.push(if o.is_one_factor() && o.method == Omnibus::Ranks {
                 means::ranks_table(o, family, &keys, number)
             } else if let Some(t) = transformed.filter(|_| family.term != "cells") {
@@ -329,7 +329,7 @@ fn family_table_id(o: &LinearOutcome, what: &str, family: &Family) -> String {
 /// transformed scale `ln(label)`.
 fn measure(o: &LinearOutcome) -> String {
     let plots = &o.presentation.plots;
-    if let Some(t) = transform::applied(o) {
+    if let Some(t) = o.transformation() {
         let name = plots.label.clone();
         let name = name.unwrap_or_else(|| plots.display(&o.response).to_string());
         // `Dry weight (mg)` → `ln(Dry weight)`: a unit has no log.

@@ -12,7 +12,7 @@ pub fn precision_note(o: &LinearOutcome, family: &Family) -> Option<String> {
         return None;
     }
     let d = o.presentation.decimals;
-    let unit = match super::transform::applied(o) {
+    let unit = match o.transformation() {
         Some(t) => format!(" ({})", super::transform::short_scale(t)),
         None => (o.presentation.plots.unit.as_ref()).map_or(String::new(), |u| format!(" {u}")),
     };

@@ -13,11 +13,6 @@ use crate::render::view::{Column, TableView};
 use crate::stats::compare::Method;
 use crate::stats::transform::{BoxCox, Declared, Transform};
 
-/// The transformation the block's numbers are on, if any.
-pub fn applied(o: &LinearOutcome) -> Option<&Declared> {
-    o.transform.as_deref().and_then(TransformDetail::applied)
-}
-
 /// The response in words as the report names it: the data's name, with
 /// the scale it was analysed on.
 pub fn scale_phrase(t: &Declared) -> String {
@@ -294,7 +289,7 @@ pub fn ratio_columns<'a>(
     o: &'a LinearOutcome,
     c: &crate::outcome::linear::Comparison,
 ) -> RatioColumns<'a> {
-    let t = applied(o).filter(|t| t.ratio_name().is_some());
+    let t = o.transformation().filter(|t| t.ratio_name().is_some());
     let decimals = ratio_decimals(t, c);
     let conf = format!("{} CI", confidence_label(o.alpha));
     RatioColumns { t, decimals, conf }
