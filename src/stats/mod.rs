@@ -4,6 +4,7 @@ pub mod assumptions;
 pub mod chi_scale;
 pub mod compare;
 pub mod dist;
+pub mod dose;
 pub mod dunnett;
 pub mod effect;
 pub mod extremes;
