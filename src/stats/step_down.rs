@@ -61,9 +61,16 @@ pub struct StepDown {
 /// by increasing dose. `None` with no dose, an empty group, a non-finite
 /// value, `alpha` outside (0, 1), or a step whose test cannot be computed
 /// (every value equal; for the contrast, no residual df or no variance).
-pub fn step_down(groups: &[&[f64]], test: TrendTest, direction: Direction, alpha: f64) -> Option<StepDown> {
+pub fn step_down(
+    groups: &[&[f64]],
+    test: TrendTest,
+    direction: Direction,
+    alpha: f64,
+) -> Option<StepDown> {
     if groups.len() < 2
-        || groups.iter().any(|g| g.is_empty() || g.iter().any(|x| !x.is_finite()))
+        || groups
+            .iter()
+            .any(|g| g.is_empty() || g.iter().any(|x| !x.is_finite()))
         || !(alpha > 0.0 && alpha < 1.0)
     {
         return None;
@@ -112,7 +119,10 @@ fn jonckheere_step(subset: &[&[f64]], direction: Direction) -> Option<TrendStep>
 /// t = Σcᵢȳᵢ / √(s²·Σcᵢ²/nᵢ), s² pooled from the groups in S_j.
 fn contrast_step(subset: &[&[f64]], direction: Direction) -> Option<TrendStep> {
     let sizes: Vec<f64> = subset.iter().map(|g| g.len() as f64).collect();
-    let means: Vec<f64> = subset.iter().map(|g| g.iter().sum::<f64>() / g.len() as f64).collect();
+    let means: Vec<f64> = subset
+        .iter()
+        .map(|g| g.iter().sum::<f64>() / g.len() as f64)
+        .collect();
     let total: f64 = sizes.iter().sum();
     let df = total - subset.len() as f64;
     let within: f64 = subset
@@ -124,7 +134,12 @@ fn contrast_step(subset: &[&[f64]], direction: Direction) -> Option<TrendStep> {
     if df < 1.0 || !crate::stats::is_positive(variance) {
         return None;
     }
-    let centre = sizes.iter().enumerate().map(|(i, n)| i as f64 * n).sum::<f64>() / total;
+    let centre = sizes
+        .iter()
+        .enumerate()
+        .map(|(i, n)| i as f64 * n)
+        .sum::<f64>()
+        / total;
     let (mut estimate, mut weight) = (0.0, 0.0);
     for (i, (n, m)) in sizes.iter().zip(&means).enumerate() {
         let c = i as f64 - centre;
