@@ -28,6 +28,8 @@ pub mod strata;
 pub mod sum;
 pub mod transform;
 pub mod welch;
+pub mod williams;
+pub mod williams_grid;
 
 /// True for a positive number; false for zero, negatives and NaN. Reads
 /// better than a negated comparison where NaN must count as "not positive".
