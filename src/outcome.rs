@@ -6,6 +6,7 @@ mod checks;
 pub mod contrasts;
 pub mod covariance;
 pub mod covariates;
+pub mod dose;
 pub mod linear;
 pub mod mixed;
 mod power;

@@ -8,6 +8,7 @@
 
 mod contrasts;
 mod covariates;
+mod dose;
 mod mixed;
 mod repeated;
 mod traits;
@@ -217,6 +218,9 @@ pub struct BlockRecord {
     /// Blocks with `transform`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub transform: Option<transform::TransformRecord>,
+    /// Blocks with `noec`: the dose-response tests.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dose_response: Option<dose::DoseRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -544,6 +548,7 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .transform
             .as_deref()
             .map(|d| transform::transform_record(d, &o.response)),
+        dose_response: o.dose.as_deref().map(dose::dose_record),
     }
 }
 

@@ -379,10 +379,9 @@ fn table_problems(study: &str, docx: &Built, html: &Built) -> Vec<String> {
             }
         };
         let printed = printed_numbers(text);
-        for (k, value) in values.iter().enumerate() {
-            let Some(mut value) = value.as_f64() else {
-                continue;
-            };
+        // A one-sided interval has its open end null and prints one number.
+        let numbers = values.iter().filter_map(Value::as_f64);
+        for (k, mut value) in numbers.enumerate() {
             // The covariance-structure table prints −2 log-likelihood from
             // the log-likelihood field (src/render/tables/covariance.rs);
             // the Box-Cox table prints the log-likelihood itself.

@@ -178,6 +178,134 @@ mod contract {
         /// Blocks with `transform` only.
         #[serde(default, deserialize_with = "present")]
         pub transform: Option<Transform>,
+        /// Blocks with `noec` only.
+        #[serde(default, deserialize_with = "present")]
+        pub dose_response: Option<DoseResponse>,
+    }
+
+    /// README: "Blocks with `noec` add `dose_response` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct DoseResponse {
+        pub factor: String,
+        pub control: String,
+        pub control_n: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub control_mean: Option<f64>,
+        pub direction: Direction,
+        pub alpha: f64,
+        pub doses_from: DosesFrom,
+        pub doses: Vec<DoseLevel>,
+        #[serde(deserialize_with = "nullable")]
+        pub error_ms: Option<f64>,
+        pub error_df: f64,
+        pub tests: std::collections::BTreeMap<DoseProcedure, DoseTest>,
+        pub agree: bool,
+        pub reversals: Vec<DoseReversal>,
+    }
+
+    #[derive(Deserialize, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum Direction {
+        Decrease,
+        Increase,
+    }
+
+    #[derive(Deserialize, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum DosesFrom {
+        Names,
+        Given,
+    }
+
+    #[derive(Deserialize, PartialEq, Eq, PartialOrd, Ord, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum DoseProcedure {
+        Williams,
+        Jonckheere,
+        Ordinal,
+        Dunnett,
+        Steel,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct DoseLevel {
+        pub level: String,
+        pub dose: f64,
+        pub n: u64,
+        #[serde(deserialize_with = "nullable")]
+        pub mean: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct DoseTest {
+        #[serde(deserialize_with = "nullable")]
+        pub loec: Option<String>,
+        #[serde(deserialize_with = "nullable")]
+        pub noec: Option<String>,
+        pub noec_reading: NoecReading,
+        pub kind: DoseKind,
+        #[serde(deserialize_with = "nullable")]
+        pub approximation: Option<String>,
+        pub unequal_replication: bool,
+        pub steps: Vec<DoseStep>,
+    }
+
+    #[derive(Deserialize, PartialEq, Debug)]
+    #[serde(rename_all = "snake_case")]
+    pub enum NoecReading {
+        Dose,
+        BelowLowest,
+        AtLeastHighest,
+    }
+
+    #[derive(Deserialize, PartialEq, Debug)]
+    #[serde(rename_all = "kebab-case")]
+    pub enum DoseKind {
+        StepDown,
+        ManyToOne,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct DoseStep {
+        pub level: String,
+        #[serde(deserialize_with = "nullable")]
+        pub statistic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub z: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub restricted_mean: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub critical: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        pub p_source: PSource,
+        pub tested: bool,
+        pub significant: bool,
+    }
+
+    #[derive(Deserialize, PartialEq, Debug)]
+    #[serde(rename_all = "lowercase")]
+    pub enum PSource {
+        Exact,
+        Normal,
+        T,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct DoseReversal {
+        pub level: String,
+        #[serde(deserialize_with = "nullable")]
+        pub t: Option<f64>,
+        pub df: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
     }
 
     /// README: "Blocks with `transform` add `transform` …".
@@ -986,6 +1114,7 @@ mod contract {
         Profile,
         Subjects,
         Trend,
+        Doses,
         Power,
     }
 
@@ -1534,8 +1663,90 @@ fn check_anova(p: &mut Problems, at: &str, b: &AnovaBlock) {
     if factorial {
         check_factorial_groups(p, at, b);
     }
+    if let Some(d) = &b.dose_response {
+        check_dose(p, &format!("{at}.dose_response"), d);
+    }
     for (i, c) in b.comparisons.iter().enumerate() {
         check_comparison(p, &format!("{at}.comparisons[{i}]"), b, c);
+    }
+}
+
+/// README, "Blocks with `noec` add `dose_response`": one step per dose, the
+/// doses in increasing order, and the NOEC reading that the LOEC implies.
+fn check_dose(p: &mut Problems, at: &str, d: &DoseResponse) {
+    p.require(
+        d.doses.windows(2).all(|w| w[0].dose < w[1].dose),
+        at,
+        "doses are not in increasing order",
+    );
+    p.require(
+        d.doses.iter().all(|l| l.level != d.control),
+        at,
+        "the control is listed among the doses",
+    );
+    for (name, t) in &d.tests {
+        let at = format!("{at}.tests.{name:?}");
+        let levels: Vec<&str> = t.steps.iter().map(|s| s.level.as_str()).collect();
+        let doses: Vec<&str> = d.doses.iter().map(|l| l.level.as_str()).collect();
+        p.require(
+            levels == doses,
+            &at,
+            "steps are not one per dose, in dose order",
+        );
+        let reading = match (&t.loec, &t.noec) {
+            (None, None) => NoecReading::AtLeastHighest,
+            (Some(l), None) => {
+                p.require(
+                    Some(l.as_str()) == doses.first().copied(),
+                    &at,
+                    "no NOEC below a LOEC above the lowest dose",
+                );
+                NoecReading::BelowLowest
+            }
+            (Some(l), Some(n)) => {
+                let (li, ni) = (
+                    doses.iter().position(|x| x == l),
+                    doses.iter().position(|x| x == n),
+                );
+                p.require(
+                    li.is_some() && ni.map(|i| i + 1) == li,
+                    &at,
+                    "the NOEC is not the dose below the LOEC",
+                );
+                NoecReading::Dose
+            }
+            (None, Some(_)) => {
+                p.require(false, &at, "a NOEC without a LOEC");
+                NoecReading::Dose
+            }
+        };
+        p.require(
+            t.noec_reading == reading,
+            &at,
+            format!("noec_reading is {:?}", t.noec_reading),
+        );
+        for s in &t.steps {
+            p.require(
+                is_probability(s.p),
+                &at,
+                format!("step {} p is not a probability", s.level),
+            );
+            p.require(
+                !s.significant || s.tested,
+                &at,
+                format!("step {} significant but not tested", s.level),
+            );
+        }
+        // Step-down procedures test from the highest dose down, and stop at
+        // the first dose without an effect.
+        if t.kind == DoseKind::StepDown {
+            let tested: Vec<bool> = t.steps.iter().rev().map(|s| s.tested).collect();
+            p.require(
+                tested.windows(2).all(|w| w[0] || !w[1]),
+                &at,
+                "tested steps are not a run from the highest dose",
+            );
+        }
     }
 }
 

@@ -97,6 +97,7 @@ impl Engine<'_> {
         let comparison = self.comparison(&sample, &levels, &table, &alternatives, &mut notes)?;
         let (contrasts, trend) = self.contrasts_and_trend(&factor, &levels, &table)?;
         let families = vec![outcome::level_family(&factor, &levels, comparison)];
+        let dose = self.dose(&sample, &factor, &levels, &table, &families)?;
         let transform = self.transform_detail(&sample, &factor, &families, &mut notes)?;
         let decimals = decimals_shown(
             self.doc,
@@ -165,7 +166,33 @@ impl Engine<'_> {
             contrasts: contrasts.map(Box::new),
             trend: trend.map(Box::new),
             transform: transform.map(Box::new),
+            dose: dose.map(Box::new),
         })
+    }
+
+    /// The dose-response tests (`noec`), with Dunnett's comparisons read
+    /// for the NOEC when the block asked for them.
+    fn dose(
+        &self,
+        sample: &Sample,
+        factor: &str,
+        levels: &[crate::outcome::linear::LevelSummary],
+        table: &OneWay,
+        families: &[crate::outcome::linear::Family],
+    ) -> Result<Option<crate::outcome::dose::DoseDetail>, Diagnostic> {
+        let dunnett = families[0]
+            .comparison
+            .as_ref()
+            .filter(|c| c.method == crate::stats::compare::Method::Dunnett);
+        let input = super::dose::DoseInput {
+            factor,
+            levels,
+            observations: sample.raw.as_ref().map(|(o, _)| o.as_slice()),
+            mse: table.ms_within,
+            df: table.df_within as f64,
+            dunnett,
+        };
+        super::dose::dose_response(self.doc, self.spec, self.alpha, &input)
     }
 
     /// The transformation's detail (and the Box-Cox profile when asked).

@@ -113,10 +113,13 @@ pub enum PlotKind {
     /// A quantitative factor's means at their values, with the fitted
     /// trend (`trend`).
     Trend,
+    /// The means in dose order against the control's, with the doses that
+    /// have an effect marked (`noec`).
+    Doses,
 }
 
 impl PlotKind {
-    pub const ALL: [PlotKind; 9] = [
+    pub const ALL: [PlotKind; 10] = [
         PlotKind::Box,
         PlotKind::Means,
         PlotKind::Strip,
@@ -126,6 +129,7 @@ impl PlotKind {
         PlotKind::Profile,
         PlotKind::Subjects,
         PlotKind::Trend,
+        PlotKind::Doses,
     ];
 
     pub fn key(self) -> &'static str {
@@ -139,6 +143,7 @@ impl PlotKind {
             PlotKind::Profile => "profile",
             PlotKind::Subjects => "subjects",
             PlotKind::Trend => "trend",
+            PlotKind::Doses => "doses",
         }
     }
 }
@@ -262,6 +267,8 @@ pub struct AnovaSpec {
     pub cells: Option<Located<CellComparison>>,
     /// A polynomial trend over a quantitative factor's levels.
     pub trend: Option<super::block_trend::TrendSpec>,
+    /// Dose-response tests for the NOEC and LOEC (`noec`, `doses`).
+    pub dose: Option<super::block_dose::DoseSpec>,
     /// Planned contrasts among one factor's levels, and their adjustment.
     pub contrasts: Vec<super::block_contrasts::ContrastSpec>,
     pub contrast_adjust: super::block_contrasts::ContrastAdjust,

@@ -83,14 +83,16 @@ fn procedure_keys(d: &AnovaDraft, compare: Option<Method>, fence_line: usize) ->
             )
         })
     };
+    // The dose-response tests read `control` and `sides` too.
+    let doses = d.noec.is_some();
     errors.extend(only(
-        d.control.as_ref(),
+        d.control.as_ref().filter(|_| !doses),
         Method::Dunnett,
         "control",
         "remove it, or choose `compare: dunnett`",
     ));
     errors.extend(only(
-        d.sides.as_ref().map(|(e, _)| e),
+        d.sides.as_ref().map(|(e, _)| e).filter(|_| !doses),
         Method::Dunnett,
         "sides",
         "the other procedures are two-sided",
@@ -306,6 +308,7 @@ pub(super) fn resolve(
     ));
     errors.extend(super::block_contrasts::contrast_keys(&d));
     errors.extend(super::block_trend::trend_keys(&d));
+    errors.extend(super::block_dose::dose_keys(&d, &model.value));
     errors.extend(super::block_transform::transform_keys(&d));
     errors.extend(model_keys(&mut d, &model.value));
     errors.extend(super::block_covariance::covariance_keys(&d));
@@ -329,12 +332,20 @@ pub(super) fn resolve(
     let random = super::block_random::located_terms(&d);
     let covariance = super::block_covariance::located_covariance(&d);
     let covariates = super::block_covariates::located_covariates(&d);
+    let dose = super::block_dose::dose_spec(&mut d);
+    // Dose-response blocks read their tables in level order.
+    let default_order = if dose.is_some() {
+        Order::Levels
+    } else {
+        Order::Mean
+    };
     Ok(AnovaSpec {
         transform: super::block_transform::declared(&d),
         box_cox: super::block_transform::box_cox(&d),
         covariates,
         contrasts: d.contrasts,
         trend: d.trend,
+        dose,
         contrast_adjust: d.contrast_adjust.map(|c| c.value).unwrap_or_default(),
         acknowledge: d.acknowledge,
         sheet: d.sheet.map(|e| e.value),
@@ -372,7 +383,7 @@ pub(super) fn resolve(
         decimals: d.decimals,
         csv: d.csv,
         protected: d.protected.is_none_or(|(_, p)| p),
-        order: d.order.unwrap_or(Order::Mean),
+        order: d.order.unwrap_or(default_order),
         show: d.show.unwrap_or(Show {
             anova: true,
             means: true,

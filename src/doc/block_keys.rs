@@ -80,6 +80,10 @@ pub struct AnovaDraft {
     pub transform: Option<(Entry, super::block_transform::TransformChoice)>,
     /// `offset`: a constant added before a log or square root.
     pub offset: Option<(Entry, f64)>,
+    /// `noec`: the dose-response procedures asked for.
+    pub noec: Option<(Entry, Vec<super::block_dose::DoseProcedure>)>,
+    /// `doses`: each level's dose, when the names are not numbers.
+    pub doses: Option<Located<Vec<(String, f64)>>>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -118,6 +122,8 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("trend", super::block_trend::read_trend),
         ("transform", super::block_transform::read_transform),
         ("offset", super::block_transform::read_offset),
+        ("noec", super::block_dose::read_noec),
+        ("doses", super::block_dose::read_doses),
         (
             "contrast_adjust",
             super::block_contrasts::read_contrast_adjust,

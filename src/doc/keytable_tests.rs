@@ -62,6 +62,11 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("trend", "trend: g = a 0, b 10, c 40"),
     ("transform", "transform: log"),
     ("offset", "transform: sqrt\noffset: 0.375"),
+    ("noec", "control: a\nsides: less\nnoec: williams, steel"),
+    (
+        "doses",
+        "control: a\nsides: greater\nnoec: jonckheere\ndoses: b 10, c 40",
+    ),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

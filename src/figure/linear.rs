@@ -148,7 +148,7 @@ pub(super) fn factor_groups<'a>(
 
 /// The observations at each level of factor `f`, in data order, on the
 /// data's scale (a transformed block's values taken back).
-fn values_by_level(o: &LinearOutcome, f: usize) -> Vec<Vec<f64>> {
+pub(super) fn values_by_level(o: &LinearOutcome, f: usize) -> Vec<Vec<f64>> {
     let back = |z: f64| o.transformation().map_or(z, |t| t.back(z));
     let mut values = vec![Vec::new(); o.factors[f].levels.len()];
     for obs in &o.observations {
@@ -311,6 +311,9 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
                 .as_deref()
                 .map_or("", |t| o.presentation.plots.display(&t.factor));
             super::trend::trend_figure(o, id, n, (x_title, &axis_title(o)))
+        }
+        PlotKind::Doses => {
+            super::dose::dose_figure(o, id, n, &values_by_level(o, 0), (subject, &axis_title(o)))
         }
         PlotKind::Residuals => {
             let many = dense::summarised(count);
@@ -515,7 +518,11 @@ fn dense_note(kind: PlotKind, observations: usize) -> String {
                 ),
             );
         }
-        PlotKind::Interaction | PlotKind::Profile | PlotKind::Subjects | PlotKind::Trend => {
+        PlotKind::Interaction
+        | PlotKind::Profile
+        | PlotKind::Subjects
+        | PlotKind::Trend
+        | PlotKind::Doses => {
             return String::new();
         }
     };

@@ -7,6 +7,7 @@
 //! figures stay readable in greyscale and in print.
 
 pub mod dense;
+mod dose;
 pub mod linear;
 pub mod plots;
 mod trend;

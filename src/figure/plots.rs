@@ -54,6 +54,7 @@ impl Chart<'_> {
 }
 
 /// One group on a categorical axis.
+#[derive(Clone)]
 pub(super) struct Group<'a> {
     pub label: &'a str,
     pub values: &'a [f64],

@@ -286,6 +286,9 @@ pub struct LinearOutcome {
     /// A transformed response (`transform`), or the Box-Cox profile.
     #[serde(default)]
     pub transform: Option<Box<super::transform::TransformDetail>>,
+    /// Dose-response tests for the NOEC and LOEC (`noec`).
+    #[serde(default)]
+    pub dose: Option<Box<super::dose::DoseDetail>>,
 }
 
 impl LinearOutcome {

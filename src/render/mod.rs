@@ -44,6 +44,9 @@ pub const RANDOM_TERMS_CAUTION: &str = "A random term treats its units (blocks, 
 /// responses.
 pub const TRAITS_CAUTION: &str = "A block with several responses tests each trait on its own: the more traits, the more tests, and the more likely one of them is significant by chance. No adjustment across traits is customary, and none is made; weigh a single significant trait among many accordingly, and name the traits of primary interest before the trial.";
 
+/// Printed before the review caution when a block finds a NOEC.
+pub const NOEC_CAUTION: &str = "A NOEC is one of the tested doses, not an estimate of a threshold: it depends on the doses chosen and on the replication, and a regression-based ECx is generally preferred where the response allows it (OECD 2006). Dose-response procedures can disagree; choose and name the one you report before the data are seen.";
+
 /// Renders the report. The document's name and bytes (as read, for its
 /// hash) and the results file's name appear in the provenance note.
 pub fn render_report(
@@ -134,8 +137,16 @@ fn linear_choices(o: &LinearOutcome) -> String {
             (None, None) => String::new(),
         }
     });
+    let doses = o.dose.as_deref().map_or(String::new(), |d| {
+        let names: Vec<&str> = d.tests.iter().map(|t| t.method.title()).collect();
+        format!(
+            "; NOEC and LOEC by {} (one-sided, {})",
+            names.join(", "),
+            d.direction.key()
+        )
+    });
     format!(
-        "`{}` (line {}): {model}{scale}; {}; α = {}; {} used, {} left out.",
+        "`{}` (line {}): {model}{scale}; {}{doses}; α = {}; {} used, {} left out.",
         o.id,
         o.line,
         compare.unwrap_or_else(|| "no pairwise comparisons".to_string()),

@@ -5,7 +5,9 @@
 use super::templates::{template_source, to_value};
 use super::view::BlockView;
 use super::writer::Writer;
-use super::{CAUTIONS, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of, inline, tables, view};
+use super::{
+    CAUTIONS, NOEC_CAUTION, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of, inline, tables, view,
+};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::escape::markdown_escape;
@@ -101,6 +103,18 @@ impl<'a> Report<'a> {
             .any(|r| matches!(r, BlockResult::Traits(_)))
         {
             cautions.insert(2, TRAITS_CAUTION);
+        }
+        if self
+            .results
+            .iter()
+            .any(|r| r.linear().is_some_and(|o| o.dose.is_some()))
+        {
+            // Before the review and regulatory cautions, which close the list.
+            let at = cautions
+                .iter()
+                .position(|c| *c == CAUTIONS[3])
+                .unwrap_or(cautions.len());
+            cautions.insert(at, NOEC_CAUTION);
         }
         cautions
     }

@@ -9,6 +9,7 @@ mod checks;
 mod contrasts;
 mod covariance;
 mod covariates;
+mod dose;
 mod keys;
 mod means;
 mod mixed;
@@ -152,6 +153,17 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     }
     if let Some(t) = o.trend.as_deref() {
         tables.push(trend::trend_table(o, t, &keys, numbers.next()));
+    }
+    if let Some(d) = o.dose.as_deref() {
+        // Dunnett's steps are the pairs table already shown.
+        for t in d
+            .tests
+            .iter()
+            .filter(|t| t.method != crate::outcome::dose::DoseMethod::Dunnett)
+        {
+            tables.push(dose::dose_table(o, d, t, &keys, numbers.next()));
+        }
+        tables.push(dose::noec_table(o, d, &keys, numbers.next()));
     }
     if let Some(layout) = cell_letters.filter(|_| show.pairs) {
         let number = *numbers.0;
