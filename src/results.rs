@@ -8,6 +8,7 @@
 
 mod contrasts;
 mod covariates;
+mod friedman;
 mod mixed;
 mod repeated;
 mod traits;
@@ -217,6 +218,9 @@ pub struct BlockRecord {
     /// Blocks with `transform`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub transform: Option<transform::TransformRecord>,
+    /// Friedman's test (`method: ranks` with `block:`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub friedman: Option<friedman::FriedmanRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -544,6 +548,11 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .transform
             .as_deref()
             .map(|d| transform::transform_record(d, &o.response)),
+        friedman: o.friedman.as_deref().map(|d| {
+            let term = &o.factors[d.factor].name;
+            let compared = o.main_family(term).and_then(|f| f.comparison.as_ref());
+            friedman::friedman_record(o, d, compared)
+        }),
     }
 }
 

@@ -11,6 +11,9 @@
 //! from memory), Conover (1999) Example 5.8.1 (lawn grasses, ranks with
 //! ties, from memory) and tests/data/invented/crispness.csv (invented).
 
+mod documents;
+
+use documents::{build, build_report};
 use serde_json::Value;
 use sheaf::stats::friedman::{conover, friedman, nemenyi};
 
@@ -27,7 +30,12 @@ fn nums(v: &Value) -> Vec<f64> {
 }
 
 fn table(set: &Value) -> Vec<Vec<f64>> {
-    set["table"].as_array().expect("table").iter().map(nums).collect()
+    set["table"]
+        .as_array()
+        .expect("table")
+        .iter()
+        .map(nums)
+        .collect()
 }
 
 /// Relative difference, or absolute below 1 in magnitude.
@@ -147,4 +155,157 @@ fn conover_agrees_with_scikit_posthocs() {
             );
         }
     }
+}
+
+/// The rounding-first-base table as a long CSV: player, method, time.
+fn rounding_csv(set: &Value) -> String {
+    let levels: Vec<&str> = set["levels"]
+        .as_array()
+        .expect("levels")
+        .iter()
+        .map(|l| l.as_str().unwrap_or("?"))
+        .collect();
+    let mut csv = String::from("player,method,time\n");
+    for (i, row) in table(set).iter().enumerate() {
+        for (level, value) in levels.iter().zip(row) {
+            csv.push_str(&format!("p{},{level},{value:.2}\n", i + 1));
+        }
+    }
+    csv
+}
+
+fn blocked(extra: &str) -> String {
+    format!(
+        "```anova\nid: run\ndata: d.csv\nmodel: time ~ method + player\nblock: player\nmethod: ranks\n{extra}```\n\n{{{{ run | statement }}}}\n"
+    )
+}
+
+#[test]
+fn a_blocked_rank_block_runs_friedmans_test_end_to_end() {
+    // The textbook set through a document: the results file's numbers are the
+    // library's, as in friedman_statistic_agrees_with_scipy (same tolerances).
+    let fx = fixture();
+    let set = &fx["sets"][0];
+    let (report, results) =
+        build_report(&blocked(""), &[("d.csv", rounding_csv(set))]).expect("builds");
+    let block = &results["blocks"][0];
+    let f = &block["friedman"];
+    assert_eq!(block["method"], "ranks");
+    assert!(diff(num(&f["statistic"]), num(&set["chi_sq"])) < 1e-10);
+    assert!(diff(num(&f["p"]), num(&set["p"])) < 1e-10);
+    assert!(diff(num(&f["kendall_w"]), num(&set["kendall_w"])) < 1e-12);
+    assert_eq!(f["blocks"], 22);
+    assert_eq!(f["procedure"], "nemenyi");
+    let sums: Vec<f64> = f["levels"]
+        .as_array()
+        .expect("levels")
+        .iter()
+        .map(|l| num(&l["rank_sum"]))
+        .collect();
+    assert_eq!(sums, nums(&set["rank_sums"]));
+    let want = nums(&set["nemenyi_p"]);
+    for (i, p) in f["pairs"].as_array().expect("pairs").iter().enumerate() {
+        assert!((num(&p["p_adj"]) - want[i]).abs() < 1e-10, "pair {i}");
+    }
+    // The comparison family carries the same decisions and letters.
+    let c = &block["comparisons"][0];
+    assert_eq!(c["method"], "nemenyi");
+    assert_eq!(c["letters"]["wide angle"], f["levels"][2]["letters"]);
+    // The table, the statement and the cautions.
+    assert!(report.contains("Friedman's test of time by method within player"));
+    assert!(report.contains("Friedman χ²(2) = 11.14, p = 0.004; Kendall's W = 0.25"));
+    assert!(report.contains("Ties within blocks"));
+    assert!(report.contains("discards how large the differences are"));
+}
+
+#[test]
+fn conover_is_offered_and_protected_by_the_test() {
+    let fx = fixture();
+    let set = &fx["sets"][0];
+    let results = build(
+        &blocked("compare: conover\n"),
+        &[("d.csv", rounding_csv(set))],
+    )
+    .expect("builds");
+    let f = &results["blocks"][0]["friedman"];
+    assert_eq!(f["procedure"], "conover");
+    let want = nums(&set["conover_p"]);
+    for (i, p) in f["pairs"].as_array().expect("pairs").iter().enumerate() {
+        assert!(diff(num(&p["p_adj"]), want[i]) < 1e-10, "pair {i}");
+    }
+    // At α = 0.001 Friedman's p (0.0038) does not reject: no pair is declared.
+    let (report, results) = build_report(
+        &blocked("compare: conover\nalpha: 0.001\n"),
+        &[("d.csv", rounding_csv(set))],
+    )
+    .expect("builds");
+    let pairs = results["blocks"][0]["friedman"]["pairs"]
+        .as_array()
+        .cloned();
+    assert!(
+        pairs
+            .expect("pairs")
+            .iter()
+            .all(|p| p["significant"] == false)
+    );
+    assert!(report.contains("no pair is declared different"));
+}
+
+#[test]
+fn incomplete_and_repeated_blocks_are_refused_with_names() {
+    let fx = fixture();
+    let set = &fx["sets"][0];
+    let csv = rounding_csv(set);
+    // p3 loses its wide-angle time.
+    let missing: String = csv
+        .lines()
+        .filter(|l| *l != "p3,wide angle,5.50")
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let err = build_report(&blocked(""), &[("d.csv", missing)]).expect_err("refused");
+    assert!(err.contains("`p3` lacks `wide angle`"), "{err}");
+    assert!(err.contains("`where` or `exclude`"), "{err}");
+    // p5 timed twice with the narrow angle.
+    let doubled = format!("{csv}p5,narrow angle,5.80\n");
+    let err = build_report(&blocked(""), &[("d.csv", doubled)]).expect_err("refused");
+    assert!(
+        err.contains("`p5` has 2 observations of `narrow angle`"),
+        "{err}"
+    );
+    assert!(err.contains("average the replicates"), "{err}");
+}
+
+#[test]
+fn keys_friedmans_test_cannot_honour_are_refused() {
+    let fx = fixture();
+    let csv = rounding_csv(&fx["sets"][0]);
+    let files = [("d.csv", csv)];
+    for (extra, expect) in [
+        ("compare: dunn\n", "compare: nemenyi"),
+        ("compare: tukey\n", "does not fit `method: ranks`"),
+        ("plot: means\n", "plot: box"),
+        ("within: method\n", "does not apply to Friedman's test"),
+        ("transform: log\n", "remove `transform`"),
+        ("random: player\n", "random terms"),
+    ] {
+        let err = build_report(&blocked(extra), &files).expect_err(extra);
+        assert!(err.contains(expect), "{extra}: {err}");
+    }
+    // Nemenyi needs blocks; two treatment factors are refused by the engine.
+    let one_factor =
+        "```anova\ndata: d.csv\nmodel: time ~ method\nmethod: ranks\ncompare: nemenyi\n```\n";
+    let err = build_report(one_factor, &files).expect_err("no blocks");
+    assert!(err.contains("add `block:`"), "{err}");
+    let two = "```anova\ndata: d.csv\nmodel: time ~ method + player + site\nblock: player\nmethod: ranks\n```\n";
+    let with_site: String = files[0]
+        .1
+        .lines()
+        .enumerate()
+        .map(|(i, l)| match i {
+            0 => format!("{l},site\n"),
+            _ => format!("{l},s{}\n", i % 2),
+        })
+        .collect();
+    let err = build_report(two, &[("d.csv", with_site)]).expect_err("two factors");
+    assert!(err.contains("one treatment factor"), "{err}");
 }

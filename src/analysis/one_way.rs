@@ -165,6 +165,7 @@ impl Engine<'_> {
             contrasts: contrasts.map(Box::new),
             trend: trend.map(Box::new),
             transform: transform.map(Box::new),
+            friedman: None,
         })
     }
 

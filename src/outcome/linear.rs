@@ -286,6 +286,9 @@ pub struct LinearOutcome {
     /// A transformed response (`transform`), or the Box-Cox profile.
     #[serde(default)]
     pub transform: Option<Box<super::transform::TransformDetail>>,
+    /// Friedman's test (`method: ranks` with a `block:` factor).
+    #[serde(default)]
+    pub friedman: Option<Box<super::friedman::FriedmanDetail>>,
 }
 
 impl LinearOutcome {

@@ -91,7 +91,9 @@ fn no_ties_means_no_correction() {
 #[test]
 fn perfect_agreement_gives_w_one() {
     // Every block ranks the levels alike: W = 1, χ² = b(k − 1).
-    let table: Vec<Vec<f64>> = (0..5).map(|b| vec![b as f64, 10.0 + b as f64, 20.0]).collect();
+    let table: Vec<Vec<f64>> = (0..5)
+        .map(|b| vec![b as f64, 10.0 + b as f64, 20.0])
+        .collect();
     let f = friedman(&table).expect("defined");
     assert!((f.kendall_w - 1.0).abs() < 1e-15);
     assert!((f.chi_sq - 10.0).abs() < 1e-12);
@@ -101,7 +103,10 @@ fn perfect_agreement_gives_w_one() {
 
 #[test]
 fn refusals() {
-    assert_eq!(friedman(&[vec![1.0, 2.0]]), Err(FriedmanError::TooFewBlocks(1)));
+    assert_eq!(
+        friedman(&[vec![1.0, 2.0]]),
+        Err(FriedmanError::TooFewBlocks(1))
+    );
     assert_eq!(
         friedman(&[vec![1.0], vec![2.0]]),
         Err(FriedmanError::TooFewLevels(1))
