@@ -287,6 +287,8 @@ fn keys_friedmans_test_cannot_honour_are_refused() {
         ("within: method\n", "does not apply to Friedman's test"),
         ("transform: log\n", "remove `transform`"),
         ("random: player\n", "random terms"),
+        ("subject: player\n", "random terms"),
+        ("covariate: time\n", "covariate"),
     ] {
         let err = build_report(&blocked(extra), &files).expect_err(extra);
         assert!(err.contains(expect), "{extra}: {err}");
@@ -308,4 +310,17 @@ fn keys_friedmans_test_cannot_honour_are_refused() {
         .collect();
     let err = build_report(two, &[("d.csv", with_site)]).expect_err("two factors");
     assert!(err.contains("one treatment factor"), "{err}");
+    // One block only: the block factor has a single level.
+    let one_block: String = files[0]
+        .1
+        .lines()
+        .filter(|l| l.starts_with("player,") || l.starts_with("p1,"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let err = build_report(&blocked(""), &[("d.csv", one_block)]).expect_err("one block");
+    assert!(err.contains("`player` has 1 level with data"), "{err}");
+    // Several responses are refused with ranks.
+    let traits = "```anova\ndata: d.csv\nmodel: time, time2 ~ method + player\nblock: player\nmethod: ranks\n```\n";
+    let err = build_report(traits, &files).expect_err("several responses");
+    assert!(err.contains("several responses"), "{err}");
 }
