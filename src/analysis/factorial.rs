@@ -271,10 +271,18 @@ impl Analysed {
         if let Some(ranked) = &self.ranked {
             let mut families = comparing.marginal_means();
             let term = &self.model.factor_names[ranked.factor];
-            if let (Some(method), Some(family)) =
-                (spec.compare, families.iter_mut().find(|f| &f.term == term))
-            {
-                family.comparison = friedman::comparison(ranked, method, self.alpha, notes);
+            match (spec.compare, families.iter_mut().find(|f| &f.term == term)) {
+                (Some(method), Some(family)) => {
+                    family.comparison = friedman::comparison(ranked, method, self.alpha, notes);
+                }
+                // Only a factor beyond the comparable number of levels has no family.
+                (Some(_), None) => notes.push(Note::other(format!(
+                    "{} levels would give {} pairwise comparisons; sheaf compares at most {} levels. Group the levels, or use `compare: none`.",
+                    ranked.levels.len(),
+                    ranked.levels.len() * (ranked.levels.len() - 1) / 2,
+                    super::MAX_COMPARED_LEVELS
+                ))),
+                (None, _) => {}
             }
             return Ok((checks, families));
         }
