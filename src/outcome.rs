@@ -7,6 +7,7 @@ pub mod contrasts;
 pub mod covariance;
 pub mod covariates;
 pub mod dose;
+pub mod friedman;
 pub mod linear;
 pub mod mixed;
 mod power;
@@ -91,5 +92,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 13;
+    const SCHEMA: u32 = 14;
 }

@@ -9,6 +9,7 @@
 mod contrasts;
 mod covariates;
 mod dose;
+mod friedman;
 mod mixed;
 mod repeated;
 mod traits;
@@ -221,6 +222,9 @@ pub struct BlockRecord {
     /// Blocks with `noec`: the dose-response tests.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub dose_response: Option<dose::DoseRecord>,
+    /// Friedman's test (`method: ranks` with `block:`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub friedman: Option<friedman::FriedmanRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -549,6 +553,11 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .as_deref()
             .map(|d| transform::transform_record(d, &o.response)),
         dose_response: o.dose.as_deref().map(dose::dose_record),
+        friedman: o.friedman.as_deref().map(|d| {
+            let term = &o.factors[d.factor].name;
+            let compared = o.main_family(term).and_then(|f| f.comparison.as_ref());
+            friedman::friedman_record(o, d, compared)
+        }),
     }
 }
 

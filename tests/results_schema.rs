@@ -178,6 +178,9 @@ mod contract {
         /// Blocks with `transform` only.
         #[serde(default, deserialize_with = "present")]
         pub transform: Option<Transform>,
+        /// Friedman's test (`method: ranks` with `block:`) only.
+        #[serde(default, deserialize_with = "present")]
+        pub friedman: Option<Friedman>,
         /// Blocks with `noec` only.
         #[serde(default, deserialize_with = "present")]
         pub dose_response: Option<DoseResponse>,
@@ -306,6 +309,56 @@ mod contract {
         pub df: f64,
         #[serde(deserialize_with = "nullable")]
         pub p: Option<f64>,
+    }
+
+    /// README: "Blocks with `method: ranks` and `block:` add `friedman` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Friedman {
+        pub factor: String,
+        pub block: String,
+        #[serde(deserialize_with = "nullable")]
+        pub statistic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub statistic_uncorrected: Option<f64>,
+        pub df: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub kendall_w: Option<f64>,
+        pub blocks: u64,
+        pub ties: f64,
+        pub tie_correction: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub procedure: Option<Procedure>,
+        pub levels: Vec<RankedLevel>,
+        pub pairs: Vec<RankPair>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct RankedLevel {
+        pub level: String,
+        pub blocks: u64,
+        pub rank_sum: f64,
+        pub mean_rank: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub median: Option<f64>,
+        pub letters: String,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct RankPair {
+        pub a: String,
+        pub b: String,
+        pub rank_sum_diff: f64,
+        pub mean_rank_diff: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub statistic: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_adj: Option<f64>,
+        pub significant: bool,
     }
 
     /// README: "Blocks with `transform` add `transform` …".
@@ -1034,6 +1087,8 @@ mod contract {
         Dunnett,
         GamesHowell,
         Dunn,
+        Nemenyi,
+        Conover,
     }
 
     #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
@@ -1614,11 +1669,21 @@ fn check_anova(p: &mut Problems, at: &str, b: &AnovaBlock) {
         at,
         "welch is present exactly when method is welch",
     );
+    // `method: ranks` is Kruskal-Wallis in one-factor blocks and
+    // Friedman's test in blocked ones.
     p.require(
-        b.kruskal.is_some() == (b.method == Omnibus::Ranks),
+        b.kruskal.is_some() == (b.method == Omnibus::Ranks && b.ss_type.is_none()),
         at,
-        "kruskal is present exactly when method is ranks",
+        "kruskal is present exactly when method is ranks in a one-factor block",
     );
+    p.require(
+        b.friedman.is_some() == (b.method == Omnibus::Ranks && b.ss_type.is_some()),
+        at,
+        "friedman is present exactly when method is ranks in a blocked block",
+    );
+    if let Some(f) = &b.friedman {
+        check_friedman(p, &format!("{at}.friedman"), b, f);
+    }
     let factorial = b.ss_type.is_some();
     p.require(
         b.cells.is_some() == factorial,
@@ -1956,13 +2021,16 @@ fn check_pair(
         );
         return;
     };
-    if c.method == Procedure::Dunn {
-        // Dunn's diff is a difference of mean ranks, which the file does not hold; it has no
-        // intervals.
+    if matches!(
+        c.method,
+        Procedure::Dunn | Procedure::Nemenyi | Procedure::Conover
+    ) {
+        // Rank procedures' diff is a difference of mean ranks (Dunn, Nemenyi) or of rank
+        // sums (Conover), not of means; they have no intervals.
         p.require(
             pair.lower.is_none() && pair.upper.is_none(),
             at,
-            "Dunn has an interval",
+            "a rank procedure has an interval",
         );
         return;
     }
@@ -1980,6 +2048,78 @@ fn check_pair(
                 pair.b,
                 a - b
             ),
+        );
+    }
+}
+
+/// README: Friedman's record, and its agreement with the block's comparison of the
+/// treatment factor (the same pairs and letters; Nemenyi's diff is the difference of
+/// mean ranks, Conover's of rank sums).
+fn check_friedman(p: &mut Problems, at: &str, b: &AnovaBlock, f: &Friedman) {
+    p.require(is_probability(f.p), at, "p is not a probability");
+    p.require(
+        f.kendall_w.is_none_or(|w| (0.0..=1.0 + 1e-12).contains(&w)),
+        at,
+        "kendall_w is not in [0, 1]",
+    );
+    p.require(
+        0.0 < f.tie_correction && f.tie_correction <= 1.0,
+        at,
+        "tie_correction is not in (0, 1]",
+    );
+    p.require(
+        f.df + 1.0 == f.levels.len() as f64,
+        at,
+        "df is not the number of levels less one",
+    );
+    // Rank sums add up to bk(k + 1)/2 exactly (halves are exact in binary).
+    let k = f.levels.len() as f64;
+    let total: f64 = f.levels.iter().map(|l| l.rank_sum).sum();
+    p.require(
+        total == f.blocks as f64 * k * (k + 1.0) / 2.0,
+        at,
+        "rank sums do not add up to bk(k + 1)/2",
+    );
+    let compared = b
+        .comparisons
+        .iter()
+        .find(|c| c.term == f.factor && c.within.is_none());
+    p.require(
+        compared.map(|c| c.method) == f.procedure,
+        at,
+        "procedure is not the comparison's method",
+    );
+    let Some(c) = compared else {
+        p.require(f.pairs.is_empty(), at, "pairs without a comparison");
+        return;
+    };
+    p.require(
+        c.pairs.len() == f.pairs.len(),
+        at,
+        "pairs differ from the comparison's",
+    );
+    for (mine, theirs) in f.pairs.iter().zip(&c.pairs) {
+        let diff = match c.method {
+            Procedure::Conover => mine.rank_sum_diff,
+            _ => mine.mean_rank_diff,
+        };
+        p.require(
+            mine.a == theirs.a
+                && mine.b == theirs.b
+                && theirs
+                    .diff
+                    .is_some_and(|d| (d - diff).abs() <= 1e-12 * diff.abs().max(1.0))
+                && mine.p_adj == theirs.p_adj
+                && mine.significant == theirs.significant,
+            at,
+            format!("pair {} - {} differs from the comparison's", mine.a, mine.b),
+        );
+    }
+    for l in &f.levels {
+        p.require(
+            c.letters.get(&l.level).is_some_and(|x| *x == l.letters),
+            at,
+            format!("letters of `{}` differ from the comparison's", l.level),
         );
     }
 }

@@ -89,6 +89,9 @@ pub(crate) fn with_residuals(
 pub(crate) enum Remedies {
     OneFactor(Omnibus),
     Linear,
+    /// Friedman's test in complete blocks: it assumes neither normal errors
+    /// nor equal variances, so only outliers are worth a note.
+    BlockRanks,
 }
 
 impl Remedies {
@@ -104,7 +107,7 @@ impl Remedies {
                 "If in doubt, `method: welch` gives Welch's ANOVA with Games-Howell comparisons.",
                 ". Look at how they depart; consider a transformation of the response, or `method: ranks` (Kruskal-Wallis with Dunn's comparisons).",
             ),
-            Remedies::Linear => (
+            Remedies::Linear | Remedies::BlockRanks => (
                 "The variances",
                 "F tests in factorial designs tolerate this best with equal cell sizes; consider a variance-stabilizing transformation of the response (logarithm or square root for counts and yields).",
                 "F tests in factorial designs are robust to moderate differences when the cells are of equal size; with unequal cells, or if the spread grows with the mean, consider a variance-stabilizing transformation of the response.",
@@ -128,7 +131,9 @@ pub(crate) fn advice(checks: &Checks, remedies: Remedies, alpha: f64, decimals: 
 
 /// Advice on unequal spread, for the methods that assume equal variances.
 fn variance_advice(checks: &Checks, remedies: Remedies, alpha: f64) -> Option<String> {
-    if matches!(remedies, Remedies::OneFactor(m) if m != Omnibus::Anova) {
+    if matches!(remedies, Remedies::OneFactor(m) if m != Omnibus::Anova)
+        || remedies == Remedies::BlockRanks
+    {
         return None;
     }
     if let Some(bf) = checks.brown_forsythe.filter(|t| t.p < alpha) {
@@ -155,6 +160,7 @@ fn variance_advice(checks: &Checks, remedies: Remedies, alpha: f64) -> Option<St
 fn normality_advice(checks: &Checks, remedies: Remedies, alpha: f64) -> Vec<Note> {
     let mut out = Vec::new();
     if remedies != Remedies::OneFactor(Omnibus::Ranks)
+        && remedies != Remedies::BlockRanks
         && let Ok(sw) = checks.shapiro_wilk.as_ref()
         && sw.p < alpha
     {

@@ -16,6 +16,7 @@ mod covariates;
 mod design_notes;
 mod families;
 mod fit;
+mod friedman;
 pub(super) mod model;
 mod planned;
 pub(super) mod read;
@@ -69,6 +70,15 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     if let Some(c) = &centred {
         c.check_varies(&data, &errors)?;
     }
+    // `method: ranks` with a block: Friedman's test, on the complete table.
+    let ranked = match spec.method {
+        Omnibus::Ranks => {
+            let pair = friedman::factors(&errors, &model)?;
+            let table = friedman::complete_table(&errors, &data, pair)?;
+            Some(friedman::test(&errors, &data, &table, pair)?)
+        }
+        _ => None,
+    };
     // From here on a model error also explains block labels reused within
     // another block factor, the usual cause when blocks are nested.
     errors.reused = design_notes::reused_block_labels(&data, &model);
@@ -99,6 +109,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         chosen,
         rows,
         alpha,
+        ranked,
     };
     let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
     let planning = planned::Planning {
@@ -116,11 +127,13 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         Box::new(detail)
     });
     let transform = analysed.transform_detail(doc, spec, arithmetic, &families, &mut notes)?;
+    let analysed_ranked = analysed.ranked.clone();
     let mut outcome = analysed.into_result(block, spec, checks, families, notes, doc);
     outcome.transform = transform.map(Box::new);
     outcome.covariates = covariates;
     outcome.contrasts = contrasts.map(Box::new);
     outcome.trend = trend.map(Box::new);
+    outcome.friedman = analysed_ranked.map(Box::new);
     Ok((outcome, streamed))
 }
 
@@ -137,6 +150,8 @@ struct Analysed {
     cells: Vec<CellRow>,
     residuals: Residuals,
     alpha: f64,
+    /// Friedman's test, with `method: ranks`.
+    ranked: Option<crate::outcome::friedman::FriedmanDetail>,
 }
 
 /// Decimals on the analysis scale: the data's, or those that resolve them
@@ -235,12 +250,12 @@ impl Analysed {
         );
         crate::analysis::transformation::outliers_as_written(&mut checks, spec);
         notes.extend(spread_note);
-        notes.extend(advice(
-            &checks,
-            Remedies::Linear,
-            self.alpha,
-            self.data.decimals,
-        ));
+        // Friedman's test assumes neither normal errors nor equal variances.
+        let remedies = match self.ranked {
+            Some(_) => Remedies::BlockRanks,
+            None => Remedies::Linear,
+        };
+        notes.extend(advice(&checks, remedies, self.alpha, self.data.decimals));
         let comparing = families::Comparing {
             errors,
             model: &self.model,
@@ -253,6 +268,24 @@ impl Analysed {
             types_agree: self.chosen.types_agree,
             alpha: self.alpha,
         };
+        if let Some(ranked) = &self.ranked {
+            let mut families = comparing.marginal_means();
+            let term = &self.model.factor_names[ranked.factor];
+            match (spec.compare, families.iter_mut().find(|f| &f.term == term)) {
+                (Some(method), Some(family)) => {
+                    family.comparison = friedman::comparison(ranked, method, self.alpha, notes);
+                }
+                // Only a factor beyond the comparable number of levels has no family.
+                (Some(_), None) => notes.push(Note::other(format!(
+                    "{} levels would give {} pairwise comparisons; sheaf compares at most {} levels. Group the levels, or use `compare: none`.",
+                    ranked.levels.len(),
+                    ranked.levels.len() * (ranked.levels.len() - 1) / 2,
+                    super::MAX_COMPARED_LEVELS
+                ))),
+                (None, _) => {}
+            }
+            return Ok((checks, families));
+        }
         let Some(method) = spec.compare else {
             return Ok((checks, comparing.marginal_means()));
         };
@@ -320,7 +353,7 @@ impl Analysed {
             alpha: self.alpha,
             n: data.offsets.len(),
             exclusions: data.excluded,
-            method: Omnibus::Anova,
+            method: spec.method,
             ss_type: Some(self.chosen.ss_type),
             types_agree: self.chosen.types_agree,
             factors,
@@ -351,6 +384,7 @@ impl Analysed {
             trend: None,
             transform: None,
             dose: None,
+            friedman: None,
         }
     }
 }

@@ -371,6 +371,7 @@ impl Analysed {
             trend: None,
             transform: None,
             dose: None,
+            friedman: None,
         })
     }
 

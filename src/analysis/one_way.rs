@@ -167,6 +167,7 @@ impl Engine<'_> {
             trend: trend.map(Box::new),
             transform: transform.map(Box::new),
             dose: dose.map(Box::new),
+            friedman: None,
         })
     }
 

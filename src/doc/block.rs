@@ -397,7 +397,7 @@ pub fn parse_decimals(entry: &Entry) -> Result<u32, SpecError> {
 }
 
 /// Every procedure `compare` accepts, by its key.
-pub const COMPARE_METHODS: [Method; 9] = [
+pub const COMPARE_METHODS: [Method; 11] = [
     Method::Tukey,
     Method::Lsd,
     Method::Bonferroni,
@@ -407,6 +407,8 @@ pub const COMPARE_METHODS: [Method; 9] = [
     Method::Dunnett,
     Method::GamesHowell,
     Method::Dunn,
+    Method::Nemenyi,
+    Method::ConoverFriedman,
 ];
 
 /// Reads a comparison procedure name.

@@ -23,15 +23,19 @@ fn missing(fence_line: usize, key: &str, example: &str) -> SpecError {
 }
 
 /// The comparison procedure: as written (if it fits the omnibus test), or the
-/// test's own, or the document's default.
+/// test's own, or the document's default. With `method: ranks` a `block:`
+/// factor makes the test Friedman's, whose procedures compare ranks within
+/// blocks; without one it is Kruskal-Wallis, with Dunn's.
 fn compare_of(
     d: &AnovaDraft,
     method: Omnibus,
     defaults: Defaults,
 ) -> Result<Option<Method>, SpecError> {
+    let blocked = d.blocks.is_some();
     let Some((e, chosen)) = &d.compare else {
         return Ok(match method {
             Omnibus::Welch => Some(Method::GamesHowell),
+            Omnibus::Ranks if blocked => Some(Method::Nemenyi),
             Omnibus::Ranks => Some(Method::Dunn),
             Omnibus::Anova => defaults.compare,
         });
@@ -39,8 +43,14 @@ fn compare_of(
     let fits = match (method, chosen) {
         (_, None) => true,
         (Omnibus::Welch, Some(m)) => *m == Method::GamesHowell,
+        (Omnibus::Ranks, Some(m)) if blocked => {
+            matches!(m, Method::Nemenyi | Method::ConoverFriedman)
+        }
         (Omnibus::Ranks, Some(m)) => *m == Method::Dunn,
-        (Omnibus::Anova, Some(m)) => !matches!(m, Method::GamesHowell | Method::Dunn),
+        (Omnibus::Anova, Some(m)) => !matches!(
+            m,
+            Method::GamesHowell | Method::Dunn | Method::Nemenyi | Method::ConoverFriedman
+        ),
     };
     if fits {
         return Ok(*chosen);
@@ -48,8 +58,16 @@ fn compare_of(
     // Each omnibus test has the comparison procedures that share its assumptions.
     let hint = match method {
         Omnibus::Welch => "with `method: welch` use `compare: games-howell` (or none)",
+        Omnibus::Ranks if blocked => {
+            "with `method: ranks` and a `block:` factor (Friedman's test) use `compare: nemenyi` or `compare: conover` (or none); Dunn goes with Kruskal-Wallis, in one-factor models"
+        }
+        Omnibus::Ranks if matches!(chosen, Some(Method::Nemenyi | Method::ConoverFriedman)) => {
+            "Nemenyi and Conover compare ranks within complete blocks: add `block:` and the block to the model (Friedman's test), or use `compare: dunn`"
+        }
         Omnibus::Ranks => "with `method: ranks` use `compare: dunn` (or none)",
-        Omnibus::Anova => "Games-Howell goes with `method: welch`, Dunn with `method: ranks`",
+        Omnibus::Anova => {
+            "Games-Howell goes with `method: welch`, Dunn with `method: ranks`, Nemenyi and Conover with `method: ranks` and a `block:` factor"
+        }
     };
     Err(bad(
         e,
@@ -109,6 +127,43 @@ fn procedure_keys(d: &AnovaDraft, compare: Option<Method>, fence_line: usize) ->
         "protected",
         "remove it, or choose `compare: lsd`",
     ));
+    errors
+}
+
+/// Keys that Friedman's test (`method: ranks` with a `block:` factor)
+/// cannot honour: it ranks the observations within each block, so it has
+/// no adjusted means, slices, cells or covariates.
+fn friedman_keys(d: &AnovaDraft) -> Vec<SpecError> {
+    if d.method != Some(Omnibus::Ranks) || d.blocks.is_none() {
+        return Vec::new();
+    }
+    let mut errors = Vec::new();
+    if let Some((e, _)) = &d.covariates {
+        errors.push(bad(
+            e,
+            "Friedman's test (`method: ranks` with `block:`) has no version with covariates".into(),
+            "remove `covariate`, or remove `method` for the analysis of covariance",
+        ));
+    }
+    for e in d.multi_factor.iter().filter(|e| e.key != "ss") {
+        errors.push(bad(
+            e,
+            format!(
+                "`{}` does not apply to Friedman's test (`method: ranks` with `block:`)",
+                e.key
+            ),
+            "Friedman's test compares the levels of one treatment factor within complete blocks; remove the key, or remove `method` for the ANOVA",
+        ));
+    }
+    if let Some(e) = &d.plot
+        && d.plots.kinds.contains(&super::block::PlotKind::Means)
+    {
+        errors.push(bad(
+            e,
+            "`plot: means` draws means with intervals, which Friedman's test does not estimate".into(),
+            "use `plot: box` or `plot: strip` (the observations by level, with the letters of the rank comparison)",
+        ));
+    }
     errors
 }
 
@@ -302,6 +357,7 @@ pub(super) fn resolve(
         errors.extend(procedure_keys(&d, compare, fence_line));
     }
     errors.extend(reading_keys(&d, &data));
+    errors.extend(friedman_keys(&d));
     errors.extend(super::block_covariates::covariate_keys(
         &d,
         &mut model.value,

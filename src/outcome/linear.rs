@@ -289,6 +289,9 @@ pub struct LinearOutcome {
     /// Dose-response tests for the NOEC and LOEC (`noec`).
     #[serde(default)]
     pub dose: Option<Box<super::dose::DoseDetail>>,
+    /// Friedman's test (`method: ranks` with a `block:` factor).
+    #[serde(default)]
+    pub friedman: Option<Box<super::friedman::FriedmanDetail>>,
 }
 
 impl LinearOutcome {

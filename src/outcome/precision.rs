@@ -4,6 +4,7 @@
 //! difference (LSD), one value under equal replication, else their range.
 
 use super::linear::{Comparison, LinearOutcome};
+use crate::stats::compare::Method;
 use crate::stats::dist::t_isf;
 use crate::stats::sum::neumaier;
 
@@ -27,6 +28,10 @@ impl Sed {
 /// The SEDs of a family whose pairs share one error df; `None` where each
 /// pair has its own (Games-Howell, mixed models) or there are no pairs.
 pub fn sed(c: &Comparison) -> Option<Sed> {
+    // Rank post hoc procedures within blocks compare ranks, not means.
+    if matches!(c.method, Method::Nemenyi | Method::ConoverFriedman) {
+        return None;
+    }
     let first = c.contrasts.first()?;
     if c.contrasts.iter().any(|p| p.own_df || p.df != first.df) || !first.se.is_finite() {
         return None;

@@ -42,4 +42,12 @@ pub enum ProcedureNote {
     MixedTukeyApproximate,
     /// Dunnett's joint critical value in a mixed model.
     MixedDunnett,
+    /// Nemenyi's simultaneous comparison of rank sums within blocks.
+    Nemenyi,
+    /// Conover's per-pair t on rank sums within blocks; `rejected` says
+    /// whether Friedman's test rejected at α (otherwise no pair is declared).
+    ConoverFriedman {
+        rejected: bool,
+        alpha: f64,
+    },
 }

@@ -38,6 +38,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod dose;
+mod friedman;
 mod names;
 mod traits;
 mod transform;
@@ -360,6 +361,9 @@ struct BlockContext {
     /// Blocks with `noec`.
     #[serde(skip_serializing_if = "Option::is_none")]
     dose_response: Option<dose::DoseContext>,
+    /// Friedman's test (`method: ranks` with `block:`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    friedman: Option<friedman::FriedmanContext>,
 }
 
 #[derive(Serialize)]
@@ -426,6 +430,9 @@ fn primary_term(o: &LinearOutcome) -> Option<&TermTest> {
 /// The block's declared omnibus test as text: Welch's or the rank test
 /// when the block declared it, else the primary term's F test.
 fn block_statement(o: &LinearOutcome, alternatives: &AlternativesContext) -> Option<String> {
+    if let Some(d) = o.friedman.as_deref() {
+        return Some(friedman::statement(d));
+    }
     match (o.method, &alternatives.0, &alternatives.1) {
         (Omnibus::Welch, Some(w), _) => Some(w.statement.clone()),
         (Omnibus::Ranks, _, Some(k)) => Some(k.statement.clone()),
@@ -647,6 +654,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         trend: trend::trend_context(o),
         transform: transform::transform_context(o),
         dose_response: dose::dose_context(o),
+        friedman: friedman::friedman_context(o),
     }
 }
 #[derive(Serialize)]
@@ -689,7 +697,7 @@ fn statement(v: Value) -> Result<String, minijinja::Error> {
         return Ok(text.to_string());
     }
     let why = "`statement` prints a test: a block, a term (`id.terms.<term>`), `id.welch`, \
-               `id.kruskal`, a check (`id.checks.levene`, `brown_forsythe`, `bartlett`, \
+               `id.kruskal`, `id.friedman`, a check (`id.checks.levene`, `brown_forsythe`, `bartlett`, \
                `shapiro_wilk`), `id.slopes`, a covariate's `balance`, a contrast \
                (`id.contrasts.<name>`) or `id.contrast_set` (with two or more contrasts)";
     Err(minijinja::Error::new(ErrorKind::InvalidOperation, why))

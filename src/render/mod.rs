@@ -40,6 +40,10 @@ pub const CAUTIONS: [&str; 5] = [
 /// Printed after the standing cautions when a block has random terms.
 pub const RANDOM_TERMS_CAUTION: &str = "A random term treats its units (blocks, whole plots, animals, sites) as a sample from a larger population, with independent, normally distributed effects of one variance; with fewer than about five units that variance is poorly known. Which terms are random follows from the design, from how treatments were randomised to units, not from which model fits the data better.";
 
+/// Printed after the second standing caution when a block runs Friedman's
+/// test.
+pub const FRIEDMAN_CAUTION: &str = "Friedman's test ranks the observations within each block, so it discards how large the differences are: a level every block ranks first wins by a hair or by a mile alike. Kendall's W is the agreement among the blocks in how they order the levels, not a measure of practical importance: read the medians and the data themselves for that.";
+
 /// Printed after the second standing caution when a block has several
 /// responses.
 pub const TRAITS_CAUTION: &str = "A block with several responses tests each trait on its own: the more traits, the more tests, and the more likely one of them is significant by chance. No adjustment across traits is customary, and none is made; weigh a single significant trait among many accordingly, and name the traits of primary interest before the trial.";
@@ -104,8 +108,15 @@ fn linear_choices(o: &LinearOutcome) -> String {
     use crate::doc::block::Omnibus;
     use crate::stats::linear::SsType;
     let compared = o.families.iter().find_map(|f| f.comparison.as_ref());
-    let (model, compare) = match o.ss_type {
-        None => (
+    let (model, compare) = match (o.ss_type, o.friedman.as_deref()) {
+        (_, Some(d)) => (
+            format!(
+                "Friedman's test of {} within {}",
+                o.factors[d.factor].name, o.factors[d.block].name
+            ),
+            compared.map(|c| format!("{} pairs on rank sums", c.method.title())),
+        ),
+        (None, None) => (
             match o.method {
                 Omnibus::Anova => "one-way ANOVA".to_string(),
                 Omnibus::Welch => "Welch's ANOVA".to_string(),
@@ -113,7 +124,7 @@ fn linear_choices(o: &LinearOutcome) -> String {
             },
             compared.map(|c| format!("{} pairs", c.method.title())),
         ),
-        Some(ss) => {
+        (Some(ss), None) => {
             let ss = match ss {
                 SsType::I => "Type I",
                 SsType::II => "Type II",

@@ -6,7 +6,8 @@ use super::templates::{template_source, to_value};
 use super::view::BlockView;
 use super::writer::Writer;
 use super::{
-    CAUTIONS, NOEC_CAUTION, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of, inline, tables, view,
+    CAUTIONS, FRIEDMAN_CAUTION, NOEC_CAUTION, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of,
+    inline, tables, view,
 };
 use crate::diag::Diagnostic;
 use crate::doc::Document;
@@ -103,6 +104,13 @@ impl<'a> Report<'a> {
             .any(|r| matches!(r, BlockResult::Traits(_)))
         {
             cautions.insert(2, TRAITS_CAUTION);
+        }
+        if self
+            .results
+            .iter()
+            .any(|r| r.linear().is_some_and(|o| o.friedman.is_some()))
+        {
+            cautions.insert(2, FRIEDMAN_CAUTION);
         }
         if self
             .results

@@ -24,6 +24,12 @@ pub enum Method {
     GamesHowell,
     /// Dunn: rank-sum differences from the joint Kruskal-Wallis ranking.
     Dunn,
+    /// Nemenyi (Wilcoxon-Nemenyi-McDonald-Thompson): rank sums within
+    /// complete blocks, studentized range at ∞ df, simultaneous.
+    Nemenyi,
+    /// Conover's t-based comparison of rank sums within complete blocks,
+    /// per pair after a significant Friedman test.
+    ConoverFriedman,
 }
 
 impl Method {
@@ -39,6 +45,8 @@ impl Method {
             Method::Dunnett => "dunnett",
             Method::GamesHowell => "games-howell",
             Method::Dunn => "dunn",
+            Method::Nemenyi => "nemenyi",
+            Method::ConoverFriedman => "conover",
         }
     }
 
@@ -54,6 +62,8 @@ impl Method {
             Method::Dunnett => "Dunnett",
             Method::GamesHowell => "Games-Howell",
             Method::Dunn => "Dunn",
+            Method::Nemenyi => "Nemenyi",
+            Method::ConoverFriedman => "Conover",
         }
     }
 
@@ -69,6 +79,8 @@ impl Method {
             Method::Dunnett => "Dunnett 1955",
             Method::GamesHowell => "Games & Howell 1976",
             Method::Dunn => "Dunn 1964",
+            Method::Nemenyi => "Nemenyi 1963; Hollander & Wolfe 1999, §7.3",
+            Method::ConoverFriedman => "Conover 1999, §5.8",
         }
     }
 }

@@ -8,6 +8,7 @@ pub mod dose;
 pub mod dunnett;
 pub mod effect;
 pub mod extremes;
+pub mod friedman;
 pub mod jonckheere;
 pub mod letters;
 pub mod linear;

@@ -173,10 +173,15 @@ impl Errors<'_> {
 /// Keys that only the one-factor engine reads.
 pub(super) fn refuse_one_factor_keys(errors: &Errors<'_>) -> Result<(), Diagnostic> {
     let spec = errors.spec;
-    if spec.method != Omnibus::Anova {
+    // `method: ranks` with a block is Friedman's test (factorial/friedman.rs).
+    let friedman = spec.method == Omnibus::Ranks && spec.blocks.is_some();
+    if spec.method != Omnibus::Anova && !friedman {
         return Err(errors.model(
             format!("`method: {}` is for one-factor models", spec.method.key()),
-            "factorial and block designs use the F tests of the linear model; remove `method`",
+            match spec.method {
+                Omnibus::Ranks => "factorial designs use the F tests of the linear model; remove `method`, or, for one treatment factor in complete blocks, name the block with `block:` (Friedman's test)",
+                _ => "factorial and block designs use the F tests of the linear model; remove `method`",
+            },
         ));
     }
     if let Some(m) = spec

@@ -10,6 +10,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod dose;
+mod friedman;
 mod keys;
 mod means;
 mod mixed;
@@ -112,6 +113,7 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         cell_letters.is_some_and(|l| l.row_families.contains(&i) || l.column_families.contains(&i))
     };
     let mut notes = Vec::new();
+    let mut ranked_family = None;
     for (i, family) in o.families.iter().enumerate() {
         if let Some(c) = &family.comparison {
             // Families of one block often share their notes: say each once.
@@ -122,6 +124,13 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
             }
         }
         if in_two_way(i) {
+            continue;
+        }
+        // Friedman's test: its own tables of ranks, after the loop.
+        if let Some(d) = o.friedman.as_deref() {
+            if family.within.is_none() && family.term == o.factors[d.factor].name {
+                ranked_family = Some(family);
+            }
             continue;
         }
         // A factorial block without comparisons shows its marginal means in
@@ -147,6 +156,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
                 numbers.next(),
             ));
         }
+    }
+    if let Some(d) = o.friedman.as_deref() {
+        rank_tables(o, (d, ranked_family), &keys, &mut numbers, &mut tables);
     }
     if let Some(d) = o.contrasts.as_deref() {
         tables.push(planned::planned_table(o, d, &keys, numbers.next()));
@@ -192,6 +204,10 @@ fn omnibus_tables(
     numbers: &mut Numbering,
     tables: &mut Vec<TableView>,
 ) {
+    if let Some(d) = o.friedman.as_deref() {
+        tables.push(friedman::friedman_table(o, d, keys, numbers.next()));
+        return;
+    }
     let Some(m) = &o.mixed else {
         let number = numbers.next();
         tables.push(match o.method {
@@ -213,6 +229,24 @@ fn omnibus_tables(
     }
     if let Some(r) = &o.repeated {
         repeated_tables(o, r, keys, numbers, tables);
+    }
+}
+
+/// Friedman's levels table and the pairs of its post hoc procedure.
+fn rank_tables(
+    o: &LinearOutcome,
+    (d, family): (&crate::outcome::friedman::FriedmanDetail, Option<&Family>),
+    keys: &Keys,
+    numbers: &mut Numbering,
+    tables: &mut Vec<TableView>,
+) {
+    let show = o.presentation.show;
+    if show.means {
+        tables.push(friedman::levels_table(o, d, family, keys, numbers.next()));
+    }
+    let compared = family.and_then(|f| f.comparison.as_ref().map(|c| (f, c)));
+    if let Some(pair) = compared.filter(|_| show.pairs) {
+        tables.push(friedman::pairs_table(o, d, pair, keys, numbers.next()));
     }
 }
 

@@ -35,6 +35,13 @@ pub fn procedure_note_text(note: &ProcedureNote) -> String {
         },
         ProcedureNote::MixedOwnDf => "Each pair is compared with its own standard error and df from the mixed model (Kenward-Roger or Satterthwaite, as the tests).".into(),
         ProcedureNote::MixedTukeyApproximate => "Tukey's procedure with a df per pair is exact when every pair lies in one stratum of a balanced design, and an approximation otherwise.".into(),
+        ProcedureNote::Nemenyi => "Nemenyi's procedure compares the rank sums within blocks with the studentized range at infinite df, simultaneously over all pairs; it is conservative, and ignores ties in its standard error.".into(),
+        ProcedureNote::ConoverFriedman { rejected: true, alpha } => format!(
+            "Conover's procedure tests each pair with t on the rank sums, unadjusted, once Friedman's test has rejected at α = {alpha}: it does not hold the familywise error rate with many levels."
+        ),
+        ProcedureNote::ConoverFriedman { rejected: false, alpha } => format!(
+            "Conover's procedure tests pairs only after Friedman's test rejects; it did not at α = {alpha}, so no pair is declared different."
+        ),
         ProcedureNote::MixedDunnett => "Each treatment is compared with the control with its own standard error and df from the mixed model; Dunnett's joint critical value applies because the comparisons share one df and the product correlation.".into(),
     }
 }
