@@ -18,6 +18,7 @@ mod binding;
 mod checks;
 mod compare;
 mod contrasts;
+mod equivalence;
 mod exclusions;
 mod factorial;
 mod mixed;

@@ -6,6 +6,7 @@ mod checks;
 pub mod contrasts;
 pub mod covariance;
 pub mod covariates;
+pub mod equivalence;
 pub mod linear;
 pub mod mixed;
 mod power;
@@ -90,5 +91,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 13;
+    const SCHEMA: u32 = 14;
 }

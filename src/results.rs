@@ -8,6 +8,7 @@
 
 mod contrasts;
 mod covariates;
+mod equivalence;
 mod mixed;
 mod repeated;
 mod traits;
@@ -217,6 +218,9 @@ pub struct BlockRecord {
     /// Blocks with `transform`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub transform: Option<transform::TransformRecord>,
+    /// Blocks with `margin`: the equivalence tests.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub equivalence: Option<equivalence::EquivalenceRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -544,6 +548,10 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             .transform
             .as_deref()
             .map(|d| transform::transform_record(d, &o.response)),
+        equivalence: o
+            .equivalence
+            .as_deref()
+            .map(|d| equivalence::equivalence_record(o, d)),
     }
 }
 

@@ -350,6 +350,7 @@ impl Analysed {
             contrasts: None,
             trend: None,
             transform: None,
+            equivalence: None,
         }
     }
 }

@@ -370,6 +370,7 @@ impl Analysed {
             contrasts: None,
             trend: None,
             transform: None,
+            equivalence: None,
         })
     }
 

@@ -98,6 +98,19 @@ impl Engine<'_> {
         let (contrasts, trend) = self.contrasts_and_trend(&factor, &levels, &table)?;
         let families = vec![outcome::level_family(&factor, &levels, comparison)];
         let transform = self.transform_detail(&sample, &factor, &families, &mut notes)?;
+        let data_means: Vec<f64> = match spec.transform {
+            Some(_) => sample.arithmetic.clone(),
+            None => levels.iter().map(|l| l.mean).collect(),
+        };
+        let level_data = super::equivalence::LevelData {
+            names: &sample.names,
+            summaries: &sample.summaries,
+            data_means: &data_means,
+            mse: table.ms_within,
+            df: table.df_within as f64,
+        };
+        let equivalence =
+            super::equivalence::equivalence((self.doc, spec), &level_data, alpha, &mut notes)?;
         let decimals = decimals_shown(
             self.doc,
             spec,
@@ -165,6 +178,7 @@ impl Engine<'_> {
             contrasts: contrasts.map(Box::new),
             trend: trend.map(Box::new),
             transform: transform.map(Box::new),
+            equivalence: equivalence.map(Box::new),
         })
     }
 

@@ -113,10 +113,12 @@ pub enum PlotKind {
     /// A quantitative factor's means at their values, with the fitted
     /// trend (`trend`).
     Trend,
+    /// Each comparison's equivalence interval against the margins (`margin`).
+    Equivalence,
 }
 
 impl PlotKind {
-    pub const ALL: [PlotKind; 9] = [
+    pub const ALL: [PlotKind; 10] = [
         PlotKind::Box,
         PlotKind::Means,
         PlotKind::Strip,
@@ -126,6 +128,7 @@ impl PlotKind {
         PlotKind::Profile,
         PlotKind::Subjects,
         PlotKind::Trend,
+        PlotKind::Equivalence,
     ];
 
     pub fn key(self) -> &'static str {
@@ -139,6 +142,7 @@ impl PlotKind {
             PlotKind::Profile => "profile",
             PlotKind::Subjects => "subjects",
             PlotKind::Trend => "trend",
+            PlotKind::Equivalence => "equivalence",
         }
     }
 }
@@ -273,6 +277,8 @@ pub struct AnovaSpec {
     pub transform: Option<Located<crate::stats::transform::Declared>>,
     /// `transform: boxcox`: report the Box-Cox profile of the model.
     pub box_cox: bool,
+    /// Equivalence of each level with the control (`margin`, `claim`).
+    pub equivalence: Option<super::block_equivalence::EquivalenceSpec>,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
     /// Random terms (the unit structure): blocks, whole plots, batches.

@@ -83,12 +83,14 @@ fn procedure_keys(d: &AnovaDraft, compare: Option<Method>, fence_line: usize) ->
             )
         })
     };
-    errors.extend(only(
-        d.control.as_ref(),
-        Method::Dunnett,
-        "control",
-        "remove it, or choose `compare: dunnett`",
-    ));
+    if d.margin.is_none() {
+        errors.extend(only(
+            d.control.as_ref(),
+            Method::Dunnett,
+            "control",
+            "remove it, choose `compare: dunnett`, or declare an equivalence `margin`",
+        ));
+    }
     errors.extend(only(
         d.sides.as_ref().map(|(e, _)| e),
         Method::Dunnett,
@@ -307,6 +309,11 @@ pub(super) fn resolve(
     errors.extend(super::block_contrasts::contrast_keys(&d));
     errors.extend(super::block_trend::trend_keys(&d));
     errors.extend(super::block_transform::transform_keys(&d));
+    errors.extend(super::block_equivalence::equivalence_keys(
+        &d,
+        &model.value,
+        fence_line,
+    ));
     errors.extend(model_keys(&mut d, &model.value));
     errors.extend(super::block_covariance::covariance_keys(&d));
     errors.extend(super::block_random::subject_as_random(&mut d));
@@ -332,6 +339,7 @@ pub(super) fn resolve(
     Ok(AnovaSpec {
         transform: super::block_transform::declared(&d),
         box_cox: super::block_transform::box_cox(&d),
+        equivalence: super::block_equivalence::located_equivalence(&d),
         covariates,
         contrasts: d.contrasts,
         trend: d.trend,

@@ -80,6 +80,10 @@ pub struct AnovaDraft {
     pub transform: Option<(Entry, super::block_transform::TransformChoice)>,
     /// `offset`: a constant added before a log or square root.
     pub offset: Option<(Entry, f64)>,
+    /// `margin`: equivalence margins, which turn the equivalence tests on.
+    pub margin: Option<(Entry, super::block_equivalence::Margins)>,
+    /// `claim`: separate claims per level, or one for all levels.
+    pub claim: Option<(Entry, super::block_equivalence::Claim)>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -118,6 +122,8 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("trend", super::block_trend::read_trend),
         ("transform", super::block_transform::read_transform),
         ("offset", super::block_transform::read_offset),
+        ("margin", super::block_equivalence::read_margin),
+        ("claim", super::block_equivalence::read_claim),
         (
             "contrast_adjust",
             super::block_contrasts::read_contrast_adjust,

@@ -62,6 +62,8 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("trend", "trend: g = a 0, b 10, c 40"),
     ("transform", "transform: log"),
     ("offset", "transform: sqrt\noffset: 0.375"),
+    ("margin", "control: a\nmargin: -1.5, 2"),
+    ("claim", "control: a\nmargin: 3%\nclaim: all"),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

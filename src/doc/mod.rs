@@ -11,6 +11,7 @@ pub mod block_contrasts;
 pub mod block_covariance;
 mod block_covariates;
 mod block_display;
+pub mod block_equivalence;
 pub mod block_keys;
 mod block_random;
 mod block_rows;

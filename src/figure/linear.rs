@@ -312,6 +312,7 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
                 .map_or("", |t| o.presentation.plots.display(&t.factor));
             super::trend::trend_figure(o, id, n, (x_title, &axis_title(o)))
         }
+        PlotKind::Equivalence => super::equivalence::equivalence_figure(o, id, n),
         PlotKind::Residuals => {
             let many = dense::summarised(count);
             let lines: Vec<usize> = o.observations.iter().map(|obs| obs.line).collect();
@@ -515,7 +516,11 @@ fn dense_note(kind: PlotKind, observations: usize) -> String {
                 ),
             );
         }
-        PlotKind::Interaction | PlotKind::Profile | PlotKind::Subjects | PlotKind::Trend => {
+        PlotKind::Interaction
+        | PlotKind::Profile
+        | PlotKind::Subjects
+        | PlotKind::Trend
+        | PlotKind::Equivalence => {
             return String::new();
         }
     };

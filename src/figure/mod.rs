@@ -7,6 +7,7 @@
 //! figures stay readable in greyscale and in print.
 
 pub mod dense;
+mod equivalence;
 pub mod linear;
 pub mod plots;
 mod trend;

@@ -286,6 +286,9 @@ pub struct LinearOutcome {
     /// A transformed response (`transform`), or the Box-Cox profile.
     #[serde(default)]
     pub transform: Option<Box<super::transform::TransformDetail>>,
+    /// Equivalence of each level with the control (`margin`).
+    #[serde(default)]
+    pub equivalence: Option<Box<super::equivalence::EquivalenceDetail>>,
 }
 
 impl LinearOutcome {

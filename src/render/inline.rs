@@ -37,6 +37,7 @@ const FUEL_PROBE: &str = "sheaf_fuel_probe";
 mod contrasts;
 mod covariance;
 mod covariates;
+mod equivalence;
 mod names;
 mod traits;
 mod transform;
@@ -356,6 +357,9 @@ struct BlockContext {
     /// Blocks with `transform`.
     #[serde(skip_serializing_if = "Option::is_none")]
     transform: Option<transform::TransformContext>,
+    /// Blocks with `margin`: the equivalence tests.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    equivalence: Option<equivalence::EquivalenceContext>,
 }
 
 #[derive(Serialize)]
@@ -642,6 +646,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         planned: contrasts::contrasts_context(o),
         trend: trend::trend_context(o),
         transform: transform::transform_context(o),
+        equivalence: equivalence::equivalence_context(o),
     }
 }
 #[derive(Serialize)]

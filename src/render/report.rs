@@ -5,7 +5,10 @@
 use super::templates::{template_source, to_value};
 use super::view::BlockView;
 use super::writer::Writer;
-use super::{CAUTIONS, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of, inline, tables, view};
+use super::{
+    CAUTIONS, EQUIVALENCE_CAUTION, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of, inline,
+    tables, view,
+};
 use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::escape::markdown_escape;
@@ -88,6 +91,13 @@ impl<'a> Report<'a> {
     /// has them.
     pub(crate) fn cautions(&self) -> Vec<&'static str> {
         let mut cautions = CAUTIONS.to_vec();
+        if self
+            .results
+            .iter()
+            .any(|r| r.linear().is_some_and(|o| o.equivalence.is_some()))
+        {
+            cautions[1] = EQUIVALENCE_CAUTION;
+        }
         if self
             .results
             .iter()

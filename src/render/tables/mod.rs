@@ -9,6 +9,7 @@ mod checks;
 mod contrasts;
 mod covariance;
 mod covariates;
+mod equivalence;
 mod keys;
 mod means;
 mod mixed;
@@ -22,6 +23,7 @@ mod transform;
 mod trend;
 mod two_way;
 
+pub use equivalence::conclusion as equivalence_conclusion;
 pub use power::power_view;
 pub use traits::traits_view;
 
@@ -152,6 +154,9 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     }
     if let Some(t) = o.trend.as_deref() {
         tables.push(trend::trend_table(o, t, &keys, numbers.next()));
+    }
+    if let Some(e) = o.equivalence.as_deref() {
+        tables.push(equivalence::equivalence_table(o, e, &keys, numbers.next()));
     }
     if let Some(layout) = cell_letters.filter(|_| show.pairs) {
         let number = *numbers.0;
