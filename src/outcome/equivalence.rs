@@ -118,3 +118,13 @@ impl EquivalenceRow {
         }
     }
 }
+
+/// A level such as α/3 in words: four significant digits without trailing
+/// zeros (`0.01667`, `0.05`).
+pub fn alpha_words(x: f64) -> String {
+    let s = crate::format::significant(x, 4);
+    match s.contains('.') {
+        true => s.trim_end_matches('0').trim_end_matches('.').to_string(),
+        false => s,
+    }
+}

@@ -139,13 +139,19 @@ fn linear_choices(o: &LinearOutcome) -> String {
         }
     });
     let equivalence = o.equivalence.as_deref().map_or(String::new(), |d| {
+        let claim = match (d.rows.len(), d.claim) {
+            (0 | 1, _) => "one comparison".to_string(),
+            (m, crate::doc::block_equivalence::Claim::Each) => {
+                format!("a claim per level, Bonferroni over {m}")
+            }
+            (_, crate::doc::block_equivalence::Claim::All) => "one claim for all levels".into(),
+        };
         format!(
-            "; equivalence with {} within {} by two one-sided tests ({} claim{}, each at α = {})",
+            "; equivalence with {} within {} by two one-sided tests ({claim}{}, each at α = {})",
             d.control,
             d.margin_words(),
-            d.claim.key(),
             if d.welch { ", Welch" } else { "" },
-            crate::format::significant(d.comparison_alpha, 4)
+            crate::outcome::equivalence::alpha_words(d.comparison_alpha)
         )
     });
     format!(

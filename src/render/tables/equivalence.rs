@@ -8,7 +8,7 @@ use super::keys::Keys;
 use super::{cell, col, text};
 use crate::doc::block_equivalence::{Claim, MarginKind};
 use crate::format::{alpha_text, confidence_label, df_text, fixed, p_value, significant};
-use crate::outcome::equivalence::{EquivalenceDetail, EquivalenceRow};
+use crate::outcome::equivalence::{EquivalenceDetail, EquivalenceRow, alpha_words};
 use crate::outcome::linear::LinearOutcome;
 use crate::outcome::transform::Wording;
 use crate::render::view::{Cell, TableView};
@@ -154,7 +154,7 @@ fn footnotes(o: &LinearOutcome, d: &EquivalenceDetail) -> Vec<String> {
     notes.push(match (d.claim, m) {
         (Claim::Each, m) if m > 1 => format!(
             "Why {level}: each level is a separate claim, so each pair of one-sided tests runs at α/{m} = {} (Bonferroni over {m} levels), and equivalence at that level is the same as the 100(1 − 2α/{m})% = {level} interval lying inside the margins.",
-            significant(d.comparison_alpha, 4)
+            alpha_words(d.comparison_alpha)
         ),
         _ => format!(
             "Why {level}: equivalence is shown when both one-sided tests reject at α = {alpha}, which is the same as the 100(1 − 2α)% = {level} interval lying inside the margins; a 95% interval would test at 2.5% on each side."
@@ -196,7 +196,7 @@ fn footnotes(o: &LinearOutcome, d: &EquivalenceDetail) -> Vec<String> {
     }
     notes.push(format!(
         "A level is called higher or lower than the control when the two-sided t test of no difference is significant at α = {}{}. Not shown equivalent is not a difference: with few observations neither may be shown.",
-        significant(d.difference_alpha, 4),
+        alpha_words(d.difference_alpha),
         if m > 1 { format!(" (α/{m}, Bonferroni)") } else { String::new() }
     ));
     notes
