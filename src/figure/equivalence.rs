@@ -157,3 +157,7 @@ fn draw(
     );
     svg.finish()
 }
+
+#[cfg(test)]
+#[path = "equivalence_tests.rs"]
+mod tests;
