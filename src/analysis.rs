@@ -19,6 +19,7 @@ mod checks;
 mod compare;
 mod contrasts;
 mod dose;
+mod equivalence;
 mod exclusions;
 mod factorial;
 mod mixed;

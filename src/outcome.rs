@@ -7,6 +7,7 @@ pub mod contrasts;
 pub mod covariance;
 pub mod covariates;
 pub mod dose;
+pub mod equivalence;
 pub mod friedman;
 pub mod linear;
 pub mod mixed;

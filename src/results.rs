@@ -9,6 +9,7 @@
 mod contrasts;
 mod covariates;
 mod dose;
+mod equivalence;
 mod friedman;
 mod mixed;
 mod repeated;
@@ -225,6 +226,9 @@ pub struct BlockRecord {
     /// Friedman's test (`method: ranks` with `block:`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub friedman: Option<friedman::FriedmanRecord>,
+    /// Blocks with `margin`: the equivalence tests.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub equivalence: Option<equivalence::EquivalenceRecord>,
 }
 
 /// The fields every `anova` record opens with, one-factor or factorial.
@@ -558,6 +562,10 @@ pub fn block_record(o: &LinearOutcome) -> BlockRecord {
             let compared = o.main_family(term).and_then(|f| f.comparison.as_ref());
             friedman::friedman_record(o, d, compared)
         }),
+        equivalence: o
+            .equivalence
+            .as_deref()
+            .map(|d| equivalence::equivalence_record(o, d)),
     }
 }
 

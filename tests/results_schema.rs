@@ -184,6 +184,90 @@ mod contract {
         /// Blocks with `noec` only.
         #[serde(default, deserialize_with = "present")]
         pub dose_response: Option<DoseResponse>,
+        /// Blocks with `margin` only.
+        #[serde(default, deserialize_with = "present")]
+        pub equivalence: Option<Equivalence>,
+    }
+
+    /// README: "Blocks with `margin` add `equivalence` …".
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Equivalence {
+        pub control: String,
+        pub claim: String,
+        pub alpha: f64,
+        pub comparison_alpha: f64,
+        pub interval_level: f64,
+        pub variance: String,
+        pub margins: EquivalenceMargins,
+        #[serde(deserialize_with = "nullable")]
+        pub control_mean: Option<f64>,
+        pub all_equivalent: bool,
+        pub difference_alpha: f64,
+        pub comparisons: Vec<EquivalenceComparison>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct EquivalenceMargins {
+        pub kind: String,
+        pub lower: f64,
+        pub upper: f64,
+        pub on_analysis_scale: Limits,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct Limits {
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
+    }
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct EquivalenceComparison {
+        pub level: String,
+        pub control: String,
+        #[serde(deserialize_with = "nullable")]
+        pub difference: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub se: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub t_lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub t_upper: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p_upper: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub p: Option<f64>,
+        pub equivalent: bool,
+        #[serde(deserialize_with = "nullable")]
+        pub p_difference: Option<f64>,
+        pub different: bool,
+        #[serde(default, deserialize_with = "present")]
+        pub ratio: Option<EquivalenceRatio>,
+    }
+
+    /// A ratio and its limits.
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    pub struct EquivalenceRatio {
+        #[serde(deserialize_with = "nullable")]
+        pub estimate: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub lower: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub upper: Option<f64>,
     }
 
     /// README: "Blocks with `noec` add `dose_response` …".
@@ -1170,6 +1254,7 @@ mod contract {
         Subjects,
         Trend,
         Doses,
+        Equivalence,
         Power,
     }
 

@@ -385,6 +385,7 @@ impl Analysed {
             transform: None,
             dose: None,
             friedman: None,
+            equivalence: None,
         }
     }
 }

@@ -372,6 +372,7 @@ impl Analysed {
             transform: None,
             dose: None,
             friedman: None,
+            equivalence: None,
         })
     }
 

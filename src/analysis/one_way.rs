@@ -99,6 +99,19 @@ impl Engine<'_> {
         let families = vec![outcome::level_family(&factor, &levels, comparison)];
         let dose = self.dose(&sample, &factor, &levels, &table, &families)?;
         let transform = self.transform_detail(&sample, &factor, &families, &mut notes)?;
+        let data_means: Vec<f64> = match spec.transform {
+            Some(_) => sample.arithmetic.clone(),
+            None => levels.iter().map(|l| l.mean).collect(),
+        };
+        let level_data = super::equivalence::LevelData {
+            names: &sample.names,
+            summaries: &sample.summaries,
+            data_means: &data_means,
+            mse: table.ms_within,
+            df: table.df_within as f64,
+        };
+        let equivalence =
+            super::equivalence::equivalence((self.doc, spec), &level_data, alpha, &mut notes)?;
         let decimals = decimals_shown(
             self.doc,
             spec,
@@ -168,6 +181,7 @@ impl Engine<'_> {
             transform: transform.map(Box::new),
             dose: dose.map(Box::new),
             friedman: None,
+            equivalence: equivalence.map(Box::new),
         })
     }
 

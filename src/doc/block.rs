@@ -116,10 +116,12 @@ pub enum PlotKind {
     /// The means in dose order against the control's, with the doses that
     /// have an effect marked (`noec`).
     Doses,
+    /// Each comparison's equivalence interval against the margins (`margin`).
+    Equivalence,
 }
 
 impl PlotKind {
-    pub const ALL: [PlotKind; 10] = [
+    pub const ALL: [PlotKind; 11] = [
         PlotKind::Box,
         PlotKind::Means,
         PlotKind::Strip,
@@ -130,6 +132,7 @@ impl PlotKind {
         PlotKind::Subjects,
         PlotKind::Trend,
         PlotKind::Doses,
+        PlotKind::Equivalence,
     ];
 
     pub fn key(self) -> &'static str {
@@ -144,6 +147,7 @@ impl PlotKind {
             PlotKind::Subjects => "subjects",
             PlotKind::Trend => "trend",
             PlotKind::Doses => "doses",
+            PlotKind::Equivalence => "equivalence",
         }
     }
 }
@@ -280,6 +284,8 @@ pub struct AnovaSpec {
     pub transform: Option<Located<crate::stats::transform::Declared>>,
     /// `transform: boxcox`: report the Box-Cox profile of the model.
     pub box_cox: bool,
+    /// Equivalence of each level with the control (`margin`, `claim`).
+    pub equivalence: Option<super::block_equivalence::EquivalenceSpec>,
     /// Blocking factors: reported in the table, never compared.
     pub blocks: Option<Located<Vec<String>>>,
     /// Random terms (the unit structure): blocks, whole plots, batches.

@@ -2,7 +2,7 @@
 //! once each has been read: the draft becomes the block's specification.
 
 use super::block::{
-    AnovaSpec, CheckSet, DdfMethod, Defaults, Omnibus, Order, Show, SpecError, bad, list,
+    AnovaSpec, CheckSet, DdfMethod, Defaults, Located, Omnibus, Order, Show, SpecError, bad, list,
 };
 use super::block_keys::AnovaDraft;
 use super::block_rows::default_summary_columns;
@@ -101,14 +101,16 @@ fn procedure_keys(d: &AnovaDraft, compare: Option<Method>, fence_line: usize) ->
             )
         })
     };
-    // The dose-response tests read `control` and `sides` too.
+    // The dose-response and equivalence tests read `control` too.
     let doses = d.noec.is_some();
-    errors.extend(only(
-        d.control.as_ref().filter(|_| !doses),
-        Method::Dunnett,
-        "control",
-        "remove it, or choose `compare: dunnett`",
-    ));
+    if d.margin.is_none() {
+        errors.extend(only(
+            d.control.as_ref().filter(|_| !doses),
+            Method::Dunnett,
+            "control",
+            "remove it, choose `compare: dunnett`, or declare an equivalence `margin`",
+        ));
+    }
     errors.extend(only(
         d.sides.as_ref().map(|(e, _)| e).filter(|_| !doses),
         Method::Dunnett,
@@ -327,6 +329,33 @@ fn display_names(
     Ok(names)
 }
 
+/// The keys of the analyses beyond the omnibus test, each checked against
+/// the others and the model (which `covariate` may extend).
+fn analysis_keys(
+    d: &mut AnovaDraft,
+    model: &mut Located<Formula>,
+    method: Omnibus,
+    fence_line: usize,
+) -> Vec<SpecError> {
+    let mut errors = Vec::new();
+    errors.extend(super::block_covariates::covariate_keys(d, &mut model.value));
+    errors.extend(super::block_contrasts::contrast_keys(d));
+    errors.extend(super::block_trend::trend_keys(d));
+    errors.extend(super::block_dose::dose_keys(d, &model.value));
+    errors.extend(super::block_transform::transform_keys(d));
+    errors.extend(super::block_equivalence::equivalence_keys(
+        d,
+        &model.value,
+        fence_line,
+    ));
+    errors.extend(model_keys(d, &model.value));
+    errors.extend(super::block_covariance::covariance_keys(d));
+    errors.extend(super::block_random::subject_as_random(d));
+    errors.extend(super::block_random::random_keys(d, &model.value, method));
+    errors.extend(super::block_traits::traits_keys(d, model));
+    errors
+}
+
 /// Checks the draft's keys against each other and builds the specification;
 /// every problem found is returned.
 pub(super) fn resolve(
@@ -358,19 +387,7 @@ pub(super) fn resolve(
     }
     errors.extend(reading_keys(&d, &data));
     errors.extend(friedman_keys(&d));
-    errors.extend(super::block_covariates::covariate_keys(
-        &d,
-        &mut model.value,
-    ));
-    errors.extend(super::block_contrasts::contrast_keys(&d));
-    errors.extend(super::block_trend::trend_keys(&d));
-    errors.extend(super::block_dose::dose_keys(&d, &model.value));
-    errors.extend(super::block_transform::transform_keys(&d));
-    errors.extend(model_keys(&mut d, &model.value));
-    errors.extend(super::block_covariance::covariance_keys(&d));
-    errors.extend(super::block_random::subject_as_random(&mut d));
-    errors.extend(super::block_random::random_keys(&d, &model.value, method));
-    errors.extend(super::block_traits::traits_keys(&d, &model));
+    errors.extend(analysis_keys(&mut d, &mut model, method, fence_line));
     if !errors.is_empty() {
         return Err(errors);
     }
@@ -398,6 +415,7 @@ pub(super) fn resolve(
     Ok(AnovaSpec {
         transform: super::block_transform::declared(&d),
         box_cox: super::block_transform::box_cox(&d),
+        equivalence: super::block_equivalence::located_equivalence(&d),
         covariates,
         contrasts: d.contrasts,
         trend: d.trend,

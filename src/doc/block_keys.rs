@@ -84,6 +84,10 @@ pub struct AnovaDraft {
     pub noec: Option<(Entry, Vec<super::block_dose::DoseProcedure>)>,
     /// `doses`: each level's dose, when the names are not numbers.
     pub doses: Option<Located<Vec<(String, f64)>>>,
+    /// `margin`: equivalence margins, which turn the equivalence tests on.
+    pub margin: Option<(Entry, super::block_equivalence::Margins)>,
+    /// `claim`: separate claims per level, or one for all levels.
+    pub claim: Option<(Entry, super::block_equivalence::Claim)>,
 }
 
 /// Every key an `anova` block accepts, in the order hints list them.
@@ -124,6 +128,8 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("offset", super::block_transform::read_offset),
         ("noec", super::block_dose::read_noec),
         ("doses", super::block_dose::read_doses),
+        ("margin", super::block_equivalence::read_margin),
+        ("claim", super::block_equivalence::read_claim),
         (
             "contrast_adjust",
             super::block_contrasts::read_contrast_adjust,

@@ -67,6 +67,8 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
         "doses",
         "control: a\nsides: greater\nnoec: jonckheere\ndoses: b 10, c 40",
     ),
+    ("margin", "control: a\nmargin: -1.5, 2"),
+    ("claim", "control: a\nmargin: 3%\nclaim: all"),
     ("random", "model: y ~ g\nrandom: b + b:g"),
     ("ddf", "random: b\nddf: satterthwaite"),
     ("subject", "model: y ~ week\nsubject: animal"),

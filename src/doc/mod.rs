@@ -12,6 +12,7 @@ pub mod block_covariance;
 mod block_covariates;
 mod block_display;
 pub mod block_dose;
+pub mod block_equivalence;
 pub mod block_keys;
 mod block_random;
 mod block_rows;

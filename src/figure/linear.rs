@@ -315,6 +315,7 @@ fn model_figure(o: &LinearOutcome, kind: PlotKind, id: &str, n: usize) -> Option
         PlotKind::Doses => {
             super::dose::dose_figure(o, id, n, &values_by_level(o, 0), (subject, &axis_title(o)))
         }
+        PlotKind::Equivalence => super::equivalence::equivalence_figure(o, id, n),
         PlotKind::Residuals => {
             let many = dense::summarised(count);
             let lines: Vec<usize> = o.observations.iter().map(|obs| obs.line).collect();
@@ -522,7 +523,8 @@ fn dense_note(kind: PlotKind, observations: usize) -> String {
         | PlotKind::Profile
         | PlotKind::Subjects
         | PlotKind::Trend
-        | PlotKind::Doses => {
+        | PlotKind::Doses
+        | PlotKind::Equivalence => {
             return String::new();
         }
     };

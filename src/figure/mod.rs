@@ -8,6 +8,7 @@
 
 pub mod dense;
 mod dose;
+mod equivalence;
 pub mod linear;
 pub mod plots;
 mod trend;

@@ -5,14 +5,14 @@
 use super::{Figure, PALETTE, Scale, Svg, dense, nice_ticks, text_width, tick_label};
 use crate::outcome::linear::NormalQq;
 
-const WIDTH: f64 = 480.0;
+pub(super) const WIDTH: f64 = 480.0;
 const HEIGHT: f64 = 320.0;
-const TICK_SIZE: f64 = 11.0;
-const TITLE_SIZE: f64 = 12.0;
+pub(super) const TICK_SIZE: f64 = 11.0;
+pub(super) const TITLE_SIZE: f64 = 12.0;
 const LETTER_SIZE: f64 = 12.0;
-const INK: &str = "#1d1d1f";
-const GRID: &str = "#e3e3e8";
-const MUTED: &str = "#6e6e73";
+pub(super) const INK: &str = "#1d1d1f";
+pub(super) const GRID: &str = "#e3e3e8";
+pub(super) const MUTED: &str = "#6e6e73";
 
 /// A line of an interaction plot: its name and (mean, lower, upper) per x level.
 pub(super) type Series = (String, Vec<(f64, f64, f64)>);

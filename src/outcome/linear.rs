@@ -292,6 +292,9 @@ pub struct LinearOutcome {
     /// Friedman's test (`method: ranks` with a `block:` factor).
     #[serde(default)]
     pub friedman: Option<Box<super::friedman::FriedmanDetail>>,
+    /// Equivalence of each level with the control (`margin`).
+    #[serde(default)]
+    pub equivalence: Option<Box<super::equivalence::EquivalenceDetail>>,
 }
 
 impl LinearOutcome {

@@ -38,6 +38,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod dose;
+mod equivalence;
 mod friedman;
 mod names;
 mod traits;
@@ -364,6 +365,9 @@ struct BlockContext {
     /// Friedman's test (`method: ranks` with `block:`).
     #[serde(skip_serializing_if = "Option::is_none")]
     friedman: Option<friedman::FriedmanContext>,
+    /// Blocks with `margin`: the equivalence tests.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    equivalence: Option<equivalence::EquivalenceContext>,
 }
 
 #[derive(Serialize)]
@@ -655,6 +659,7 @@ fn block_context(o: &LinearOutcome) -> BlockContext {
         transform: transform::transform_context(o),
         dose_response: dose::dose_context(o),
         friedman: friedman::friedman_context(o),
+        equivalence: equivalence::equivalence_context(o),
     }
 }
 #[derive(Serialize)]

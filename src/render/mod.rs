@@ -37,6 +37,10 @@ pub const CAUTIONS: [&str; 5] = [
     "Applicable regulatory guidance and local standard operating procedures take precedence over this tool's defaults.",
 ];
 
+/// Replaces the second standing caution when a block declares equivalence
+/// margins: the method, and what its outcomes do not mean.
+pub const EQUIVALENCE_CAUTION: &str = "Equivalence was tested by two one-sided tests against margins the author declared. The margins are the author's choice: they must be justified on scientific or regulatory grounds and fixed before the data are seen. A level not shown equivalent is not thereby different (with few observations neither may be shown), and a significant difference and equivalence can both hold when the difference is smaller than the margin. Elsewhere, a difference that is not significant does not show that levels are equivalent.";
+
 /// Printed after the standing cautions when a block has random terms.
 pub const RANDOM_TERMS_CAUTION: &str = "A random term treats its units (blocks, whole plots, animals, sites) as a sample from a larger population, with independent, normally distributed effects of one variance; with fewer than about five units that variance is poorly known. Which terms are random follows from the design, from how treatments were randomised to units, not from which model fits the data better.";
 
@@ -156,8 +160,24 @@ fn linear_choices(o: &LinearOutcome) -> String {
             d.direction.key()
         )
     });
+    let equivalence = o.equivalence.as_deref().map_or(String::new(), |d| {
+        let claim = match (d.rows.len(), d.claim) {
+            (0 | 1, _) => "one comparison".to_string(),
+            (m, crate::doc::block_equivalence::Claim::Each) => {
+                format!("a claim per level, Bonferroni over {m}")
+            }
+            (_, crate::doc::block_equivalence::Claim::All) => "one claim for all levels".into(),
+        };
+        format!(
+            "; equivalence with {} within {} by two one-sided tests ({claim}{}, each at α = {})",
+            d.control,
+            d.margin_words(),
+            if d.welch { ", Welch" } else { "" },
+            crate::outcome::equivalence::alpha_words(d.comparison_alpha)
+        )
+    });
     format!(
-        "`{}` (line {}): {model}{scale}; {}{doses}; α = {}; {} used, {} left out.",
+        "`{}` (line {}): {model}{scale}; {}{doses}{equivalence}; α = {}; {} used, {} left out.",
         o.id,
         o.line,
         compare.unwrap_or_else(|| "no pairwise comparisons".to_string()),

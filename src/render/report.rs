@@ -6,8 +6,8 @@ use super::templates::{template_source, to_value};
 use super::view::BlockView;
 use super::writer::Writer;
 use super::{
-    CAUTIONS, FRIEDMAN_CAUTION, NOEC_CAUTION, RANDOM_TERMS_CAUTION, TRAITS_CAUTION, choices_of,
-    inline, tables, view,
+    CAUTIONS, EQUIVALENCE_CAUTION, FRIEDMAN_CAUTION, NOEC_CAUTION, RANDOM_TERMS_CAUTION,
+    TRAITS_CAUTION, choices_of, inline, tables, view,
 };
 use crate::diag::Diagnostic;
 use crate::doc::Document;
@@ -91,6 +91,22 @@ impl<'a> Report<'a> {
     /// has them.
     pub(crate) fn cautions(&self) -> Vec<&'static str> {
         let mut cautions = CAUTIONS.to_vec();
+        if self
+            .results
+            .iter()
+            .any(|r| r.linear().is_some_and(|o| o.equivalence.is_some()))
+        {
+            // The equivalence tests answer the standing caution where every
+            // block declares margins; otherwise both stand.
+            let every = self
+                .results
+                .iter()
+                .all(|r| r.linear().is_none_or(|o| o.equivalence.is_some()));
+            match every {
+                true => cautions[1] = EQUIVALENCE_CAUTION,
+                false => cautions.insert(2, EQUIVALENCE_CAUTION),
+            }
+        }
         if self
             .results
             .iter()

@@ -7,6 +7,7 @@ pub mod dist;
 pub mod dose;
 pub mod dunnett;
 pub mod effect;
+pub mod equivalence;
 pub mod extremes;
 pub mod friedman;
 pub mod jonckheere;

@@ -10,6 +10,7 @@ mod contrasts;
 mod covariance;
 mod covariates;
 mod dose;
+mod equivalence;
 mod friedman;
 mod keys;
 mod means;
@@ -24,6 +25,7 @@ mod transform;
 mod trend;
 mod two_way;
 
+pub use equivalence::conclusion as equivalence_conclusion;
 pub use power::power_view;
 pub use traits::traits_view;
 
@@ -160,23 +162,7 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     if let Some(d) = o.friedman.as_deref() {
         rank_tables(o, (d, ranked_family), &keys, &mut numbers, &mut tables);
     }
-    if let Some(d) = o.contrasts.as_deref() {
-        tables.push(planned::planned_table(o, d, &keys, numbers.next()));
-    }
-    if let Some(t) = o.trend.as_deref() {
-        tables.push(trend::trend_table(o, t, &keys, numbers.next()));
-    }
-    if let Some(d) = o.dose.as_deref() {
-        // Dunnett's steps are the pairs table already shown.
-        for t in d
-            .tests
-            .iter()
-            .filter(|t| t.method != crate::outcome::dose::DoseMethod::Dunnett)
-        {
-            tables.push(dose::dose_table(o, d, t, &keys, numbers.next()));
-        }
-        tables.push(dose::noec_table(o, d, &keys, numbers.next()));
-    }
+    planned_tables(o, &keys, &mut numbers, &mut tables);
     if let Some(layout) = cell_letters.filter(|_| show.pairs) {
         let number = *numbers.0;
         if let Some(t) = two_way::slice_pairs_table(o, layout, &keys, number) {
@@ -193,6 +179,36 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
         warnings: o.warnings.clone(),
         ..BlockView::default()
     })
+}
+
+/// The tables of the analyses a block asks for beyond its comparisons:
+/// planned contrasts, a trend, the dose-response tests, equivalence.
+fn planned_tables(
+    o: &LinearOutcome,
+    keys: &Keys,
+    numbers: &mut Numbering,
+    tables: &mut Vec<TableView>,
+) {
+    if let Some(d) = o.contrasts.as_deref() {
+        tables.push(planned::planned_table(o, d, keys, numbers.next()));
+    }
+    if let Some(t) = o.trend.as_deref() {
+        tables.push(trend::trend_table(o, t, keys, numbers.next()));
+    }
+    if let Some(d) = o.dose.as_deref() {
+        // Dunnett's steps are the pairs table already shown.
+        for t in d
+            .tests
+            .iter()
+            .filter(|t| t.method != crate::outcome::dose::DoseMethod::Dunnett)
+        {
+            tables.push(dose::dose_table(o, d, t, keys, numbers.next()));
+        }
+        tables.push(dose::noec_table(o, d, keys, numbers.next()));
+    }
+    if let Some(e) = o.equivalence.as_deref() {
+        tables.push(equivalence::equivalence_table(o, e, keys, numbers.next()));
+    }
 }
 
 /// The ANOVA table (or its alternative); with random terms, the classical
