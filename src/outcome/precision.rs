@@ -28,8 +28,11 @@ impl Sed {
 /// The SEDs of a family whose pairs share one error df; `None` where each
 /// pair has its own (Games-Howell, mixed models) or there are no pairs.
 pub fn sed(c: &Comparison) -> Option<Sed> {
-    // Rank post hoc procedures within blocks compare ranks, not means.
-    if matches!(c.method, Method::Nemenyi | Method::ConoverFriedman) {
+    // Rank procedures compare ranks, not means: their SE is in rank units.
+    if matches!(
+        c.method,
+        Method::Dunn | Method::Nemenyi | Method::ConoverFriedman
+    ) {
         return None;
     }
     let first = c.contrasts.first()?;
