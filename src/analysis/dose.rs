@@ -123,6 +123,16 @@ fn order(
     })
 }
 
+/// What every procedure reads: the request, the doses in order, the data
+/// and α.
+struct Run<'a> {
+    doc: &'a Document,
+    d: &'a DoseSpec,
+    order: &'a Order,
+    input: &'a DoseInput<'a>,
+    alpha: f64,
+}
+
 /// The block's dose-response tests, or `None` when it asks for none.
 pub(crate) fn dose_response(
     doc: &Document,
@@ -134,15 +144,20 @@ pub(crate) fn dose_response(
         return Ok(None);
     };
     let order = order(doc, spec, d, input.levels)?;
+    let run = Run {
+        doc,
+        d,
+        order: &order,
+        input,
+        alpha,
+    };
     let lv = input.levels;
     let mut tests = Vec::new();
     for p in &d.procedures {
         tests.push(match p {
-            DoseProcedure::Williams => williams(doc, d, &order, input, alpha)?,
-            DoseProcedure::Jonckheere | DoseProcedure::Ordinal => {
-                step_down(doc, d, *p, &order, input, alpha)?
-            }
-            DoseProcedure::Steel => steel(doc, d, &order, input, alpha)?,
+            DoseProcedure::Williams => run.williams()?,
+            DoseProcedure::Jonckheere | DoseProcedure::Ordinal => run.step_down(*p)?,
+            DoseProcedure::Steel => run.steel()?,
         });
     }
     if let Some(c) = input.dunnett {
@@ -218,175 +233,168 @@ fn test(method: DoseMethod, steps: Vec<DoseStep>, approximation: Option<String>)
     }
 }
 
-fn williams(
-    doc: &Document,
-    d: &DoseSpec,
-    order: &Order,
-    input: &DoseInput<'_>,
-    alpha: f64,
-) -> Result<DoseTest, Diagnostic> {
-    use crate::stats::williams::{WilliamsInput, williams};
-    let lv = input.levels;
-    let means: Vec<f64> = order.doses.iter().map(|&(i, _)| lv[i].mean).collect();
-    let ns: Vec<usize> = order.doses.iter().map(|&(i, _)| lv[i].n).collect();
-    let w = williams(&WilliamsInput {
-        control_mean: lv[order.control].mean,
-        control_n: lv[order.control].n,
-        dose_means: &means,
-        dose_ns: &ns,
-        mse: input.mse,
-        df: input.df,
-        direction: d.direction,
-        alpha,
-    })
-    .map_err(|e| {
-        error(
+impl<'a> Run<'a> {
+    fn williams(&self) -> Result<DoseTest, Diagnostic> {
+        let Run {
             doc,
             d,
-            format!("Williams' test cannot be computed: {e}"),
-            "check the replication of the control and the doses",
-        )
-    })?;
-    let steps = w
-        .steps
-        .iter()
-        .enumerate()
-        .map(|(k, s)| DoseStep {
-            dose: k,
-            statistic: s.statistic,
-            z: None,
-            restricted_mean: Some(s.restricted_mean),
-            critical: Some(s.critical),
-            df: Some(input.df),
-            p: s.p,
-            p_source: PSource::T,
-            tested: s.tested,
-            significant: s.significant,
+            order,
+            input,
+            alpha,
+        } = *self;
+        use crate::stats::williams::{WilliamsInput, williams};
+        let lv = input.levels;
+        let means: Vec<f64> = order.doses.iter().map(|&(i, _)| lv[i].mean).collect();
+        let ns: Vec<usize> = order.doses.iter().map(|&(i, _)| lv[i].n).collect();
+        let w = williams(&WilliamsInput {
+            control_mean: lv[order.control].mean,
+            control_n: lv[order.control].n,
+            dose_means: &means,
+            dose_ns: &ns,
+            mse: input.mse,
+            df: input.df,
+            direction: d.direction,
+            alpha,
         })
-        .collect();
-    let mut t = test(DoseMethod::Williams, steps, None);
-    t.unequal_replication = w.unequal_replication;
-    Ok(t)
-}
-
-/// The observations in test order: the control, then the doses upwards.
-fn groups<'a>(
-    doc: &Document,
-    d: &DoseSpec,
-    order: &Order,
-    input: &'a DoseInput<'_>,
-) -> Result<Vec<&'a [f64]>, Diagnostic> {
-    let Some(obs) = input.observations else {
-        return Err(error(
-            doc,
-            d,
-            "this procedure needs the observations, not summaries".into(),
-            "give the raw data, or use `noec: williams`",
-        ));
-    };
-    Ok(std::iter::once(order.control)
-        .chain(order.doses.iter().map(|&(i, _)| i))
-        .map(|i| obs[i].as_slice())
-        .collect())
-}
-
-fn step_down(
-    doc: &Document,
-    d: &DoseSpec,
-    p: DoseProcedure,
-    order: &Order,
-    input: &DoseInput<'_>,
-    alpha: f64,
-) -> Result<DoseTest, Diagnostic> {
-    use crate::stats::step_down::{TrendTest, step_down};
-    let groups = groups(doc, d, order, input)?;
-    let (kind, method) = match p {
-        DoseProcedure::Jonckheere => (TrendTest::Jonckheere, DoseMethod::Jonckheere),
-        _ => (TrendTest::OrdinalContrast, DoseMethod::Ordinal),
-    };
-    let s = step_down(&groups, kind, d.direction, alpha).ok_or_else(|| {
-        error(
-            doc,
-            d,
-            format!("the {} cannot be computed on these data", method.title()),
-            "every group needs observations, and some must differ",
-        )
-    })?;
-    let approximate =
-        s.steps.iter().any(|x| x.tested && !x.exact) && method == DoseMethod::Jonckheere;
-    let steps = s
-        .steps
-        .iter()
-        .enumerate()
-        .map(|(k, x)| DoseStep {
-            dose: k,
-            statistic: x.statistic,
-            z: x.z,
-            restricted_mean: None,
-            critical: None,
-            df: x.df,
-            p: x.p,
-            p_source: match (method, x.exact) {
-                (DoseMethod::Ordinal, _) => PSource::T,
-                (_, true) => PSource::Exact,
-                (_, false) => PSource::Normal,
-            },
-            tested: x.tested,
-            significant: x.significant,
-        })
-        .collect();
-    let note = approximate.then(|| "Where observations tie between groups the exact distribution does not apply: those p-values use the normal approximation with the tie-corrected variance.".to_string());
-    Ok(test(method, steps, note))
-}
-
-fn steel(
-    doc: &Document,
-    d: &DoseSpec,
-    order: &Order,
-    input: &DoseInput<'_>,
-    alpha: f64,
-) -> Result<DoseTest, Diagnostic> {
-    let groups = groups(doc, d, order, input)?;
-    let s = crate::stats::steel::steel(groups[0], &groups[1..], d.direction, alpha).ok_or_else(
-        || {
+        .map_err(|e| {
             error(
                 doc,
                 d,
-                "Steel's test cannot be computed on these data".into(),
-                "every group needs observations",
+                format!("Williams' test cannot be computed: {e}"),
+                "check the replication of the control and the doses",
             )
-        },
-    )?;
-    let steps = s
-        .pairs
-        .iter()
-        .enumerate()
-        .map(|(k, x)| {
-            let (p, source) = match x.p_exact {
-                Some(p) => (p, PSource::Exact),
-                None => (x.p_normal, PSource::Normal),
-            };
-            DoseStep {
+        })?;
+        let steps = w
+            .steps
+            .iter()
+            .enumerate()
+            .map(|(k, s)| DoseStep {
                 dose: k,
-                statistic: x.u,
-                z: Some(x.z),
+                statistic: s.statistic,
+                z: None,
+                restricted_mean: Some(s.restricted_mean),
+                critical: Some(s.critical),
+                df: Some(input.df),
+                p: s.p,
+                p_source: PSource::T,
+                tested: s.tested,
+                significant: s.significant,
+            })
+            .collect();
+        let mut t = test(DoseMethod::Williams, steps, None);
+        t.unequal_replication = w.unequal_replication;
+        Ok(t)
+    }
+
+    /// The observations in test order: the control, then the doses upwards.
+    fn groups(&self) -> Result<Vec<&'a [f64]>, Diagnostic> {
+        let Run {
+            doc,
+            d,
+            order,
+            input,
+            ..
+        } = *self;
+        let Some(obs) = input.observations else {
+            return Err(error(
+                doc,
+                d,
+                "this procedure needs the observations, not summaries".into(),
+                "give the raw data, or use `noec: williams`",
+            ));
+        };
+        Ok(std::iter::once(order.control)
+            .chain(order.doses.iter().map(|&(i, _)| i))
+            .map(|i| obs[i].as_slice())
+            .collect())
+    }
+
+    fn step_down(&self, p: DoseProcedure) -> Result<DoseTest, Diagnostic> {
+        let Run { doc, d, alpha, .. } = *self;
+        use crate::stats::step_down::{TrendTest, step_down};
+        let groups = self.groups()?;
+        let (kind, method) = match p {
+            DoseProcedure::Jonckheere => (TrendTest::Jonckheere, DoseMethod::Jonckheere),
+            _ => (TrendTest::OrdinalContrast, DoseMethod::Ordinal),
+        };
+        let s = step_down(&groups, kind, d.direction, alpha).ok_or_else(|| {
+            error(
+                doc,
+                d,
+                format!("the {} cannot be computed on these data", method.title()),
+                "every group needs observations, and some must differ",
+            )
+        })?;
+        let approximate =
+            s.steps.iter().any(|x| x.tested && !x.exact) && method == DoseMethod::Jonckheere;
+        let steps = s
+            .steps
+            .iter()
+            .enumerate()
+            .map(|(k, x)| DoseStep {
+                dose: k,
+                statistic: x.statistic,
+                z: x.z,
                 restricted_mean: None,
                 critical: None,
-                df: None,
-                p,
-                p_source: source,
-                tested: true,
-                significant: p < alpha,
-            }
-        })
-        .collect();
-    // Tied observations between a dose and the control rule the exact
-    // distribution out; a dose beyond the work limit is named by the table.
-    let tied = groups[1..]
-        .iter()
-        .any(|g| g.iter().any(|x| groups[0].contains(x)));
-    let note = tied.then(|| "Observations tie between a dose and the control, so the exact distribution (for continuous data) does not apply.".to_string());
-    Ok(test(DoseMethod::Steel, steps, note))
+                df: x.df,
+                p: x.p,
+                p_source: match (method, x.exact) {
+                    (DoseMethod::Ordinal, _) => PSource::T,
+                    (_, true) => PSource::Exact,
+                    (_, false) => PSource::Normal,
+                },
+                tested: x.tested,
+                significant: x.significant,
+            })
+            .collect();
+        let note = approximate.then(|| "Where observations tie between groups the exact distribution does not apply: those p-values use the normal approximation with the tie-corrected variance.".to_string());
+        Ok(test(method, steps, note))
+    }
+
+    fn steel(&self) -> Result<DoseTest, Diagnostic> {
+        let Run { doc, d, alpha, .. } = *self;
+        let groups = self.groups()?;
+        let s = crate::stats::steel::steel(groups[0], &groups[1..], d.direction, alpha)
+            .ok_or_else(|| {
+                error(
+                    doc,
+                    d,
+                    "Steel's test cannot be computed on these data".into(),
+                    "every group needs observations",
+                )
+            })?;
+        let steps = s
+            .pairs
+            .iter()
+            .enumerate()
+            .map(|(k, x)| {
+                let (p, source) = match x.p_exact {
+                    Some(p) => (p, PSource::Exact),
+                    None => (x.p_normal, PSource::Normal),
+                };
+                DoseStep {
+                    dose: k,
+                    statistic: x.u,
+                    z: Some(x.z),
+                    restricted_mean: None,
+                    critical: None,
+                    df: None,
+                    p,
+                    p_source: source,
+                    tested: true,
+                    significant: p < alpha,
+                }
+            })
+            .collect();
+        // Tied observations between a dose and the control rule the exact
+        // distribution out; a dose beyond the work limit is named by the table.
+        let tied = groups[1..]
+            .iter()
+            .any(|g| g.iter().any(|x| groups[0].contains(x)));
+        let note = tied.then(|| "Observations tie between a dose and the control, so the exact distribution (for continuous data) does not apply.".to_string());
+        Ok(test(DoseMethod::Steel, steps, note))
+    }
 }
 
 /// Dunnett's one-sided comparisons, read dose by dose.
