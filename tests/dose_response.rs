@@ -241,3 +241,73 @@ fn a_dose_moving_against_the_tested_direction_is_reported() {
     assert!(d["reversals"][0]["p"].as_f64().expect("p") < 0.05);
     assert_eq!(d["tests"]["williams"]["loec"], "25");
 }
+
+#[test]
+fn unequal_dose_replication_uses_its_own_critical_values() {
+    // Invented deletion of one 512 µg/L observation (tests/data/invented).
+    let data = std::fs::read_to_string(format!(
+        "{}/tests/data/invented/promelas-unequal.csv",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .expect("data");
+    let doc = format!("# T\n\n```anova\nid: t\ndata: p.csv\n{BLOCK}noec: williams\n```\n");
+    let (report, r) = documents::build_report(&doc, &[("p.csv", data)]).expect("builds");
+    let w = &r["blocks"][0]["dose_response"]["tests"]["williams"];
+    assert_eq!(w["unequal_replication"], true);
+    // Every decision follows its own critical value (the kernel's values
+    // for unequal replication are checked against a forward grid and a
+    // seeded Monte Carlo in stats::williams).
+    for s in w["steps"]
+        .as_array()
+        .expect("steps")
+        .iter()
+        .filter(|s| s["tested"] == true)
+    {
+        let (t, c) = (
+            s["statistic"].as_f64().expect("t̄"),
+            s["critical"].as_f64().expect("critical"),
+        );
+        assert_eq!(s["significant"], t > c, "{s}");
+    }
+    assert!(
+        report.contains("which no published table covers"),
+        "{report}"
+    );
+}
+
+#[test]
+fn williams_runs_on_summary_input_and_the_rank_tests_are_refused() {
+    // Each level's n, mean and SD of P.promelas (computed here from the
+    // open data, then read back as a summary file).
+    let text = open("P.promelas.csv");
+    let mut levels: Vec<(String, Vec<f64>)> = Vec::new();
+    for line in text.lines().skip(1) {
+        let (c, y) = line.split_once(',').expect("two columns");
+        let y: f64 = y.parse().expect("number");
+        match levels.iter_mut().find(|(l, _)| l == c) {
+            Some((_, v)) => v.push(y),
+            None => levels.push((c.to_string(), vec![y])),
+        }
+    }
+    let mut summary = String::from("conc,n,mean,sd\n");
+    for (c, v) in &levels {
+        let n = v.len() as f64;
+        let m = v.iter().sum::<f64>() / n;
+        let sd = (v.iter().map(|y| (y - m).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
+        summary.push_str(&format!("{c},{},{m:.17},{sd:.17}\n", v.len()));
+    }
+    let doc = format!(
+        "# T\n\n```anova\nid: t\ndata: p.csv\ninput: summary\n{BLOCK}noec: williams\n```\n"
+    );
+    let r = build(&doc, &[("p.csv", summary.clone())]).expect("builds");
+    let w = &r["blocks"][0]["dose_response"]["tests"]["williams"];
+    // The same t̄ as from the raw data (E.5), to the rounding of the
+    // written means and SDs (17 digits).
+    assert_close(&step(w, "128")["statistic"], 2.22967214237, 1e-9, "t̄ 128");
+    assert_eq!(w["loec"], "128");
+    let e = error(
+        &format!("input: summary\n{BLOCK}noec: williams, steel\n"),
+        &summary,
+    );
+    assert!(e.contains("need the observations"), "{e}");
+}
