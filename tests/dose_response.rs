@@ -311,3 +311,18 @@ fn williams_runs_on_summary_input_and_the_rank_tests_are_refused() {
     );
     assert!(e.contains("need the observations"), "{e}");
 }
+
+#[test]
+fn more_doses_than_a_dose_response_design_holds_are_refused() {
+    // 51 doses besides the control: the work of Williams' critical values
+    // grows with the square of the doses, so the count is bounded.
+    let mut data = String::from("c,y\n");
+    for c in 0..=51 {
+        for r in 0..3 {
+            data.push_str(&format!("{c},{}\n", 10 + (c * 7 + r * 3) % 5));
+        }
+    }
+    let block = "model: y ~ c\ncontrol: 0\nsides: less\nnoec: williams\n";
+    let e = error(block, &data);
+    assert!(e.contains("51 doses") && e.contains("up to 50"), "{e}");
+}

@@ -10,6 +10,10 @@ use crate::outcome::linear::LinearOutcome;
 use crate::render::view::{Cell, TableView};
 use crate::stats::dose::Direction;
 
+/// The most doses Williams' published tables cover (Williams 1971, 1972;
+/// from memory).
+const PUBLISHED_DOSES: usize = 10;
+
 /// The caution printed with every NOEC (OECD 2006; from memory).
 pub const NOEC_CAUTION: &str = "NOEC and LOEC depend on the tested doses and the replication: the NOEC is a tested dose, not an estimate of a threshold, and a regression-based ECx is generally preferred (OECD 2006).";
 
@@ -172,7 +176,11 @@ fn footnotes(d: &DoseDetail, t: &DoseTest) -> Vec<String> {
             "Williams (1971, 1972): the dose means are made monotone by amalgamation (restricted means; the control is not pooled) and compared with the control's mean using the ANOVA's error mean square ({} on {} df), from the highest dose down; testing stops at the first dose without an effect. Critical values are computed from the exact null distribution{}.",
             significant(d.mse, 4),
             df_text(d.df),
-            if t.unequal_replication { " for the doses' unequal replication, which no published table covers" } else { "" }
+            match (t.unequal_replication, d.doses.len() > PUBLISHED_DOSES) {
+                (true, _) => " for the doses' unequal replication, which no published table covers",
+                (false, true) => "; no published table covers more than 10 doses",
+                (false, false) => "",
+            }
         ),
         DoseMethod::Jonckheere => format!(
             "Jonckheere-Terpstra trend test on the control and the doses up to the one named, from all doses down; testing stops at the first test without a trend (Tukey, Ciminera & Heyse 1985). Reading a trend among the lowest doses as an effect of the highest of them rests on a monotone response. J counts the pairs of observations in which the one at the higher dose is larger (ties count one half), so {}; z has no continuity correction.",
