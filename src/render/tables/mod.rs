@@ -35,6 +35,10 @@ use crate::format::typographic_minus;
 use crate::outcome::linear::{Family, LinearOutcome};
 use keys::Keys;
 
+/// Under the checks of a block running Friedman's test, which assumes
+/// neither normal errors nor equal variances.
+const FRIEDMAN_CHECKS_NOTE: &str = "These checks describe the residuals of the two-way analysis of variance of the same data, for orientation: Friedman's test ranks within blocks and assumes neither normal errors nor equal variances.";
+
 fn cell(text: String, key: String) -> Cell {
     Cell {
         text,
@@ -92,14 +96,18 @@ pub fn linear_view(o: &LinearOutcome, next_table: &mut usize) -> BlockView {
     if o.checks.shown {
         let subject = format!("{} by {}", measure(o), factors_text(o));
         let shown = |term: &str| shown_term(&o.presentation.plots, term);
-        tables.push(checks::checks_table(
+        let mut table = checks::checks_table(
             &o.checks,
             (o.mixed.as_ref().map_or(&[][..], |m| &m.predicted), &shown),
             &keys,
             o.alpha,
             &subject,
             numbers.next(),
-        ));
+        );
+        if o.friedman.is_some() {
+            table.footnotes.push(FRIEDMAN_CHECKS_NOTE.to_string());
+        }
+        tables.push(table);
     }
     let cell_letters = o.mixed.as_ref().and_then(|m| m.cell_letters.as_ref());
     if let Some(layout) = cell_letters {
