@@ -229,6 +229,15 @@ pub fn typographic_minus(s: &str) -> String {
     out
 }
 
+/// The first letter in upper case: "specific growth rate" → "Specific growth rate".
+pub fn capitalised(s: &str) -> String {
+    let mut chars = s.chars();
+    chars
+        .next()
+        .map(|c| c.to_uppercase().chain(chars).collect())
+        .unwrap_or_default()
+}
+
 /// A count with its noun: "1 row", "3 rows".
 pub fn counted(n: usize, one: &str, many: &str) -> String {
     if n == 1 {

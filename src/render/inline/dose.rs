@@ -3,6 +3,7 @@
 //! `loec` (level names; null when there is none) and `statement`, and
 //! `dose_response.statement`, the first procedure's sentence.
 
+use crate::format::capitalised;
 use crate::outcome::dose::{DoseDetail, DoseTest, Noec};
 use crate::outcome::linear::LinearOutcome;
 use crate::stats::dose::Direction;
@@ -80,13 +81,6 @@ fn lower_first(s: &str) -> String {
         }
         _ => s.to_string(),
     }
-}
-
-fn capitalised(s: &str) -> String {
-    let mut c = s.chars();
-    c.next().map_or(String::new(), |f| {
-        f.to_uppercase().collect::<String>() + c.as_str()
-    })
 }
 
 pub(super) fn dose_context(o: &LinearOutcome) -> Option<DoseContext> {

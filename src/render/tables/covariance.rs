@@ -6,6 +6,7 @@ use super::keys::Keys;
 use super::{cell, col, measure, shown_term, text};
 use crate::doc::block::PlotSpec;
 use crate::doc::block_covariance::CovarianceStructure;
+use crate::format::capitalised;
 use crate::format::{fixed, significant};
 use crate::outcome::covariance::{CovarianceDetail, StructureFit};
 use crate::outcome::linear::LinearOutcome;
@@ -158,12 +159,4 @@ fn comparison_notes(o: &LinearOutcome, c: &CovarianceDetail) -> Vec<String> {
         ));
     }
     notes
-}
-
-fn capitalised(s: &str) -> String {
-    let mut chars = s.chars();
-    chars
-        .next()
-        .map(|c| c.to_uppercase().chain(chars).collect())
-        .unwrap_or_default()
 }

@@ -4,6 +4,7 @@
 
 use super::keys::Keys;
 use super::{cell, col, text};
+use crate::format::capitalised;
 use crate::format::{alpha_text, df_text, fixed, p_value, significant};
 use crate::outcome::dose::{DoseDetail, DoseMethod, DoseStep, DoseTest, Noec, PSource};
 use crate::outcome::linear::LinearOutcome;
@@ -162,13 +163,6 @@ fn pair_count(x: f64) -> String {
     }
 }
 
-fn capitalised(s: &str) -> String {
-    let mut c = s.chars();
-    c.next().map_or(String::new(), |f| {
-        f.to_uppercase().collect::<String>() + c.as_str()
-    })
-}
-
 /// What the procedure does, in a sentence or two, and its approximations.
 fn footnotes(d: &DoseDetail, t: &DoseTest) -> Vec<String> {
     let mut notes = vec![match t.method {
@@ -234,7 +228,7 @@ pub fn noec_table(o: &LinearOutcome, d: &DoseDetail, keys: &Keys, number: usize)
                 Noec::AtLeastHighest => format!("≥ {}", dose_label(d, d.doses.len() - 1)),
             };
             vec![
-                capitalised_cell(t.method.title()),
+                text(capitalised(t.method.title())),
                 cell(noec, k("noec")),
                 cell(loec, k("loec")),
             ]
@@ -271,8 +265,4 @@ pub fn noec_table(o: &LinearOutcome, d: &DoseDetail, keys: &Keys, number: usize)
         rows,
         footnotes,
     }
-}
-
-fn capitalised_cell(s: &str) -> Cell {
-    text(capitalised(s))
 }

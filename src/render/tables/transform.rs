@@ -6,6 +6,7 @@
 use super::keys::Keys;
 use super::{cell, col, display_order, family_subject, family_table_id, text};
 use crate::doc::block::Order;
+use crate::format::capitalised;
 use crate::format::{alpha_text, confidence_label, fixed, significant};
 use crate::outcome::linear::{Family, LinearOutcome};
 use crate::outcome::transform::{TransformDetail, Wording};
@@ -186,13 +187,6 @@ pub fn short_scale(t: &Declared) -> &'static str {
         Transform::Logit => "logit scale",
         Transform::Arcsine => "arcsine scale",
     }
-}
-
-fn capitalised(s: &str) -> String {
-    let mut c = s.chars();
-    c.next().map_or(String::new(), |f| {
-        f.to_uppercase().collect::<String>() + c.as_str()
-    })
 }
 
 /// The Box-Cox profile: λ̂, its interval, ℓ at the conventional powers and

@@ -5,17 +5,11 @@
 
 use super::keys::Keys;
 use super::{cell, col, text};
+use crate::format::capitalised;
 use crate::format::{alpha_text, df_text, f_stat, p_value, significant};
 use crate::outcome::linear::LinearOutcome;
 use crate::outcome::trend::{TrendDetail, TrendVerdict, degree_name};
 use crate::render::view::{Cell, TableView};
-
-fn capitalised(s: &str) -> String {
-    let mut c = s.chars();
-    c.next().map_or(String::new(), |f| {
-        f.to_uppercase().collect::<String>() + c.as_str()
-    })
-}
 
 pub fn trend_table(o: &LinearOutcome, t: &TrendDetail, keys: &Keys, number: usize) -> TableView {
     let line = |label: String, key: &str, df: f64, ss: f64, f: f64, p: f64| -> Vec<Cell> {
