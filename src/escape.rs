@@ -55,6 +55,12 @@ pub fn css_string(text: &str) -> String {
 
 /// Escapes text for HTML element content and attribute values.
 pub fn html_escape(text: &str) -> String {
+    markup_escape(text, "&#x27;", |_| true)
+}
+
+/// The five markup specials as entities (the apostrophe as `apostrophe`),
+/// keeping only the other characters `keep` allows.
+fn markup_escape(text: &str, apostrophe: &str, keep: impl Fn(char) -> bool) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
         match c {
@@ -62,8 +68,9 @@ pub fn html_escape(text: &str) -> String {
             '<' => out.push_str("&lt;"),
             '>' => out.push_str("&gt;"),
             '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#x27;"),
-            _ => out.push(c),
+            '\'' => out.push_str(apostrophe),
+            c if keep(c) => out.push(c),
+            _ => {}
         }
     }
     out
@@ -73,8 +80,7 @@ pub fn html_escape(text: &str) -> String {
 /// forbids (a control character from a data file) is dropped, so that a
 /// figure written beside the report stays a well-formed file.
 pub fn xml_escape(text: &str) -> String {
-    let allowed: String = text.chars().filter(|&c| xml_allows(c)).collect();
-    html_escape(&allowed)
+    markup_escape(text, "&#x27;", xml_allows)
 }
 
 /// Whether XML 1.0 allows `c` in a document.
@@ -87,19 +93,7 @@ fn xml_allows(c: char) -> bool {
 /// forbids (control characters other than tab, line feed and carriage
 /// return; U+FFFE and U+FFFF) dropped, since no entity can stand for them.
 pub fn ooxml_escape(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&apos;"),
-            c if xml_allows(c) => out.push(c),
-            _ => {}
-        }
-    }
-    out
+    markup_escape(text, "&apos;", xml_allows)
 }
 
 /// Escapes text for LaTeX (UTF-8 input, T1 font encoding): the ten special

@@ -36,21 +36,7 @@ struct Cli {
 enum Command {
     /// Build the report and its results file from a document and its data.
     #[command(after_help = SYNTAX)]
-    Build {
-        /// The Markdown document to compile.
-        document: PathBuf,
-        /// Output folder for the report, results file and figures (created if needed).
-        #[arg(short = 'o', long = "out", value_name = "DIR")]
-        out: PathBuf,
-        /// Report format.
-        #[arg(long = "to", value_parser = format_parser(), default_value = "html")]
-        to: Format,
-        /// Read data only from inside the document's folder: no absolute paths,
-        /// no `..` escapes, no symbolic links out, no cache read (for untrusted
-        /// documents); outputs must resolve inside it too.
-        #[arg(long)]
-        confine: bool,
-    },
+    Build(Target),
     /// Check that the report in DIR is exactly what the sources produce now.
     #[command(after_help = SYNTAX)]
     Verify {
@@ -72,25 +58,14 @@ enum Command {
     /// Rebuild whenever the document or its data change; optionally serve the report.
     #[command(after_help = SYNTAX)]
     Watch {
-        /// The Markdown document to compile and follow.
-        document: PathBuf,
-        /// Output folder for the report, results file and figures (created if needed).
-        #[arg(short = 'o', long = "out", value_name = "DIR")]
-        out: PathBuf,
-        /// Report format.
-        #[arg(long = "to", value_parser = format_parser(), default_value = "html")]
-        to: Format,
+        #[command(flatten)]
+        target: Target,
         /// Serve the output folder on 127.0.0.1 and reload the page after each rebuild.
         #[arg(long)]
         serve: bool,
         /// Port for --serve (0 picks a free one).
         #[arg(long, default_value_t = sheaf::watch::DEFAULT_PORT)]
         port: u16,
-        /// Read data only from inside the document's folder: no absolute paths,
-        /// no `..` escapes, no symbolic links out, no cache read (for untrusted
-        /// documents); outputs must resolve inside it too.
-        #[arg(long)]
-        confine: bool,
     },
     /// Start a new study folder from a small invented example.
     #[command(after_help = SYNTAX)]
@@ -107,12 +82,30 @@ enum Command {
     },
 }
 
+/// What `build` and `watch` compile, into which folder and format.
+#[derive(clap::Args)]
+struct Target {
+    /// The Markdown document to compile.
+    document: PathBuf,
+    /// Output folder for the report, results file and figures (created if needed).
+    #[arg(short = 'o', long = "out", value_name = "DIR")]
+    out: PathBuf,
+    /// Report format.
+    #[arg(long = "to", value_parser = format_parser(), default_value = "html")]
+    to: Format,
+    /// Read data only from inside the document's folder: no absolute paths,
+    /// no `..` escapes, no symbolic links out, no cache read (for untrusted
+    /// documents); outputs must resolve inside it too.
+    #[arg(long)]
+    confine: bool,
+}
+
 /// `--to`: the registered output formats, each with its writer's help.
 fn format_parser() -> impl clap::builder::TypedValueParser<Value = Format> {
     use clap::builder::TypedValueParser;
     let names = FORMATS
         .iter()
-        .map(|f| clap::builder::PossibleValue::new(f.name()).help(f.writer().help()));
+        .map(|f| clap::builder::PossibleValue::new(f.name()).help(f.writer().about().help));
     clap::builder::PossibleValuesParser::new(names)
         .map(|name| Format::named(&name).unwrap_or(FORMATS[0]))
 }
@@ -130,12 +123,7 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let short = cli.short_errors;
     let outcome = match cli.command {
-        Command::Build {
-            document,
-            out,
-            to,
-            confine,
-        } => build(&document, &out, to, confine),
+        Command::Build(t) => build(&t.document, &t.out, t.to, t.confine),
         Command::Verify {
             document,
             out,
@@ -143,19 +131,16 @@ fn main() -> ExitCode {
             confine,
         } => verify(&document, &out, to, confine),
         Command::Watch {
-            document,
-            out,
-            to,
+            target,
             serve,
             port,
-            confine,
         } => sheaf::watch::run(sheaf::watch::WatchOptions {
-            document,
-            out,
-            format: to,
+            document: target.document,
+            out: target.out,
+            format: target.to,
             serve: serve.then_some(port),
             short_errors: short,
-            confine,
+            confine: target.confine,
         })
         .map(|()| ExitCode::SUCCESS),
         Command::New { folder } => new(&folder),

@@ -3,9 +3,9 @@
 //! text.
 
 use super::links::safe_url;
-use super::report::{ContentsEntry, MarkerAt, Report, block_marker as marker};
+use super::report::{ContentsEntry, MarkerAt, Report, block_marker as marker, marked_block};
 use super::templates::{environment, render};
-use super::writer::{Writer, Written};
+use super::writer::{About, Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::markdown::markdown_options;
 use pulldown_cmark::{CowStr, Event, LinkType, Parser, Tag, TagEnd};
@@ -14,20 +14,13 @@ use pulldown_cmark::{CowStr, Event, LinkType, Parser, Tag, TagEnd};
 pub struct Html;
 
 impl Writer for Html {
-    fn name(&self) -> &'static str {
-        "html"
-    }
-
-    fn extension(&self) -> &'static str {
-        "html"
-    }
-
-    fn help(&self) -> &'static str {
-        "One self-contained HTML file."
-    }
-
-    fn figures_inline(&self) -> bool {
-        true
+    fn about(&self) -> &'static About {
+        &About {
+            name: "html",
+            extension: "html",
+            help: "One self-contained HTML file.",
+            figures_inline: true,
+        }
     }
 
     fn write(&self, report: &Report) -> Result<Written, Diagnostic> {
@@ -65,11 +58,7 @@ pub(crate) fn prose_html(
     for (event, range) in Parser::new_ext(body, markdown_options()).into_offset_iter() {
         let event = match event {
             Event::Html(h) | Event::InlineHtml(h) => {
-                let block = markers
-                    .binary_search_by_key(&range.start, |(at, _)| *at)
-                    .ok()
-                    .map(|k| markers[k].1)
-                    .filter(|&i| h.trim() == marker(i));
+                let block = marked_block(markers, range.start, &h);
                 match block {
                     Some(i) => Event::Html(CowStr::from(format!("{}\n", fragments[i]))),
                     None => Event::Text(h),

@@ -4,7 +4,7 @@
 use super::links::safe_url;
 use super::report::Report;
 use super::templates::{environment, render};
-use super::writer::{Writer, Written};
+use super::writer::{About, Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::doc::markdown::markdown_options;
@@ -16,20 +16,13 @@ use pulldown_cmark::{Event, LinkType, Parser, Tag, TagEnd};
 pub struct Markdown;
 
 impl Writer for Markdown {
-    fn name(&self) -> &'static str {
-        "md"
-    }
-
-    fn extension(&self) -> &'static str {
-        "md"
-    }
-
-    fn help(&self) -> &'static str {
-        "Markdown, with figures as separate files."
-    }
-
-    fn figures_inline(&self) -> bool {
-        false
+    fn about(&self) -> &'static About {
+        &About {
+            name: "md",
+            extension: "md",
+            help: "Markdown, with figures as separate files.",
+            figures_inline: false,
+        }
     }
 
     fn figure_file(

@@ -86,6 +86,16 @@ pub(crate) fn block_marker(i: usize) -> String {
     format!("<!-- sheaf-block-{i} -->")
 }
 
+/// The block whose marker is the raw HTML `html` found at offset `start`
+/// of the prose, if sheaf put one there.
+pub(crate) fn marked_block(markers: &[MarkerAt], start: usize, html: &str) -> Option<usize> {
+    markers
+        .binary_search_by_key(&start, |(at, _)| *at)
+        .ok()
+        .map(|k| markers[k].1)
+        .filter(|&i| html.trim() == block_marker(i))
+}
+
 impl<'a> Report<'a> {
     /// The standing cautions, and the one on random terms where a block
     /// has them.
@@ -154,7 +164,7 @@ impl<'a> Report<'a> {
         results_name: &'a str,
         writer: &dyn Writer,
     ) -> Result<Report<'a>, Diagnostic> {
-        let figures_inline = writer.figures_inline();
+        let figures_inline = writer.about().figures_inline;
         let mut next_table = 1;
         let mut views = Vec::with_capacity(results.len());
         for (r, figs) in results.iter().zip(figures) {

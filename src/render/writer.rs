@@ -10,14 +10,8 @@ use crate::figure::Figure;
 
 /// An output format of the report.
 pub trait Writer: Sync {
-    /// The name `--to` takes and the results file records.
-    fn name(&self) -> &'static str;
-    /// The report file's extension.
-    fn extension(&self) -> &'static str;
-    /// One sentence for `--to`'s help.
-    fn help(&self) -> &'static str;
-    /// Whether the report holds its figures (else they are files beside it).
-    fn figures_inline(&self) -> bool;
+    /// The format's name, file extension, help line and figure placement.
+    fn about(&self) -> &'static About;
     /// A figure's file beside the report (name and bytes), or `None` where
     /// the report holds the figure itself (the default, for formats whose
     /// figures are inside the report).
@@ -42,6 +36,19 @@ pub trait Writer: Sync {
     fn parts(&self, report: &[u8]) -> Result<Vec<(String, Vec<u8>)>, String> {
         Ok(vec![(String::new(), report.to_vec())])
     }
+}
+
+/// What a format is called and how it holds its figures.
+#[derive(Debug)]
+pub struct About {
+    /// The name `--to` takes and the results file records.
+    pub name: &'static str,
+    /// The report file's extension.
+    pub extension: &'static str,
+    /// One sentence for `--to`'s help.
+    pub help: &'static str,
+    /// Whether the report holds its figures (else they are files beside it).
+    pub figures_inline: bool,
 }
 
 /// What a writer produces.
@@ -77,11 +84,11 @@ impl Format {
     }
 
     pub fn name(self) -> &'static str {
-        self.0.name()
+        self.0.about().name
     }
 
     pub fn extension(self) -> &'static str {
-        self.0.extension()
+        self.0.about().extension
     }
 
     pub fn writer(self) -> &'static dyn Writer {

@@ -22,7 +22,7 @@ mod table;
 mod xml;
 
 use super::report::{Report, block_marker};
-use super::writer::{Writer, Written};
+use super::writer::{About, Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::provenance::sha256_hex;
@@ -42,20 +42,13 @@ const DEFAULT_DPI: u32 = 150;
 const DOCUMENT_NAMESPACES: &str = r#"xmlns:w="http://schemas.openxmlformats.org/wordprocessingml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships" xmlns:wp="http://schemas.openxmlformats.org/drawingml/2006/wordprocessingDrawing""#;
 
 impl Writer for Docx {
-    fn name(&self) -> &'static str {
-        "docx"
-    }
-
-    fn extension(&self) -> &'static str {
-        "docx"
-    }
-
-    fn help(&self) -> &'static str {
-        "A word-processor document (Office Open XML) with editable tables and the figures inside."
-    }
-
-    fn figures_inline(&self) -> bool {
-        true
+    fn about(&self) -> &'static About {
+        &About {
+            name: "docx",
+            extension: "docx",
+            help: "A word-processor document (Office Open XML) with editable tables and the figures inside.",
+            figures_inline: true,
+        }
     }
 
     fn write(&self, report: &Report) -> Result<Written, Diagnostic> {

@@ -11,7 +11,7 @@ use super::table::{Cell, table};
 use super::xml::{Emphasis, Props, paragraph, plain, run};
 use crate::doc::markdown::markdown_options;
 use crate::render::links::safe_url;
-use crate::render::report::{MarkerAt, block_marker};
+use crate::render::report::{MarkerAt, marked_block};
 use pulldown_cmark::{Alignment, Event, HeadingLevel, LinkType, Parser, Tag, TagEnd};
 
 /// A paragraph being written: its properties and runs so far.
@@ -91,11 +91,7 @@ pub(super) fn prose_xml(
     for (event, range) in Parser::new_ext(body, markdown_options()).into_offset_iter() {
         match event {
             Event::Html(h) | Event::InlineHtml(h) => {
-                let block = markers
-                    .binary_search_by_key(&range.start, |(at, _)| *at)
-                    .ok()
-                    .map(|k| markers[k].1)
-                    .filter(|&i| h.trim() == block_marker(i));
+                let block = marked_block(markers, range.start, &h);
                 match block {
                     Some(i) => {
                         prose.close();

@@ -5,6 +5,7 @@
 use super::keys::Keys;
 use super::{
     caption, cell, col, effect_decimals, factors_text, join_words, measure, shown_term, text,
+    variance_columns,
 };
 use crate::format::{
     alpha_text, column_decimals, confidence_label, df_text, f_stat, fixed, p_value,
@@ -68,15 +69,7 @@ pub fn anova_table(o: &LinearOutcome, keys: &Keys, number: usize) -> TableView {
         number,
         id: format!("{}-anova", o.id),
         caption: anova_caption(o, number),
-        columns: vec![
-            col("Source", false),
-            col("df", true),
-            col("SS", true),
-            col("MS", true),
-            col("F", true),
-            col("p", true),
-            col("η²", true),
-        ],
+        columns: [variance_columns(), vec![col("η²", true)]].concat(),
         rows,
         footnotes: if o.mixed.is_some() {
             strata_footnotes(o)

@@ -60,6 +60,13 @@ fn col(label: impl Into<String>, numeric: bool) -> Column {
     }
 }
 
+/// The columns of an analysis-of-variance table: source, df, SS, MS, F, p.
+fn variance_columns() -> Vec<Column> {
+    std::iter::once(col("Source", false))
+        .chain(["df", "SS", "MS", "F", "p"].map(|c| col(c, true)))
+        .collect()
+}
+
 /// Numbers tables through the document.
 struct Numbering<'a>(&'a mut usize);
 

@@ -4,7 +4,7 @@
 //! curve.
 
 use super::keys::Keys;
-use super::{cell, col, text};
+use super::{cell, text, variance_columns};
 use crate::format::capitalised;
 use crate::format::{alpha_text, df_text, f_stat, p_value, significant};
 use crate::outcome::linear::LinearOutcome;
@@ -84,14 +84,7 @@ pub fn trend_table(o: &LinearOutcome, t: &TrendDetail, keys: &Keys, number: usiz
             super::measure(o)
         ),
         number,
-        columns: vec![
-            col("Source", false),
-            col("df", true),
-            col("SS", true),
-            col("MS", true),
-            col("F", true),
-            col("p", true),
-        ],
+        columns: variance_columns(),
         rows,
         footnotes,
     }

@@ -8,7 +8,7 @@ mod block;
 mod prose;
 
 use super::report::{Report, block_marker};
-use super::writer::{Writer, Written};
+use super::writer::{About, Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::escape::{latex_code, latex_escape, latex_label};
@@ -37,20 +37,13 @@ const FRAGMENT_PACKAGES: [&str; 5] = [
 ];
 
 impl Writer for Tex {
-    fn name(&self) -> &'static str {
-        "tex"
-    }
-
-    fn extension(&self) -> &'static str {
-        "tex"
-    }
-
-    fn help(&self) -> &'static str {
-        "LaTeX for pdflatex, with figures as PNG files (`tex: body` in the front matter writes a fragment for \\input)."
-    }
-
-    fn figures_inline(&self) -> bool {
-        false
+    fn about(&self) -> &'static About {
+        &About {
+            name: "tex",
+            extension: "tex",
+            help: "LaTeX for pdflatex, with figures as PNG files (`tex: body` in the front matter writes a fragment for \\input).",
+            figures_inline: false,
+        }
     }
 
     fn figure_file(

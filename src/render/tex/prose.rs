@@ -7,7 +7,7 @@ use super::{REF_CLOSE, REF_OPEN, fit_to_width};
 use crate::doc::markdown::markdown_options;
 use crate::escape::{latex_code, latex_escape, latex_url};
 use crate::render::links::safe_url;
-use crate::render::report::{MarkerAt, block_marker};
+use crate::render::report::{MarkerAt, marked_block};
 use pulldown_cmark::{Alignment, Event, HeadingLevel, LinkType, Parser, Tag, TagEnd};
 
 /// LaTeX allows lists nested four deep; deeper items are set as paragraphs.
@@ -40,11 +40,7 @@ pub(super) fn prose_latex(body: &str, fragments: &[String], markers: &[MarkerAt]
         }
         match event {
             Event::Html(h) | Event::InlineHtml(h) => {
-                let block = markers
-                    .binary_search_by_key(&range.start, |(at, _)| *at)
-                    .ok()
-                    .map(|k| markers[k].1)
-                    .filter(|&i| h.trim() == block_marker(i));
+                let block = marked_block(markers, range.start, &h);
                 match block {
                     Some(i) => {
                         prose.out.push_str(&fragments[i]);
