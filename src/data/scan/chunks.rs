@@ -163,7 +163,7 @@ pub(super) fn parallel<'a>(
     jobs: impl Iterator<Item = std::io::Result<Job<'a>>> + Send,
     plan: &RowPlan,
     threads: usize,
-    merged: &mut Merged,
+    merged: &mut Merged<'_>,
 ) -> Result<(), DataError> {
     type Outcome = (Result<ChunkResult, DataError>, bool);
     let stop = AtomicBool::new(false);
