@@ -2,7 +2,7 @@
 //! stream), reading them with the document's row rules, the design order and
 //! display labels of levels, and data-file errors that point into the file.
 
-use crate::data::scan::{CHUNK_BYTES, ScanSpec, Scanned, Source, scan_file};
+use crate::data::scan::{CHUNK_BYTES, ScanSpec, Scanned, Source, Visit, rescan, scan_file};
 use crate::data::{DataError, Exclusion, Table, prepare};
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
@@ -13,11 +13,84 @@ use crate::provenance::Input;
 pub enum Data<'a> {
     /// In memory, shared by the blocks that read the file.
     Loaded(&'a Input),
-    /// A large CSV file, read once in chunks while it is hashed.
+    /// A large CSV file, read in chunks while it is hashed; `reopen` opens
+    /// it again for checks that need more than one pass.
     Stream {
         path: &'a str,
         reader: Box<dyn std::io::Read + Send + 'a>,
+        reopen: Reopen<'a>,
     },
+}
+
+/// Opens a streamed file again, from its start.
+pub type Reopen<'a> = &'a dyn Fn() -> std::io::Result<Box<dyn std::io::Read + Send>>;
+
+/// Where a later pass finds the bytes a block's first pass read.
+#[derive(Clone, Copy)]
+pub(crate) enum Again<'a> {
+    Memory(&'a [u8]),
+    Reopen(Reopen<'a>),
+}
+
+impl<'a> Data<'a> {
+    pub(crate) fn again(&self) -> Again<'a> {
+        match self {
+            Data::Loaded(input) => Again::Memory(input.bytes.as_deref().unwrap_or_default()),
+            Data::Stream { reopen, .. } => Again::Reopen(*reopen),
+        }
+    }
+}
+
+/// What a first pass saw, for later passes to compare with: the levels in
+/// the order found, their counts, the bytes and their hash.
+pub(crate) struct FirstPass {
+    pub names: Vec<String>,
+    pub counts: Vec<usize>,
+    pub bytes: u64,
+    pub sha256: Option<String>,
+}
+
+impl FirstPass {
+    pub(crate) fn of(scanned: &Scanned) -> FirstPass {
+        FirstPass {
+            names: scanned.levels.iter().map(|l| l.name.clone()).collect(),
+            counts: scanned.levels.iter().map(|l| l.summary.n).collect(),
+            bytes: scanned.bytes,
+            sha256: scanned.sha256.clone(),
+        }
+    }
+}
+
+/// A later pass over a block's CSV data (see `data::scan::rescan`). The
+/// bytes must be the ones the first pass read: the same size and levels
+/// with the same counts on every pass, and on the `last` pass, when the
+/// first one hashed them, the same SHA-256; else a clear error.
+pub(crate) fn rescan_csv(
+    again: Again<'_>,
+    spec: &ScanSpec<'_>,
+    first: &FirstPass,
+    last: bool,
+    visit: Visit<'_>,
+) -> Result<(), DataError> {
+    let source = match again {
+        Again::Memory(bytes) => Source::Memory(bytes),
+        Again::Reopen(open) => Source::Stream(open().map_err(|e| DataError {
+            line: None,
+            column: None,
+            message: format!("opening the file again for a later pass failed: {e}"),
+            hint: None,
+        })?),
+    };
+    let hash = last && first.sha256.is_some();
+    let seen = rescan(source, spec, &first.names, hash, reader_threads(), visit)?;
+    let counts = seen.levels.iter().map(|l| l.summary.n);
+    if seen.bytes != first.bytes
+        || !counts.eq(first.counts.iter().copied())
+        || (hash && seen.sha256 != first.sha256)
+    {
+        return Err(crate::data::scan::changed_error());
+    }
+    Ok(())
 }
 
 /// Whether a block reads raw observations from a CSV file in long layout,
@@ -46,7 +119,7 @@ pub(crate) fn scan_csv(
             Source::Memory(input.bytes.as_deref().unwrap_or_default()),
             None,
         ),
-        Data::Stream { path, reader } => (Source::Stream(reader), Some(path)),
+        Data::Stream { path, reader, .. } => (Source::Stream(reader), Some(path)),
     };
     let scanned = scan_file(source, spec, CHUNK_BYTES, reader_threads())?;
     let input = path.map(|path| Input {

@@ -6,6 +6,7 @@ mod checks;
 mod comparisons;
 mod levels;
 mod notes;
+mod observations;
 mod outcome;
 mod sample;
 
@@ -82,7 +83,7 @@ impl Engine<'_> {
         let (spec, alpha) = (self.spec, self.alpha);
         let table = self.table(&sample)?;
         let mut notes = notes::sample_notes(&sample, &table, &factor, spec);
-        let mut checks = checks::checks(spec, &sample, &table);
+        let mut checks = checks::checks(spec, &sample);
         transformation::outliers_as_written(&mut checks, spec);
         notes.extend(advice(
             &checks,
@@ -306,10 +307,13 @@ impl Engine<'_> {
     /// The ANOVA table, with the total sum of squares from the raw values as
     /// a self-check where there are any.
     fn table(&self, sample: &Sample) -> Result<OneWay, Diagnostic> {
-        let total_ss = sample
-            .raw
-            .as_ref()
-            .map(|(offsets, _)| total_sum_of_squares(offsets.iter().map(Vec::as_slice)));
+        let total_ss = match (&sample.observed, &sample.raw) {
+            (Some(observed), _) => Some(observed.total_ss),
+            (None, Some((offsets, _))) => {
+                Some(total_sum_of_squares(offsets.iter().map(Vec::as_slice)))
+            }
+            (None, None) => None,
+        };
         // Two or more levels were checked when loading, so `one_way` cannot refuse.
         one_way(&sample.summaries, self.alpha, total_ss).map_err(|OneWayError::TooFewLevels(k)| {
             self.doc.error_at(

@@ -168,7 +168,13 @@ impl Computation {
             block.id,
             block.line
         ));
-        let data = Data::Stream { path, reader };
+        // Checks that need more than one pass open the file again.
+        let reopen = || world.open(path).map(|(reader, _)| reader);
+        let data = Data::Stream {
+            path,
+            reader,
+            reopen: &reopen,
+        };
         let (result, input) = run_engine(doc, block, spec, data, &world.display(path))?;
         if let Some(input) = input
             && !self.inputs.iter().any(|i| i.path == input.path)

@@ -22,6 +22,7 @@ fn outcome() -> LinearOutcome {
         data: crate::analysis::Data::Stream {
             path: "d.csv",
             reader: Box::new(CSV.as_bytes()),
+            reopen: &|| Ok(Box::new(CSV.as_bytes())),
         },
         display_path: "d.csv",
     };

@@ -270,18 +270,38 @@ pub fn skewness_kurtosis(values: &[f64]) -> (f64, f64) {
     let m2 = neumaier(values.iter().map(|v| (v - mean).powi(2))) / n;
     let m3 = neumaier(values.iter().map(|v| (v - mean).powi(3))) / n;
     let m4 = neumaier(values.iter().map(|v| (v - mean).powi(4))) / n;
-    if !crate::stats::is_positive(m2) {
+    shape_of_moments(values.len(), m2, m3, m4)
+}
+
+/// G₁ and G₂ (as [`skewness_kurtosis`]) from n and the central moments
+/// m₂, m₃, m₄ (divisor n).
+pub fn shape_of_moments(count: usize, m2: f64, m3: f64, m4: f64) -> (f64, f64) {
+    let n = count as f64;
+    if count < 3 || !crate::stats::is_positive(m2) {
         return (f64::NAN, f64::NAN);
     }
     let g1 = m3 / m2.powf(1.5);
     let skew = g1 * (n * (n - 1.0)).sqrt() / (n - 2.0);
-    let kurt = if values.len() < 4 {
+    let kurt = if count < 4 {
         f64::NAN
     } else {
         let g2 = m4 / (m2 * m2) - 3.0;
         ((n + 1.0) * g2 + 6.0) * (n - 1.0) / ((n - 2.0) * (n - 3.0))
     };
     (skew, kurt)
+}
+
+/// The central moments m₂, m₃, m₄ (divisor n) from the power sums Σr,
+/// Σr², Σr³, Σr⁴ of n values r whose mean is near zero (residuals), so that
+/// expanding the powers loses nothing that matters.
+pub fn central_moments(count: usize, sums: [f64; 4]) -> (f64, f64, f64) {
+    let n = count as f64;
+    let [s1, s2, s3, s4] = sums.map(|s| s / n);
+    let m = s1;
+    let m2 = s2 - m * m;
+    let m3 = s3 - 3.0 * m * s2 + 2.0 * m * m * m;
+    let m4 = s4 - 4.0 * m * s3 + 6.0 * m * m * s2 - 3.0 * m * m * m * m;
+    (m2, m3, m4)
 }
 
 /// An observation whose externally studentized residual is beyond the threshold.
@@ -349,6 +369,17 @@ pub fn outliers(groups: &[&[f64]], means: &[f64], mse: f64, df: usize) -> Flagge
         total: kept.total(),
         most_extreme: kept.into_most_extreme_first(),
     }
+}
+
+/// |Residual| at or below which the externally studentized residual is
+/// certainly within ±[`OUTLIER_THRESHOLD`] (|t| grows with |e|), a little
+/// below the exact bound so that rounding never hides a flagged value: only
+/// residuals beyond it need their t computed.
+pub fn outlier_screen(mse: f64, h: f64, nu: f64) -> f64 {
+    let c = OUTLIER_THRESHOLD;
+    // t² > c² ⟺ r² > c²ν/(ν − 1 + c²), with r = e/√(MSE(1 − h)).
+    let r = (c * c * nu / (nu - 1.0 + c * c)).sqrt();
+    r * (mse * (1.0 - h)).sqrt() * (1.0 - 1e-9)
 }
 
 /// The externally studentized residual of a residual `e` with leverage `h`,

@@ -56,9 +56,16 @@ impl<T> Extremes<T> {
 
     /// Offers one item with its extremity (larger is more extreme).
     pub fn offer(&mut self, extremity: f64, item: T) {
+        self.offer_at(extremity, self.offered, item);
+    }
+
+    /// Offers one item with its own place in the tie order (e.g. its data
+    /// line): with distinct places the kept items do not depend on the
+    /// order of offering, so runs of a file may be offered in any order.
+    pub fn offer_at(&mut self, extremity: f64, order: usize, item: T) {
         let kept = Kept {
             extremity,
-            order: self.offered,
+            order,
             item,
         };
         self.offered += 1;
@@ -76,7 +83,8 @@ impl<T> Extremes<T> {
         self.offered
     }
 
-    /// The kept items, most extreme first (ties in the order offered).
+    /// The kept items, most extreme first (ties in the order offered, or
+    /// by their places).
     pub fn into_most_extreme_first(self) -> Vec<T> {
         self.heap
             .into_sorted_vec()

@@ -22,6 +22,7 @@ pub mod range_tail;
 pub mod ranks;
 pub mod repeated;
 pub mod roots;
+pub mod selection;
 pub mod spacings;
 pub mod special;
 pub mod steel;

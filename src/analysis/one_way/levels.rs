@@ -37,12 +37,11 @@ pub(super) fn level_rows(
                 };
                 ((s.variance() / s.n as f64).sqrt(), t)
             };
-            let (q1, median, q3) = sample
-                .raw
-                .as_ref()
-                .map_or((f64::NAN, f64::NAN, f64::NAN), |(offsets, _)| {
-                    quartiles(&offsets[i])
-                });
+            let (q1, median, q3) = match (&sample.observed, &sample.raw) {
+                (Some(observed), _) => observed.quartiles[i],
+                (None, Some((offsets, _))) => quartiles(&offsets[i]),
+                (None, None) => (f64::NAN, f64::NAN, f64::NAN),
+            };
             LevelSummary {
                 name: name.clone(),
                 n: s.n,

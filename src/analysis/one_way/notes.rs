@@ -51,12 +51,13 @@ pub(super) fn sample_notes(
 /// Level spellings that differ only in case or spacing, and numeric
 /// factors with many levels for the rows.
 fn spelling_notes(sample: &Sample, factor: &str) -> Vec<Note> {
-    let first_lines: Vec<usize> = match &sample.raw {
-        Some((_, lines)) => lines
+    let first_lines: Vec<usize> = match (&sample.observed, &sample.raw) {
+        (Some(observed), _) => observed.first_lines.clone(),
+        (None, Some((_, lines))) => lines
             .iter()
             .map(|l| l.first().copied().unwrap_or(0))
             .collect(),
-        None => vec![0; sample.names.len()],
+        (None, None) => vec![0; sample.names.len()],
     };
     let named: Vec<(&str, usize)> = sample
         .names

@@ -2,8 +2,11 @@
 //! scanned CSV file or a table) or from published summaries, in design
 //! order.
 
+use super::observations::{Kept, Observed, Reread, observe};
 use crate::analysis::binding::formula_text;
-use crate::analysis::binding::{Data, data_error, design_order, read_rows, scan_csv, streams};
+use crate::analysis::binding::{
+    Data, FirstPass, data_error, design_order, read_rows, scan_csv, streams,
+};
 use crate::data::decimal::Number;
 use crate::data::scan::{ScanSpec, Scanned, ScannedLevel, scan_table};
 use crate::data::transform::transform_scanned;
@@ -19,8 +22,11 @@ use crate::stats::oneway::{GroupSummary, one_way};
 pub(super) struct Sample {
     pub(super) names: Vec<String>,
     pub(super) summaries: Vec<GroupSummary>,
-    /// Offsets and data lines per level; `None` for summary input.
+    /// Offsets and data lines per level, when something needs them all;
+    /// `None` for summary input and for checks made by reading again.
     pub(super) raw: Option<RawLevels>,
+    /// The checks on the observations (unless `checks: summary`).
+    pub(super) observed: Option<Observed>,
     /// Every mean and offset is relative to this value (see `data::decimal`).
     pub(super) origin: f64,
     /// Most decimals written in the response (or means) column.
@@ -57,14 +63,25 @@ pub(super) struct Reading<'a> {
     pub display_path: &'a str,
 }
 
-/// Whether a one-factor block needs every value (checks on residuals,
-/// ranks, figures), or only per-level summaries.
-fn keeps_values(spec: &AnovaSpec) -> bool {
-    spec.checks != CheckSet::Summary
-        || spec.method == Omnibus::Ranks
+/// Whether a one-factor block needs every value at once (ranks, figures,
+/// transformations, dose tests on observations).
+fn needs_values(spec: &AnovaSpec) -> bool {
+    spec.method == Omnibus::Ranks
         || spec.transform.is_some()
         || spec.box_cox
         || !spec.plots.kinds.is_empty()
+        || (spec.dose.is_some() && spec.checks != CheckSet::Summary)
+}
+
+/// Whether the checks on the observations are made by reading the CSV
+/// data again (memory bounded whatever the rows) rather than on kept values.
+fn rereads(spec: &AnovaSpec) -> bool {
+    spec.checks != CheckSet::Summary && !needs_values(spec) && streams(spec)
+}
+
+/// Whether a one-factor block keeps every value and its line.
+fn keeps_values(spec: &AnovaSpec) -> bool {
+    needs_values(spec) || (spec.checks != CheckSet::Summary && !rereads(spec))
 }
 
 impl Reading<'_> {
@@ -115,6 +132,7 @@ impl Reading<'_> {
             exclude: &spec.rows.exclude,
             keep_values: keeps_values(spec),
         };
+        let again = data.again();
         let (mut scanned, ruled_out, streamed) = match data {
             data if streams(spec) => {
                 let (scanned, input) = scan_csv(data, &scan_spec).map_err(|e| self.fail(e))?;
@@ -143,8 +161,29 @@ impl Reading<'_> {
             }
             None => Vec::new(),
         };
+        let first = FirstPass::of(&scanned);
         let mut sample = self.levels_of_scan(scanned, path)?;
         sample.excluded.extend(ruled_out);
+        sample.observed = match &sample.raw {
+            _ if spec.checks == CheckSet::Summary => None,
+            Some((offsets, lines)) => {
+                Some(observe(&mut Kept { offsets, lines }, &sample.summaries))
+            }
+            None => {
+                let design = (first.names.iter())
+                    .map(|n| sample.names.iter().position(|d| d == n))
+                    .collect();
+                let mut passes = Reread {
+                    again,
+                    spec: scan_spec.clone(),
+                    first,
+                    design,
+                };
+                Some(observe(&mut passes, &sample.summaries))
+            }
+        }
+        .transpose()
+        .map_err(|e| self.fail(e))?;
         // Levels in design order, each with its own arithmetic mean.
         sample.arithmetic = (sample.names.iter())
             .filter_map(|n| arithmetic.iter().find(|(a, _)| a == n).map(|a| a.1))
@@ -189,6 +228,7 @@ impl Reading<'_> {
             summaries: used.iter().map(|l| l.summary).collect(),
             raw: keeps_values(self.spec)
                 .then(|| used.into_iter().map(|l| (l.offsets, l.lines)).unzip()),
+            observed: None,
             names,
             origin: scanned.origin,
             decimals: scanned.decimals,
@@ -259,6 +299,7 @@ impl Reading<'_> {
             arithmetic: Vec::new(),
             summaries,
             raw: None,
+            observed: None,
             origin: published.origin,
             decimals: decimals.saturating_sub(1),
             excluded: Vec::new(),

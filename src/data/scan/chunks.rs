@@ -163,13 +163,15 @@ pub(super) fn parallel<'a>(
     jobs: impl Iterator<Item = std::io::Result<Job<'a>>> + Send,
     plan: &RowPlan,
     threads: usize,
-    merged: &mut Merged,
+    merged: &mut Merged<'_>,
 ) -> Result<(), DataError> {
     type Outcome = (Result<ChunkResult, DataError>, bool);
     let stop = AtomicBool::new(false);
     // A short queue bounds the bytes in flight: queued + one per worker.
     let (job_tx, job_rx) = mpsc::sync_channel::<(usize, std::io::Result<Job<'a>>)>(2);
-    let (out_tx, out_rx) = mpsc::channel::<(usize, Outcome)>();
+    // Bounded too: when merging is slower than parsing (a later pass that
+    // does more per value), the workers wait instead of piling up results.
+    let (out_tx, out_rx) = mpsc::sync_channel::<(usize, Outcome)>(threads);
     let job_rx = Mutex::new(job_rx);
     std::thread::scope(|scope| {
         let stop = &stop;

@@ -2,9 +2,16 @@
 
 use super::*;
 
+/// Where a later pass hands each chunk's values: the level (in the first
+/// pass's order), a run of its offsets in file order, and their lines.
+pub type Visit<'v> = &'v mut dyn FnMut(usize, &[f64], &[usize]);
+
 /// The chunks merged so far, in file order.
-pub(super) struct Merged {
+pub(super) struct Merged<'v> {
     pub(super) keep_values: bool,
+    /// A later pass: values are handed on, not kept, and every level must
+    /// be one the first pass found.
+    pub(super) visit: Option<Visit<'v>>,
     pub(super) index: LevelMap,
     pub(super) levels: Vec<ScannedLevel>,
     pub(super) origin: Option<(Number, f64)>,
@@ -16,10 +23,11 @@ pub(super) struct Merged {
     pub(super) next_line: usize,
 }
 
-impl Merged {
+impl<'v> Merged<'v> {
     pub(super) fn new(keep_values: bool) -> Self {
         Merged {
             keep_values,
+            visit: None,
             index: LevelMap::default(),
             levels: Vec::new(),
             origin: None,
@@ -29,6 +37,28 @@ impl Merged {
             last_line: 0,
             next_line: 1,
         }
+    }
+
+    /// A later pass over the levels `known` (the first pass's, in its order).
+    pub(super) fn again(known: &[String], visit: Visit<'v>) -> Self {
+        let mut merged = Merged::new(false);
+        merged.visit = Some(visit);
+        for name in known {
+            merged
+                .index
+                .insert(name.as_str().into(), merged.levels.len());
+            merged.levels.push(ScannedLevel {
+                name: name.clone(),
+                summary: GroupSummary {
+                    n: 0,
+                    mean: f64::NAN,
+                    ss: f64::NAN,
+                },
+                offsets: Vec::new(),
+                lines: Vec::new(),
+            });
+        }
+        merged
     }
 
     /// Adds the next chunk's outcome. A chunk with `relative` lines gets
@@ -67,6 +97,7 @@ impl Merged {
         for (local, name) in chunk.names.into_iter().enumerate() {
             let g = match self.index.get(name.as_str()) {
                 Some(&g) => g,
+                None if self.visit.is_some() => return Err(changed_error()),
                 None => {
                     self.index.insert(name.as_str().into(), self.levels.len());
                     self.levels.push(ScannedLevel {
@@ -84,7 +115,9 @@ impl Merged {
             };
             let level = &mut self.levels[g];
             level.summary = level.summary.merge(&chunk.summaries[local]);
-            if self.keep_values {
+            if let Some(visit) = &mut self.visit {
+                visit(g, &chunk.offsets[local], &chunk.lines[local]);
+            } else if self.keep_values {
                 level.offsets.extend_from_slice(&chunk.offsets[local]);
                 level.lines.extend_from_slice(&chunk.lines[local]);
             }
@@ -120,5 +153,15 @@ impl Merged {
             sha256,
             bytes,
         })
+    }
+}
+
+/// A later pass found what the first did not: the bytes changed between.
+pub fn changed_error() -> DataError {
+    DataError {
+        line: None,
+        column: None,
+        message: "the file changed while it was being read (a later pass over it found other data than the first)".into(),
+        hint: Some("build again once nothing writes to the file; copy a file that is still being written and read the copy".into()),
     }
 }

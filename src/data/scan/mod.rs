@@ -86,6 +86,7 @@ pub struct Scanned {
     pub bytes: u64,
 }
 
+pub use merge::{Visit, changed_error};
 pub use rows::{cell_key, cell_levels};
 
 /// Reads a response split by one factor (or by the cells of several) from
@@ -97,7 +98,58 @@ pub fn scan_file(
     chunk_bytes: usize,
     threads: usize,
 ) -> Result<Scanned, DataError> {
+    scan_pass(
+        source,
+        spec,
+        chunk_bytes,
+        threads,
+        Merged::new(spec.keep_values),
+        true,
+    )
+}
+
+/// Reads the same bytes again for a later pass: each value with its line
+/// goes to `visit` (the level in the order of `levels`, the first pass's;
+/// a run of that level's offsets in file order; their lines) instead of
+/// being kept, so memory does not grow with the rows. A level the first
+/// pass did not find is an error: the bytes changed. A stream is hashed
+/// only when `hash` is set (to compare with the first pass's hash); the
+/// result's summaries and byte count let the caller compare the rest.
+pub fn rescan(
+    source: Source<'_>,
+    spec: &ScanSpec<'_>,
+    levels: &[String],
+    hash: bool,
+    threads: usize,
+    visit: Visit<'_>,
+) -> Result<Scanned, DataError> {
+    let spec = ScanSpec {
+        keep_values: true,
+        ..spec.clone()
+    };
+    scan_pass(
+        source,
+        &spec,
+        CHUNK_BYTES,
+        threads,
+        Merged::again(levels, visit),
+        hash,
+    )
+}
+
+/// One pass: the header, then every chunk merged in file order.
+fn scan_pass(
+    source: Source<'_>,
+    spec: &ScanSpec<'_>,
+    chunk_bytes: usize,
+    threads: usize,
+    mut merged: Merged<'_>,
+    hash: bool,
+) -> Result<Scanned, DataError> {
     let mut chunks = Chunker::new(source, chunk_bytes.max(1));
+    if !hash {
+        chunks.hasher = None;
+    }
     // The header: the first record, after any blank lines (which may fill
     // whole chunks when chunks are small).
     let mut line = 1;
@@ -127,7 +179,6 @@ pub fn scan_file(
             }
         }
     };
-    let mut merged = Merged::new(spec.keep_values);
     let mut plan = plan;
     let absolute = !plan.exclude.is_empty();
     let first_end = if absolute {

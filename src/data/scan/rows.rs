@@ -213,6 +213,8 @@ pub(super) struct RowAccumulator<'p> {
     pub(super) sums: Vec<ExactSums>,
     /// Per level: values that could not enter the exact sums.
     pub(super) inexact: Vec<usize>,
+    /// Per level: those values themselves, kept or not.
+    pub(super) loose: Vec<Vec<f64>>,
     pub(super) origin: Option<(Number, f64)>,
     /// The origin's digits and scale when they fit in 64 bits.
     pub(super) plain_origin: Option<(i64, u32)>,
@@ -240,6 +242,7 @@ impl<'p> RowAccumulator<'p> {
             lines: Vec::new(),
             sums: Vec::new(),
             inexact: Vec::new(),
+            loose: Vec::new(),
             origin: plan.origin,
             plain_origin: plan.origin.and_then(|o| plain_of(o.0)),
             decimals: 0,
@@ -285,6 +288,7 @@ impl<'p> RowAccumulator<'p> {
         self.lines.push(Vec::new());
         self.sums.push(ExactSums::default());
         self.inexact.push(0);
+        self.loose.push(Vec::new());
         i
     }
 
@@ -413,8 +417,9 @@ impl<'p> RowAccumulator<'p> {
             }
         };
         self.inexact[level] += 1;
-        self.offsets[level].push(offset);
+        self.loose[level].push(offset);
         if plan.keep_values {
+            self.offsets[level].push(offset);
             self.lines[level].push(line);
         }
         Ok(())
@@ -434,14 +439,14 @@ impl<'p> RowAccumulator<'p> {
 
     pub(super) fn finish(self) -> ChunkResult {
         let keep = self.plan.keep_values;
+        // The same summary whether values are kept or not, so that a block
+        // that keeps them and one that reads the file again agree exactly.
         let summaries = (0..self.names.len())
             .map(|l| {
                 let exact = self.sums[l].summary();
-                match (self.inexact[l], keep) {
-                    (0, _) => exact,
-                    // Every value is at hand: summarise them together.
-                    (_, true) => GroupSummary::from_values(&self.offsets[l]),
-                    (_, false) => exact.merge(&GroupSummary::from_values(&self.offsets[l])),
+                match self.inexact[l] {
+                    0 => exact,
+                    _ => exact.merge(&GroupSummary::from_values(&self.loose[l])),
                 }
             })
             .collect();

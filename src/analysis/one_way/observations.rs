@@ -1,0 +1,402 @@
+//! Every check a one-factor block makes on its observations, computed in
+//! passes over them: from values kept in memory, or by reading the file
+//! again in memory that does not grow with the rows. Both run this same
+//! code with the same accumulators in the same order, so they give the same
+//! bits.
+//!
+//! The passes (README "Large files"): the level sums come first (the
+//! reader's own pass). Pass A: Levene's absolute deviations from the level
+//! means, the residuals' power sums, the outliers, the total sum of squares
+//! and the first counts of the median and quartile selection. Then as many
+//! selection passes as the values need (none for data on a decimal grid
+//! of a few thousand steps per level). Last: Brown-Forsythe's deviations
+//! from the exact medians.
+//!
+//! Sums are per level, Neumaier-compensated, fed each level's values in
+//! file order and combined in level order; outliers are ranked with ties
+//! in line order. So how a pass interleaves the levels changes nothing.
+
+use crate::analysis::binding::{Again, FirstPass, rescan_csv};
+use crate::data::DataError;
+use crate::data::scan::ScanSpec;
+use crate::stats::assumptions::{
+    FTest, OUTLIER_THRESHOLD, OUTLIERS_KEPT, ShapiroWilk, ShapiroWilkSkip, central_moments,
+    externally_studentized, outlier_screen, shape_of_moments, shapiro_wilk,
+};
+use crate::stats::extremes::Extremes;
+use crate::stats::oneway::{GroupSummary, one_way};
+use crate::stats::selection::Selection;
+use crate::stats::sum::NeumaierSum;
+
+/// Shapiro-Wilk is computed up to this many residuals (Royston's range),
+/// which are then kept for it.
+const SHAPIRO_WILK_MAX: usize = 5000;
+
+/// A source of passes over the observations.
+pub(super) trait Passes {
+    /// Hands every observation to `visit(level, offsets, lines)`, in runs
+    /// of one level, each level's values in file order. `last` marks the
+    /// final pass.
+    fn pass(&mut self, last: bool, visit: Visit<'_>) -> Result<(), DataError>;
+}
+
+type Visit<'v> = &'v mut dyn FnMut(usize, &[f64], &[usize]);
+
+/// Observations kept in memory, per level in design order.
+pub(super) struct Kept<'a> {
+    pub offsets: &'a [Vec<f64>],
+    pub lines: &'a [Vec<usize>],
+}
+
+impl Passes for Kept<'_> {
+    fn pass(&mut self, _last: bool, visit: Visit<'_>) -> Result<(), DataError> {
+        for (level, (offsets, lines)) in self.offsets.iter().zip(self.lines).enumerate() {
+            visit(level, offsets, lines);
+        }
+        Ok(())
+    }
+}
+
+/// A CSV file read again for each pass.
+pub(super) struct Reread<'a> {
+    pub again: Again<'a>,
+    pub spec: ScanSpec<'a>,
+    pub first: FirstPass,
+    /// Each level of the first pass's order: its place in design order
+    /// (`None` for levels without observations).
+    pub design: Vec<Option<usize>>,
+}
+
+impl Passes for Reread<'_> {
+    fn pass(&mut self, last: bool, visit: Visit<'_>) -> Result<(), DataError> {
+        let design = &self.design;
+        let mut to_design = |level: usize, offsets: &[f64], lines: &[usize]| {
+            if let Some(Some(d)) = design.get(level) {
+                visit(*d, offsets, lines);
+            }
+        };
+        rescan_csv(self.again, &self.spec, &self.first, last, &mut to_design)
+    }
+}
+
+/// An observation flagged as an outlier: its level, line and offset.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) struct Flag {
+    pub level: usize,
+    pub line: usize,
+    pub offset: f64,
+    pub studentized: f64,
+}
+
+/// What the observations tell.
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct Observed {
+    pub brown_forsythe: Option<FTest>,
+    pub levene: Option<FTest>,
+    pub shapiro_wilk: Result<ShapiroWilk, ShapiroWilkSkip>,
+    pub skewness: f64,
+    pub excess_kurtosis: f64,
+    pub outlier_count: usize,
+    /// The most extreme flagged observations (at most `OUTLIERS_KEPT`), in
+    /// line order.
+    pub outliers: Vec<Flag>,
+    /// Per level: first quartile, median, third quartile (type 7), offsets.
+    pub quartiles: Vec<(f64, f64, f64)>,
+    /// Σ(y − ȳ)² over every observation, for the ANOVA's self-check.
+    pub total_ss: f64,
+    /// Per level, the line of its first observation.
+    pub first_lines: Vec<usize>,
+    /// Passes made here (after the level sums).
+    pub passes: usize,
+    /// Per level, the mean of Levene's deviations (Brown-Forsythe's shift).
+    levene_means: Vec<f64>,
+}
+
+/// The ranks type-7 quartiles interpolate between: (low, high, fraction)
+/// for the first quartile, the median and the third quartile.
+fn quartile_places(n: usize) -> [(usize, usize, f64); 3] {
+    let last = n.saturating_sub(1);
+    [0.25, 0.5, 0.75].map(|q| {
+        let h = last as f64 * q;
+        let lo = h.floor() as usize;
+        (lo, (lo + 1).min(last), h - lo as f64)
+    })
+}
+
+/// The ranks the median averages (one for odd n, two for even n).
+fn median_ranks(n: usize) -> Vec<usize> {
+    let m = n / 2;
+    if n % 2 == 1 {
+        vec![m]
+    } else {
+        vec![m.saturating_sub(1), m]
+    }
+}
+
+/// A summary of values z from their shifted sums Σ(z − s) and Σ(z − s)²
+/// (the shifted-data formula; exact in the mean when s is near it).
+fn shifted_summary(n: usize, shift: f64, sums: &[NeumaierSum; 2]) -> GroupSummary {
+    let nf = n as f64;
+    let (s1, s2) = (sums[0].value(), sums[1].value());
+    GroupSummary {
+        n,
+        mean: shift + s1 / nf,
+        ss: (s2 - s1 * s1 / nf).max(0.0),
+    }
+}
+
+/// Adds z − s and (z − s)².
+fn add_shifted(sums: &mut [NeumaierSum; 2], d: f64) {
+    sums[0].add(d);
+    sums[1].add(d * d);
+}
+
+/// The F test on absolute deviations (Levene, Brown-Forsythe), where defined.
+fn spread_test(deviations: &[GroupSummary]) -> Option<FTest> {
+    let t = one_way(deviations, 0.05, None).ok()?;
+    (t.f.is_finite() && t.df_within > 0).then_some(FTest {
+        statistic: t.f,
+        df1: t.df_between as f64,
+        df2: t.df_within as f64,
+        p: t.p,
+    })
+}
+
+/// Per-level sums combined in level order.
+fn combined<'a>(sums: impl Iterator<Item = &'a NeumaierSum>) -> f64 {
+    let mut total = NeumaierSum::default();
+    for s in sums {
+        total.add(s.value());
+    }
+    total.value()
+}
+
+/// What pass A gathers, per level unless said.
+struct PassA<'s> {
+    summaries: &'s [GroupSummary],
+    /// Where Levene's deviations are shifted to (see `shifted_summary`).
+    levene_shift: Vec<f64>,
+    /// |Residual| beyond which t is computed (see `outlier_screen`).
+    screens: Vec<f64>,
+    mse: f64,
+    df: usize,
+    grand: f64,
+    first_lines: Vec<Option<usize>>,
+    levene: Vec<[NeumaierSum; 2]>,
+    powers: Vec<[NeumaierSum; 4]>,
+    total: Vec<[NeumaierSum; 2]>,
+    flagged: Extremes<Flag>,
+    /// Every residual, when there are few enough for Shapiro-Wilk.
+    residuals: Option<Vec<Vec<f64>>>,
+}
+
+impl<'s> PassA<'s> {
+    fn new(summaries: &'s [GroupSummary]) -> Self {
+        let k = summaries.len();
+        let n_total: usize = summaries.iter().map(|s| s.n).sum();
+        let table = one_way(summaries, 0.05, None).ok();
+        let (mse, df, grand) = table.as_ref().map_or((f64::NAN, 0, f64::NAN), |t| {
+            (t.ms_within, t.df_within, t.grand_mean)
+        });
+        // Absolute deviations average σ√(2/π) under normality: near their
+        // mean, as the shifted formula wants.
+        let root_two_over_pi = std::f64::consts::FRAC_2_SQRT_PI * std::f64::consts::FRAC_1_SQRT_2;
+        PassA {
+            summaries,
+            levene_shift: summaries
+                .iter()
+                .map(|s| spread(s) * root_two_over_pi)
+                .collect(),
+            screens: summaries
+                .iter()
+                .map(|s| outlier_screen(mse, 1.0 / s.n as f64, df as f64))
+                .collect(),
+            mse,
+            df,
+            grand,
+            first_lines: vec![None; k],
+            levene: vec![Default::default(); k],
+            powers: vec![Default::default(); k],
+            total: vec![Default::default(); k],
+            flagged: Extremes::new(OUTLIERS_KEPT),
+            residuals: (n_total <= SHAPIRO_WILK_MAX).then(|| vec![Vec::new(); k]),
+        }
+    }
+
+    fn visit(&mut self, level: usize, offsets: &[f64], lines: &[usize]) {
+        let s = &self.summaries[level];
+        if self.first_lines[level].is_none() {
+            self.first_lines[level] = lines.first().copied();
+        }
+        let (mean, shift, screen) = (s.mean, self.levene_shift[level], self.screens[level]);
+        let flags = self.df >= 2 && crate::stats::is_positive(self.mse) && s.n >= 2;
+        for (&y, &line) in offsets.iter().zip(lines) {
+            let e = y - mean;
+            add_shifted(&mut self.levene[level], e.abs() - shift);
+            let p = &mut self.powers[level];
+            p[0].add(e);
+            p[1].add(e * e);
+            p[2].add(e * e * e);
+            p[3].add(e * e * e * e);
+            add_shifted(&mut self.total[level], y - self.grand);
+            if flags && e.abs() > screen {
+                self.flag(level, e, y, line);
+            }
+        }
+        if let Some(r) = &mut self.residuals {
+            r[level].extend(offsets.iter().map(|y| y - mean));
+        }
+    }
+
+    fn flag(&mut self, level: usize, e: f64, y: f64, line: usize) {
+        let leverage = 1.0 / self.summaries[level].n as f64;
+        let t = externally_studentized(e, self.mse, leverage, self.df as f64);
+        if t.abs() > OUTLIER_THRESHOLD {
+            let flag = Flag {
+                level,
+                line,
+                offset: y,
+                studentized: t,
+            };
+            self.flagged.offer_at(t.abs(), line, flag);
+        }
+    }
+
+    /// Levene's test, the residuals' shape and the total sum of squares.
+    fn finish(self, observed: &mut Observed) {
+        let summaries = self.summaries;
+        let n_total: usize = summaries.iter().map(|s| s.n).sum();
+        let deviations: Vec<GroupSummary> = (summaries.iter().zip(&self.levene_shift))
+            .zip(&self.levene)
+            .map(|((s, &shift), sums)| shifted_summary(s.n, shift, sums))
+            .collect();
+        observed.levene = spread_test(&deviations);
+        observed.levene_means = deviations.iter().map(|d| d.mean).collect();
+        let power = |i: usize| combined(self.powers.iter().map(|p| &p[i]));
+        let (m2, m3, m4) = central_moments(n_total, [power(0), power(1), power(2), power(3)]);
+        (observed.skewness, observed.excess_kurtosis) = shape_of_moments(n_total, m2, m3, m4);
+        observed.shapiro_wilk = match self.residuals {
+            Some(r) => shapiro_wilk(&r.concat()),
+            None => Err(ShapiroWilkSkip::TooMany),
+        };
+        let (t1, t2) = (
+            combined(self.total.iter().map(|t| &t[0])),
+            combined(self.total.iter().map(|t| &t[1])),
+        );
+        observed.total_ss = (t2 - t1 * t1 / n_total as f64).max(0.0);
+        observed.outlier_count = self.flagged.total();
+        observed.outliers = self.flagged.into_most_extreme_first();
+        observed.outliers.sort_by_key(|f| f.line);
+        observed.first_lines = self.first_lines.iter().map(|l| l.unwrap_or(0)).collect();
+    }
+}
+
+fn spread(s: &GroupSummary) -> f64 {
+    (s.ss / s.n as f64).sqrt()
+}
+
+/// The ranks each level's quartiles and median need, and where its first
+/// buckets go: every quantile between the quartiles lies within √3 SDs of
+/// the mean (Cantelli's inequality), so ±3 SDs holds them.
+fn wanted_ranks(summaries: &[GroupSummary]) -> Vec<(usize, Vec<usize>, (f64, f64))> {
+    summaries
+        .iter()
+        .map(|s| {
+            let mut ranks: Vec<usize> = quartile_places(s.n)
+                .iter()
+                .flat_map(|&(lo, hi, _)| [lo, hi])
+                .collect();
+            ranks.extend(median_ranks(s.n));
+            let reach = 3.0 * spread(s);
+            (s.n, ranks, (s.mean - reach, s.mean + reach))
+        })
+        .collect()
+}
+
+/// Every check on the observations of levels with these summaries.
+pub(super) fn observe(
+    passes: &mut dyn Passes,
+    summaries: &[GroupSummary],
+) -> Result<Observed, DataError> {
+    let mut observed = Observed::empty(summaries.len());
+    let mut selection = Selection::new(&wanted_ranks(summaries));
+    let mut first = PassA::new(summaries);
+    selection.begin_pass();
+    passes.pass(false, &mut |level, offsets, lines| {
+        first.visit(level, offsets, lines);
+        selection.visit(level, offsets);
+    })?;
+    selection.end_pass().map_err(|_| changed_error())?;
+    first.finish(&mut observed);
+    while !selection.done() {
+        selection.begin_pass();
+        passes.pass(false, &mut |level, offsets, _| {
+            selection.visit(level, offsets)
+        })?;
+        selection.end_pass().map_err(|_| changed_error())?;
+    }
+    let medians: Vec<f64> = summaries
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let v = selection.values(i, &median_ranks(s.n));
+            match v.as_slice() {
+                [m] => *m,
+                [a, b] => 0.5 * (a + b),
+                _ => f64::NAN,
+            }
+        })
+        .collect();
+    observed.quartiles = summaries
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let places = quartile_places(s.n);
+            let at = |(lo, hi, frac): (usize, usize, f64)| {
+                let v = selection.values(i, &[lo, hi]);
+                v[0] + frac * (v[1] - v[0])
+            };
+            (at(places[0]), at(places[1]), at(places[2]))
+        })
+        .collect();
+    // Brown-Forsythe: deviations from the medians, shifted by Levene's
+    // mean deviations (close to theirs).
+    let shifts = std::mem::take(&mut observed.levene_means);
+    let mut sums: Vec<[NeumaierSum; 2]> = vec![Default::default(); summaries.len()];
+    passes.pass(true, &mut |level, offsets, _| {
+        let (median, shift) = (medians[level], shifts[level]);
+        for &y in offsets {
+            add_shifted(&mut sums[level], (y - median).abs() - shift);
+        }
+    })?;
+    let deviations: Vec<GroupSummary> = (summaries.iter().zip(&shifts))
+        .zip(&sums)
+        .map(|((s, &shift), sums)| shifted_summary(s.n, shift, sums))
+        .collect();
+    observed.brown_forsythe = spread_test(&deviations);
+    observed.passes = selection.passes() + 1;
+    Ok(observed)
+}
+
+impl Observed {
+    fn empty(k: usize) -> Observed {
+        Observed {
+            brown_forsythe: None,
+            levene: None,
+            shapiro_wilk: Err(ShapiroWilkSkip::TooFew),
+            skewness: f64::NAN,
+            excess_kurtosis: f64::NAN,
+            outlier_count: 0,
+            outliers: Vec::new(),
+            quartiles: vec![(f64::NAN, f64::NAN, f64::NAN); k],
+            total_ss: f64::NAN,
+            first_lines: vec![0; k],
+            levene_means: Vec::new(),
+            passes: 0,
+        }
+    }
+}
+
+fn changed_error() -> DataError {
+    crate::data::scan::changed_error()
+}
