@@ -2,6 +2,7 @@
 //! stream), reading them with the document's row rules, the design order and
 //! display labels of levels, and data-file errors that point into the file.
 
+use crate::data::parquet;
 use crate::data::scan::{CHUNK_BYTES, ScanSpec, Scanned, Source, scan_file};
 use crate::data::{DataError, Exclusion, Table, prepare};
 use crate::diag::Diagnostic;
@@ -41,14 +42,29 @@ pub(crate) fn scan_csv(
     data: Data<'_>,
     spec: &ScanSpec<'_>,
 ) -> Result<(Scanned, Option<Input>), DataError> {
+    let columnar = parquet::is_parquet(match &data {
+        Data::Loaded(input) => &input.path,
+        Data::Stream { path, .. } => path,
+    });
     let (source, path) = match data {
+        Data::Loaded(input) if columnar => {
+            let bytes = input.bytes.as_deref().unwrap_or_default();
+            let rows = parquet::rows_in_memory(bytes, &scan_columns(spec))?;
+            (Source::Stream(rows), None)
+        }
         Data::Loaded(input) => (
             Source::Memory(input.bytes.as_deref().unwrap_or_default()),
             None,
         ),
         Data::Stream { path, reader } => (Source::Stream(reader), Some(path)),
     };
-    let scanned = scan_file(source, spec, CHUNK_BYTES, reader_threads())?;
+    // A Parquet file arrives as CSV text in a fixed format of its own.
+    let text_format = parquet::text_format(spec.format);
+    let spec = ScanSpec {
+        format: if columnar { &text_format } else { spec.format },
+        ..spec.clone()
+    };
+    let scanned = scan_file(source, &spec, CHUNK_BYTES, reader_threads())?;
     let input = path.map(|path| Input {
         path: path.to_string(),
         sha256: scanned.sha256.clone().unwrap_or_default(),
@@ -56,6 +72,41 @@ pub(crate) fn scan_csv(
         bytes: None,
     });
     Ok((scanned, input))
+}
+
+/// The columns a scan reads: its factors, its response, and those its
+/// `where` filters test.
+fn scan_columns<'a>(spec: &ScanSpec<'a>) -> Vec<&'a str> {
+    let mut columns: Vec<&str> = spec.factors.to_vec();
+    columns.push(spec.response);
+    columns.extend(spec.filters.iter().map(|f| f.column.as_str()));
+    columns
+}
+
+/// Every column a block names (responses, factors, covariates, blocks,
+/// random terms, the subject, filters): what a columnar file is read for.
+pub fn block_columns(spec: &AnovaSpec) -> Vec<&str> {
+    let model = &spec.model.value;
+    let mut columns: Vec<&str> = model.responses.iter().map(String::as_str).collect();
+    columns.extend(model.factors());
+    let listed = [&spec.covariates, &spec.blocks];
+    columns.extend(
+        listed
+            .into_iter()
+            .flatten()
+            .flat_map(|l| l.value.iter().map(String::as_str)),
+    );
+    if let Some(random) = &spec.random {
+        columns.extend(
+            random
+                .value
+                .iter()
+                .flat_map(|t| t.factors.iter().map(String::as_str)),
+        );
+    }
+    columns.extend(spec.subject.as_ref().map(|s| s.value.as_str()));
+    columns.extend(spec.rows.filters.iter().map(|f| f.column.as_str()));
+    columns
 }
 
 /// Worker threads for reading large files; the results never depend on it.
