@@ -32,8 +32,8 @@ mod traits;
 mod transformation;
 mod trend;
 
-pub(crate) use binding::reads_csv_rows;
-pub use binding::{Data, presentation, streams};
+pub use binding::{Data, block_columns, presentation, streams};
+pub(crate) use binding::{data_error, reads_csv_rows};
 pub use notes::{Note, NoteKind};
 pub use one_way::RoundingRange;
 pub use power::run_power;

@@ -82,6 +82,18 @@ pub fn spreadsheet(data: &[u8]) {
     }
 }
 
+/// Parquet files: the whole table, and the rows of two named columns as
+/// the streaming reader gets them (up to 64 MiB of text, so that a forged
+/// row count cannot make the target run for ever).
+pub fn parquet(data: &[u8]) {
+    use std::io::Read;
+    let format = crate::data::CsvFormat::default();
+    let _ = crate::data::read_table("fuzz.parquet", data, &format, None, None);
+    if let Ok(rows) = crate::data::parquet::rows_in_memory(data, &["head", "fill_g"]) {
+        let _ = rows.take(64 << 20).read_to_end(&mut Vec::new());
+    }
+}
+
 /// A one-sheet workbook (sheet `data`) around `sheet_data`, the content of
 /// its `<sheetData>` element.
 pub fn minimal_workbook(sheet_data: &str) -> Option<Vec<u8>> {

@@ -9,6 +9,28 @@ pub fn sha256_hex(bytes: &[u8]) -> String {
     digest.iter().map(|b| format!("{b:02x}")).collect()
 }
 
+/// SHA-256 (hex) and length of everything `reader` yields, read in
+/// blocks of 1 MiB.
+pub fn sha256_of_reader(mut reader: impl std::io::Read) -> std::io::Result<(String, u64)> {
+    let mut hasher = Sha256::new();
+    let mut buf = vec![0u8; 1 << 20];
+    let mut total = 0u64;
+    loop {
+        let n = reader.read(&mut buf)?;
+        if n == 0 {
+            break;
+        }
+        hasher.update(&buf[..n]);
+        total += n as u64;
+    }
+    let hex = hasher
+        .finalize()
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect();
+    Ok((hex, total))
+}
+
 /// A data file as read for the build.
 #[derive(Debug, Clone)]
 pub struct Input {

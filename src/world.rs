@@ -24,6 +24,12 @@ pub trait World {
     }
     /// How to show `path` in messages (e.g. joined to the document's folder).
     fn display(&self, path: &str) -> String;
+    /// The file on disk behind `path`, for formats read out of order
+    /// (Parquet); `None` where files live elsewhere (memory in tests), and
+    /// then such a file is read whole.
+    fn local_file(&self, _path: &str) -> Option<PathBuf> {
+        None
+    }
     /// Progress for long work; shown only where someone is watching.
     fn progress(&self, _message: &str) {}
     /// A cached block result, if this world keeps a cache.
@@ -135,6 +141,10 @@ impl World for DiskWorld {
         self.base.join(path).display().to_string()
     }
 
+    fn local_file(&self, path: &str) -> Option<PathBuf> {
+        Some(self.base.join(path))
+    }
+
     /// On a terminal only, so logs and CI output stay clean.
     fn progress(&self, message: &str) {
         use std::io::IsTerminal;
@@ -213,6 +223,11 @@ impl<W: World> World for Confined<W> {
 
     fn display(&self, path: &str) -> String {
         self.inner.display(path)
+    }
+
+    fn local_file(&self, path: &str) -> Option<PathBuf> {
+        self.check(path).ok()?;
+        self.inner.local_file(path)
     }
 
     /// None: a cache found in a folder nobody has read could have been

@@ -1386,3 +1386,42 @@ fn prose_and_level_mistakes_are_reported_at_their_place() {
         run_case(c);
     }
 }
+
+/// Damaged Parquet files (cut short, bytes flipped throughout): an error or
+/// a report, never a panic, and no panic message on stderr. The fixture is
+/// tests/data/parquet/invented-nulls.parquet (see the README there).
+#[test]
+fn damaged_parquet_files_end_in_errors_not_panics() {
+    let good = std::fs::read(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/parquet/invented-nulls.parquet"),
+    )
+    .expect("fixture");
+    let doc = "# d\n\n```anova\ndata: d.parquet\nmodel: fill_g ~ head\n```\n";
+    let run = |bytes: &[u8]| {
+        let dir = tempfile::tempdir().expect("temp dir");
+        std::fs::write(dir.path().join("report.md"), doc).expect("doc");
+        std::fs::write(dir.path().join("d.parquet"), bytes).expect("data");
+        let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+            .current_dir(dir.path())
+            .args(["build", "report.md", "-o", "out"])
+            .output()
+            .expect("runs");
+        (
+            output.status.code(),
+            String::from_utf8_lossy(&output.stderr).to_string(),
+        )
+    };
+    let (code, err) = run(&good[..good.len() / 2]);
+    assert_eq!(code, Some(1), "{err}");
+    assert!(err.contains("cut short"), "{err}");
+    for at in (4..good.len() - 8).step_by(good.len() / 40) {
+        let mut bytes = good.clone();
+        bytes[at] ^= 0xa5;
+        let (code, err) = run(&bytes);
+        assert!(
+            matches!(code, Some(0 | 1)),
+            "byte {at}: exit {code:?}\n{err}"
+        );
+        assert!(!err.contains("panicked"), "byte {at}:\n{err}");
+    }
+}

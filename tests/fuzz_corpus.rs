@@ -10,7 +10,7 @@ type Target = fn(&[u8]);
 #[test]
 fn every_corpus_input_is_handled_without_a_panic() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fuzz/corpus");
-    let targets: [(&str, Target); 9] = [
+    let targets: [(&str, Target); 10] = [
         ("block_parser", sheaf::fuzzing::block_parser),
         ("formula", sheaf::fuzzing::formula),
         ("document", sheaf::fuzzing::document),
@@ -20,6 +20,7 @@ fn every_corpus_input_is_handled_without_a_panic() {
         ("cache_entry", sheaf::fuzzing::cache_entry),
         ("spreadsheet", sheaf::fuzzing::spreadsheet),
         ("expression", sheaf::fuzzing::expression),
+        ("parquet", sheaf::fuzzing::parquet),
     ];
     let mut replayed = 0;
     for (name, run) in targets {

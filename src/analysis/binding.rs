@@ -2,6 +2,7 @@
 //! stream), reading them with the document's row rules, the design order and
 //! display labels of levels, and data-file errors that point into the file.
 
+use crate::data::parquet;
 use crate::data::scan::{CHUNK_BYTES, ScanSpec, Scanned, Source, Visit, rescan, scan_file};
 use crate::data::{DataError, Exclusion, Table, prepare};
 use crate::diag::Diagnostic;
@@ -29,14 +30,21 @@ pub type Reopen<'a> = &'a dyn Fn() -> std::io::Result<Box<dyn std::io::Read + Se
 #[derive(Clone, Copy)]
 pub(crate) enum Again<'a> {
     Memory(&'a [u8]),
-    Reopen(Reopen<'a>),
+    /// A Parquet file held in memory, decoded again for each pass.
+    Columnar(&'a [u8]),
+    /// A streamed file; `true` when it is Parquet (its rows arrive as CSV
+    /// text in `parquet::text_format`).
+    Reopen(Reopen<'a>, bool),
 }
 
 impl<'a> Data<'a> {
     pub(crate) fn again(&self) -> Again<'a> {
         match self {
+            Data::Loaded(input) if parquet::is_parquet(&input.path) => {
+                Again::Columnar(input.bytes.as_deref().unwrap_or_default())
+            }
             Data::Loaded(input) => Again::Memory(input.bytes.as_deref().unwrap_or_default()),
-            Data::Stream { reopen, .. } => Again::Reopen(*reopen),
+            Data::Stream { path, reopen, .. } => Again::Reopen(*reopen, parquet::is_parquet(path)),
         }
     }
 }
@@ -72,17 +80,29 @@ pub(crate) fn rescan_csv(
     last: bool,
     visit: Visit<'_>,
 ) -> Result<(), DataError> {
-    let source = match again {
-        Again::Memory(bytes) => Source::Memory(bytes),
-        Again::Reopen(open) => Source::Stream(open().map_err(|e| DataError {
-            line: None,
-            column: None,
-            message: format!("opening the file again for a later pass failed: {e}"),
-            hint: None,
-        })?),
+    let (source, columnar) = match again {
+        Again::Memory(bytes) => (Source::Memory(bytes), false),
+        Again::Columnar(bytes) => (
+            Source::Stream(parquet::rows_in_memory(bytes, &scan_columns(spec))?),
+            true,
+        ),
+        Again::Reopen(open, columnar) => (
+            Source::Stream(open().map_err(|e| DataError {
+                line: None,
+                column: None,
+                message: format!("opening the file again for a later pass failed: {e}"),
+                hint: None,
+            })?),
+            columnar,
+        ),
+    };
+    let text_format = parquet::text_format(spec.format);
+    let spec = ScanSpec {
+        format: if columnar { &text_format } else { spec.format },
+        ..spec.clone()
     };
     let hash = last && first.sha256.is_some();
-    let seen = rescan(source, spec, &first.names, hash, reader_threads(), visit)?;
+    let seen = rescan(source, &spec, &first.names, hash, reader_threads(), visit)?;
     let counts = seen.levels.iter().map(|l| l.summary.n);
     if seen.bytes != first.bytes
         || !counts.eq(first.counts.iter().copied())
@@ -114,14 +134,29 @@ pub(crate) fn scan_csv(
     data: Data<'_>,
     spec: &ScanSpec<'_>,
 ) -> Result<(Scanned, Option<Input>), DataError> {
+    let columnar = parquet::is_parquet(match &data {
+        Data::Loaded(input) => &input.path,
+        Data::Stream { path, .. } => path,
+    });
     let (source, path) = match data {
+        Data::Loaded(input) if columnar => {
+            let bytes = input.bytes.as_deref().unwrap_or_default();
+            let rows = parquet::rows_in_memory(bytes, &scan_columns(spec))?;
+            (Source::Stream(rows), None)
+        }
         Data::Loaded(input) => (
             Source::Memory(input.bytes.as_deref().unwrap_or_default()),
             None,
         ),
         Data::Stream { path, reader, .. } => (Source::Stream(reader), Some(path)),
     };
-    let scanned = scan_file(source, spec, CHUNK_BYTES, reader_threads())?;
+    // A Parquet file arrives as CSV text in a fixed format of its own.
+    let text_format = parquet::text_format(spec.format);
+    let spec = ScanSpec {
+        format: if columnar { &text_format } else { spec.format },
+        ..spec.clone()
+    };
+    let scanned = scan_file(source, &spec, CHUNK_BYTES, reader_threads())?;
     let input = path.map(|path| Input {
         path: path.to_string(),
         sha256: scanned.sha256.clone().unwrap_or_default(),
@@ -129,6 +164,41 @@ pub(crate) fn scan_csv(
         bytes: None,
     });
     Ok((scanned, input))
+}
+
+/// The columns a scan reads: its factors, its response, and those its
+/// `where` filters test.
+fn scan_columns<'a>(spec: &ScanSpec<'a>) -> Vec<&'a str> {
+    let mut columns: Vec<&str> = spec.factors.to_vec();
+    columns.push(spec.response);
+    columns.extend(spec.filters.iter().map(|f| f.column.as_str()));
+    columns
+}
+
+/// Every column a block names (responses, factors, covariates, blocks,
+/// random terms, the subject, filters): what a columnar file is read for.
+pub fn block_columns(spec: &AnovaSpec) -> Vec<&str> {
+    let model = &spec.model.value;
+    let mut columns: Vec<&str> = model.responses.iter().map(String::as_str).collect();
+    columns.extend(model.factors());
+    let listed = [&spec.covariates, &spec.blocks];
+    columns.extend(
+        listed
+            .into_iter()
+            .flatten()
+            .flat_map(|l| l.value.iter().map(String::as_str)),
+    );
+    if let Some(random) = &spec.random {
+        columns.extend(
+            random
+                .value
+                .iter()
+                .flat_map(|t| t.factors.iter().map(String::as_str)),
+        );
+    }
+    columns.extend(spec.subject.as_ref().map(|s| s.value.as_str()));
+    columns.extend(spec.rows.filters.iter().map(|f| f.column.as_str()));
+    columns
 }
 
 /// Worker threads for reading large files; the results never depend on it.

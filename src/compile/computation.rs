@@ -2,7 +2,8 @@
 //! streamed past), hashed, looked up in the cache, and computed by its engine.
 
 use crate::analysis::{
-    Data, Request, presentation, reads_csv_rows, represent, run_linear, run_power, run_traits,
+    Data, Request, block_columns, data_error, presentation, reads_csv_rows, represent, run_linear,
+    run_power, run_traits,
 };
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
@@ -168,14 +169,18 @@ impl Computation {
             block.id,
             block.line
         ));
-        // Checks that need more than one pass open the file again.
-        let reopen = || world.open(path).map(|(reader, _)| reader);
-        let data = Data::Stream {
-            path,
-            reader,
-            reopen: &reopen,
+        let (result, input) = if crate::data::parquet::is_parquet(path) {
+            stream_parquet(doc, world, block, spec, reader)?
+        } else {
+            // Checks that need more than one pass open the file again.
+            let reopen = || world.open(path).map(|(reader, _)| reader);
+            let data = Data::Stream {
+                path,
+                reader,
+                reopen: &reopen,
+            };
+            run_engine(doc, block, spec, data, &world.display(path))?
         };
-        let (result, input) = run_engine(doc, block, spec, data, &world.display(path))?;
         if let Some(input) = input
             && !self.inputs.iter().any(|i| i.path == input.path)
         {
@@ -207,6 +212,44 @@ impl Computation {
             .find(|i| &i.path == path)
             .map_or_else(String::new, |i| i.sha256.clone()))
     }
+}
+
+/// A large Parquet file: the block's columns are decoded from the file
+/// (read out of order, see `data::parquet`) while another thread hashes
+/// the file's own bytes from `raw`, so the input recorded is the file
+/// itself, not the text it was read as.
+fn stream_parquet(
+    doc: &Document,
+    world: &dyn World,
+    block: &Block,
+    spec: &AnovaSpec,
+    raw: Box<dyn Read + Send>,
+) -> Result<(BlockResult, Option<Input>), Diagnostic> {
+    let path = &spec.data.value;
+    let display = world.display(path);
+    let rows = crate::data::parquet::rows_in_world(world, path, &block_columns(spec))
+        .map_err(|e| data_error(doc, block, spec.data.line, &display, e))?;
+    std::thread::scope(|scope| {
+        let hashing = scope.spawn(move || crate::provenance::sha256_of_reader(raw));
+        // Later passes decode the file again (see `binding::Again`).
+        let reopen = || {
+            crate::data::parquet::rows_in_world(world, path, &block_columns(spec))
+                .map_err(|e| std::io::Error::other(e.message))
+        };
+        let data = Data::Stream {
+            path,
+            reader: rows,
+            reopen: &reopen,
+        };
+        let outcome = run_engine(doc, block, spec, data, &display);
+        let hashed = hashing
+            .join()
+            .unwrap_or_else(|_| Err(std::io::Error::other("the thread hashing the file stopped")));
+        let (result, input) = outcome?;
+        let (sha256, size) = hashed
+            .map_err(|e| unreadable(doc, world, e, path, (spec.data.line, spec.data.column)))?;
+        Ok((result, input.map(|i| Input { sha256, size, ..i })))
+    })
 }
 
 /// Records a file read into memory, replacing the record of an earlier

@@ -45,7 +45,7 @@ const SIGNATURES: [(&[u8], &str, &str); 14] = [
     (
         b"PAR1",
         "a Parquet file",
-        "export the table as CSV (UTF-8) from the program that wrote it",
+        "a Parquet file is read as such when its name ends in .parquet: rename it",
     ),
     (
         b"PK\x03\x04",

@@ -6,6 +6,7 @@ pub mod covariates;
 pub mod csv;
 pub mod decimal;
 pub mod levels;
+pub mod parquet;
 pub mod reader;
 pub mod scan;
 pub mod spreadsheet;

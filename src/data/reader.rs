@@ -115,7 +115,7 @@ impl Reader for Spreadsheet {
 /// Every data format, most specific first: the first that claims a file
 /// reads it, and CSV claims every file. A new format is a reader in its own
 /// file and one line here.
-pub const READERS: &[&dyn Reader] = &[&Spreadsheet, &Csv];
+pub const READERS: &[&dyn Reader] = &[&Spreadsheet, &super::parquet::Parquet, &Csv];
 
 /// The reader of the file at `path`.
 pub fn reader_for(path: &str) -> &'static dyn Reader {

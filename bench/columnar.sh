@@ -1,0 +1,127 @@
+#!/usr/bin/env bash
+# The same one-way report read from a Parquet file and from the CSV file
+# with the same table, measured in the same run:
+#   (h) openssl dgst -sha256 of each file: the floor for a build that
+#       records its input's hash
+#   (s) sheaf build with `checks: summary` (ANOVA, Tukey-Kramer)
+#   (d) sheaf build with every check (the default)
+# on the CSV file, on Parquet with the response as DOUBLE and on Parquet
+# with the response as DECIMAL(7, 3). Each is timed as a whole process, best
+# of $REPEAT, with CPU time and peak memory (GNU time %M). Prints F from every
+# build (they must agree).
+# The data are bench/large_oneway.sh's invented fill weights (12 filling
+# heads, 20,000,000 rows); pyarrow (installed by the script into a virtual
+# environment under the target folder) writes them as Parquet with its
+# defaults (snappy, row groups of 1,048,576 rows).
+# Usage: bench/columnar.sh            (ROWS=20000000 REPEAT=3 by default)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+rows="${ROWS:-20000000}"
+repeat="${REPEAT:-3}"
+target="${CARGO_TARGET_DIR:-target}"
+cargo build --release -q
+bin="$target/release/sheaf"
+venv="$target/columnar-venv"
+if ! "$venv/bin/python" -c "import pyarrow" 2>/dev/null; then
+  python3 -m venv "$venv"
+  "$venv/bin/pip" install -q pyarrow
+fi
+data="$target/bench-data"
+mkdir -p "$data"
+csv="$data/fill-$rows.csv"
+if [ ! -s "$csv" ]; then
+  echo "generating $csv ($rows rows, invented data)"
+  awk -v n="$rows" 'BEGIN { srand(11); print "head,fill_g,shift";
+    for (i = 0; i < n; i++) { h = i % 12;
+      printf "H%02d,%.3f,S%d\n", h, 500 + h * 0.02 + 0.8 * (rand() + rand() + rand() - 1.5), int(i / 1000) % 3 } }' > "$csv.tmp"
+  mv "$csv.tmp" "$csv"
+fi
+double="$data/fill-$rows.double.parquet"
+decimal="$data/fill-$rows.decimal.parquet"
+if [ ! -s "$double" ] || [ ! -s "$decimal" ]; then
+  echo "writing $double and $decimal"
+  "$venv/bin/python" - "$csv" "$double" "$decimal" <<'PY'
+import sys
+import pyarrow as pa
+import pyarrow.csv as pc
+import pyarrow.parquet as pq
+source, double, decimal = sys.argv[1:]
+for path, kind in ((double, pa.float64()), (decimal, pa.decimal128(7, 3))):
+    types = {"head": pa.string(), "fill_g": kind, "shift": pa.string()}
+    table = pc.read_csv(source, convert_options=pc.ConvertOptions(column_types=types))
+    pq.write_table(table, path + ".tmp")
+    import os
+    os.replace(path + ".tmp", path)
+PY
+fi
+for checks in summary all; do
+  for input in csv double decimal; do
+    case $input in
+      csv) file="$(basename "$csv")" ;;
+      double) file="$(basename "$double")" ;;
+      decimal) file="$(basename "$decimal")" ;;
+    esac
+    cat > "$data/columnar-$input-$checks.md" <<DOC
+# Fill weights by filling head (invented data)
+
+\`\`\`anova
+id: fill
+data: $file
+model: fill_g ~ head
+compare: tukey
+checks: $checks
+\`\`\`
+
+F = {{ fill.f | fixed(6) }}
+DOC
+  done
+done
+
+cat "$csv" "$double" "$decimal" > /dev/null # into the page cache alike
+# best "wall user+sys peakKiB" of $repeat runs of a command
+measure() {
+  local best="" line wall user sys peak start end
+  for _ in $(seq "$repeat"); do
+    start=$(date +%s%N)
+    /usr/bin/time -o "$data/time.out" -f "%U %S %M" "$@" > "$data/last.out" 2>&1
+    end=$(date +%s%N)
+    read -r user sys peak < "$data/time.out"
+    wall=$(awk -v s="$start" -v e="$end" 'BEGIN { printf "%.3f", (e - s) / 1e9 }')
+    line="$wall $(awk -v u="$user" -v s="$sys" 'BEGIN { print u + s }') $peak"
+    if [ -z "$best" ] || awk -v a="$wall" -v b="${best%% *}" 'BEGIN { exit !(a < b) }'; then
+      best="$line"
+    fi
+  done
+  echo "$best"
+}
+row() {
+  local wall cpu peak
+  read -r wall cpu peak <<< "$2"
+  printf '%-46s %9.3f %9.2f %11.0f\n' "$1" "$wall" "$cpu" "$((peak / 1024))"
+}
+printf '%s rows, %s core(s); CSV %s MB, Parquet (double) %s MB, Parquet (decimal) %s MB\n' \
+  "$rows" "$(nproc)" "$(($(stat -c %s "$csv") / 1000000))" \
+  "$(($(stat -c %s "$double") / 1000000))" "$(($(stat -c %s "$decimal") / 1000000))"
+printf '%-46s %9s %9s %11s\n' "" "wall s" "CPU s" "peak MiB"
+declare -A hash
+for input in csv double decimal; do
+  case $input in
+    csv) file="$csv" ;;
+    double) file="$double" ;;
+    decimal) file="$decimal" ;;
+  esac
+  hash[$input]=$(measure openssl dgst -sha256 "$file")
+  row "(h) openssl dgst -sha256, $input" "${hash[$input]}"
+done
+fs=""
+for checks in summary all; do
+  for input in csv double decimal; do
+    result=$(measure "$bin" build "$data/columnar-$input-$checks.md" -o "$data/out-columnar-$input-$checks")
+    row "sheaf, checks: $checks, $input" "$result"
+    f=$(grep -o 'F = [0-9.]*' "$data/out-columnar-$input-$checks/columnar-$input-$checks.html" | head -1)
+    fs="$fs $input/$checks: $f;"
+    ratio=$(awk -v x="${result%% *}" -v y="${hash[$input]%% *}" 'BEGIN { printf "%.1f", x / y }')
+    echo "    = ${ratio}× the hash of its own file"
+  done
+done
+echo "F:$fs"
