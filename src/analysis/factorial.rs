@@ -386,6 +386,7 @@ impl Analysed {
             dose: None,
             friedman: None,
             equivalence: None,
+            input: Default::default(),
         }
     }
 }

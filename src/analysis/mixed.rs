@@ -373,6 +373,7 @@ impl Analysed {
             dose: None,
             friedman: None,
             equivalence: None,
+            input: Default::default(),
         })
     }
 
