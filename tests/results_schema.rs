@@ -139,6 +139,10 @@ mod contract {
         pub excluded: Vec<Excluded>,
         pub alpha: f64,
         pub method: Omnibus,
+        pub input: InputKind,
+        /// With exact sums only: the origin as an exact decimal.
+        #[serde(default, deserialize_with = "present")]
+        pub origin: Option<String>,
         #[serde(default, deserialize_with = "present")]
         pub ss_type: Option<u8>,
         pub anova: Anova,
@@ -907,6 +911,17 @@ mod contract {
         pub df: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub lsd: Option<f64>,
+    }
+
+    /// What the data file held (README "input: summary").
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    pub enum InputKind {
+        #[serde(rename = "observations")]
+        Observations,
+        #[serde(rename = "summaries")]
+        Summaries,
+        #[serde(rename = "exact sums")]
+        ExactSums,
     }
 
     #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
@@ -1750,6 +1765,11 @@ fn check_anova(p: &mut Problems, at: &str, b: &AnovaBlock) {
         "n_excluded differs from the rows listed in excluded",
     );
     p.require(
+        b.origin.is_some() == (b.input == InputKind::ExactSums),
+        at,
+        "origin is given exactly when the input is exact sums",
+    );
+    p.require(
         b.welch.is_some() == (b.method == Omnibus::Welch),
         at,
         "welch is present exactly when method is welch",
@@ -2269,6 +2289,55 @@ mod the_contract_bites {
 
     fn object(value: &mut Value) -> &mut serde_json::Map<String, Value> {
         value.as_object_mut().expect("an object")
+    }
+
+    struct Memory(&'static str);
+
+    impl sheaf::compile::World for Memory {
+        fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+            match path {
+                "s.csv" => Ok(self.0.as_bytes().to_vec()),
+                _ => Err(std::io::Error::from(std::io::ErrorKind::NotFound)),
+            }
+        }
+        fn display(&self, path: &str) -> String {
+            path.to_string()
+        }
+    }
+
+    /// Summary input (README "input: summary") records `input`, and `origin` for exact sums
+    /// only; the records read into the contract and keep its invariants.
+    #[test]
+    fn summary_records_say_what_the_input_was() {
+        let exact = "a,b,n,origin,sum,squares\nx,p,2,10.5,1.0,0.52\nx,q,2,10.5,0.4,0.1\ny,p,2,10.5,-0.2,0.1\ny,q,2,10.5,2.0,2.02\n";
+        let published =
+            "a,b,n,mean,sd\nx,p,2,11,0.1\nx,q,2,10.7,0.2\ny,p,2,10.4,0.2\ny,q,2,11.5,0.1\n";
+        for (csv, input, origin) in [
+            (exact, InputKind::ExactSums, Some("10.5")),
+            (published, InputKind::Summaries, None),
+        ] {
+            let doc = "```anova\nid: s\ndata: s.csv\nmodel: y ~ a + b\ninput: summary\ncompare: tukey\n```\n";
+            let built = sheaf::compile::compile(
+                "report.md",
+                doc.as_bytes(),
+                &Memory(csv),
+                sheaf::render::Format::Markdown,
+            )
+            .expect("builds");
+            let text = String::from_utf8(built.results).expect("UTF-8");
+            let results = read_results("summary.results.json", &text).expect("reads");
+            let Block::Anova(block) = &results.blocks[0] else {
+                panic!("an anova record");
+            };
+            assert_eq!(block.input, input);
+            assert_eq!(block.origin.as_deref(), origin);
+            let mut p = Problems {
+                file: "summary.results.json".into(),
+                list: Vec::new(),
+            };
+            check_anova(&mut p, "blocks[0]", block);
+            assert!(p.list.is_empty(), "{}", p.list.join("\n"));
+        }
     }
 
     #[test]

@@ -10,8 +10,11 @@ pub mod parquet;
 pub mod reader;
 pub mod scan;
 pub mod spreadsheet;
+pub mod summary_cells;
 pub mod transform;
+pub mod wide_decimal;
 
+use crate::stats::oneway::GroupSummary;
 use decimal::{Number, parse_number};
 
 /// How a CSV file is written.
@@ -320,6 +323,14 @@ pub struct SummaryColumns {
     pub spread: String,
     /// The spread column holds standard errors (SD = SE·√n), not SDs.
     pub spread_is_se: bool,
+    /// The exact-sums form (see `summary_cells`): Σ(y − origin),
+    /// Σ(y − origin)², the origin, and the optional count of values the
+    /// query rounded. The form is chosen when the header has `sum` and
+    /// `squares`.
+    pub sum: String,
+    pub squares: String,
+    pub origin: String,
+    pub rounded: String,
 }
 
 /// One level of a summary table.
@@ -355,30 +366,8 @@ pub fn summary_rows(
     let mi = table.column(&columns.mean)?;
     let si = table.column(&columns.spread)?;
     table.check_cells(&[li, ni, mi, si])?;
-    let read = |row: &csv::Record, i: usize, what: &str| -> Result<Number, DataError> {
-        let raw = row.fields[i].trim();
-        let text = if format.decimal_comma {
-            raw.replace(',', ".")
-        } else {
-            raw.to_string()
-        };
-        let number = parse_number(&text)
-            .filter(|n| n.to_f64().is_finite())
-            .ok_or_else(|| DataError {
-                line: Some(row.line),
-                column: Some(i + 1),
-                message: format!("the {what} must be a number, found `{raw}`"),
-                hint: Some("a summary table needs a value in every cell: one row per level".into()),
-            })?;
-        if let Some(why) = decimal::beyond_range(&text, number) {
-            return Err(DataError {
-                line: Some(row.line),
-                column: Some(i + 1),
-                message: format!("the {what} `{raw}` cannot be analysed: {why}"),
-                hint: Some("rescale the column (e.g. write it in other units)".into()),
-            });
-        }
-        Ok(number)
+    let read = |row: &csv::Record, i: usize, what: &str| {
+        summary_cells::summary_number(row, i, what, format)
     };
     let mut rows: Vec<SummaryRow> = Vec::with_capacity(table.rows.len());
     for row in &table.rows {
@@ -398,33 +387,7 @@ pub fn summary_rows(
                 )),
             );
         }
-        let n = read(row, ni, "n")?.to_f64();
-        if n > MAX_SUMMARY_N {
-            return Err(DataError {
-                column: Some(ni + 1),
-                ..DataError::at(
-                    row.line,
-                    format!(
-                        "n = {} is beyond the {} observations a summary row may count",
-                        row.fields[ni].trim(),
-                        MAX_SUMMARY_N
-                    ),
-                )
-            }
-            .hint("check the n column: it holds the number of observations behind each mean"));
-        }
-        if n.fract() != 0.0 || n < 1.0 {
-            return Err(DataError {
-                column: Some(ni + 1),
-                ..DataError::at(
-                    row.line,
-                    format!(
-                        "n must be a whole number of at least 1, found `{}`",
-                        row.fields[ni].trim()
-                    ),
-                )
-            });
-        }
+        let n = summary_cells::summary_count(row, ni, format)?;
         let mean_exact = read(row, mi, "mean")?;
         let (mean, mean_decimals) = (mean_exact.to_f64(), mean_exact.decimals());
         let spread_number = read(row, si, "spread (SD or SE)")?;
@@ -437,7 +400,7 @@ pub fn summary_rows(
         }
         rows.push(SummaryRow {
             level,
-            n: n as usize,
+            n,
             mean,
             mean_exact,
             spread,
@@ -452,9 +415,11 @@ pub fn summary_rows(
 
 /// A response with several crossed factors, one row per observation. Rows
 /// with the same levels share one entry of `cells`, so a row costs one
-/// index, one value and one line however many factors there are.
+/// index, one value and one line however many factors there are. The
+/// engines that need every observation (mixed models, covariates,
+/// transformations) read this; the factorial fit reads [`FactorialData`].
 #[derive(Debug, Clone, PartialEq)]
-pub struct FactorialData {
+pub struct FactorialRows {
     /// Per factor, its levels in order of first appearance.
     pub levels: Vec<Vec<String>>,
     /// The distinct combinations of level indices (full cells), in order of
@@ -471,7 +436,17 @@ pub struct FactorialData {
     pub excluded: Vec<Exclusion>,
 }
 
-impl FactorialData {
+impl FactorialRows {
+    /// The observations with their cells, borrowed.
+    pub fn observed(&self) -> Observed<'_> {
+        Observed {
+            cells: &self.cells,
+            cell_of: &self.cell_of,
+            offsets: &self.offsets,
+            lines: &self.lines,
+        }
+    }
+
     /// Observation i's level index for each factor.
     pub fn row(&self, i: usize) -> &[usize] {
         &self.cells[self.cell_of[i]]
@@ -486,6 +461,148 @@ impl FactorialData {
     }
 }
 
+/// A response with several crossed factors as its cells: each full cell's
+/// n, mean and within-cell sum of squares are the core, enough for the
+/// fit, every table of sums of squares, the marginal and cell means and
+/// their comparisons. The observations themselves are kept when the data
+/// had them and something needs them (residual checks, figures); summary
+/// input has none.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FactorialData {
+    /// Per factor, its levels in order of first appearance.
+    pub levels: Vec<Vec<String>>,
+    /// The distinct combinations of level indices (full cells), in order of
+    /// first appearance.
+    pub cells: Vec<Vec<usize>>,
+    /// Per full cell: n, the mean as an offset from `origin`, and the
+    /// within-cell sum of squares.
+    pub cell_summaries: Vec<GroupSummary>,
+    /// Per full cell, the data line where it first appears.
+    pub cell_lines: Vec<usize>,
+    /// The observations; `None` for summary input.
+    pub observations: Option<ObservationColumns>,
+    pub origin: f64,
+    pub decimals: u32,
+    pub excluded: Vec<Exclusion>,
+}
+
+/// Per observation: its cell, its offset from the origin, its data line.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ObservationColumns {
+    pub cell_of: Vec<usize>,
+    pub offsets: Vec<f64>,
+    pub lines: Vec<usize>,
+}
+
+/// The observations of a [`FactorialData`] with its cells, borrowed.
+#[derive(Debug, Clone, Copy)]
+pub struct Observed<'a> {
+    pub cells: &'a [Vec<usize>],
+    pub cell_of: &'a [usize],
+    pub offsets: &'a [f64],
+    pub lines: &'a [usize],
+}
+
+impl Observed<'_> {
+    /// Observation i's level index for each factor.
+    pub fn row(&self, i: usize) -> &[usize] {
+        &self.cells[self.cell_of[i]]
+    }
+
+    /// Every observation's levels, one vector each (for small layouts).
+    pub fn rows(&self) -> Vec<Vec<usize>> {
+        self.cell_of
+            .iter()
+            .map(|&c| self.cells[c].clone())
+            .collect()
+    }
+}
+
+impl FactorialData {
+    /// The number of observations.
+    pub fn n(&self) -> usize {
+        self.cell_summaries.iter().map(|c| c.n).sum()
+    }
+
+    /// The observations, when the data had them.
+    pub fn observed(&self) -> Option<Observed<'_>> {
+        self.observations.as_ref().map(|o| Observed {
+            cells: &self.cells,
+            cell_of: &o.cell_of,
+            offsets: &o.offsets,
+            lines: &o.lines,
+        })
+    }
+
+    /// The cells of observations read one by one, keeping them.
+    pub fn from_rows(rows: FactorialRows) -> FactorialData {
+        let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); rows.cells.len()];
+        let mut cell_lines = vec![usize::MAX; rows.cells.len()];
+        for ((&c, &y), &line) in rows.cell_of.iter().zip(&rows.offsets).zip(&rows.lines) {
+            by_cell[c].push(y);
+            cell_lines[c] = cell_lines[c].min(line);
+        }
+        FactorialData {
+            cell_summaries: by_cell
+                .iter()
+                .map(|v| GroupSummary::from_values(v))
+                .collect(),
+            cell_lines,
+            levels: rows.levels,
+            cells: rows.cells,
+            observations: Some(ObservationColumns {
+                cell_of: rows.cell_of,
+                offsets: rows.offsets,
+                lines: rows.lines,
+            }),
+            origin: rows.origin,
+            decimals: rows.decimals,
+            excluded: rows.excluded,
+        }
+    }
+
+    /// The cells of a summary table (one row per cell, each naming its
+    /// level in every factor), with levels in order of first appearance.
+    pub fn from_summaries(read: summary_cells::SummaryCells, factors: usize) -> FactorialData {
+        let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors];
+        let cells = read
+            .cells
+            .iter()
+            .map(|c| {
+                c.levels
+                    .iter()
+                    .zip(levels.iter_mut())
+                    .map(|(name, known)| match known.iter().position(|l| l == name) {
+                        Some(i) => i,
+                        None => {
+                            known.push(name.clone());
+                            known.len() - 1
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        FactorialData {
+            levels,
+            cells,
+            cell_summaries: read
+                .cells
+                .iter()
+                .map(|c| GroupSummary {
+                    n: c.n,
+                    mean: c.mean,
+                    ss: c.ss,
+                })
+                .collect(),
+            cell_lines: read.cells.iter().map(|c| c.line).collect(),
+            observations: None,
+            origin: read.origin,
+            decimals: read.decimals,
+            excluded: Vec::new(),
+        }
+    }
+}
+
 /// Extracts `response` and several factor columns; a row missing any of
 /// them is left out and recorded. The same per-row rules as the chunked
 /// reader, which this calls with the table's rows as one chunk.
@@ -494,7 +611,7 @@ pub fn factorial_response(
     response: &str,
     factors: &[&str],
     format: &CsvFormat,
-) -> Result<FactorialData, DataError> {
+) -> Result<FactorialRows, DataError> {
     let scanned = scan::scan_table(table, response, factors, format)?;
     Ok(factorial_from_scan(scanned, factors.len()))
 }
@@ -503,7 +620,7 @@ pub fn factorial_response(
 /// `scan::cell_key`) into one row per observation, in file order. Each
 /// factor's levels come in order of first appearance among the rows with a
 /// response, as `factorial_response` orders them.
-pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialData {
+pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialRows {
     let mut cells: Vec<&scan::ScannedLevel> = scanned
         .levels
         .iter()
@@ -553,7 +670,7 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialD
             heap.push(std::cmp::Reverse((following, k)));
         }
     }
-    FactorialData {
+    FactorialRows {
         levels,
         cells: cell_rows,
         cell_of,
