@@ -18,7 +18,7 @@ mod transform;
 mod trend;
 
 use crate::doc::power::EffectInput;
-use crate::outcome::linear::{Comparison, Estimate, Family, LinearOutcome};
+use crate::outcome::linear::{Comparison, Estimate, Family, InputForm, LinearOutcome};
 use crate::outcome::{BlockResult, PowerResult};
 use crate::provenance::{Input, sha256_hex};
 use crate::stats::compare::Method;
@@ -249,6 +249,12 @@ pub struct BlockHead {
     pub alpha: f64,
     /// The omnibus test the block declared: "anova", "welch" or "ranks".
     pub method: &'static str,
+    /// What the data file held: "observations", "summaries" (n, mean, SD
+    /// or SE per level or cell) or "exact sums".
+    pub input: &'static str,
+    /// With exact sums: the origin they were taken from, as an exact decimal.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub origin: Option<String>,
 }
 
 impl BlockHead {
@@ -273,6 +279,15 @@ impl BlockHead {
                 .collect(),
             alpha: o.alpha,
             method: o.method.key(),
+            input: match o.input {
+                InputForm::Observations => "observations",
+                InputForm::Summaries => "summaries",
+                InputForm::ExactSums { .. } => "exact sums",
+            },
+            origin: match &o.input {
+                InputForm::ExactSums { origin } => Some(origin.clone()),
+                _ => None,
+            },
         }
     }
 }

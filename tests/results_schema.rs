@@ -142,6 +142,10 @@ mod contract {
         pub excluded: Vec<Excluded>,
         pub alpha: f64,
         pub method: Omnibus,
+        pub input: InputKind,
+        /// With exact sums only: the origin as an exact decimal.
+        #[serde(default, deserialize_with = "present")]
+        pub origin: Option<String>,
         #[serde(default, deserialize_with = "present")]
         pub ss_type: Option<u8>,
         pub anova: Anova,
@@ -910,6 +914,17 @@ mod contract {
         pub df: Option<f64>,
         #[serde(deserialize_with = "nullable")]
         pub lsd: Option<f64>,
+    }
+
+    /// What the data file held (README "input: summary").
+    #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
+    pub enum InputKind {
+        #[serde(rename = "observations")]
+        Observations,
+        #[serde(rename = "summaries")]
+        Summaries,
+        #[serde(rename = "exact sums")]
+        ExactSums,
     }
 
     #[derive(Deserialize, Clone, Copy, PartialEq, Debug)]
@@ -1751,6 +1766,11 @@ fn check_anova(p: &mut Problems, at: &str, b: &AnovaBlock) {
         b.n_excluded == b.excluded.len() as u64,
         at,
         "n_excluded differs from the rows listed in excluded",
+    );
+    p.require(
+        b.origin.is_some() == (b.input == InputKind::ExactSums),
+        at,
+        "origin is given exactly when the input is exact sums",
     );
     p.require(
         b.welch.is_some() == (b.method == Omnibus::Welch),

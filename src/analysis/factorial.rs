@@ -387,6 +387,7 @@ impl Analysed {
             dose: None,
             friedman: None,
             equivalence: None,
+            input: Default::default(),
         }
     }
 }

@@ -370,6 +370,7 @@ impl Analysed {
             dose: None,
             friedman: None,
             equivalence: None,
+            input: Default::default(),
         })
     }
 

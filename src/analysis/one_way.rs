@@ -183,6 +183,7 @@ impl Engine<'_> {
             dose: dose.map(Box::new),
             friedman: None,
             equivalence: equivalence.map(Box::new),
+            input: sample.input.clone(),
         })
     }
 

@@ -9,7 +9,9 @@ pub mod levels;
 pub mod reader;
 pub mod scan;
 pub mod spreadsheet;
+pub mod summary_cells;
 pub mod transform;
+pub mod wide_decimal;
 
 use decimal::{Number, parse_number};
 
@@ -319,6 +321,14 @@ pub struct SummaryColumns {
     pub spread: String,
     /// The spread column holds standard errors (SD = SE·√n), not SDs.
     pub spread_is_se: bool,
+    /// The exact-sums form (see `summary_cells`): Σ(y − origin),
+    /// Σ(y − origin)², the origin, and the optional count of values the
+    /// query rounded. The form is chosen when the header has `sum` and
+    /// `squares`.
+    pub sum: String,
+    pub squares: String,
+    pub origin: String,
+    pub rounded: String,
 }
 
 /// One level of a summary table.
@@ -354,30 +364,8 @@ pub fn summary_rows(
     let mi = table.column(&columns.mean)?;
     let si = table.column(&columns.spread)?;
     table.check_cells(&[li, ni, mi, si])?;
-    let read = |row: &csv::Record, i: usize, what: &str| -> Result<Number, DataError> {
-        let raw = row.fields[i].trim();
-        let text = if format.decimal_comma {
-            raw.replace(',', ".")
-        } else {
-            raw.to_string()
-        };
-        let number = parse_number(&text)
-            .filter(|n| n.to_f64().is_finite())
-            .ok_or_else(|| DataError {
-                line: Some(row.line),
-                column: Some(i + 1),
-                message: format!("the {what} must be a number, found `{raw}`"),
-                hint: Some("a summary table needs a value in every cell: one row per level".into()),
-            })?;
-        if let Some(why) = decimal::beyond_range(&text, number) {
-            return Err(DataError {
-                line: Some(row.line),
-                column: Some(i + 1),
-                message: format!("the {what} `{raw}` cannot be analysed: {why}"),
-                hint: Some("rescale the column (e.g. write it in other units)".into()),
-            });
-        }
-        Ok(number)
+    let read = |row: &csv::Record, i: usize, what: &str| {
+        summary_cells::summary_number(row, i, what, format)
     };
     let mut rows: Vec<SummaryRow> = Vec::with_capacity(table.rows.len());
     for row in &table.rows {
@@ -397,33 +385,7 @@ pub fn summary_rows(
                 )),
             );
         }
-        let n = read(row, ni, "n")?.to_f64();
-        if n > MAX_SUMMARY_N {
-            return Err(DataError {
-                column: Some(ni + 1),
-                ..DataError::at(
-                    row.line,
-                    format!(
-                        "n = {} is beyond the {} observations a summary row may count",
-                        row.fields[ni].trim(),
-                        MAX_SUMMARY_N
-                    ),
-                )
-            }
-            .hint("check the n column: it holds the number of observations behind each mean"));
-        }
-        if n.fract() != 0.0 || n < 1.0 {
-            return Err(DataError {
-                column: Some(ni + 1),
-                ..DataError::at(
-                    row.line,
-                    format!(
-                        "n must be a whole number of at least 1, found `{}`",
-                        row.fields[ni].trim()
-                    ),
-                )
-            });
-        }
+        let n = summary_cells::summary_count(row, ni, format)?;
         let mean_exact = read(row, mi, "mean")?;
         let (mean, mean_decimals) = (mean_exact.to_f64(), mean_exact.decimals());
         let spread_number = read(row, si, "spread (SD or SE)")?;
@@ -436,7 +398,7 @@ pub fn summary_rows(
         }
         rows.push(SummaryRow {
             level,
-            n: n as usize,
+            n,
             mean,
             mean_exact,
             spread,

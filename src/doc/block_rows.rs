@@ -78,10 +78,15 @@ pub(super) fn default_summary_columns() -> SummaryColumns {
         mean: "mean".into(),
         spread: "sd".into(),
         spread_is_se: false,
+        sum: "sum".into(),
+        squares: "squares".into(),
+        origin: "origin".into(),
+        rounded: "rounded".into(),
     }
 }
 
-/// Reads `columns: n = plots, mean = yield, sd = sd_yield` (or `se = …`).
+/// Reads `columns: n = plots, mean = yield, sd = sd_yield` (or `se = …`),
+/// or the exact-sums names `sum = …, squares = …, origin = …, rounded = …`.
 pub(super) fn read_columns(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
     let mut c = default_summary_columns();
     for part in list(&e.value) {
@@ -104,11 +109,15 @@ pub(super) fn read_columns(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecErro
                 c.spread = column;
                 c.spread_is_se = true;
             }
+            "sum" => c.sum = column,
+            "squares" => c.squares = column,
+            "origin" => c.origin = column,
+            "rounded" => c.rounded = column,
             other => {
                 return Err(bad(
                     e,
                     format!("unknown summary column `{other}`"),
-                    "name the columns for n, mean, and sd (or se)",
+                    "name the columns for n, mean, and sd (or se); or, for exact sums, n, origin, sum, squares and rounded",
                 ));
             }
         }

@@ -298,6 +298,22 @@ pub struct LinearOutcome {
     /// Equivalence of each level with the control (`margin`).
     #[serde(default)]
     pub equivalence: Option<Box<super::equivalence::EquivalenceDetail>>,
+    /// Whether the data were observations or summaries.
+    #[serde(default)]
+    pub input: InputForm,
+}
+
+/// What the data file of a block held.
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
+pub enum InputForm {
+    /// One row per observation.
+    #[default]
+    Observations,
+    /// One row per level or cell: n, mean and SD (or SE).
+    Summaries,
+    /// One row per level or cell: n and the exact sums Σ(y − origin) and
+    /// Σ(y − origin)², taken from this origin (an exact decimal).
+    ExactSums { origin: String },
 }
 
 impl LinearOutcome {

@@ -6,11 +6,13 @@ use crate::analysis::binding::formula_text;
 use crate::analysis::binding::{Data, data_error, design_order, read_rows, scan_csv, streams};
 use crate::data::decimal::Number;
 use crate::data::scan::{ScanSpec, Scanned, ScannedLevel, scan_table};
+use crate::data::summary_cells::{is_exact_form, summary_cells};
 use crate::data::transform::transform_scanned;
 use crate::data::{DataError, Exclusion, SummaryColumns, SummaryRow, Table, summary_rows};
 use crate::diag::Diagnostic;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus, PlotKind};
 use crate::doc::{Block, Document};
+use crate::outcome::linear::InputForm;
 use crate::provenance::Input;
 use crate::stats::oneway::{GroupSummary, one_way};
 
@@ -33,6 +35,8 @@ pub(super) struct Sample {
     /// With `transform`: each level's arithmetic mean on the data's scale
     /// (the summaries and offsets are on the analysis scale).
     pub(super) arithmetic: Vec<f64>,
+    /// Observations, published summaries, or exact sums.
+    pub(super) input: InputForm,
 }
 
 /// Raw observations per level: offsets from the origin and their data lines.
@@ -196,6 +200,7 @@ impl Reading<'_> {
             empty,
             rounding: None,
             arithmetic: Vec::new(),
+            input: InputForm::Observations,
         })
     }
 
@@ -238,6 +243,9 @@ impl Reading<'_> {
         columns: &SummaryColumns,
     ) -> Result<Sample, Diagnostic> {
         let (doc, spec) = (self.doc, self.spec);
+        if is_exact_form(table, columns) {
+            return self.levels_of_exact_sums(table, columns);
+        }
         let rows = summary_rows(table, self.factor, columns, &spec.csv)
             .map_err(|e| data_error(doc, self.block, spec.data.line, self.display_path, e))?;
         let found: Vec<&str> = rows.iter().map(|r| r.level.as_str()).collect();
@@ -263,6 +271,51 @@ impl Reading<'_> {
             decimals: decimals.saturating_sub(1),
             excluded: Vec::new(),
             empty: Vec::new(),
+            input: InputForm::Summaries,
+        })
+    }
+
+    /// The levels of a table of exact sums, in design order: each level's
+    /// mean and sum of squares come exact from its sums, so no rounding
+    /// range applies.
+    fn levels_of_exact_sums(
+        &self,
+        table: &Table,
+        columns: &SummaryColumns,
+    ) -> Result<Sample, Diagnostic> {
+        let (doc, spec) = (self.doc, self.spec);
+        let read = summary_cells(table, &[self.factor], columns, &spec.csv)
+            .map_err(|e| data_error(doc, self.block, spec.data.line, self.display_path, e))?;
+        let found: Vec<&str> = read.cells.iter().map(|c| c.levels[0].as_str()).collect();
+        let order = design_order(doc, spec, &found, self.factor, &spec.data.value)?;
+        let names: Vec<String> = order.iter().map(|&i| found[i].to_string()).collect();
+        if names.len() < 2 {
+            return Err(self.too_few_levels(&names));
+        }
+        let summaries = order
+            .iter()
+            .map(|&i| {
+                let c = &read.cells[i];
+                GroupSummary {
+                    n: c.n,
+                    mean: c.mean,
+                    ss: c.ss,
+                }
+            })
+            .collect();
+        Ok(Sample {
+            names,
+            summaries,
+            raw: None,
+            origin: read.origin,
+            decimals: read.decimals,
+            excluded: Vec::new(),
+            empty: Vec::new(),
+            rounding: None,
+            arithmetic: Vec::new(),
+            input: InputForm::ExactSums {
+                origin: read.exact_origin.unwrap_or_default(),
+            },
         })
     }
 }
