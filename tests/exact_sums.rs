@@ -115,3 +115,50 @@ fn nist_exact_sums_meet_the_certified_values() {
     }
     println!("lowest LRE over the exact-sums tables: {worst:.1}");
 }
+
+/// `columns:` renames the exact-sums columns; the form is chosen by the
+/// renamed `sum` and `squares`. Levels a (10.1, 10.3) and b (10.6, 10.8)
+/// summed from origin 10 by hand: sums 0.4 and 1.4, squares 0.10 and 1.00;
+/// means 10.2 and 10.7, within SS 0.02 + 0.02 = 0.04.
+#[test]
+fn renamed_columns_choose_the_exact_form() {
+    let csv = "level,count,o,s,q,r\na,2,10,0.4,0.10,0\nb,2,10,1.4,1.00,0\n".to_string();
+    let block = run(
+        csv,
+        "columns: n = count, origin = o, sum = s, squares = q, rounded = r\n",
+    );
+    assert_eq!(block["input"], "exact sums");
+    assert_eq!(block["origin"], "10");
+    let means: Vec<f64> = block["groups"]
+        .as_array()
+        .expect("groups")
+        .iter()
+        .map(|g| num(&g["mean"]))
+        .collect();
+    // Means and SS are the doubles nearest the exact values (one rounding).
+    assert_eq!(means, vec![10.2, 10.7]);
+    assert!((num(&block["anova"]["residual"]["ss"]) - 0.04).abs() < 1e-15);
+}
+
+/// A query that had to round values says so in `rounded`; the table is
+/// refused with the count.
+#[test]
+fn rounded_values_are_refused() {
+    let csv = "level,n,origin,sum,squares,rounded\na,2,10,0.4,0.10,2\nb,2,10,1.4,1.00,1\n";
+    let doc = "```anova\nid: t\ndata: s.csv\nmodel: value ~ level\ninput: summary\n```\n";
+    let err = compile(
+        "report.md",
+        doc.as_bytes(),
+        &Memory(csv.to_string()),
+        Format::Markdown,
+    )
+    .err()
+    .expect("refused")
+    .to_string();
+    assert!(
+        err.contains(
+            "3 values had more decimals than the query kept; regenerate with more decimals"
+        ),
+        "{err}"
+    );
+}

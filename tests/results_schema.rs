@@ -2294,6 +2294,55 @@ mod the_contract_bites {
         value.as_object_mut().expect("an object")
     }
 
+    struct Memory(&'static str);
+
+    impl sheaf::compile::World for Memory {
+        fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
+            match path {
+                "s.csv" => Ok(self.0.as_bytes().to_vec()),
+                _ => Err(std::io::Error::from(std::io::ErrorKind::NotFound)),
+            }
+        }
+        fn display(&self, path: &str) -> String {
+            path.to_string()
+        }
+    }
+
+    /// Summary input (README "input: summary") records `input`, and `origin` for exact sums
+    /// only; the records read into the contract and keep its invariants.
+    #[test]
+    fn summary_records_say_what_the_input_was() {
+        let exact = "a,b,n,origin,sum,squares\nx,p,2,10.5,1.0,0.52\nx,q,2,10.5,0.4,0.1\ny,p,2,10.5,-0.2,0.1\ny,q,2,10.5,2.0,2.02\n";
+        let published =
+            "a,b,n,mean,sd\nx,p,2,11,0.1\nx,q,2,10.7,0.2\ny,p,2,10.4,0.2\ny,q,2,11.5,0.1\n";
+        for (csv, input, origin) in [
+            (exact, InputKind::ExactSums, Some("10.5")),
+            (published, InputKind::Summaries, None),
+        ] {
+            let doc = "```anova\nid: s\ndata: s.csv\nmodel: y ~ a + b\ninput: summary\ncompare: tukey\n```\n";
+            let built = sheaf::compile::compile(
+                "report.md",
+                doc.as_bytes(),
+                &Memory(csv),
+                sheaf::render::Format::Markdown,
+            )
+            .expect("builds");
+            let text = String::from_utf8(built.results).expect("UTF-8");
+            let results = read_results("summary.results.json", &text).expect("reads");
+            let Block::Anova(block) = &results.blocks[0] else {
+                panic!("an anova record");
+            };
+            assert_eq!(block.input, input);
+            assert_eq!(block.origin.as_deref(), origin);
+            let mut p = Problems {
+                file: "summary.results.json".into(),
+                list: Vec::new(),
+            };
+            check_anova(&mut p, "blocks[0]", block);
+            assert!(p.list.is_empty(), "{}", p.list.join("\n"));
+        }
+    }
+
     #[test]
     fn the_unchanged_copy_reads() {
         let text = serde_json::to_string(&golden_value("plant-growth")).expect("JSON");

@@ -64,11 +64,15 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         streamed,
         centred,
         arithmetic,
+        input,
     } = read::read_with_covariates(&errors, block, (request.data, request.display_path), &model)?;
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
     errors.two_levels_each(&model.factor_names, &levels)?;
     if let Some(c) = &centred {
-        c.check_varies(&data, &errors)?;
+        let observed = data
+            .observed()
+            .ok_or_else(|| errors.internal(block, "covariates without the observations"))?;
+        c.check_varies(observed, &errors)?;
     }
     // `method: ranks` with a block: Friedman's test, on the complete table.
     let ranked = match spec.method {
@@ -88,7 +92,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     let fitted = Fitted::new(&data, &model, &levels, centred.as_ref(), &errors)?;
     let chosen = table::choose(&fitted, &model, &empty, &errors)?;
     let alpha = spec.alpha.unwrap_or(doc.front.alpha);
-    let rows = table::term_rows(&chosen.table, &model, &fitted, alpha, data.offsets.len());
+    let rows = table::term_rows(&chosen.table, &model, &fitted, alpha, data.n());
     notes.extend(design_notes::design_notes(
         &data,
         &model,
@@ -97,9 +101,9 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         fitted.rank_deficient,
         (&spec.data.value, errors.reused.as_ref()),
     ));
-    let treatment = TreatmentCells::new(&data, model.treatment_factors(), &levels);
+    let treatment = TreatmentCells::new(&data.cells, model.treatment_factors(), &levels);
     let analysed = Analysed {
-        cells: treatment.rows(&data),
+        cells: treatment.rows(data.source(), data.origin),
         treatment,
         residuals: Residuals::new(&data, &fitted),
         data,
@@ -121,11 +125,12 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         alpha,
     };
     let (contrasts, trend) = (planning.contrasts()?, planning.trend()?);
-    let covariates = centred.map(|c| {
-        let detail = analysed.covariate_detail(&c, &families);
-        notes.extend(covariate_notes::notes(&detail, alpha));
-        Box::new(detail)
-    });
+    let covariates = centred
+        .and_then(|c| analysed.covariate_detail(&c, &families))
+        .map(|detail| {
+            notes.extend(covariate_notes::notes(&detail, alpha));
+            Box::new(detail)
+        });
     let transform = analysed.transform_detail(doc, spec, arithmetic, &families, &mut notes)?;
     let analysed_ranked = analysed.ranked.clone();
     let mut outcome = analysed.into_result(block, spec, checks, families, notes, doc);
@@ -134,6 +139,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
     outcome.contrasts = contrasts.map(Box::new);
     outcome.trend = trend.map(Box::new);
     outcome.friedman = analysed_ranked.map(Box::new);
+    outcome.input = input;
     Ok((outcome, streamed))
 }
 
@@ -160,9 +166,10 @@ fn scale_decimals(spec: &AnovaSpec, data: &FactorialData) -> u32 {
     let Some(t) = &spec.transform else {
         return data.decimals;
     };
+    let cells = &data.cell_summaries;
     let mean_z = data.origin
-        + crate::stats::sum::neumaier(data.offsets.iter().copied())
-            / data.offsets.len().max(1) as f64;
+        + crate::stats::sum::neumaier(cells.iter().map(|c| c.n as f64 * c.mean))
+            / data.n().max(1) as f64;
     super::transformation::scale_decimals(&t.value, t.value.back(mean_z), data.decimals)
 }
 
@@ -180,23 +187,23 @@ impl Analysed {
         if spec.transform.is_none() && !spec.box_cox {
             return Ok(None);
         }
-        let box_cox = match spec.box_cox && !self.fitted.per_observation {
-            true => {
-                let y: Vec<f64> = self
-                    .data
-                    .offsets
-                    .iter()
+        let box_cox = match (
+            spec.box_cox && !self.fitted.per_observation,
+            self.data.observed(),
+        ) {
+            (true, Some(observed)) => {
+                let y: Vec<f64> = (observed.offsets.iter())
                     .map(|d| self.data.origin + d)
                     .collect();
                 let model = super::transformation::CellModel {
-                    cell_of: &self.data.cell_of,
+                    cell_of: observed.cell_of,
                     cells: self.data.cells.len(),
                     design: Some(&self.fitted.unweighted),
                 };
-                let line = |i: usize| self.data.lines[i];
+                let line = |i: usize| observed.lines[i];
                 Some(model.box_cox((doc, spec), &y, line, self.alpha)?)
             }
-            false => None,
+            _ => None,
         };
         let arithmetic = (self.model.factor_names.iter())
             .zip(arithmetic)
@@ -215,19 +222,23 @@ impl Analysed {
         Ok(Some(detail))
     }
 
-    /// Slopes, the balance check and the test of equal slopes.
-    fn covariate_detail(&self, centred: &Centred, families: &[Family]) -> CovariateDetail {
-        covariates::Adjusting {
+    /// Slopes, the balance check and the test of equal slopes (which need
+    /// the observations).
+    fn covariate_detail(&self, centred: &Centred, families: &[Family]) -> Option<CovariateDetail> {
+        let observed = self.data.observed()?;
+        let detail = covariates::Adjusting {
             data: &self.data,
+            observed,
             model: &self.model,
             levels: &self.levels,
             fitted: &self.fitted,
             centred,
             treatment: &self.treatment,
             alpha: self.alpha,
-            groups: covariates::groups(&self.data, &self.treatment),
+            groups: covariates::groups((&self.data, observed), &self.treatment),
         }
-        .detail(families)
+        .detail(families);
+        Some(detail)
     }
 
     /// The checks with their advice, then the comparison families.
@@ -240,7 +251,7 @@ impl Analysed {
         let (mut checks, spread_note) = checks::checks(
             spec,
             &checks::Fit {
-                data: &self.data,
+                data: self.data.source(),
                 residuals: &self.residuals.values,
                 cells: &self.treatment,
                 factor_names: &self.model.factor_names,
@@ -306,7 +317,8 @@ impl Analysed {
     ) -> LinearOutcome {
         let data = self.data;
         let decimals = decimals_shown(doc, spec, scale_decimals(spec, &data));
-        let total_ss = GroupSummary::from_values(&data.offsets).ss;
+        let total_ss = total_ss(&data);
+        let n = data.n();
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         let fitted = self.fitted;
         let residual = Stratum {
@@ -352,7 +364,7 @@ impl Analysed {
             query: spec.query.as_ref().map(|q| q.value.clone()),
             response: spec.model.value.response.clone(),
             alpha: self.alpha,
-            n: data.offsets.len(),
+            n,
             exclusions: data.excluded,
             method: spec.method,
             ss_type: Some(self.chosen.ss_type),
@@ -361,7 +373,7 @@ impl Analysed {
             r_squared: 1.0 - residual.ss / total_ss,
             strata: vec![residual],
             terms: self.rows,
-            total_df: data.offsets.len().saturating_sub(1),
+            total_df: n.saturating_sub(1),
             total_ss,
             levels: Vec::new(),
             ci_pooled: true,
@@ -396,14 +408,18 @@ impl Analysed {
 /// them; without figures the outcome (and the cache entry) stays small
 /// whatever the number of rows.
 fn observations(spec: &AnovaSpec, data: &FactorialData, residuals: &[f64]) -> Vec<Observation> {
+    let Some(observed) = data.observed() else {
+        return Vec::new();
+    };
     if spec.plots.kinds.is_empty() {
         return Vec::new();
     }
-    data.offsets
+    observed
+        .offsets
         .iter()
         .zip(residuals)
-        .zip(data.rows())
-        .zip(&data.lines)
+        .zip(observed.rows())
+        .zip(observed.lines)
         .map(|(((y, e), levels), &line)| Observation {
             levels,
             value: data.origin + y,
@@ -412,4 +428,20 @@ fn observations(spec: &AnovaSpec, data: &FactorialData, residuals: &[f64]) -> Ve
             line,
         })
         .collect()
+}
+
+/// The total sum of squares about the grand mean: from the observations
+/// where there are any, else from the cells (within plus between).
+fn total_ss(data: &FactorialData) -> f64 {
+    if let Some(observed) = data.observed() {
+        return GroupSummary::from_values(observed.offsets).ss;
+    }
+    let cells = &data.cell_summaries;
+    let n = data.n() as f64;
+    let grand = crate::stats::sum::neumaier(cells.iter().map(|c| c.n as f64 * c.mean)) / n;
+    crate::stats::sum::neumaier(
+        cells
+            .iter()
+            .map(|c| c.ss + c.n as f64 * (c.mean - grand) * (c.mean - grand)),
+    )
 }

@@ -24,12 +24,13 @@ mod units;
 use super::binding::decimals_shown;
 use super::checks::{Remedies, advice};
 use super::factorial::cells::TreatmentCells;
+use super::factorial::checks::Source;
 use super::factorial::model::{Errors, Model};
 use super::factorial::read::read_observations;
 use super::notes::{Note, split_acknowledged};
 use super::observed::{FactorialLayout, PooledError};
 use super::request::{Analysis, Request};
-use crate::data::FactorialData;
+use crate::data::FactorialRows;
 use crate::diag::Diagnostic;
 use crate::doc::block::{CellComparison, DdfMethod, Omnibus};
 use crate::outcome::ResidualKind;
@@ -134,7 +135,7 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
 fn repeated_reading(
     errors: &Errors<'_>,
     names: &[String],
-    data: &FactorialData,
+    data: &FactorialRows,
     model: &Model,
     design: &FixedDesign,
 ) -> Result<RepeatedReading, Diagnostic> {
@@ -192,7 +193,7 @@ struct Analysed {
     alpha: f64,
     ddf: Ddf,
     random_names: Vec<String>,
-    data: FactorialData,
+    data: FactorialRows,
     model: Model,
     layout: Layout,
     design: FixedDesign,
@@ -255,6 +256,14 @@ impl Analysed {
     }
 
     /// The outcome of the block.
+    /// The residual variance component; none for structured covariances.
+    fn residual_variance(&self) -> f64 {
+        match &self.structured {
+            Some(_) => f64::NAN,
+            None => self.fit.components.last().map_or(f64::NAN, |c| c.variance),
+        }
+    }
+
     fn outcome(
         self,
         errors: &Errors<'_>,
@@ -270,11 +279,7 @@ impl Analysed {
             classical: classical.as_ref().ok(),
             random_names: &self.random_names,
         };
-        let residual_variance = match &self.structured {
-            Some(_) => f64::NAN,
-            None => self.fit.components.last().map_or(f64::NAN, |c| c.variance),
-        };
-        let strata = tested.strata(residual_variance);
+        let strata = tested.strata(self.residual_variance());
         let terms: Vec<_> = self
             .model
             .terms
@@ -288,7 +293,7 @@ impl Analysed {
         let (families, cell_letters) = self.families(errors, &terms)?;
         let data = &self.data;
         let treatments = self.model.treatment_factors();
-        let cells = TreatmentCells::new(data, treatments.clone(), &levels_of(data));
+        let cells = TreatmentCells::new(&data.cells, treatments.clone(), &levels_of(data));
         let (checks, spread_note) = self.checked(spec, &cells);
         let mut notes = match &self.structured {
             Some(s) => structured::notes(&s.detail, spec.ddf),
@@ -322,7 +327,7 @@ impl Analysed {
         detail.cell_letters = cell_letters;
         let repeated = self.repeated_detail(spec);
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
-        let cells = cells.rows(data);
+        let cells = cells.rows(Source::Observed(data.observed()), data.origin);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
         let observations = self.observations(spec);
         Ok(LinearOutcome {
@@ -657,6 +662,6 @@ impl Analysed {
 }
 
 /// Levels of every factor of the data (fixed and random-only).
-fn levels_of(data: &FactorialData) -> Vec<usize> {
+fn levels_of(data: &FactorialRows) -> Vec<usize> {
     data.levels.iter().map(Vec::len).collect()
 }

@@ -4,7 +4,7 @@
 //! read as an exact decimal and the factor cells are rebuilt without them.
 
 use super::decimal::{Number, parse_number, parse_plain};
-use super::{DataError, FactorialData};
+use super::{DataError, FactorialRows};
 
 /// The covariates of the analysed rows, each value as an offset from the
 /// column's first value (exact decimal subtraction, as for the response).
@@ -43,10 +43,10 @@ fn offset(value: Number, origin: Number) -> f64 {
 /// covariates: each of their levels must be a number. The remaining
 /// factors keep their levels; their cells are rebuilt over them alone.
 pub fn split_covariates(
-    data: FactorialData,
+    data: FactorialRows,
     names: &[&str],
     decimal_comma: bool,
-) -> Result<(FactorialData, Covariates), DataError> {
+) -> Result<(FactorialRows, Covariates), DataError> {
     let factors = data.levels.len() - names.len();
     let mut values = vec![Vec::with_capacity(data.offsets.len()); names.len()];
     let mut origins: Vec<Option<Number>> = vec![None; names.len()];
@@ -93,7 +93,7 @@ pub fn split_covariates(
 
 /// The data with only the first `factors` factors: cells merged where they
 /// differed only in a covariate, in order of first appearance.
-fn without_covariate_columns(mut data: FactorialData, factors: usize) -> FactorialData {
+fn without_covariate_columns(mut data: FactorialRows, factors: usize) -> FactorialRows {
     let mut cells: Vec<Vec<usize>> = Vec::new();
     let mut index: std::collections::BTreeMap<Vec<usize>, usize> = Default::default();
     let old_to_new: Vec<usize> = data

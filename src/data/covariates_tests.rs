@@ -1,7 +1,7 @@
 use super::split_covariates;
 use crate::data::{CsvFormat, factorial_response, read_table};
 
-fn read(csv: &str) -> crate::data::FactorialData {
+fn read(csv: &str) -> crate::data::FactorialRows {
     let format = CsvFormat::default();
     let table = read_table("d.csv", csv.as_bytes(), &format, None, None).expect("csv");
     factorial_response(&table, "y", &["g", "x"], &format).expect("columns")

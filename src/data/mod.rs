@@ -13,6 +13,7 @@ pub mod summary_cells;
 pub mod transform;
 pub mod wide_decimal;
 
+use crate::stats::oneway::GroupSummary;
 use decimal::{Number, parse_number};
 
 /// How a CSV file is written.
@@ -413,9 +414,11 @@ pub fn summary_rows(
 
 /// A response with several crossed factors, one row per observation. Rows
 /// with the same levels share one entry of `cells`, so a row costs one
-/// index, one value and one line however many factors there are.
+/// index, one value and one line however many factors there are. The
+/// engines that need every observation (mixed models, covariates,
+/// transformations) read this; the factorial fit reads [`FactorialData`].
 #[derive(Debug, Clone, PartialEq)]
-pub struct FactorialData {
+pub struct FactorialRows {
     /// Per factor, its levels in order of first appearance.
     pub levels: Vec<Vec<String>>,
     /// The distinct combinations of level indices (full cells), in order of
@@ -432,7 +435,17 @@ pub struct FactorialData {
     pub excluded: Vec<Exclusion>,
 }
 
-impl FactorialData {
+impl FactorialRows {
+    /// The observations with their cells, borrowed.
+    pub fn observed(&self) -> Observed<'_> {
+        Observed {
+            cells: &self.cells,
+            cell_of: &self.cell_of,
+            offsets: &self.offsets,
+            lines: &self.lines,
+        }
+    }
+
     /// Observation i's level index for each factor.
     pub fn row(&self, i: usize) -> &[usize] {
         &self.cells[self.cell_of[i]]
@@ -447,6 +460,148 @@ impl FactorialData {
     }
 }
 
+/// A response with several crossed factors as its cells: each full cell's
+/// n, mean and within-cell sum of squares are the core, enough for the
+/// fit, every table of sums of squares, the marginal and cell means and
+/// their comparisons. The observations themselves are kept when the data
+/// had them and something needs them (residual checks, figures); summary
+/// input has none.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FactorialData {
+    /// Per factor, its levels in order of first appearance.
+    pub levels: Vec<Vec<String>>,
+    /// The distinct combinations of level indices (full cells), in order of
+    /// first appearance.
+    pub cells: Vec<Vec<usize>>,
+    /// Per full cell: n, the mean as an offset from `origin`, and the
+    /// within-cell sum of squares.
+    pub cell_summaries: Vec<GroupSummary>,
+    /// Per full cell, the data line where it first appears.
+    pub cell_lines: Vec<usize>,
+    /// The observations; `None` for summary input.
+    pub observations: Option<ObservationColumns>,
+    pub origin: f64,
+    pub decimals: u32,
+    pub excluded: Vec<Exclusion>,
+}
+
+/// Per observation: its cell, its offset from the origin, its data line.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ObservationColumns {
+    pub cell_of: Vec<usize>,
+    pub offsets: Vec<f64>,
+    pub lines: Vec<usize>,
+}
+
+/// The observations of a [`FactorialData`] with its cells, borrowed.
+#[derive(Debug, Clone, Copy)]
+pub struct Observed<'a> {
+    pub cells: &'a [Vec<usize>],
+    pub cell_of: &'a [usize],
+    pub offsets: &'a [f64],
+    pub lines: &'a [usize],
+}
+
+impl Observed<'_> {
+    /// Observation i's level index for each factor.
+    pub fn row(&self, i: usize) -> &[usize] {
+        &self.cells[self.cell_of[i]]
+    }
+
+    /// Every observation's levels, one vector each (for small layouts).
+    pub fn rows(&self) -> Vec<Vec<usize>> {
+        self.cell_of
+            .iter()
+            .map(|&c| self.cells[c].clone())
+            .collect()
+    }
+}
+
+impl FactorialData {
+    /// The number of observations.
+    pub fn n(&self) -> usize {
+        self.cell_summaries.iter().map(|c| c.n).sum()
+    }
+
+    /// The observations, when the data had them.
+    pub fn observed(&self) -> Option<Observed<'_>> {
+        self.observations.as_ref().map(|o| Observed {
+            cells: &self.cells,
+            cell_of: &o.cell_of,
+            offsets: &o.offsets,
+            lines: &o.lines,
+        })
+    }
+
+    /// The cells of observations read one by one, keeping them.
+    pub fn from_rows(rows: FactorialRows) -> FactorialData {
+        let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); rows.cells.len()];
+        let mut cell_lines = vec![usize::MAX; rows.cells.len()];
+        for ((&c, &y), &line) in rows.cell_of.iter().zip(&rows.offsets).zip(&rows.lines) {
+            by_cell[c].push(y);
+            cell_lines[c] = cell_lines[c].min(line);
+        }
+        FactorialData {
+            cell_summaries: by_cell
+                .iter()
+                .map(|v| GroupSummary::from_values(v))
+                .collect(),
+            cell_lines,
+            levels: rows.levels,
+            cells: rows.cells,
+            observations: Some(ObservationColumns {
+                cell_of: rows.cell_of,
+                offsets: rows.offsets,
+                lines: rows.lines,
+            }),
+            origin: rows.origin,
+            decimals: rows.decimals,
+            excluded: rows.excluded,
+        }
+    }
+
+    /// The cells of a summary table (one row per cell, each naming its
+    /// level in every factor), with levels in order of first appearance.
+    pub fn from_summaries(read: summary_cells::SummaryCells, factors: usize) -> FactorialData {
+        let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors];
+        let cells = read
+            .cells
+            .iter()
+            .map(|c| {
+                c.levels
+                    .iter()
+                    .zip(levels.iter_mut())
+                    .map(|(name, known)| match known.iter().position(|l| l == name) {
+                        Some(i) => i,
+                        None => {
+                            known.push(name.clone());
+                            known.len() - 1
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        FactorialData {
+            levels,
+            cells,
+            cell_summaries: read
+                .cells
+                .iter()
+                .map(|c| GroupSummary {
+                    n: c.n,
+                    mean: c.mean,
+                    ss: c.ss,
+                })
+                .collect(),
+            cell_lines: read.cells.iter().map(|c| c.line).collect(),
+            observations: None,
+            origin: read.origin,
+            decimals: read.decimals,
+            excluded: Vec::new(),
+        }
+    }
+}
+
 /// Extracts `response` and several factor columns; a row missing any of
 /// them is left out and recorded. The same per-row rules as the chunked
 /// reader, which this calls with the table's rows as one chunk.
@@ -455,7 +610,7 @@ pub fn factorial_response(
     response: &str,
     factors: &[&str],
     format: &CsvFormat,
-) -> Result<FactorialData, DataError> {
+) -> Result<FactorialRows, DataError> {
     let scanned = scan::scan_table(table, response, factors, format)?;
     Ok(factorial_from_scan(scanned, factors.len()))
 }
@@ -464,7 +619,7 @@ pub fn factorial_response(
 /// `scan::cell_key`) into one row per observation, in file order. Each
 /// factor's levels come in order of first appearance among the rows with a
 /// response, as `factorial_response` orders them.
-pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialData {
+pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialRows {
     let mut cells: Vec<&scan::ScannedLevel> = scanned
         .levels
         .iter()
@@ -514,7 +669,7 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialD
             heap.push(std::cmp::Reverse((following, k)));
         }
     }
-    FactorialData {
+    FactorialRows {
         levels,
         cells: cell_rows,
         cell_of,

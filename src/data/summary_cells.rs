@@ -77,19 +77,27 @@ impl<'a> CellKeys<'a> {
         })
     }
 
-    fn levels(&mut self, row: &csv::Record) -> Result<Vec<String>, DataError> {
+    /// A row's levels; an empty cell or a missing-value marker is refused
+    /// (a summary row without its level cannot be placed).
+    fn levels(&mut self, row: &csv::Record, format: &CsvFormat) -> Result<Vec<String>, DataError> {
         let mut levels = Vec::with_capacity(self.columns.len());
         for (&i, factor) in self.columns.iter().zip(self.factors) {
             let level = row.fields[i].trim();
-            if level.is_empty() {
+            let missing = format.missing.iter().any(|m| m.eq_ignore_ascii_case(level));
+            if level.is_empty() || missing {
                 let hint = if self.factors.len() == 1 {
                     "name the level of each summary row"
                 } else {
                     "a summary row names its cell's level in every factor column"
                 };
+                let what = if level.is_empty() {
+                    "is empty".to_string()
+                } else {
+                    format!("holds the missing-value marker `{level}`")
+                };
                 return Err(DataError {
                     column: Some(i + 1),
-                    ..DataError::at(row.line, format!("`{factor}` is empty"))
+                    ..DataError::at(row.line, format!("`{factor}` {what}"))
                 }
                 .hint(hint));
             }
@@ -194,7 +202,7 @@ fn published_cells(
     let mut cells = Vec::with_capacity(table.rows.len());
     let mut decimals = 0;
     for row in &table.rows {
-        let levels = keys.levels(row)?;
+        let levels = keys.levels(row, format)?;
         let n = summary_count(row, ni, format)?;
         let mean_exact = summary_number(row, mi, "mean", format)?;
         decimals = decimals.max(mean_exact.decimals());
@@ -287,7 +295,7 @@ fn exact_cells(
     let mut decimals = 0;
     let mut read = Vec::with_capacity(table.rows.len());
     for row in &table.rows {
-        let levels = keys.levels(row)?;
+        let levels = keys.levels(row, format)?;
         let n = summary_count(row, ni, format)?;
         let o = wide(row, oi, &columns.origin, format)?;
         match &origin {

@@ -100,6 +100,11 @@ fn published_cells_refuse_bad_rows() {
     let cases = [
         ("a,b,n,mean,sd\nx,,3,10.5,1.5\n", 2, "`b` is empty"),
         (
+            "a,b,n,mean,sd\nNA,p,3,10.5,1.5\n",
+            2,
+            "`a` holds the missing-value marker `NA`",
+        ),
+        (
             "a,b,n,mean,sd\nx,p,3,10.5,1.5\nx,p,2,1,1\n",
             3,
             "cell x × p appears twice",

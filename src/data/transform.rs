@@ -114,7 +114,7 @@ fn domain_error(
 /// Transforms every observation of a factorial layout in place and returns,
 /// per factor and level, the arithmetic mean on the data's scale.
 pub fn transform_factorial(
-    data: &mut super::FactorialData,
+    data: &mut super::FactorialRows,
     t: &Declared,
     response: &str,
 ) -> Result<Vec<Vec<f64>>, DataError> {

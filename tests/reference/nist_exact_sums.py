@@ -10,8 +10,10 @@ Origins: the first observation of the file (what a query taking any data
 value gives), 0 (no shift at all), and the first observation plus 0.05 (a
 decimal that is no data value). SiRstv, SmLs01 and AtmWtAg appear again
 with the data shifted by exactly 10^j, j = 0, 4, 8, 12, origin the shifted
-first observation. Also written: the exact difference of the second
-level's mean from the first's, to check pairwise differences.
+first observation. Also written: the difference of the second level's
+mean from the first's, to check pairwise differences (exact where it
+terminates within 40 decimals, else the double nearest the exact
+fraction).
 
 Run from the repository root with any Python 3 (standard library only):
 

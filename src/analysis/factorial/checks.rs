@@ -3,17 +3,18 @@
 //! levels), shape, outliers. The factorial engine gives its residuals, the
 //! mixed-model engine its conditional residuals.
 
+pub(in crate::analysis) use super::cells::Source;
 use super::cells::TreatmentCells;
 use crate::analysis::checks::{summary_checks, with_residuals, with_spread_tests};
 use crate::analysis::notes::Note;
-use crate::data::FactorialData;
+use crate::data::Observed;
 use crate::doc::block::{AnovaSpec, CheckSet};
 use crate::outcome::{Checks, OutlierRow};
 use crate::stats::oneway::GroupSummary;
 
 /// What the checks read.
 pub(in crate::analysis) struct Fit<'a> {
-    pub data: &'a FactorialData,
+    pub data: Source<'a>,
     /// One residual per observation.
     pub residuals: &'a [f64],
     pub cells: &'a TreatmentCells,
@@ -41,11 +42,15 @@ pub(in crate::analysis) fn checks(
     outliers: impl FnOnce() -> (usize, Vec<OutlierRow>),
 ) -> (Checks, Option<Note>) {
     let residuals = fit.residuals;
+    let observed = match fit.data {
+        Source::Observed(observed) => observed,
+        Source::Cells(cells) => return (from_cell_summaries(spec, cells), None),
+    };
     // Variance checks on the residuals grouped by treatment cell: within a
     // cell of the full model these are the observations less a constant.
     let cell_groups: Vec<Vec<f64>> = fit
         .cells
-        .group(fit.data, &|i| residuals[i])
+        .group(observed, &|i| residuals[i])
         .into_iter()
         .filter(|g| !g.is_empty())
         .collect();
@@ -65,24 +70,36 @@ pub(in crate::analysis) fn checks(
         let spread = with_spread_tests(checks, &slices(&cell_groups), &cell_summaries);
         (spread, None)
     } else {
-        let (spread, note) = spread_by_first_factor(checks, fit, &cell_groups);
+        let (spread, note) = spread_by_first_factor(checks, (fit, observed), &cell_groups);
         (spread, Some(note))
     };
     let (count, outliers) = outliers();
     (with_residuals(checks, residuals, count, outliers), note)
 }
 
+/// Summary input: what the cells' summaries allow (Bartlett over the
+/// cells of two or more observations, the SD ratio); the checks on
+/// residuals are marked not computed, as for one-factor summaries.
+fn from_cell_summaries(spec: &AnovaSpec, cells: &[GroupSummary]) -> Checks {
+    let replicated: Vec<GroupSummary> = cells.iter().filter(|s| s.n >= 2).copied().collect();
+    let checks = summary_checks(&replicated, spec.checks.shown());
+    Checks {
+        by_request: spec.checks == CheckSet::Summary,
+        ..checks
+    }
+}
+
 /// Unreplicated cells (blocks): compare the spread of the residuals across
 /// the levels of the first treatment factor instead, and say so.
 fn spread_by_first_factor(
     checks: Checks,
-    fit: &Fit<'_>,
+    (fit, observed): (&Fit<'_>, Observed<'_>),
     cell_groups: &[Vec<f64>],
 ) -> (Checks, Note) {
     let first = fit.cells.factors.first().copied().unwrap_or(0);
     let mut by_level: Vec<Vec<f64>> = vec![Vec::new(); fit.levels[first]];
-    for (i, &c) in fit.data.cell_of.iter().enumerate() {
-        by_level[fit.data.cells[c][first]].push(fit.residuals[i]);
+    for (i, &c) in observed.cell_of.iter().enumerate() {
+        by_level[observed.cells[c][first]].push(fit.residuals[i]);
     }
     let checks = with_spread_tests(checks, &slices(&by_level), &summaries(&by_level));
     let name = &fit.factor_names[first];

@@ -8,8 +8,8 @@ use super::cells::TreatmentCells;
 use super::fit::Fitted;
 use super::model::{Errors, Model};
 use super::separate_slopes;
-use crate::data::FactorialData;
 use crate::data::covariates::Covariates;
+use crate::data::{FactorialData, Observed};
 use crate::diag::Diagnostic;
 use crate::outcome::covariates::{
     AdjustedFamily, Covariate, CovariateDetail, CovariateGroup, FTest, SlopesTest,
@@ -60,12 +60,12 @@ impl Centred {
     /// factors: its slope cannot be told apart from the factors' effects.
     pub fn check_varies(
         &self,
-        data: &FactorialData,
+        observed: Observed<'_>,
         errors: &Errors<'_>,
     ) -> Result<(), Diagnostic> {
         for (name, column) in self.names.iter().zip(&self.columns) {
-            let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); data.cells.len()];
-            for (&c, &x) in data.cell_of.iter().zip(column) {
+            let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); observed.cells.len()];
+            for (&c, &x) in observed.cell_of.iter().zip(column) {
                 by_cell[c].push(x);
             }
             let within = neumaier(by_cell.iter().map(|v| GroupSummary::from_values(v).ss));
@@ -84,6 +84,8 @@ impl Centred {
 /// What the detail is computed from.
 pub(super) struct Adjusting<'a> {
     pub data: &'a FactorialData,
+    /// The observations: covariates vary within the cells.
+    pub observed: Observed<'a>,
     pub model: &'a Model,
     pub levels: &'a [usize],
     pub fitted: &'a Fitted,
@@ -98,10 +100,10 @@ pub(super) struct Adjusting<'a> {
 /// The groups (treatment cells with data): each one's label and the
 /// observations in it.
 pub(super) fn groups(
-    data: &FactorialData,
+    (data, observed): (&FactorialData, Observed<'_>),
     treatment: &TreatmentCells,
 ) -> Vec<(String, Vec<usize>)> {
-    let members = treatment.group(data, &|i| i as f64);
+    let members = treatment.group(observed, &|i| i as f64);
     treatment
         .combos
         .iter()
@@ -240,15 +242,22 @@ impl Adjusting<'_> {
             .collect();
         let mut columns = self.fitted.unweighted.clone();
         for term in &extra {
-            let rows: Vec<Vec<f64>> = (0..self.data.offsets.len())
-                .map(|i| term_row_with(term, self.levels, self.data.row(i), &self.centred.rows[i]))
+            let rows: Vec<Vec<f64>> = (0..self.observed.offsets.len())
+                .map(|i| {
+                    term_row_with(
+                        term,
+                        self.levels,
+                        self.observed.row(i),
+                        &self.centred.rows[i],
+                    )
+                })
                 .collect();
             let width = rows.first().map_or(0, Vec::len);
             columns.extend((0..width).map(|j| rows.iter().map(|r| r[j]).collect::<Vec<f64>>()));
         }
-        let separate = fit(&columns, &self.data.offsets);
+        let separate = fit(&columns, self.observed.offsets);
         let df1 = separate.rank.checked_sub(self.fitted.full.rank)?;
-        let df2 = self.data.offsets.len().checked_sub(separate.rank)?;
+        let df2 = self.observed.offsets.len().checked_sub(separate.rank)?;
         if df1 == 0 || df2 == 0 {
             return None;
         }
@@ -270,7 +279,7 @@ impl Adjusting<'_> {
     /// covariate means of the observations at each level (within the
     /// family's slice).
     fn adjusted_family(&self, family: &Family) -> AdjustedFamily {
-        let data = self.data;
+        let (data, observed) = (self.data, self.observed);
         let factor = self.model.index_of(&family.term);
         let within = family.within.as_ref().and_then(|w| {
             let (name, level) = w.split_once('=')?;
@@ -278,9 +287,9 @@ impl Adjusting<'_> {
             Some((f, data.levels[f].iter().position(|l| l == level)?))
         });
         let members = |l: usize| -> Vec<usize> {
-            (0..data.offsets.len())
+            (0..observed.offsets.len())
                 .filter(|&i| {
-                    let row = data.row(i);
+                    let row = observed.row(i);
                     factor.is_some_and(|f| row[f] == l) && within.is_none_or(|(w, s)| row[w] == s)
                 })
                 .collect()
@@ -299,7 +308,7 @@ impl Adjusting<'_> {
             within: family.within.clone(),
             unadjusted: level_members
                 .iter()
-                .map(|m| data.origin + mean_of(&data.offsets, m))
+                .map(|m| data.origin + mean_of(observed.offsets, m))
                 .collect(),
             covariate_means: self
                 .centred

@@ -55,9 +55,11 @@ pub(super) fn design_notes(
 /// they are held to the spelling check only: their row count is given as
 /// unbounded, which no number of levels can exceed.
 fn level_spellings(data: &FactorialData, model: &Model) -> Vec<String> {
+    // Each level's first line: that of the first cell holding it (cells
+    // are in order of first appearance).
     let mut first: Vec<Vec<usize>> = data.levels.iter().map(|l| vec![0; l.len()]).collect();
-    for (i, &line) in data.lines.iter().enumerate() {
-        for (f, &l) in data.row(i).iter().enumerate() {
+    for (cell, &line) in data.cells.iter().zip(&data.cell_lines) {
+        for (f, &l) in cell.iter().enumerate() {
             if first[f][l] == 0 {
                 first[f][l] = line;
             }
@@ -73,7 +75,7 @@ fn level_spellings(data: &FactorialData, model: &Model) -> Vec<String> {
         let rows = if model.is_block(f) {
             usize::MAX
         } else {
-            data.lines.len()
+            data.n()
         };
         warnings.extend(crate::data::levels::level_warnings(
             &model.factor_names[f],
@@ -102,9 +104,8 @@ pub(super) fn reused_block_labels(data: &FactorialData, model: &Model) -> Option
             }
             let (a, b) = (data.levels[outer].len(), data.levels[inner].len());
             let mut counts = vec![0usize; a * b];
-            for i in 0..data.lines.len() {
-                let row = data.row(i);
-                counts[row[outer] * b + row[inner]] += 1;
+            for (row, cell) in data.cells.iter().zip(&data.cell_summaries) {
+                counts[row[outer] * b + row[inner]] += cell.n;
             }
             if counts.iter().all(|&c| c >= 2) && a * b <= data.cells.len() {
                 let (o, n) = (&model.factor_names[outer], &model.factor_names[inner]);

@@ -4,7 +4,7 @@
 
 use super::covariates::Centred;
 use super::model::{Errors, Model};
-use crate::data::FactorialData;
+use crate::data::{FactorialData, Observed};
 use crate::diag::Diagnostic;
 use crate::stats::linear::{Fit, Layout, design_matrix, design_matrix_with, fit, term_columns};
 use crate::stats::oneway::GroupSummary;
@@ -51,19 +51,28 @@ impl Fitted {
         covariates: Option<&Centred>,
         errors: &Errors<'_>,
     ) -> Result<Fitted, Diagnostic> {
-        let cell_summaries = cell_summaries(data);
-        let (unweighted, weights, within_cells) = match covariates {
+        let cell_summaries = data.cell_summaries.clone();
+        let observed = match covariates {
+            Some(_) => Some(data.observed().ok_or_else(|| {
+                errors.model(
+                    "internal error: covariates without the observations".into(),
+                    "report this",
+                )
+            })?),
+            None => None,
+        };
+        let (unweighted, weights, within_cells) = match (covariates, observed) {
             // A covariate varies within a cell: the cell's n and mean no
             // longer carry everything, so every observation is a row.
-            Some(c) => {
+            (Some(c), Some(observed)) => {
                 let layout = Layout {
                     levels: levels.to_vec(),
-                    rows: data.rows(),
+                    rows: observed.rows(),
                 };
                 let design = design_matrix_with(&layout, &c.rows, &model.terms);
-                (design, vec![1.0; data.offsets.len()], 0.0)
+                (design, vec![1.0; observed.offsets.len()], 0.0)
             }
-            None => {
+            _ => {
                 let layout = Layout {
                     levels: levels.to_vec(),
                     rows: data.cells.clone(),
@@ -77,8 +86,8 @@ impl Fitted {
             .iter()
             .map(|col| col.iter().zip(&weights).map(|(x, w)| x * w).collect())
             .collect();
-        let cell_y: Vec<f64> = match covariates {
-            Some(_) => data.offsets.clone(),
+        let cell_y: Vec<f64> = match observed {
+            Some(observed) => observed.offsets.to_vec(),
             None => cell_summaries
                 .iter()
                 .zip(&weights)
@@ -87,7 +96,7 @@ impl Fitted {
         };
         let mut full = fit(&design, &cell_y);
         full.rss += within_cells;
-        let residual_df = data.offsets.len() - full.rank;
+        let residual_df = data.n().saturating_sub(full.rank);
         if residual_df == 0 {
             return Err(no_residual_df(model, errors));
         }
@@ -108,11 +117,11 @@ impl Fitted {
     }
 
     /// The design row of observation i.
-    pub fn row_of(&self, data: &FactorialData, i: usize) -> usize {
+    pub fn row_of(&self, observed: Observed<'_>, i: usize) -> usize {
         if self.per_observation {
             i
         } else {
-            data.cell_of[i]
+            observed.cell_of[i]
         }
     }
 
@@ -133,18 +142,6 @@ impl Fitted {
             .estimate(l, &self.covariance, &self.coefficients)
             .unwrap_or((f64::NAN, f64::NAN))
     }
-}
-
-/// Each full cell's summary, from its observations.
-fn cell_summaries(data: &FactorialData) -> Vec<GroupSummary> {
-    let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); data.cells.len()];
-    for (&c, &y) in data.cell_of.iter().zip(&data.offsets) {
-        by_cell[c].push(y);
-    }
-    by_cell
-        .iter()
-        .map(|v| GroupSummary::from_values(v))
-        .collect()
 }
 
 fn no_residual_df(model: &Model, errors: &Errors<'_>) -> Diagnostic {

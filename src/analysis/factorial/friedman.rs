@@ -67,10 +67,16 @@ pub(super) fn complete_table(
     data: &FactorialData,
     (treatment, block): (usize, usize),
 ) -> Result<Vec<Vec<f64>>, Diagnostic> {
+    let Some(observed) = data.observed() else {
+        return Err(errors.model(
+            "internal error: Friedman's test reached without the observations".into(),
+            "ranks need one row per observation",
+        ));
+    };
     let (k, b) = (data.levels[treatment].len(), data.levels[block].len());
     let mut cells: Vec<Vec<Vec<usize>>> = vec![vec![Vec::new(); k]; b];
-    for i in 0..data.offsets.len() {
-        let row = data.row(i);
+    for i in 0..observed.offsets.len() {
+        let row = observed.row(i);
         cells[row[block]][row[treatment]].push(i);
     }
     let level = |t: usize| data.levels[treatment][t].as_str();
@@ -100,7 +106,7 @@ pub(super) fn complete_table(
         .map(|(j, t)| {
             let lines: Vec<String> = cells[j][t]
                 .iter()
-                .map(|&i| data.lines[i].to_string())
+                .map(|&i| observed.lines[i].to_string())
                 .collect();
             format!(
                 "`{}` has {} observations of `{}` (lines {})",
@@ -122,7 +128,7 @@ pub(super) fn complete_table(
     }
     Ok(cells
         .iter()
-        .map(|row| row.iter().map(|c| data.offsets[c[0]]).collect())
+        .map(|row| row.iter().map(|c| observed.offsets[c[0]]).collect())
         .collect())
 }
 

@@ -3,7 +3,7 @@
 //! one-factor engine only.
 
 use crate::diag::Diagnostic;
-use crate::doc::block::{AnovaSpec, Omnibus};
+use crate::doc::block::{AnovaSpec, Omnibus, PlotKind};
 use crate::doc::{Block, Document};
 use crate::stats::compare::Method;
 use crate::stats::linear::TermFactors;
@@ -206,10 +206,25 @@ pub(super) fn refuse_one_factor_keys(errors: &Errors<'_>) -> Result<(), Diagnost
             )
             .hint("in factorial designs levels keep their order of first appearance in the data"));
     }
-    if spec.summary.is_some() {
+    if spec.summary.is_some() && friedman {
         return Err(errors.model(
-            "`input: summary` applies to one-factor models".into(),
-            "factorial designs need one row per observation",
+            "Friedman's test needs the raw observations, not summaries".into(),
+            "use the ANOVA (remove `method`) with `input: summary`",
+        ));
+    }
+    if let Some(k) = spec
+        .plots
+        .kinds
+        .iter()
+        .find(|k| !matches!(k, PlotKind::Means))
+        && spec.summary.is_some()
+    {
+        return Err(errors.model(
+            format!(
+                "`plot: {}` needs the raw observations, not summaries",
+                k.key()
+            ),
+            "with `input: summary` only `plot: means` can be drawn",
         ));
     }
     Ok(())

@@ -9,10 +9,12 @@ use crate::analysis::binding::{
 };
 use crate::data::covariates::split_covariates;
 use crate::data::scan::ScanSpec;
+use crate::data::summary_cells::summary_cells;
 use crate::data::transform::transform_factorial;
-use crate::data::{FactorialData, factorial_from_scan, factorial_response};
+use crate::data::{FactorialData, FactorialRows, factorial_from_scan, factorial_response};
 use crate::diag::Diagnostic;
 use crate::doc::Block;
+use crate::outcome::linear::InputForm;
 use crate::provenance::Input;
 
 /// A factorial block's observations as read: on the analysis scale, with
@@ -24,6 +26,8 @@ pub(crate) struct Observations {
     /// With `transform`: per factor and level, the arithmetic mean on the
     /// data's scale.
     pub arithmetic: Vec<Vec<f64>>,
+    /// Observations, published summaries, or exact sums.
+    pub input: InputForm,
 }
 
 /// Reads the observations of the model's factors and covariates, and
@@ -34,19 +38,63 @@ pub(crate) fn read_with_covariates(
     (data, display_path): (Data<'_>, &str),
     model: &Model,
 ) -> Result<Observations, Diagnostic> {
+    let spec = errors.spec;
+    if let Some(columns) = &spec.summary {
+        return read_summaries(errors, block, (data, display_path), model, columns);
+    }
     let (mut data, streamed, centred) =
         read_covariates(errors, block, (data, display_path), model)?;
-    let spec = errors.spec;
     let arithmetic = match &spec.transform {
         Some(t) => transform_factorial(&mut data, &t.value, &spec.model.value.response)
             .map_err(|e| data_error(errors.doc, block, spec.data.line, display_path, e))?,
         None => Vec::new(),
     };
     Ok(Observations {
-        data,
+        data: FactorialData::from_rows(data),
         streamed,
         centred,
         arithmetic,
+        input: InputForm::Observations,
+    })
+}
+
+/// Reads a summary table, one row per cell: published summaries or exact
+/// sums (see `data::summary_cells`).
+fn read_summaries(
+    errors: &Errors<'_>,
+    block: &Block,
+    (data, display_path): (Data<'_>, &str),
+    model: &Model,
+    columns: &crate::data::SummaryColumns,
+) -> Result<Observations, Diagnostic> {
+    let (doc, spec) = (errors.doc, errors.spec);
+    let Data::Loaded(input) = data else {
+        return Err(errors.internal(block, "a summary table reached the streaming reader"));
+    };
+    let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
+    let factors: Vec<&str> = model.factor_names.iter().map(String::as_str).collect();
+    let read = summary_cells(&table, &factors, columns, &spec.csv)
+        .map_err(|e| data_error(doc, block, spec.data.line, display_path, e))?;
+    let input = match &read.exact_origin {
+        Some(origin) => InputForm::ExactSums {
+            origin: origin.clone(),
+        },
+        None => InputForm::Summaries,
+    };
+    let mut data = FactorialData::from_summaries(read, factors.len());
+    data.excluded = ruled_out;
+    data.excluded.sort_by_key(|e| e.line);
+    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
+    check_labels(doc, spec, &all_levels)?;
+    for lv in data.levels.iter_mut() {
+        apply_labels(lv, &spec.labels);
+    }
+    Ok(Observations {
+        data,
+        streamed: None,
+        centred: None,
+        arithmetic: Vec::new(),
+        input,
     })
 }
 
@@ -55,7 +103,7 @@ fn read_covariates(
     block: &Block,
     (data, display_path): (Data<'_>, &str),
     model: &Model,
-) -> Result<(FactorialData, Option<Input>, Option<Centred>), Diagnostic> {
+) -> Result<(FactorialRows, Option<Input>, Option<Centred>), Diagnostic> {
     let names: Vec<&str> = model
         .factor_names
         .iter()
@@ -81,7 +129,7 @@ pub(crate) fn read_observations(
     data: Data<'_>,
     factors: &[&str],
     display_path: &str,
-) -> Result<(FactorialData, Option<Input>), Diagnostic> {
+) -> Result<(FactorialRows, Option<Input>), Diagnostic> {
     let (doc, spec) = (errors.doc, errors.spec);
     let response = &spec.model.value.response;
     let fail = |e| data_error(doc, block, spec.data.line, display_path, e);

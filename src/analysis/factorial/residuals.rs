@@ -2,7 +2,7 @@
 //! flagged by their externally studentized residual.
 
 use super::fit::Fitted;
-use crate::data::FactorialData;
+use crate::data::{FactorialData, Observed};
 use crate::outcome::OutlierRow;
 use crate::stats::assumptions::{OUTLIER_THRESHOLD, OUTLIERS_KEPT, externally_studentized};
 use crate::stats::extremes::Extremes;
@@ -40,9 +40,12 @@ impl Residuals {
                 )
             })
             .collect();
-        let values = (0..data.offsets.len())
-            .map(|i| data.offsets[i] - row_fitted[fitted.row_of(data, i)])
-            .collect();
+        // Summary input has no observations, hence no residuals.
+        let values = data.observed().map_or_else(Vec::new, |observed| {
+            (0..observed.offsets.len())
+                .map(|i| observed.offsets[i] - row_fitted[fitted.row_of(observed, i)])
+                .collect()
+        });
         Residuals {
             values,
             row_leverage,
@@ -52,11 +55,14 @@ impl Residuals {
     /// The observations beyond the outlier threshold: how many in all, and
     /// the most extreme of them with their labels, in data order.
     pub fn outliers(&self, data: &FactorialData, fitted: &Fitted) -> (usize, Vec<OutlierRow>) {
+        let Some(observed) = data.observed() else {
+            return (0, Vec::new());
+        };
         let (mse, nu) = (fitted.mse(), fitted.residual_df as f64);
         // Only the most extreme are kept with their labels; the rest are counted.
         let mut flagged = Extremes::new(OUTLIERS_KEPT);
         for (i, &e) in self.values.iter().enumerate() {
-            let h = self.row_leverage[fitted.row_of(data, i)];
+            let h = self.row_leverage[fitted.row_of(observed, i)];
             if h >= 1.0 - 1e-12 || fitted.residual_df < 2 {
                 continue;
             }
@@ -65,14 +71,14 @@ impl Residuals {
                 flagged.offer(t.abs(), (i, t));
             }
         }
-        flagged_rows(data, flagged)
+        flagged_rows((observed, &data.levels, data.origin), flagged)
     }
 }
 
 /// The flagged observations (row, studentized residual) with their data
 /// line, labels and value, in data order, and how many were flagged in all.
 pub(in crate::analysis) fn flagged_rows(
-    data: &FactorialData,
+    (observed, levels, origin): (Observed<'_>, &[Vec<String>], f64),
     flagged: Extremes<(usize, f64)>,
 ) -> (usize, Vec<OutlierRow>) {
     let count = flagged.total();
@@ -80,15 +86,15 @@ pub(in crate::analysis) fn flagged_rows(
         .into_most_extreme_first()
         .into_iter()
         .map(|(i, t)| OutlierRow {
-            line: data.lines[i],
-            level: data
+            line: observed.lines[i],
+            level: observed
                 .row(i)
                 .iter()
                 .enumerate()
-                .map(|(f, &l)| data.levels[f][l].clone())
+                .map(|(f, &l)| levels[f][l].clone())
                 .collect::<Vec<_>>()
                 .join(" × "),
-            value: data.origin + data.offsets[i],
+            value: origin + observed.offsets[i],
             studentized_residual: t,
         })
         .collect();

@@ -38,7 +38,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
         return None;
     }
     let x = &a.centred.columns[0];
-    let y = &a.data.offsets;
+    let y = a.observed.offsets;
     let groups = &a.groups;
     if groups.len() > MAX_GROUPS {
         return None;
@@ -120,7 +120,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
 
 /// The within-group sum of squares of the response, Σ Syy.
 fn within_y(a: &Adjusting<'_>, groups: &[(String, Vec<usize>)]) -> f64 {
-    let y = &a.data.offsets;
+    let y = a.observed.offsets;
     neumaier(
         groups.iter().map(|(_, m)| {
             GroupSummary::from_values(&m.iter().map(|&i| y[i]).collect::<Vec<_>>()).ss

@@ -8,7 +8,7 @@
 use std::collections::BTreeSet;
 
 use super::super::factorial::model::Model;
-use crate::data::FactorialData;
+use crate::data::FactorialRows;
 use crate::outcome::repeated::{Mauchly, RepeatedDetail, WithinTest};
 use crate::stats::repeated::{self, BetweenTerm, RepeatedInput, Sphericity, WithinLine};
 
@@ -22,7 +22,7 @@ pub(super) type Refusal = (String, String);
 /// subject column's index among the data's factors (after the model's),
 /// `subject_name` the column's name.
 pub(super) fn repeated(
-    data: &FactorialData,
+    data: &FactorialRows,
     model: &Model,
     subject: usize,
     subject_name: &str,
@@ -120,7 +120,7 @@ enum Class {
 
 /// Constant within every subject (between), varying within every subject
 /// with several observations (within), or a mixture (neither).
-fn classify(data: &FactorialData, subject_of: &[usize], subjects: usize, f: usize) -> Class {
+fn classify(data: &FactorialRows, subject_of: &[usize], subjects: usize, f: usize) -> Class {
     let mut seen: Vec<BTreeSet<usize>> = vec![BTreeSet::new(); subjects];
     let mut count = vec![0usize; subjects];
     for (i, &s) in subject_of.iter().enumerate() {
@@ -154,7 +154,7 @@ struct Occasions {
 }
 
 impl Occasions {
-    fn new(data: &FactorialData, within: &[usize], subject_of: &[usize], subjects: usize) -> Self {
+    fn new(data: &FactorialRows, within: &[usize], subject_of: &[usize], subjects: usize) -> Self {
         let counts: Vec<usize> = within.iter().map(|&f| data.levels[f].len()).collect();
         let k: usize = counts.iter().product();
         let mut cells: Vec<Vec<Option<f64>>> = vec![vec![None; k]; subjects];
@@ -208,7 +208,7 @@ struct Shape<'a> {
 /// The univariate analysis of the complete subjects, between terms from the
 /// model's terms made of between factors only, in model order.
 fn univariate(
-    data: &FactorialData,
+    data: &FactorialRows,
     model: &Model,
     shape: &Shape<'_>,
     complete: &[usize],

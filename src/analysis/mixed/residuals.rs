@@ -7,10 +7,10 @@
 //! conditional residuals' place.
 
 use super::super::factorial::cells::TreatmentCells;
-use super::super::factorial::checks::{self, Fit};
+use super::super::factorial::checks::{self, Fit, Source};
 use super::super::factorial::residuals::flagged_rows;
 use super::super::notes::Note;
-use crate::data::FactorialData;
+use crate::data::FactorialRows;
 use crate::doc::block::{AnovaSpec, CheckSet};
 use crate::outcome::mixed::{FlaggedUnit, PredictedEffects};
 use crate::outcome::{Checks, OutlierRow, ResidualKind};
@@ -21,7 +21,7 @@ use crate::stats::mixed::{Predictions, VarianceComponent};
 /// What the checks read.
 pub(super) struct Checked<'a> {
     pub spec: &'a AnovaSpec,
-    pub data: &'a FactorialData,
+    pub data: &'a FactorialRows,
     /// The residuals checked, each observation's value on the scale
     /// outliers are judged by, and which residuals they are.
     pub residuals: &'a [f64],
@@ -36,7 +36,7 @@ impl Checked<'_> {
     /// The residual checks `checks:` asks for, marked with their kind.
     pub fn checks(&self) -> (Checks, Option<Note>) {
         let fit = Fit {
-            data: self.data,
+            data: Source::Observed(self.data.observed()),
             residuals: self.residuals,
             cells: self.cells,
             factor_names: self.factor_names,
@@ -62,7 +62,10 @@ impl Checked<'_> {
                 flagged.offer(t.abs(), (i, t));
             }
         }
-        flagged_rows(self.data, flagged)
+        flagged_rows(
+            (self.data.observed(), &self.data.levels, self.data.origin),
+            flagged,
+        )
     }
 }
 

@@ -7,7 +7,7 @@
 
 use super::super::notes::Note;
 use super::repeated::Refusal;
-use crate::data::FactorialData;
+use crate::data::FactorialRows;
 use crate::doc::block::DdfMethod;
 use crate::doc::block_covariance::{Covariance, CovarianceStructure};
 use crate::outcome::covariance::{CovarianceDetail, CovarianceParameter, StructureFit};
@@ -38,7 +38,7 @@ impl Structured {
 
 /// The repeated layout as the fit sees it.
 pub(super) struct Repeats<'a> {
-    pub data: &'a FactorialData,
+    pub data: &'a FactorialRows,
     pub design: &'a FixedDesign,
     /// The subject column's index among the data's factors.
     pub subject: usize,

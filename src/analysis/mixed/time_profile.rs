@@ -6,7 +6,7 @@
 //! subjects`, each subject's mean at each time.
 
 use super::families::{Estimating, Slice};
-use crate::data::FactorialData;
+use crate::data::FactorialRows;
 use crate::doc::block::{AnovaSpec, PlotKind};
 use crate::outcome::repeated::{PROFILE_SUBJECTS, Profile, RepeatedDetail};
 
@@ -14,7 +14,7 @@ use crate::outcome::repeated::{PROFILE_SUBJECTS, Profile, RepeatedDetail};
 pub(super) fn profile(
     spec: &AnovaSpec,
     estimating: &Estimating<'_>,
-    data: &FactorialData,
+    data: &FactorialRows,
     repeated: &RepeatedDetail,
     subject: usize,
 ) -> Option<Profile> {
@@ -70,7 +70,7 @@ pub(super) fn profile(
 /// Each subject's group and mean at each time (averaged over any other
 /// within-subject factor), for the first `PROFILE_SUBJECTS` subjects.
 fn subject_lines(
-    data: &FactorialData,
+    data: &FactorialRows,
     subject: usize,
     time: usize,
     group: Option<usize>,

@@ -3,7 +3,7 @@
 //! (a whole plot is block and variety together, never the variety label
 //! alone), numbered in sorted order of those combinations.
 
-use crate::data::FactorialData;
+use crate::data::FactorialRows;
 use crate::doc::formula::Term;
 use crate::stats::linear::Layout;
 use crate::stats::mixed::RandomTerm;
@@ -21,7 +21,7 @@ pub(super) struct Units {
 /// Each random term's unit for each observation; `factor_of` gives the
 /// index of a column among the data's factors.
 pub(super) fn units(
-    data: &FactorialData,
+    data: &FactorialRows,
     random: &[Term],
     factor_of: impl Fn(&str) -> Option<usize>,
 ) -> Units {
