@@ -300,7 +300,7 @@ fn engines_compute_exact_cell_sums() {
 const SAME_REPORT: f64 = 1e-12;
 
 /// The parts of an anova record that summaries and raw data both give.
-const SHARED: [&str; 3] = ["anova", "groups", "comparisons"];
+const SHARED: [&str; 4] = ["anova", "groups", "cells", "comparisons"];
 
 fn compare_values(a: &Value, b: &Value, at: &str, failures: &mut Vec<String>) {
     match (a, b) {
@@ -410,12 +410,12 @@ fn certified_lre(stem: &str, block: &Value) -> Vec<(String, f64)> {
 fn reports_from_summaries_match_the_raw_reading(jobs: &[Job]) {
     let mut failures = Vec::new();
     let mut raw_builds: std::collections::BTreeMap<PathBuf, Value> = Default::default();
-    for job in jobs.iter().filter(|j| j.factors.len() == 1 && !j.overflow) {
+    for job in jobs.iter().filter(|j| !j.overflow) {
         let folder = job.raw.parent().expect("folder");
-        let block = if job.response == "value" {
-            "cells"
-        } else {
-            "heads"
+        let block = match (job.response, job.factors.len()) {
+            ("value", _) => "cells",
+            (_, 1) => "heads",
+            _ => "shifts",
         };
         let document = folder.join(format!(
             "summary-{}.md",
@@ -424,11 +424,11 @@ fn reports_from_summaries_match_the_raw_reading(jobs: &[Job]) {
         std::fs::write(
             &document,
             format!(
-                "# From an engine's cell summaries\n\n```anova\nid: {block}\ndata: {}\ninput: summary\nquery: {}\nmodel: {} ~ {}\nacknowledge: summary\n```\n",
+                "# From an engine's cell summaries\n\n```anova\nid: {block}\ndata: {}\ninput: summary\nquery: {}\nmodel: {} ~ {}\nacknowledge: summary, unbalanced\n```\n",
                 job.out.file_name().and_then(|n| n.to_str()).expect("name"),
                 job.sql.file_name().and_then(|n| n.to_str()).expect("name"),
                 job.response,
-                job.factors[0],
+                job.factors.join(" * "),
             ),
         )
         .expect("document");

@@ -152,8 +152,7 @@ fn rounded_values_are_refused() {
         &Memory(csv.to_string()),
         Format::Markdown,
     )
-    .err()
-    .expect("refused")
+    .expect_err("refused")
     .to_string();
     assert!(
         err.contains(
