@@ -561,3 +561,50 @@ fn printed_queries_match_their_snapshots() {
         assert_eq!(printed, expected, "{block}: the printed query changed");
     }
 }
+
+/// `sheaf sql` refuses unclear requests with a message that says what to give.
+#[test]
+fn unclear_requests_are_refused_with_what_to_give() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let document = dir.path().join("report.md");
+    std::fs::write(
+        &document,
+        "```anova\nid: a\ndata: none.csv\nmodel: y ~ g\n```\n\n```anova\nid: b\ndata: none.csv\nmodel: y ~ g\nrandom: plot\n```\n",
+    )
+    .expect("document");
+    let cases: [(&[&str], &str); 6] = [
+        (&["--block", "a", "--table", "t"], "--scale"),
+        (
+            &["--table", "t", "--scale", "1"],
+            "say which with `--block`",
+        ),
+        (
+            &["--block", "c", "--table", "t", "--scale", "1"],
+            "no anova block `c`",
+        ),
+        (
+            &["--block", "a", "--parquet", "p", "--scale", "1"],
+            "add `--engine`",
+        ),
+        (
+            &["--block", "a", "--scale", "1"],
+            "say where the raw rows are",
+        ),
+        (
+            &["--block", "b", "--table", "t", "--scale", "1"],
+            "random terms",
+        ),
+    ];
+    for (args, expected) in cases {
+        let output = Command::new(env!("CARGO_BIN_EXE_sheaf"))
+            .arg("sql")
+            .arg(&document)
+            .args(args)
+            .output()
+            .expect("sheaf runs");
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(1), "{args:?}: {stderr}");
+        assert!(stderr.contains(expected), "{args:?}: {stderr}");
+        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
+    }
+}
