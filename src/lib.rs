@@ -30,6 +30,7 @@ pub mod outcome;
 pub mod output;
 pub mod plan;
 pub mod provenance;
+pub mod query;
 pub mod render;
 pub mod results;
 pub mod scaffold;

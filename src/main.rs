@@ -73,6 +73,35 @@ enum Command {
         /// The folder to create (must not exist, or be empty).
         folder: PathBuf,
     },
+    /// Print the SQL that computes a block's cell summaries on a database
+    /// engine, for `input: summary`.
+    #[command(after_help = SQL_HELP)]
+    Sql {
+        /// The Markdown document holding the block.
+        document: PathBuf,
+        /// The block's id (needed when the document has several anova blocks).
+        #[arg(long, value_name = "ID")]
+        block: Option<String>,
+        /// A table or view the engine knows, holding the raw rows.
+        #[arg(long, value_name = "NAME")]
+        table: Option<String>,
+        /// A Parquet file or folder holding the raw rows (with `--engine`).
+        #[arg(long, value_name = "PATH")]
+        parquet: Option<String>,
+        /// The engine that reads `--parquet` (only the FROM clause changes).
+        #[arg(long, value_parser = ["duckdb", "datafusion", "spark"])]
+        engine: Option<String>,
+        /// Digits after the point the response keeps (default: what the
+        /// block's local raw data show, or what its `query` file records).
+        #[arg(long, value_name = "DIGITS")]
+        scale: Option<u32>,
+        /// The decimal subtracted from every value (default: the smallest value).
+        #[arg(long, value_name = "DECIMAL")]
+        origin: Option<String>,
+        /// Write the query to this file instead of standard output.
+        #[arg(short = 'o', long = "out", value_name = "FILE")]
+        out: Option<PathBuf>,
+    },
     /// Run the built-in accuracy suite and write a validation report.
     #[command(after_help = SYNTAX)]
     Validate {
@@ -99,6 +128,11 @@ struct Target {
     #[arg(long)]
     confine: bool,
 }
+
+/// Shown under `sheaf sql --help`.
+const SQL_HELP: &str = "The query runs unchanged on DuckDB, Apache DataFusion and Apache Spark SQL; save \
+its result as CSV beside the document, name that file in the block's `data` with `input: summary`, \
+and the query file in `query`. README.md, section \"Cell summaries from a database engine\".";
 
 /// `--to`: the registered output formats, each with its writer's help.
 fn format_parser() -> impl clap::builder::TypedValueParser<Value = Format> {
@@ -145,6 +179,27 @@ fn main() -> ExitCode {
         .map(|()| ExitCode::SUCCESS),
         Command::New { folder } => new(&folder),
         Command::Validate { out } => validate(out.as_deref()),
+        Command::Sql {
+            document,
+            block,
+            table,
+            parquet,
+            engine,
+            scale,
+            origin,
+            out,
+        } => sql(
+            sheaf::query::QueryRequest {
+                document,
+                block,
+                table,
+                parquet,
+                engine: engine.as_deref().and_then(sheaf::query::Engine::named),
+                scale,
+                origin,
+            },
+            out.as_deref(),
+        ),
     };
     outcome.unwrap_or_else(|d| report(&d, short))
 }
@@ -205,6 +260,20 @@ fn new(folder: &Path) -> Result<ExitCode, Diagnostic> {
         folder.join("report.md").display(),
         folder.join("out").display()
     );
+    Ok(ExitCode::SUCCESS)
+}
+
+/// `sheaf sql`: the block's cell query, printed or written to a file.
+fn sql(request: sheaf::query::QueryRequest, out: Option<&Path>) -> Result<ExitCode, Diagnostic> {
+    let text = request.run()?;
+    match out {
+        Some(path) => {
+            std::fs::write(path, &text)
+                .map_err(|e| Diagnostic::new(format!("cannot write {}: {e}", path.display())))?;
+            eprintln!("wrote {}", path.display());
+        }
+        None => print!("{text}"),
+    }
     Ok(ExitCode::SUCCESS)
 }
 

@@ -81,6 +81,16 @@ impl BlockResult {
         }
     }
 
+    /// The block's warnings, to add one found after the analysis (a stale
+    /// `query` file).
+    pub fn warnings_mut(&mut self) -> &mut Vec<String> {
+        match self {
+            BlockResult::Linear(r) => &mut r.warnings,
+            BlockResult::Power(r) => &mut r.warnings,
+            BlockResult::Traits(r) => &mut r.warnings,
+        }
+    }
+
     pub fn warnings(&self) -> &[String] {
         match self {
             BlockResult::Linear(r) => &r.warnings,
@@ -93,5 +103,5 @@ impl BlockResult {
 /// The layout number of a cached outcome; raise it whenever any type of
 /// this module changes shape, so that older cache entries become misses.
 impl crate::cache::Cacheable for BlockResult {
-    const SCHEMA: u32 = 14;
+    const SCHEMA: u32 = 15;
 }

@@ -238,6 +238,9 @@ pub struct BlockHead {
     pub kind: &'static str,
     pub line: usize,
     pub data: String,
+    /// The SQL file that computed the summary file (blocks with `query`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub query: Option<String>,
     pub response: String,
     pub factors: Vec<String>,
     pub n: usize,
@@ -261,6 +264,7 @@ impl BlockHead {
             kind: "anova",
             line: o.line,
             data: o.data.clone(),
+            query: o.query.clone(),
             response: o.response.clone(),
             factors: o.factors.iter().map(|f| f.name.clone()).collect(),
             n: o.n,

@@ -25,6 +25,8 @@ const LAYERS: &[(&str, u32)] = &[
     ("doc", 3),
     // The plan: every check that needs no data, before any data are read.
     ("plan", 4),
+    // The SQL that computes a block's cell summaries on another engine.
+    ("query", 4),
     // The outcome hub, then the engines that produce it.
     ("outcome", 5),
     ("analysis", 6),

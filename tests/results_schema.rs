@@ -132,6 +132,9 @@ mod contract {
         pub id: String,
         pub line: u64,
         pub data: String,
+        /// Blocks with `query` only: the SQL file that computed the summary.
+        #[serde(default, deserialize_with = "present")]
+        pub query: Option<String>,
         pub response: String,
         pub factors: Vec<String>,
         pub n: u64,

@@ -361,6 +361,7 @@ impl Analysed {
             id: block.id.clone(),
             line: block.line,
             data: spec.data.value.clone(),
+            query: spec.query.as_ref().map(|q| q.value.clone()),
             response: spec.model.value.response.clone(),
             alpha: self.alpha,
             n,

@@ -299,11 +299,7 @@ impl Analysed {
             Some(s) => structured::notes(&s.detail, spec.ddf),
             None => self.notes(),
         };
-        if let Some(Err(reason)) = self.repeated.as_ref().map(|(_, r)| &r.univariate) {
-            notes.push(Note::other(format!(
-                "The univariate repeated-measures analysis (with sphericity corrections) was not possible: {reason}. The mixed model's tests use every observation."
-            )));
-        }
+        notes.extend(self.univariate_note());
         notes.extend(spread_note);
         notes.extend(advice(&checks, Remedies::Linear, self.alpha, data.decimals));
         let predicted = if self.structured.is_some() {
@@ -338,6 +334,7 @@ impl Analysed {
             id: block.id.clone(),
             line: block.line,
             data: spec.data.value.clone(),
+            query: spec.query.as_ref().map(|q| q.value.clone()),
             response: spec.model.value.response.clone(),
             alpha: self.alpha,
             n: data.offsets.len(),
@@ -380,6 +377,17 @@ impl Analysed {
             equivalence: None,
             input: Default::default(),
         })
+    }
+
+    /// Why the univariate repeated-measures analysis was not possible, when
+    /// it was not.
+    fn univariate_note(&self) -> Option<Note> {
+        match self.repeated.as_ref().map(|(_, r)| &r.univariate) {
+            Some(Err(reason)) => Some(Note::other(format!(
+                "The univariate repeated-measures analysis (with sphericity corrections) was not possible: {reason}. The mixed model's tests use every observation."
+            ))),
+            _ => None,
+        }
     }
 
     /// The residual checks: on the normalised residuals with a covariance

@@ -149,6 +149,7 @@ impl Engine<'_> {
             id: self.block.id.clone(),
             line: self.block.line,
             data: spec.data.value.clone(),
+            query: spec.query.as_ref().map(|q| q.value.clone()),
             response: spec.model.value.response.clone(),
             alpha,
             n: table.n,

@@ -47,7 +47,10 @@ impl Computation {
         };
         let mut errors: Vec<Diagnostic> = Vec::new();
         for block in &doc.blocks {
-            if let Err(d) = c.block(doc, world, block) {
+            if let Err(d) = c
+                .block(doc, world, block)
+                .and_then(|()| c.record_query(doc, world, block))
+            {
                 for e in d.each() {
                     if !errors.contains(&e) {
                         errors.push(e);
@@ -125,6 +128,34 @@ impl Computation {
             self.cache_entries.push((key, entry));
         }
         self.results.push(result);
+        Ok(())
+    }
+
+    /// A block's `query` file: hashed and listed with the inputs, and
+    /// compared with the query `sheaf sql` prints for the block now (after
+    /// the cache, so that the warning always reflects the file as it is).
+    fn record_query(
+        &mut self,
+        doc: &Document,
+        world: &dyn World,
+        block: &Block,
+    ) -> Result<(), Diagnostic> {
+        let BlockSpec::Anova(spec) = &block.spec else {
+            return Ok(());
+        };
+        let Some(q) = &spec.query else {
+            return Ok(());
+        };
+        let bytes = world
+            .read(&q.value)
+            .map_err(|e| unreadable(doc, world, e, &q.value, (q.line, q.column)))?;
+        let text = String::from_utf8_lossy(&bytes).into_owned();
+        remember(&mut self.inputs, Input::loaded(&q.value, bytes));
+        if let Some(warning) = crate::query::staleness(doc, block, &q.value, &text)
+            && let Some(result) = self.results.last_mut()
+        {
+            result.warnings_mut().push(warning);
+        }
         Ok(())
     }
 

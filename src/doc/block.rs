@@ -261,6 +261,8 @@ pub struct AnovaSpec {
     pub adjust: Method,
     /// `input: summary`: the data file holds n, mean and SD per level.
     pub summary: Option<SummaryColumns>,
+    /// `query`: the SQL file that computed the summary file (provenance).
+    pub query: Option<Located<String>>,
     /// Factorial designs: the sums-of-squares type (default III).
     pub ss_type: Option<Located<SsType>>,
     /// Factorial designs: the main effects whose levels are compared.

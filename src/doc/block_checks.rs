@@ -190,6 +190,14 @@ fn reading_keys(d: &AnovaDraft, data: &Entry) -> Vec<SpecError> {
             "add `input: summary`, or remove `columns`",
         ));
     }
+    if let (Some(e), false) = (&d.query, summary) {
+        errors.push(bad(
+            e,
+            "`query` names the SQL that computed a summary file, so it needs `input: summary`"
+                .into(),
+            "add `input: summary` (the data file then holds the query's output), or remove `query`",
+        ));
+    }
     // Keys that belong to another data format than the file's.
     for (key, reader) in crate::data::reader::foreign_keys(&data.value) {
         let given = match key {
@@ -442,6 +450,7 @@ pub(super) fn resolve(
         ddf: d.ddf.map_or(DdfMethod::KenwardRoger, |(_, m)| m),
         blocks: d.blocks,
         summary,
+        query: d.query.as_ref().map(super::block_keys::located),
         method,
         checks: d.checks.unwrap_or(CheckSet::All),
         control: d.control.as_ref().map(super::block_keys::located),

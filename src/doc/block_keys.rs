@@ -42,6 +42,8 @@ pub struct AnovaDraft {
     /// `input`, and whether it is `summary`.
     pub input: Option<(Entry, bool)>,
     pub columns: Option<(Entry, SummaryColumns)>,
+    /// `query`: the SQL file that computed the summary file.
+    pub query: Option<Entry>,
     pub ss_type: Option<Located<SsType>>,
     pub compare_terms: Option<Located<Vec<String>>>,
     pub within: Option<Located<String>>,
@@ -116,6 +118,7 @@ pub const ANOVA: KeyTable<AnovaDraft> = KeyTable {
         ("adjust", read_adjust),
         ("input", rows::read_input),
         ("columns", rows::read_columns),
+        ("query", rows::read_query),
         ("ss", read_ss),
         ("compare_term", read_compare_term),
         ("within", read_within),

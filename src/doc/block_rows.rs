@@ -57,6 +57,20 @@ pub(super) fn read_input(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError>
     Ok(())
 }
 
+/// Reads `query: cells.sql`, the SQL file (relative to the document's
+/// folder) that an engine ran to write the block's summary file.
+pub(super) fn read_query(e: &Entry, d: &mut AnovaDraft) -> Result<(), SpecError> {
+    if e.value.is_empty() {
+        return Err(bad(
+            e,
+            "`query` is empty".into(),
+            "name the SQL file that made the summary, e.g. `query: cells.sql`",
+        ));
+    }
+    d.query = Some(e.clone());
+    Ok(())
+}
+
 /// The column names of summary input when `columns` does not name them.
 pub(super) fn default_summary_columns() -> SummaryColumns {
     SummaryColumns {

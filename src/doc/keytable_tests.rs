@@ -86,6 +86,7 @@ const ANOVA_SAMPLES: &[(&str, &str)] = &[
     ("labels", "labels: a = Control"),
     ("sheet", "data: book.xlsx\nsheet: Trial"),
     ("range", "data: book.xlsx\nrange: A1:C20"),
+    ("query", "input: summary\nquery: cells.sql"),
     ("acknowledge", "acknowledge: missing"),
     ("names", "names: y = Yield"),
     ("x_axis", "model: y ~ g * h\nx_axis: h"),

@@ -229,6 +229,9 @@ pub struct LinearOutcome {
     pub id: String,
     pub line: usize,
     pub data: String,
+    /// `query`: the SQL file that computed a summary file.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub query: Option<String>,
     pub response: String,
     pub alpha: f64,
     /// Observations analysed.
