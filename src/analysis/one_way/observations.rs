@@ -406,3 +406,7 @@ impl Observed {
 fn changed_error() -> DataError {
     crate::data::scan::changed_error()
 }
+
+#[cfg(test)]
+#[path = "observations_tests.rs"]
+mod tests;
