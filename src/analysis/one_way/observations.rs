@@ -108,8 +108,8 @@ pub(super) struct Observed {
     pub first_lines: Vec<usize>,
     /// Passes made here (after the level sums).
     pub passes: usize,
-    /// Per level, the mean of Levene's deviations (Brown-Forsythe's shift).
-    levene_means: Vec<f64>,
+    /// Per level, its first value in file order (Brown-Forsythe's shift).
+    first_values: Vec<f64>,
 }
 
 /// The ranks type-7 quartiles interpolate between: (low, high, fraction)
@@ -174,8 +174,11 @@ fn combined<'a>(sums: impl Iterator<Item = &'a NeumaierSum>) -> f64 {
 /// What pass A gathers, per level unless said.
 struct PassA<'s> {
     summaries: &'s [GroupSummary],
-    /// Where Levene's deviations are shifted to (see `shifted_summary`).
+    /// Where Levene's deviations are shifted to (see `shifted_summary`):
+    /// the level's first deviation, once seen.
     levene_shift: Vec<f64>,
+    /// Each level's first value in file order.
+    first_values: Vec<f64>,
     /// |Residual| beyond which t is computed (see `outlier_screen`).
     screens: Vec<f64>,
     mse: f64,
@@ -198,15 +201,10 @@ impl<'s> PassA<'s> {
         let (mse, df, grand) = table.as_ref().map_or((f64::NAN, 0, f64::NAN), |t| {
             (t.ms_within, t.df_within, t.grand_mean)
         });
-        // Absolute deviations average σ√(2/π) under normality: near their
-        // mean, as the shifted formula wants.
-        let root_two_over_pi = std::f64::consts::FRAC_2_SQRT_PI * std::f64::consts::FRAC_1_SQRT_2;
         PassA {
             summaries,
-            levene_shift: summaries
-                .iter()
-                .map(|s| spread(s) * root_two_over_pi)
-                .collect(),
+            levene_shift: vec![f64::NAN; k],
+            first_values: vec![f64::NAN; k],
             screens: summaries
                 .iter()
                 .map(|s| outlier_screen(mse, 1.0 / s.n as f64, df as f64))
@@ -225,8 +223,14 @@ impl<'s> PassA<'s> {
 
     fn visit(&mut self, level: usize, offsets: &[f64], lines: &[usize]) {
         let s = &self.summaries[level];
-        if self.first_lines[level].is_none() {
-            self.first_lines[level] = lines.first().copied();
+        if self.first_lines[level].is_none()
+            && let (Some(&line), Some(&y)) = (lines.first(), offsets.first())
+        {
+            // The shifted-data formula with a value of the data as the shift:
+            // equal deviations give exactly zero spread.
+            self.first_lines[level] = Some(line);
+            self.first_values[level] = y;
+            self.levene_shift[level] = (y - s.mean).abs();
         }
         let (mean, shift, screen) = (s.mean, self.levene_shift[level], self.screens[level]);
         let flags = self.df >= 2 && crate::stats::is_positive(self.mse) && s.n >= 2;
@@ -271,7 +275,7 @@ impl<'s> PassA<'s> {
             .map(|((s, &shift), sums)| shifted_summary(s.n, shift, sums))
             .collect();
         observed.levene = spread_test(&deviations);
-        observed.levene_means = deviations.iter().map(|d| d.mean).collect();
+        observed.first_values = self.first_values.clone();
         let power = |i: usize| combined(self.powers.iter().map(|p| &p[i]));
         let (m2, m3, m4) = central_moments(n_total, [power(0), power(1), power(2), power(3)]);
         (observed.skewness, observed.excess_kurtosis) = shape_of_moments(n_total, m2, m3, m4);
@@ -359,9 +363,11 @@ pub(super) fn observe(
             (at(places[0]), at(places[1]), at(places[2]))
         })
         .collect();
-    // Brown-Forsythe: deviations from the medians, shifted by Levene's
-    // mean deviations (close to theirs).
-    let shifts = std::mem::take(&mut observed.levene_means);
+    // Brown-Forsythe: deviations from the medians, shifted by each level's
+    // first deviation.
+    let shifts: Vec<f64> = (observed.first_values.iter().zip(&medians))
+        .map(|(y, m)| (y - m).abs())
+        .collect();
     let mut sums: Vec<[NeumaierSum; 2]> = vec![Default::default(); summaries.len()];
     passes.pass(true, &mut |level, offsets, _| {
         let (median, shift) = (medians[level], shifts[level]);
@@ -391,7 +397,7 @@ impl Observed {
             quartiles: vec![(f64::NAN, f64::NAN, f64::NAN); k],
             total_ss: f64::NAN,
             first_lines: vec![0; k],
-            levene_means: Vec::new(),
+            first_values: Vec::new(),
             passes: 0,
         }
     }
@@ -400,3 +406,7 @@ impl Observed {
 fn changed_error() -> DataError {
     crate::data::scan::changed_error()
 }
+
+#[cfg(test)]
+#[path = "observations_tests.rs"]
+mod tests;

@@ -169,15 +169,26 @@ pub(super) fn parallel<'a>(
     let stop = AtomicBool::new(false);
     // A short queue bounds the bytes in flight: queued + one per worker.
     let (job_tx, job_rx) = mpsc::sync_channel::<(usize, std::io::Result<Job<'a>>)>(2);
-    // Bounded too: when merging is slower than parsing (a later pass that
-    // does more per value), the workers wait instead of piling up results.
-    let (out_tx, out_rx) = mpsc::sync_channel::<(usize, Outcome)>(threads);
+    let (out_tx, out_rx) = mpsc::channel::<(usize, Outcome)>();
+    // Chunks not yet merged, whether queued, parsing or parsed, are at most
+    // `window`: a chunk takes a token before it is queued and gives it back
+    // once merged. Without it a slow merge (a later pass that does more per
+    // value) or a worker held up by a busy machine would let parsed chunks
+    // pile up.
+    let window = threads + 2;
+    let (token_tx, token_rx) = mpsc::sync_channel::<()>(window);
+    for _ in 0..window {
+        let _ = token_tx.send(());
+    }
     let job_rx = Mutex::new(job_rx);
     std::thread::scope(|scope| {
         let stop = &stop;
         scope.spawn(move || {
             for (i, job) in jobs.enumerate() {
-                if stop.load(Ordering::Relaxed) || job_tx.send((i, job)).is_err() {
+                if stop.load(Ordering::Relaxed)
+                    || token_rx.recv().is_err()
+                    || job_tx.send((i, job)).is_err()
+                {
                     break;
                 }
             }
@@ -214,6 +225,7 @@ pub(super) fn parallel<'a>(
                 while let Some((outcome, relative)) = waiting.remove(&next) {
                     merged.add(outcome, relative)?;
                     next += 1;
+                    let _ = token_tx.send(());
                 }
             }
             Ok(())
@@ -223,6 +235,7 @@ pub(super) fn parallel<'a>(
             // until the producer sees the flag and hangs up.
             stop.store(true, Ordering::Relaxed);
             drop(out_rx);
+            drop(token_tx);
             if let Ok(rx) = job_rx.lock() {
                 while rx.recv().is_ok() {}
             }

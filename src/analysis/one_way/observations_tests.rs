@@ -1,0 +1,123 @@
+use super::*;
+use crate::stats::assumptions::{Center, levene, outliers, quartiles, skewness_kurtosis};
+
+/// A deterministic scramble in [0, 1).
+fn scramble(i: u64) -> f64 {
+    let x = i
+        .wrapping_mul(6_364_136_223_846_793_005)
+        .wrapping_add(1_442_695_040_888_963_407);
+    (x >> 11) as f64 / (1u64 << 53) as f64
+}
+
+/// Invented levels: skewed, on a 0.01 grid with ties, one of a single
+/// repeated value plus one outlier, negative values.
+fn levels() -> Vec<Vec<f64>> {
+    vec![
+        (0..4000).map(|i| -2.0 * scramble(i).ln()).collect(),
+        (0..3001)
+            .map(|i| ((scramble(i + 50_000) * 300.0).floor() - 150.0) / 100.0)
+            .collect(),
+        (0..500)
+            .map(|i| if i == 250 { 40.0 } else { 1.5 })
+            .collect(),
+        (0..7).map(|i| -3.0 - scramble(i + 9) * 0.1).collect(),
+    ]
+}
+
+fn relative(a: f64, b: f64) -> f64 {
+    (a - b).abs() / b.abs().max(f64::MIN_POSITIVE)
+}
+
+/// The passes agree with the established in-memory functions (which the
+/// reference tests compare with scipy): order statistics exactly, sums to
+/// rounding (1e-12 relative: the shifted and two-pass formulas differ only
+/// in how they round), outliers to the line.
+#[test]
+fn the_passes_agree_with_the_functions_on_all_values() {
+    let groups = levels();
+    let summaries: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    let lines: Vec<Vec<usize>> = (groups.iter().scan(2, |next, g| {
+        let l: Vec<usize> = (*next..*next + g.len()).collect();
+        *next += g.len();
+        Some(l)
+    }))
+    .collect();
+    let observed = observe(
+        &mut Kept {
+            offsets: &groups,
+            lines: &lines,
+        },
+        &summaries,
+    )
+    .expect("observe");
+    let slices: Vec<&[f64]> = groups.iter().map(Vec::as_slice).collect();
+    for (q, g) in observed.quartiles.iter().zip(&groups) {
+        let (a, b, c) = quartiles(g);
+        assert_eq!(
+            (q.0.to_bits(), q.1.to_bits(), q.2.to_bits()),
+            (a.to_bits(), b.to_bits(), c.to_bits())
+        );
+    }
+    let bf = levene(&slices, Center::Median).expect("bf");
+    let lv = levene(&slices, Center::Mean).expect("levene");
+    let (obf, olv) = (
+        observed.brown_forsythe.expect("bf"),
+        observed.levene.expect("levene"),
+    );
+    assert!(
+        relative(obf.statistic, bf.statistic) < 1e-12,
+        "{obf:?} {bf:?}"
+    );
+    assert!(
+        relative(olv.statistic, lv.statistic) < 1e-12,
+        "{olv:?} {lv:?}"
+    );
+    let residuals: Vec<f64> = groups
+        .iter()
+        .zip(&summaries)
+        .flat_map(|(g, s)| g.iter().map(move |y| y - s.mean))
+        .collect();
+    let (skew, kurt) = skewness_kurtosis(&residuals);
+    assert!(relative(observed.skewness, skew) < 1e-12);
+    assert!(relative(observed.excess_kurtosis, kurt) < 1e-12);
+    let table = one_way(&summaries, 0.05, None).expect("table");
+    let means: Vec<f64> = summaries.iter().map(|s| s.mean).collect();
+    let flagged = outliers(&slices, &means, table.ms_within, table.df_within);
+    assert_eq!(observed.outlier_count, flagged.total);
+    let mut expected: Vec<usize> = flagged
+        .most_extreme
+        .iter()
+        .map(|o| lines[o.level][o.index])
+        .collect();
+    expected.sort_unstable();
+    let got: Vec<usize> = observed.outliers.iter().map(|o| o.line).collect();
+    assert_eq!(got, expected);
+    assert!(observed.outliers.iter().any(|o| o.offset == 40.0));
+    // More than 5,000 residuals: Shapiro-Wilk is out of its range.
+    assert_eq!(observed.shapiro_wilk, Err(ShapiroWilkSkip::TooMany));
+}
+
+#[test]
+fn equal_deviations_have_exactly_no_spread() {
+    // Each level is symmetric about its mean: every |y − mean| is the same,
+    // so Levene's deviations have no spread and the test is undefined.
+    let groups = vec![vec![1.0, 3.0, 1.0, 3.0, 1.0, 3.0], vec![5.0, 9.0, 9.0, 5.0]];
+    let summaries: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    let lines = vec![vec![1, 2, 3, 4, 5, 6], vec![7, 8, 9, 10]];
+    let observed = observe(
+        &mut Kept {
+            offsets: &groups,
+            lines: &lines,
+        },
+        &summaries,
+    )
+    .expect("observe");
+    assert_eq!(observed.levene, None);
+    assert_eq!(observed.quartiles[1].1, 7.0);
+}
