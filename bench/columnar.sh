@@ -5,10 +5,14 @@
 #       records its input's hash
 #   (s) sheaf build with `checks: summary` (ANOVA, Tukey-Kramer)
 #   (d) sheaf build with every check (the default)
-# on the CSV file, on Parquet with the response as DOUBLE and on Parquet
-# with the response as DECIMAL(7, 3). Each is timed as a whole process, best
-# of $REPEAT, with CPU time and peak memory (GNU time %M). Prints F from every
-# build (they must agree).
+# on the CSV file, on Parquet with the response as DOUBLE and as
+# DECIMAL(7, 3) (snappy: about 30 MB, under the 32 MiB from which a file is
+# streamed, so read into memory first) and on uncompressed Parquet with the
+# DOUBLE response (large enough to be streamed row group by row group).
+# Each build starts without a cache (a file read into memory would
+# otherwise come from it on the second run). Each is timed as a whole
+# process, best of $REPEAT, with CPU time and peak memory (GNU time %M).
+# Prints F from every build (they must agree).
 # The data are bench/large_oneway.sh's invented fill weights (12 filling
 # heads, 20,000,000 rows); pyarrow (installed by the script into a virtual
 # environment under the target folder) writes them as Parquet with its
@@ -38,28 +42,34 @@ if [ ! -s "$csv" ]; then
 fi
 double="$data/fill-$rows.double.parquet"
 decimal="$data/fill-$rows.decimal.parquet"
-if [ ! -s "$double" ] || [ ! -s "$decimal" ]; then
-  echo "writing $double and $decimal"
-  "$venv/bin/python" - "$csv" "$double" "$decimal" <<'PY'
+plain="$data/fill-$rows.plain.parquet"
+if [ ! -s "$double" ] || [ ! -s "$decimal" ] || [ ! -s "$plain" ]; then
+  echo "writing $double, $decimal and $plain"
+  "$venv/bin/python" - "$csv" "$double" "$decimal" "$plain" <<'PY'
+import os
 import sys
 import pyarrow as pa
 import pyarrow.csv as pc
 import pyarrow.parquet as pq
-source, double, decimal = sys.argv[1:]
-for path, kind in ((double, pa.float64()), (decimal, pa.decimal128(7, 3))):
+source, double, decimal, plain = sys.argv[1:]
+for path, kind, compression in (
+    (double, pa.float64(), "snappy"),
+    (decimal, pa.decimal128(7, 3), "snappy"),
+    (plain, pa.float64(), "none"),
+):
     types = {"head": pa.string(), "fill_g": kind, "shift": pa.string()}
     table = pc.read_csv(source, convert_options=pc.ConvertOptions(column_types=types))
-    pq.write_table(table, path + ".tmp")
-    import os
+    pq.write_table(table, path + ".tmp", compression=compression)
     os.replace(path + ".tmp", path)
 PY
 fi
 for checks in summary all; do
-  for input in csv double decimal; do
+  for input in csv double decimal plain; do
     case $input in
       csv) file="$(basename "$csv")" ;;
       double) file="$(basename "$double")" ;;
       decimal) file="$(basename "$decimal")" ;;
+      plain) file="$(basename "$plain")" ;;
     esac
     cat > "$data/columnar-$input-$checks.md" <<DOC
 # Fill weights by filling head (invented data)
@@ -77,7 +87,7 @@ DOC
   done
 done
 
-cat "$csv" "$double" "$decimal" > /dev/null # into the page cache alike
+cat "$csv" "$double" "$decimal" "$plain" > /dev/null # into the page cache alike
 # best "wall user+sys peakKiB" of $repeat runs of a command
 measure() {
   local best="" line wall user sys peak start end
@@ -99,26 +109,28 @@ row() {
   read -r wall cpu peak <<< "$2"
   printf '%-46s %9.3f %9.2f %11.0f\n' "$1" "$wall" "$cpu" "$((peak / 1024))"
 }
-printf '%s rows, %s core(s); CSV %s MB, Parquet (double) %s MB, Parquet (decimal) %s MB\n' \
-  "$rows" "$(nproc)" "$(($(stat -c %s "$csv") / 1000000))" \
-  "$(($(stat -c %s "$double") / 1000000))" "$(($(stat -c %s "$decimal") / 1000000))"
+mb() { echo "$(($(stat -c %s "$1") / 1000000))"; }
+printf '%s rows, %s core(s); MB: CSV %s, Parquet double %s, decimal %s, plain %s\n' \
+  "$rows" "$(nproc)" "$(mb "$csv")" "$(mb "$double")" "$(mb "$decimal")" "$(mb "$plain")"
 printf '%-46s %9s %9s %11s\n' "" "wall s" "CPU s" "peak MiB"
 declare -A hash
-for input in csv double decimal; do
+for input in csv double decimal plain; do
   case $input in
     csv) file="$csv" ;;
     double) file="$double" ;;
     decimal) file="$decimal" ;;
+    plain) file="$plain" ;;
   esac
   hash[$input]=$(measure openssl dgst -sha256 "$file")
   row "(h) openssl dgst -sha256, $input" "${hash[$input]}"
 done
 fs=""
 for checks in summary all; do
-  for input in csv double decimal; do
-    result=$(measure "$bin" build "$data/columnar-$input-$checks.md" -o "$data/out-columnar-$input-$checks")
+  for input in csv double decimal plain; do
+    out="$data/out-columnar-$input-$checks"
+    result=$(measure sh -c "rm -rf '$out/.sheaf-cache' && exec '$bin' build '$data/columnar-$input-$checks.md' -o '$out'")
     row "sheaf, checks: $checks, $input" "$result"
-    f=$(grep -o 'F = [0-9.]*' "$data/out-columnar-$input-$checks/columnar-$input-$checks.html" | head -1)
+    f=$(grep -o 'F = [0-9.]*' "$out/columnar-$input-$checks.html" | head -1)
     fs="$fs $input/$checks: $f;"
     ratio=$(awk -v x="${result%% *}" -v y="${hash[$input]%% *}" 'BEGIN { printf "%.1f", x / y }')
     echo "    = ${ratio}× the hash of its own file"
