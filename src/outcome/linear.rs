@@ -229,8 +229,9 @@ pub struct LinearOutcome {
     pub id: String,
     pub line: usize,
     pub data: String,
-    /// `query`: the SQL file that computed a summary file.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// `query`: the SQL file that computed a summary file. (No
+    /// `skip_serializing_if` in outcomes: the cache's encoding needs every field.)
+    #[serde(default)]
     pub query: Option<String>,
     pub response: String,
     pub alpha: f64,
