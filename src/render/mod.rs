@@ -177,14 +177,30 @@ fn linear_choices(o: &LinearOutcome) -> String {
         )
     });
     format!(
-        "`{}` (line {}): {model}{scale}; {}{doses}{equivalence}; α = {}; {} used, {} left out.",
+        "`{}` (line {}): {model}{scale}; {}{doses}{equivalence}; α = {}; {}.",
         o.id,
         o.line,
         compare.unwrap_or_else(|| "no pairwise comparisons".to_string()),
         o.alpha,
-        crate::format::counted(o.n, "observation", "observations"),
-        crate::format::counted(o.exclusions.len(), "row", "rows")
+        observations_used(o)
     )
+}
+
+/// How many observations a block used and where they came from: rows of
+/// the data file, or summaries of them.
+fn observations_used(o: &LinearOutcome) -> String {
+    use crate::outcome::linear::InputForm;
+    let used = crate::format::counted(o.n, "observation", "observations");
+    match &o.input {
+        InputForm::Observations => format!(
+            "{used} used, {} left out",
+            crate::format::counted(o.exclusions.len(), "row", "rows")
+        ),
+        InputForm::Summaries => format!("{used}, given as published means and spreads"),
+        InputForm::ExactSums { origin } => {
+            format!("{used}, given as exact sums about the origin {origin}")
+        }
+    }
 }
 
 #[cfg(test)]
