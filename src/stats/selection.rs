@@ -17,7 +17,9 @@
 
 use std::cmp::Ordering;
 
-/// Buckets counted at once over all windows of a pass (24 bytes each).
+use crate::stats::sum::NeumaierSum;
+
+/// Buckets counted at once over all windows of a pass (64 bytes each).
 pub const BUCKET_BUDGET: usize = 1 << 18;
 /// Values collected at once over all windows of a pass (8 bytes each).
 pub const COLLECT_BUDGET: usize = 1 << 19;
@@ -158,13 +160,54 @@ impl Grid {
     }
 }
 
+/// One bucket of a counted window: how many values, the smallest and the
+/// largest, and (for a window holding all of its group, see [`Whole`]) the
+/// first value seen with the sums of every value's offset from it.
+#[derive(Debug, Clone, Copy)]
+pub struct Bucket {
+    pub count: u64,
+    pub low: f64,
+    pub high: f64,
+    pub first: f64,
+    /// Σ(v − first) and Σ(v − first)², in the order the values were seen.
+    pub offsets: [NeumaierSum; 2],
+}
+
+impl Bucket {
+    const EMPTY: Bucket = Bucket {
+        count: 0,
+        low: f64::NAN,
+        high: f64::NAN,
+        first: f64::NAN,
+        offsets: [NeumaierSum::ZERO; 2],
+    };
+
+    /// True when every value in the bucket is the same value.
+    pub fn single_valued(&self) -> bool {
+        self.low.total_cmp(&self.high) == Ordering::Equal
+    }
+}
+
+/// A group as the first pass saw it, when that pass read every value of
+/// the group in one window: enough to compute sums over the group that
+/// depend on order statistics found only later (Brown-Forsythe's
+/// deviations from the median) without reading the values again.
+#[derive(Debug, Clone)]
+pub enum Whole {
+    /// Every value, in the order seen.
+    Values(Vec<f64>),
+    /// The buckets in value order.
+    Buckets(Vec<Bucket>),
+}
+
 /// What a pass does for one window of one group.
 enum Work {
+    /// `sums`: whether the buckets track their offset sums (a window
+    /// holding the whole group, in the first pass).
     Count {
         grid: Grid,
-        counts: Vec<u64>,
-        lows: Vec<f64>,
-        highs: Vec<f64>,
+        buckets: Vec<Bucket>,
+        sums: bool,
     },
     Collect(Vec<f64>),
 }
@@ -185,6 +228,8 @@ pub struct Selection {
     passes: usize,
     /// Buckets and collected values allowed in one pass.
     budgets: (usize, usize),
+    /// Per group, how the first pass saw it, when it read it whole.
+    whole: Vec<Option<Whole>>,
 }
 
 impl Selection {
@@ -224,6 +269,7 @@ impl Selection {
             })
             .collect();
         Selection {
+            whole: vec![None; groups.len()],
             targets,
             active: Vec::new(),
             passes: 0,
@@ -282,12 +328,10 @@ impl Selection {
                 }
                 buckets += per_window;
                 let grid = Grid::new(window.grid.0, window.grid.1, per_window);
-                let len = grid.len();
                 Work::Count {
                     grid,
-                    counts: vec![0; len],
-                    lows: vec![f64::NAN; len],
-                    highs: vec![f64::NAN; len],
+                    buckets: vec![Bucket::EMPTY; grid.len()],
+                    sums: self.passes == 1 && window.bounds.is_none(),
                 }
             };
             self.active[g].push(Active {
@@ -311,24 +355,27 @@ impl Selection {
                 }
                 Work::Count {
                     grid,
-                    counts,
-                    lows,
-                    highs,
+                    buckets,
+                    sums,
                 } => {
                     for &v in values {
                         if !window.holds(v) {
                             continue;
                         }
-                        let b = grid.bucket(v);
-                        if counts[b] == 0 {
-                            lows[b] = v;
-                            highs[b] = v;
-                        } else if v.total_cmp(&lows[b]) == Ordering::Less {
-                            lows[b] = v;
-                        } else if v.total_cmp(&highs[b]) == Ordering::Greater {
-                            highs[b] = v;
+                        let b = &mut buckets[grid.bucket(v)];
+                        if b.count == 0 {
+                            (b.low, b.high, b.first) = (v, v, v);
+                        } else if v.total_cmp(&b.low) == Ordering::Less {
+                            b.low = v;
+                        } else if v.total_cmp(&b.high) == Ordering::Greater {
+                            b.high = v;
                         }
-                        counts[b] += 1;
+                        b.count += 1;
+                        if *sums {
+                            let u = v - b.first;
+                            b.offsets[0].add(u);
+                            b.offsets[1].add(u * u);
+                        }
                     }
                 }
             }
@@ -348,30 +395,36 @@ impl Selection {
                         if kept.len() != window.count {
                             return Err(SelectionError::Changed);
                         }
+                        if self.passes == 1 && window.bounds.is_none() {
+                            self.whole[g] = Some(Whole::Values(kept.clone()));
+                        }
                         kept.sort_unstable_by(f64::total_cmp);
                         for t in a.targets {
                             let target = &mut self.targets[g][t];
                             target.found = Some(kept[target.rank - window.below]);
                         }
                     }
-                    Work::Count {
-                        counts,
-                        lows,
-                        highs,
-                        ..
-                    } => {
-                        if counts.iter().sum::<u64>() != window.count as u64 {
+                    Work::Count { buckets, sums, .. } => {
+                        if buckets.iter().map(|b| b.count).sum::<u64>() != window.count as u64 {
                             return Err(SelectionError::Changed);
                         }
                         for t in a.targets {
-                            let target = &mut self.targets[g][t];
-                            narrow(target, &counts, &lows, &highs);
+                            narrow(&mut self.targets[g][t], &buckets);
+                        }
+                        if sums {
+                            self.whole[g] = Some(Whole::Buckets(buckets));
                         }
                     }
                 }
             }
         }
         Ok(())
+    }
+
+    /// How the first pass saw a group, when it read every value of it in
+    /// one window (and the group had values).
+    pub fn whole(&self, group: usize) -> Option<&Whole> {
+        self.whole.get(group).and_then(Option::as_ref)
     }
 
     /// The values of each group's ranks, in the order asked (NaN for a rank
@@ -391,19 +444,19 @@ impl Selection {
 }
 
 /// Moves a target into the bucket that holds its rank, or finds it there.
-fn narrow(target: &mut Target, counts: &[u64], lows: &[f64], highs: &[f64]) {
+fn narrow(target: &mut Target, buckets: &[Bucket]) {
     let mut before = target.window.below;
-    for (b, &c) in counts.iter().enumerate() {
-        let c = c as usize;
+    for b in buckets {
+        let c = b.count as usize;
         if target.rank < before + c {
-            if lows[b].total_cmp(&highs[b]) == Ordering::Equal {
-                target.found = Some(lows[b]);
+            if b.single_valued() {
+                target.found = Some(b.low);
             } else {
                 target.window = Window {
-                    bounds: Some((lows[b], highs[b])),
+                    bounds: Some((b.low, b.high)),
                     below: before,
                     count: c,
-                    grid: (lows[b], highs[b]),
+                    grid: (b.low, b.high),
                 };
             }
             return;

@@ -170,3 +170,56 @@ fn a_changed_count_is_an_error() {
     s.visit(0, &[1.0, 2.0]);
     assert_eq!(s.end_pass(), Err(SelectionError::Changed));
 }
+
+/// The first pass's record of a group read whole: a small group's values
+/// in the order seen; a large group's buckets, which partition its values
+/// in value order, each with the exact offsets from its first value (the
+/// reference here is a plain recount over the values).
+#[test]
+fn the_first_pass_records_groups_read_whole() {
+    let small: Vec<f64> = (0..50).map(|i| scramble(i) * 10.0).collect();
+    let large: Vec<f64> = (0..20_000)
+        .map(|i| (scramble(i + 99) * 400.0).round() / 100.0)
+        .collect();
+    let spec = vec![
+        (small.len(), vec![25], (0.0, 10.0)),
+        (large.len(), vec![10_000], (0.0, 4.0)),
+    ];
+    let mut s = Selection::new(&spec);
+    s.begin_pass();
+    s.visit(0, &small);
+    for part in large.chunks(777) {
+        s.visit(1, part);
+    }
+    s.end_pass().expect("one pass");
+    match s.whole(0) {
+        Some(Whole::Values(v)) => assert!(same_bits(v, &small)),
+        other => panic!("small group: {other:?}"),
+    }
+    let Some(Whole::Buckets(buckets)) = s.whole(1) else {
+        panic!("large group: {:?}", s.whole(1));
+    };
+    let occupied: Vec<&Bucket> = buckets.iter().filter(|b| b.count > 0).collect();
+    assert_eq!(
+        occupied.iter().map(|b| b.count).sum::<u64>(),
+        large.len() as u64
+    );
+    for pair in occupied.windows(2) {
+        assert!(pair[0].high < pair[1].low, "buckets in value order");
+    }
+    for b in occupied {
+        let inside: Vec<f64> = large
+            .iter()
+            .copied()
+            .filter(|&v| v >= b.low && v <= b.high)
+            .collect();
+        assert_eq!(inside.len() as u64, b.count);
+        assert_eq!(inside[0].to_bits(), b.first.to_bits());
+        // Values on a 0.01 grid, four hundred steps over 4,096 buckets: one
+        // value each, so every offset is exactly zero.
+        assert!(b.single_valued());
+        assert_eq!(b.offsets[0].value(), 0.0);
+        assert_eq!(b.offsets[1].value(), 0.0);
+    }
+    assert!(s.done(), "one-valued buckets answer at once");
+}

@@ -9,6 +9,11 @@ pub struct NeumaierSum {
 }
 
 impl NeumaierSum {
+    pub const ZERO: NeumaierSum = NeumaierSum {
+        sum: 0.0,
+        compensation: 0.0,
+    };
+
     pub fn add(&mut self, x: f64) {
         let t = self.sum + x;
         if self.sum.abs() >= x.abs() {

@@ -9,8 +9,10 @@
 //! means, the residuals' power sums, the outliers, the total sum of squares
 //! and the first counts of the median and quartile selection. Then as many
 //! selection passes as the values need (none for data on a decimal grid
-//! of a few thousand steps per level). Last: Brown-Forsythe's deviations
-//! from the exact medians.
+//! of a few thousand steps per level). Brown-Forsythe's deviations from the
+//! exact medians come from pass A's record of each level (its values, or
+//! its buckets with their sums) where no bucket holds values on both sides
+//! of the median; else from one more pass.
 //!
 //! Sums are per level, Neumaier-compensated, fed each level's values in
 //! file order and combined in level order; outliers are ranked with ties
@@ -25,7 +27,7 @@ use crate::stats::assumptions::{
 };
 use crate::stats::extremes::Extremes;
 use crate::stats::oneway::{GroupSummary, one_way};
-use crate::stats::selection::Selection;
+use crate::stats::selection::{Selection, Whole};
 use crate::stats::sum::NeumaierSum;
 
 /// Shapiro-Wilk is computed up to this many residuals (Royston's range),
@@ -35,9 +37,10 @@ const SHAPIRO_WILK_MAX: usize = 5000;
 /// A source of passes over the observations.
 pub(super) trait Passes {
     /// Hands every observation to `visit(level, offsets, lines)`, in runs
-    /// of one level, each level's values in file order. `last` marks the
-    /// final pass.
-    fn pass(&mut self, last: bool, visit: Visit<'_>) -> Result<(), DataError>;
+    /// of one level, each level's values in file order. `verify`: check
+    /// the bytes against the first pass's hash (so the pass that may be the
+    /// last reads the file the report records).
+    fn pass(&mut self, verify: bool, visit: Visit<'_>) -> Result<(), DataError>;
 }
 
 type Visit<'v> = &'v mut dyn FnMut(usize, &[f64], &[usize]);
@@ -49,7 +52,7 @@ pub(super) struct Kept<'a> {
 }
 
 impl Passes for Kept<'_> {
-    fn pass(&mut self, _last: bool, visit: Visit<'_>) -> Result<(), DataError> {
+    fn pass(&mut self, _verify: bool, visit: Visit<'_>) -> Result<(), DataError> {
         for (level, (offsets, lines)) in self.offsets.iter().zip(self.lines).enumerate() {
             visit(level, offsets, lines);
         }
@@ -68,14 +71,14 @@ pub(super) struct Reread<'a> {
 }
 
 impl Passes for Reread<'_> {
-    fn pass(&mut self, last: bool, visit: Visit<'_>) -> Result<(), DataError> {
+    fn pass(&mut self, verify: bool, visit: Visit<'_>) -> Result<(), DataError> {
         let design = &self.design;
         let mut to_design = |level: usize, offsets: &[f64], lines: &[usize]| {
             if let Some(Some(d)) = design.get(level) {
                 visit(*d, offsets, lines);
             }
         };
-        rescan_csv(self.again, &self.spec, &self.first, last, &mut to_design)
+        rescan_csv(self.again, &self.spec, &self.first, verify, &mut to_design)
     }
 }
 
@@ -317,6 +320,53 @@ fn wanted_ranks(summaries: &[GroupSummary]) -> Vec<(usize, Vec<usize>, (f64, f64
         .collect()
 }
 
+/// Adds Brown-Forsythe's shifted deviations |y − median| − shift of a level
+/// from the first pass's record of it, when that record allows: every
+/// value kept (added in the order seen, as a pass over them would), or
+/// buckets each wholly on one side of the median (a bucket of one value
+/// adds c·d and c·d²; one of several values, through its offsets u from
+/// its first value f: d = K ± u with K = ±(f − median) − shift). False,
+/// with nothing added, when a bucket holds values on both sides.
+fn deviations_of_whole(
+    whole: &Whole,
+    median: f64,
+    shift: f64,
+    sums: &mut [NeumaierSum; 2],
+) -> bool {
+    match whole {
+        Whole::Values(values) => {
+            for &y in values {
+                add_shifted(sums, (y - median).abs() - shift);
+            }
+            true
+        }
+        Whole::Buckets(buckets) => {
+            let occupied = || buckets.iter().filter(|b| b.count > 0);
+            if occupied().any(|b| b.low < median && b.high > median) {
+                return false;
+            }
+            for b in occupied() {
+                let c = b.count as f64;
+                let k = (b.first - median).abs() - shift;
+                if b.single_valued() {
+                    sums[0].add(c * k);
+                    sums[1].add(c * k * k);
+                } else {
+                    // Above the median d = K + u, below it d = K − u.
+                    let sign = if b.low >= median { 1.0 } else { -1.0 };
+                    let (su, su2) = (b.offsets[0].value(), b.offsets[1].value());
+                    sums[0].add(c * k);
+                    sums[0].add(sign * su);
+                    sums[1].add(c * k * k);
+                    sums[1].add(2.0 * sign * k * su);
+                    sums[1].add(su2);
+                }
+            }
+            true
+        }
+    }
+}
+
 /// Every check on the observations of levels with these summaries.
 pub(super) fn observe(
     passes: &mut dyn Passes,
@@ -326,7 +376,8 @@ pub(super) fn observe(
     let mut selection = Selection::new(&wanted_ranks(summaries));
     let mut first = PassA::new(summaries);
     selection.begin_pass();
-    passes.pass(false, &mut |level, offsets, lines| {
+    // Checked against the first pass's hash: it may be the last pass.
+    passes.pass(true, &mut |level, offsets, lines| {
         first.visit(level, offsets, lines);
         selection.visit(level, offsets);
     })?;
@@ -364,23 +415,37 @@ pub(super) fn observe(
         })
         .collect();
     // Brown-Forsythe: deviations from the medians, shifted by each level's
-    // first deviation.
+    // first deviation; from the first pass's record of a level where it
+    // allows, else read again.
     let shifts: Vec<f64> = (observed.first_values.iter().zip(&medians))
         .map(|(y, m)| (y - m).abs())
         .collect();
     let mut sums: Vec<[NeumaierSum; 2]> = vec![Default::default(); summaries.len()];
-    passes.pass(true, &mut |level, offsets, _| {
-        let (median, shift) = (medians[level], shifts[level]);
-        for &y in offsets {
-            add_shifted(&mut sums[level], (y - median).abs() - shift);
-        }
-    })?;
+    let again: Vec<bool> = (0..summaries.len())
+        .map(|g| {
+            let whole = selection.whole(g);
+            summaries[g].n > 0
+                && !whole
+                    .is_some_and(|w| deviations_of_whole(w, medians[g], shifts[g], &mut sums[g]))
+        })
+        .collect();
+    if again.iter().any(|&a| a) {
+        passes.pass(true, &mut |level, offsets, _| {
+            let (median, shift) = (medians[level], shifts[level]);
+            if again[level] {
+                for &y in offsets {
+                    add_shifted(&mut sums[level], (y - median).abs() - shift);
+                }
+            }
+        })?;
+        observed.passes += 1;
+    }
     let deviations: Vec<GroupSummary> = (summaries.iter().zip(&shifts))
         .zip(&sums)
         .map(|((s, &shift), sums)| shifted_summary(s.n, shift, sums))
         .collect();
     observed.brown_forsythe = spread_test(&deviations);
-    observed.passes = selection.passes() + 1;
+    observed.passes += selection.passes();
     Ok(observed)
 }
 
