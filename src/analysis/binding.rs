@@ -55,7 +55,8 @@ pub(crate) struct FirstPass {
     pub names: Vec<String>,
     pub counts: Vec<usize>,
     pub bytes: u64,
-    pub sha256: Option<String>,
+    /// The bytes' fingerprint, when the first pass read a stream.
+    pub fingerprint: Option<u64>,
 }
 
 impl FirstPass {
@@ -64,20 +65,20 @@ impl FirstPass {
             names: scanned.levels.iter().map(|l| l.name.clone()).collect(),
             counts: scanned.levels.iter().map(|l| l.summary.n).collect(),
             bytes: scanned.bytes,
-            sha256: scanned.sha256.clone(),
+            fingerprint: scanned.fingerprint,
         }
     }
 }
 
 /// A later pass over a block's CSV data (see `data::scan::rescan`). The
 /// bytes must be the ones the first pass read: the same size and levels
-/// with the same counts on every pass, and on the `last` pass, when the
-/// first one hashed them, the same SHA-256; else a clear error.
+/// with the same counts on every pass, and on a pass that `verify`s, when
+/// the first one hashed them, the same fingerprint; else a clear error.
 pub(crate) fn rescan_csv(
     again: Again<'_>,
     spec: &ScanSpec<'_>,
     first: &FirstPass,
-    last: bool,
+    verify: bool,
     visit: Visit<'_>,
 ) -> Result<(), DataError> {
     let (source, columnar) = match again {
@@ -101,12 +102,12 @@ pub(crate) fn rescan_csv(
         format: if columnar { &text_format } else { spec.format },
         ..spec.clone()
     };
-    let hash = last && first.sha256.is_some();
-    let seen = rescan(source, &spec, &first.names, hash, reader_threads(), visit)?;
+    let verify = verify && first.fingerprint.is_some();
+    let seen = rescan(source, &spec, &first.names, verify, reader_threads(), visit)?;
     let counts = seen.levels.iter().map(|l| l.summary.n);
     if seen.bytes != first.bytes
         || !counts.eq(first.counts.iter().copied())
-        || (hash && seen.sha256 != first.sha256)
+        || (verify && seen.fingerprint != first.fingerprint)
     {
         return Err(crate::data::scan::changed_error());
     }

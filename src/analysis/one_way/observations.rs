@@ -38,7 +38,7 @@ const SHAPIRO_WILK_MAX: usize = 5000;
 pub(super) trait Passes {
     /// Hands every observation to `visit(level, offsets, lines)`, in runs
     /// of one level, each level's values in file order. `verify`: check
-    /// the bytes against the first pass's hash (so the pass that may be the
+    /// the bytes against the first pass's fingerprint (so the pass that may be the
     /// last reads the file the report records).
     fn pass(&mut self, verify: bool, visit: Visit<'_>) -> Result<(), DataError>;
 }
@@ -376,7 +376,7 @@ pub(super) fn observe(
     let mut selection = Selection::new(&wanted_ranks(summaries));
     let mut first = PassA::new(summaries);
     selection.begin_pass();
-    // Checked against the first pass's hash: it may be the last pass.
+    // Checked against the first pass's fingerprint: it may be the last pass.
     passes.pass(true, &mut |level, offsets, lines| {
         first.visit(level, offsets, lines);
         selection.visit(level, offsets);

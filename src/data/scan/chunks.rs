@@ -2,6 +2,7 @@
 //! parse them.
 
 use super::*;
+use twox_hash::XxHash3_64;
 
 /// A run of whole records: borrowed from memory, or read from a stream.
 pub(super) enum Chunk<'a> {
@@ -42,12 +43,16 @@ pub(super) struct Chunker<'a> {
     pub(super) carry: Vec<u8>,
     pub(super) eof: bool,
     pub(super) hasher: Option<Sha256>,
+    /// A fast 64-bit fingerprint of the same bytes, which later passes
+    /// compare instead of hashing again with SHA-256.
+    pub(super) fingerprint: Option<XxHash3_64>,
     pub(super) bytes_read: u64,
 }
 
 impl<'a> Chunker<'a> {
     pub(super) fn new(source: Source<'a>, chunk_bytes: usize) -> Self {
-        let hasher = matches!(source, Source::Stream(_)).then(Sha256::new);
+        let stream = matches!(source, Source::Stream(_));
+        let (hasher, fingerprint) = (stream.then(Sha256::new), stream.then(XxHash3_64::new));
         Chunker {
             source,
             chunk_bytes,
@@ -55,6 +60,7 @@ impl<'a> Chunker<'a> {
             carry: Vec::new(),
             eof: false,
             hasher,
+            fingerprint,
             bytes_read: 0,
         }
     }
@@ -73,6 +79,10 @@ impl<'a> Chunker<'a> {
                 .map(|b| format!("{b:02x}"))
                 .collect::<String>()
         })
+    }
+
+    pub(super) fn fingerprint(&mut self) -> Option<u64> {
+        self.fingerprint.take().map(|f| f.finish())
     }
 
     pub(super) fn next_chunk(&mut self) -> std::io::Result<Option<Chunk<'a>>> {
@@ -113,6 +123,9 @@ impl<'a> Chunker<'a> {
                         }
                         if let Some(h) = &mut self.hasher {
                             h.update(&buf[have..]);
+                        }
+                        if let Some(f) = &mut self.fingerprint {
+                            f.write(&buf[have..]);
                         }
                         self.bytes_read += n as u64;
                     }

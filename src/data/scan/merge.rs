@@ -151,6 +151,7 @@ impl<'v> Merged<'v> {
             decimals: self.decimals,
             excluded: self.excluded,
             sha256,
+            fingerprint: None,
             bytes,
         })
     }

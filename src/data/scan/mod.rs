@@ -82,6 +82,9 @@ pub struct Scanned {
     pub excluded: Vec<Exclusion>,
     /// SHA-256 of the bytes, in hex, when they were read from a stream.
     pub sha256: Option<String>,
+    /// XXH3 (64 bits) of the same bytes: what a later pass compares to
+    /// tell that the file has not changed (see [`Hashing`]).
+    pub fingerprint: Option<u64>,
     /// Bytes read.
     pub bytes: u64,
 }
@@ -104,22 +107,35 @@ pub fn scan_file(
         chunk_bytes,
         threads,
         Merged::new(spec.keep_values),
-        true,
+        Hashing::Both,
     )
+}
+
+/// What a pass over a stream hashes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Hashing {
+    /// The first pass: SHA-256 for the record and the fingerprint.
+    Both,
+    /// A later pass that checks the bytes: only the fingerprint (a few
+    /// percent of SHA-256's time; a file rewritten between passes, not
+    /// crafted to collide, changes it).
+    Fingerprint,
+    Nothing,
 }
 
 /// Reads the same bytes again for a later pass: each value with its line
 /// goes to `visit` (the level in the order of `levels`, the first pass's;
 /// a run of that level's offsets in file order; their lines) instead of
 /// being kept, so memory does not grow with the rows. A level the first
-/// pass did not find is an error: the bytes changed. A stream is hashed
-/// only when `hash` is set (to compare with the first pass's hash); the
-/// result's summaries and byte count let the caller compare the rest.
+/// pass did not find is an error: the bytes changed. A stream is
+/// fingerprinted only when `verify` is set (to compare with the first
+/// pass's fingerprint); the result's summaries and byte count let the
+/// caller compare the rest.
 pub fn rescan(
     source: Source<'_>,
     spec: &ScanSpec<'_>,
     levels: &[String],
-    hash: bool,
+    verify: bool,
     threads: usize,
     visit: Visit<'_>,
 ) -> Result<Scanned, DataError> {
@@ -133,7 +149,11 @@ pub fn rescan(
         CHUNK_BYTES,
         threads,
         Merged::again(levels, visit),
-        hash,
+        if verify {
+            Hashing::Fingerprint
+        } else {
+            Hashing::Nothing
+        },
     )
 }
 
@@ -144,11 +164,14 @@ fn scan_pass(
     chunk_bytes: usize,
     threads: usize,
     mut merged: Merged<'_>,
-    hash: bool,
+    hashing: Hashing,
 ) -> Result<Scanned, DataError> {
     let mut chunks = Chunker::new(source, chunk_bytes.max(1));
-    if !hash {
+    if hashing != Hashing::Both {
         chunks.hasher = None;
+    }
+    if hashing == Hashing::Nothing {
+        chunks.fingerprint = None;
     }
     // The header: the first record, after any blank lines (which may fill
     // whole chunks when chunks are small).
@@ -238,7 +261,9 @@ fn scan_pass(
         parallel(rest, &plan, threads, &mut merged)?;
     }
     let sha256 = chunks.digest();
-    merged.finish(&plan, spec, sha256, chunks.bytes_read)
+    let mut scanned = merged.finish(&plan, spec, sha256, chunks.bytes_read)?;
+    scanned.fingerprint = chunks.fingerprint();
+    Ok(scanned)
 }
 
 /// Reads `response` split by `factor` from a table (spreadsheets, wide

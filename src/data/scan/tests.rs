@@ -106,6 +106,12 @@ fn a_stream_reads_like_memory_and_is_hashed() {
         stream.sha256.as_deref(),
         Some(crate::provenance::sha256_hex(text.as_bytes()).as_str())
     );
+    // Fed chunk by chunk, the fingerprint is XXH3 of the whole file.
+    assert_eq!(
+        stream.fingerprint,
+        Some(twox_hash::XxHash3_64::oneshot(text.as_bytes()))
+    );
+    assert_eq!(memory.fingerprint, None);
     assert_eq!(stream.bytes, text.len() as u64);
 }
 
