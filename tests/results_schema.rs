@@ -704,6 +704,8 @@ mod contract {
         pub orthogonal: bool,
         pub critical_value: Option<f64>,
         #[serde(deserialize_with = "nullable")]
+        pub df_method: Option<String>,
+        #[serde(deserialize_with = "nullable")]
         pub joint: Option<FRow>,
         pub contrasts: Vec<PlannedContrast>,
     }

@@ -1,17 +1,40 @@
-//! Planned contrasts, whatever the engine: the engine gives one factor's
-//! level means with their covariance (already scaled by the error mean
-//! square) and the error df; this weighs them as the document asks, tests
-//! each contrast, adjusts the set when asked, checks orthogonality and
-//! tests the set jointly.
+//! Planned contrasts, whatever the engine: the engine tests any weighing of
+//! one factor's level means ([`ContrastTests`]: a fixed-effects model from
+//! the means' covariance on the pooled error's df, a mixed model each
+//! contrast with its own SE and df); this weighs them as the document asks,
+//! tests each contrast, adjusts the set when asked, checks orthogonality
+//! and tests the set jointly.
 
 use crate::diag::Diagnostic;
 use crate::doc::Document;
-use crate::doc::block::AnovaSpec;
+use crate::doc::block::{AnovaSpec, DdfMethod};
 use crate::doc::block_contrasts::{ContrastAdjust, ContrastSpec};
 use crate::outcome::contrasts::{ContrastDetail, PlannedContrast};
 use crate::outcome::covariates::FTest;
 use crate::stats::dist::{f_isf, f_sf, t_isf, t_sf};
 use crate::stats::sum::neumaier;
+
+/// A contrast's estimate with its SE and df.
+pub(crate) struct Tested {
+    pub estimate: f64,
+    pub se: f64,
+    pub df: f64,
+}
+
+/// How an engine tests contrasts among one factor's level means.
+pub(crate) trait ContrastTests {
+    fn factor(&self) -> &str;
+    fn labels(&self) -> &[String];
+    /// Σ wᵢ·meanᵢ with its SE and df (`None` where not estimable).
+    fn test(&self, weights: &[f64]) -> Option<Tested>;
+    /// The covariance of two contrasts under the model.
+    fn covariance(&self, a: &[f64], b: &[f64]) -> f64;
+    /// All contrasts at once (`None` for a dependent set).
+    fn joint(&self, rows: &[Vec<f64>]) -> Option<FTest>;
+    /// The df method when each contrast has its own SE and df (a mixed
+    /// model); `None` for the pooled error.
+    fn own_df(&self) -> Option<DdfMethod>;
+}
 
 /// One factor's level means and what the contrasts need from the model.
 pub(crate) struct LevelMeans<'a> {
@@ -21,6 +44,36 @@ pub(crate) struct LevelMeans<'a> {
     /// Covariance of the means, in squared response units.
     pub covariance: Vec<Vec<f64>>,
     pub df: f64,
+}
+
+impl ContrastTests for LevelMeans<'_> {
+    fn factor(&self) -> &str {
+        self.factor
+    }
+
+    fn labels(&self) -> &[String] {
+        self.labels
+    }
+
+    fn test(&self, w: &[f64]) -> Option<Tested> {
+        Some(Tested {
+            estimate: neumaier(w.iter().zip(&self.means).map(|(a, b)| a * b)),
+            se: quadratic(w, &self.covariance, w).sqrt(),
+            df: self.df,
+        })
+    }
+
+    fn covariance(&self, a: &[f64], b: &[f64]) -> f64 {
+        quadratic(a, &self.covariance, b)
+    }
+
+    fn joint(&self, rows: &[Vec<f64>]) -> Option<FTest> {
+        joint_test(rows, self)
+    }
+
+    fn own_df(&self) -> Option<DdfMethod> {
+        None
+    }
 }
 
 /// Whether a level as a contrast writes it (`1`, or `N=1` naming the
@@ -35,7 +88,7 @@ fn names(written: &str, factor: &str, label: &str) -> bool {
 /// The factor whose levels the first contrast names: the one its
 /// `factor=level` items name, else the only one holding every level.
 /// `Err` lists the factors when several hold them.
-pub(crate) fn factor_of<'a>(
+fn factor_of<'a>(
     spec: &AnovaSpec,
     factors: &'a [(String, Vec<String>)],
 ) -> Result<Option<&'a (String, Vec<String>)>, Vec<&'a str>> {
@@ -55,6 +108,38 @@ pub(crate) fn factor_of<'a>(
         [] => Ok(None),
         [one] => Ok(Some(one)),
         _ => Err(holding.iter().map(|(f, _)| f.as_str()).collect()),
+    }
+}
+
+/// The treatment factor (of `candidates`, each with its levels) whose
+/// levels the block's contrasts weigh; `None` without contrasts.
+pub(crate) fn contrast_factor(
+    doc: &Document,
+    spec: &AnovaSpec,
+    candidates: &[(String, Vec<String>)],
+) -> Result<Option<String>, Diagnostic> {
+    let Some(first) = spec.contrasts.first() else {
+        return Ok(None);
+    };
+    match factor_of(spec, candidates) {
+        Ok(Some((name, _))) => Ok(Some(name.clone())),
+        Ok(None) => Err(doc
+            .error_at(first.line, Some(first.column), format!("no treatment factor has every level `{}` names", first.name))
+            .hint("a contrast weighs the levels of one treatment factor; check the spelling of the levels")),
+        Err(several) => Err(doc
+            .error_at(
+                first.line,
+                Some(first.column),
+                format!(
+                    "the levels of `{}` belong to several factors ({})",
+                    first.name,
+                    several.join(", ")
+                ),
+            )
+            .hint(format!(
+                "name the factor with each level, e.g. `{}={}`",
+                several[0], first.weights[0].0
+            ))),
     }
 }
 
@@ -79,13 +164,14 @@ fn quadratic(a: &[f64], v: &[Vec<f64>], b: &[f64]) -> f64 {
 }
 
 /// Refuses a level a contrast names that the factor does not have.
-fn check_levels(doc: &Document, spec: &AnovaSpec, m: &LevelMeans<'_>) -> Result<(), Diagnostic> {
+fn check_levels(doc: &Document, spec: &AnovaSpec, m: &dyn ContrastTests) -> Result<(), Diagnostic> {
+    let (factor, labels) = (m.factor(), m.labels());
     for c in &spec.contrasts {
-        let known = |l: &str| m.labels.iter().any(|x| names(l, m.factor, x));
+        let known = |l: &str| labels.iter().any(|x| names(l, factor, x));
         if let Some((l, _)) = c.weights.iter().find(|(l, _)| !known(l)) {
             return Err(doc
-                .error_at(c.line, Some(c.column), format!("`{l}` in `{}` is not a level of `{}`", c.name, m.factor))
-                .hint(format!("the levels of `{}` are {}; all of a block's contrasts weigh the levels of one factor", m.factor, m.labels.join(", "))));
+                .error_at(c.line, Some(c.column), format!("`{l}` in `{}` is not a level of `{factor}`", c.name))
+                .hint(format!("the levels of `{factor}` are {}; all of a block's contrasts weigh the levels of one factor", labels.join(", "))));
         }
     }
     Ok(())
@@ -95,7 +181,7 @@ fn check_levels(doc: &Document, spec: &AnovaSpec, m: &LevelMeans<'_>) -> Result<
 pub(crate) fn planned(
     doc: &Document,
     spec: &AnovaSpec,
-    m: &LevelMeans<'_>,
+    m: &dyn ContrastTests,
     alpha: f64,
 ) -> Result<Option<ContrastDetail>, Diagnostic> {
     if spec.contrasts.is_empty() {
@@ -105,59 +191,73 @@ pub(crate) fn planned(
     let rows: Vec<Vec<f64>> = spec
         .contrasts
         .iter()
-        .map(|c| weights_over(c, m.factor, m.labels))
+        .map(|c| weights_over(c, m.factor(), m.labels()))
         .collect();
-    let count = rows.len() as f64;
-    let k = m.labels.len() as f64;
+    let (count, k) = (rows.len() as f64, m.labels().len() as f64);
     let adjust = spec.contrast_adjust;
-    let critical = match adjust {
-        ContrastAdjust::None => t_isf(alpha / 2.0, m.df),
+    // Each contrast's critical value on its own df (one df for them all on
+    // a pooled error).
+    let critical = |df: f64| match adjust {
+        ContrastAdjust::None => t_isf(alpha / 2.0, df),
         // Holm has no intervals of its own: Bonferroni's, which contain them.
-        ContrastAdjust::Bonferroni | ContrastAdjust::Holm => t_isf(alpha / (2.0 * count), m.df),
-        ContrastAdjust::Scheffe => ((k - 1.0) * f_isf(alpha, k - 1.0, m.df)).sqrt(),
+        ContrastAdjust::Bonferroni | ContrastAdjust::Holm => t_isf(alpha / (2.0 * count), df),
+        ContrastAdjust::Scheffe => ((k - 1.0) * f_isf(alpha, k - 1.0, df)).sqrt(),
     };
-    let mut contrasts: Vec<PlannedContrast> = spec
-        .contrasts
-        .iter()
-        .zip(&rows)
-        .map(|(c, w)| {
-            let estimate = neumaier(w.iter().zip(&m.means).map(|(a, b)| a * b));
-            let se = quadratic(w, &m.covariance, w).sqrt();
-            let t = estimate / se;
-            let positive: f64 = w.iter().filter(|x| **x > 0.0).sum();
-            PlannedContrast {
-                name: c.name.clone(),
-                weights: c.weights.clone(),
-                estimate,
-                se,
-                df: m.df,
-                t,
-                p: 2.0 * t_sf(t.abs(), m.df),
-                p_adj: None,
-                lower: estimate - critical * se,
-                upper: estimate + critical * se,
-                data_units: (positive - 1.0).abs() < 1e-9,
-            }
-        })
-        .collect();
-    adjust_p(&mut contrasts, adjust, k, m.df);
+    let mut contrasts = Vec::with_capacity(rows.len());
+    for (c, w) in spec.contrasts.iter().zip(&rows) {
+        let Some(tested) = m.test(w) else {
+            return Err(doc
+                .error_at(
+                    c.line,
+                    Some(c.column),
+                    format!(
+                        "the contrast `{}` cannot be estimated from this model",
+                        c.name
+                    ),
+                )
+                .hint("check that every level it weighs has observations"));
+        };
+        let Tested { estimate, se, df } = tested;
+        let t = estimate / se;
+        let positive: f64 = w.iter().filter(|x| **x > 0.0).sum();
+        let q = critical(df);
+        contrasts.push(PlannedContrast {
+            name: c.name.clone(),
+            weights: c.weights.clone(),
+            estimate,
+            se,
+            df,
+            t,
+            p: 2.0 * t_sf(t.abs(), df),
+            p_adj: None,
+            lower: estimate - q * se,
+            upper: estimate + q * se,
+            data_units: (positive - 1.0).abs() < 1e-9,
+        });
+    }
+    adjust_p(&mut contrasts, adjust, k);
     let orthogonal = (0..rows.len()).all(|a| {
         (a + 1..rows.len()).all(|b| {
-            let cov = quadratic(&rows[a], &m.covariance, &rows[b]);
+            let cov = m.covariance(&rows[a], &rows[b]);
             cov.abs() <= 1e-9 * (contrasts[a].se * contrasts[b].se)
         })
     });
+    let one_df = contrasts.windows(2).all(|p| p[0].df == p[1].df);
     Ok(Some(ContrastDetail {
-        factor: m.factor.to_string(),
+        factor: m.factor().to_string(),
         adjust,
-        joint: joint_test(&rows, m),
+        joint: m.joint(&rows),
+        critical: match contrasts.first() {
+            Some(c) if one_df => critical(c.df),
+            _ => f64::NAN,
+        },
         contrasts,
         orthogonal,
-        critical,
+        own_df: m.own_df(),
     }))
 }
 
-fn adjust_p(contrasts: &mut [PlannedContrast], adjust: ContrastAdjust, k: f64, df: f64) {
+fn adjust_p(contrasts: &mut [PlannedContrast], adjust: ContrastAdjust, k: f64) {
     let m = contrasts.len() as f64;
     match adjust {
         ContrastAdjust::None => {}
@@ -179,7 +279,7 @@ fn adjust_p(contrasts: &mut [PlannedContrast], adjust: ContrastAdjust, k: f64, d
         }
         ContrastAdjust::Scheffe => {
             for c in contrasts.iter_mut() {
-                c.p_adj = Some(f_sf(c.t * c.t / (k - 1.0), k - 1.0, df));
+                c.p_adj = Some(f_sf(c.t * c.t / (k - 1.0), k - 1.0, c.df));
             }
         }
     }

@@ -15,6 +15,7 @@ mod control;
 mod detail;
 mod families;
 mod fixed_terms;
+mod planned;
 mod repeated;
 mod residuals;
 mod structured;
@@ -23,6 +24,7 @@ mod units;
 
 use super::binding::decimals_shown;
 use super::checks::{Remedies, advice};
+use super::contrasts::contrast_factor;
 use super::factorial::cells::TreatmentCells;
 use super::factorial::checks::Source;
 use super::factorial::model::{Errors, Model};
@@ -369,7 +371,7 @@ impl Analysed {
             mixed: Some(Box::new(detail)),
             repeated: repeated.map(Box::new),
             covariates: None,
-            contrasts: None,
+            contrasts: self.contrasts(errors)?.map(Box::new),
             trend: None,
             transform: None,
             dose: None,
@@ -539,6 +541,31 @@ impl Analysed {
                     .all(|(f, l)| l.is_none_or(|l| row[f] == l))
             })
             .count()
+    }
+
+    /// The block's planned contrasts over one fixed factor's marginal means,
+    /// each with its own SE and df.
+    fn contrasts(
+        &self,
+        errors: &Errors<'_>,
+    ) -> Result<Option<crate::outcome::contrasts::ContrastDetail>, Diagnostic> {
+        let (doc, spec) = (errors.doc, errors.spec);
+        let candidates: Vec<(String, Vec<String>)> = (self.model.treatment_factors().into_iter())
+            .map(|f| {
+                (
+                    self.model.factor_names[f].clone(),
+                    self.data.levels[f].clone(),
+                )
+            })
+            .collect();
+        let Some(name) = contrast_factor(doc, spec, &candidates)? else {
+            return Ok(None);
+        };
+        let f = self.model.index_of(&name).unwrap_or(0);
+        let count = |fixed: &[Option<usize>]| self.count(fixed);
+        let estimating = self.estimating(&count);
+        let means = planned::MixedLevelMeans::new(&estimating, f, spec.ddf);
+        crate::analysis::contrasts::planned(doc, spec, &means, self.alpha)
     }
 
     /// What the means and comparisons read.

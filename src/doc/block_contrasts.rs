@@ -148,12 +148,6 @@ pub(super) fn contrast_keys(d: &AnovaDraft) -> Vec<SpecError> {
         hint: Some(hint.into()),
     };
     let mut errors = Vec::new();
-    if d.random.is_some() || d.subject.is_some() {
-        errors.push(at(
-            "planned contrasts with random terms or `subject` are not offered in this version".into(),
-            "compare the levels pairwise (`compare`), or state the contrast in a block without random terms",
-        ));
-    }
     if let Some(m) = d.method.filter(|m| *m != super::block::Omnibus::Anova) {
         errors.push(at(
             format!(

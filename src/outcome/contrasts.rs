@@ -40,6 +40,11 @@ pub struct ContrastDetail {
     /// All contrasts at once (None for one contrast, or when they are
     /// linearly dependent).
     pub joint: Option<FTest>,
-    /// The critical value the intervals use (t, or Scheffé's √((k−1)F)).
+    /// The critical value the intervals use (t, or Scheffé's √((k−1)F));
+    /// NaN when the contrasts have different df (each interval then uses
+    /// its own).
     pub critical: f64,
+    /// With random terms: each contrast's SE and df from the mixed model by
+    /// this method; `None` for the pooled error of a fixed-effects model.
+    pub own_df: Option<crate::doc::block::DdfMethod>,
 }

@@ -10,8 +10,13 @@ pub struct ContrastsRecord {
     /// "none", "bonferroni", "holm" or "scheffe".
     pub adjustment: &'static str,
     pub orthogonal: bool,
-    /// The multiplier of the intervals' SE.
+    /// The multiplier of the intervals' SE; null when the contrasts have
+    /// different df (a mixed model), each interval then on its own.
     pub critical_value: Option<f64>,
+    /// "kenward-roger" or "satterthwaite" when each contrast's SE and df
+    /// come from a mixed model; null for a fixed-effects model's pooled
+    /// error.
+    pub df_method: Option<&'static str>,
     /// All contrasts at once; null for one contrast or a dependent set.
     pub joint: Option<JointRecord>,
     pub contrasts: Vec<ContrastRecord>,
@@ -50,6 +55,7 @@ pub fn contrasts_record(c: &ContrastDetail) -> ContrastsRecord {
         adjustment: c.adjust.key(),
         orthogonal: c.orthogonal,
         critical_value: finite(c.critical),
+        df_method: c.own_df.map(|m| m.key()),
         joint: c.joint.as_ref().map(|j| JointRecord {
             f: finite(j.f),
             df1: j.df1,

@@ -4,7 +4,7 @@
 
 use super::fit::Fitted;
 use super::model::{Errors, Model};
-use crate::analysis::contrasts::{LevelMeans, factor_of, planned};
+use crate::analysis::contrasts::{LevelMeans, contrast_factor, planned};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
 use crate::outcome::contrasts::ContrastDetail;
@@ -69,40 +69,16 @@ impl Planning<'_> {
     /// levels they name.
     pub fn contrasts(&self) -> Result<Option<ContrastDetail>, Diagnostic> {
         let (doc, spec) = (self.errors.doc, self.errors.spec);
-        let Some(first) = spec.contrasts.first() else {
-            return Ok(None);
-        };
         let model = self.model;
         let candidates: Vec<(String, Vec<String>)> = model
             .treatment_factors()
             .into_iter()
             .map(|f| (model.factor_names[f].clone(), self.data.levels[f].clone()))
             .collect();
-        let name = match factor_of(spec, &candidates) {
-            Ok(Some((name, _))) => name,
-            Ok(None) => {
-                return Err(doc
-                    .error_at(first.line, Some(first.column), format!("no treatment factor has every level `{}` names", first.name))
-                    .hint("a contrast weighs the levels of one treatment factor; check the spelling of the levels"));
-            }
-            Err(several) => {
-                return Err(doc
-                    .error_at(
-                        first.line,
-                        Some(first.column),
-                        format!(
-                            "the levels of `{}` belong to several factors ({})",
-                            first.name,
-                            several.join(", ")
-                        ),
-                    )
-                    .hint(format!(
-                        "name the factor with each level, e.g. `{}={}`",
-                        several[0], first.weights[0].0
-                    )));
-            }
+        let Some(name) = contrast_factor(doc, spec, &candidates)? else {
+            return Ok(None);
         };
-        let f = model.index_of(name).unwrap_or(0);
+        let f = model.index_of(&name).unwrap_or(0);
         planned(doc, spec, &self.level_means(f)?, self.alpha)
     }
 

@@ -4,6 +4,7 @@
 
 use super::keys::Keys;
 use super::{cell, col, text};
+use crate::doc::block::DdfMethod;
 use crate::doc::block_contrasts::ContrastAdjust;
 use crate::format::{
     alpha_text, confidence_label, df_text, f_statement, fixed, p_value, significant,
@@ -107,8 +108,18 @@ fn footnotes(o: &LinearOutcome, d: &ContrastDetail) -> Vec<String> {
     } else {
         "estimated marginal means"
     };
+    let error = match d.own_df {
+        None => "SE from the model's error mean square; t on its df.".to_string(),
+        Some(method) => format!(
+            "SE and df of each contrast from the mixed model (df by {}, as its tests), so each contrast is judged by the variation of the units its levels were applied to; t on its own df.",
+            match method {
+                DdfMethod::KenwardRoger => "Kenward-Roger",
+                DdfMethod::Satterthwaite => "Satterthwaite",
+            }
+        ),
+    };
     let mut notes = vec![format!(
-        "Each contrast is Σ weight × mean over the {means}; levels not listed weigh 0. SE from the model's error mean square; t on its df."
+        "Each contrast is Σ weight × mean over the {means}; levels not listed weigh 0. {error}"
     )];
     notes.push(match d.adjust {
         ContrastAdjust::None => format!(
