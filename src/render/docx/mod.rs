@@ -178,7 +178,7 @@ fn closing_sections(report: &Report, text_width: u32) -> String {
     ]
     .concat();
     out.push_str(&paragraph(&Props::default(), &statement));
-    let choices: Vec<String> = report.results.iter().map(super::choices_of).collect();
+    let choices = report.choices();
     if !choices.is_empty() {
         out.push_str(&paragraph(
             &Props::default(),
@@ -186,11 +186,7 @@ fn closing_sections(report: &Report, text_width: u32) -> String {
         ));
         out.push_str(&bullets(&choices));
     }
-    let acknowledged: Vec<String> = report
-        .acknowledged()
-        .into_iter()
-        .flat_map(|b| b.notes.into_iter().map(move |n| format!("`{}`: {n}", b.id)))
-        .collect();
+    let acknowledged = report.acknowledged_items();
     if !acknowledged.is_empty() {
         out.push_str(&paragraph(
             &Props::default(),
