@@ -10,6 +10,7 @@ use crate::diag::Diagnostic;
 use crate::doc::Document;
 use crate::outcome::BlockResult;
 use crate::plan::plan;
+use crate::render::report::Report;
 use crate::render::{Format, render_report};
 use crate::results::results_json;
 pub use crate::world::{
@@ -78,15 +79,15 @@ pub fn compile(
     let Placement { placed, files } =
         place_figures(&computed.results, format, doc.front.figures, &stem)?;
     let results_name = format!("{stem}.results.json");
-    let report = render_report(
+    let sources = Report::of(
         &doc,
         &computed.results,
         &placed,
         &computed.inputs,
-        format,
         (&file_name, doc_bytes),
         &results_name,
-    )?;
+    );
+    let report = render_report(sources, format)?;
     let results = results_json(
         &file_name,
         doc_bytes,

@@ -77,6 +77,38 @@ impl<'a> CellKeys<'a> {
         })
     }
 
+    /// The keys of a form's cells and the index of each column it reads,
+    /// once those columns (and `optional`, when present) are known to be
+    /// filled in on every row.
+    fn open<const N: usize>(
+        table: &Table,
+        factors: &'a [&'a str],
+        names: [&String; N],
+        optional: Option<usize>,
+    ) -> Result<(Self, [usize; N]), DataError> {
+        let keys = CellKeys::new(table, factors)?;
+        let mut read = [0; N];
+        for (i, name) in read.iter_mut().zip(names) {
+            *i = table.column(name)?;
+        }
+        let mut used = keys.columns.clone();
+        used.extend(read);
+        used.extend(optional);
+        table.check_cells(&used)?;
+        Ok((keys, read))
+    }
+
+    /// A row's levels and its n (in column `ni`).
+    fn cell(
+        &mut self,
+        row: &csv::Record,
+        ni: usize,
+        format: &CsvFormat,
+    ) -> Result<(Vec<String>, usize), DataError> {
+        let levels = self.levels(row, format)?;
+        Ok((levels, summary_count(row, ni, format)?))
+    }
+
     /// A row's levels; an empty cell or a missing-value marker is refused
     /// (a summary row without its level cannot be placed).
     fn levels(&mut self, row: &csv::Record, format: &CsvFormat) -> Result<Vec<String>, DataError> {
@@ -191,19 +223,13 @@ fn published_cells(
     columns: &SummaryColumns,
     format: &CsvFormat,
 ) -> Result<SummaryCells, DataError> {
-    let mut keys = CellKeys::new(table, factors)?;
-    let ni = table.column(&columns.n)?;
-    let mi = table.column(&columns.mean)?;
-    let si = table.column(&columns.spread)?;
-    let mut used = keys.columns.clone();
-    used.extend([ni, mi, si]);
-    table.check_cells(&used)?;
+    let read = [&columns.n, &columns.mean, &columns.spread];
+    let (mut keys, [ni, mi, si]) = CellKeys::open(table, factors, read, None)?;
     let mut first: Option<Number> = None;
     let mut cells = Vec::with_capacity(table.rows.len());
     let mut decimals = 0;
     for row in &table.rows {
-        let levels = keys.levels(row, format)?;
-        let n = summary_count(row, ni, format)?;
+        let (levels, n) = keys.cell(row, ni, format)?;
         let mean_exact = summary_number(row, mi, "mean", format)?;
         decimals = decimals.max(mean_exact.decimals());
         let origin = *first.get_or_insert(mean_exact);
@@ -280,23 +306,15 @@ fn exact_cells(
     columns: &SummaryColumns,
     format: &CsvFormat,
 ) -> Result<SummaryCells, DataError> {
-    let mut keys = CellKeys::new(table, factors)?;
-    let ni = table.column(&columns.n)?;
-    let oi = table.column(&columns.origin)?;
-    let si = table.column(&columns.sum)?;
-    let qi = table.column(&columns.squares)?;
     let ri = table.header.iter().position(|h| *h == columns.rounded);
-    let mut used = keys.columns.clone();
-    used.extend([ni, oi, si, qi]);
-    used.extend(ri);
-    table.check_cells(&used)?;
+    let sums = [&columns.n, &columns.origin, &columns.sum, &columns.squares];
+    let (mut keys, [ni, oi, si, qi]) = CellKeys::open(table, factors, sums, ri)?;
     rounded_check(table, ri, format)?;
     let mut origin: Option<(WideDecimal, usize)> = None;
     let mut decimals = 0;
     let mut read = Vec::with_capacity(table.rows.len());
     for row in &table.rows {
-        let levels = keys.levels(row, format)?;
-        let n = summary_count(row, ni, format)?;
+        let (levels, n) = keys.cell(row, ni, format)?;
         let o = wide(row, oi, &columns.origin, format)?;
         match &origin {
             None => {

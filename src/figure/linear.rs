@@ -411,20 +411,12 @@ fn interaction_figure(o: &LinearOutcome, id: &str, n: usize) -> Option<(String, 
         "Figure {n}. Cell means of {}: {x_name} on the axis, one line per level of {line_name}{intervals}.",
         subject(o),
     );
-    let svg = interaction_plot(
-        id,
-        &caption,
-        &caption,
-        XAxis {
-            labels: &x_labels,
-            at: None,
-        },
-        &series,
-        &[],
-        (&axis_title(o), x_name, line_name),
-        spec.reference,
-    );
-    Some((caption, svg))
+    let lines = Lines {
+        series: &series,
+        traces: &[],
+        names: (x_name, line_name),
+    };
+    lines_figure(o, id, caption, (&x_labels, None), lines)
 }
 
 /// A repeated-measures profile: the model's means at each time with their
@@ -472,18 +464,43 @@ fn profile_figure(
         subject(o),
         confidence_label(o.alpha)
     );
+    let lines = Lines {
+        series: &series,
+        traces,
+        names: (time, group),
+    };
+    lines_figure(o, id, caption, (&x_labels, p.positions.as_deref()), lines)
+}
+
+/// The lines of a figure of means across the levels of one factor.
+struct Lines<'a> {
+    /// A line per level of the other factor (or group).
+    series: &'a [Series],
+    /// Drawn faintly behind the means (a profile's subjects).
+    traces: &'a [(usize, Vec<f64>)],
+    /// The axis's factor and the legend's.
+    names: (&'a str, &'a str),
+}
+
+/// Means across the levels on the axis (`labels`, at `at` when they are
+/// spaced by value), with their intervals, a line per series.
+fn lines_figure(
+    o: &LinearOutcome,
+    id: &str,
+    caption: String,
+    (labels, at): (&[&str], Option<&[f64]>),
+    lines: Lines<'_>,
+) -> Option<(String, String)> {
+    let (x_name, line_name) = lines.names;
     let svg = interaction_plot(
         id,
         &caption,
         &caption,
-        XAxis {
-            labels: &x_labels,
-            at: p.positions.as_deref(),
-        },
-        &series,
-        traces,
-        (&axis_title(o), time, group),
-        spec.reference,
+        XAxis { labels, at },
+        lines.series,
+        lines.traces,
+        (&axis_title(o), x_name, line_name),
+        o.presentation.plots.reference,
     );
     Some((caption, svg))
 }

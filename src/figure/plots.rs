@@ -252,7 +252,16 @@ fn axis_titles(
 /// Letter groups above a level. When the letters are wider than the level's
 /// slot (many levels, many groups) they are set vertically, reading upwards,
 /// so that neighbours never collide.
-fn letters_at(svg: &mut Svg, x: f64, y_px: f64, letters: Option<&str>, slot: f64) {
+/// `top` is the highest value drawn for the level (data units), `levels`
+/// how many levels share the axis.
+fn letters_at(
+    svg: &mut Svg,
+    frame: &Frame,
+    (x, top): (f64, f64),
+    letters: Option<&str>,
+    levels: usize,
+) {
+    let (y_px, slot) = (frame.y.map(top), frame.slot(levels));
     if let Some(l) = letters.filter(|l| !l.is_empty()) {
         if text_width(l, LETTER_SIZE as f32) as f64 > slot - 2.0 {
             let x = x + LETTER_SIZE * 0.35;
@@ -364,13 +373,7 @@ pub(super) fn box_plot(chart: &Chart, groups: &[Group]) -> String {
             }
         }
         let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        letters_at(
-            &mut svg,
-            x,
-            frame.y.map(top),
-            g.letters,
-            frame.slot(groups.len()),
-        );
+        letters_at(&mut svg, &frame, (x, top), g.letters, groups.len());
     }
     let _ = frame.top;
     let _ = frame.bottom;
@@ -415,13 +418,7 @@ pub(super) fn strip_plot(chart: &Chart, groups: &[Group]) -> String {
             );
         }
         let top = g.values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        letters_at(
-            &mut svg,
-            x,
-            frame.y.map(top),
-            g.letters,
-            frame.slot(groups.len()),
-        );
+        letters_at(&mut svg, &frame, (x, top), g.letters, groups.len());
     }
     svg.finish()
 }
@@ -453,13 +450,7 @@ pub(super) fn means_plot(chart: &Chart, groups: &[Group]) -> String {
         }
         svg.marker(x, frame.y.map(g.mean), 4.5, 0, PALETTE[0], INK, "mean");
         let top = if g.ci.1.is_finite() { g.ci.1 } else { g.mean };
-        letters_at(
-            &mut svg,
-            x,
-            frame.y.map(top),
-            g.letters,
-            frame.slot(groups.len()),
-        );
+        letters_at(&mut svg, &frame, (x, top), g.letters, groups.len());
     }
     svg.finish()
 }

@@ -9,6 +9,7 @@ use crate::doc::markdown::Expression;
 use crate::format::{df_text, f_statement, fixed, p_phrase, p_value, significant};
 use crate::outcome::linear::{Estimate, Family, LevelSummary, LinearOutcome, TermTest};
 use crate::outcome::{BlockResult, PowerResult};
+use f_test::FTestContext;
 use minijinja::value::{Value, ValueKind};
 use minijinja::{Environment, ErrorKind, UndefinedBehavior};
 use serde::Serialize;
@@ -39,6 +40,7 @@ mod covariance;
 mod covariates;
 mod dose;
 mod equivalence;
+mod f_test;
 mod friedman;
 mod names;
 mod traits;
@@ -160,15 +162,6 @@ struct ShapiroContext {
 }
 
 #[derive(Serialize)]
-struct WelchContext {
-    f: f64,
-    df1: f64,
-    df2: f64,
-    p: f64,
-    statement: String,
-}
-
-#[derive(Serialize)]
 struct KruskalContext {
     h: f64,
     df: f64,
@@ -236,24 +229,16 @@ fn checks_context(c: &crate::outcome::Checks) -> ChecksContext {
 /// estimated marginal mean for several (no SD or quartiles there).
 #[derive(Serialize)]
 struct GroupContext {
-    n: usize,
-    mean: f64,
+    #[serde(flatten)]
+    estimate: EmmContext,
     #[serde(skip_serializing_if = "Option::is_none")]
     sd: Option<f64>,
-    se: f64,
-    ci_lower: f64,
-    ci_upper: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     median: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     q1: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     q3: Option<f64>,
-    letters: Option<String>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    arithmetic_mean: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    back: Option<transform::BackContext>,
 }
 
 #[derive(Serialize)]
@@ -283,6 +268,23 @@ struct EmmContext {
     arithmetic_mean: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     back: Option<transform::BackContext>,
+}
+
+impl EmmContext {
+    /// Estimate `i` of a family (`fam`, when there is one, gives the
+    /// letters and the arithmetic mean).
+    fn new(o: &LinearOutcome, fam: Option<&Family>, m: &Estimate, i: usize) -> EmmContext {
+        EmmContext {
+            n: m.n,
+            mean: m.mean,
+            se: m.se,
+            ci_lower: m.ci_lower,
+            ci_upper: m.ci_upper,
+            letters: fam.and_then(|f| letters_of(f, i)),
+            arithmetic_mean: transform::arithmetic(o, fam, i),
+            back: transform::back(o, m),
+        }
+    }
 }
 
 /// The namespace of every linear block, one-factor or factorial. The
@@ -319,7 +321,7 @@ struct BlockContext {
     ss_type: Option<u8>,
     /// One factor only: the alternative tests (none unless computed).
     #[serde(skip_serializing_if = "Option::is_none")]
-    welch: Option<Option<WelchContext>>,
+    welch: Option<Option<FTestContext>>,
     #[serde(skip_serializing_if = "Option::is_none")]
     kruskal: Option<Option<KruskalContext>>,
     checks: ChecksContext,
@@ -445,16 +447,13 @@ fn block_statement(o: &LinearOutcome, alternatives: &AlternativesContext) -> Opt
 }
 
 /// Welch's test and the rank test of a one-factor block.
-struct AlternativesContext(Option<WelchContext>, Option<KruskalContext>);
+struct AlternativesContext(Option<FTestContext>, Option<KruskalContext>);
 
 fn alternatives_context(o: &LinearOutcome) -> AlternativesContext {
-    let welch = o.alternatives.welch.map(|w| WelchContext {
-        f: w.f,
-        df1: w.df1,
-        df2: w.df2,
-        p: w.p,
-        statement: format!("Welch's {}", f_statement(w.df1, w.df2, w.f, w.p)),
-    });
+    let welch = o
+        .alternatives
+        .welch
+        .map(|w| FTestContext::new(w.df1, w.df2, w.f, w.p).named("Welch's"));
     let kruskal = o.alternatives.kruskal.as_ref().map(|k| KruskalContext {
         h: k.h,
         df: k.df,
@@ -482,19 +481,7 @@ fn means_context(o: &LinearOutcome) -> BTreeMap<String, BTreeMap<String, EmmCont
                 .estimates
                 .iter()
                 .enumerate()
-                .map(|(i, m)| {
-                    let e = EmmContext {
-                        n: m.n,
-                        mean: m.mean,
-                        se: m.se,
-                        ci_lower: m.ci_lower,
-                        ci_upper: m.ci_upper,
-                        letters: letters_of(fam, i),
-                        arithmetic_mean: transform::arithmetic(o, Some(fam), i),
-                        back: transform::back(o, m),
-                    };
-                    (m.label.clone(), e)
-                })
+                .map(|(i, m)| (m.label.clone(), EmmContext::new(o, Some(fam), m, i)))
                 .collect();
             (key, entries)
         })
@@ -510,18 +497,11 @@ fn letters_of(fam: &Family, i: usize) -> Option<String> {
 /// `groups`: one factor's levels, or the primary factor's marginal means.
 fn groups_context(o: &LinearOutcome, fam: Option<&Family>) -> BTreeMap<String, GroupContext> {
     let group = |m: &Estimate, i: usize| GroupContext {
-        n: m.n,
-        mean: m.mean,
+        estimate: EmmContext::new(o, fam, m, i),
         sd: None,
-        se: m.se,
-        ci_lower: m.ci_lower,
-        ci_upper: m.ci_upper,
         median: None,
         q1: None,
         q3: None,
-        letters: fam.and_then(|f| letters_of(f, i)),
-        arithmetic_mean: transform::arithmetic(o, fam, i),
-        back: transform::back(o, m),
     };
     if !o.is_one_factor() {
         let estimates = fam.map_or(&[][..], |f| &f.estimates[..]);

@@ -1,5 +1,7 @@
 //! Which link targets may stay live in a report.
 
+use pulldown_cmark::LinkType;
+
 /// Whether a link target may stay live: relative URLs, `#fragment`, and the
 /// schemes http, https and mailto. Checked as a browser reads it (tabs and
 /// newlines dropped, surrounding spaces and control characters trimmed) and
@@ -24,6 +26,21 @@ pub(crate) fn safe_url(url: &str) -> bool {
             ),
             _ => true,
         })
+}
+
+/// Where a link of the prose goes in a report, or `None` when its target
+/// may not stay live (see `safe_url`; an e-mail address is always live):
+/// an e-mail address gets its `mailto:`.
+pub(crate) fn live_target(link_type: LinkType, dest_url: &str) -> Option<String> {
+    let email = link_type == LinkType::Email;
+    if !email && !safe_url(dest_url) {
+        return None;
+    }
+    let mut url = dest_url.to_string();
+    if email && !url.starts_with("mailto:") {
+        url.insert_str(0, "mailto:");
+    }
+    Some(url)
 }
 
 /// `%XX` sequences decoded (invalid ones left as they are).

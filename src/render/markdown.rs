@@ -4,7 +4,7 @@
 use super::links::safe_url;
 use super::report::Report;
 use super::templates::{environment, render};
-use super::writer::{About, Writer, Written};
+use super::writer::{About, FigureFile, Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::doc::markdown::markdown_options;
@@ -25,12 +25,7 @@ impl Writer for Markdown {
         }
     }
 
-    fn figure_file(
-        &self,
-        stem: &str,
-        figure: &Figure,
-        images: ImageFormat,
-    ) -> Result<Option<(String, Vec<u8>)>, String> {
+    fn figure_file(&self, stem: &str, figure: &Figure, images: ImageFormat) -> FigureFile {
         Ok(Some(match images {
             ImageFormat::Svg => (
                 format!("{stem}-{}.svg", figure.id),

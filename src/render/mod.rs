@@ -21,11 +21,8 @@ pub mod writer;
 pub use writer::{FORMATS, Format, Writer, Written};
 
 use crate::diag::Diagnostic;
-use crate::doc::Document;
-use crate::figure::PlacedFigure;
 use crate::outcome::BlockResult;
 use crate::outcome::linear::LinearOutcome;
-use crate::provenance::Input;
 use report::Report;
 
 /// The standing cautions printed at the end of every report.
@@ -55,27 +52,11 @@ pub const TRAITS_CAUTION: &str = "A block with several responses tests each trai
 /// Printed before the review caution when a block finds a NOEC.
 pub const NOEC_CAUTION: &str = "A NOEC is one of the tested doses, not an estimate of a threshold: it depends on the doses chosen and on the replication, and a regression-based ECx is generally preferred where the response allows it (OECD 2006). Dose-response procedures can disagree; choose and name the one you report before the data are seen.";
 
-/// Renders the report. The document's name and bytes (as read, for its
-/// hash) and the results file's name appear in the provenance note.
-pub fn render_report(
-    doc: &Document,
-    results: &[BlockResult],
-    figures: &[Vec<PlacedFigure>],
-    inputs: &[Input],
-    format: Format,
-    document: (&str, &[u8]),
-    results_name: &str,
-) -> Result<Vec<u8>, Diagnostic> {
+/// Renders the report of what `sources` holds (see `Report::of`) in
+/// `format`.
+pub fn render_report(sources: Report<'_>, format: Format) -> Result<Vec<u8>, Diagnostic> {
     let writer = format.writer();
-    let report = Report::assemble(
-        doc,
-        results,
-        figures,
-        inputs,
-        document,
-        results_name,
-        writer,
-    )?;
+    let report = sources.assembled(writer)?;
     Ok(match writer.write(&report)? {
         Written::Text(mut text) => {
             if !text.ends_with('\n') {

@@ -153,17 +153,33 @@ impl<'a> Report<'a> {
         cautions
     }
 
-    /// Builds the views (which number the tables prose may refer to) and
-    /// evaluates the prose expressions.
-    pub fn assemble(
+    /// The report of what it is built from, before its views and values.
+    /// The document's name and bytes (as read, for its hash) and the
+    /// results file's name appear in the provenance note.
+    pub fn of(
         doc: &'a Document,
         results: &'a [BlockResult],
         figures: &'a [Vec<PlacedFigure>],
         inputs: &'a [Input],
         document: (&'a str, &'a [u8]),
         results_name: &'a str,
-        writer: &dyn Writer,
-    ) -> Result<Report<'a>, Diagnostic> {
+    ) -> Report<'a> {
+        Report {
+            doc,
+            results,
+            figures,
+            inputs,
+            document,
+            results_name,
+            views: Vec::new(),
+            values: Vec::new(),
+        }
+    }
+
+    /// Builds the views (which number the tables prose may refer to) and
+    /// evaluates the prose expressions.
+    pub fn assembled(self, writer: &dyn Writer) -> Result<Report<'a>, Diagnostic> {
+        let (doc, results, figures) = (self.doc, self.results, self.figures);
         let figures_inline = writer.about().figures_inline;
         let mut next_table = 1;
         let mut views = Vec::with_capacity(results.len());
@@ -210,14 +226,9 @@ impl<'a> Report<'a> {
         }
         let values = inline::evaluate(doc, results, &doc.expressions, &numbers)?;
         Ok(Report {
-            doc,
-            results,
-            figures,
-            inputs,
-            document,
-            results_name,
             views,
             values,
+            ..self
         })
     }
 
@@ -311,7 +322,7 @@ impl<'a> Report<'a> {
                 sha256: sha256_hex(document_bytes),
             }),
             inputs => to_value(inputs),
-            choices => self.results.iter().map(choices_of).collect::<Vec<_>>(),
+            choices => self.choices(),
             results_name => self.results_name,
             paper => front.paper.css(),
             acknowledged => to_value(self.acknowledged()),
@@ -341,5 +352,19 @@ impl<'a> Report<'a> {
                 })
             })
             .collect()
+    }
+
+    /// The acknowledged notes as list items (`` `id`: note ``), for the
+    /// writers that set the provenance section themselves.
+    pub(crate) fn acknowledged_items(&self) -> Vec<String> {
+        self.acknowledged()
+            .into_iter()
+            .flat_map(|b| b.notes.into_iter().map(move |n| format!("`{}`: {n}", b.id)))
+            .collect()
+    }
+
+    /// The analysis choices in effect, a line per block.
+    pub(crate) fn choices(&self) -> Vec<String> {
+        self.results.iter().map(choices_of).collect()
     }
 }

@@ -15,12 +15,7 @@ pub trait Writer: Sync {
     /// A figure's file beside the report (name and bytes), or `None` where
     /// the report holds the figure itself (the default, for formats whose
     /// figures are inside the report).
-    fn figure_file(
-        &self,
-        _stem: &str,
-        _figure: &Figure,
-        _images: ImageFormat,
-    ) -> Result<Option<(String, Vec<u8>)>, String> {
+    fn figure_file(&self, _stem: &str, _figure: &Figure, _images: ImageFormat) -> FigureFile {
         Ok(None)
     }
     /// How prose names a numbered table or figure (`kind` is `Table` or
@@ -37,6 +32,10 @@ pub trait Writer: Sync {
         Ok(vec![(String::new(), report.to_vec())])
     }
 }
+
+/// A figure's file beside the report (its name and bytes), `None` where
+/// the report holds the figure, or why the figure could not be drawn.
+pub type FigureFile = Result<Option<(String, Vec<u8>)>, String>;
 
 /// What a format is called and how it holds its figures.
 #[derive(Debug)]

@@ -7,7 +7,7 @@
 //! oats split-plot and Machines datasets.
 
 use super::{Area, Bar, Check, num, run_block};
-use crate::outcome::linear::LinearOutcome;
+use crate::outcome::linear::{LinearOutcome, TermTest};
 use serde_json::Value;
 
 const OATS: &str = include_str!("../../tests/data/open/oats.csv");
@@ -19,6 +19,9 @@ const DUNNETT_QUADRATURE: &str = include_str!("../../tests/reference/dunnett_qua
 /// them to about 1e-11 relative, so LRE 9 is the bar.
 const LRE9: Bar = Bar::MinLre { lre: 9.0 };
 
+/// What a check reads of a term's test.
+type TermField = fn(&TermTest) -> f64;
+
 pub(super) fn mixed_cases(checks: &mut Vec<Check>) {
     let src = "mixed-models specification 9.1 (closed form; scipy)";
     let oats = run_block("model: Y ~ V * N\nrandom: B + B:V\ncompare: tukey", OATS);
@@ -26,42 +29,31 @@ pub(super) fn mixed_cases(checks: &mut Vec<Check>) {
         oats.as_ref()
             .and_then(|o| o.terms.iter().find(|t| t.name == name))
     };
-    let get = |name: &str, f: fn(&crate::outcome::linear::TermTest) -> f64| {
-        term(name).map_or(f64::NAN, f)
-    };
+    let get = |name: &str, f: TermField| term(name).map_or(f64::NAN, f);
     let mut push = |name: &str, got: f64, want: f64, bar: Bar| {
         checks.push(Check::new(Area::MixedModels, name, src, got, want, bar));
     };
-    push(
-        "oats: F of varieties against the whole-plot error",
-        get("V", |t| t.f),
-        1.48534037944,
-        LRE9,
-    );
-    push(
-        "oats: p of varieties",
-        get("V", |t| t.p),
-        0.272386856735,
-        LRE9,
-    );
-    push(
-        "oats: Kenward-Roger df of varieties",
-        get("V", |t| t.denominator_df),
-        10.0,
-        LRE9,
-    );
-    push(
-        "oats: F of nitrogen",
-        get("N", |t| t.f),
-        37.6856470588,
-        LRE9,
-    );
-    push(
-        "oats: F of the interaction",
-        get("V:N", |t| t.f),
-        0.302823529412,
-        LRE9,
-    );
+    // (check, term, what of its test, closed-form value)
+    let term_checks: [(&str, &str, TermField, f64); 5] = [
+        (
+            "oats: F of varieties against the whole-plot error",
+            "V",
+            |t| t.f,
+            1.48534037944,
+        ),
+        ("oats: p of varieties", "V", |t| t.p, 0.272386856735),
+        (
+            "oats: Kenward-Roger df of varieties",
+            "V",
+            |t| t.denominator_df,
+            10.0,
+        ),
+        ("oats: F of nitrogen", "N", |t| t.f, 37.6856470588),
+        ("oats: F of the interaction", "V:N", |t| t.f, 0.302823529412),
+    ];
+    for (name, term, field, want) in term_checks {
+        push(name, get(term, field), want, LRE9);
+    }
     let mean_se = oats
         .as_ref()
         .and_then(|o| o.main_family("V"))

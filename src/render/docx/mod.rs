@@ -178,25 +178,16 @@ fn closing_sections(report: &Report, text_width: u32) -> String {
     ]
     .concat();
     out.push_str(&paragraph(&Props::default(), &statement));
-    let choices: Vec<String> = report.results.iter().map(super::choices_of).collect();
-    if !choices.is_empty() {
-        out.push_str(&paragraph(
-            &Props::default(),
-            &plain("Analysis choices in effect:"),
-        ));
-        out.push_str(&bullets(&choices));
-    }
-    let acknowledged: Vec<String> = report
-        .acknowledged()
-        .into_iter()
-        .flat_map(|b| b.notes.into_iter().map(move |n| format!("`{}`: {n}", b.id)))
-        .collect();
-    if !acknowledged.is_empty() {
-        out.push_str(&paragraph(
-            &Props::default(),
-            &code_spans("Notes the author has acknowledged (planned exclusions, and kinds listed under `acknowledge`):"),
-        ));
-        out.push_str(&bullets(&acknowledged));
+    let acknowledged = "Notes the author has acknowledged (planned exclusions, and kinds listed under `acknowledge`):";
+    // Each list after its lead-in, where it has items.
+    for (lead, items) in [
+        ("Analysis choices in effect:", report.choices()),
+        (acknowledged, report.acknowledged_items()),
+    ] {
+        if !items.is_empty() {
+            out.push_str(&paragraph(&Props::default(), &code_spans(lead)));
+            out.push_str(&bullets(&items));
+        }
     }
     if !report.inputs.is_empty() {
         out.push_str(&inputs_table(report, text_width));

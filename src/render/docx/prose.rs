@@ -10,7 +10,7 @@ use super::package::Relations;
 use super::table::{Cell, table};
 use super::xml::{Emphasis, Props, paragraph, plain, run};
 use crate::doc::markdown::markdown_options;
-use crate::render::links::safe_url;
+use crate::render::links::live_target;
 use crate::render::report::{MarkerAt, marked_block};
 use pulldown_cmark::{Alignment, Event, HeadingLevel, LinkType, Parser, Tag, TagEnd};
 
@@ -313,15 +313,11 @@ impl Prose<'_> {
     }
 
     fn open_link(&mut self, link_type: LinkType, dest_url: &str) {
-        let live = link_type == LinkType::Email || safe_url(dest_url);
-        self.links.push(live);
-        if !live {
+        let target = live_target(link_type, dest_url);
+        self.links.push(target.is_some());
+        let Some(url) = target else {
             return;
-        }
-        let mut url = dest_url.to_string();
-        if link_type == LinkType::Email && !url.starts_with("mailto:") {
-            url.insert_str(0, "mailto:");
-        }
+        };
         let id = self.targets.relations.hyperlink(&url);
         self.push_runs(&format!("<w:hyperlink r:id=\"{id}\">"), "");
     }

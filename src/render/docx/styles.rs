@@ -103,146 +103,68 @@ fn paragraph_styles() -> String {
     for (level, size, before) in [(1, 30, 360), (2, 26, 240), (3, 24, 200), (4, 22, 160)] {
         out.push_str(&heading(level, size, before));
     }
-    for (id, name, based, ppr, rpr) in caption_and_table_styles(&small)
-        .into_iter()
-        .chain(other_styles(&small))
-    {
-        out.push_str(&paragraph_style(id, name, based, &ppr, &rpr));
+    for (id, name, based, ppr, run) in STYLES {
+        out.push_str(&paragraph_style(
+            id,
+            name,
+            based,
+            ppr,
+            &run.properties(&small),
+        ));
     }
     out
 }
 
-/// A style's id, name, parent, paragraph and run properties.
-type StyleSpec = (&'static str, &'static str, &'static str, String, String);
-
-/// Captions, table text and table notes (`small` is the table type size).
-fn caption_and_table_styles(small: &str) -> Vec<StyleSpec> {
-    let small = small.to_string();
-    vec![
-        (
-            "Caption",
-            "caption",
-            "Normal",
-            r#"<w:spacing w:before="120" w:after="120"/>"#.to_string(),
-            format!(r#"<w:i/>{small}"#),
-        ),
-        (
-            "TableCaption",
-            "Table caption",
-            "Caption",
-            r#"<w:keepNext/><w:spacing w:before="240" w:after="80"/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "FigureCaption",
-            "Figure caption",
-            "Caption",
-            r#"<w:spacing w:before="60" w:after="240"/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "Figure",
-            "Figure",
-            "Normal",
-            r#"<w:keepNext/><w:spacing w:before="240" w:after="0"/><w:jc w:val="center"/>"#
-                .to_string(),
-            String::new(),
-        ),
-        (
-            "TableNote",
-            "Table note",
-            "Normal",
-            r#"<w:spacing w:before="40" w:after="40" w:line="240" w:lineRule="auto"/>"#.to_string(),
-            small.clone(),
-        ),
-        (
-            "TableText",
-            "Table text",
-            "Normal",
-            r#"<w:spacing w:before="20" w:after="20" w:line="240" w:lineRule="auto"/>"#.to_string(),
-            small.clone(),
-        ),
-        (
-            "TableHeading",
-            "Table heading",
-            "TableText",
-            "<w:keepNext/>".to_string(),
-            "<w:b/>".to_string(),
-        ),
-    ]
+/// What a style adds to its runs: nothing, the table type size, italics,
+/// bold, or the monospaced face.
+#[derive(Clone, Copy)]
+enum Run {
+    Plain,
+    Small,
+    Italic,
+    ItalicSmall,
+    Bold,
+    MonoSmall,
 }
 
-/// Lists, quotes, code, the title block's lines, the footer and contents.
-fn other_styles(small: &str) -> Vec<StyleSpec> {
-    let small = small.to_string();
-    vec![
-        (
-            "ListParagraph",
-            "List Paragraph",
-            "Normal",
-            r#"<w:spacing w:after="60"/><w:ind w:left="720"/><w:contextualSpacing/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "Quote",
-            "Quote",
-            "Normal",
-            r#"<w:ind w:left="567" w:right="567"/>"#.to_string(),
-            "<w:i/>".to_string(),
-        ),
-        (
-            "CodeBlock",
-            "Code block",
-            "Normal",
-            r#"<w:spacing w:after="0" w:line="240" w:lineRule="auto"/><w:ind w:left="284"/>"#
-                .to_string(),
-            format!("{}{small}", fonts(MONO)),
-        ),
-        ("Author", "Author", "Subtitle", String::new(), String::new()),
-        (
-            "Date",
-            "Date",
-            "Subtitle",
-            r#"<w:spacing w:after="360"/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "Footer",
-            "footer",
-            "Normal",
-            r#"<w:spacing w:after="0"/><w:jc w:val="center"/>"#.to_string(),
-            small.clone(),
-        ),
-        (
-            "TOC1",
-            "toc 1",
-            "Normal",
-            r#"<w:spacing w:after="60"/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "TOC2",
-            "toc 2",
-            "Normal",
-            r#"<w:spacing w:after="60"/><w:ind w:left="220"/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "TableofFigures",
-            "table of figures",
-            "Normal",
-            r#"<w:spacing w:after="60"/>"#.to_string(),
-            String::new(),
-        ),
-        (
-            "TOCHeading",
-            "TOC Heading",
-            "Heading1",
-            r#"<w:outlineLvl w:val="9"/>"#.to_string(),
-            String::new(),
-        ),
-    ]
+impl Run {
+    /// The run properties (`small` is the table type size).
+    fn properties(self, small: &str) -> String {
+        match self {
+            Run::Plain => String::new(),
+            Run::Small => small.to_string(),
+            Run::Italic => "<w:i/>".to_string(),
+            Run::ItalicSmall => format!("<w:i/>{small}"),
+            Run::Bold => "<w:b/>".to_string(),
+            Run::MonoSmall => format!("{}{small}", fonts(MONO)),
+        }
+    }
 }
+
+/// The styles after the headings, each with its id, name, parent,
+/// paragraph properties and run: captions, table text and notes, then
+/// lists, quotes, code, the title block's lines, the footer and contents.
+/// (One line a style, as a table reads.)
+#[rustfmt::skip]
+const STYLES: [(&str, &str, &str, &str, Run); 17] = [
+    ("Caption", "caption", "Normal", r#"<w:spacing w:before="120" w:after="120"/>"#, Run::ItalicSmall),
+    ("TableCaption", "Table caption", "Caption", r#"<w:keepNext/><w:spacing w:before="240" w:after="80"/>"#, Run::Plain),
+    ("FigureCaption", "Figure caption", "Caption", r#"<w:spacing w:before="60" w:after="240"/>"#, Run::Plain),
+    ("Figure", "Figure", "Normal", r#"<w:keepNext/><w:spacing w:before="240" w:after="0"/><w:jc w:val="center"/>"#, Run::Plain),
+    ("TableNote", "Table note", "Normal", r#"<w:spacing w:before="40" w:after="40" w:line="240" w:lineRule="auto"/>"#, Run::Small),
+    ("TableText", "Table text", "Normal", r#"<w:spacing w:before="20" w:after="20" w:line="240" w:lineRule="auto"/>"#, Run::Small),
+    ("TableHeading", "Table heading", "TableText", "<w:keepNext/>", Run::Bold),
+    ("ListParagraph", "List Paragraph", "Normal", r#"<w:spacing w:after="60"/><w:ind w:left="720"/><w:contextualSpacing/>"#, Run::Plain),
+    ("Quote", "Quote", "Normal", r#"<w:ind w:left="567" w:right="567"/>"#, Run::Italic),
+    ("CodeBlock", "Code block", "Normal", r#"<w:spacing w:after="0" w:line="240" w:lineRule="auto"/><w:ind w:left="284"/>"#, Run::MonoSmall),
+    ("Author", "Author", "Subtitle", "", Run::Plain),
+    ("Date", "Date", "Subtitle", r#"<w:spacing w:after="360"/>"#, Run::Plain),
+    ("Footer", "footer", "Normal", r#"<w:spacing w:after="0"/><w:jc w:val="center"/>"#, Run::Small),
+    ("TOC1", "toc 1", "Normal", r#"<w:spacing w:after="60"/>"#, Run::Plain),
+    ("TOC2", "toc 2", "Normal", r#"<w:spacing w:after="60"/><w:ind w:left="220"/>"#, Run::Plain),
+    ("TableofFigures", "table of figures", "Normal", r#"<w:spacing w:after="60"/>"#, Run::Plain),
+    ("TOCHeading", "TOC Heading", "Heading1", r#"<w:outlineLvl w:val="9"/>"#, Run::Plain),
+];
 
 /// The character styles: inline code and links.
 fn character_styles() -> String {

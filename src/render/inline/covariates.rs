@@ -5,29 +5,14 @@
 //! differ), and `observed.<term>.<level>`, each family's means before
 //! adjustment (`<term>@<slice>` for slices).
 
-use crate::format::f_statement;
-use crate::outcome::covariates::{CovariateDetail, FTest};
+use super::f_test::FTestContext;
+use crate::outcome::covariates::{CovariateDetail, CovariateGroup, FTest, GroupSlope};
 use crate::outcome::linear::LinearOutcome;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
-#[derive(Serialize)]
-pub(super) struct TestContext {
-    f: f64,
-    df1: f64,
-    df2: f64,
-    p: f64,
-    statement: String,
-}
-
-fn test(t: &FTest) -> TestContext {
-    TestContext {
-        f: t.f,
-        df1: t.df1,
-        df2: t.df2,
-        p: t.p,
-        statement: f_statement(t.df1, t.df2, t.f, t.p),
-    }
+fn test(t: &FTest) -> FTestContext {
+    FTestContext::new(t.df1, t.df2, t.f, t.p)
 }
 
 #[derive(Serialize)]
@@ -38,6 +23,17 @@ pub(super) struct GroupContext {
     max: f64,
 }
 
+impl From<&CovariateGroup> for GroupContext {
+    fn from(g: &CovariateGroup) -> GroupContext {
+        GroupContext {
+            n: g.n,
+            mean: g.mean,
+            min: g.min,
+            max: g.max,
+        }
+    }
+}
+
 #[derive(Serialize)]
 pub(super) struct CovariateContext {
     slope: f64,
@@ -45,7 +41,7 @@ pub(super) struct CovariateContext {
     adjusted_to: f64,
     min: f64,
     max: f64,
-    balance: TestContext,
+    balance: FTestContext,
     groups: BTreeMap<String, GroupContext>,
 }
 
@@ -57,10 +53,21 @@ pub(super) struct LineContext {
     mean_at_se: f64,
 }
 
+impl From<&GroupSlope> for LineContext {
+    fn from(g: &GroupSlope) -> LineContext {
+        LineContext {
+            slope: g.slope,
+            se: g.se,
+            mean_at: g.mean_at,
+            mean_at_se: g.mean_at_se,
+        }
+    }
+}
+
 #[derive(Serialize)]
 pub(super) struct SlopesContext {
     #[serde(flatten)]
-    test: TestContext,
+    test: FTestContext,
     /// The test rejected at the block's α.
     differ: bool,
     /// Each group's own line, when the separate slopes were reported.
@@ -86,15 +93,7 @@ pub(super) fn covariates_context(o: &LinearOutcome) -> Option<CovariatesContext>
             let groups = c
                 .groups
                 .iter()
-                .map(|g| {
-                    let group = GroupContext {
-                        n: g.n,
-                        mean: g.mean,
-                        min: g.min,
-                        max: g.max,
-                    };
-                    (g.label.clone(), group)
-                })
+                .map(|g| (g.label.clone(), GroupContext::from(g)))
                 .collect();
             let context = CovariateContext {
                 slope: c.slope,
@@ -111,15 +110,7 @@ pub(super) fn covariates_context(o: &LinearOutcome) -> Option<CovariatesContext>
     let lines = d.separate.as_ref().map(|s| {
         s.groups
             .iter()
-            .map(|g| {
-                let line = LineContext {
-                    slope: g.slope,
-                    se: g.se,
-                    mean_at: g.mean_at,
-                    mean_at_se: g.mean_at_se,
-                };
-                (g.label.clone(), line)
-            })
+            .map(|g| (g.label.clone(), LineContext::from(g)))
             .collect()
     });
     let slopes = d.slopes.as_ref().map(|s| SlopesContext {

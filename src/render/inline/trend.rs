@@ -5,7 +5,7 @@
 //! (null without a chosen degree) and `trend.curve` (`coefficients` and
 //! `se` from the constant up, `ms`, `df`).
 
-use crate::format::f_statement;
+use super::f_test::FTestContext;
 use crate::outcome::linear::LinearOutcome;
 use crate::outcome::trend::{TrendRow, TrendVerdict, degree_name};
 use serde::Serialize;
@@ -14,11 +14,8 @@ use std::collections::BTreeMap;
 #[derive(Serialize)]
 pub(super) struct RowContext {
     ss: f64,
-    f: f64,
-    df1: f64,
-    df2: f64,
-    p: f64,
-    statement: String,
+    #[serde(flatten)]
+    test: FTestContext,
 }
 
 #[derive(Serialize)]
@@ -56,11 +53,7 @@ pub(super) fn trend_context(o: &LinearOutcome) -> Option<TrendContext> {
     let t = o.trend.as_deref()?;
     let row = |r: &TrendRow| RowContext {
         ss: r.ss,
-        f: r.f,
-        df1: r.df,
-        df2: t.error_df,
-        p: r.p,
-        statement: f_statement(r.df, t.error_df, r.f, r.p),
+        test: FTestContext::new(r.df, t.error_df, r.f, r.p),
     };
     let highest = t.components.last().map_or(0, |c| c.degree);
     Some(TrendContext {

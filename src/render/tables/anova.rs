@@ -4,8 +4,8 @@
 
 use super::keys::Keys;
 use super::{
-    caption, cell, col, effect_decimals, factors_text, join_words, measure, shown_term, text,
-    variance_columns,
+    cell, col, effect_decimals, factors_text, headline_table, join_words, measure, shown_term,
+    text, variance_columns,
 };
 use crate::format::{
     alpha_text, column_decimals, confidence_label, df_text, f_stat, fixed, p_value,
@@ -349,21 +349,20 @@ fn alternative_table(
     let factor = factors_text(o);
     let mut columns = vec![col("Source", false)];
     columns.extend(headers.iter().map(|h| col(*h, true)));
+    let rows = row
+        .into_iter()
+        .map(|cells| std::iter::once(text(factor.clone())).chain(cells).collect())
+        .collect();
     TableView {
-        number,
-        id: format!("{}-{suffix}", o.id),
-        caption: caption(number, &o.presentation.caption, || {
+        columns,
+        rows,
+        footnotes: vec![footnote],
+        ..headline_table(o, number, suffix, || {
             format!(
                 "{test} of {} by {factor} (N = {}){remark}.",
                 measure(o),
                 o.n
             )
-        }),
-        columns,
-        rows: row
-            .into_iter()
-            .map(|cells| std::iter::once(text(factor.clone())).chain(cells).collect())
-            .collect(),
-        footnotes: vec![footnote],
+        })
     }
 }

@@ -3,7 +3,8 @@
 //! procedure's pairs of rank sums.
 
 use super::keys::Keys;
-use super::{caption, cell, col, display_order, measure, text, yes_no};
+use super::means::ranked_levels_table;
+use super::{cell, col, display_order, headline_table, measure, text, yes_no};
 use crate::format::{alpha_text, df_text, fixed, p_value, significant};
 use crate::outcome::friedman::{FriedmanDetail, agreement_words};
 use crate::outcome::linear::{Comparison, Family, LinearOutcome};
@@ -63,10 +64,19 @@ pub fn friedman_table(
             crate::format::p_phrase(t.p)
         ));
     }
+    let columns = vec![
+        col("Source", false),
+        col("χ²", true),
+        col("df", true),
+        col("p", true),
+        col("Kendall's W", true),
+        col("Blocks", true),
+    ];
     TableView {
-        number,
-        id: format!("{}-friedman", o.id),
-        caption: caption(number, &o.presentation.caption, || {
+        columns,
+        rows: vec![row],
+        footnotes,
+        ..headline_table(o, number, "friedman", || {
             format!(
                 "Friedman's test of {} by {factor} within {block} ({} blocks × {} levels, N = {}).",
                 measure(o),
@@ -74,17 +84,7 @@ pub fn friedman_table(
                 f.levels(),
                 o.n
             )
-        }),
-        columns: vec![
-            col("Source", false),
-            col("χ²", true),
-            col("df", true),
-            col("p", true),
-            col("Kendall's W", true),
-            col("Blocks", true),
-        ],
-        rows: vec![row],
-        footnotes,
+        })
     }
 }
 
@@ -121,40 +121,19 @@ pub fn levels_table(
             row
         })
         .collect();
-    let mut columns = vec![
+    let columns = vec![
         col(factor.clone(), false),
         col("Blocks", true),
         col("Median", true),
         col("Mean rank", true),
         col("Rank sum", true),
     ];
-    let mut footnotes = vec![format!(
+    let footnotes = vec![format!(
         "Ranks are taken within each {block} (1 = lowest value of the {} levels), ties sharing their mid-rank; the median is over the blocks' observations.",
         d.levels.len()
     )];
-    if let Some(c) = letters {
-        columns.push(col("Letters", false));
-        let rows_note = match o.presentation.order {
-            crate::doc::block::Order::Mean => " Rows run from the highest mean rank.",
-            _ => "",
-        };
-        footnotes.push(format!(
-            "Levels sharing a letter are not significantly different ({}, α = {}); the letter a marks the group holding the highest mean rank.{rows_note}",
-            c.method.title(),
-            alpha_text(c.alpha)
-        ));
-    }
-    TableView {
-        number,
-        id: format!("{}-levels", o.id),
-        caption: format!(
-            "Table {number}. Ranks of {} by {factor} within {block}.",
-            measure(o)
-        ),
-        columns,
-        rows,
-        footnotes,
-    }
+    let about = format!("Ranks of {} by {factor} within {block}.", measure(o));
+    ranked_levels_table(o, (number, about), (columns, rows, footnotes), letters)
 }
 
 /// The post hoc procedure's pairs: the difference in rank sums, the

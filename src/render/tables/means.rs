@@ -10,7 +10,7 @@ use super::{
 use crate::doc::block::Order;
 use crate::format::{alpha_text, confidence_label, df_text, fixed, significant};
 use crate::outcome::linear::{Comparison, Family, LinearOutcome};
-use crate::render::view::{Cell, TableView};
+use crate::render::view::{Cell, Column, TableView};
 use crate::stats::compare::Method;
 
 /// One row per estimate: n, mean, SD (one factor), SE, interval, and letters
@@ -186,7 +186,9 @@ fn se_note(o: &LinearOutcome, family: &Family) -> String {
     }
 }
 
-fn letters_footnote(order: Order, c: &Comparison, what: &str) -> String {
+/// The note under a column of letters; rows run from the highest `what`
+/// when the block orders them so.
+pub(super) fn letters_footnote(order: Order, c: &Comparison, what: &str) -> String {
     let rows_note = if order == Order::Mean {
         format!(" Rows run from the highest {what}.")
     } else {
@@ -232,7 +234,7 @@ pub fn ranks_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
         })
         .collect();
     let what = family_subject(o, family);
-    let mut columns = vec![
+    let columns = vec![
         col(what.clone(), false),
         col("n", true),
         col("Median", true),
@@ -240,7 +242,20 @@ pub fn ranks_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
         col("Mean rank", true),
         col("Mean", true),
     ];
-    let mut footnotes = vec!["Quartiles by linear interpolation between order statistics; ranks are joint over all observations, ties sharing their mid-rank.".to_string()];
+    let footnotes = vec!["Quartiles by linear interpolation between order statistics; ranks are joint over all observations, ties sharing their mid-rank.".to_string()];
+    let about = format!("Medians and ranks of {} by {what}.", measure(o));
+    ranked_levels_table(o, (number, about), (columns, rows, footnotes), letters)
+}
+
+/// A rank-based block's table of levels (`<id>-levels`), `about` its
+/// caption after the number; a column of letters with its note is added
+/// when the procedure gives letters.
+pub(super) fn ranked_levels_table(
+    o: &LinearOutcome,
+    (number, about): (usize, String),
+    (mut columns, rows, mut footnotes): (Vec<Column>, Vec<Vec<Cell>>, Vec<String>),
+    letters: Option<&Comparison>,
+) -> TableView {
     if let Some(c) = letters {
         columns.push(col("Letters", false));
         footnotes.push(letters_footnote(o.presentation.order, c, "mean rank"));
@@ -248,10 +263,7 @@ pub fn ranks_table(o: &LinearOutcome, family: &Family, keys: &Keys, number: usiz
     TableView {
         number,
         id: format!("{}-levels", o.id),
-        caption: format!(
-            "Table {number}. Medians and ranks of {} by {what}.",
-            measure(o)
-        ),
+        caption: format!("Table {number}. {about}"),
         columns,
         rows,
         footnotes,

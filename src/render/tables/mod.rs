@@ -331,6 +331,25 @@ fn caption(number: usize, author: &Option<String>, written: impl FnOnce() -> Str
     }
 }
 
+/// A block's headline table, its columns, rows and notes still to fill:
+/// its id is the block's with `suffix`, its caption the author's when the
+/// block gives one, else `written`.
+fn headline_table(
+    o: &LinearOutcome,
+    number: usize,
+    suffix: &str,
+    written: impl FnOnce() -> String,
+) -> TableView {
+    TableView {
+        number,
+        id: format!("{}-{suffix}", o.id),
+        caption: caption(number, &o.presentation.caption, written),
+        columns: Vec::new(),
+        rows: Vec::new(),
+        footnotes: Vec::new(),
+    }
+}
+
 /// Decimals for a column of effect sizes: two, or three when any value is
 /// below 0.1 (METHODS 4.2), so that a column never mixes 0.32 and 0.032.
 fn effect_decimals(values: impl IntoIterator<Item = f64>) -> u32 {

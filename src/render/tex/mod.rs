@@ -8,7 +8,7 @@ mod block;
 mod prose;
 
 use super::report::{Report, block_marker};
-use super::writer::{About, Writer, Written};
+use super::writer::{About, FigureFile, Writer, Written};
 use crate::diag::Diagnostic;
 use crate::doc::ImageFormat;
 use crate::escape::{latex_code, latex_escape, latex_label};
@@ -46,12 +46,7 @@ impl Writer for Tex {
         }
     }
 
-    fn figure_file(
-        &self,
-        stem: &str,
-        figure: &Figure,
-        images: ImageFormat,
-    ) -> Result<Option<(String, Vec<u8>)>, String> {
+    fn figure_file(&self, stem: &str, figure: &Figure, images: ImageFormat) -> FigureFile {
         let dpi = match images {
             ImageFormat::Png { dpi } => dpi,
             ImageFormat::Svg => DEFAULT_DPI,
@@ -169,16 +164,12 @@ fn closing_sections(report: &Report) -> String {
         hash(&sha256_hex(bytes)),
         latex_code(report.results_name)
     ));
-    let choices: Vec<String> = report.results.iter().map(super::choices_of).collect();
+    let choices = report.choices();
     if !choices.is_empty() {
         out.push_str("Analysis choices in effect:\n");
         out.push_str(&block::itemize(&choices));
     }
-    let acknowledged: Vec<String> = report
-        .acknowledged()
-        .into_iter()
-        .flat_map(|b| b.notes.into_iter().map(move |n| format!("`{}`: {n}", b.id)))
-        .collect();
+    let acknowledged = report.acknowledged_items();
     if !acknowledged.is_empty() {
         out.push_str("Notes the author has acknowledged (planned exclusions, and kinds listed under \\texttt{acknowledge}):\n");
         out.push_str(&block::itemize(&acknowledged));

@@ -6,9 +6,9 @@
 use super::{REF_CLOSE, REF_OPEN, fit_to_width};
 use crate::doc::markdown::markdown_options;
 use crate::escape::{latex_code, latex_escape, latex_url};
-use crate::render::links::safe_url;
+use crate::render::links::live_target;
 use crate::render::report::{MarkerAt, marked_block};
-use pulldown_cmark::{Alignment, Event, HeadingLevel, LinkType, Parser, Tag, TagEnd};
+use pulldown_cmark::{Alignment, Event, HeadingLevel, Parser, Tag, TagEnd};
 
 /// LaTeX allows lists nested four deep; deeper items are set as paragraphs.
 const MAX_LIST_DEPTH: usize = 4;
@@ -118,15 +118,11 @@ impl Prose {
                 dest_url,
                 ..
             } => {
-                let live = link_type == LinkType::Email || safe_url(&dest_url);
-                self.links.push(live);
-                if !live {
+                let target = live_target(link_type, &dest_url);
+                self.links.push(target.is_some());
+                let Some(url) = target else {
                     return;
-                }
-                let mut url = dest_url.to_string();
-                if link_type == LinkType::Email && !url.starts_with("mailto:") {
-                    url.insert_str(0, "mailto:");
-                }
+                };
                 self.out
                     .push_str(&format!("\\href{{{}}}{{", latex_url(&url)));
                 return;

@@ -60,38 +60,29 @@ pub(crate) fn minimise(
         let settled = scaled <= TOL_SCALED_GRADIENT;
         let moved_little = last_move
             .is_some_and(|(dd, step)| dd <= TOL_CRITERION * (1.0 + d.abs()) && step <= TOL_STEP);
-        if free.is_empty() || (settled && moved_little) {
-            return Ok(Optimum {
-                psi,
-                criterion: d,
-                iterations: iteration,
-                max_scaled_gradient: scaled,
-                derivatives: der,
-                free,
-            });
-        }
+        let converged = free.is_empty() || (settled && moved_little);
         let fail = || MixedError::NotConverged {
             iterations: iteration,
             criterion: d,
             gradient: der.gradient.clone(),
         };
-        if iteration == MAX_ITERATIONS {
+        if !converged && iteration == MAX_ITERATIONS {
             return Err(fail());
         }
-        let direction = step_direction(&der, &free, newton || iteration >= NEWTON_AFTER)?;
-        let mut found = line_search(model, &psi, d, &direction)?;
-        if found.as_ref().is_none_or(|(c, _)| *c == psi) {
-            // The projected step left ψ in place (a variance at 0 whose score
-            // points inwards while the step points outwards): a diagonally
-            // scaled gradient step descends in every free coordinate.
-            let fallback = line_search(model, &psi, d, &scaled_gradient_step(&der, &free))?;
-            if fallback.as_ref().is_some_and(|(c, _)| *c != psi) {
-                found = fallback;
-            }
-        }
+        let found = match converged {
+            true => None,
+            false => descend(
+                model,
+                (&psi, d),
+                &der,
+                &free,
+                newton || iteration >= NEWTON_AFTER,
+            )?,
+        };
         let Some((candidate, d_new)) = found else {
-            // No decrease is possible at working precision.
-            if settled {
+            // Converged, or no decrease is possible at working precision
+            // (an optimum only where the scaled gradient has settled).
+            if converged || settled {
                 return Ok(Optimum {
                     psi,
                     criterion: d,
@@ -115,6 +106,29 @@ pub(crate) fn minimise(
         d = d_new;
         iteration += 1;
     }
+}
+
+/// The accepted point of a step from `psi` (criterion `d`) and its
+/// criterion, or `None` when no step lowers d.
+fn descend(
+    model: &dyn CovarianceModel,
+    (psi, d): (&[f64], f64),
+    der: &Derivatives,
+    free: &[usize],
+    newton: bool,
+) -> Result<Option<(Vec<f64>, f64)>, MixedError> {
+    let direction = step_direction(der, free, newton)?;
+    let found = line_search(model, psi, d, &direction)?;
+    if found.as_ref().is_none_or(|(c, _)| c == psi) {
+        // The projected step left ψ in place (a variance at 0 whose score
+        // points inwards while the step points outwards): a diagonally
+        // scaled gradient step descends in every free coordinate.
+        let fallback = line_search(model, psi, d, &scaled_gradient_step(der, free))?;
+        if fallback.as_ref().is_some_and(|(c, _)| c != psi) {
+            return Ok(fallback);
+        }
+    }
+    Ok(found)
 }
 
 /// Indices of the parameters the step may move.
