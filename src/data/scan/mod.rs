@@ -66,6 +66,9 @@ pub struct ScannedLevel {
     pub offsets: Vec<f64>,
     /// The data line of each kept value.
     pub lines: Vec<usize>,
+    /// The data line of its first value, kept or not (`None`: every row
+    /// of the level lacked a response).
+    pub first_line: Option<usize>,
 }
 
 /// A response column split by one factor (or by cells), as one pass over

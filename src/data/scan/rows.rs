@@ -188,6 +188,8 @@ pub(super) struct ChunkResult {
     pub(super) summaries: Vec<GroupSummary>,
     pub(super) offsets: Vec<Vec<f64>>,
     pub(super) lines: Vec<Vec<usize>>,
+    /// Per level, the line of its first value (`usize::MAX`: none).
+    pub(super) first_lines: Vec<usize>,
     pub(super) origin: Option<Number>,
     pub(super) decimals: u32,
     pub(super) excluded: Vec<Exclusion>,
@@ -209,6 +211,8 @@ pub(super) struct RowAccumulator<'p> {
     /// only those outside the exact sums).
     pub(super) offsets: Vec<Vec<f64>>,
     pub(super) lines: Vec<Vec<usize>>,
+    /// Per level, the line of its first value (`usize::MAX`: none yet).
+    pub(super) first_lines: Vec<usize>,
     /// Per level: exact sums of the values in the origin's decimals.
     pub(super) sums: Vec<ExactSums>,
     /// Per level: values that could not enter the exact sums.
@@ -240,6 +244,7 @@ impl<'p> RowAccumulator<'p> {
             names: Vec::new(),
             offsets: Vec::new(),
             lines: Vec::new(),
+            first_lines: Vec::new(),
             sums: Vec::new(),
             inexact: Vec::new(),
             loose: Vec::new(),
@@ -286,6 +291,7 @@ impl<'p> RowAccumulator<'p> {
         self.names.push(name.to_string());
         self.offsets.push(Vec::new());
         self.lines.push(Vec::new());
+        self.first_lines.push(usize::MAX);
         self.sums.push(ExactSums::default());
         self.inexact.push(0);
         self.loose.push(Vec::new());
@@ -371,6 +377,9 @@ impl<'p> RowAccumulator<'p> {
             });
             return Ok(());
         }
+        if self.first_lines[level] == usize::MAX {
+            self.first_lines[level] = line;
+        }
         let offset = match plain_parts(y, plan.format.decimal_comma) {
             Some((digits, scale)) => {
                 self.decimals = self.decimals.max(scale);
@@ -455,6 +464,7 @@ impl<'p> RowAccumulator<'p> {
             summaries,
             offsets: if keep { self.offsets } else { Vec::new() },
             lines: if keep { self.lines } else { Vec::new() },
+            first_lines: self.first_lines,
             origin: self.origin.map(|o| o.0),
             decimals: self.decimals,
             excluded: self.excluded,
