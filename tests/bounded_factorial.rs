@@ -13,9 +13,12 @@ use std::io::Read;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// A file in memory that claims to be huge, so that every build streams it.
+/// With `changed_after`, the file's bytes change once it has been opened
+/// that many times (a file rewritten while a build reads it).
 struct Huge {
     data: Vec<u8>,
     opened: AtomicUsize,
+    changed_after: Option<usize>,
 }
 
 impl Huge {
@@ -23,6 +26,7 @@ impl Huge {
         Huge {
             data,
             opened: AtomicUsize::new(0),
+            changed_after: None,
         }
     }
 }
@@ -33,8 +37,14 @@ impl World for Huge {
     }
 
     fn open(&self, _path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        self.opened.fetch_add(1, Ordering::SeqCst);
-        Ok((Box::new(std::io::Cursor::new(self.data.clone())), 1 << 40))
+        let times = self.opened.fetch_add(1, Ordering::SeqCst);
+        let mut bytes = self.data.clone();
+        if self.changed_after.is_some_and(|n| times >= n) {
+            // One digit of the last value, same size: only the hash can tell.
+            let at = bytes.len() - 2;
+            bytes[at] = if bytes[at] == b'1' { b'2' } else { b'1' };
+        }
+        Ok((Box::new(std::io::Cursor::new(bytes)), 1 << 40))
     }
 
     /// Without opening, so that `opened` counts the passes only.
@@ -251,4 +261,20 @@ fn an_empty_cell_is_left_out_of_the_spread_tests() {
     );
     assert_matches_reference(&block, &reference("empty_cell"));
     assert_eq!(number(&block["checks"]["levene"]["df1"]), 4.0);
+}
+
+#[test]
+fn a_file_that_changes_between_passes_is_an_error() {
+    let world = Huge {
+        changed_after: Some(1),
+        ..Huge::new(presses(20_000))
+    };
+    let doc = "# Invented press lines\n\n```anova\nid: p\ndata: presses.csv\nmodel: thickness ~ line * shift\n```\n";
+    let Err(err) = build(doc, &world) else {
+        panic!("a file that changed after the first pass was accepted");
+    };
+    assert!(
+        err.contains("the file changed while it was being read"),
+        "{err}"
+    );
 }

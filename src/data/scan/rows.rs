@@ -44,12 +44,35 @@ pub(super) fn missing_lengths(format: &CsvFormat) -> u64 {
 /// so that no level text can be confused with the joints.
 pub fn cell_key<'a>(levels: impl Iterator<Item = &'a str>) -> String {
     let mut key = String::new();
+    push_cell_key(&mut key, levels);
+    key
+}
+
+/// Writes a [`cell_key`] into `key` (cleared first), so that a reader can
+/// reuse one buffer for every row instead of allocating a key each.
+pub(super) fn push_cell_key<'a>(key: &mut String, levels: impl Iterator<Item = &'a str>) {
+    key.clear();
     for level in levels {
-        key.push_str(&level.len().to_string());
+        push_decimal(key, level.len());
         key.push(':');
         key.push_str(level);
     }
-    key
+}
+
+/// Appends n in decimal digits (the formatting machinery cost a fifth of
+/// a two-factor scan).
+fn push_decimal(key: &mut String, n: usize) {
+    let mut digits = [0u8; 20];
+    let (mut at, mut rest) = (digits.len(), n);
+    loop {
+        at -= 1;
+        digits[at] = b'0' + (rest % 10) as u8;
+        rest /= 10;
+        if rest == 0 {
+            break;
+        }
+    }
+    key.extend(digits[at..].iter().map(|&d| char::from(d)));
 }
 
 /// The levels of a [`cell_key`].
@@ -213,6 +236,8 @@ pub(super) struct RowAccumulator<'p> {
     pub(super) lines: Vec<Vec<usize>>,
     /// Per level, the line of its first value (`usize::MAX`: none yet).
     pub(super) first_lines: Vec<usize>,
+    /// The cell key of the row being read (one buffer for every row).
+    pub(super) key: String,
     /// Per level: exact sums of the values in the origin's decimals.
     pub(super) sums: Vec<ExactSums>,
     /// Per level: values that could not enter the exact sums.
@@ -245,6 +270,7 @@ impl<'p> RowAccumulator<'p> {
             offsets: Vec::new(),
             lines: Vec::new(),
             first_lines: Vec::new(),
+            key: String::new(),
             sums: Vec::new(),
             inexact: Vec::new(),
             loose: Vec::new(),
@@ -314,8 +340,19 @@ impl<'p> RowAccumulator<'p> {
         if let [(c, _)] = plan.factors.as_slice() {
             return self.cells(&[fields[*c]], fields[plan.response.0], line);
         }
-        let factor_cells: Vec<&str> = plan.factors.iter().map(|(c, _)| fields[*c]).collect();
-        self.cells(&factor_cells, fields[plan.response.0], line)
+        // A few factors (the usual case) without allocating per row.
+        let mut inline = [""; 8];
+        let listed: Vec<&str>;
+        let factor_cells: &[&str] = if plan.factors.len() <= inline.len() {
+            for (cell, (c, _)) in inline.iter_mut().zip(&plan.factors) {
+                *cell = fields[*c];
+            }
+            &inline[..plan.factors.len()]
+        } else {
+            listed = plan.factors.iter().map(|(c, _)| fields[*c]).collect();
+            &listed
+        };
+        self.cells(factor_cells, fields[plan.response.0], line)
     }
 
     /// The width check and `exclude`; false when the row is left out.
@@ -365,8 +402,11 @@ impl<'p> RowAccumulator<'p> {
         let level = match factor_cells {
             [g] => self.level(trim(g)),
             _ => {
-                let key = cell_key(factor_cells.iter().map(|c| trim(c)));
-                self.level(&key)
+                let mut key = std::mem::take(&mut self.key);
+                push_cell_key(&mut key, factor_cells.iter().map(|c| trim(c)));
+                let level = self.level(&key);
+                self.key = key;
+                level
             }
         };
         let y = trim(response_cell);
