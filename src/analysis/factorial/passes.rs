@@ -10,6 +10,7 @@
 //! factor's levels when some treatment cell holds a single observation.
 
 use super::cells::TreatmentCells;
+use super::checks::first_factor_note;
 use super::fit::Fitted;
 use super::read::Rereading;
 use super::residuals::Residuals;
@@ -214,19 +215,9 @@ fn by_first_factor(
     let data = checking.data;
     let group_of: Vec<usize> = data.cells.iter().map(|row| row[first]).collect();
     let fit = checking.fitting(group_of, data.levels[first].len());
-    let name = &checking.factor_names[first];
     let single = by_treatment.iter().filter(|s| s.n < 2).count();
-    let note = if single == by_treatment.len() {
-        format!(
-            "With one observation per treatment cell, the variance checks compare the residuals' spread across the levels of `{name}`."
-        )
-    } else {
-        format!(
-            "{single} of the {} treatment cells hold a single observation, so the variance checks cannot compare every cell's spread; they compare the residuals' spread across the levels of `{name}` instead.",
-            by_treatment.len()
-        )
-    };
-    (fit, Some(Note::other(note)))
+    let note = first_factor_note(&checking.factor_names[first], single, by_treatment.len());
+    (fit, Some(note))
 }
 
 /// The passes that read the block's CSV data again.
