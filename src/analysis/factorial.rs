@@ -6,8 +6,9 @@
 //! factor only), `read` (the observations), `terms` (confounded terms,
 //! empty cells, size), `fit` (least squares on one row per cell), `table`
 //! (sums of squares and F tests), `design_notes`, `cells` (treatment
-//! cells), `residuals` (and outliers), `checks`, `families` (marginal and
-//! cell means compared).
+//! cells), `residuals` (and outliers), `checks`, `passes` (the checks of a
+//! model of factors only, in passes over the rows, kept or read again),
+//! `families` (marginal and cell means compared).
 
 pub(super) mod cells;
 pub(super) mod checks;
