@@ -19,6 +19,7 @@ use super::csv::{CsvError, RecordParser, count_lines, utf8_text};
 use super::decimal::{Number, exact_power, parse_number, plain_difference, plain_parts};
 use super::{CsvFormat, DataError, Exclusion, Filter, Header, quote_list};
 use crate::stats::oneway::GroupSummary;
+use cells::*;
 use chunks::*;
 use merge::*;
 use parse::*;
@@ -317,6 +318,7 @@ fn io_error(e: std::io::Error) -> DataError {
     }
 }
 
+mod cells;
 mod chunks;
 mod merge;
 mod parse;

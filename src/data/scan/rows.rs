@@ -238,6 +238,8 @@ pub(super) struct RowAccumulator<'p> {
     pub(super) first_lines: Vec<usize>,
     /// The cell key of the row being read (one buffer for every row).
     pub(super) key: String,
+    /// The cells met, by each factor's level (several factors).
+    pub(super) cell_index: CellIndex,
     /// Per level: exact sums of the values in the origin's decimals.
     pub(super) sums: Vec<ExactSums>,
     /// Per level: values that could not enter the exact sums.
@@ -271,6 +273,7 @@ impl<'p> RowAccumulator<'p> {
             lines: Vec::new(),
             first_lines: Vec::new(),
             key: String::new(),
+            cell_index: CellIndex::default(),
             sums: Vec::new(),
             inexact: Vec::new(),
             loose: Vec::new(),
@@ -300,6 +303,24 @@ impl<'p> RowAccumulator<'p> {
             Some(&i) => i,
             None => self.add_level(name, key),
         }
+    }
+
+    /// The level of a row's cell of several factors: found by each
+    /// factor's level when the cell was met before, else by its cell key
+    /// (the same level either way: the key decides).
+    fn cell_level(&mut self, factor_cells: &[&str]) -> usize {
+        let combination = self.cell_index.combination(factor_cells);
+        if let Some(level) = combination.and_then(|c| self.cell_index.get(c)) {
+            return level;
+        }
+        let mut key = std::mem::take(&mut self.key);
+        push_cell_key(&mut key, factor_cells.iter().map(|c| trim(c)));
+        let level = self.level(&key);
+        self.key = key;
+        if let Some(c) = combination {
+            self.cell_index.insert(c, level);
+        }
+        level
     }
 
     pub(super) fn add_level(&mut self, name: &str, key: (u64, usize)) -> usize {
@@ -401,13 +422,7 @@ impl<'p> RowAccumulator<'p> {
         // level with no usable rows is reported rather than silently lost.
         let level = match factor_cells {
             [g] => self.level(trim(g)),
-            _ => {
-                let mut key = std::mem::take(&mut self.key);
-                push_cell_key(&mut key, factor_cells.iter().map(|c| trim(c)));
-                let level = self.level(&key);
-                self.key = key;
-                level
-            }
+            _ => self.cell_level(factor_cells),
         };
         let y = trim(response_cell);
         if plan.is_missing(y) {
