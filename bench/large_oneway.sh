@@ -19,8 +19,8 @@
 # Usage: bench/large_oneway.sh            (ROWS=20000000 REPEAT=3 by default)
 #        ROWS=200000000 bench/large_oneway.sh
 #   From 100 million rows on (about 3 GB at 200 million) the file is deleted
-#   afterwards, and only (a), (h), (b) and (b2) run: the factorial build keeps
-#   every row, and pandas and polars would need many times the file in memory.
+#   afterwards, and only (a), (h), (b) and (b2) run: pandas and polars would
+#   need many times the file in memory (and (b3) is left out to keep it short).
 set -euo pipefail
 shopt -s inherit_errexit
 cd "$(dirname "$0")/.."

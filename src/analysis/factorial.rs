@@ -6,8 +6,9 @@
 //! factor only), `read` (the observations), `terms` (confounded terms,
 //! empty cells, size), `fit` (least squares on one row per cell), `table`
 //! (sums of squares and F tests), `design_notes`, `cells` (treatment
-//! cells), `residuals` (and outliers), `checks`, `families` (marginal and
-//! cell means compared).
+//! cells), `residuals` (and outliers), `checks`, `passes` (the checks of a
+//! model of factors only, in passes over the rows, kept or read again),
+//! `families` (marginal and cell means compared).
 
 pub(super) mod cells;
 pub(super) mod checks;
@@ -18,6 +19,7 @@ mod families;
 mod fit;
 mod friedman;
 pub(super) mod model;
+mod passes;
 mod planned;
 pub(super) mod read;
 pub(super) mod residuals;
@@ -25,7 +27,7 @@ mod separate_slopes;
 mod table;
 mod terms;
 
-use super::binding::decimals_shown;
+use super::binding::{data_error, decimals_shown};
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
 use super::observed::{FactorialLayout, PooledError};
@@ -65,6 +67,8 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         centred,
         arithmetic,
         input,
+        from_cells,
+        rereading,
     } = read::read_with_covariates(&errors, block, (request.data, request.display_path), &model)?;
     let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
     errors.two_levels_each(&model.factor_names, &levels)?;
@@ -102,8 +106,14 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         (&spec.data.value, errors.reused.as_ref()),
     ));
     let treatment = TreatmentCells::new(&data.cells, model.treatment_factors(), &levels);
-    let analysed = Analysed {
-        cells: treatment.rows(data.source(), data.origin),
+    // Read from the cells' sums, the treatment cells come from them whether
+    // or not the rows were kept, so that both ways give the same bits.
+    let source = match from_cells {
+        true => cells::Source::Cells(&data.cell_summaries),
+        false => data.source(),
+    };
+    let mut analysed = Analysed {
+        cells: treatment.rows(source, data.origin),
         treatment,
         residuals: Residuals::new(&data, &fitted),
         data,
@@ -114,8 +124,20 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         rows,
         alpha,
         ranked,
+        total_ss: None,
     };
-    let (checks, families) = analysed.checks_and_families(&errors, &mut notes)?;
+    let checked = match from_cells {
+        true => Some(
+            analysed
+                .checked_in_passes(spec, rereading)
+                .map_err(|e| data_error(doc, block, spec.data.line, request.display_path, e))?,
+        ),
+        false => None,
+    };
+    if let Some(c) = &checked {
+        analysed.total_ss = Some(c.total_ss.unwrap_or_else(|| cells_total_ss(&analysed.data)));
+    }
+    let (checks, families) = analysed.checks_and_families(&errors, &mut notes, checked)?;
     let planning = planned::Planning {
         errors: &errors,
         model: &analysed.model,
@@ -158,6 +180,9 @@ struct Analysed {
     alpha: f64,
     /// Friedman's test, with `method: ranks`.
     ranked: Option<crate::outcome::friedman::FriedmanDetail>,
+    /// The total sum of squares, when the checks' passes (or the cells)
+    /// gave it.
+    total_ss: Option<f64>,
 }
 
 /// Decimals on the analysis scale: the data's, or those that resolve them
@@ -241,24 +266,46 @@ impl Analysed {
         Some(detail)
     }
 
-    /// The checks with their advice, then the comparison families.
+    /// The checks made in passes over the observations (see `passes`).
+    fn checked_in_passes(
+        &self,
+        spec: &AnovaSpec,
+        rereading: Option<read::Rereading<'_>>,
+    ) -> Result<passes::Checked, crate::data::DataError> {
+        let checking = passes::Checking {
+            spec,
+            data: &self.data,
+            fitted: &self.fitted,
+            residuals: &self.residuals,
+            treatment: &self.treatment,
+            factor_names: &self.model.factor_names,
+        };
+        passes::checks(&checking, rereading)
+    }
+
+    /// The checks with their advice (`checked`: made in passes already),
+    /// then the comparison families.
     fn checks_and_families(
         &self,
         errors: &Errors<'_>,
         notes: &mut Vec<Note>,
+        checked: Option<passes::Checked>,
     ) -> Result<(Checks, Vec<Family>), Diagnostic> {
         let spec = errors.spec;
-        let (mut checks, spread_note) = checks::checks(
-            spec,
-            &checks::Fit {
-                data: self.data.source(),
-                residuals: &self.residuals.values,
-                cells: &self.treatment,
-                factor_names: &self.model.factor_names,
-                levels: &self.levels,
-            },
-            || self.residuals.outliers(&self.data, &self.fitted),
-        );
+        let (mut checks, spread_note) = match checked {
+            Some(c) => (c.checks, c.note),
+            None => checks::checks(
+                spec,
+                &checks::Fit {
+                    data: self.data.source(),
+                    residuals: &self.residuals.values,
+                    cells: &self.treatment,
+                    factor_names: &self.model.factor_names,
+                    levels: &self.levels,
+                },
+                || self.residuals.outliers(&self.data, &self.fitted),
+            ),
+        };
         crate::analysis::transformation::outliers_as_written(&mut checks, spec);
         notes.extend(spread_note);
         // Friedman's test assumes neither normal errors nor equal variances.
@@ -317,7 +364,7 @@ impl Analysed {
     ) -> LinearOutcome {
         let data = self.data;
         let decimals = decimals_shown(doc, spec, scale_decimals(spec, &data));
-        let total_ss = total_ss(&data);
+        let total_ss = self.total_ss.unwrap_or_else(|| total_ss(&data));
         let n = data.n();
         let (warnings, acknowledged) = split_acknowledged(notes, &spec.acknowledge);
         let fitted = self.fitted;
@@ -436,6 +483,11 @@ fn total_ss(data: &FactorialData) -> f64 {
     if let Some(observed) = data.observed() {
         return GroupSummary::from_values(observed.offsets).ss;
     }
+    cells_total_ss(data)
+}
+
+/// The total sum of squares from the cells: within plus between.
+fn cells_total_ss(data: &FactorialData) -> f64 {
     let cells = &data.cell_summaries;
     let n = data.n() as f64;
     let grand = crate::stats::sum::neumaier(cells.iter().map(|c| c.n as f64 * c.mean)) / n;

@@ -6,7 +6,7 @@ mod checks;
 mod comparisons;
 mod levels;
 mod notes;
-mod observations;
+pub(super) mod observations;
 mod outcome;
 mod sample;
 

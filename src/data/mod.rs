@@ -621,17 +621,81 @@ pub fn factorial_response(
 /// factor's levels come in order of first appearance among the rows with a
 /// response, as `factorial_response` orders them.
 pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialRows {
-    let mut cells: Vec<&scan::ScannedLevel> = scanned
-        .levels
-        .iter()
-        .filter(|c| !c.offsets.is_empty())
+    let order = cells_in_order(&scanned);
+    let (levels, cells) = cell_rows(&scanned, &order, factors);
+    let (cell_of, offsets, lines) = rows_in_file_order(&scanned, &order);
+    FactorialRows {
+        levels,
+        cells,
+        cell_of,
+        offsets,
+        lines,
+        origin: scanned.origin,
+        decimals: scanned.decimals,
+        excluded: scanned.excluded,
+    }
+}
+
+/// A scan over several factors as its cells: each full cell's n, mean and
+/// sum of squares as the scan summed them (exactly, for plain decimals),
+/// whether or not it kept the values; the observations when it did. Cells
+/// and levels come in the order `factorial_from_scan` gives them. Also
+/// returns, for each scanned level, its cell (`None` when it has no value).
+pub fn factorial_cells_from_scan(
+    scanned: scan::Scanned,
+    factors: usize,
+) -> (FactorialData, Vec<Option<usize>>) {
+    let order = cells_in_order(&scanned);
+    let (levels, cells) = cell_rows(&scanned, &order, factors);
+    let mut cell_of_level = vec![None; scanned.levels.len()];
+    for (c, &l) in order.iter().enumerate() {
+        cell_of_level[l] = Some(c);
+    }
+    let kept = scanned.levels.iter().any(|l| !l.offsets.is_empty());
+    let observations = kept.then(|| {
+        let (cell_of, offsets, lines) = rows_in_file_order(&scanned, &order);
+        ObservationColumns {
+            cell_of,
+            offsets,
+            lines,
+        }
+    });
+    let data = FactorialData {
+        levels,
+        cells,
+        cell_summaries: order.iter().map(|&l| scanned.levels[l].summary).collect(),
+        cell_lines: (order.iter())
+            .map(|&l| scanned.levels[l].first_line.unwrap_or(0))
+            .collect(),
+        observations,
+        origin: scanned.origin,
+        decimals: scanned.decimals,
+        excluded: scanned.excluded,
+    };
+    (data, cell_of_level)
+}
+
+/// The scanned levels (cells) with a value, by the line of their first.
+fn cells_in_order(scanned: &scan::Scanned) -> Vec<usize> {
+    let mut order: Vec<(usize, usize)> = (scanned.levels.iter().enumerate())
+        .filter_map(|(i, l)| l.first_line.filter(|_| l.summary.n > 0).map(|f| (f, i)))
         .collect();
-    cells.sort_by_key(|c| c.lines[0]);
+    order.sort_unstable();
+    order.into_iter().map(|(_, i)| i).collect()
+}
+
+/// Each factor's levels in order of first appearance, and each cell's
+/// level indices.
+fn cell_rows(
+    scanned: &scan::Scanned,
+    order: &[usize],
+    factors: usize,
+) -> (Vec<Vec<String>>, Vec<Vec<usize>>) {
     let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors];
-    let cell_rows: Vec<Vec<usize>> = cells
+    let cells = order
         .iter()
-        .map(|c| {
-            scan::cell_levels(&c.name)
+        .map(|&l| {
+            scan::cell_levels(&scanned.levels[l].name)
                 .into_iter()
                 .zip(levels.iter_mut())
                 .map(
@@ -646,6 +710,16 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialR
                 .collect()
         })
         .collect();
+    (levels, cells)
+}
+
+/// The kept values of the cells `order` as one row per observation in file
+/// order: each row's cell (its place in `order`), offset and line.
+fn rows_in_file_order(
+    scanned: &scan::Scanned,
+    order: &[usize],
+) -> (Vec<usize>, Vec<f64>, Vec<usize>) {
+    let cells: Vec<&scan::ScannedLevel> = order.iter().map(|&l| &scanned.levels[l]).collect();
     // Each cell's rows are in file order already: merge the cells by line
     // (a heap over the cells), writing each row once.
     let total: usize = cells.iter().map(|c| c.lines.len()).sum();
@@ -655,10 +729,9 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialR
         Vec::with_capacity(total),
     );
     let mut next = vec![0usize; cells.len()];
-    let mut heap: std::collections::BinaryHeap<std::cmp::Reverse<(usize, usize)>> = cells
-        .iter()
+    let mut heap: std::collections::BinaryHeap<std::cmp::Reverse<(usize, usize)>> = (cells.iter())
         .enumerate()
-        .map(|(k, c)| std::cmp::Reverse((c.lines[0], k)))
+        .filter_map(|(k, c)| c.lines.first().map(|&l| std::cmp::Reverse((l, k))))
         .collect();
     while let Some(std::cmp::Reverse((line, k))) = heap.pop() {
         let j = next[k];
@@ -670,16 +743,7 @@ pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialR
             heap.push(std::cmp::Reverse((following, k)));
         }
     }
-    FactorialRows {
-        levels,
-        cells: cell_rows,
-        cell_of,
-        offsets,
-        lines,
-        origin: scanned.origin,
-        decimals: scanned.decimals,
-        excluded: scanned.excluded,
-    }
+    (cell_of, offsets, lines)
 }
 
 /// A row condition from `where`: `column op value`.

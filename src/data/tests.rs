@@ -36,9 +36,12 @@ fn decimal_comma() {
 
 #[test]
 fn cell_keys_keep_any_level_text() {
-    let levels = ["3:x", "", "ü:1", "12", "a:b:c"];
+    let levels = ["3:x", "", "ü:1", "12", "a:b:c", "a level of 21 bytes.."];
     let key = scan::cell_key(levels.iter().copied());
     assert_eq!(scan::cell_levels(&key), levels);
+    // Lengths in decimal, ten and more with several digits.
+    assert!(key.ends_with("21:a level of 21 bytes.."), "{key}");
+    assert!(key.starts_with("3:3:x0:4:ü:1"), "{key}");
 }
 
 #[test]

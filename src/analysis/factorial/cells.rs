@@ -53,6 +53,11 @@ impl TreatmentCells {
         }
     }
 
+    /// The treatment cell full cell `full` lies in.
+    pub fn of(&self, full: usize) -> usize {
+        self.of_full_cell[full]
+    }
+
     /// A value per observation, grouped by treatment cell.
     pub fn group(&self, observed: Observed<'_>, value: &dyn Fn(usize) -> f64) -> Vec<Vec<f64>> {
         let mut groups: Vec<Vec<f64>> = vec![Vec::new(); self.combos.len()];
@@ -102,6 +107,10 @@ impl TreatmentCells {
 
 /// Several groups' summaries as one group's.
 fn pooled(members: &[&GroupSummary]) -> GroupSummary {
+    // One member is itself (n·mean/n need not round back to the mean).
+    if let [one] = members {
+        return **one;
+    }
     let n: usize = members.iter().map(|s| s.n).sum();
     if n == 0 {
         return GroupSummary::from_values(&[]);

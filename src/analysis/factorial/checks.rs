@@ -102,17 +102,22 @@ fn spread_by_first_factor(
         by_level[observed.cells[c][first]].push(fit.residuals[i]);
     }
     let checks = with_spread_tests(checks, &slices(&by_level), &summaries(&by_level));
-    let name = &fit.factor_names[first];
     let single = cell_groups.iter().filter(|g| g.len() < 2).count();
-    let note = if single == cell_groups.len() {
+    let note = first_factor_note(&fit.factor_names[first], single, cell_groups.len());
+    (checks, note)
+}
+
+/// What the variance checks compare when `single` of the `cells` treatment
+/// cells hold one observation: the levels of the first treatment factor.
+pub(super) fn first_factor_note(name: &str, single: usize, cells: usize) -> Note {
+    let note = if single == cells {
         format!(
             "With one observation per treatment cell, the variance checks compare the residuals' spread across the levels of `{name}`."
         )
     } else {
         format!(
-            "{single} of the {} treatment cells hold a single observation, so the variance checks cannot compare every cell's spread; they compare the residuals' spread across the levels of `{name}` instead.",
-            cell_groups.len()
+            "{single} of the {cells} treatment cells hold a single observation, so the variance checks cannot compare every cell's spread; they compare the residuals' spread across the levels of `{name}` instead."
         )
     };
-    (checks, Note::other(note))
+    Note::other(note)
 }

@@ -5,21 +5,26 @@ use super::covariates::Centred;
 use super::model::Errors;
 use super::model::Model;
 use crate::analysis::binding::{
-    Data, apply_labels, check_labels, data_error, read_rows, reads_csv_rows, scan_csv,
+    Again, Data, FirstPass, apply_labels, check_labels, data_error, read_rows, reads_csv_rows,
+    scan_csv,
 };
 use crate::data::covariates::split_covariates;
-use crate::data::scan::ScanSpec;
+use crate::data::scan::{ScanSpec, scan_table};
 use crate::data::summary_cells::summary_cells;
 use crate::data::transform::transform_factorial;
-use crate::data::{FactorialData, FactorialRows, factorial_from_scan, factorial_response};
+use crate::data::{
+    FactorialData, FactorialRows, factorial_cells_from_scan, factorial_from_scan,
+    factorial_response,
+};
 use crate::diag::Diagnostic;
 use crate::doc::Block;
+use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
 use crate::outcome::linear::InputForm;
 use crate::provenance::Input;
 
 /// A factorial block's observations as read: on the analysis scale, with
 /// the covariates centred at their grand means.
-pub(crate) struct Observations {
+pub(crate) struct Observations<'a> {
     pub data: FactorialData,
     pub streamed: Option<Input>,
     pub centred: Option<Centred>,
@@ -28,19 +33,47 @@ pub(crate) struct Observations {
     pub arithmetic: Vec<Vec<f64>>,
     /// Observations, published summaries, or exact sums.
     pub input: InputForm,
+    /// Fitted from the cells' sums as the reader summed them, and checked
+    /// in passes over the observations (see `read_cells`).
+    pub from_cells: bool,
+    /// Where those passes read the observations again, when they were
+    /// not kept.
+    pub rereading: Option<Rereading<'a>>,
+}
+
+/// What reading a block's CSV data again needs: where the bytes are, what
+/// the first pass saw, and each scanned level's full cell.
+pub(crate) struct Rereading<'a> {
+    pub again: Again<'a>,
+    pub first: FirstPass,
+    pub cells: Vec<Option<usize>>,
+}
+
+/// Whether a block is fitted from its cells' sums and checked in passes:
+/// observations of factors only, on the data's scale (no covariates, no
+/// transformation, no ranks); the other models need every row at once.
+fn from_cells(spec: &AnovaSpec, model: &Model) -> bool {
+    spec.summary.is_none()
+        && model.covariate_names.is_empty()
+        && spec.transform.is_none()
+        && !spec.box_cox
+        && spec.method != Omnibus::Ranks
 }
 
 /// Reads the observations of the model's factors and covariates, and
 /// applies the block's transformation.
-pub(crate) fn read_with_covariates(
+pub(crate) fn read_with_covariates<'a>(
     errors: &Errors<'_>,
     block: &Block,
-    (data, display_path): (Data<'_>, &str),
+    (data, display_path): (Data<'a>, &str),
     model: &Model,
-) -> Result<Observations, Diagnostic> {
+) -> Result<Observations<'a>, Diagnostic> {
     let spec = errors.spec;
     if let Some(columns) = &spec.summary {
         return read_summaries(errors, block, (data, display_path), model, columns);
+    }
+    if from_cells(spec, model) {
+        return read_cells(errors, block, (data, display_path), model);
     }
     let (mut data, streamed, centred) =
         read_covariates(errors, block, (data, display_path), model)?;
@@ -55,18 +88,83 @@ pub(crate) fn read_with_covariates(
         centred,
         arithmetic,
         input: InputForm::Observations,
+        from_cells: false,
+        rereading: None,
+    })
+}
+
+/// Reads the cells' sums, and the observations only when something needs
+/// them all at once (figures) or the data cannot be read again (a table
+/// from a spreadsheet): the checks read a CSV file again instead, so memory
+/// follows the number of cells, not of rows.
+fn read_cells<'a>(
+    errors: &Errors<'_>,
+    block: &Block,
+    (data, display_path): (Data<'a>, &str),
+    model: &Model,
+) -> Result<Observations<'a>, Diagnostic> {
+    let (doc, spec) = (errors.doc, errors.spec);
+    let response = &spec.model.value.response;
+    let factors: Vec<&str> = model.factor_names.iter().map(String::as_str).collect();
+    let fail = |e| data_error(doc, block, spec.data.line, display_path, e);
+    let keep = !spec.plots.kinds.is_empty();
+    let again = data.again();
+    let (scanned, ruled_out, streamed) = match data {
+        data if reads_csv_rows(spec) => {
+            let scan_spec = ScanSpec {
+                response,
+                factors: &factors,
+                format: &spec.csv,
+                filters: &spec.rows.filters,
+                exclude: &spec.rows.exclude,
+                keep_values: keep,
+            };
+            let (scanned, input) = scan_csv(data, &scan_spec).map_err(fail)?;
+            (scanned, Vec::new(), input)
+        }
+        Data::Loaded(input) => {
+            let (table, ruled_out) = read_rows(doc, block, spec, input, display_path)?;
+            let scanned = scan_table(&table, response, &factors, &spec.csv).map_err(fail)?;
+            (scanned, ruled_out, None)
+        }
+        Data::Stream { .. } => {
+            return Err(errors.internal(block, "a table layout reached the streaming reader"));
+        }
+    };
+    let first = FirstPass::of(&scanned);
+    let (mut data, cells) = factorial_cells_from_scan(scanned, factors.len());
+    data.excluded.extend(ruled_out);
+    data.excluded.sort_by_key(|e| e.line);
+    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
+    check_labels(doc, spec, &all_levels)?;
+    for lv in data.levels.iter_mut() {
+        apply_labels(lv, &spec.labels);
+    }
+    let rereads = data.observations.is_none() && spec.checks != CheckSet::Summary;
+    Ok(Observations {
+        data,
+        streamed,
+        centred: None,
+        arithmetic: Vec::new(),
+        input: InputForm::Observations,
+        from_cells: true,
+        rereading: rereads.then_some(Rereading {
+            again,
+            first,
+            cells,
+        }),
     })
 }
 
 /// Reads a summary table, one row per cell: published summaries or exact
 /// sums (see `data::summary_cells`).
-fn read_summaries(
+fn read_summaries<'a>(
     errors: &Errors<'_>,
     block: &Block,
-    (data, display_path): (Data<'_>, &str),
+    (data, display_path): (Data<'a>, &str),
     model: &Model,
     columns: &crate::data::SummaryColumns,
-) -> Result<Observations, Diagnostic> {
+) -> Result<Observations<'a>, Diagnostic> {
     let (doc, spec) = (errors.doc, errors.spec);
     let Data::Loaded(input) = data else {
         return Err(errors.internal(block, "a summary table reached the streaming reader"));
@@ -95,6 +193,8 @@ fn read_summaries(
         centred: None,
         arithmetic: Vec::new(),
         input,
+        from_cells: false,
+        rereading: None,
     })
 }
 

@@ -12,7 +12,9 @@ use crate::stats::sum::neumaier;
 /// observation when covariates vary within cells), its leverage.
 pub(super) struct Residuals {
     pub values: Vec<f64>,
-    row_leverage: Vec<f64>,
+    /// Per design row, its fitted value x'b and leverage x'(XᵀX)⁻¹x.
+    pub row_fitted: Vec<f64>,
+    pub row_leverage: Vec<f64>,
 }
 
 impl Residuals {
@@ -48,6 +50,7 @@ impl Residuals {
         });
         Residuals {
             values,
+            row_fitted,
             row_leverage,
         }
     }

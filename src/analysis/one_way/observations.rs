@@ -2,7 +2,9 @@
 //! passes over them: from values kept in memory, or by reading the file
 //! again in memory that does not grow with the rows. Both run this same
 //! code with the same accumulators in the same order, so they give the same
-//! bits.
+//! bits. A factorial block runs it too (see `Fitting`): its passes visit
+//! full cells, its residuals are from the model's fitted values, and its
+//! spread tests compare treatment cells (groups of full cells).
 //!
 //! The passes (README "Large files"): the level sums come first (the
 //! reader's own pass). Pass A: Levene's absolute deviations from the level
@@ -14,9 +16,10 @@
 //! its buckets with their sums) where no bucket holds values on both sides
 //! of the median; else from one more pass.
 //!
-//! Sums are per level, Neumaier-compensated, fed each level's values in
-//! file order and combined in level order; outliers are ranked with ties
-//! in line order. So how a pass interleaves the levels changes nothing.
+//! Sums are per level (per cell), Neumaier-compensated, fed each level's
+//! values in file order and combined in level order (a group's cells
+//! merged in cell order); outliers are ranked with ties in line order. So
+//! how a pass interleaves the levels changes nothing.
 
 use crate::analysis::binding::{Again, FirstPass, rescan_csv};
 use crate::data::DataError;
@@ -35,7 +38,7 @@ use crate::stats::sum::NeumaierSum;
 const SHAPIRO_WILK_MAX: usize = 5000;
 
 /// A source of passes over the observations.
-pub(super) trait Passes {
+pub(in crate::analysis) trait Passes {
     /// Hands every observation to `visit(level, offsets, lines)`, in runs
     /// of one level, each level's values in file order. `verify`: check
     /// the bytes against the first pass's fingerprint (so the pass that may be the
@@ -43,7 +46,7 @@ pub(super) trait Passes {
     fn pass(&mut self, verify: bool, visit: Visit<'_>) -> Result<(), DataError>;
 }
 
-type Visit<'v> = &'v mut dyn FnMut(usize, &[f64], &[usize]);
+pub(in crate::analysis) type Visit<'v> = &'v mut dyn FnMut(usize, &[f64], &[usize]);
 
 /// Observations kept in memory, per level in design order.
 pub(super) struct Kept<'a> {
@@ -61,7 +64,7 @@ impl Passes for Kept<'_> {
 }
 
 /// A CSV file read again for each pass.
-pub(super) struct Reread<'a> {
+pub(in crate::analysis) struct Reread<'a> {
     pub again: Again<'a>,
     pub spec: ScanSpec<'a>,
     pub first: FirstPass,
@@ -82,9 +85,9 @@ impl Passes for Reread<'_> {
     }
 }
 
-/// An observation flagged as an outlier: its level, line and offset.
+/// An observation flagged as an outlier: its level (cell), line and offset.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub(super) struct Flag {
+pub(in crate::analysis) struct Flag {
     pub level: usize,
     pub line: usize,
     pub offset: f64,
@@ -93,7 +96,7 @@ pub(super) struct Flag {
 
 /// What the observations tell.
 #[derive(Debug, Clone, PartialEq)]
-pub(super) struct Observed {
+pub(in crate::analysis) struct Observed {
     pub brown_forsythe: Option<FTest>,
     pub levene: Option<FTest>,
     pub shapiro_wilk: Result<ShapiroWilk, ShapiroWilkSkip>,
@@ -103,16 +106,88 @@ pub(super) struct Observed {
     /// The most extreme flagged observations (at most `OUTLIERS_KEPT`), in
     /// line order.
     pub outliers: Vec<Flag>,
-    /// Per level: first quartile, median, third quartile (type 7), offsets.
+    /// Per group: first quartile, median, third quartile (type 7), of the
+    /// offsets less the cells' shifts (see `Fitting`).
     pub quartiles: Vec<(f64, f64, f64)>,
     /// Σ(y − ȳ)² over every observation, for the ANOVA's self-check.
     pub total_ss: f64,
-    /// Per level, the line of its first observation.
+    /// Per level (cell), the line of its first observation.
     pub first_lines: Vec<usize>,
     /// Passes made here (after the level sums).
     pub passes: usize,
-    /// Per level, its first value in file order (Brown-Forsythe's shift).
+    /// Per level (cell), its first value in file order (Brown-Forsythe's shift).
     first_values: Vec<f64>,
+}
+
+/// How the observations are fitted and grouped. The passes visit cells:
+/// the levels of one factor, or the full cells of several. Each cell has a
+/// fitted value (the residual is y − fitted), a leverage, and a group whose
+/// spread the tests compare; the spread tests and quartiles read y − shift.
+pub(in crate::analysis) struct Fitting {
+    /// Per cell: its number of observations.
+    pub n: Vec<usize>,
+    /// Per cell: its group.
+    pub group_of: Vec<usize>,
+    /// Per cell: the fitted value of its observations.
+    pub fitted: Vec<f64>,
+    /// Per cell: what the spread tests subtract first: zero for the values
+    /// themselves (one factor), the fitted value for residuals.
+    pub shift: Vec<f64>,
+    /// Per cell: the leverage of its observations.
+    pub leverage: Vec<f64>,
+    /// Per group: n, mean and sum of squares of the values y − shift.
+    pub groups: Vec<GroupSummary>,
+    /// The residual mean square and its degrees of freedom.
+    pub mse: f64,
+    pub df: usize,
+    /// The grand mean (of the offsets), for the total sum of squares.
+    pub grand: f64,
+}
+
+impl Fitting {
+    /// One factor: each level its own group, fitted by its mean, and the
+    /// spread tests on the values themselves.
+    fn one_factor(summaries: &[GroupSummary]) -> Fitting {
+        let table = one_way(summaries, 0.05, None).ok();
+        let (mse, df, grand) = table.as_ref().map_or((f64::NAN, 0, f64::NAN), |t| {
+            (t.ms_within, t.df_within, t.grand_mean)
+        });
+        Fitting {
+            n: summaries.iter().map(|s| s.n).collect(),
+            group_of: (0..summaries.len()).collect(),
+            fitted: summaries.iter().map(|s| s.mean).collect(),
+            shift: vec![0.0; summaries.len()],
+            leverage: summaries.iter().map(|s| 1.0 / s.n as f64).collect(),
+            groups: summaries.to_vec(),
+            mse,
+            df,
+            grand,
+        }
+    }
+
+    /// Per-cell summaries merged into their groups, in cell order.
+    fn by_group(&self, cell: impl Fn(usize) -> GroupSummary) -> Vec<GroupSummary> {
+        let none = GroupSummary {
+            n: 0,
+            mean: f64::NAN,
+            ss: f64::NAN,
+        };
+        let mut groups = vec![none; self.groups.len()];
+        for (c, &g) in self.group_of.iter().enumerate() {
+            groups[g] = groups[g].merge(&cell(c));
+        }
+        groups
+    }
+}
+
+/// The values less `shift` (the values themselves when it is zero).
+fn shifted<'a>(values: &'a [f64], shift: f64, buffer: &'a mut Vec<f64>) -> &'a [f64] {
+    if shift == 0.0 {
+        return values;
+    }
+    buffer.clear();
+    buffer.extend(values.iter().map(|y| y - shift));
+    buffer
 }
 
 /// The ranks type-7 quartiles interpolate between: (low, high, fraction)
@@ -174,9 +249,9 @@ fn combined<'a>(sums: impl Iterator<Item = &'a NeumaierSum>) -> f64 {
     total.value()
 }
 
-/// What pass A gathers, per level unless said.
+/// What pass A gathers, per level (cell) unless said.
 struct PassA<'s> {
-    summaries: &'s [GroupSummary],
+    fit: &'s Fitting,
     /// Where Levene's deviations are shifted to (see `shifted_summary`):
     /// the level's first deviation, once seen.
     levene_shift: Vec<f64>,
@@ -184,9 +259,6 @@ struct PassA<'s> {
     first_values: Vec<f64>,
     /// |Residual| beyond which t is computed (see `outlier_screen`).
     screens: Vec<f64>,
-    mse: f64,
-    df: usize,
-    grand: f64,
     first_lines: Vec<Option<usize>>,
     levene: Vec<[NeumaierSum; 2]>,
     powers: Vec<[NeumaierSum; 4]>,
@@ -197,24 +269,16 @@ struct PassA<'s> {
 }
 
 impl<'s> PassA<'s> {
-    fn new(summaries: &'s [GroupSummary]) -> Self {
-        let k = summaries.len();
-        let n_total: usize = summaries.iter().map(|s| s.n).sum();
-        let table = one_way(summaries, 0.05, None).ok();
-        let (mse, df, grand) = table.as_ref().map_or((f64::NAN, 0, f64::NAN), |t| {
-            (t.ms_within, t.df_within, t.grand_mean)
-        });
+    fn new(fit: &'s Fitting) -> Self {
+        let k = fit.n.len();
+        let n_total: usize = fit.n.iter().sum();
         PassA {
-            summaries,
+            fit,
             levene_shift: vec![f64::NAN; k],
             first_values: vec![f64::NAN; k],
-            screens: summaries
-                .iter()
-                .map(|s| outlier_screen(mse, 1.0 / s.n as f64, df as f64))
+            screens: (fit.leverage.iter())
+                .map(|&h| outlier_screen(fit.mse, h, fit.df as f64))
                 .collect(),
-            mse,
-            df,
-            grand,
             first_lines: vec![None; k],
             levene: vec![Default::default(); k],
             powers: vec![Default::default(); k],
@@ -225,7 +289,9 @@ impl<'s> PassA<'s> {
     }
 
     fn visit(&mut self, level: usize, offsets: &[f64], lines: &[usize]) {
-        let s = &self.summaries[level];
+        let fit = self.fit;
+        // Levene's centre: the group's mean of the values y − cell_shift.
+        let (centre, cell_shift) = (fit.groups[fit.group_of[level]].mean, fit.shift[level]);
         if self.first_lines[level].is_none()
             && let (Some(&line), Some(&y)) = (lines.first(), offsets.first())
         {
@@ -233,19 +299,29 @@ impl<'s> PassA<'s> {
             // equal deviations give exactly zero spread.
             self.first_lines[level] = Some(line);
             self.first_values[level] = y;
-            self.levene_shift[level] = (y - s.mean).abs();
+            self.levene_shift[level] = ((y - cell_shift) - centre).abs();
         }
-        let (mean, shift, screen) = (s.mean, self.levene_shift[level], self.screens[level]);
-        let flags = self.df >= 2 && crate::stats::is_positive(self.mse) && s.n >= 2;
+        let (mean, shift, screen) = (
+            fit.fitted[level],
+            self.levene_shift[level],
+            self.screens[level],
+        );
+        // A leverage of one leaves no residual to studentize (a level of
+        // one observation).
+        let flags =
+            fit.df >= 2 && crate::stats::is_positive(fit.mse) && fit.leverage[level] < 1.0 - 1e-12;
         for (&y, &line) in offsets.iter().zip(lines) {
             let e = y - mean;
-            add_shifted(&mut self.levene[level], e.abs() - shift);
+            add_shifted(
+                &mut self.levene[level],
+                ((y - cell_shift) - centre).abs() - shift,
+            );
             let p = &mut self.powers[level];
             p[0].add(e);
             p[1].add(e * e);
             p[2].add(e * e * e);
             p[3].add(e * e * e * e);
-            add_shifted(&mut self.total[level], y - self.grand);
+            add_shifted(&mut self.total[level], y - fit.grand);
             if flags && e.abs() > screen {
                 self.flag(level, e, y, line);
             }
@@ -256,8 +332,8 @@ impl<'s> PassA<'s> {
     }
 
     fn flag(&mut self, level: usize, e: f64, y: f64, line: usize) {
-        let leverage = 1.0 / self.summaries[level].n as f64;
-        let t = externally_studentized(e, self.mse, leverage, self.df as f64);
+        let fit = self.fit;
+        let t = externally_studentized(e, fit.mse, fit.leverage[level], fit.df as f64);
         if t.abs() > OUTLIER_THRESHOLD {
             let flag = Flag {
                 level,
@@ -271,12 +347,10 @@ impl<'s> PassA<'s> {
 
     /// Levene's test, the residuals' shape and the total sum of squares.
     fn finish(self, observed: &mut Observed) {
-        let summaries = self.summaries;
-        let n_total: usize = summaries.iter().map(|s| s.n).sum();
-        let deviations: Vec<GroupSummary> = (summaries.iter().zip(&self.levene_shift))
-            .zip(&self.levene)
-            .map(|((s, &shift), sums)| shifted_summary(s.n, shift, sums))
-            .collect();
+        let fit = self.fit;
+        let n_total: usize = fit.n.iter().sum();
+        let deviations =
+            fit.by_group(|c| shifted_summary(fit.n[c], self.levene_shift[c], &self.levene[c]));
         observed.levene = spread_test(&deviations);
         observed.first_values = self.first_values.clone();
         let power = |i: usize| combined(self.powers.iter().map(|p| &p[i]));
@@ -372,21 +446,33 @@ pub(super) fn observe(
     passes: &mut dyn Passes,
     summaries: &[GroupSummary],
 ) -> Result<Observed, DataError> {
+    observe_fitted(passes, &Fitting::one_factor(summaries))
+}
+
+/// Every check on the observations of cells fitted and grouped by `fit`.
+pub(in crate::analysis) fn observe_fitted(
+    passes: &mut dyn Passes,
+    fit: &Fitting,
+) -> Result<Observed, DataError> {
+    let summaries = &fit.groups;
     let mut observed = Observed::empty(summaries.len());
     let mut selection = Selection::new(&wanted_ranks(summaries));
-    let mut first = PassA::new(summaries);
+    let mut first = PassA::new(fit);
+    let mut buffer = Vec::new();
     selection.begin_pass();
     // Checked against the first pass's fingerprint: it may be the last pass.
     passes.pass(true, &mut |level, offsets, lines| {
         first.visit(level, offsets, lines);
-        selection.visit(level, offsets);
+        let values = shifted(offsets, fit.shift[level], &mut buffer);
+        selection.visit(fit.group_of[level], values);
     })?;
     selection.end_pass().map_err(|_| changed_error())?;
     first.finish(&mut observed);
     while !selection.done() {
         selection.begin_pass();
         passes.pass(false, &mut |level, offsets, _| {
-            selection.visit(level, offsets)
+            let values = shifted(offsets, fit.shift[level], &mut buffer);
+            selection.visit(fit.group_of[level], values)
         })?;
         selection.end_pass().map_err(|_| changed_error())?;
     }
@@ -414,36 +500,42 @@ pub(super) fn observe(
             (at(places[0]), at(places[1]), at(places[2]))
         })
         .collect();
-    // Brown-Forsythe: deviations from the medians, shifted by each level's
-    // first deviation; from the first pass's record of a level where it
-    // allows, else read again.
-    let shifts: Vec<f64> = (observed.first_values.iter().zip(&medians))
-        .map(|(y, m)| (y - m).abs())
+    // Brown-Forsythe: deviations from the group medians, shifted by each
+    // cell's first deviation; for a group of one cell from the first pass's
+    // record of it where that allows (see `deviations_of_whole`), else by
+    // reading again.
+    let median_of = |c: usize| medians[fit.group_of[c]];
+    let shifts: Vec<f64> = (observed.first_values.iter().enumerate())
+        .map(|(c, y)| ((y - fit.shift[c]) - median_of(c)).abs())
         .collect();
-    let mut sums: Vec<[NeumaierSum; 2]> = vec![Default::default(); summaries.len()];
-    let again: Vec<bool> = (0..summaries.len())
-        .map(|g| {
-            let whole = selection.whole(g);
-            summaries[g].n > 0
-                && !whole
-                    .is_some_and(|w| deviations_of_whole(w, medians[g], shifts[g], &mut sums[g]))
+    let mut sums: Vec<[NeumaierSum; 2]> = vec![Default::default(); fit.n.len()];
+    let mut cells_in = vec![0_usize; summaries.len()];
+    for &g in &fit.group_of {
+        cells_in[g] += 1;
+    }
+    let again: Vec<bool> = (0..fit.n.len())
+        .map(|c| {
+            let g = fit.group_of[c];
+            let from_whole = cells_in[g] == 1
+                && selection
+                    .whole(g)
+                    .is_some_and(|w| deviations_of_whole(w, medians[g], shifts[c], &mut sums[c]));
+            fit.n[c] > 0 && !from_whole
         })
         .collect();
     if again.iter().any(|&a| a) {
         passes.pass(true, &mut |level, offsets, _| {
-            let (median, shift) = (medians[level], shifts[level]);
-            if again[level] {
-                for &y in offsets {
-                    add_shifted(&mut sums[level], (y - median).abs() - shift);
-                }
+            if !again[level] {
+                return;
+            }
+            let (median, shift, cell_shift) = (median_of(level), shifts[level], fit.shift[level]);
+            for &y in offsets {
+                add_shifted(&mut sums[level], ((y - cell_shift) - median).abs() - shift);
             }
         })?;
         observed.passes += 1;
     }
-    let deviations: Vec<GroupSummary> = (summaries.iter().zip(&shifts))
-        .zip(&sums)
-        .map(|((s, &shift), sums)| shifted_summary(s.n, shift, sums))
-        .collect();
+    let deviations = fit.by_group(|c| shifted_summary(fit.n[c], shifts[c], &sums[c]));
     observed.brown_forsythe = spread_test(&deviations);
     observed.passes += selection.passes();
     Ok(observed)

@@ -121,3 +121,93 @@ fn equal_deviations_have_exactly_no_spread() {
     assert_eq!(observed.levene, None);
     assert_eq!(observed.quartiles[1].1, 7.0);
 }
+
+/// Cells fitted by values other than their means and grouped two by two
+/// (as a factorial block's full cells are grouped into treatment cells):
+/// the passes agree with the in-memory functions on the residuals grouped
+/// the same way, to rounding (1e-12 relative, as above: the shifted sums
+/// merged cell by cell and the two-pass formulas differ only in rounding);
+/// the outliers to the line.
+#[test]
+fn cells_grouped_and_fitted_agree_with_the_functions_on_their_residuals() {
+    let cells = levels();
+    // Invented fitted values near each cell's mean, and leverages.
+    let fitted = [1.9, 0.01, 1.6, -3.04];
+    let leverage = [0.0004, 0.0005, 0.003, 0.2];
+    let group_of = vec![0, 1, 0, 1];
+    let residuals: Vec<Vec<f64>> = (cells.iter().zip(fitted))
+        .map(|(c, f)| c.iter().map(|y| y - f).collect())
+        .collect();
+    let mut groups: Vec<Vec<f64>> = vec![Vec::new(); 2];
+    for (r, &g) in residuals.iter().zip(&group_of) {
+        groups[g].extend(r);
+    }
+    let summaries: Vec<GroupSummary> = groups
+        .iter()
+        .map(|g| GroupSummary::from_values(g))
+        .collect();
+    let all: Vec<f64> = cells.concat();
+    let (df, mse) = (all.len() - 4, 4.0);
+    let fit = Fitting {
+        n: cells.iter().map(Vec::len).collect(),
+        group_of,
+        fitted: fitted.to_vec(),
+        shift: fitted.to_vec(),
+        leverage: leverage.to_vec(),
+        groups: summaries,
+        mse,
+        df,
+        grand: all.iter().sum::<f64>() / all.len() as f64,
+    };
+    let lines: Vec<Vec<usize>> = (cells.iter().scan(2, |next, g| {
+        let l: Vec<usize> = (*next..*next + g.len()).collect();
+        *next += g.len();
+        Some(l)
+    }))
+    .collect();
+    let observed = observe_fitted(
+        &mut Kept {
+            offsets: &cells,
+            lines: &lines,
+        },
+        &fit,
+    )
+    .expect("observe");
+    let slices: Vec<&[f64]> = groups.iter().map(Vec::as_slice).collect();
+    let bf = levene(&slices, Center::Median).expect("bf");
+    let lv = levene(&slices, Center::Mean).expect("levene");
+    let (obf, olv) = (
+        observed.brown_forsythe.expect("bf"),
+        observed.levene.expect("levene"),
+    );
+    assert!(
+        relative(obf.statistic, bf.statistic) < 1e-12,
+        "{obf:?} {bf:?}"
+    );
+    assert!(
+        relative(olv.statistic, lv.statistic) < 1e-12,
+        "{olv:?} {lv:?}"
+    );
+    for (q, g) in observed.quartiles.iter().zip(&groups) {
+        let (a, b, c) = quartiles(g);
+        assert_eq!((q.0, q.1, q.2), (a, b, c));
+    }
+    let (skew, kurt) = skewness_kurtosis(&residuals.concat());
+    assert!(relative(observed.skewness, skew) < 1e-12);
+    assert!(relative(observed.excess_kurtosis, kurt) < 1e-12);
+    // Outliers: every residual against the threshold, with its cell's leverage.
+    let mut expected: Vec<usize> = Vec::new();
+    for ((r, l), &h) in residuals.iter().zip(&lines).zip(&leverage) {
+        for (&e, &line) in r.iter().zip(l) {
+            let t = crate::stats::assumptions::externally_studentized(e, mse, h, df as f64);
+            if t.abs() > OUTLIER_THRESHOLD {
+                expected.push(line);
+            }
+        }
+    }
+    assert_eq!(observed.outlier_count, expected.len());
+    assert!(expected.len() <= OUTLIERS_KEPT);
+    let got: Vec<usize> = observed.outliers.iter().map(|o| o.line).collect();
+    assert_eq!(got, expected);
+    assert!(!got.is_empty());
+}

@@ -56,6 +56,7 @@ impl<'v> Merged<'v> {
                 },
                 offsets: Vec::new(),
                 lines: Vec::new(),
+                first_line: None,
             });
         }
         merged
@@ -86,6 +87,9 @@ impl<'v> Merged<'v> {
                     *line += base;
                 }
             }
+            for line in chunk.first_lines.iter_mut().filter(|l| **l != usize::MAX) {
+                *line += base;
+            }
             chunk.last_line += base;
             self.next_line += chunk.end_line;
         } else {
@@ -109,12 +113,18 @@ impl<'v> Merged<'v> {
                         },
                         offsets: Vec::new(),
                         lines: Vec::new(),
+                        first_line: None,
                     });
                     self.levels.len() - 1
                 }
             };
             let level = &mut self.levels[g];
             level.summary = level.summary.merge(&chunk.summaries[local]);
+            // Chunks come in file order: the first chunk with a value has
+            // the level's first.
+            if level.first_line.is_none() && chunk.first_lines[local] != usize::MAX {
+                level.first_line = Some(chunk.first_lines[local]);
+            }
             if let Some(visit) = &mut self.visit {
                 visit(g, &chunk.offsets[local], &chunk.lines[local]);
             } else if self.keep_values {

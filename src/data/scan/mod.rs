@@ -19,6 +19,7 @@ use super::csv::{CsvError, RecordParser, count_lines, utf8_text};
 use super::decimal::{Number, exact_power, parse_number, plain_difference, plain_parts};
 use super::{CsvFormat, DataError, Exclusion, Filter, Header, quote_list};
 use crate::stats::oneway::GroupSummary;
+use cells::*;
 use chunks::*;
 use merge::*;
 use parse::*;
@@ -66,6 +67,9 @@ pub struct ScannedLevel {
     pub offsets: Vec<f64>,
     /// The data line of each kept value.
     pub lines: Vec<usize>,
+    /// The data line of its first value, kept or not (`None`: every row
+    /// of the level lacked a response).
+    pub first_line: Option<usize>,
 }
 
 /// A response column split by one factor (or by cells), as one pass over
@@ -339,6 +343,7 @@ fn io_error(e: std::io::Error) -> DataError {
     }
 }
 
+mod cells;
 mod chunks;
 mod merge;
 mod parse;

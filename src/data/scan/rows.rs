@@ -44,12 +44,35 @@ pub(super) fn missing_lengths(format: &CsvFormat) -> u64 {
 /// so that no level text can be confused with the joints.
 pub fn cell_key<'a>(levels: impl Iterator<Item = &'a str>) -> String {
     let mut key = String::new();
+    push_cell_key(&mut key, levels);
+    key
+}
+
+/// Writes a [`cell_key`] into `key` (cleared first), so that a reader can
+/// reuse one buffer for every row instead of allocating a key each.
+pub(super) fn push_cell_key<'a>(key: &mut String, levels: impl Iterator<Item = &'a str>) {
+    key.clear();
     for level in levels {
-        key.push_str(&level.len().to_string());
+        push_decimal(key, level.len());
         key.push(':');
         key.push_str(level);
     }
-    key
+}
+
+/// Appends n in decimal digits (the formatting machinery cost a fifth of
+/// a two-factor scan).
+fn push_decimal(key: &mut String, n: usize) {
+    let mut digits = [0u8; 20];
+    let (mut at, mut rest) = (digits.len(), n);
+    loop {
+        at -= 1;
+        digits[at] = b'0' + (rest % 10) as u8;
+        rest /= 10;
+        if rest == 0 {
+            break;
+        }
+    }
+    key.extend(digits[at..].iter().map(|&d| char::from(d)));
 }
 
 /// The levels of a [`cell_key`].
@@ -188,6 +211,8 @@ pub(super) struct ChunkResult {
     pub(super) summaries: Vec<GroupSummary>,
     pub(super) offsets: Vec<Vec<f64>>,
     pub(super) lines: Vec<Vec<usize>>,
+    /// Per level, the line of its first value (`usize::MAX`: none).
+    pub(super) first_lines: Vec<usize>,
     pub(super) origin: Option<Number>,
     pub(super) decimals: u32,
     pub(super) excluded: Vec<Exclusion>,
@@ -209,6 +234,12 @@ pub(super) struct RowAccumulator<'p> {
     /// only those outside the exact sums).
     pub(super) offsets: Vec<Vec<f64>>,
     pub(super) lines: Vec<Vec<usize>>,
+    /// Per level, the line of its first value (`usize::MAX`: none yet).
+    pub(super) first_lines: Vec<usize>,
+    /// The cell key of the row being read (one buffer for every row).
+    pub(super) key: String,
+    /// The cells met, by each factor's level (several factors).
+    pub(super) cell_index: CellIndex,
     /// Per level: exact sums of the values in the origin's decimals.
     pub(super) sums: Vec<ExactSums>,
     /// Per level: values that could not enter the exact sums.
@@ -240,6 +271,9 @@ impl<'p> RowAccumulator<'p> {
             names: Vec::new(),
             offsets: Vec::new(),
             lines: Vec::new(),
+            first_lines: Vec::new(),
+            key: String::new(),
+            cell_index: CellIndex::default(),
             sums: Vec::new(),
             inexact: Vec::new(),
             loose: Vec::new(),
@@ -271,6 +305,24 @@ impl<'p> RowAccumulator<'p> {
         }
     }
 
+    /// The level of a row's cell of several factors: found by each
+    /// factor's level when the cell was met before, else by its cell key
+    /// (the same level either way: the key decides).
+    fn cell_level(&mut self, factor_cells: &[&str]) -> usize {
+        let combination = self.cell_index.combination(factor_cells);
+        if let Some(level) = combination.and_then(|c| self.cell_index.get(c)) {
+            return level;
+        }
+        let mut key = std::mem::take(&mut self.key);
+        push_cell_key(&mut key, factor_cells.iter().map(|c| trim(c)));
+        let level = self.level(&key);
+        self.key = key;
+        if let Some(c) = combination {
+            self.cell_index.insert(c, level);
+        }
+        level
+    }
+
     pub(super) fn add_level(&mut self, name: &str, key: (u64, usize)) -> usize {
         let i = self.names.len();
         if self.keys.len() == 32 {
@@ -286,6 +338,7 @@ impl<'p> RowAccumulator<'p> {
         self.names.push(name.to_string());
         self.offsets.push(Vec::new());
         self.lines.push(Vec::new());
+        self.first_lines.push(usize::MAX);
         self.sums.push(ExactSums::default());
         self.inexact.push(0);
         self.loose.push(Vec::new());
@@ -308,8 +361,19 @@ impl<'p> RowAccumulator<'p> {
         if let [(c, _)] = plan.factors.as_slice() {
             return self.cells(&[fields[*c]], fields[plan.response.0], line);
         }
-        let factor_cells: Vec<&str> = plan.factors.iter().map(|(c, _)| fields[*c]).collect();
-        self.cells(&factor_cells, fields[plan.response.0], line)
+        // A few factors (the usual case) without allocating per row.
+        let mut inline = [""; 8];
+        let listed: Vec<&str>;
+        let factor_cells: &[&str] = if plan.factors.len() <= inline.len() {
+            for (cell, (c, _)) in inline.iter_mut().zip(&plan.factors) {
+                *cell = fields[*c];
+            }
+            &inline[..plan.factors.len()]
+        } else {
+            listed = plan.factors.iter().map(|(c, _)| fields[*c]).collect();
+            &listed
+        };
+        self.cells(factor_cells, fields[plan.response.0], line)
     }
 
     /// The width check and `exclude`; false when the row is left out.
@@ -358,10 +422,7 @@ impl<'p> RowAccumulator<'p> {
         // level with no usable rows is reported rather than silently lost.
         let level = match factor_cells {
             [g] => self.level(trim(g)),
-            _ => {
-                let key = cell_key(factor_cells.iter().map(|c| trim(c)));
-                self.level(&key)
-            }
+            _ => self.cell_level(factor_cells),
         };
         let y = trim(response_cell);
         if plan.is_missing(y) {
@@ -370,6 +431,9 @@ impl<'p> RowAccumulator<'p> {
                 reason: format!("`{}` is missing", plan.response.1),
             });
             return Ok(());
+        }
+        if self.first_lines[level] == usize::MAX {
+            self.first_lines[level] = line;
         }
         let offset = match plain_parts(y, plan.format.decimal_comma) {
             Some((digits, scale)) => {
@@ -455,6 +519,7 @@ impl<'p> RowAccumulator<'p> {
             summaries,
             offsets: if keep { self.offsets } else { Vec::new() },
             lines: if keep { self.lines } else { Vec::new() },
+            first_lines: self.first_lines,
             origin: self.origin.map(|o| o.0),
             decimals: self.decimals,
             excluded: self.excluded,

@@ -195,3 +195,45 @@ fn rules_apply_by_absolute_line() {
     .unwrap_err();
     assert!(err.message.contains("names line 999"), "{}", err.message);
 }
+
+/// Cells of two factors found by each factor's level (`cells::CellIndex`):
+/// a factor of 100 levels (beyond the 64 it indexes per chunk) whose names
+/// share their first 8 bytes, with spaces around some, against counts
+/// and sums made here directly from the text.
+#[test]
+fn cells_of_many_long_levels_are_counted_as_written() {
+    let format = CsvFormat::default();
+    let mut text = String::from("a,b,y\n");
+    let mut expected: BTreeMap<String, (usize, i64)> = BTreeMap::new();
+    for i in 0..3000usize {
+        let a = format!("batch-of-line-{}", (i * 37) % 100);
+        let b = ["x", "long level name", "z"][i % 3];
+        let y = (i * 13 % 101) as i64;
+        let pad = if i % 7 == 0 { " " } else { "" };
+        text.push_str(&format!("{pad}{a}{pad},{b},{y}\n"));
+        let e = expected
+            .entry(cell_key([a.as_str(), b].into_iter()))
+            .or_default();
+        e.0 += 1;
+        e.1 += y;
+    }
+    let spec = ScanSpec {
+        factors: &["a", "b"],
+        ..spec(&format, false)
+    };
+    for chunk in [1 << 20, 4096] {
+        let got = scan_file(Source::Memory(text.as_bytes()), &spec, chunk, 2).expect("scan");
+        let found: BTreeMap<String, (usize, i64)> = got
+            .levels
+            .iter()
+            .map(|l| {
+                let s = l.summary;
+                // Whole numbers from an origin of 0 (the first value): the
+                // mean times n is the exact sum.
+                let sum = (s.mean * s.n as f64 + got.origin * s.n as f64).round() as i64;
+                (l.name.clone(), (s.n, sum))
+            })
+            .collect();
+        assert_eq!(found, expected, "chunk {chunk}");
+    }
+}
