@@ -89,7 +89,10 @@ pub fn parquet(data: &[u8]) {
     use std::io::Read;
     let format = crate::data::CsvFormat::default();
     let _ = crate::data::read_table("fuzz.parquet", data, &format, None, None);
-    if let Ok(rows) = crate::data::parquet::rows_in_memory(data, &["head", "fill_g"]) {
+    if let Ok(rows) = crate::data::parquet::rows_in_memory(
+        bytes::Bytes::copy_from_slice(data),
+        &["head", "fill_g"],
+    ) {
         let _ = rows.take(64 << 20).read_to_end(&mut Vec::new());
     }
 }

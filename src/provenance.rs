@@ -39,8 +39,10 @@ pub struct Input {
     /// SHA-256 of the file, in hex.
     pub sha256: String,
     pub size: u64,
-    /// The bytes, unless the file was streamed past (see `data::scan`).
-    pub bytes: Option<Vec<u8>>,
+    /// The bytes, unless the file was streamed past (see `data::scan`);
+    /// shared, so that a pass that needs them owned (a Parquet decoder)
+    /// takes no copy.
+    pub bytes: Option<bytes::Bytes>,
 }
 
 impl Input {
@@ -49,7 +51,7 @@ impl Input {
             path: path.to_string(),
             sha256: sha256_hex(&bytes),
             size: bytes.len() as u64,
-            bytes: Some(bytes),
+            bytes: Some(bytes::Bytes::from(bytes)),
         }
     }
 }

@@ -375,8 +375,8 @@ fn damaged_files_are_errors() {
     let good = std::fs::read(data_dir().join("parquet/invented-nulls.parquet")).expect("file");
     let columns = ["head", "fill_g", "shift"];
     let read = |bytes: &[u8]| -> Result<String, String> {
-        let mut rows =
-            sheaf::data::parquet::rows_in_memory(bytes, &columns).map_err(|e| e.message)?;
+        let mut rows = sheaf::data::parquet::rows_in_memory(bytes.to_vec().into(), &columns)
+            .map_err(|e| e.message)?;
         let mut text = String::new();
         rows.read_to_string(&mut text).map_err(|e| e.to_string())?;
         Ok(text)

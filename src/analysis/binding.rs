@@ -31,7 +31,7 @@ pub type Reopen<'a> = &'a dyn Fn() -> std::io::Result<Box<dyn std::io::Read + Se
 pub(crate) enum Again<'a> {
     Memory(&'a [u8]),
     /// A Parquet file held in memory, decoded again for each pass.
-    Columnar(&'a [u8]),
+    Columnar(&'a bytes::Bytes),
     /// A streamed file; `true` when it is Parquet (its rows arrive as CSV
     /// text in `parquet::text_format`).
     Reopen(Reopen<'a>, bool),
@@ -41,7 +41,8 @@ impl<'a> Data<'a> {
     pub(crate) fn again(&self) -> Again<'a> {
         match self {
             Data::Loaded(input) if parquet::is_parquet(&input.path) => {
-                Again::Columnar(input.bytes.as_deref().unwrap_or_default())
+                static NONE: bytes::Bytes = bytes::Bytes::new();
+                Again::Columnar(input.bytes.as_ref().unwrap_or(&NONE))
             }
             Data::Loaded(input) => Again::Memory(input.bytes.as_deref().unwrap_or_default()),
             Data::Stream { path, reopen, .. } => Again::Reopen(*reopen, parquet::is_parquet(path)),
@@ -84,7 +85,7 @@ pub(crate) fn rescan_csv(
     let (source, columnar) = match again {
         Again::Memory(bytes) => (Source::Memory(bytes), false),
         Again::Columnar(bytes) => (
-            Source::Stream(parquet::rows_in_memory(bytes, &scan_columns(spec))?),
+            Source::Stream(parquet::rows_in_memory(bytes.clone(), &scan_columns(spec))?),
             true,
         ),
         Again::Reopen(open, columnar) => (
@@ -141,7 +142,7 @@ pub(crate) fn scan_csv(
     });
     let (source, path) = match data {
         Data::Loaded(input) if columnar => {
-            let bytes = input.bytes.as_deref().unwrap_or_default();
+            let bytes = input.bytes.clone().unwrap_or_default();
             let rows = parquet::rows_in_memory(bytes, &scan_columns(spec))?;
             (Source::Stream(rows), None)
         }

@@ -122,8 +122,8 @@ pub fn rows_in_world(
 }
 
 /// [`open_rows`] for a file held in memory.
-pub fn rows_in_memory(bytes: &[u8], columns: &[&str]) -> Result<Box<dyn Read + Send>, DataError> {
-    rows_of(Bytes::copy_from_slice(bytes), columns)
+pub fn rows_in_memory(bytes: Bytes, columns: &[&str]) -> Result<Box<dyn Read + Send>, DataError> {
+    rows_of(bytes, columns)
 }
 
 /// The format CSV text from [`open_rows`] is written in, with the block's
