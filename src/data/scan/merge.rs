@@ -47,17 +47,7 @@ impl<'v> Merged<'v> {
             merged
                 .index
                 .insert(name.as_str().into(), merged.levels.len());
-            merged.levels.push(ScannedLevel {
-                name: name.clone(),
-                summary: GroupSummary {
-                    n: 0,
-                    mean: f64::NAN,
-                    ss: f64::NAN,
-                },
-                offsets: Vec::new(),
-                lines: Vec::new(),
-                first_line: None,
-            });
+            merged.levels.push(ScannedLevel::empty(name.clone()));
         }
         merged
     }
@@ -104,17 +94,7 @@ impl<'v> Merged<'v> {
                 None if self.visit.is_some() => return Err(changed_error()),
                 None => {
                     self.index.insert(name.as_str().into(), self.levels.len());
-                    self.levels.push(ScannedLevel {
-                        name,
-                        summary: GroupSummary {
-                            n: 0,
-                            mean: f64::NAN,
-                            ss: f64::NAN,
-                        },
-                        offsets: Vec::new(),
-                        lines: Vec::new(),
-                        first_line: None,
-                    });
+                    self.levels.push(ScannedLevel::empty(name));
                     self.levels.len() - 1
                 }
             };

@@ -72,6 +72,23 @@ pub struct ScannedLevel {
     pub first_line: Option<usize>,
 }
 
+impl ScannedLevel {
+    /// A level named before any of its values is seen.
+    pub(super) fn empty(name: String) -> ScannedLevel {
+        ScannedLevel {
+            name,
+            summary: GroupSummary {
+                n: 0,
+                mean: f64::NAN,
+                ss: f64::NAN,
+            },
+            offsets: Vec::new(),
+            lines: Vec::new(),
+            first_line: None,
+        }
+    }
+}
+
 /// A response column split by one factor (or by cells), as one pass over
 /// the file found it.
 #[derive(Debug, Clone, PartialEq)]
