@@ -4,53 +4,12 @@
 //! numbers, bit for bit: a block with `method: ranks` keeps the values, the
 //! same block with the default method reads the file again.
 
-use sheaf::compile::{Built, World, compile};
+mod huge;
+
+use huge::{Huge, scramble};
+use sheaf::compile::{Built, compile};
 use sheaf::render::Format;
-use std::io::Read;
 use std::sync::atomic::{AtomicUsize, Ordering};
-
-/// Files in memory that claim to be huge, so that every build streams them.
-/// With `changed_after`, the file's bytes change once it has been opened
-/// that many times (a file rewritten while a build reads it).
-struct Huge {
-    data: Vec<u8>,
-    opened: AtomicUsize,
-    changed_after: Option<usize>,
-}
-
-impl World for Huge {
-    fn read(&self, _path: &str) -> std::io::Result<Vec<u8>> {
-        Ok(self.data.clone())
-    }
-
-    fn open(&self, _path: &str) -> std::io::Result<(Box<dyn Read + Send>, u64)> {
-        let times = self.opened.fetch_add(1, Ordering::SeqCst);
-        let mut bytes = self.data.clone();
-        if self.changed_after.is_some_and(|n| times >= n) {
-            // One digit of the last value, same size: only the hash can tell.
-            let at = bytes.len() - 2;
-            bytes[at] = if bytes[at] == b'1' { b'2' } else { b'1' };
-        }
-        Ok((Box::new(std::io::Cursor::new(bytes)), 1 << 40))
-    }
-
-    /// Without opening, so that `opened` counts the passes only.
-    fn probe(&self, _path: &str) -> std::io::Result<u64> {
-        Ok(1 << 40)
-    }
-
-    fn display(&self, path: &str) -> String {
-        path.to_string()
-    }
-}
-
-/// A deterministic scramble in [0, 1) (no clock, no random crate).
-fn scramble(i: u64) -> f64 {
-    let x = i
-        .wrapping_mul(6_364_136_223_846_793_005)
-        .wrapping_add(1_442_695_040_888_963_407);
-    (x >> 11) as f64 / (1u64 << 53) as f64
-}
 
 /// Invented kiln-zone temperature deviations: 5 zones, values on a 0.001
 /// grid around zero (negative and positive), one value in 500 written with
@@ -94,11 +53,7 @@ fn results(built: &Built) -> serde_json::Value {
 
 #[test]
 fn reading_again_gives_the_same_bits_as_keeping_every_value() {
-    let world = Huge {
-        data: kiln(2_000_000),
-        opened: AtomicUsize::new(0),
-        changed_after: None,
-    };
+    let world = Huge::new(kiln(2_000_000));
     let kept = results(&build(&block("ranks"), &world).expect("values kept"));
     let opened_before = world.opened.load(Ordering::SeqCst);
     let reread = results(&build(&block("anova"), &world).expect("read again"));
@@ -181,11 +136,7 @@ fn relative(got: &serde_json::Value, want: &serde_json::Value) -> f64 {
 fn brown_forsythe_from_the_counting_pass_matches_scipy_and_the_kept_values() {
     let want = reference();
     for (file, reads) in [("spread_grid.csv", 2), ("spread_fine.csv", 4)] {
-        let world = Huge {
-            data: invented(file),
-            opened: AtomicUsize::new(0),
-            changed_after: None,
-        };
+        let world = Huge::new(invented(file));
         let doc = |method: &str| {
             format!(
                 "# Invented beds\n\n```anova\nid: b\ndata: beds.csv\nmodel: height ~ bed\nmethod: {method}\ncompare: none\n```\n"

@@ -7,7 +7,7 @@
 
 mod documents;
 
-use documents::{assert_close, build, build_report, open, reference_number};
+use documents::{assert_close, build, build_report, contrast_named, open, reference_number};
 use serde_json::Value;
 
 fn reference() -> Value {
@@ -27,15 +27,6 @@ fn oats_block(contrasts: &str, ddf: &str) -> String {
 fn contrasts(doc: &str) -> Value {
     let results = build(doc, &[("oats.csv", open("oats.csv"))]).expect("builds");
     results["blocks"][0]["planned_contrasts"].clone()
-}
-
-fn named<'a>(set: &'a Value, name: &str) -> &'a Value {
-    set["contrasts"]
-        .as_array()
-        .expect("contrasts")
-        .iter()
-        .find(|c| c["name"] == name)
-        .unwrap_or_else(|| panic!("no contrast {name}"))
 }
 
 /// 1e-8 relative: the estimates are the same closed forms, the SEs rest on
@@ -63,7 +54,11 @@ fn a_variety_contrast_is_judged_by_the_whole_plots() {
     ));
     assert_eq!(set["factor"], "V");
     assert_eq!(set["df_method"], "kenward-roger");
-    matches(named(&set, "Marvellous vs the others"), want, "variety");
+    matches(
+        contrast_named(&set, "Marvellous vs the others"),
+        want,
+        "variety",
+    );
     // One contrast: one df, so one critical value (t on 10 df).
     assert!(set["critical_value"].is_number(), "{set}");
 }
@@ -79,7 +74,7 @@ fn nitrogen_contrasts_are_judged_by_the_subplots_and_tested_jointly() {
     let set = &results["blocks"][0]["planned_contrasts"];
     assert_eq!(set["factor"], "N");
     for name in ["nitrogen vs none", "top vs middle"] {
-        matches(named(set, name), &r["nitrogen"][name], name);
+        matches(contrast_named(set, name), &r["nitrogen"][name], name);
     }
     let joint = &r["nitrogen_joint"];
     for field in ["f", "df1", "df2", "p"] {
@@ -109,7 +104,11 @@ fn satterthwaite_is_recorded_and_agrees_in_a_balanced_split_plot() {
         "ddf: satterthwaite\n",
     ));
     assert_eq!(set["df_method"], "satterthwaite");
-    matches(named(&set, "Marvellous vs the others"), want, "variety");
+    matches(
+        contrast_named(&set, "Marvellous vs the others"),
+        want,
+        "variety",
+    );
 }
 
 /// A fixed-effects block records its pooled error as no df method.
@@ -137,7 +136,7 @@ fn a_repeated_measures_contrast_is_the_pairwise_difference() {
     let results = build(doc, &[("weights.csv", data)]).expect("builds");
     let block = &results["blocks"][0];
     let set = &block["planned_contrasts"];
-    let contrast = named(set, "barley vs control");
+    let contrast = contrast_named(set, "barley vs control");
     let family = block["comparisons"]
         .as_array()
         .expect("families")

@@ -7,7 +7,7 @@
 
 mod documents;
 
-use documents::{assert_close, build, open, reference_number};
+use documents::{assert_close, build, contrast_named, open, reference_number};
 use serde_json::Value;
 
 fn reference(name: &str) -> Value {
@@ -29,22 +29,13 @@ fn plant_growth(extra: &str) -> Value {
     results["blocks"][0]["planned_contrasts"].clone()
 }
 
-fn contrast<'a>(set: &'a Value, name: &str) -> &'a Value {
-    set["contrasts"]
-        .as_array()
-        .expect("contrasts")
-        .iter()
-        .find(|c| c["name"] == name)
-        .unwrap_or_else(|| panic!("no contrast {name}"))
-}
-
 #[test]
 fn each_contrast_matches_the_reference_and_the_pair_is_tested_jointly() {
     let r = reference("planned_contrasts.json");
     let set = plant_growth("");
     assert_eq!(set["adjustment"], "none");
     for name in ["control vs treated", "trt2 vs trt1"] {
-        let (got, want) = (contrast(&set, name), &r["contrasts"][name]);
+        let (got, want) = (contrast_named(&set, name), &r["contrasts"][name]);
         for field in ["estimate", "se", "t", "p", "ci_lower", "ci_upper"] {
             close(&got[field], &want[field], &format!("{name} {field}"));
         }
@@ -72,7 +63,7 @@ fn adjustments_follow_the_reference() {
         for name in ["control vs treated", "trt2 vs trt1", "trt1 vs control"] {
             let want = &r["contrasts"][name];
             close(
-                &contrast(&set, name)["p_adj"],
+                &contrast_named(&set, name)["p_adj"],
                 &want[field],
                 &format!("{key} {name}"),
             );
@@ -96,7 +87,7 @@ fn a_contrast_over_marginal_means_in_a_confounded_factorial() {
     let results = build(doc, &[("npk.csv", open("npk.csv"))]).expect("builds");
     let set = &results["blocks"][0]["planned_contrasts"];
     assert_eq!(set["factor"], "N");
-    let got = contrast(set, "N1 - N0");
+    let got = contrast_named(set, "N1 - N0");
     for field in ["estimate", "se", "t", "p"] {
         close(&got[field], &want[field], field);
     }

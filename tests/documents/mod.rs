@@ -79,3 +79,15 @@ pub fn assert_close(got: &Value, want: f64, tolerance: f64, what: &str) {
     let rel = (g - want).abs() / want.abs().max(1e-300);
     assert!(rel < tolerance, "{what}: {g} vs {want} (rel {rel:e})");
 }
+
+/// The planned contrast of a block's `planned_contrasts` record with this
+/// name.
+#[allow(dead_code)]
+pub fn contrast_named<'a>(set: &'a Value, name: &str) -> &'a Value {
+    set["contrasts"]
+        .as_array()
+        .expect("contrasts")
+        .iter()
+        .find(|c| c["name"] == name)
+        .unwrap_or_else(|| panic!("no contrast {name}"))
+}
