@@ -3,7 +3,9 @@
 //! display labels of levels, and data-file errors that point into the file.
 
 use crate::data::parquet;
-use crate::data::scan::{CHUNK_BYTES, ScanSpec, Scanned, Source, Visit, rescan, scan_file};
+use crate::data::scan::{
+    CHUNK_BYTES, ScanSpec, Scanned, Source, Visit, rescan, scan_file, scan_generated,
+};
 use crate::data::{DataError, Exclusion, Table, prepare};
 use crate::diag::Diagnostic;
 use crate::doc::block::AnovaSpec;
@@ -158,7 +160,11 @@ pub(crate) fn scan_csv(
         format: if columnar { &text_format } else { spec.format },
         ..spec.clone()
     };
-    let scanned = scan_file(source, &spec, CHUNK_BYTES, reader_threads())?;
+    let scanned = if columnar {
+        scan_generated(source, &spec, CHUNK_BYTES, reader_threads())?
+    } else {
+        scan_file(source, &spec, CHUNK_BYTES, reader_threads())?
+    };
     let input = path.map(|path| Input {
         path: path.to_string(),
         sha256: scanned.sha256.clone().unwrap_or_default(),

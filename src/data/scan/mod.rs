@@ -132,6 +132,25 @@ pub fn scan_file(
     )
 }
 
+/// [`scan_file`] for text generated from another file (a Parquet file's
+/// rows), whose own hash the caller records: a stream gets only the
+/// fingerprint that later passes compare, no SHA-256 of the text.
+pub fn scan_generated(
+    source: Source<'_>,
+    spec: &ScanSpec<'_>,
+    chunk_bytes: usize,
+    threads: usize,
+) -> Result<Scanned, DataError> {
+    scan_pass(
+        source,
+        spec,
+        chunk_bytes,
+        threads,
+        Merged::new(spec.keep_values),
+        Hashing::Fingerprint,
+    )
+}
+
 /// What a pass over a stream hashes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Hashing {
