@@ -6,7 +6,7 @@
 
 mod huge;
 
-use huge::{Huge, scramble};
+use huge::{Huge, cell, scramble};
 use sheaf::compile::{Built, compile};
 use sheaf::render::Format;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -25,13 +25,7 @@ fn kiln(rows: u64) -> Vec<u8> {
         if i % 99_991 == 5 {
             y += if i % 2 == 0 { 6.0 } else { -6.0 };
         }
-        let cell = if i % 997 == 3 {
-            "NA".to_string()
-        } else if i % 500 == 1 {
-            format!("{y:.4}")
-        } else {
-            format!("{y:.3}")
-        };
+        let cell = cell(i, y);
         text.push_str(&format!("Z{zone},{cell}\n"));
     }
     text.into_bytes()

@@ -9,7 +9,7 @@
 
 mod huge;
 
-use huge::{Huge, scramble};
+use huge::{Huge, cell, scramble};
 use sheaf::compile::{Built, World, compile};
 use sheaf::render::Format;
 use std::sync::atomic::Ordering;
@@ -29,13 +29,7 @@ fn presses(rows: u64) -> Vec<u8> {
         if i % 99_991 == 5 {
             y += if i % 2 == 0 { 0.6 } else { -0.6 };
         }
-        let cell = if i % 997 == 3 {
-            "NA".to_string()
-        } else if i % 500 == 1 {
-            format!("{y:.4}")
-        } else {
-            format!("{y:.3}")
-        };
+        let cell = cell(i, y);
         text.push_str(&format!("P{line},S{shift},{cell}\n"));
     }
     text.into_bytes()

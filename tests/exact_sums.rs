@@ -11,31 +11,12 @@
 //! floating point). The bar LRE ≥ 9 is the one tests/nist.rs holds the raw
 //! path to.
 
+mod summary_file;
+
 use serde_json::Value;
-use sheaf::compile::{World, compile};
+use sheaf::compile::compile;
 use sheaf::render::Format;
-
-struct Memory(String);
-
-impl World for Memory {
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
-        if path == "s.csv" {
-            Ok(self.0.as_bytes().to_vec())
-        } else {
-            Err(std::io::Error::from(std::io::ErrorKind::NotFound))
-        }
-    }
-    fn display(&self, path: &str) -> String {
-        path.to_string()
-    }
-}
-
-fn lre(got: f64, certified: f64) -> f64 {
-    if got == certified {
-        return 15.0;
-    }
-    (-((got - certified) / certified).abs().log10()).min(15.0)
-}
+use summary_file::{Memory, lre};
 
 fn num(v: &Value) -> f64 {
     v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))

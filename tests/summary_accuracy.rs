@@ -13,31 +13,12 @@
 //! carry 20 decimals in each mean and 25 significant digits in each SD, so
 //! the input alone would allow LRE above 14.
 
+mod summary_file;
+
 use serde_json::Value;
 use sheaf::compile::{World, compile};
 use sheaf::render::Format;
-
-struct Memory(String);
-
-impl World for Memory {
-    fn read(&self, path: &str) -> std::io::Result<Vec<u8>> {
-        if path == "s.csv" {
-            Ok(self.0.as_bytes().to_vec())
-        } else {
-            Err(std::io::Error::from(std::io::ErrorKind::NotFound))
-        }
-    }
-    fn display(&self, path: &str) -> String {
-        path.to_string()
-    }
-}
-
-fn lre(got: f64, certified: f64) -> f64 {
-    if got == certified {
-        return 15.0;
-    }
-    (-((got - certified) / certified).abs().log10()).min(15.0)
-}
+use summary_file::{Memory, lre};
 
 fn fixture() -> Value {
     serde_json::from_str(include_str!("reference/nist_summaries.json")).expect("fixture parses")

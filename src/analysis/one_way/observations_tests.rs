@@ -61,20 +61,7 @@ fn the_passes_agree_with_the_functions_on_all_values() {
             (a.to_bits(), b.to_bits(), c.to_bits())
         );
     }
-    let bf = levene(&slices, Center::Median).expect("bf");
-    let lv = levene(&slices, Center::Mean).expect("levene");
-    let (obf, olv) = (
-        observed.brown_forsythe.expect("bf"),
-        observed.levene.expect("levene"),
-    );
-    assert!(
-        relative(obf.statistic, bf.statistic) < 1e-12,
-        "{obf:?} {bf:?}"
-    );
-    assert!(
-        relative(olv.statistic, lv.statistic) < 1e-12,
-        "{olv:?} {lv:?}"
-    );
+    spread_tests_agree(&observed, &slices);
     let residuals: Vec<f64> = groups
         .iter()
         .zip(&summaries)
@@ -174,20 +161,7 @@ fn cells_grouped_and_fitted_agree_with_the_functions_on_their_residuals() {
     )
     .expect("observe");
     let slices: Vec<&[f64]> = groups.iter().map(Vec::as_slice).collect();
-    let bf = levene(&slices, Center::Median).expect("bf");
-    let lv = levene(&slices, Center::Mean).expect("levene");
-    let (obf, olv) = (
-        observed.brown_forsythe.expect("bf"),
-        observed.levene.expect("levene"),
-    );
-    assert!(
-        relative(obf.statistic, bf.statistic) < 1e-12,
-        "{obf:?} {bf:?}"
-    );
-    assert!(
-        relative(olv.statistic, lv.statistic) < 1e-12,
-        "{olv:?} {lv:?}"
-    );
+    spread_tests_agree(&observed, &slices);
     for (q, g) in observed.quartiles.iter().zip(&groups) {
         let (a, b, c) = quartiles(g);
         assert_eq!((q.0, q.1, q.2), (a, b, c));
@@ -210,4 +184,23 @@ fn cells_grouped_and_fitted_agree_with_the_functions_on_their_residuals() {
     let got: Vec<usize> = observed.outliers.iter().map(|o| o.line).collect();
     assert_eq!(got, expected);
     assert!(!got.is_empty());
+}
+
+/// Brown-Forsythe and Levene from the passes against the in-memory tests
+/// on the same groups (1e-12 relative: the same sums in another order).
+fn spread_tests_agree(observed: &Observed, slices: &[&[f64]]) {
+    let bf = levene(slices, Center::Median).expect("bf");
+    let lv = levene(slices, Center::Mean).expect("levene");
+    let (obf, olv) = (
+        observed.brown_forsythe.expect("bf"),
+        observed.levene.expect("levene"),
+    );
+    assert!(
+        relative(obf.statistic, bf.statistic) < 1e-12,
+        "{obf:?} {bf:?}"
+    );
+    assert!(
+        relative(olv.statistic, lv.statistic) < 1e-12,
+        "{olv:?} {lv:?}"
+    );
 }
