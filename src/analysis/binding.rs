@@ -4,7 +4,7 @@
 
 use crate::data::parquet;
 use crate::data::scan::{
-    CHUNK_BYTES, ScanSpec, Scanned, Source, Visit, rescan, scan_file, scan_generated,
+    CHUNK_BYTES, Hashing, ScanSpec, Scanned, Source, Visit, rescan, scan_first,
 };
 use crate::data::{DataError, Exclusion, Table, prepare};
 use crate::diag::Diagnostic;
@@ -160,11 +160,13 @@ pub(crate) fn scan_csv(
         format: if columnar { &text_format } else { spec.format },
         ..spec.clone()
     };
-    let scanned = if columnar {
-        scan_generated(source, &spec, CHUNK_BYTES, reader_threads())?
+    // The report records a Parquet file's own hash, not its text's.
+    let hashing = if columnar {
+        Hashing::Fingerprint
     } else {
-        scan_file(source, &spec, CHUNK_BYTES, reader_threads())?
+        Hashing::Both
     };
+    let scanned = scan_first(source, &spec, (CHUNK_BYTES, reader_threads()), hashing)?;
     let input = path.map(|path| Input {
         path: path.to_string(),
         sha256: scanned.sha256.clone().unwrap_or_default(),

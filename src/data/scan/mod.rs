@@ -114,46 +114,34 @@ pub use merge::{Visit, changed_error};
 pub use rows::{cell_key, cell_levels};
 
 /// Reads a response split by one factor (or by the cells of several) from
-/// CSV bytes. `threads` workers parse chunks of `chunk_bytes`; neither
-/// changes any number in the result.
+/// CSV bytes, a stream hashed with SHA-256 and fingerprinted. `threads`
+/// workers parse chunks of `chunk_bytes`; neither changes any number in
+/// the result.
 pub fn scan_file(
     source: Source<'_>,
     spec: &ScanSpec<'_>,
     chunk_bytes: usize,
     threads: usize,
 ) -> Result<Scanned, DataError> {
-    scan_pass(
-        source,
-        spec,
-        chunk_bytes,
-        threads,
-        Merged::new(spec.keep_values),
-        Hashing::Both,
-    )
+    scan_first(source, spec, (chunk_bytes, threads), Hashing::Both)
 }
 
-/// [`scan_file`] for text generated from another file (a Parquet file's
-/// rows), whose own hash the caller records: a stream gets only the
-/// fingerprint that later passes compare, no SHA-256 of the text.
-pub fn scan_generated(
+/// [`scan_file`] with the hashing chosen: text generated from another file
+/// (a Parquet file's rows), whose own hash the caller records, needs only
+/// the fingerprint later passes compare.
+pub fn scan_first(
     source: Source<'_>,
     spec: &ScanSpec<'_>,
-    chunk_bytes: usize,
-    threads: usize,
+    (chunk_bytes, threads): (usize, usize),
+    hashing: Hashing,
 ) -> Result<Scanned, DataError> {
-    scan_pass(
-        source,
-        spec,
-        chunk_bytes,
-        threads,
-        Merged::new(spec.keep_values),
-        Hashing::Fingerprint,
-    )
+    let merged = Merged::new(spec.keep_values);
+    scan_pass(source, spec, chunk_bytes, threads, merged, hashing)
 }
 
 /// What a pass over a stream hashes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum Hashing {
+pub enum Hashing {
     /// The first pass: SHA-256 for the record and the fingerprint.
     Both,
     /// A later pass that checks the bytes: only the fingerprint (a few
