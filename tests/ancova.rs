@@ -315,8 +315,12 @@ fn covariates_the_data_or_the_keys_cannot_support_are_refused_with_reasons() {
         e.contains("interaction") && e.contains("equal slopes"),
         "{e}"
     );
-    let e = refused("model: y ~ g\ncovariate: x\nrandom: g\n", csv);
-    assert!(e.contains("random terms"), "{e}");
+    // A covariate is a number measured on units, never the units themselves.
+    let e = refused("model: y ~ g\ncovariate: x\nrandom: x\n", csv);
+    assert!(
+        e.contains("both as a covariate and in a random term"),
+        "{e}"
+    );
     let e = refused("model: y ~ g\ncovariate: y\n", csv);
     assert!(e.contains("is the response"), "{e}");
     // Not a number, named with its line.

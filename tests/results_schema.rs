@@ -645,7 +645,8 @@ mod contract {
     #[serde(deny_unknown_fields)]
     pub struct SeparateSlopes {
         pub ms: Option<f64>,
-        pub df: f64,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<f64>,
         pub groups: Vec<OwnSlope>,
         pub differences: Vec<LineDifference>,
         pub regions: Vec<Region>,
@@ -657,6 +658,8 @@ mod contract {
         pub level: String,
         pub slope: Option<f64>,
         pub se: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<f64>,
         pub mean_at: Option<f64>,
         pub mean_at_se: Option<f64>,
     }
@@ -669,6 +672,8 @@ mod contract {
         pub at: f64,
         pub difference: Option<f64>,
         pub se: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df: Option<f64>,
         pub t: Option<f64>,
         pub p: Option<f64>,
         pub ci_lower: Option<f64>,

@@ -12,8 +12,8 @@
 
 pub(super) mod cells;
 pub(super) mod checks;
-mod covariate_notes;
-mod covariates;
+pub(super) mod covariate_notes;
+pub(super) mod covariates;
 mod design_notes;
 mod families;
 mod fit;
@@ -76,7 +76,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         let observed = data
             .observed()
             .ok_or_else(|| errors.internal(block, "covariates without the observations"))?;
-        c.check_varies(observed, &errors)?;
+        c.check_varies((observed.cell_of, observed.cells.len()), &errors)?;
     }
     // `method: ranks` with a block: Friedman's test, on the complete table.
     let ranked = match spec.method {
@@ -252,15 +252,15 @@ impl Analysed {
     fn covariate_detail(&self, centred: &Centred, families: &[Family]) -> Option<CovariateDetail> {
         let observed = self.data.observed()?;
         let detail = covariates::Adjusting {
-            data: &self.data,
-            observed,
-            model: &self.model,
+            described: covariates::Described::new(
+                (&self.data.levels, observed, self.data.origin),
+                &self.model,
+                centred,
+                &self.treatment,
+            ),
             levels: &self.levels,
             fitted: &self.fitted,
-            centred,
-            treatment: &self.treatment,
             alpha: self.alpha,
-            groups: covariates::groups((&self.data, observed), &self.treatment),
         }
         .detail(families);
         Some(detail)

@@ -12,6 +12,7 @@
 
 mod cell_letters;
 mod control;
+mod covariates;
 mod detail;
 mod families;
 mod fixed_terms;
@@ -27,8 +28,10 @@ use super::checks::{Remedies, advice};
 use super::contrasts::contrast_factor;
 use super::factorial::cells::TreatmentCells;
 use super::factorial::checks::Source;
+use super::factorial::covariate_notes;
+use super::factorial::covariates::{Centred, Described};
 use super::factorial::model::{Errors, Model};
-use super::factorial::read::read_observations;
+use super::factorial::read::read_columns_and_covariates;
 use super::notes::{Note, split_acknowledged};
 use super::observed::{FactorialLayout, PooledError};
 use super::request::{Analysis, Request};
@@ -40,11 +43,12 @@ use crate::outcome::linear::{
     Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Role,
 };
 use crate::outcome::mixed::CellLetters;
-use crate::stats::linear::Layout;
+use crate::stats::linear::{Layout, design_matrix_with, term_columns};
 use crate::stats::mixed::{self, Ddf, FixedDesign, Information};
 use crate::stats::oneway::GroupSummary;
 use crate::stats::strata::{self, StrataInput};
 use families::{Estimating, Slice};
+use std::collections::BTreeMap;
 
 /// Random terms with fewer levels than this get a warning: their variance
 /// rests on very few units (mixed-models spec, risk 5).
@@ -60,20 +64,20 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
     };
     let model = Model::from_spec(doc, spec)?;
     let random = spec.random.as_ref().map_or(&[][..], |r| &r.value[..]);
-    // The fixed factors first, then the columns only random terms name.
+    // The fixed factors first, then the columns only random terms name (the
+    // covariates, read last, are split off).
     let mut names: Vec<String> = model.factor_names.clone();
     for f in random.iter().flat_map(|t| &t.factors) {
         if !names.contains(f) {
             names.push(f.clone());
         }
     }
-    let name_refs: Vec<&str> = names.iter().map(String::as_str).collect();
-    let (data, streamed) = read_observations(
+    let (data, streamed, centred) = read_columns_and_covariates(
         &errors,
         block,
-        request.data,
-        &name_refs,
-        request.display_path,
+        (request.data, request.display_path),
+        &model,
+        &names[model.factor_names.len()..],
     )?;
     let units = units::units(&data, random, |f| names.iter().position(|n| n == f));
     let fixed_count = model.factor_names.len();
@@ -85,7 +89,15 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             .collect(),
     };
     errors.two_levels_each(&model.factor_names, &levels)?;
-    let design = FixedDesign::new(&layout, &model.terms);
+    let design = match &centred {
+        Some(c) => {
+            let (cell_of, cells) = fixed_cells(&layout);
+            c.check_varies((&cell_of, cells), &errors)?;
+            let full = design_matrix_with(&layout, &c.rows, &model.terms);
+            FixedDesign::from_columns(full, term_columns(&model.terms, &layout.levels))
+        }
+        None => FixedDesign::new(&layout, &model.terms),
+    };
     // Aliased columns (empty cells under an interaction) leave Type III
     // tests and marginal means depending on the coding: refuse, as the
     // fixed-effects engine does.
@@ -126,6 +138,7 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
         units,
         repeated,
         structured,
+        centred,
     };
     let outcome = analysed.outcome(&errors, block)?;
     Ok((outcome, streamed))
@@ -208,6 +221,8 @@ struct Analysed {
     /// The covariance structure `covariance` asks for, which then gives the
     /// tests, comparisons and checks in place of the random subject term.
     structured: Option<structured::Structured>,
+    /// The covariates, centred (`covariate`).
+    centred: Option<Centred>,
 }
 
 impl Analysed {
@@ -216,6 +231,11 @@ impl Analysed {
     fn classical(&self) -> Result<strata::StratumAnalysis, crate::outcome::mixed::NotClassical> {
         if self.structured.is_some() {
             return Err(crate::outcome::mixed::NotClassical::Structured);
+        }
+        if let Some(c) = &self.centred {
+            return Err(crate::outcome::mixed::NotClassical::Covariate {
+                names: c.names.clone(),
+            });
         }
         let names = self.names();
         let labels = &self.data.levels;
@@ -301,6 +321,10 @@ impl Analysed {
             Some(s) => structured::notes(&s.detail, spec.ddf),
             None => self.notes(),
         };
+        let covariates = self.covariate_detail(spec, &cells, &families);
+        if let Some(d) = &covariates {
+            notes.extend(covariate_notes::notes(d, self.alpha));
+        }
         notes.extend(self.univariate_note());
         notes.extend(spread_note);
         notes.extend(advice(&checks, Remedies::Linear, self.alpha, data.decimals));
@@ -370,7 +394,7 @@ impl Analysed {
             observations,
             mixed: Some(Box::new(detail)),
             repeated: repeated.map(Box::new),
-            covariates: None,
+            covariates: covariates.map(Box::new),
             contrasts: self.contrasts(errors)?.map(Box::new),
             trend: None,
             transform: None,
@@ -379,6 +403,65 @@ impl Analysed {
             equivalence: None,
             input: Default::default(),
         })
+    }
+
+    /// The covariates' slopes, the test of equal slopes and what describes
+    /// them, when the block has covariates.
+    fn covariate_detail(
+        &self,
+        spec: &crate::doc::block::AnovaSpec,
+        cells: &TreatmentCells,
+        families: &[Family],
+    ) -> Option<crate::outcome::covariates::CovariateDetail> {
+        let centred = self.centred.as_ref()?;
+        let refit = |design: &FixedDesign| self.refit(spec, design);
+        let covariates = covariates::MixedCovariates {
+            described: Described::new(
+                (&self.data.levels, self.data.observed(), self.data.origin),
+                &self.model,
+                centred,
+                cells,
+            ),
+            fit: self.inference(),
+            design: &self.design,
+            layout: &self.layout,
+            ddf: self.ddf,
+            alpha: self.alpha,
+            refit: &refit,
+        };
+        Some(covariates.detail(families))
+    }
+
+    /// The model fitted again with another fixed design: the same random
+    /// terms, or the same covariance structure.
+    fn refit(
+        &self,
+        spec: &crate::doc::block::AnovaSpec,
+        design: &FixedDesign,
+    ) -> Option<mixed::FixedInference> {
+        let y = &self.data.offsets;
+        let (Some(_), Some((subject, detail)), Some(covariance)) =
+            (&self.structured, &self.repeated, &spec.covariance)
+        else {
+            return mixed::fit(y, design, &self.units.terms)
+                .ok()
+                .map(|f| f.fixed);
+        };
+        let within: Vec<usize> = (detail.within.iter())
+            .filter_map(|w| self.model.index_of(w))
+            .collect();
+        let repeats = structured::Repeats {
+            data: &self.data,
+            design,
+            subject: *subject,
+            within: &within,
+            factor_names: &self.model.factor_names,
+            kenward_roger: spec.ddf == DdfMethod::KenwardRoger,
+            complete_subjects: detail.complete_subjects,
+        };
+        structured::structured(&repeats, covariance.value)
+            .ok()
+            .map(|s| s.inference().clone())
     }
 
     /// Why the univariate repeated-measures analysis was not possible, when
@@ -686,6 +769,20 @@ impl Analysed {
         }
         Ok((families, letters))
     }
+}
+
+/// Each observation's cell of the fixed factors, and the number of cells.
+fn fixed_cells(layout: &Layout) -> (Vec<usize>, usize) {
+    let mut index: BTreeMap<&[usize], usize> = BTreeMap::new();
+    let cell_of = layout
+        .rows
+        .iter()
+        .map(|r| {
+            let next = index.len();
+            *index.entry(&r[..]).or_insert(next)
+        })
+        .collect();
+    (cell_of, index.len())
 }
 
 /// Levels of every factor of the data (fixed and random-only).

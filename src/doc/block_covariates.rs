@@ -55,9 +55,17 @@ pub(super) fn covariate_keys(d: &AnovaDraft, formula: &mut Formula) -> Vec<SpecE
             );
         }
     }
+    let random_columns: Vec<&String> = (d.random.iter().flat_map(|r| &r.1))
+        .chain(d.subject.iter().map(|s| &s.1))
+        .flat_map(|t| &t.factors)
+        .collect();
+    if let Some(name) = names.iter().find(|n| random_columns.contains(n)) {
+        refuse(
+            format!("`{name}` is named both as a covariate and in a random term or `subject`"),
+            "a random term's column names units (plots, animals); a covariate is a number measured on each unit",
+        );
+    }
     let unsupported = [
-        (d.random.as_ref().map(|r| &r.0), "random terms"),
-        (d.subject.as_ref().map(|s| &s.0), "`subject`"),
         (
             d.input.as_ref().filter(|i| i.1).map(|i| &i.0),
             "`input: summary`",
@@ -75,10 +83,7 @@ pub(super) fn covariate_keys(d: &AnovaDraft, formula: &mut Formula) -> Vec<SpecE
                     "`input: summary`" => {
                         "adjusting for a covariate needs each unit's pair of values: give one row per unit"
                     }
-                    "`layout: wide`" => "write the data with one row per unit (long layout)",
-                    _ => {
-                        "analyse the covariate in a block without random terms, or remove `covariate`"
-                    }
+                    _ => "write the data with one row per unit (long layout)",
                 },
             );
         }

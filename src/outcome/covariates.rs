@@ -34,10 +34,12 @@ pub struct Covariate {
     pub max: f64,
     /// Digits after the decimal point in the data.
     pub decimals: u32,
-    /// The common slope (response units per covariate unit) and its SE,
-    /// on the residual df.
+    /// The common slope (response units per covariate unit), its SE and
+    /// df: the residual df, or in a mixed model its own (Kenward-Roger or
+    /// Satterthwaite).
     pub slope: f64,
     pub se: f64,
+    pub df: f64,
     pub groups: Vec<CovariateGroup>,
     /// The covariate compared among the groups (one-way F): a clear
     /// difference suggests the treatment may have changed it.
@@ -51,6 +53,9 @@ pub struct GroupSlope {
     pub label: String,
     pub slope: f64,
     pub se: f64,
+    /// The df of the slope's SE (the separate model's residual df, or in a
+    /// mixed model the slope's own).
+    pub df: f64,
     pub mean_at: f64,
     pub mean_at_se: f64,
 }
@@ -64,6 +69,7 @@ pub struct LineDifference {
     pub at: f64,
     pub estimate: f64,
     pub se: f64,
+    pub df: f64,
     pub t: f64,
     pub p: f64,
     pub lower: f64,
@@ -85,9 +91,12 @@ pub struct DifferenceRegion {
     pub significant: Vec<(f64, f64)>,
 }
 
-/// The separate-slopes model of one factor and one covariate.
+/// The separate-slopes model of one factor and one covariate, or in a
+/// mixed model of the treatment cells and one covariate.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct SeparateSlopes {
+    /// The residual mean square and df of the fixed-effects model; NaN in
+    /// a mixed model, where each estimate has its own df.
     pub ms: f64,
     pub df: f64,
     pub groups: Vec<GroupSlope>,

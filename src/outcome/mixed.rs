@@ -60,6 +60,8 @@ pub enum NotClassical {
     /// The errors follow a covariance structure over the repeated factor,
     /// fitted by REML on every observation: there are no strata.
     Structured,
+    /// The model has covariates, which no stratum table adjusts for.
+    Covariate { names: Vec<String> },
 }
 
 /// The standard error of a difference of two means of one kind, with its

@@ -75,8 +75,10 @@ pub struct SlopesRecord {
 
 #[derive(Serialize)]
 pub struct SeparateRecord {
+    /// The separate model's residual mean square and df; null in a mixed
+    /// model, where each estimate carries its own df.
     pub ms: Option<f64>,
-    pub df: f64,
+    pub df: Option<f64>,
     pub groups: Vec<SlopeRecord>,
     pub differences: Vec<DifferenceRecord>,
     pub regions: Vec<RegionRecord>,
@@ -87,6 +89,7 @@ pub struct SlopeRecord {
     pub level: String,
     pub slope: Option<f64>,
     pub se: Option<f64>,
+    pub df: Option<f64>,
     /// The group's line at the covariate's grand mean.
     pub mean_at: Option<f64>,
     pub mean_at_se: Option<f64>,
@@ -100,6 +103,7 @@ pub struct DifferenceRecord {
     pub at: f64,
     pub difference: Option<f64>,
     pub se: Option<f64>,
+    pub df: Option<f64>,
     pub t: Option<f64>,
     pub p: Option<f64>,
     pub ci_lower: Option<f64>,
@@ -127,7 +131,6 @@ pub struct UnadjustedRecord {
 }
 
 pub fn covariates_record(o: &LinearOutcome, d: &CovariateDetail) -> CovariatesRecord {
-    let residual_df = o.residual().df;
     CovariatesRecord {
         groups_of: d.groups_of.clone(),
         covariates: d
@@ -140,7 +143,7 @@ pub fn covariates_record(o: &LinearOutcome, d: &CovariateDetail) -> CovariatesRe
                 max: c.max,
                 slope: finite(c.slope),
                 slope_se: finite(c.se),
-                slope_df: residual_df,
+                slope_df: c.df,
                 groups: c
                     .groups
                     .iter()
@@ -195,7 +198,7 @@ fn separate_record(s: &SeparateSlopes) -> SeparateRecord {
     let label = |i: usize| s.groups[i].label.clone();
     SeparateRecord {
         ms: finite(s.ms),
-        df: s.df,
+        df: finite(s.df),
         groups: s
             .groups
             .iter()
@@ -203,6 +206,7 @@ fn separate_record(s: &SeparateSlopes) -> SeparateRecord {
                 level: g.label.clone(),
                 slope: finite(g.slope),
                 se: finite(g.se),
+                df: finite(g.df),
                 mean_at: finite(g.mean_at),
                 mean_at_se: finite(g.mean_at_se),
             })
@@ -216,6 +220,7 @@ fn separate_record(s: &SeparateSlopes) -> SeparateRecord {
                 at: d.at,
                 difference: finite(d.estimate),
                 se: finite(d.se),
+                df: finite(d.df),
                 t: finite(d.t),
                 p: finite(d.p),
                 ci_lower: finite(d.lower),

@@ -328,6 +328,17 @@ pub fn sums_of_squares(
 /// at their means (0 after centring), so these are also the means adjusted
 /// for them.
 pub fn grid_average(terms: &[TermFactors], levels: &[usize], fixed: &[Option<usize>]) -> Vec<f64> {
+    grid_average_with(terms, levels, fixed, &[])
+}
+
+/// As [`grid_average`], with the centred covariates at `numbers` instead
+/// of 0 (a group's line at another covariate value).
+pub fn grid_average_with(
+    terms: &[TermFactors],
+    levels: &[usize],
+    fixed: &[Option<usize>],
+    numbers: &[f64],
+) -> Vec<f64> {
     let mut combo = vec![0usize; levels.len()];
     for (f, v) in fixed.iter().enumerate() {
         if let Some(v) = v {
@@ -337,7 +348,7 @@ pub fn grid_average(terms: &[TermFactors], levels: &[usize], fixed: &[Option<usi
     let mut sum: Vec<f64> = Vec::new();
     let mut count = 0usize;
     loop {
-        let row = design_row(terms, levels, &combo);
+        let row = design_row_with(terms, levels, &combo, numbers);
         if sum.is_empty() {
             sum = row;
         } else {

@@ -7,7 +7,7 @@ use crate::format::{f_statement, fixed};
 use crate::outcome::covariates::CovariateDetail;
 
 /// The notes, in the order a reader should weigh them.
-pub(super) fn notes(detail: &CovariateDetail, alpha: f64) -> Vec<Note> {
+pub(crate) fn notes(detail: &CovariateDetail, alpha: f64) -> Vec<Note> {
     let mut out = Vec::new();
     let groups = &detail.groups_of;
     if let Some(s) = detail.slopes.as_ref().filter(|s| s.test.p < alpha) {
@@ -15,8 +15,12 @@ pub(super) fn notes(detail: &CovariateDetail, alpha: f64) -> Vec<Note> {
         out.push(Note::new(
             NoteKind::Slopes,
             format!(
-                "The slopes on the covariate differ among the levels of {groups} ({}): the adjusted comparison assumes parallel lines that the data do not support, so the difference between groups depends on the covariate's value. The separate slopes and the differences at stated covariate values are shown; read the adjusted means with that in mind.",
-                f_statement(t.df1, t.df2, t.f, t.p)
+                "The slopes on the covariate differ among the levels of {groups} ({}): the adjusted comparison assumes parallel lines that the data do not support, so the difference between groups depends on the covariate's value. {} Read the adjusted means with that in mind.",
+                f_statement(t.df1, t.df2, t.f, t.p),
+                match &detail.separate {
+                    Some(_) => "The separate slopes and the differences at stated covariate values are shown.",
+                    None => "The separate slopes are shown only for one covariate and at most 12 groups (for fixed effects, one factor without blocks); fit the groups separately to see them.",
+                }
             ),
         ));
     }

@@ -8,8 +8,8 @@ use super::cells::TreatmentCells;
 use super::fit::Fitted;
 use super::model::{Errors, Model};
 use super::separate_slopes;
+use crate::data::Observed;
 use crate::data::covariates::Covariates;
-use crate::data::{FactorialData, Observed};
 use crate::diag::Diagnostic;
 use crate::outcome::covariates::{
     AdjustedFamily, Covariate, CovariateDetail, CovariateGroup, FTest, SlopesTest,
@@ -57,15 +57,16 @@ impl Centred {
     }
 
     /// Refuses a covariate that does not vary within the cells of the
-    /// factors: its slope cannot be told apart from the factors' effects.
+    /// factors (`cell_of`, `cells` of them): its slope cannot be told apart
+    /// from the factors' effects.
     pub fn check_varies(
         &self,
-        observed: Observed<'_>,
+        (cell_of, cells): (&[usize], usize),
         errors: &Errors<'_>,
     ) -> Result<(), Diagnostic> {
         for (name, column) in self.names.iter().zip(&self.columns) {
-            let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); observed.cells.len()];
-            for (&c, &x) in observed.cell_of.iter().zip(column) {
+            let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); cells];
+            for (&c, &x) in cell_of.iter().zip(column) {
                 by_cell[c].push(x);
             }
             let within = neumaier(by_cell.iter().map(|v| GroupSummary::from_values(v).ss));
@@ -81,26 +82,82 @@ impl Centred {
     }
 }
 
-/// What the detail is computed from.
-pub(super) struct Adjusting<'a> {
-    pub data: &'a FactorialData,
-    /// The observations: covariates vary within the cells.
+/// A covariate's common slope with its SE and df.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Slope {
+    pub value: f64,
+    pub se: f64,
+    pub df: f64,
+}
+
+/// What every engine describes a block's covariates with: the groups
+/// (treatment cells with data), the covariate's spread in each, the balance
+/// check and each family's means before adjustment.
+pub(crate) struct Described<'a> {
+    /// Each factor's level labels.
+    pub labels: &'a [Vec<String>],
     pub observed: Observed<'a>,
+    /// The response's origin (the observations are offsets from it).
+    pub origin: f64,
     pub model: &'a Model,
-    pub levels: &'a [usize],
-    pub fitted: &'a Fitted,
     pub centred: &'a Centred,
     pub treatment: &'a TreatmentCells,
-    pub alpha: f64,
-    /// The groups (treatment cells with data): labels and members, found
-    /// once with `groups`.
+    /// The groups: labels and members.
     pub groups: Vec<(String, Vec<usize>)>,
+}
+
+impl<'a> Described<'a> {
+    pub fn new(
+        (labels, observed, origin): (&'a [Vec<String>], Observed<'a>, f64),
+        model: &'a Model,
+        centred: &'a Centred,
+        treatment: &'a TreatmentCells,
+    ) -> Self {
+        Described {
+            labels,
+            observed,
+            origin,
+            model,
+            centred,
+            treatment,
+            groups: groups(labels, observed, treatment),
+        }
+    }
+
+    /// The treatment factors' names joined by ` × `.
+    pub fn groups_of(&self) -> String {
+        self.treatment
+            .factors
+            .iter()
+            .map(|&f| self.model.factor_names[f].clone())
+            .collect::<Vec<_>>()
+            .join(" × ")
+    }
+
+    /// Every treatment term crossed with every covariate: the terms whose
+    /// joint test is the test of equal slopes.
+    pub fn slope_terms(&self) -> Vec<TermFactors> {
+        let model = self.model;
+        model
+            .terms
+            .iter()
+            .filter(|t| model.is_factor_term(t) && t.iter().all(|&f| !model.is_block(f)))
+            .flat_map(|t| {
+                (0..self.centred.names.len()).map(move |c| {
+                    let mut term = t.clone();
+                    term.push(model.factor_names.len() + c);
+                    term
+                })
+            })
+            .collect()
+    }
 }
 
 /// The groups (treatment cells with data): each one's label and the
 /// observations in it.
-pub(super) fn groups(
-    (data, observed): (&FactorialData, Observed<'_>),
+fn groups(
+    labels: &[Vec<String>],
+    observed: Observed<'_>,
     treatment: &TreatmentCells,
 ) -> Vec<(String, Vec<usize>)> {
     let members = treatment.group(observed, &|i| i as f64);
@@ -114,7 +171,7 @@ pub(super) fn groups(
                 .factors
                 .iter()
                 .zip(combo)
-                .map(|(&f, &l)| data.levels[f][l].clone())
+                .map(|(&f, &l)| labels[f][l].clone())
                 .collect::<Vec<_>>()
                 .join(" × ");
             (label, m.into_iter().map(|i| i as usize).collect())
@@ -122,34 +179,95 @@ pub(super) fn groups(
         .collect()
 }
 
+/// What the fixed-effects detail is computed from.
+pub(super) struct Adjusting<'a> {
+    pub described: Described<'a>,
+    pub levels: &'a [usize],
+    pub fitted: &'a Fitted,
+    pub alpha: f64,
+}
+
 impl Adjusting<'_> {
     /// The block's covariate detail, with the unadjusted view of each
     /// comparison family.
     pub fn detail(&self, families: &[Family]) -> CovariateDetail {
-        let groups_of = self
-            .treatment
-            .factors
-            .iter()
-            .map(|&f| self.model.factor_names[f].clone())
-            .collect::<Vec<_>>()
-            .join(" × ");
+        let d = &self.described;
         let slopes = self.slopes_test();
         let separate = slopes
             .as_ref()
             .filter(|s| s.test.p < self.alpha)
             .and_then(|_| separate_slopes::separate_slopes(self));
         CovariateDetail {
-            covariates: (0..self.centred.names.len())
-                .map(|c| self.covariate(c))
+            covariates: (0..d.centred.names.len())
+                .map(|c| d.covariate(c, self.slope(c)))
                 .collect(),
-            groups_of,
+            groups_of: d.groups_of(),
             slopes,
             separate,
-            families: families.iter().map(|f| self.adjusted_family(f)).collect(),
+            families: families.iter().map(|f| d.adjusted_family(f)).collect(),
         }
     }
 
-    fn covariate(&self, c: usize) -> Covariate {
+    /// The common slope: the coefficient of the covariate's column, on the
+    /// residual df.
+    fn slope(&self, c: usize) -> Slope {
+        let model = self.described.model;
+        let v = model.factor_names.len() + c;
+        let df = self.fitted.residual_df as f64;
+        let Some(t) = model.terms.iter().position(|t| t == &vec![v]) else {
+            return Slope {
+                value: f64::NAN,
+                se: f64::NAN,
+                df,
+            };
+        };
+        let column = self.fitted.ranges[t].start;
+        let mut l = vec![0.0; self.fitted.full.kept.len()];
+        l[column] = 1.0;
+        let (value, var) = self.fitted.estimate(&l);
+        Slope {
+            value,
+            se: (self.fitted.mse() * var).sqrt(),
+            df,
+        }
+    }
+
+    /// Every treatment term crossed with every covariate, added to the
+    /// model at once: the joint test that the slopes are equal.
+    fn slopes_test(&self) -> Option<SlopesTest> {
+        let d = &self.described;
+        let mut columns = self.fitted.unweighted.clone();
+        for term in &d.slope_terms() {
+            let rows: Vec<Vec<f64>> = (0..d.observed.offsets.len())
+                .map(|i| term_row_with(term, self.levels, d.observed.row(i), &d.centred.rows[i]))
+                .collect();
+            let width = rows.first().map_or(0, Vec::len);
+            columns.extend((0..width).map(|j| rows.iter().map(|r| r[j]).collect::<Vec<f64>>()));
+        }
+        let separate = fit(&columns, d.observed.offsets);
+        let df1 = separate.rank.checked_sub(self.fitted.full.rank)?;
+        let df2 = d.observed.offsets.len().checked_sub(separate.rank)?;
+        if df1 == 0 || df2 == 0 {
+            return None;
+        }
+        let ss = (self.fitted.full.rss - separate.rss).max(0.0);
+        let (df1, df2) = (df1 as f64, df2 as f64);
+        let f = (ss / df1) / (separate.rss / df2);
+        Some(SlopesTest {
+            ss,
+            test: FTest {
+                f,
+                df1,
+                df2,
+                p: f_sf(f, df1, df2),
+            },
+        })
+    }
+}
+
+impl Described<'_> {
+    /// Covariate c over the groups, with its common slope.
+    pub fn covariate(&self, c: usize, slope: Slope) -> Covariate {
         let column = &self.centred.columns[c];
         let mean = self.centred.means[c];
         let range = |ix: &mut dyn Iterator<Item = f64>| {
@@ -173,31 +291,18 @@ impl Adjusting<'_> {
             })
             .collect();
         let (min, max) = range(&mut column.iter().copied());
-        let (slope, se) = self.slope(c);
         Covariate {
             name: self.centred.names[c].clone(),
             mean,
             min: mean + min,
             max: mean + max,
             decimals: self.centred.decimals[c],
-            slope,
-            se,
+            slope: slope.value,
+            se: slope.se,
+            df: slope.df,
             balance: self.balance(column),
             groups,
         }
-    }
-
-    /// The common slope: the coefficient of the covariate's column.
-    fn slope(&self, c: usize) -> (f64, f64) {
-        let v = self.model.factor_names.len() + c;
-        let Some(t) = self.model.terms.iter().position(|t| t == &vec![v]) else {
-            return (f64::NAN, f64::NAN);
-        };
-        let column = self.fitted.ranges[t].start;
-        let mut l = vec![0.0; self.fitted.full.kept.len()];
-        l[column] = 1.0;
-        let (value, var) = self.fitted.estimate(&l);
-        (value, (self.fitted.mse() * var).sqrt())
     }
 
     /// The covariate compared among the groups by one-way F.
@@ -224,67 +329,16 @@ impl Adjusting<'_> {
         }
     }
 
-    /// Every treatment term crossed with every covariate, added to the
-    /// model at once: the joint test that the slopes are equal.
-    fn slopes_test(&self) -> Option<SlopesTest> {
-        let extra: Vec<TermFactors> = self
-            .model
-            .terms
-            .iter()
-            .filter(|t| self.model.is_factor_term(t) && t.iter().all(|&f| !self.model.is_block(f)))
-            .flat_map(|t| {
-                (0..self.centred.names.len()).map(move |c| {
-                    let mut term = t.clone();
-                    term.push(self.model.factor_names.len() + c);
-                    term
-                })
-            })
-            .collect();
-        let mut columns = self.fitted.unweighted.clone();
-        for term in &extra {
-            let rows: Vec<Vec<f64>> = (0..self.observed.offsets.len())
-                .map(|i| {
-                    term_row_with(
-                        term,
-                        self.levels,
-                        self.observed.row(i),
-                        &self.centred.rows[i],
-                    )
-                })
-                .collect();
-            let width = rows.first().map_or(0, Vec::len);
-            columns.extend((0..width).map(|j| rows.iter().map(|r| r[j]).collect::<Vec<f64>>()));
-        }
-        let separate = fit(&columns, self.observed.offsets);
-        let df1 = separate.rank.checked_sub(self.fitted.full.rank)?;
-        let df2 = self.observed.offsets.len().checked_sub(separate.rank)?;
-        if df1 == 0 || df2 == 0 {
-            return None;
-        }
-        let ss = (self.fitted.full.rss - separate.rss).max(0.0);
-        let (df1, df2) = (df1 as f64, df2 as f64);
-        let f = (ss / df1) / (separate.rss / df2);
-        Some(SlopesTest {
-            ss,
-            test: FTest {
-                f,
-                df1,
-                df2,
-                p: f_sf(f, df1, df2),
-            },
-        })
-    }
-
     /// A family's levels before adjustment: the observed mean response and
     /// covariate means of the observations at each level (within the
     /// family's slice).
-    fn adjusted_family(&self, family: &Family) -> AdjustedFamily {
-        let (data, observed) = (self.data, self.observed);
+    pub fn adjusted_family(&self, family: &Family) -> AdjustedFamily {
+        let observed = self.observed;
         let factor = self.model.index_of(&family.term);
         let within = family.within.as_ref().and_then(|w| {
             let (name, level) = w.split_once('=')?;
             let f = self.model.index_of(name)?;
-            Some((f, data.levels[f].iter().position(|l| l == level)?))
+            Some((f, self.labels[f].iter().position(|l| l == level)?))
         });
         let members = |l: usize| -> Vec<usize> {
             (0..observed.offsets.len())
@@ -308,7 +362,7 @@ impl Adjusting<'_> {
             within: family.within.clone(),
             unadjusted: level_members
                 .iter()
-                .map(|m| data.origin + mean_of(observed.offsets, m))
+                .map(|m| self.origin + mean_of(observed.offsets, m))
                 .collect(),
             covariate_means: self
                 .centred

@@ -204,9 +204,22 @@ fn read_covariates(
     (data, display_path): (Data<'_>, &str),
     model: &Model,
 ) -> Result<(FactorialRows, Option<Input>, Option<Centred>), Diagnostic> {
+    read_columns_and_covariates(errors, block, (data, display_path), model, &[])
+}
+
+/// Reads the model's factors, then the `others` columns (those only random
+/// terms name), then the covariates, which are split off and centred.
+pub(crate) fn read_columns_and_covariates(
+    errors: &Errors<'_>,
+    block: &Block,
+    (data, display_path): (Data<'_>, &str),
+    model: &Model,
+    others: &[String],
+) -> Result<(FactorialRows, Option<Input>, Option<Centred>), Diagnostic> {
     let names: Vec<&str> = model
         .factor_names
         .iter()
+        .chain(others)
         .chain(&model.covariate_names)
         .map(String::as_str)
         .collect();

@@ -33,13 +33,14 @@ impl Line {
 /// one treatment factor, no blocks, one covariate, every group with two
 /// or more distinct covariate values.
 pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
-    if a.treatment.factors.len() != 1 || !a.model.blocks.is_empty() || a.centred.columns.len() != 1
+    let d = &a.described;
+    if d.treatment.factors.len() != 1 || !d.model.blocks.is_empty() || d.centred.columns.len() != 1
     {
         return None;
     }
-    let x = &a.centred.columns[0];
-    let y = a.observed.offsets;
-    let groups = &a.groups;
+    let x = &d.centred.columns[0];
+    let y = d.observed.offsets;
+    let groups = &d.groups;
     if groups.len() > MAX_GROUPS {
         return None;
     }
@@ -75,7 +76,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
         return None;
     }
     let ms = rss / df;
-    let origin = a.data.origin;
+    let origin = d.origin;
     let slopes = groups
         .iter()
         .zip(&lines)
@@ -86,6 +87,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
                 label: label.clone(),
                 slope: l.slope(),
                 se: (ms / l.sxx).sqrt(),
+                df,
                 mean_at: origin + at,
                 mean_at_se: (ms * (1.0 / l.n + l.x * l.x / l.sxx)).sqrt(),
             }
@@ -95,7 +97,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
     let mut differences = Vec::new();
     let mut regions = Vec::new();
     let (lo, hi) = covariate_range(x);
-    let shift = a.centred.means[0];
+    let shift = d.centred.means[0];
     for i in 0..lines.len() {
         for j in i + 1..lines.len() {
             differences.push(difference(&lines[i], &lines[j], (i, j), (ms, df, t), shift));
@@ -120,7 +122,7 @@ pub(super) fn separate_slopes(a: &Adjusting<'_>) -> Option<SeparateSlopes> {
 
 /// The within-group sum of squares of the response, Σ Syy.
 fn within_y(a: &Adjusting<'_>, groups: &[(String, Vec<usize>)]) -> f64 {
-    let y = a.observed.offsets;
+    let y = a.described.observed.offsets;
     neumaier(
         groups.iter().map(|(_, m)| {
             GroupSummary::from_values(&m.iter().map(|&i| y[i]).collect::<Vec<_>>()).ss
@@ -155,6 +157,7 @@ fn difference(
         at: shift,
         estimate,
         se,
+        df,
         t: stat,
         p: 2.0 * t_sf(stat.abs(), df),
         lower: estimate - t * se,

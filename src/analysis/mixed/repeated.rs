@@ -214,6 +214,11 @@ fn univariate(
     complete: &[usize],
     names: &dyn Fn(&[usize]) -> String,
 ) -> Result<Vec<WithinTest>, String> {
+    if let Some(c) = model.covariate_names.first() {
+        return Err(format!(
+            "it has no version that adjusts for a covariate such as `{c}`"
+        ));
+    }
     let (grid, within, between) = (shape.grid, shape.within, shape.between);
     let responses: Vec<Vec<f64>> = complete
         .iter()

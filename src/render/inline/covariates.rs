@@ -38,6 +38,8 @@ impl From<&CovariateGroup> for GroupContext {
 pub(super) struct CovariateContext {
     slope: f64,
     se: f64,
+    /// The slope's df.
+    df: f64,
     adjusted_to: f64,
     min: f64,
     max: f64,
@@ -49,6 +51,7 @@ pub(super) struct CovariateContext {
 pub(super) struct LineContext {
     slope: f64,
     se: f64,
+    df: f64,
     mean_at: f64,
     mean_at_se: f64,
 }
@@ -58,6 +61,7 @@ impl From<&GroupSlope> for LineContext {
         LineContext {
             slope: g.slope,
             se: g.se,
+            df: g.df,
             mean_at: g.mean_at,
             mean_at_se: g.mean_at_se,
         }
@@ -98,6 +102,7 @@ pub(super) fn covariates_context(o: &LinearOutcome) -> Option<CovariatesContext>
             let context = CovariateContext {
                 slope: c.slope,
                 se: c.se,
+                df: c.df,
                 adjusted_to: c.mean,
                 min: c.min,
                 max: c.max,

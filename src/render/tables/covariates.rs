@@ -119,7 +119,7 @@ pub fn anova_footnotes(o: &LinearOutcome) -> Vec<String> {
                 shown(&c.name),
                 significant(c.slope, 4),
                 significant(c.se, 3),
-                df_text(o.residual().df)
+                df_text(c.df)
             )
         })
         .collect();
@@ -128,9 +128,12 @@ pub fn anova_footnotes(o: &LinearOutcome) -> Vec<String> {
         Some(SsType::III) => "for every other term (Type III)",
         _ => "for every other term (Type II)",
     };
-    notes.push(format!(
-        "A covariate is not orthogonal to the factors, so the sums of squares depend on their type: each line here is adjusted {adjusted}."
-    ));
+    notes.push(match o.mixed.is_some() {
+        true => "A covariate is not orthogonal to the factors: each test here is adjusted for every other term (Type III Wald tests of the mixed model).".into(),
+        false => format!(
+            "A covariate is not orthogonal to the factors, so the sums of squares depend on their type: each line here is adjusted {adjusted}."
+        ),
+    });
     notes.push(match &d.slopes {
         Some(s) => format!(
             "Test of equal slopes (the covariate's slope the same in every level of {}): {}.",
@@ -207,11 +210,17 @@ pub fn covariate_table(
             ),
             col("SE", true),
         ]);
-        footnotes.push(format!(
-            "Own slopes and means from the separate-slopes model (one line per group; residual mean square {}, {} df).",
-            significant(s.ms, 4),
-            df_text(s.df)
-        ));
+        footnotes.push(match s.ms.is_nan() {
+            true => format!(
+                "Own slopes and means from the mixed model with one slope per group (REML), each SE with its own {} df.",
+                ddf_name(o)
+            ),
+            false => format!(
+                "Own slopes and means from the separate-slopes model (one line per group; residual mean square {}, {} df).",
+                significant(s.ms, 4),
+                df_text(s.df)
+            ),
+        });
     }
     TableView {
         id: format!("{}-covariate-{}", o.id, cov.name),
@@ -253,27 +262,69 @@ pub fn lines_table(
     let name = o.presentation.plots.display(&cov.name).to_string();
     let dec = o.presentation.decimals;
     let label = |i: usize| s.groups[i].label.clone();
+    // A mixed model gives each difference its own df; where along the
+    // covariate the lines differ is then not computed (the df change with it).
+    let own_df = s.ms.is_nan();
     let rows = s
         .differences
         .iter()
-        .zip(&s.regions)
         .enumerate()
-        .map(|(i, (diff, region))| {
+        .map(|(i, diff)| {
             let key =
                 |q: &str| keys.field(&format!("covariates.separate_slopes.differences.{i}.{q}"));
-            vec![
+            let mut row = vec![
                 text(format!("{} − {}", label(diff.b), label(diff.a))),
                 cell(fixed(diff.estimate, dec), key("difference")),
                 cell(fixed(diff.se, dec), key("se")),
+            ];
+            if own_df {
+                row.push(cell(df_text(diff.df), key("df")));
+            }
+            row.extend([
                 cell(
                     format!("{} to {}", fixed(diff.lower, dec), fixed(diff.upper, dec)),
                     key("ci"),
                 ),
                 cell(p_value(diff.p), key("p")),
-                text(region_text(region, cov)),
-            ]
+            ]);
+            if let Some(region) = s.regions.get(i).filter(|_| !own_df) {
+                row.push(text(region_text(region, cov)));
+            }
+            row
         })
         .collect();
+    let mut columns = vec![
+        col("Comparison", false),
+        col("Difference", true),
+        col("SE", true),
+    ];
+    if own_df {
+        columns.push(col("df", true));
+    }
+    columns.extend([
+        col(format!("{} CI", confidence_label(o.alpha)), true),
+        col("p (unadjusted)", true),
+    ]);
+    let footnotes = match own_df {
+        true => vec![format!(
+            "Each difference is one line minus the other at the stated value of {name}, from the mixed model with one slope per group, each with its own {} df; p-values and intervals are not adjusted for the number of pairs.",
+            ddf_name(o)
+        )],
+        false => {
+            columns.push(col(format!("Differ at α where {name} is"), false));
+            vec![
+                format!(
+                    "Each difference is one line minus the other at the stated value of {name}, from the separate-slopes model ({} df); p-values and intervals are not adjusted for the number of pairs.",
+                    df_text(s.df)
+                ),
+                format!(
+                    "The last column gives the values of {name}, within the observed range {} to {}, where the two lines differ at α (Johnson and Neyman 1936); boundaries outside that range would be extrapolation and are not used.",
+                    fixed(cov.min, cov.decimals),
+                    fixed(cov.max, cov.decimals)
+                ),
+            ]
+        }
+    };
     TableView {
         id: format!("{}-lines", o.id),
         caption: format!(
@@ -282,26 +333,17 @@ pub fn lines_table(
             fixed(cov.mean, mean_digits(cov))
         ),
         number,
-        columns: vec![
-            col("Comparison", false),
-            col("Difference", true),
-            col("SE", true),
-            col(format!("{} CI", confidence_label(o.alpha)), true),
-            col("p (unadjusted)", true),
-            col(format!("Differ at α where {name} is"), false),
-        ],
+        columns,
         rows,
-        footnotes: vec![
-            format!(
-                "Each difference is one line minus the other at the stated value of {name}, from the separate-slopes model ({} df); p-values and intervals are not adjusted for the number of pairs.",
-                df_text(s.df)
-            ),
-            format!(
-                "The last column gives the values of {name}, within the observed range {} to {}, where the two lines differ at α (Johnson and Neyman 1936); boundaries outside that range would be extrapolation and are not used.",
-                fixed(cov.min, cov.decimals),
-                fixed(cov.max, cov.decimals)
-            ),
-        ],
+        footnotes,
+    }
+}
+
+/// The df method of a mixed model's tests, by name.
+fn ddf_name(o: &LinearOutcome) -> &'static str {
+    match o.mixed.as_ref().map(|m| m.fit.ddf) {
+        Some(crate::doc::block::DdfMethod::Satterthwaite) => "Satterthwaite",
+        _ => "Kenward-Roger",
     }
 }
 

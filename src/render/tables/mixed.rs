@@ -102,6 +102,10 @@ fn not_classical_text(n: &NotClassical) -> String {
         NotClassical::Pooled { term } => format!(
             "The variance of `{term}` is estimated at 0, so the mixed model pools that stratum with the one below and its tests differ from the classical stratum tests; the classical table is the randomisation-based analysis."
         ),
+        NotClassical::Covariate { names } => format!(
+            "No classical stratum table: the model adjusts for {}, which a stratum table cannot do. The mixed-model tests above are the analysis.",
+            names.iter().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(" and ")
+        ),
         NotClassical::Structured => "The errors of each subject follow the covariance structure below, fitted by REML on every observation, so there is no classical stratum table; the univariate repeated-measures analysis, where possible, is shown for comparison.".to_string(),
     }
 }
