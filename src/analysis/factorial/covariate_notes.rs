@@ -15,11 +15,11 @@ pub(crate) fn notes(detail: &CovariateDetail, alpha: f64) -> Vec<Note> {
         out.push(Note::new(
             NoteKind::Slopes,
             format!(
-                "The slopes on the covariate differ among the levels of {groups} ({}): the adjusted comparison assumes parallel lines that the data do not support, so the difference between groups depends on the covariate's value. {} Read the adjusted means with that in mind.",
+                "The slopes on the covariate differ among the levels of {groups} ({}): the adjusted comparison assumes parallel lines that the data do not support, so the difference between groups depends on the covariate's value. {}; read the adjusted means with that in mind.",
                 f_statement(t.df1, t.df2, t.f, t.p),
                 match &detail.separate {
-                    Some(_) => "The separate slopes and the differences at stated covariate values are shown.",
-                    None => "The separate slopes are shown only for one covariate and at most 12 groups (for fixed effects, one factor without blocks); fit the groups separately to see them.",
+                    Some(_) => "The separate slopes and the differences at stated covariate values are shown",
+                    None => "The separate slopes are shown only for one covariate and at most 12 groups (for fixed effects, one factor without blocks)",
                 }
             ),
         ));
