@@ -20,6 +20,7 @@ mod repeated;
 mod residuals;
 mod structured;
 mod time_profile;
+mod trend;
 mod units;
 
 use super::binding::decimals_shown;
@@ -372,7 +373,7 @@ impl Analysed {
             repeated: repeated.map(Box::new),
             covariates: None,
             contrasts: self.contrasts(errors)?.map(Box::new),
-            trend: None,
+            trend: trend::trend(&self, errors)?.map(Box::new),
             transform: None,
             dose: None,
             friedman: None,
