@@ -69,15 +69,22 @@ fn means_and_covariance(means: &MixedLevelMeans<'_>) -> Option<(Vec<f64>, Vec<Ve
     let m: Vec<f64> = (0..k)
         .map(|i| means.test(&unit(i)).map(|t| t.estimate))
         .collect::<Option<_>>()?;
-    let mut c = vec![vec![0.0; k]; k];
-    for i in 0..k {
-        for j in i..k {
-            let v = means.covariance(&unit(i), &unit(j));
-            if !v.is_finite() {
-                return None;
-            }
-            (c[i][j], c[j][i]) = (v, v);
-        }
+    // Each pair once (two model contrasts by polarisation), then mirrored.
+    let upper: Vec<Vec<f64>> = (0..k)
+        .map(|i| {
+            (0..k)
+                .map(|j| match j >= i {
+                    true => means.covariance(&unit(i), &unit(j)),
+                    false => 0.0,
+                })
+                .collect()
+        })
+        .collect();
+    let c: Vec<Vec<f64>> = (0..k)
+        .map(|i| (0..k).map(|j| upper[i.min(j)][i.max(j)]).collect())
+        .collect();
+    if c.iter().flatten().any(|v| !v.is_finite()) {
+        return None;
     }
     Some((m, c))
 }
