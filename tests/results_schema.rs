@@ -537,7 +537,11 @@ mod contract {
         pub treatment_df: f64,
         pub error_ss: Option<f64>,
         pub error_ms: Option<f64>,
-        pub error_df: f64,
+        /// Null in a mixed model, where each row has its own.
+        #[serde(deserialize_with = "nullable")]
+        pub error_df: Option<f64>,
+        #[serde(deserialize_with = "nullable")]
+        pub df_method: Option<String>,
         #[serde(deserialize_with = "nullable")]
         pub degree: Option<u64>,
         pub verdict: String,
@@ -562,6 +566,7 @@ mod contract {
         pub ms: Option<f64>,
         pub f: Option<f64>,
         pub p: Option<f64>,
+        pub error_df: f64,
     }
 
     #[derive(Deserialize)]

@@ -21,6 +21,7 @@ mod repeated;
 mod residuals;
 mod structured;
 mod time_profile;
+mod trend;
 mod units;
 
 use super::binding::decimals_shown;
@@ -396,7 +397,7 @@ impl Analysed {
             repeated: repeated.map(Box::new),
             covariates: covariates.map(Box::new),
             contrasts: self.contrasts(errors)?.map(Box::new),
-            trend: None,
+            trend: trend::trend(&self, errors)?.map(Box::new),
             transform: None,
             dose: None,
             friedman: None,

@@ -17,9 +17,9 @@ use crate::stats::dist::f_sf;
 use crate::stats::sum::neumaier;
 
 /// The highest degree shown (and chosen for the curve).
-const MAX_DEGREE: usize = 3;
+pub(crate) const MAX_DEGREE: usize = 3;
 
-fn dot(a: &[f64], w: &[Vec<f64>], b: &[f64]) -> f64 {
+pub(crate) fn dot(a: &[f64], w: &[Vec<f64>], b: &[f64]) -> f64 {
     neumaier(
         a.iter()
             .zip(w)
@@ -29,7 +29,7 @@ fn dot(a: &[f64], w: &[Vec<f64>], b: &[f64]) -> f64 {
 
 /// The inverse of a small symmetric positive definite matrix by
 /// Gauss-Jordan elimination with partial pivoting.
-fn inverse(a: &[Vec<f64>]) -> Option<Vec<Vec<f64>>> {
+pub(crate) fn inverse(a: &[Vec<f64>]) -> Option<Vec<Vec<f64>>> {
     let k = a.len();
     let mut m: Vec<Vec<f64>> = a
         .iter()
@@ -62,7 +62,11 @@ fn inverse(a: &[Vec<f64>]) -> Option<Vec<Vec<f64>>> {
 }
 
 /// Each level's score: given, or read from its name.
-fn scores(doc: &Document, t: &TrendSpec, labels: &[String]) -> Result<Vec<f64>, Diagnostic> {
+pub(crate) fn scores(
+    doc: &Document,
+    t: &TrendSpec,
+    labels: &[String],
+) -> Result<Vec<f64>, Diagnostic> {
     let err = |msg: String, hint: &str| {
         doc.error_at(t.line, Some(t.column), msg)
             .hint(hint.to_string())
@@ -140,13 +144,7 @@ pub(crate) fn trend(
             )
             .hint("check the design for empty cells"));
     };
-    let (lo, hi) = x
-        .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
-            (a.min(v), b.max(v))
-        });
-    let (centre, half) = (0.5 * (lo + hi), 0.5 * (hi - lo));
-    let u: Vec<f64> = x.iter().map(|v| (v - centre) / half).collect();
+    let ((centre, half), u) = scaled_scores(&x);
     let shown = MAX_DEGREE.min(k - 1);
     let basis = orthogonal_basis(&u, &w, shown);
     let ones = vec![1.0; k];
@@ -158,6 +156,7 @@ pub(crate) fn trend(
         ss,
         f: ss / df / error_ms,
         p: f_sf(ss / df / error_ms, df, m.df),
+        error_df: m.df,
     };
     let components: Vec<TrendRow> = basis
         .iter()
@@ -180,6 +179,7 @@ pub(crate) fn trend(
         treatment_df: (k - 1) as f64,
         error_ms,
         error_df: m.df,
+        df_method: None,
         verdict: TrendVerdict::NoTrend,
         curve: None,
     };
@@ -190,9 +190,39 @@ pub(crate) fn trend(
     Ok(Some(detail))
 }
 
+/// The scores centred and scaled to [−1, 1] (u = (x − centre)/half), with
+/// the centre and the half range.
+pub(crate) fn scaled_scores(x: &[f64]) -> ((f64, f64), Vec<f64>) {
+    let (lo, hi) = x
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+            (a.min(v), b.max(v))
+        });
+    let (centre, half) = (0.5 * (lo + hi), 0.5 * (hi - lo));
+    (
+        (centre, half),
+        x.iter().map(|v| (v - centre) / half).collect(),
+    )
+}
+
+/// The matrix taking a polynomial's coefficients on u to the factor's
+/// units: x = centre + half·u gives γᵢ = Σⱼ βⱼ·C(j, i)·(−centre)^(j−i)/halfʲ.
+pub(crate) fn unit_transform(cols: usize, (centre, half): (f64, f64)) -> Vec<Vec<f64>> {
+    (0..cols)
+        .map(|i| {
+            (0..cols)
+                .map(|j| match j >= i {
+                    true => binomial(j, i) * (-centre).powi((j - i) as i32) / half.powi(j as i32),
+                    false => 0.0,
+                })
+                .collect()
+        })
+        .collect()
+}
+
 /// Powers 1…degree of u made orthogonal to each other and to the
 /// constant under W (modified Gram-Schmidt, each pass done twice).
-fn orthogonal_basis(u: &[f64], w: &[Vec<f64>], degree: usize) -> Vec<Vec<f64>> {
+pub(crate) fn orthogonal_basis(u: &[f64], w: &[Vec<f64>], degree: usize) -> Vec<Vec<f64>> {
     let mut basis: Vec<Vec<f64>> = vec![vec![1.0; u.len()]];
     for d in 1..=degree {
         let mut p: Vec<f64> = u.iter().map(|v| v.powi(d as i32)).collect();
@@ -210,7 +240,7 @@ fn orthogonal_basis(u: &[f64], w: &[Vec<f64>], degree: usize) -> Vec<Vec<f64>> {
 
 /// The degree rule (B.3): the highest degree ≤ 3 whose component is
 /// significant, when the lack of fit after it is not.
-fn verdict(t: &TrendDetail, alpha: f64) -> TrendVerdict {
+pub(crate) fn verdict(t: &TrendDetail, alpha: f64) -> TrendVerdict {
     let significant: Vec<usize> = t
         .components
         .iter()
@@ -262,17 +292,7 @@ fn curve(
     let total_n: usize = n.iter().sum();
     let df = (total_n - cols) as f64;
     let ms = (within + lof) / df;
-    // x = centre + half·u: γᵢ = Σⱼ βⱼ·C(j, i)·(−centre)^(j−i)/halfʲ.
-    let transform: Vec<Vec<f64>> = (0..cols)
-        .map(|i| {
-            (0..cols)
-                .map(|j| match j >= i {
-                    true => binomial(j, i) * (-centre).powi((j - i) as i32) / half.powi(j as i32),
-                    false => 0.0,
-                })
-                .collect()
-        })
-        .collect();
+    let transform = unit_transform(cols, (centre, half));
     let coefficients: Vec<f64> = transform
         .iter()
         .map(|r| neumaier(r.iter().zip(&beta).map(|(a, b)| a * b)))
@@ -299,7 +319,13 @@ fn curve(
 
 /// The quadratic's turning point and its Fieller set at `level`: the x
 /// where (b₁ + 2b₂x)² − t²(v₁₁ + 4xv₁₂ + 4x²v₂₂) ≤ 0, a quadratic in x.
-fn optimum(b: &[f64], v: &[Vec<f64>], df: f64, level: f64, (low, high): (f64, f64)) -> Optimum {
+pub(crate) fn optimum(
+    b: &[f64],
+    v: &[Vec<f64>],
+    df: f64,
+    level: f64,
+    (low, high): (f64, f64),
+) -> Optimum {
     let (b1, b2) = (b[1], b[2]);
     let x = -b1 / (2.0 * b2);
     let t2 = crate::stats::dist::t_isf((1.0 - level) / 2.0, df).powi(2);

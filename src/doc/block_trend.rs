@@ -86,10 +86,30 @@ pub(super) fn trend_keys(d: &AnovaDraft) -> Vec<SpecError> {
         hint: Some(hint.into()),
     };
     let mut errors = Vec::new();
-    if d.random.is_some() || d.subject.is_some() {
+    // With random terms or `subject` the trend runs over a fixed factor's
+    // marginal means; a random factor or the subject has none.
+    let subject = d
+        .subject
+        .as_ref()
+        .is_some_and(|(_, s)| s.factors == [t.factor.clone()]);
+    let fixed = d
+        .model
+        .as_ref()
+        .is_some_and(|m| (m.value.terms.iter()).any(|term| term.factors.contains(&t.factor)));
+    let random = (d.random.as_ref())
+        .is_some_and(|(_, terms)| terms.iter().any(|term| term.factors.contains(&t.factor)));
+    if subject || (random && !fixed) {
         errors.push(at(
-            "trends with random terms or `subject` are not offered in this version".into(),
-            "state the trend in a block without random terms",
+            format!(
+                "`{}` is {}: a trend runs over the levels of a fixed treatment factor",
+                t.factor,
+                if subject {
+                    "the subject"
+                } else {
+                    "a random factor"
+                }
+            ),
+            "name a factor of `model` whose levels are amounts (rates, doses, times)",
         ));
     }
     if d.method.is_some_and(|m| m != super::block::Omnibus::Anova) {

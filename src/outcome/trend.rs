@@ -11,6 +11,9 @@ pub struct TrendRow {
     pub ss: f64,
     pub f: f64,
     pub p: f64,
+    /// The denominator df of this row's F: the pooled error's for a
+    /// fixed-effects model, the row's own in a mixed model.
+    pub error_df: f64,
 }
 
 /// What the degree rule found.
@@ -33,7 +36,9 @@ pub struct TrendCurve {
     pub coefficients: Vec<f64>,
     pub se: Vec<f64>,
     /// The residual mean square of the polynomial regression (lack of fit
-    /// pooled with pure error) and its df.
+    /// pooled with pure error) and its df; in a mixed model (generalised
+    /// least squares on the marginal means) NaN, and the df of the highest
+    /// component used.
     pub ms: f64,
     pub df: f64,
     /// A quadratic's turning point with its Fieller set.
@@ -77,10 +82,14 @@ pub struct TrendDetail {
     /// The treatment sum of squares the components split.
     pub treatment_ss: f64,
     pub treatment_df: f64,
+    /// The pooled error (NaN in a mixed model, where each row has its own).
     pub error_ms: f64,
     pub error_df: f64,
+    /// In a mixed model, how each row's own denominator df was found;
+    /// `None` for the pooled error of a fixed-effects model.
+    pub df_method: Option<crate::doc::block::DdfMethod>,
     pub verdict: TrendVerdict,
-    /// One-factor blocks with a chosen degree.
+    /// One-factor blocks and mixed models, with a chosen degree.
     pub curve: Option<TrendCurve>,
 }
 

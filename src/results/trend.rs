@@ -19,13 +19,17 @@ pub struct TrendRecord {
     pub treatment_df: f64,
     pub error_ss: Option<f64>,
     pub error_ms: Option<f64>,
-    pub error_df: f64,
+    /// Null in a mixed model, where each row has its own `error_df`.
+    pub error_df: Option<f64>,
+    /// "kenward-roger" or "satterthwaite" when each row is tested with its
+    /// own df in a mixed model; null for the pooled error.
+    pub df_method: Option<&'static str>,
     /// The degree the rule chose; null with `no_trend` or
     /// `not_polynomial` in `verdict`.
     pub degree: Option<usize>,
     /// "degree", "no_trend" or "not_polynomial".
     pub verdict: &'static str,
-    /// One-factor blocks with a chosen degree.
+    /// One-factor blocks and mixed models, with a chosen degree.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub curve: Option<CurveRecord>,
 }
@@ -45,6 +49,8 @@ pub struct RowRecord {
     pub ms: Option<f64>,
     pub f: Option<f64>,
     pub p: Option<f64>,
+    /// The denominator df of `f`.
+    pub error_df: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -100,6 +106,7 @@ fn row(r: &TrendRow, term: String) -> RowRecord {
         ms: finite(r.ss / r.df),
         f: finite(r.f),
         p: finite(r.p),
+        error_df: finite(r.error_df),
     }
 }
 
@@ -133,7 +140,8 @@ pub fn trend_record(t: &TrendDetail) -> TrendRecord {
         treatment_df: t.treatment_df,
         error_ss: finite(t.error_ms * t.error_df),
         error_ms: finite(t.error_ms),
-        error_df: t.error_df,
+        error_df: finite(t.error_df),
+        df_method: t.df_method.map(|m| m.key()),
         degree,
         verdict,
         curve: t.curve.as_ref().map(|c| CurveRecord {

@@ -1,6 +1,7 @@
 //! A block's trend in prose: `trend.linear`, `trend.quadratic`,
 //! `trend.cubic` and `trend.deviations` (after the highest degree shown),
-//! each a test with `ss`, `f`, `df1`, `df2`, `p` and `statement`;
+//! each a test with `ss`, `f`, `df1`, `df2` (the row's own in a mixed
+//! model), `p` and `statement`;
 //! `trend.lack_of_fit.<degree name>` after each degree; `trend.degree`
 //! (null without a chosen degree) and `trend.curve` (`coefficients` and
 //! `se` from the constant up, `ms`, `df`).
@@ -53,7 +54,7 @@ pub(super) fn trend_context(o: &LinearOutcome) -> Option<TrendContext> {
     let t = o.trend.as_deref()?;
     let row = |r: &TrendRow| RowContext {
         ss: r.ss,
-        test: FTestContext::new(r.df, t.error_df, r.f, r.p),
+        test: FTestContext::new(r.df, r.error_df, r.f, r.p),
     };
     let highest = t.components.last().map_or(0, |c| c.degree);
     Some(TrendContext {
