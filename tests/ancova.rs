@@ -6,7 +6,7 @@
 
 mod documents;
 
-use documents::{assert_close, build, open};
+use documents::{assert_close, build, open, term};
 use serde_json::Value;
 
 fn reference() -> Value {
@@ -43,15 +43,6 @@ fn want(r: &Value, path: &[&str]) -> f64 {
 /// with one decimal, so they agree to about 1e-12; the issue asks for 1e-9.
 fn close(got: &Value, want: f64, what: &str) {
     assert_close(got, want, 1e-9, what);
-}
-
-fn term<'a>(block: &'a Value, name: &str) -> &'a Value {
-    block["anova"]["terms"]
-        .as_array()
-        .expect("terms")
-        .iter()
-        .find(|t| t["term"] == name)
-        .unwrap_or_else(|| panic!("no term {name}"))
 }
 
 #[test]

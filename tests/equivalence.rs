@@ -9,24 +9,8 @@
 
 mod documents;
 
-use documents::{assert_close, build, build_report, reference_number};
+use documents::{assert_close, build, build_report, invented, reference_json, reference_number};
 use serde_json::Value;
-
-fn reference() -> Value {
-    let path = format!(
-        "{}/tests/reference/equivalence.json",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    serde_json::from_str(&std::fs::read_to_string(path).expect("reference")).expect("json")
-}
-
-fn invented(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/tests/data/invented/{name}",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("data file")
-}
 
 fn pair_doc(keys: &str) -> String {
     format!(
@@ -92,7 +76,7 @@ fn same_tost(got: &Value, want: &Value, what: &str) {
 
 #[test]
 fn the_pair_matches_ttost_ind_for_each_margin() {
-    let r = &reference()["pair"];
+    let r = &reference_json("equivalence.json")["pair"];
     for (keys, case) in [
         ("margin: 3\n", "margin_3"),
         ("margin: 2\n", "margin_2"),
@@ -132,7 +116,7 @@ fn the_pair_matches_ttost_ind_for_each_margin() {
 
 #[test]
 fn ratio_margins_on_the_log_scale_match_ttost_ind_with_log() {
-    let want = &reference()["pair"]["ratio_095"];
+    let want = &reference_json("equivalence.json")["pair"]["ratio_095"];
     for transform in ["log", "log10"] {
         let e = pair(&format!(
             "transform: {transform}\nmargin: ratio 0.95, 1.0526315789473684\n"
@@ -176,7 +160,7 @@ fn ratio_margins_on_the_log_scale_match_ttost_ind_with_log() {
 
 #[test]
 fn each_level_against_the_control_matches_the_ols_t_tests() {
-    let r = &reference()["against_control"];
+    let r = &reference_json("equivalence.json")["against_control"];
     // claim: all: one intersection-union claim, each test at α (90 % CIs).
     let all = levels("margin: 2\nclaim: all\n").expect("builds");
     assert_eq!(all["claim"], "all");
@@ -259,7 +243,7 @@ fn each_level_against_the_control_matches_the_ols_t_tests() {
 
 #[test]
 fn the_welch_version_per_level_matches_ttost_ind_unequal() {
-    let r = &reference()["against_control"]["levels"];
+    let r = &reference_json("equivalence.json")["against_control"]["levels"];
     let e = levels("margin: 2\nmethod: welch\nclaim: all\n").expect("builds");
     assert_eq!(e["variance"], "welch");
     for row in e["comparisons"].as_array().expect("rows") {

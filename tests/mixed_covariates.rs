@@ -7,7 +7,9 @@
 
 mod documents;
 
-use documents::{assert_close, build, build_report, reference_number};
+use documents::{
+    assert_close, build, build_report, invented, reference_json, reference_number, term,
+};
 use serde_json::Value;
 
 /// 1e-9 relative: both fitters stop at REML gradients near 1e-13 and every
@@ -15,22 +17,6 @@ use serde_json::Value;
 /// covers other platforms' floating-point libraries (the reference itself
 /// agrees with statsmodels MixedLM within 1e-9).
 const TOLERANCE: f64 = 1e-9;
-
-fn reference() -> Value {
-    let path = format!(
-        "{}/tests/reference/mixed_covariates.json",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    serde_json::from_str(&std::fs::read_to_string(path).expect("reference")).expect("json")
-}
-
-fn invented(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/tests/data/invented/{name}",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("data file")
-}
 
 const BEANS: &str =
     "model: yield ~ irrigation * coating\ncovariate: stand\nrandom: block + block:irrigation\n";
@@ -44,15 +30,6 @@ fn results(file: &str, keys: &str, ddf: &str, extra: &str) -> Value {
     let doc = document(file, keys, ddf, extra);
     let mut block = build(&doc, &[(file, invented(file))]).expect("builds");
     block["blocks"][0].take()
-}
-
-fn term<'a>(block: &'a Value, name: &str) -> &'a Value {
-    block["anova"]["terms"]
-        .as_array()
-        .expect("terms")
-        .iter()
-        .find(|t| t["term"] == name)
-        .unwrap_or_else(|| panic!("no term {name}"))
 }
 
 fn family<'a>(block: &'a Value, name: &str) -> &'a Value {
@@ -155,7 +132,7 @@ fn compare(block: &Value, want: &Value, case: &Value, method: &str) {
 
 #[test]
 fn a_split_plot_with_a_stand_count_matches_the_reference_by_kenward_roger() {
-    let r = reference();
+    let r = reference_json("mixed_covariates.json");
     let case = &r["cases"]["beans_split"];
     let block = results("beans-split.csv", BEANS, "", "");
     compare(&block, &case["kenward_roger"], case, "kenward_roger");
@@ -165,7 +142,7 @@ fn a_split_plot_with_a_stand_count_matches_the_reference_by_kenward_roger() {
 
 #[test]
 fn a_split_plot_with_a_stand_count_matches_the_reference_by_satterthwaite() {
-    let r = reference();
+    let r = reference_json("mixed_covariates.json");
     let case = &r["cases"]["beans_split"];
     let block = results("beans-split.csv", BEANS, "ddf: satterthwaite\n", "");
     compare(&block, &case["satterthwaite"], case, "satterthwaite");
@@ -173,7 +150,7 @@ fn a_split_plot_with_a_stand_count_matches_the_reference_by_satterthwaite() {
 
 #[test]
 fn repeated_weighings_with_a_baseline_weight_match_the_reference() {
-    let r = reference();
+    let r = reference_json("mixed_covariates.json");
     let case = &r["cases"]["pens_repeated"];
     for (ddf, method) in [
         ("", "kenward_roger"),
@@ -188,7 +165,7 @@ fn repeated_weighings_with_a_baseline_weight_match_the_reference() {
 /// cell's own slope comes from the refitted model with its own SE and df.
 #[test]
 fn differing_slopes_give_each_cell_its_own_slope_from_the_mixed_model() {
-    let r = reference();
+    let r = reference_json("mixed_covariates.json");
     let case = &r["cases"]["beans_split"];
     let doc = document("beans-split.csv", BEANS, "", "alpha: 0.15\n");
     let (report, results) =

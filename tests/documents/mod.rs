@@ -91,3 +91,31 @@ pub fn contrast_named<'a>(set: &'a Value, name: &str) -> &'a Value {
         .find(|c| c["name"] == name)
         .unwrap_or_else(|| panic!("no contrast {name}"))
 }
+
+/// A reference file of tests/reference (written by the script beside it).
+#[allow(dead_code)]
+pub fn reference_json(name: &str) -> Value {
+    let path = format!("{}/tests/reference/{name}", env!("CARGO_MANIFEST_DIR"));
+    serde_json::from_str(&std::fs::read_to_string(path).expect("reference")).expect("json")
+}
+
+/// An invented data file of tests/data/invented (see its README).
+#[allow(dead_code)]
+pub fn invented(name: &str) -> String {
+    std::fs::read_to_string(format!(
+        "{}/tests/data/invented/{name}",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .expect("data file")
+}
+
+/// A block's ANOVA line for `name`.
+#[allow(dead_code)]
+pub fn term<'a>(block: &'a Value, name: &str) -> &'a Value {
+    block["anova"]["terms"]
+        .as_array()
+        .expect("terms")
+        .iter()
+        .find(|t| t["term"] == name)
+        .unwrap_or_else(|| panic!("no term {name}"))
+}

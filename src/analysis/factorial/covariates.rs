@@ -12,7 +12,7 @@ use crate::data::Observed;
 use crate::data::covariates::Covariates;
 use crate::diag::Diagnostic;
 use crate::outcome::covariates::{
-    AdjustedFamily, Covariate, CovariateDetail, CovariateGroup, FTest, SlopesTest,
+    AdjustedFamily, Covariate, CovariateDetail, CovariateGroup, FTest, SeparateSlopes, SlopesTest,
 };
 use crate::outcome::linear::Family;
 use crate::stats::dist::f_sf;
@@ -197,15 +197,7 @@ impl Adjusting<'_> {
             .as_ref()
             .filter(|s| s.test.p < self.alpha)
             .and_then(|_| separate_slopes::separate_slopes(self));
-        CovariateDetail {
-            covariates: (0..d.centred.names.len())
-                .map(|c| d.covariate(c, self.slope(c)))
-                .collect(),
-            groups_of: d.groups_of(),
-            slopes,
-            separate,
-            families: families.iter().map(|f| d.adjusted_family(f)).collect(),
-        }
+        d.detail(&|c| self.slope(c), (slopes, separate), families)
     }
 
     /// The common slope: the coefficient of the covariate's column, on the
@@ -266,6 +258,26 @@ impl Adjusting<'_> {
 }
 
 impl Described<'_> {
+    /// The detail from each covariate's common slope, the test of equal
+    /// slopes and the separate slopes, with the unadjusted view of each
+    /// comparison family.
+    pub fn detail(
+        &self,
+        slope: &dyn Fn(usize) -> Slope,
+        (slopes, separate): (Option<SlopesTest>, Option<SeparateSlopes>),
+        families: &[Family],
+    ) -> CovariateDetail {
+        CovariateDetail {
+            covariates: (0..self.centred.names.len())
+                .map(|c| self.covariate(c, slope(c)))
+                .collect(),
+            groups_of: self.groups_of(),
+            slopes,
+            separate,
+            families: families.iter().map(|f| self.adjusted_family(f)).collect(),
+        }
+    }
+
     /// Covariate c over the groups, with its common slope.
     pub fn covariate(&self, c: usize, slope: Slope) -> Covariate {
         let column = &self.centred.columns[c];

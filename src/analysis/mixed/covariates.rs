@@ -57,15 +57,7 @@ impl MixedCovariates<'_> {
             (Some(t), Some(s)) if t.test.p < self.alpha => self.separate_slopes(s),
             _ => None,
         };
-        CovariateDetail {
-            covariates: (0..d.centred.names.len())
-                .map(|c| d.covariate(c, self.slope(c)))
-                .collect(),
-            groups_of: d.groups_of(),
-            slopes,
-            separate,
-            families: families.iter().map(|f| d.adjusted_family(f)).collect(),
-        }
+        d.detail(&|c| self.slope(c), (slopes, separate), families)
     }
 
     /// lβ for a weight row over a full design, with its SE and own df.
