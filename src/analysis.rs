@@ -26,6 +26,7 @@ mod mixed;
 mod notes;
 mod observed;
 mod one_way;
+mod outcome_base;
 mod power;
 mod request;
 mod traits;

@@ -31,6 +31,7 @@ use super::binding::{data_error, decimals_shown};
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
 use super::observed::{FactorialLayout, PooledError};
+use super::outcome_base::base_outcome;
 use super::request::{Analysis, Request};
 use crate::data::FactorialData;
 use crate::diag::Diagnostic;
@@ -40,8 +41,8 @@ use crate::doc::{Block, Document};
 use crate::outcome::Checks;
 use crate::outcome::covariates::CovariateDetail;
 use crate::outcome::linear::{
-    Alternatives, CellRow, Factor, Family, LinearOutcome, Observation, Observed, RESIDUAL, Role,
-    Stratum, TermTest,
+    CellRow, Factor, Family, LinearOutcome, Observation, Observed, RESIDUAL, Role, Stratum,
+    TermTest,
 };
 use crate::stats::oneway::GroupSummary;
 use cells::TreatmentCells;
@@ -405,15 +406,8 @@ impl Analysed {
             })
             .collect();
         LinearOutcome {
-            id: block.id.clone(),
-            line: block.line,
-            data: spec.data.value.clone(),
-            query: spec.query.as_ref().map(|q| q.value.clone()),
-            response: spec.model.value.response.clone(),
-            alpha: self.alpha,
             n,
             exclusions: data.excluded,
-            method: spec.method,
             ss_type: Some(self.chosen.ss_type),
             types_agree: self.chosen.types_agree,
             factors,
@@ -422,31 +416,21 @@ impl Analysed {
             terms: self.rows,
             total_df: n.saturating_sub(1),
             total_ss,
-            levels: Vec::new(),
             ci_pooled: true,
             cells: self.cells,
             cell_factors: self.treatment.factors,
             families,
-            alternatives: Alternatives {
-                welch: None,
-                kruskal: None,
-            },
-            checks,
             warnings,
             acknowledged,
-            presentation: super::binding::presentation(spec, decimals),
             observations,
             observed,
-            mixed: None,
-            repeated: None,
-            covariates: None,
-            contrasts: None,
-            trend: None,
-            transform: None,
-            dose: None,
-            friedman: None,
-            equivalence: None,
-            input: Default::default(),
+            ..base_outcome(
+                block,
+                spec,
+                self.alpha,
+                checks,
+                super::binding::presentation(spec, decimals),
+            )
         }
     }
 }

@@ -35,14 +35,13 @@ use super::factorial::model::{Errors, Model};
 use super::factorial::read::read_columns_and_covariates;
 use super::notes::{Note, split_acknowledged};
 use super::observed::{FactorialLayout, PooledError};
+use super::outcome_base::base_outcome;
 use super::request::{Analysis, Request};
 use crate::data::FactorialRows;
 use crate::diag::Diagnostic;
 use crate::doc::block::{CellComparison, DdfMethod, Omnibus};
 use crate::outcome::ResidualKind;
-use crate::outcome::linear::{
-    Alternatives, Factor, Family, LinearOutcome, Observation, Observed, Role,
-};
+use crate::outcome::linear::{Factor, Family, LinearOutcome, Observation, Observed, Role};
 use crate::outcome::mixed::CellLetters;
 use crate::stats::linear::{Layout, design_matrix_with, term_columns};
 use crate::stats::mixed::{self, Ddf, FixedDesign, Information};
@@ -357,13 +356,9 @@ impl Analysed {
         let cells = cells.rows(Source::Observed(data.observed()), data.origin);
         let total_ss = GroupSummary::from_values(&data.offsets).ss;
         let observations = self.observations(spec);
+        let presentation =
+            super::binding::presentation(spec, decimals_shown(errors.doc, spec, data.decimals));
         Ok(LinearOutcome {
-            id: block.id.clone(),
-            line: block.line,
-            data: spec.data.value.clone(),
-            query: spec.query.as_ref().map(|q| q.value.clone()),
-            response: spec.model.value.response.clone(),
-            alpha: self.alpha,
             n: data.offsets.len(),
             exclusions: data.excluded.clone(),
             method: Omnibus::Anova,
@@ -374,23 +369,11 @@ impl Analysed {
             terms,
             total_df: data.offsets.len().saturating_sub(1),
             total_ss,
-            r_squared: f64::NAN,
-            levels: Vec::new(),
-            ci_pooled: false,
             cells,
             cell_factors: treatments,
             families,
-            alternatives: Alternatives {
-                welch: None,
-                kruskal: None,
-            },
-            checks,
             warnings,
             acknowledged,
-            presentation: super::binding::presentation(
-                spec,
-                decimals_shown(errors.doc, spec, data.decimals),
-            ),
             observed: self.observed(spec, &observations),
             observations,
             mixed: Some(Box::new(detail)),
@@ -398,11 +381,7 @@ impl Analysed {
             covariates: covariates.map(Box::new),
             contrasts: self.contrasts(errors)?.map(Box::new),
             trend: trend::trend(&self, errors)?.map(Box::new),
-            transform: None,
-            dose: None,
-            friedman: None,
-            equivalence: None,
-            input: Default::default(),
+            ..base_outcome(block, spec, self.alpha, checks, presentation)
         })
     }
 

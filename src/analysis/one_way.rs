@@ -15,6 +15,7 @@ pub use sample::RoundingRange;
 use super::binding::{apply_labels, check_labels, decimals_shown};
 use super::checks::{Remedies, advice};
 use super::notes::{Note, split_acknowledged};
+use super::outcome_base::base_outcome;
 use super::request::{Analysis, Request};
 use super::transformation;
 use crate::diag::Diagnostic;
@@ -146,17 +147,8 @@ impl Engine<'_> {
         };
         let observed = Observed::one_factor(&levels, &observations, &spec.plots);
         Ok(LinearOutcome {
-            id: self.block.id.clone(),
-            line: self.block.line,
-            data: spec.data.value.clone(),
-            query: spec.query.as_ref().map(|q| q.value.clone()),
-            response: spec.model.value.response.clone(),
-            alpha,
             n: table.n,
             exclusions: sample.excluded,
-            method: spec.method,
-            ss_type: None,
-            types_agree: true,
             factors: vec![outcome::factor(&factor, &levels)],
             strata: vec![outcome::residual(&table)],
             terms: vec![outcome::factor_term(&factor, &table, effect)],
@@ -164,27 +156,27 @@ impl Engine<'_> {
             total_ss: table.ss_total,
             r_squared: table.r_squared,
             ci_pooled: pooled,
-            cells: Vec::new(),
             cell_factors: vec![0],
             families,
             levels,
             alternatives,
-            checks,
             warnings,
             acknowledged,
-            presentation: super::binding::presentation(spec, decimals),
             observations,
             observed,
-            mixed: None,
-            repeated: None,
-            covariates: None,
             contrasts: contrasts.map(Box::new),
             trend: trend.map(Box::new),
             transform: transform.map(Box::new),
             dose: dose.map(Box::new),
-            friedman: None,
             equivalence: equivalence.map(Box::new),
             input: sample.input.clone(),
+            ..base_outcome(
+                self.block,
+                spec,
+                alpha,
+                checks,
+                super::binding::presentation(spec, decimals),
+            )
         })
     }
 
