@@ -208,6 +208,13 @@ fn differing_slopes_give_each_cell_its_own_slope_from_the_mixed_model() {
         "{report}"
     );
     assert!(report.contains("No classical stratum table: the model adjusts for `stand`"));
+    // Under the tests of the fixed effects: the slope with its own df (the
+    // reference's 6.6304, 0.61629, 17.255 as printed), and the slopes test.
+    assert!(
+        report.contains("one common slope: 6.630 per unit (SE 0.616, 17.26 df)"),
+        "{report}"
+    );
+    assert!(report.contains("Test of equal slopes (the covariate's slope the same in every level of irrigation × coating): F(8, 8.48) = 2.41, p = 0.111."));
 }
 
 #[test]

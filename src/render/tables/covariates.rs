@@ -201,9 +201,11 @@ pub fn covariate_table(
         )
     )];
     if let Some(s) = separate {
+        columns.extend([col("Own slope", true), col("SE", true)]);
+        if s.ms.is_nan() {
+            columns.push(col("df", true));
+        }
         columns.extend([
-            col("Own slope", true),
-            col("SE", true),
             col(
                 format!("Mean at {name} = {}", fixed(cov.mean, digits)),
                 true,
@@ -241,12 +243,19 @@ fn slope_cells(o: &LinearOutcome, s: &SeparateSlopes, g: usize, keys: &Keys) -> 
         ))
     };
     let d = o.presentation.decimals;
-    vec![
+    let mut cells = vec![
         cell(significant(group.slope, 4), key("slope")),
         cell(significant(group.se, 3), key("se")),
+    ];
+    // A mixed model gives each slope its own df.
+    if s.ms.is_nan() {
+        cells.push(cell(df_text(group.df), key("df")));
+    }
+    cells.extend([
         cell(fixed(group.mean_at, d), key("mean_at")),
         cell(fixed(group.mean_at_se, d), key("mean_at_se")),
-    ]
+    ]);
+    cells
 }
 
 /// The differences between the groups' lines at the covariate's mean, and

@@ -67,6 +67,7 @@ pub fn fixed_tests_table(
         None => "The design is balanced and every stratum's variance is positive, so these tests reproduce the classical stratum table exactly.".to_string(),
         Some(n) => not_classical_text(n),
     });
+    footnotes.extend(super::covariates::anova_footnotes(o));
     TableView {
         number,
         id: format!("{}-fixed", o.id),
