@@ -19,27 +19,18 @@
 # defaults (snappy, row groups of 1,048,576 rows).
 # Usage: bench/columnar.sh            (ROWS=20000000 REPEAT=3 by default)
 set -euo pipefail
+. "$(dirname "$0")/lib.sh"
 cd "$(dirname "$0")/.."
 rows="${ROWS:-20000000}"
 repeat="${REPEAT:-3}"
 target="${CARGO_TARGET_DIR:-target}"
-cargo build --release -q
-bin="$target/release/sheaf"
+bin=$(build_sheaf)
 venv="$target/columnar-venv"
-if ! "$venv/bin/python" -c "import pyarrow" 2>/dev/null; then
-  python3 -m venv "$venv"
-  "$venv/bin/pip" install -q pyarrow
-fi
+ensure_venv "$venv" pyarrow pyarrow
 data="$target/bench-data"
 mkdir -p "$data"
 csv="$data/fill-$rows.csv"
-if [ ! -s "$csv" ]; then
-  echo "generating $csv ($rows rows, invented data)"
-  awk -v n="$rows" 'BEGIN { srand(11); print "head,fill_g,shift";
-    for (i = 0; i < n; i++) { h = i % 12;
-      printf "H%02d,%.3f,S%d\n", h, 500 + h * 0.02 + 0.8 * (rand() + rand() + rand() - 1.5), int(i / 1000) % 3 } }' > "$csv.tmp"
-  mv "$csv.tmp" "$csv"
-fi
+ensure_fill_csv "$csv" "$rows"
 double="$data/fill-$rows.double.parquet"
 decimal="$data/fill-$rows.decimal.parquet"
 plain="$data/fill-$rows.plain.parquet"
@@ -88,31 +79,12 @@ DOC
 done
 
 cat "$csv" "$double" "$decimal" "$plain" > /dev/null # into the page cache alike
-# best "wall user+sys peakKiB" of $repeat runs of a command
-measure() {
-  local best="" line wall user sys peak start end
-  for _ in $(seq "$repeat"); do
-    start=$(date +%s%N)
-    /usr/bin/time -o "$data/time.out" -f "%U %S %M" "$@" > "$data/last.out" 2>&1
-    end=$(date +%s%N)
-    read -r user sys peak < "$data/time.out"
-    wall=$(awk -v s="$start" -v e="$end" 'BEGIN { printf "%.3f", (e - s) / 1e9 }')
-    line="$wall $(awk -v u="$user" -v s="$sys" 'BEGIN { print u + s }') $peak"
-    if [ -z "$best" ] || awk -v a="$wall" -v b="${best%% *}" 'BEGIN { exit !(a < b) }'; then
-      best="$line"
-    fi
-  done
-  echo "$best"
-}
-row() {
-  local wall cpu peak
-  read -r wall cpu peak <<< "$2"
-  printf '%-46s %9.3f %9.2f %11.0f\n' "$1" "$wall" "$cpu" "$((peak / 1024))"
-}
+measure() { measure_best_of "$repeat" "$data" "$@"; }
+row() { table_row 46 "$@"; }
 mb() { echo "$(($(stat -c %s "$1") / 1000000))"; }
 printf '%s rows, %s core(s); MB: CSV %s, Parquet double %s, decimal %s, plain %s\n' \
   "$rows" "$(nproc)" "$(mb "$csv")" "$(mb "$double")" "$(mb "$decimal")" "$(mb "$plain")"
-printf '%-46s %9s %9s %11s\n' "" "wall s" "CPU s" "peak MiB"
+table_header 46
 declare -A hash
 for input in csv double decimal plain; do
   case $input in
@@ -132,7 +104,7 @@ for checks in summary all; do
     row "sheaf, checks: $checks, $input" "$result"
     f=$(grep -o 'F = [0-9.]*' "$out/columnar-$input-$checks.html" | head -1)
     fs="$fs $input/$checks: $f;"
-    ratio=$(awk -v x="${result%% *}" -v y="${hash[$input]%% *}" 'BEGIN { printf "%.1f", x / y }')
+    ratio=$(wall_ratio 1 "$result" "${hash[$input]}")
     echo "    = ${ratio}× the hash of its own file"
   done
 done

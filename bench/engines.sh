@@ -14,17 +14,13 @@
 # engine's summary build are printed side by side.
 # Usage: bench/engines.sh        (ROWS=20000000 by default)
 set -euo pipefail
+. "$(dirname "$0")/lib.sh"
 cd "$(dirname "$0")/.."
 rows="${ROWS:-20000000}"
 rounds="${ROUNDS:-1}"
-target="${CARGO_TARGET_DIR:-target}"
-cargo build --release -q
-bin="$target/release/sheaf"
+bin=$(build_sheaf)
 venv=target/engines-venv
-if ! "$venv/bin/python" -c "import duckdb, datafusion, pyarrow" 2>/dev/null; then
-  python3 -m venv "$venv"
-  "$venv/bin/pip" install -q duckdb==2.0.0 datafusion==55.0.0 pyarrow==26.0.1
-fi
+ensure_venv "$venv" "duckdb, datafusion, pyarrow" duckdb==2.0.0 datafusion==55.0.0 pyarrow==26.0.1
 # Spark needs Java 17: the machine's, or Debian's headless runtime.
 spark=yes
 if ! java -version 2>&1 | grep -q 'version "17'; then
@@ -39,13 +35,7 @@ fi
 data="target/bench-data"
 mkdir -p "$data"
 csv="$data/fill-$rows.csv"
-if [ ! -s "$csv" ]; then
-  echo "generating $csv ($rows rows, invented data)"
-  awk -v n="$rows" 'BEGIN { srand(11); print "head,fill_g,shift";
-    for (i = 0; i < n; i++) { h = i % 12;
-      printf "H%02d,%.3f,S%d\n", h, 500 + h * 0.02 + 0.8 * (rand() + rand() + rand() - 1.5), int(i / 1000) % 3 } }' > "$csv.tmp"
-  mv "$csv.tmp" "$csv"
-fi
+ensure_fill_csv "$csv" "$rows"
 name="$(basename "$csv")"
 work="$data/engines"
 mkdir -p "$work"
@@ -118,24 +108,10 @@ else:
     spark.stop()
 PY
 cat "$csv" > /dev/null # into the page cache for every contender alike
-# best "wall user+sys peakKiB" of $rounds runs of a command
-measure() {
-  local best="" line wall user sys peak start end
-  for _ in $(seq "$rounds"); do
-    start=$(date +%s%N)
-    if ! /usr/bin/time -o "$work/time.out" -f "%U %S %M" "$@" > "$work/last.out" 2>&1; then
-      echo "failed: $*" >&2; tail -5 "$work/last.out" >&2; echo "nan nan 0"; return
-    fi
-    end=$(date +%s%N)
-    read -r user sys peak < "$work/time.out"
-    wall=$(awk -v s="$start" -v e="$end" 'BEGIN { printf "%.3f", (e - s) / 1e9 }')
-    line="$wall $(awk -v u="$user" -v s="$sys" 'BEGIN { print u + s }') $peak"
-    if [ -z "$best" ] || awk -v a="$wall" -v b="${best%% *}" 'BEGIN { exit !(a < b) }'; then
-      best="$line"
-    fi
-  done
-  echo "$best"
-}
+# A failed engine gets a row of nan and the run goes on to the others.
+measure() { measure_best_of "$rounds" "$work" "$@" || echo "nan nan 0"; }
+# The numbers as measured (CPU "0", not table_row's "0.00"): BENCHMARKS.md
+# quotes this table as it has always printed.
 row() {
   local wall cpu peak
   read -r wall cpu peak <<< "$2"
@@ -144,7 +120,7 @@ row() {
 size=$(stat -c %s "$csv")
 printf '%s: %s rows, %s MB CSV, %s MB Parquet, %s core(s), shared machine\n' "$name" "$rows" \
   "$((size / 1000000))" "$(($(stat -c %s "$parquet") / 1000000))" "$(nproc)"
-printf '%-48s %9s %9s %11s\n' "" "wall s" "CPU s" "peak MiB"
+table_header 48
 row "(h) sha256sum of the CSV" "$(measure sha256sum "$csv")"
 row "(s) sheaf build of the raw CSV (streaming)" "$(measure "$bin" build "$work/raw.md" -o "$work/out-raw")"
 raw_f=$(grep -o 'F = [0-9.]*' "$work/out-raw/raw.html" | head -1 || true)

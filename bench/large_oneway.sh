@@ -23,27 +23,20 @@
 #   the file in memory.
 set -euo pipefail
 shopt -s inherit_errexit
+. "$(dirname "$0")/lib.sh"
 cd "$(dirname "$0")/.."
 rows="${ROWS:-20000000}"
 repeat="${REPEAT:-3}"
 large=$((rows >= 100000000))
-cargo build --release -q
-bin="${CARGO_TARGET_DIR:-$PWD/target}/release/sheaf"
+bin=$(build_sheaf)
 venv=target/bench-venv
-if [ "$large" = 0 ] && ! "$venv/bin/python" -c "import scipy, pandas, polars" 2>/dev/null; then
-  python3 -m venv "$venv"
-  "$venv/bin/pip" install -q scipy pandas polars
+if [ "$large" = 0 ]; then
+  ensure_venv "$venv" "scipy, pandas, polars" scipy pandas polars
 fi
 data="target/bench-data"
 mkdir -p "$data"
 csv="$data/fill-$rows.csv"
-if [ ! -s "$csv" ]; then
-  echo "generating $csv ($rows rows, invented data)"
-  awk -v n="$rows" 'BEGIN { srand(11); print "head,fill_g,shift";
-    for (i = 0; i < n; i++) { h = i % 12;
-      printf "H%02d,%.3f,S%d\n", h, 500 + h * 0.02 + 0.8 * (rand() + rand() + rand() - 1.5), int(i / 1000) % 3 } }' > "$csv.tmp"
-  mv "$csv.tmp" "$csv"
-fi
+ensure_fill_csv "$csv" "$rows"
 if [ "$large" = 1 ]; then
   trap 'rm -f "$csv" "$csv.tmp"' EXIT
 fi
@@ -99,27 +92,8 @@ print(f"polars levels: {out.height}")
 PY
 
 cat "$csv" > /dev/null # into the page cache for every contender alike
-# best "wall user+sys peakKiB" of $repeat runs of a command; wall time from
-# the nanosecond clock (GNU time rounds to 10 ms, too coarse for cat).
-measure() {
-  local best="" line wall user sys peak start end
-  for _ in $(seq "$repeat"); do
-    start=$(date +%s%N)
-    if ! /usr/bin/time -o "$data/time.out" -f "%U %S %M" "$@" > "$data/last.out" 2>&1; then
-      echo "failed: $*" >&2
-      tail -20 "$data/last.out" >&2
-      return 1
-    fi
-    end=$(date +%s%N)
-    read -r user sys peak < "$data/time.out"
-    wall=$(awk -v s="$start" -v e="$end" 'BEGIN { printf "%.3f", (e - s) / 1e9 }')
-    line="$wall $(awk -v u="$user" -v s="$sys" 'BEGIN { print u + s }') $peak"
-    if [ -z "$best" ] || awk -v a="$wall" -v b="${best%% *}" 'BEGIN { exit !(a < b) }'; then
-      best="$line"
-    fi
-  done
-  echo "$best"
-}
+# A failed run ends the benchmark (inherit_errexit above).
+measure() { measure_best_of "$repeat" "$data" "$@"; }
 a=$(measure sh -c "cat '$csv' > /dev/null")
 h=$(measure openssl dgst -sha256 "$csv")
 b=$(measure "$bin" build "$data/report-summary.md" -o "$data/out-summary")
@@ -134,18 +108,14 @@ fi
 
 size=$(stat -c %s "$csv")
 printf '%s: %s rows, %s MB, %s core(s), load average %s\n' "$name" "$rows" "$((size / 1000000))" "$(nproc)" "$(cut -d' ' -f1-3 /proc/loadavg)"
-printf '%-44s %9s %9s %11s\n' "" "wall s" "CPU s" "peak MiB"
-row() {
-  local wall cpu peak
-  read -r wall cpu peak <<< "$2"
-  printf '%-44s %9.3f %9.2f %11.0f\n' "$1" "$wall" "$cpu" "$((peak / 1024))"
-}
+table_header 44
+row() { table_row 44 "$@"; }
 row "(a) cat to /dev/null" "$a"
 row "(h) openssl dgst -sha256" "$h"
 row "(b) sheaf build, checks: summary" "$b"
 row "(b2) sheaf build, every check" "$b2"
 row "(b3) sheaf build, head × shift, every check" "$b3"
-ratio() { awk -v x="${1%% *}" -v y="${2%% *}" 'BEGIN { printf "%.2f", x / y }'; }
+ratio() { wall_ratio 2 "$@"; }
 if [ "$large" = 0 ]; then
   row "(c) pandas + scipy (F, Levene x2, Tukey)" "$c"
   row "(d) polars read_csv + group_by" "$d"

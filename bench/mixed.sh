@@ -12,15 +12,12 @@
 # ratios favour statsmodels. Prints the variance components from both.
 # Usage: bench/mixed.sh       (REPEAT=3 by default)
 set -euo pipefail
+. "$(dirname "$0")/lib.sh"
 cd "$(dirname "$0")/.."
 repeat="${REPEAT:-3}"
-cargo build --release -q
-bin="$PWD/target/release/sheaf"
+bin=$(build_sheaf)
 venv=target/bench-venv
-if ! "$venv/bin/python" -c "import statsmodels, pandas" 2>/dev/null; then
-  python3 -m venv "$venv"
-  "$venv/bin/pip" install -q statsmodels pandas
-fi
+ensure_venv "$venv" "statsmodels, pandas" statsmodels pandas
 data=target/bench-data/mixed
 mkdir -p "$data"
 cp tests/data/open/oats.csv "$data/oats.csv"

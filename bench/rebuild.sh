@@ -5,9 +5,9 @@
 # prose-only edit (every block from the cache), and a rebuild after one of
 # two data files changed (one block recomputed). Usage: bench/rebuild.sh
 set -euo pipefail
+. "$(dirname "$0")/lib.sh"
 cd "$(dirname "$0")/.."
-cargo build --release -q
-bin="$PWD/target/release/sheaf"
+bin=$(build_sheaf)
 work="$(mktemp -d)"
 trap 'rm -rf "$work"' EXIT
 awk 'BEGIN { srand(7); print "y,g"; for (i = 0; i < 200000; i++) { g = i % 40; printf "%.3f,L%02d\n", 50 + g * 0.05 + 3 * (rand() + rand() + rand() - 1.5), g } }' > "$work/big.csv"
@@ -47,7 +47,7 @@ echo "12.34,T1" >> "$work/small.csv"
 data=$(seconds "$bin" build "$work/report.md" -o "$work/out")
 echo "99.99,T2" >> "$work/small.csv"
 recomputed=$(computed "$bin" build "$work/report.md" -o "$work/out")
-ratio() { awk -v a="$1" -v b="$2" 'BEGIN { printf "%.1f", a / b }'; }
+ratio() { wall_ratio 1 "$@"; }
 printf 'cold build (3 blocks computed):        %6.2f s\n' "$cold"
 printf 'after a prose edit (0 computed):       %6.2f s  (%sx faster)\n' "$prose" "$(ratio "$cold" "$prose")"
 printf 'after small.csv changed:               %6.2f s  (%sx faster; %s block recomputed)\n' "$data" "$(ratio "$cold" "$data")" "$recomputed"

@@ -6,12 +6,10 @@
 # agreement with scipy (|Δcdf| < 1e-8) is checked by tests/distributions.rs.
 # Usage: bench/studentized_range.sh
 set -euo pipefail
+. "$(dirname "$0")/lib.sh"
 cd "$(dirname "$0")/.."
 venv=target/bench-venv
-if [ ! -x "$venv/bin/python" ]; then
-  python3 -m venv "$venv"
-  "$venv/bin/pip" install -q scipy
-fi
+ensure_venv "$venv" scipy scipy
 ours="$(cargo bench -q --bench studentized_range 2>/dev/null)"
 echo "$ours"
 "$venv/bin/python" - "$ours" <<'PY'
