@@ -90,6 +90,15 @@ pub(crate) struct Slope {
     pub df: f64,
 }
 
+impl Slope {
+    /// Not estimable.
+    pub const UNKNOWN: Slope = Slope {
+        value: f64::NAN,
+        se: f64::NAN,
+        df: f64::NAN,
+    };
+}
+
 /// What every engine describes a block's covariates with: the groups
 /// (treatment cells with data), the covariate's spread in each, the balance
 /// check and each family's means before adjustment.
@@ -208,9 +217,8 @@ impl Adjusting<'_> {
         let df = self.fitted.residual_df as f64;
         let Some(t) = model.terms.iter().position(|t| t == &vec![v]) else {
             return Slope {
-                value: f64::NAN,
-                se: f64::NAN,
                 df,
+                ..Slope::UNKNOWN
             };
         };
         let column = self.fitted.ranges[t].start;

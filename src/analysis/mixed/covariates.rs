@@ -17,7 +17,7 @@ use crate::stats::dist::{t_isf, t_sf};
 use crate::stats::linear::{
     Layout, TermFactors, design_matrix_with, grid_average_with, term_columns,
 };
-use crate::stats::mixed::{ContrastTest, Ddf, FixedDesign, FixedInference};
+use crate::stats::mixed::{Ddf, FixedDesign, FixedInference};
 
 /// Above this many groups the separate slopes are not listed.
 const MAX_GROUPS: usize = 12;
@@ -60,21 +60,18 @@ impl MixedCovariates<'_> {
         d.detail(&|c| self.slope(c), (slopes, separate), families)
     }
 
-    /// lβ for a weight row over a full design, with its SE and own df.
-    fn estimate(&self, design: &FixedDesign, fit: &FixedInference, full: &[f64]) -> ContrastTest {
-        let nothing = ContrastTest {
-            estimate: f64::NAN,
-            se: f64::NAN,
-            df: f64::NAN,
-            t: f64::NAN,
-            p_value: f64::NAN,
-            method: crate::stats::mixed::DfMethod::KenwardRoger,
-        };
+    /// lβ for a weight row over a full design, with its SE and own df (NaN
+    /// where it is not estimable).
+    fn estimate(&self, design: &FixedDesign, fit: &FixedInference, full: &[f64]) -> Slope {
         design
             .restrict(full)
             .ok()
             .and_then(|l| fit.contrast(&l, self.ddf).ok())
-            .unwrap_or(nothing)
+            .map_or(Slope::UNKNOWN, |c| Slope {
+                value: c.estimate,
+                se: c.se,
+                df: whole_if_whole(c.df),
+            })
     }
 
     /// The common slope: the coefficient of the covariate's column.
@@ -82,20 +79,11 @@ impl MixedCovariates<'_> {
         let model = self.described.model;
         let v = model.factor_names.len() + c;
         let Some(t) = model.terms.iter().position(|t| t == &vec![v]) else {
-            return Slope {
-                value: f64::NAN,
-                se: f64::NAN,
-                df: f64::NAN,
-            };
+            return Slope::UNKNOWN;
         };
         let mut l = vec![0.0; self.design.kept.len()];
         l[self.design.term_ranges[t].start] = 1.0;
-        let e = self.estimate(self.design, self.fit, &l);
-        Slope {
-            value: e.estimate,
-            se: e.se,
-            df: whole_if_whole(e.df),
-        }
+        self.estimate(self.design, self.fit, &l)
     }
 
     /// The model refitted with every treatment term crossed with every
@@ -170,10 +158,10 @@ impl MixedCovariates<'_> {
                 );
                 GroupSlope {
                     label: label.clone(),
-                    slope: b.estimate,
+                    slope: b.value,
                     se: b.se,
-                    df: whole_if_whole(b.df),
-                    mean_at: d.origin + m.estimate,
+                    df: b.df,
+                    mean_at: d.origin + m.value,
                     mean_at_se: m.se,
                 }
             })
@@ -202,20 +190,19 @@ impl MixedCovariates<'_> {
     /// Line b minus line a at the covariate's mean, with its own df.
     fn difference(&self, s: &Separate, l: &[f64], (a, b): (usize, usize)) -> LineDifference {
         let e = self.estimate(&s.design, &s.fit, l);
-        let df = whole_if_whole(e.df);
-        let t = e.estimate / e.se;
-        let half = t_isf(self.alpha / 2.0, df) * e.se;
+        let t = e.value / e.se;
+        let half = t_isf(self.alpha / 2.0, e.df) * e.se;
         LineDifference {
             a,
             b,
             at: self.described.centred.means[0],
-            estimate: e.estimate,
+            estimate: e.value,
             se: e.se,
-            df,
+            df: e.df,
             t,
-            p: 2.0 * t_sf(t.abs(), df),
-            lower: e.estimate - half,
-            upper: e.estimate + half,
+            p: 2.0 * t_sf(t.abs(), e.df),
+            lower: e.value - half,
+            upper: e.value + half,
         }
     }
 }
