@@ -242,3 +242,18 @@ fn a_covariate_cannot_also_name_the_units() {
         "{err}"
     );
 }
+
+/// Compound symmetry is parameterised as a subject variance and a residual
+/// variance, the subject variance allowed below zero (mixed-models
+/// specification 2.3, item 1); where it is positive, as here (1.19), the
+/// model is the random-intercept one, so the covariance-structure route
+/// reproduces the same reference: the structured fit and its equal-slopes
+/// refit with the structure, under Kenward-Roger.
+#[test]
+fn compound_symmetry_with_a_baseline_weight_matches_the_random_intercept_reference() {
+    let r = reference_json("mixed_covariates.json");
+    let case = &r["cases"]["pens_repeated"];
+    let keys = format!("{PENS}covariance: compound-symmetry\n");
+    let block = results("pens-repeated.csv", &keys, "", "");
+    compare(&block, &case["kenward_roger"], case, "kenward_roger");
+}
