@@ -257,3 +257,55 @@ fn compound_symmetry_with_a_baseline_weight_matches_the_random_intercept_referen
     let block = results("pens-repeated.csv", &keys, "", "");
     compare(&block, &case["kenward_roger"], case, "kenward_roger");
 }
+
+/// Where along the observed stand counts two cells' lines differ at
+/// α = 0.15, each value with its own Kenward-Roger df, against
+/// tests/reference/mixed_regions.py (a 2001-point grid and Brent's root
+/// finder on the same refit; its closest approach to the critical value
+/// without crossing is 0.14, so no crossing hides between grid points).
+/// Boundaries to 1e-8 relative: both sides refine a root of a smooth
+/// function to about 1e-12 of the range, and the function's inputs agree
+/// to 1e-11 (above).
+#[test]
+fn where_two_lines_differ_follows_each_values_own_df() {
+    let want = reference_json("mixed_regions.json");
+    let doc = document("beans-split.csv", BEANS, "", "alpha: 0.15\n");
+    let results = build(&doc, &[("beans-split.csv", invented("beans-split.csv"))]).expect("builds");
+    let regions = results["blocks"][0]["covariates"]["separate_slopes"]["regions"]
+        .as_array()
+        .expect("regions")
+        .clone();
+    let pairs = want["pairs"].as_array().expect("pairs");
+    assert_eq!(regions.len(), pairs.len());
+    let numbers = |v: &Value| -> Vec<f64> {
+        let flat = v.as_array().expect("list").iter().flat_map(|x| match x {
+            Value::Array(pair) => pair.clone(),
+            other => vec![other.clone()],
+        });
+        flat.map(|x| x.as_f64().expect("number")).collect()
+    };
+    for w in pairs {
+        let got = regions
+            .iter()
+            .find(|r| r["a"] == w["a"] && r["b"] == w["b"])
+            .unwrap_or_else(|| panic!("no region for {} and {}", w["a"], w["b"]));
+        for field in ["boundaries", "significant"] {
+            let (g, r) = (numbers(&got[field]), numbers(&w[field]));
+            assert_eq!(
+                g.len(),
+                r.len(),
+                "{field} of {} − {}: {g:?} vs {r:?}",
+                w["b"],
+                w["a"]
+            );
+            for (x, y) in g.iter().zip(&r) {
+                assert_close(
+                    &(*x).into(),
+                    *y,
+                    1e-8,
+                    &format!("{field} {} − {}", w["b"], w["a"]),
+                );
+            }
+        }
+    }
+}

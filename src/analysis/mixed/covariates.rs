@@ -10,7 +10,8 @@
 use super::detail::whole_if_whole;
 use crate::analysis::factorial::covariates::{Described, Slope};
 use crate::outcome::covariates::{
-    CovariateDetail, FTest, GroupSlope, LineDifference, SeparateSlopes, SlopesTest,
+    CovariateDetail, DifferenceRegion, FTest, GroupSlope, LineDifference, SeparateSlopes,
+    SlopesTest,
 };
 use crate::outcome::linear::Family;
 use crate::stats::dist::{t_isf, t_sf};
@@ -25,6 +26,28 @@ const MAX_GROUPS: usize = 12;
 /// The fixed-effects inference of the model refitted with another design
 /// (the same random terms or covariance structure); `None` when it fails.
 pub(super) type Refit<'a> = dyn Fn(&FixedDesign) -> Option<FixedInference> + 'a;
+
+/// Intervals of the grid on which the difference between two lines is
+/// followed along the covariate before its crossings are refined.
+const REGION_GRID: usize = 200;
+
+/// Line b minus line a as weight rows: at the covariate's mean, and per
+/// unit of the covariate.
+struct LinePair {
+    at: Vec<f64>,
+    slope: Vec<f64>,
+}
+
+impl LinePair {
+    /// The difference's weights at centred covariate value u.
+    fn at_value(&self, u: f64) -> Vec<f64> {
+        self.at
+            .iter()
+            .zip(&self.slope)
+            .map(|(a, s)| a + u * s)
+            .collect()
+    }
+}
 
 /// What the detail is computed from.
 pub(super) struct MixedCovariates<'a> {
@@ -167,15 +190,25 @@ impl MixedCovariates<'_> {
             })
             .collect();
         let mut differences = Vec::new();
+        let mut regions = Vec::new();
         for a in 0..rows.len() {
             for b in a + 1..rows.len() {
-                let l: Vec<f64> = rows[b]
-                    .1
-                    .iter()
-                    .zip(&rows[a].1)
-                    .map(|(x, y)| x - y)
-                    .collect();
-                differences.push(self.difference(s, &l, (a, b)));
+                let pair = LinePair {
+                    at: rows[b]
+                        .1
+                        .iter()
+                        .zip(&rows[a].1)
+                        .map(|(x, y)| x - y)
+                        .collect(),
+                    slope: rows[b]
+                        .0
+                        .iter()
+                        .zip(&rows[a].0)
+                        .map(|(x, y)| x - y)
+                        .collect(),
+                };
+                differences.push(self.difference(s, &pair.at, (a, b)));
+                regions.push(self.region(s, &pair, (a, b)));
             }
         }
         Some(SeparateSlopes {
@@ -183,8 +216,65 @@ impl MixedCovariates<'_> {
             df: f64::NAN,
             groups,
             differences,
-            regions: Vec::new(),
+            regions,
         })
+    }
+
+    /// Where along the observed covariate range line b and line a differ at
+    /// α (Johnson and Neyman 1936, with each value's own df): the test
+    /// statistic is followed over a grid and each crossing of its critical
+    /// value refined by bisection. Boundaries outside the data are not
+    /// sought (they would be extrapolation).
+    fn region(&self, s: &Separate, pair: &LinePair, (a, b): (usize, usize)) -> DifferenceRegion {
+        let d = &self.described;
+        let column = &d.centred.columns[0];
+        let (lo, hi) = (column.iter()).fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &x| {
+            (l.min(x), h.max(x))
+        });
+        // |D(u)|/SE(u) above the critical t at u's own df: positive where
+        // the lines differ.
+        let excess = |u: f64| {
+            let e = self.estimate(&s.design, &s.fit, &pair.at_value(u));
+            e.value.abs() / e.se - t_isf(self.alpha / 2.0, e.df)
+        };
+        let points: Vec<(f64, f64)> = (0..=REGION_GRID)
+            .map(|i| {
+                let u = lo + (hi - lo) * i as f64 / REGION_GRID as f64;
+                (u, excess(u))
+            })
+            .collect();
+        let mut boundaries = Vec::new();
+        for w in points.windows(2) {
+            let ((mut u0, mut e0), (mut u1, _)) = (w[0], w[1]);
+            if (w[0].1 > 0.0) == (w[1].1 > 0.0) || !w[0].1.is_finite() || !w[1].1.is_finite() {
+                continue;
+            }
+            while u1 - u0 > 1e-12 * (hi - lo).max(f64::MIN_POSITIVE) {
+                let mid = 0.5 * (u0 + u1);
+                let em = excess(mid);
+                if (em > 0.0) == (e0 > 0.0) {
+                    (u0, e0) = (mid, em);
+                } else {
+                    u1 = mid;
+                }
+            }
+            boundaries.push(0.5 * (u0 + u1));
+        }
+        let mut cuts = vec![lo];
+        cuts.extend(&boundaries);
+        cuts.push(hi);
+        let shift = d.centred.means[0];
+        let significant = cuts
+            .windows(2)
+            .filter(|w| excess(0.5 * (w[0] + w[1])) > 0.0)
+            .map(|w| (shift + w[0], shift + w[1]))
+            .collect();
+        DifferenceRegion {
+            a,
+            b,
+            boundaries: boundaries.iter().map(|u| shift + u).collect(),
+            significant,
+        }
     }
 
     /// Line b minus line a at the covariate's mean, with its own df.

@@ -296,7 +296,7 @@ pub fn lines_table(
                 ),
                 cell(p_value(diff.p), key("p")),
             ]);
-            if let Some(region) = s.regions.get(i).filter(|_| !own_df) {
+            if let Some(region) = s.regions.get(i) {
                 row.push(text(region_text(region, cov)));
             }
             row
@@ -314,26 +314,25 @@ pub fn lines_table(
         col(format!("{} CI", confidence_label(o.alpha)), true),
         col("p (unadjusted)", true),
     ]);
-    let footnotes = match own_df {
-        true => vec![format!(
-            "Each difference is one line minus the other at the stated value of {name}, from the mixed model with one slope per group, each with its own {} df; p-values and intervals are not adjusted for the number of pairs.",
+    let source = match own_df {
+        true => format!(
+            "from the mixed model with one slope per group, each with its own {} df",
             ddf_name(o)
-        )],
-        false => {
-            columns.push(col(format!("Differ at α where {name} is"), false));
-            vec![
-                format!(
-                    "Each difference is one line minus the other at the stated value of {name}, from the separate-slopes model ({} df); p-values and intervals are not adjusted for the number of pairs.",
-                    df_text(s.df)
-                ),
-                format!(
-                    "The last column gives the values of {name}, within the observed range {} to {}, where the two lines differ at α (Johnson and Neyman 1936); boundaries outside that range would be extrapolation and are not used.",
-                    fixed(cov.min, cov.decimals),
-                    fixed(cov.max, cov.decimals)
-                ),
-            ]
-        }
+        ),
+        false => format!("from the separate-slopes model ({} df)", df_text(s.df)),
     };
+    let mut footnotes = vec![format!(
+        "Each difference is one line minus the other at the stated value of {name}, {source}; p-values and intervals are not adjusted for the number of pairs."
+    )];
+    if !s.regions.is_empty() {
+        columns.push(col(format!("Differ at α where {name} is"), false));
+        footnotes.push(format!(
+            "The last column gives the values of {name}, within the observed range {} to {}, where the two lines differ at α (Johnson and Neyman 1936{}); boundaries outside that range would be extrapolation and are not used.",
+            fixed(cov.min, cov.decimals),
+            fixed(cov.max, cov.decimals),
+            if own_df { ", each value with its own df" } else { "" }
+        ));
+    }
     TableView {
         id: format!("{}-lines", o.id),
         caption: format!(
