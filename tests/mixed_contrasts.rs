@@ -7,15 +7,13 @@
 
 mod documents;
 
-use documents::{assert_close, build, build_report, contrast_named, open, reference_number};
+use documents::{
+    assert_close, build, build_report, contrast_named, open, reference_json, reference_number,
+};
 use serde_json::Value;
 
 fn reference() -> Value {
-    let path = format!(
-        "{}/tests/reference/mixed_contrasts.json",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    serde_json::from_str(&std::fs::read_to_string(path).expect("reference")).expect("json")
+    reference_json("mixed_contrasts.json")
 }
 
 fn oats_block(contrasts: &str, ddf: &str) -> String {

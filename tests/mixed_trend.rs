@@ -8,16 +8,12 @@
 
 mod documents;
 
-use documents::{assert_close, build, build_report, open};
+use documents::{assert_close, build, build_report, open, reference_json};
 use serde_json::Value;
 use std::cell::Cell;
 
 fn reference() -> Value {
-    let path = format!(
-        "{}/tests/reference/mixed_trend.json",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    serde_json::from_str(&std::fs::read_to_string(path).expect("reference")).expect("json")
+    reference_json("mixed_trend.json")
 }
 
 fn oats_block(trend: &str, ddf: &str) -> String {

@@ -113,6 +113,20 @@ impl Model {
         ))
     }
 
+    /// The treatment factor a `trend` runs over.
+    pub fn trend_factor(
+        &self,
+        doc: &Document,
+        t: &crate::doc::block_trend::TrendSpec,
+    ) -> Result<usize, Diagnostic> {
+        self.index_of(&t.factor)
+            .filter(|f| !self.is_block(*f))
+            .ok_or_else(|| {
+                self.not_a_factor(doc, t.line, t.column, &t.factor)
+                    .hint("a trend runs over the levels of a fixed treatment factor of `model`")
+            })
+    }
+
     /// The factors not named as blocks, in model order.
     pub fn treatment_factors(&self) -> Vec<usize> {
         (0..self.factor_names.len())

@@ -89,16 +89,7 @@ impl Planning<'_> {
         let Some(t) = &spec.trend else {
             return Ok(None);
         };
-        let Some(f) = self
-            .model
-            .index_of(&t.factor)
-            .filter(|f| !self.model.is_block(*f))
-        else {
-            return Err(self
-                .model
-                .not_a_factor(doc, t.line, t.column, &t.factor)
-                .hint("a trend runs over a treatment factor's levels"));
-        };
+        let f = self.model.trend_factor(doc, t)?;
         let means = self.level_means(f)?;
         crate::analysis::trend::trend(doc, spec, &means, (self.fitted.mse(), None), self.alpha)
     }

@@ -28,16 +28,7 @@ pub(super) fn trend(a: &Analysed, errors: &Errors<'_>) -> Result<Option<TrendDet
     let Some(t) = &spec.trend else {
         return Ok(None);
     };
-    let Some(f) = a
-        .model
-        .index_of(&t.factor)
-        .filter(|f| !a.model.is_block(*f))
-    else {
-        return Err(a
-            .model
-            .not_a_factor(doc, t.line, t.column, &t.factor)
-            .hint("a trend runs over the levels of a fixed treatment factor of `model`"));
-    };
+    let f = a.model.trend_factor(doc, t)?;
     let count = |fixed: &[Option<usize>]| a.count(fixed);
     let estimating = a.estimating(&count);
     let means = MixedLevelMeans::new(&estimating, f, spec.ddf);
