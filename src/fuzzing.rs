@@ -188,7 +188,7 @@ fn factorial_scan(data: &[u8], table: &crate::data::Table, format: &crate::data:
         .map(|s| crate::data::factorial_from_scan(s, 2));
     match (whole, chunked) {
         (Ok(w), Ok(c)) => {
-            assert_eq!(w.levels, c.levels, "factorial levels");
+            assert_eq!(w.layout.levels, c.layout.levels, "factorial levels");
             assert_eq!(w.rows(), c.rows(), "factorial rows");
             assert_eq!(w.lines, c.lines, "factorial lines");
             assert_eq!(w.excluded, c.excluded, "factorial exclusions");

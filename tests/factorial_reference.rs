@@ -68,7 +68,7 @@ fn load(case: &Value) -> Loaded {
         .collect();
     Loaded {
         layout: Layout {
-            levels: data.levels.iter().map(Vec::len).collect(),
+            levels: data.layout.levels.iter().map(Vec::len).collect(),
             rows: data.rows(),
         },
         y: data.offsets.iter().map(|o| o + data.origin).collect(),

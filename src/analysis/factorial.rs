@@ -71,7 +71,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         from_cells,
         rereading,
     } = read::read_with_covariates(&errors, block, (request.data, request.display_path), &model)?;
-    let levels: Vec<usize> = data.levels.iter().map(Vec::len).collect();
+    let levels: Vec<usize> = data.layout.levels.iter().map(Vec::len).collect();
     errors.two_levels_each(&model.factor_names, &levels)?;
     if let Some(c) = &centred {
         let observed = data
@@ -106,7 +106,7 @@ pub(super) fn run_factorial(request: Request<'_>) -> Analysis {
         fitted.rank_deficient,
         (&spec.data.value, errors.reused.as_ref()),
     ));
-    let treatment = TreatmentCells::new(&data.cells, model.treatment_factors(), &levels);
+    let treatment = TreatmentCells::new(&data.layout.cells, model.treatment_factors(), &levels);
     // Read from the cells' sums, the treatment cells come from them whether
     // or not the rows were kept, so that both ways give the same bits.
     let source = match from_cells {
@@ -223,7 +223,7 @@ impl Analysed {
                     .collect();
                 let model = super::transformation::CellModel {
                     cell_of: observed.cell_of,
-                    cells: self.data.cells.len(),
+                    cells: self.data.layout.cells.len(),
                     design: Some(&self.fitted.unweighted),
                 };
                 let line = |i: usize| observed.lines[i];
@@ -254,7 +254,7 @@ impl Analysed {
         let observed = self.data.observed()?;
         let detail = covariates::Adjusting {
             described: covariates::Described::new(
-                (&self.data.levels, observed, self.data.origin),
+                (&self.data.layout.levels, observed, self.data.origin),
                 &self.model,
                 centred,
                 &self.treatment,
@@ -393,7 +393,7 @@ impl Analysed {
             .model
             .factor_names
             .into_iter()
-            .zip(data.levels)
+            .zip(data.layout.levels)
             .enumerate()
             .map(|(i, (name, levels))| Factor {
                 name,

@@ -81,7 +81,10 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
     )?;
     let units = units::units(&data, random, |f| names.iter().position(|n| n == f));
     let fixed_count = model.factor_names.len();
-    let levels: Vec<usize> = data.levels[..fixed_count].iter().map(Vec::len).collect();
+    let levels: Vec<usize> = data.layout.levels[..fixed_count]
+        .iter()
+        .map(Vec::len)
+        .collect();
     let layout = Layout {
         levels: levels.clone(),
         rows: (0..data.offsets.len())
@@ -238,7 +241,7 @@ impl Analysed {
             });
         }
         let names = self.names();
-        let labels = &self.data.levels;
+        let labels = &self.data.layout.levels;
         let a = strata::analyse(&StrataInput {
             y: &self.data.offsets,
             shift: self.data.origin,
@@ -315,7 +318,7 @@ impl Analysed {
         let (families, cell_letters) = self.families(errors, &terms)?;
         let data = &self.data;
         let treatments = self.model.treatment_factors();
-        let cells = TreatmentCells::new(&data.cells, treatments.clone(), &levels_of(data));
+        let cells = TreatmentCells::new(&data.layout.cells, treatments.clone(), &levels_of(data));
         let (checks, spread_note) = self.checked(spec, &cells);
         let mut notes = match &self.structured {
             Some(s) => structured::notes(&s.detail, spec.ddf),
@@ -397,7 +400,11 @@ impl Analysed {
         let refit = |design: &FixedDesign| self.refit(spec, design);
         let covariates = covariates::MixedCovariates {
             described: Described::new(
-                (&self.data.levels, self.data.observed(), self.data.origin),
+                (
+                    &self.data.layout.levels,
+                    self.data.observed(),
+                    self.data.origin,
+                ),
                 &self.model,
                 centred,
                 cells,
@@ -547,7 +554,7 @@ impl Analysed {
                 } else {
                     Role::Block
                 },
-                levels: self.data.levels[i].clone(),
+                levels: self.data.layout.levels[i].clone(),
             })
             .collect()
     }
@@ -617,7 +624,7 @@ impl Analysed {
             .map(|f| {
                 (
                     self.model.factor_names[f].clone(),
-                    self.data.levels[f].clone(),
+                    self.data.layout.levels[f].clone(),
                 )
             })
             .collect();
@@ -639,7 +646,7 @@ impl Analysed {
             ddf: self.ddf,
             terms: &self.model.terms,
             levels: &self.layout.levels,
-            labels: &self.data.levels[..self.layout.levels.len()],
+            labels: &self.data.layout.levels[..self.layout.levels.len()],
             model: &self.model,
             count,
             origin: self.data.origin,
@@ -767,5 +774,5 @@ fn fixed_cells(layout: &Layout) -> (Vec<usize>, usize) {
 
 /// Levels of every factor of the data (fixed and random-only).
 fn levels_of(data: &FactorialRows) -> Vec<usize> {
-    data.levels.iter().map(Vec::len).collect()
+    data.layout.levels.iter().map(Vec::len).collect()
 }

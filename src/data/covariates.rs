@@ -47,14 +47,14 @@ pub fn split_covariates(
     names: &[&str],
     decimal_comma: bool,
 ) -> Result<(FactorialRows, Covariates), DataError> {
-    let factors = data.levels.len() - names.len();
+    let factors = data.layout.levels.len() - names.len();
     let mut values = vec![Vec::with_capacity(data.offsets.len()); names.len()];
     let mut origins: Vec<Option<Number>> = vec![None; names.len()];
     let mut decimals = vec![0u32; names.len()];
     // Each covariate level's number, read once.
     let mut numbers: Vec<Vec<Option<Number>>> = (0..names.len())
         .map(|c| {
-            data.levels[factors + c]
+            data.layout.levels[factors + c]
                 .iter()
                 .map(|t| read_number(t, decimal_comma))
                 .collect()
@@ -65,7 +65,7 @@ pub fn split_covariates(
         for (c, name) in names.iter().enumerate() {
             let level = row[factors + c];
             let Some(number) = numbers[c][level] else {
-                let text = &data.levels[factors + c][level];
+                let text = &data.layout.levels[factors + c][level];
                 return Err(DataError::at(
                     data.lines[i],
                     format!("covariate `{name}` must be a number, found `{text}`"),
@@ -97,6 +97,7 @@ fn without_covariate_columns(mut data: FactorialRows, factors: usize) -> Factori
     let mut cells: Vec<Vec<usize>> = Vec::new();
     let mut index: std::collections::BTreeMap<Vec<usize>, usize> = Default::default();
     let old_to_new: Vec<usize> = data
+        .layout
         .cells
         .iter()
         .map(|cell| {
@@ -117,8 +118,8 @@ fn without_covariate_columns(mut data: FactorialRows, factors: usize) -> Factori
             renumbered.len() - 1
         });
     }
-    data.cells = renumbered;
-    data.levels.truncate(factors);
+    data.layout.cells = renumbered;
+    data.layout.levels.truncate(factors);
     data
 }
 

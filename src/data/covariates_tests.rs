@@ -13,8 +13,11 @@ fn covariate_values_are_exact_offsets_and_cells_merge_over_the_factors() {
     // 0.3 exactly before the final rounding.
     let data = read("g,x,y\na,1000000000000.1,1\nb,1000000000000.4,2\na,1000000000000.2,3\nb,,4\n");
     let (data, cov) = split_covariates(data, &["x"], false).expect("numbers");
-    assert_eq!(data.levels, vec![vec!["a".to_string(), "b".to_string()]]);
-    assert_eq!(data.cells, vec![vec![0], vec![1]]);
+    assert_eq!(
+        data.layout.levels,
+        vec![vec!["a".to_string(), "b".to_string()]]
+    );
+    assert_eq!(data.layout.cells, vec![vec![0], vec![1]]);
     assert_eq!(data.cell_of, vec![0, 1, 0]);
     assert_eq!(cov.origins, vec![1000000000000.1]);
     let expected = [0.0, 0.3, 0.1];

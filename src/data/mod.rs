@@ -413,6 +413,17 @@ pub fn summary_rows(
     Ok(rows)
 }
 
+/// The levels of several crossed factors and the combinations of them the
+/// data hold, shared by the row and the cell forms of such data.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CellLayout {
+    /// Per factor, its levels in order of first appearance.
+    pub levels: Vec<Vec<String>>,
+    /// The distinct combinations of level indices (full cells), in order of
+    /// first appearance.
+    pub cells: Vec<Vec<usize>>,
+}
+
 /// A response with several crossed factors, one row per observation. Rows
 /// with the same levels share one entry of `cells`, so a row costs one
 /// index, one value and one line however many factors there are. The
@@ -420,11 +431,7 @@ pub fn summary_rows(
 /// transformations) read this; the factorial fit reads [`FactorialData`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct FactorialRows {
-    /// Per factor, its levels in order of first appearance.
-    pub levels: Vec<Vec<String>>,
-    /// The distinct combinations of level indices (full cells), in order of
-    /// first appearance.
-    pub cells: Vec<Vec<usize>>,
+    pub layout: CellLayout,
     /// Per observation, its cell.
     pub cell_of: Vec<usize>,
     /// Per observation, the response as an offset from `origin`.
@@ -440,7 +447,7 @@ impl FactorialRows {
     /// The observations with their cells, borrowed.
     pub fn observed(&self) -> Observed<'_> {
         Observed {
-            cells: &self.cells,
+            cells: &self.layout.cells,
             cell_of: &self.cell_of,
             offsets: &self.offsets,
             lines: &self.lines,
@@ -449,14 +456,14 @@ impl FactorialRows {
 
     /// Observation i's level index for each factor.
     pub fn row(&self, i: usize) -> &[usize] {
-        &self.cells[self.cell_of[i]]
+        &self.layout.cells[self.cell_of[i]]
     }
 
     /// Every observation's levels, one vector each (for small layouts).
     pub fn rows(&self) -> Vec<Vec<usize>> {
         self.cell_of
             .iter()
-            .map(|&c| self.cells[c].clone())
+            .map(|&c| self.layout.cells[c].clone())
             .collect()
     }
 }
@@ -469,11 +476,7 @@ impl FactorialRows {
 /// input has none.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FactorialData {
-    /// Per factor, its levels in order of first appearance.
-    pub levels: Vec<Vec<String>>,
-    /// The distinct combinations of level indices (full cells), in order of
-    /// first appearance.
-    pub cells: Vec<Vec<usize>>,
+    pub layout: CellLayout,
     /// Per full cell: n, the mean as an offset from `origin`, and the
     /// within-cell sum of squares.
     pub cell_summaries: Vec<GroupSummary>,
@@ -527,7 +530,7 @@ impl FactorialData {
     /// The observations, when the data had them.
     pub fn observed(&self) -> Option<Observed<'_>> {
         self.observations.as_ref().map(|o| Observed {
-            cells: &self.cells,
+            cells: &self.layout.cells,
             cell_of: &o.cell_of,
             offsets: &o.offsets,
             lines: &o.lines,
@@ -536,8 +539,8 @@ impl FactorialData {
 
     /// The cells of observations read one by one, keeping them.
     pub fn from_rows(rows: FactorialRows) -> FactorialData {
-        let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); rows.cells.len()];
-        let mut cell_lines = vec![usize::MAX; rows.cells.len()];
+        let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); rows.layout.cells.len()];
+        let mut cell_lines = vec![usize::MAX; rows.layout.cells.len()];
         for ((&c, &y), &line) in rows.cell_of.iter().zip(&rows.offsets).zip(&rows.lines) {
             by_cell[c].push(y);
             cell_lines[c] = cell_lines[c].min(line);
@@ -548,8 +551,7 @@ impl FactorialData {
                 .map(|v| GroupSummary::from_values(v))
                 .collect(),
             cell_lines,
-            levels: rows.levels,
-            cells: rows.cells,
+            layout: rows.layout,
             observations: Some(ObservationColumns {
                 cell_of: rows.cell_of,
                 offsets: rows.offsets,
@@ -569,22 +571,13 @@ impl FactorialData {
             .cells
             .iter()
             .map(|c| {
-                c.levels
-                    .iter()
-                    .zip(levels.iter_mut())
-                    .map(|(name, known)| match known.iter().position(|l| l == name) {
-                        Some(i) => i,
-                        None => {
-                            known.push(name.clone());
-                            known.len() - 1
-                        }
-                    })
+                (c.levels.iter().zip(levels.iter_mut()))
+                    .map(|(name, known)| level_index(known, name))
                     .collect()
             })
             .collect();
         FactorialData {
-            levels,
-            cells,
+            layout: CellLayout { levels, cells },
             cell_summaries: read
                 .cells
                 .iter()
@@ -622,11 +615,10 @@ pub fn factorial_response(
 /// response, as `factorial_response` orders them.
 pub fn factorial_from_scan(scanned: scan::Scanned, factors: usize) -> FactorialRows {
     let order = cells_in_order(&scanned);
-    let (levels, cells) = cell_rows(&scanned, &order, factors);
+    let layout = cell_rows(&scanned, &order, factors);
     let (cell_of, offsets, lines) = rows_in_file_order(&scanned, &order);
     FactorialRows {
-        levels,
-        cells,
+        layout,
         cell_of,
         offsets,
         lines,
@@ -646,7 +638,7 @@ pub fn factorial_cells_from_scan(
     factors: usize,
 ) -> (FactorialData, Vec<Option<usize>>) {
     let order = cells_in_order(&scanned);
-    let (levels, cells) = cell_rows(&scanned, &order, factors);
+    let layout = cell_rows(&scanned, &order, factors);
     let mut cell_of_level = vec![None; scanned.levels.len()];
     for (c, &l) in order.iter().enumerate() {
         cell_of_level[l] = Some(c);
@@ -661,8 +653,7 @@ pub fn factorial_cells_from_scan(
         }
     });
     let data = FactorialData {
-        levels,
-        cells,
+        layout,
         cell_summaries: order.iter().map(|&l| scanned.levels[l].summary).collect(),
         cell_lines: (order.iter())
             .map(|&l| scanned.levels[l].first_line.unwrap_or(0))
@@ -686,31 +677,29 @@ fn cells_in_order(scanned: &scan::Scanned) -> Vec<usize> {
 
 /// Each factor's levels in order of first appearance, and each cell's
 /// level indices.
-fn cell_rows(
-    scanned: &scan::Scanned,
-    order: &[usize],
-    factors: usize,
-) -> (Vec<Vec<String>>, Vec<Vec<usize>>) {
+fn cell_rows(scanned: &scan::Scanned, order: &[usize], factors: usize) -> CellLayout {
     let mut levels: Vec<Vec<String>> = vec![Vec::new(); factors];
     let cells = order
         .iter()
         .map(|&l| {
-            scan::cell_levels(&scanned.levels[l].name)
-                .into_iter()
+            (scan::cell_levels(&scanned.levels[l].name).into_iter())
                 .zip(levels.iter_mut())
-                .map(
-                    |(name, known)| match known.iter().position(|l| *l == name) {
-                        Some(i) => i,
-                        None => {
-                            known.push(name);
-                            known.len() - 1
-                        }
-                    },
-                )
+                .map(|(name, known)| level_index(known, &name))
                 .collect()
         })
         .collect();
-    (levels, cells)
+    CellLayout { levels, cells }
+}
+
+/// `name`'s place among the levels `known` so far, added at the end when new.
+fn level_index(known: &mut Vec<String>, name: &str) -> usize {
+    match known.iter().position(|l| l == name) {
+        Some(i) => i,
+        None => {
+            known.push(name.to_string());
+            known.len() - 1
+        }
+    }
 }
 
 /// The kept values of the cells `order` as one row per observation in file

@@ -81,7 +81,7 @@ fn the_chunked_factorial_reading_matches_the_table_reading() {
     let scanned =
         scan::scan_file(scan::Source::Memory(text.as_bytes()), &spec, 256, 2).expect("scan");
     let chunked = factorial_from_scan(scanned, 2);
-    assert_eq!(chunked.levels, whole.levels);
+    assert_eq!(chunked.layout.levels, whole.layout.levels);
     assert_eq!(chunked.rows(), whole.rows());
     assert_eq!(chunked.lines, whole.lines);
     assert_eq!(chunked.offsets, whole.offsets);

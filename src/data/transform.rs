@@ -120,6 +120,7 @@ pub fn transform_factorial(
 ) -> Result<Vec<Vec<f64>>, DataError> {
     let origin = data.origin;
     let mut sums: Vec<Vec<(usize, crate::stats::sum::NeumaierSum)>> = data
+        .layout
         .levels
         .iter()
         .map(|l| vec![(0, Default::default()); l.len()])
@@ -128,7 +129,7 @@ pub fn transform_factorial(
     let mut z = Vec::with_capacity(data.offsets.len());
     for (i, (&d, &line)) in data.offsets.iter().zip(&data.lines).enumerate() {
         let y = origin + d;
-        for (f, &level) in data.cells[data.cell_of[i]].iter().enumerate() {
+        for (f, &level) in data.layout.cells[data.cell_of[i]].iter().enumerate() {
             sums[f][level].0 += 1;
             sums[f][level].1.add(y);
         }

@@ -57,8 +57,13 @@ pub(super) fn design_notes(
 fn level_spellings(data: &FactorialData, model: &Model) -> Vec<String> {
     // Each level's first line: that of the first cell holding it (cells
     // are in order of first appearance).
-    let mut first: Vec<Vec<usize>> = data.levels.iter().map(|l| vec![0; l.len()]).collect();
-    for (cell, &line) in data.cells.iter().zip(&data.cell_lines) {
+    let mut first: Vec<Vec<usize>> = data
+        .layout
+        .levels
+        .iter()
+        .map(|l| vec![0; l.len()])
+        .collect();
+    for (cell, &line) in data.layout.cells.iter().zip(&data.cell_lines) {
         for (f, &l) in cell.iter().enumerate() {
             if first[f][l] == 0 {
                 first[f][l] = line;
@@ -66,7 +71,7 @@ fn level_spellings(data: &FactorialData, model: &Model) -> Vec<String> {
         }
     }
     let mut warnings = Vec::new();
-    for (f, levels) in data.levels.iter().enumerate() {
+    for (f, levels) in data.layout.levels.iter().enumerate() {
         let named: Vec<(&str, usize)> = levels
             .iter()
             .map(String::as_str)
@@ -102,12 +107,15 @@ pub(super) fn reused_block_labels(data: &FactorialData, model: &Model) -> Option
             {
                 continue;
             }
-            let (a, b) = (data.levels[outer].len(), data.levels[inner].len());
+            let (a, b) = (
+                data.layout.levels[outer].len(),
+                data.layout.levels[inner].len(),
+            );
             let mut counts = vec![0usize; a * b];
-            for (row, cell) in data.cells.iter().zip(&data.cell_summaries) {
+            for (row, cell) in data.layout.cells.iter().zip(&data.cell_summaries) {
                 counts[row[outer] * b + row[inner]] += cell.n;
             }
-            if counts.iter().all(|&c| c >= 2) && a * b <= data.cells.len() {
+            if counts.iter().all(|&c| c >= 2) && a * b <= data.layout.cells.len() {
                 let (o, n) = (&model.factor_names[outer], &model.factor_names[inner]);
                 return Some(format!(
                     "every level of `{n}` occurs in every level of `{o}`, with several plots each: if `{n}` is numbered afresh within each `{o}` (so `{n}` 1 of `{o}` 1 and `{n}` 1 of `{o}` 2 are different blocks), the blocks are nested and the model reads them as crossed. Write the nested term `{o}:{n}` in the model in place of `{n}`, or give every block a label of its own (e.g. 1-1, 2-1)"

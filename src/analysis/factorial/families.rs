@@ -205,7 +205,8 @@ impl Comparing<'_> {
         // Observations at level l (within the slice): summed over the full
         // cells, each holding its cell's n rows.
         let count = |l: usize| {
-            data.cells
+            data.layout
+                .cells
                 .iter()
                 .zip(&fitted.cell_summaries)
                 .filter(|(r, _)| slice.holds(r, l))
@@ -216,7 +217,7 @@ impl Comparing<'_> {
             .iter()
             .enumerate()
             .map(|(l, (v, var, _))| {
-                let label = data.levels[f][l].clone();
+                let label = data.layout.levels[f][l].clone();
                 self.mean_row(label, count(l), data.origin + v, (mse * var).sqrt())
             })
             .collect();
@@ -247,9 +248,12 @@ impl Comparing<'_> {
             .iter()
             .find(|r| r.factors == vec![f])
             .map_or(f64::NAN, |r| r.p);
-        let within = slice
-            .within
-            .map(|(w, s)| format!("{}={}", self.model.factor_names[w], data.levels[w][s]));
+        let within = slice.within.map(|(w, s)| {
+            format!(
+                "{}={}",
+                self.model.factor_names[w], data.layout.levels[w][s]
+            )
+        });
         let protected = self.errors.spec.protected && within.is_none();
         let name = &self.model.factor_names[f];
         self.family(name, within, means, family, (protected, protect_p))
@@ -292,7 +296,7 @@ impl Comparing<'_> {
                 let label = treatment
                     .iter()
                     .zip(&c.levels)
-                    .map(|(&f, &l)| self.data.levels[f][l].clone())
+                    .map(|(&f, &l)| self.data.layout.levels[f][l].clone())
                     .collect::<Vec<_>>()
                     .join(" × ");
                 self.mean_row(label, c.n, c.mean, (mse / c.n as f64).sqrt())

@@ -75,7 +75,7 @@ impl Fitted {
             _ => {
                 let layout = Layout {
                     levels: levels.to_vec(),
-                    rows: data.cells.clone(),
+                    rows: data.layout.cells.clone(),
                 };
                 let weights = cell_summaries.iter().map(|c| (c.n as f64).sqrt()).collect();
                 let within = neumaier(cell_summaries.iter().map(|c| c.ss));

@@ -73,14 +73,17 @@ pub(super) fn complete_table(
             "ranks need one row per observation",
         ));
     };
-    let (k, b) = (data.levels[treatment].len(), data.levels[block].len());
+    let (k, b) = (
+        data.layout.levels[treatment].len(),
+        data.layout.levels[block].len(),
+    );
     let mut cells: Vec<Vec<Vec<usize>>> = vec![vec![Vec::new(); k]; b];
     for i in 0..observed.offsets.len() {
         let row = observed.row(i);
         cells[row[block]][row[treatment]].push(i);
     }
-    let level = |t: usize| data.levels[treatment][t].as_str();
-    let block_name = |j: usize| data.levels[block][j].as_str();
+    let level = |t: usize| data.layout.levels[treatment][t].as_str();
+    let block_name = |j: usize| data.layout.levels[block][j].as_str();
     let incomplete: Vec<String> = (0..b)
         .filter_map(|j| {
             let missing: Vec<String> = (0..k)
@@ -172,7 +175,7 @@ pub(super) fn test(
         .map(|t| {
             let column: Vec<f64> = table.iter().map(|row| data.origin + row[t]).collect();
             RankedLevel {
-                name: data.levels[treatment][t].clone(),
+                name: data.layout.levels[treatment][t].clone(),
                 blocks: table.len(),
                 rank_sum: f.rank_sums[t],
                 mean_rank: f.mean_ranks[t],

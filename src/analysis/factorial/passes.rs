@@ -96,7 +96,7 @@ impl Checking<'_> {
     /// The treatment cells that hold observations, numbered from zero, as
     /// each full cell's group; and how many there are.
     fn treatment_groups(&self) -> (Vec<usize>, usize) {
-        let cells = self.data.cells.len();
+        let cells = self.data.layout.cells.len();
         let mut held = vec![false; self.treatment.combos.len()];
         for c in 0..cells {
             held[self.treatment.of(c)] = true;
@@ -142,8 +142,8 @@ impl Checking<'_> {
         (observed.outliers.iter())
             .map(|o| OutlierRow {
                 line: o.line,
-                level: (data.cells[o.level].iter().enumerate())
-                    .map(|(f, &l)| data.levels[f][l].clone())
+                level: (data.layout.cells[o.level].iter().enumerate())
+                    .map(|(f, &l)| data.layout.levels[f][l].clone())
                     .collect::<Vec<_>>()
                     .join(" × "),
                 value: data.origin + o.offset,
@@ -213,8 +213,8 @@ fn by_first_factor(
 ) -> (Fitting, Option<Note>) {
     let first = checking.treatment.factors.first().copied().unwrap_or(0);
     let data = checking.data;
-    let group_of: Vec<usize> = data.cells.iter().map(|row| row[first]).collect();
-    let fit = checking.fitting(group_of, data.levels[first].len());
+    let group_of: Vec<usize> = data.layout.cells.iter().map(|row| row[first]).collect();
+    let fit = checking.fitting(group_of, data.layout.levels[first].len());
     let single = by_treatment.iter().filter(|s| s.n < 2).count();
     let note = first_factor_note(&checking.factor_names[first], single, by_treatment.len());
     (fit, Some(note))

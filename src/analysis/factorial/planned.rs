@@ -58,7 +58,7 @@ impl Planning<'_> {
             .collect();
         Ok(LevelMeans {
             factor: &self.model.factor_names[f],
-            labels: &self.data.levels[f],
+            labels: &self.data.layout.levels[f],
             means,
             covariance,
             df: fitted.residual_df as f64,
@@ -73,7 +73,12 @@ impl Planning<'_> {
         let candidates: Vec<(String, Vec<String>)> = model
             .treatment_factors()
             .into_iter()
-            .map(|f| (model.factor_names[f].clone(), self.data.levels[f].clone()))
+            .map(|f| {
+                (
+                    model.factor_names[f].clone(),
+                    self.data.layout.levels[f].clone(),
+                )
+            })
             .collect();
         let Some(name) = contrast_factor(doc, spec, &candidates)? else {
             return Ok(None);

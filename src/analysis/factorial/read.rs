@@ -13,12 +13,12 @@ use crate::data::scan::{ScanSpec, scan_table};
 use crate::data::summary_cells::summary_cells;
 use crate::data::transform::transform_factorial;
 use crate::data::{
-    FactorialData, FactorialRows, factorial_cells_from_scan, factorial_from_scan,
+    CellLayout, FactorialData, FactorialRows, factorial_cells_from_scan, factorial_from_scan,
     factorial_response,
 };
 use crate::diag::Diagnostic;
-use crate::doc::Block;
 use crate::doc::block::{AnovaSpec, CheckSet, Omnibus};
+use crate::doc::{Block, Document};
 use crate::outcome::linear::InputForm;
 use crate::provenance::Input;
 
@@ -135,11 +135,7 @@ fn read_cells<'a>(
     let (mut data, cells) = factorial_cells_from_scan(scanned, factors.len());
     data.excluded.extend(ruled_out);
     data.excluded.sort_by_key(|e| e.line);
-    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
-    check_labels(doc, spec, &all_levels)?;
-    for lv in data.levels.iter_mut() {
-        apply_labels(lv, &spec.labels);
-    }
+    relabel(doc, spec, &mut data.layout)?;
     let rereads = data.observations.is_none() && spec.checks != CheckSet::Summary;
     Ok(Observations {
         data,
@@ -182,11 +178,7 @@ fn read_summaries<'a>(
     let mut data = FactorialData::from_summaries(read, factors.len());
     data.excluded = ruled_out;
     data.excluded.sort_by_key(|e| e.line);
-    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
-    check_labels(doc, spec, &all_levels)?;
-    for lv in data.levels.iter_mut() {
-        apply_labels(lv, &spec.labels);
-    }
+    relabel(doc, spec, &mut data.layout)?;
     Ok(Observations {
         data,
         streamed: None,
@@ -273,10 +265,16 @@ pub(crate) fn read_observations(
         }
     };
     data.excluded.sort_by_key(|e| e.line);
-    let all_levels: Vec<&str> = data.levels.iter().flatten().map(String::as_str).collect();
+    relabel(doc, spec, &mut data.layout)?;
+    Ok((data, streamed))
+}
+
+/// Checks that every level `labels` renames is in the data, then renames.
+fn relabel(doc: &Document, spec: &AnovaSpec, layout: &mut CellLayout) -> Result<(), Diagnostic> {
+    let all_levels: Vec<&str> = layout.levels.iter().flatten().map(String::as_str).collect();
     check_labels(doc, spec, &all_levels)?;
-    for lv in data.levels.iter_mut() {
+    for lv in layout.levels.iter_mut() {
         apply_labels(lv, &spec.labels);
     }
-    Ok((data, streamed))
+    Ok(())
 }

@@ -74,7 +74,7 @@ impl Residuals {
                 flagged.offer(t.abs(), (i, t));
             }
         }
-        flagged_rows((observed, &data.levels, data.origin), flagged)
+        flagged_rows((observed, &data.layout.levels, data.origin), flagged)
     }
 }
 

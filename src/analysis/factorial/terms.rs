@@ -73,7 +73,7 @@ pub(super) fn drop_confounded(
 ) -> Result<Vec<Note>, Diagnostic> {
     let layout = Layout {
         levels: levels.to_vec(),
-        rows: data.cells.clone(),
+        rows: data.layout.cells.clone(),
     };
     // The factor terms, by their index in the model.
     let factor_terms: Vec<usize> = (0..model.terms.len())
@@ -122,6 +122,7 @@ pub(super) fn empty_cells(model: &Model, data: &FactorialData, levels: &[usize])
     for t in model.terms.iter().filter(|t| t.len() > 1) {
         for combo in combinations(t, levels) {
             let present = data
+                .layout
                 .cells
                 .iter()
                 .any(|r| t.iter().zip(&combo).all(|(&f, &l)| r[f] == l));
@@ -131,7 +132,7 @@ pub(super) fn empty_cells(model: &Model, data: &FactorialData, levels: &[usize])
             let label = t
                 .iter()
                 .zip(&combo)
-                .map(|(&f, &l)| format!("{}={}", model.factor_names[f], data.levels[f][l]))
+                .map(|(&f, &l)| format!("{}={}", model.factor_names[f], data.layout.levels[f][l]))
                 .collect::<Vec<_>>()
                 .join(", ");
             if !empty.contains(&label) {

@@ -29,7 +29,7 @@ pub(super) fn repeated(
 ) -> Result<RepeatedDetail, Refusal> {
     let n = data.offsets.len();
     let subject_of: Vec<usize> = (0..n).map(|i| data.row(i)[subject]).collect();
-    let subjects = data.levels[subject].len();
+    let subjects = data.layout.levels[subject].len();
     let fixed = model.factor_names.len();
     let mut within = Vec::new();
     let mut between = Vec::new();
@@ -44,7 +44,7 @@ pub(super) fn repeated(
                         model.factor_names[f],
                         examples
                             .iter()
-                            .map(|&s| format!("`{}`", data.levels[subject][s]))
+                            .map(|&s| format!("`{}`", data.layout.levels[subject][s]))
                             .collect::<Vec<_>>()
                             .join(", ")
                     ),
@@ -101,7 +101,7 @@ pub(super) fn repeated(
         incomplete: incomplete
             .iter()
             .take(LISTED)
-            .map(|&s| data.levels[subject][s].clone())
+            .map(|&s| data.layout.levels[subject][s].clone())
             .collect(),
         incomplete_count: incomplete.len(),
         univariate,
@@ -155,7 +155,10 @@ struct Occasions {
 
 impl Occasions {
     fn new(data: &FactorialRows, within: &[usize], subject_of: &[usize], subjects: usize) -> Self {
-        let counts: Vec<usize> = within.iter().map(|&f| data.levels[f].len()).collect();
+        let counts: Vec<usize> = within
+            .iter()
+            .map(|&f| data.layout.levels[f].len())
+            .collect();
         let k: usize = counts.iter().product();
         let mut cells: Vec<Vec<Option<f64>>> = vec![vec![None; k]; subjects];
         let mut twice = vec![false; subjects];
@@ -231,12 +234,12 @@ fn univariate(
         .iter()
         .filter(|t| !t.is_empty() && t.iter().all(|f| between.contains(f)))
         .map(|t| {
-            let levels: usize = t.iter().map(|&f| data.levels[f].len()).product();
+            let levels: usize = t.iter().map(|&f| data.layout.levels[f].len()).product();
             let level_of = complete
                 .iter()
                 .map(|&s| {
                     t.iter()
-                        .fold(0, |acc, &f| acc * data.levels[f].len() + level(s, f))
+                        .fold(0, |acc, &f| acc * data.layout.levels[f].len() + level(s, f))
                 })
                 .collect();
             (t.clone(), BetweenTerm { levels, level_of })

@@ -63,7 +63,11 @@ impl Checked<'_> {
             }
         }
         flagged_rows(
-            (self.data.observed(), &self.data.levels, self.data.origin),
+            (
+                self.data.observed(),
+                &self.data.layout.levels,
+                self.data.origin,
+            ),
             flagged,
         )
     }

@@ -118,7 +118,11 @@ impl Repeats<'_> {
     /// and every label is a number, else equally spaced.
     fn layout(&self) -> (RepeatedLayout, Vec<String>) {
         let data = self.data;
-        let counts: Vec<usize> = self.within.iter().map(|&f| data.levels[f].len()).collect();
+        let counts: Vec<usize> = self
+            .within
+            .iter()
+            .map(|&f| data.layout.levels[f].len())
+            .collect();
         let occasion = |row: &[usize]| {
             self.within
                 .iter()
@@ -130,7 +134,7 @@ impl Repeats<'_> {
             labels = labels
                 .iter()
                 .flat_map(|l| {
-                    data.levels[f].iter().map(move |v| {
+                    data.layout.levels[f].iter().map(move |v| {
                         if l.is_empty() {
                             v.clone()
                         } else {
@@ -141,7 +145,7 @@ impl Repeats<'_> {
                 .collect();
         }
         let times = match self.within {
-            [f] => data.levels[*f]
+            [f] => data.layout.levels[*f]
                 .iter()
                 .map(|l| l.trim().parse::<f64>().ok().filter(|t| t.is_finite()))
                 .collect::<Option<Vec<f64>>>(),
@@ -149,7 +153,7 @@ impl Repeats<'_> {
         };
         let n = data.offsets.len();
         let layout = RepeatedLayout {
-            subjects: data.levels[self.subject].len(),
+            subjects: data.layout.levels[self.subject].len(),
             subject_of: (0..n).map(|i| data.row(i)[self.subject]).collect(),
             occasions: labels.len(),
             occasion_of: (0..n).map(|i| occasion(data.row(i))).collect(),

@@ -63,7 +63,7 @@ pub(super) fn profile(
         } else {
             Vec::new()
         },
-        subjects_total: data.levels[subject].len(),
+        subjects_total: data.layout.levels[subject].len(),
     })
 }
 
@@ -75,8 +75,8 @@ fn subject_lines(
     time: usize,
     group: Option<usize>,
 ) -> Vec<(usize, Vec<f64>)> {
-    let subjects = data.levels[subject].len().min(PROFILE_SUBJECTS);
-    let times = data.levels[time].len();
+    let subjects = data.layout.levels[subject].len().min(PROFILE_SUBJECTS);
+    let times = data.layout.levels[time].len();
     let mut sums = vec![vec![(0.0, 0usize); times]; subjects];
     let mut groups = vec![0usize; subjects];
     for i in 0..data.offsets.len() {

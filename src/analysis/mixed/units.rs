@@ -44,7 +44,7 @@ pub(super) fn units(
                     let labels: Vec<&str> = factors
                         .iter()
                         .zip(*k)
-                        .map(|(&f, &l)| data.levels[f][l].as_str())
+                        .map(|(&f, &l)| data.layout.levels[f][l].as_str())
                         .collect();
                     labels.join(":")
                 })
