@@ -8,28 +8,24 @@ designs; common practice for split plots, e.g. Cochran and Cox 1957, ch. 7).
 
 - Varieties: OLS on the 18 whole-plot means, mean ~ C(B) + C(V) (10 residual df);
   contrast weights over the three variety means; `t_test` gives estimate, SE, t, p.
-- Nitrogen: OLS on all 72 subplots, Y ~ C(B) * C(V) + C(N) + C(V):C(N), whole plots as
-  fixed effects (45 residual df, the subplot error); the contrast is over the
-  nitrogen marginal means (each averaged over varieties with equal weight), so its
-  row of L is built from the cell-means design and `t_test` tests it.
+- Nitrogen: the subplot-stratum fit of oats_subplot.py (OLS on all 72 subplots,
+  whole plots as fixed effects, 45 residual df); the contrast is over the nitrogen
+  marginal means (each averaged over varieties with equal weight), so its row of L
+  is built from the cell-means design and `t_test` tests it.
 - Jointly: `f_test` of both nitrogen contrasts on the same fit.
 
 Writes mixed_contrasts.json beside this script; tests/mixed_contrasts.rs reads it."""
 import json
 import os
-import warnings
 
 import numpy as np
-import pandas as pd
 import statsmodels
 import statsmodels.formula.api as smf
-from statsmodels.tools.sm_exceptions import SingularMatrixWarning
 
-here = os.path.dirname(os.path.abspath(__file__))
-oats = pd.read_csv(os.path.join(here, "..", "data", "open", "oats.csv"))
+from oats_subplot import here, nitrogen_row, oats, sub, varieties
+
 out = {"statsmodels": statsmodels.__version__, "variety": {}, "nitrogen": {}}
 
-varieties = ["Golden.rain", "Marvellous", "Victory"]
 plots = oats.groupby(["B", "V"], as_index=False)["Y"].mean()
 whole = smf.ols("Y ~ C(B) + C(V, levels=%r)" % varieties, data=plots).fit()
 names = list(whole.params.index)
@@ -55,29 +51,6 @@ for name, w in contrasts_v.items():
     out["variety"][name] = {"weights": w, "estimate": float(np.squeeze(t.effect)),
                             "se": float(np.squeeze(t.sd)), "t": float(np.squeeze(t.tvalue)),
                             "df": float(whole.df_resid), "p": float(t.pvalue)}
-
-rates = ["0.0cwt", "0.2cwt", "0.4cwt", "0.6cwt"]
-oats["cell"] = oats["V"] + "|" + oats["N"]
-cells = [v + "|" + n for v in varieties for n in rates]
-# Cell means coding for V x N plus whole-plot (B x V) effects summing to zero within
-# each variety: the subplot-stratum model.
-# patsy adds one column per variety to the interaction that the cell means already
-# span (rank 27 of 30 columns, 45 residual df, checked below); every contrast tested
-# here is estimable, so its estimate and SE do not depend on the generalised inverse.
-with warnings.catch_warnings():
-    warnings.simplefilter("ignore", category=SingularMatrixWarning)
-    sub = smf.ols("Y ~ 0 + C(cell, levels=%r) + C(B, Sum):C(V)" % cells, data=oats).fit()
-assert np.linalg.matrix_rank(sub.model.exog) == 27 and sub.df_resid == 45
-sub_names = list(sub.params.index)
-
-
-def nitrogen_row(weights):
-    row = np.zeros(len(sub_names))
-    for n, w in weights.items():
-        for v in varieties:
-            row[sub_names.index("C(cell, levels=%r)[%s|%s]" % (cells, v, n))] += w / 3.0
-    return row
-
 
 contrasts_n = {
     "nitrogen vs none": {"0.2cwt": 1 / 3, "0.4cwt": 1 / 3, "0.6cwt": 1 / 3, "0.0cwt": -1.0},

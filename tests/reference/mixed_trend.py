@@ -8,10 +8,10 @@ subplot stratum, and its exact test is the ordinary one on the subplot error
 split-plot analysis of Cochran and Cox 1957, ch. 7). So, as in
 mixed_contrasts.py:
 
-- OLS on all 72 subplots, Y ~ C(B) * C(V) + C(N) + C(V):C(N), whole plots as
-  fixed effects (45 residual df, the subplot error), in cell-means coding; a
-  contrast over the nitrogen marginal means (each averaged over the varieties
-  with equal weight) is a row of L built from the cell columns.
+- The subplot-stratum fit of oats_subplot.py: OLS on all 72 subplots, whole
+  plots as fixed effects (45 residual df, the subplot error), in cell-means
+  coding; a contrast over the nitrogen marginal means (each averaged over the
+  varieties with equal weight) is a row of L built from the cell columns.
 - The trend components are the textbook orthogonal polynomials for equal
   replication: the QR factorisation of the Vandermonde matrix [1, x, x², x³] of
   the scores, column d of Q being the degree-d contrast (Robson 1959). Each is
@@ -29,40 +29,18 @@ and an unequal spacing given explicitly (0, 1, 2, 4).
 Writes mixed_trend.json beside this script; tests/mixed_trend.rs reads it."""
 import json
 import os
-import warnings
 
 import numpy as np
-import pandas as pd
 import statsmodels
-import statsmodels.formula.api as smf
 from scipy import stats
-from statsmodels.tools.sm_exceptions import SingularMatrixWarning
 
-here = os.path.dirname(os.path.abspath(__file__))
-oats = pd.read_csv(os.path.join(here, "..", "data", "open", "oats.csv"))
-
-varieties = ["Golden.rain", "Marvellous", "Victory"]
-rates = ["0.0cwt", "0.2cwt", "0.4cwt", "0.6cwt"]
-oats["cell"] = oats["V"] + "|" + oats["N"]
-cells = [v + "|" + n for v in varieties for n in rates]
-# The subplot-stratum model of mixed_contrasts.py: rank 27 of 30 columns (patsy
-# adds one column per variety that the cell means already span), 45 residual df;
-# every row tested here is a contrast among the nitrogen means, so estimable, and
-# its estimate and SE do not depend on the generalised inverse.
-with warnings.catch_warnings():
-    warnings.simplefilter("ignore", category=SingularMatrixWarning)
-    sub = smf.ols("Y ~ 0 + C(cell, levels=%r) + C(B, Sum):C(V)" % cells, data=oats).fit()
-assert np.linalg.matrix_rank(sub.model.exog) == 27 and sub.df_resid == 45
-names = list(sub.params.index)
+from oats_subplot import here, oats, rates, sub
+from oats_subplot import nitrogen_row as row_by_rate
 
 
 def nitrogen_row(weights):
-    """L over the fit's columns for Σ weights[i]·(nitrogen mean i)."""
-    row = np.zeros(len(names))
-    for n, w in zip(rates, weights):
-        for v in varieties:
-            row[names.index("C(cell, levels=%r)[%s|%s]" % (cells, v, n))] += w / 3.0
-    return row
+    """L for the weights listed in the order of the rates."""
+    return row_by_rate(dict(zip(rates, weights)))
 
 
 means = np.array([oats.loc[oats["N"] == n, "Y"].mean() for n in rates])
