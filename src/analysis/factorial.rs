@@ -23,7 +23,7 @@ mod passes;
 mod planned;
 pub(super) mod read;
 pub(super) mod residuals;
-mod separate_slopes;
+pub(super) mod separate_slopes;
 mod table;
 mod terms;
 

@@ -193,18 +193,32 @@ fn region(
     let q = |x: f64| (qa * x + qb) * x + qc;
     let mut boundaries = quadratic_roots(qa, qb, qc);
     boundaries.retain(|r| r.is_finite());
-    // Pieces of the observed range between the boundaries inside it.
+    difference_region((ia, ib), &boundaries, (lo, hi), shift, q)
+}
+
+/// Where lines a and b differ, given the boundaries (centred covariate
+/// values where `excess` changes sign) and the observed range (lo, hi): the
+/// range is cut at the boundaries inside it and each piece is kept where
+/// `excess` is positive at its midpoint. `shift` (the covariate's mean)
+/// puts both back on the covariate's own scale.
+pub(crate) fn difference_region(
+    (a, b): (usize, usize),
+    boundaries: &[f64],
+    (lo, hi): (f64, f64),
+    shift: f64,
+    excess: impl Fn(f64) -> f64,
+) -> DifferenceRegion {
     let mut cuts = vec![lo];
     cuts.extend(boundaries.iter().copied().filter(|&r| r > lo && r < hi));
     cuts.push(hi);
     let significant = cuts
         .windows(2)
-        .filter(|w| q(0.5 * (w[0] + w[1])) > 0.0)
+        .filter(|w| excess(0.5 * (w[0] + w[1])) > 0.0)
         .map(|w| (shift + w[0], shift + w[1]))
         .collect();
     DifferenceRegion {
-        a: ia,
-        b: ib,
+        a,
+        b,
         boundaries: boundaries.iter().map(|r| shift + r).collect(),
         significant,
     }

@@ -9,6 +9,7 @@
 
 use super::detail::whole_if_whole;
 use crate::analysis::factorial::covariates::{Described, Slope};
+use crate::analysis::factorial::separate_slopes::difference_region;
 use crate::outcome::covariates::{
     CovariateDetail, DifferenceRegion, FTest, GroupSlope, LineDifference, SeparateSlopes,
     SlopesTest,
@@ -260,21 +261,7 @@ impl MixedCovariates<'_> {
             }
             boundaries.push(0.5 * (u0 + u1));
         }
-        let mut cuts = vec![lo];
-        cuts.extend(&boundaries);
-        cuts.push(hi);
-        let shift = d.centred.means[0];
-        let significant = cuts
-            .windows(2)
-            .filter(|w| excess(0.5 * (w[0] + w[1])) > 0.0)
-            .map(|w| (shift + w[0], shift + w[1]))
-            .collect();
-        DifferenceRegion {
-            a,
-            b,
-            boundaries: boundaries.iter().map(|u| shift + u).collect(),
-            significant,
-        }
+        difference_region((a, b), &boundaries, (lo, hi), d.centred.means[0], excess)
     }
 
     /// Line b minus line a at the covariate's mean, with its own df.
