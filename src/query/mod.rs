@@ -87,55 +87,45 @@ fn anova(block: &Block) -> Result<&AnovaSpec, Diagnostic> {
 /// terms, subjects, covariates, transformations, rank tests, wide layout
 /// and exclusions by line number (the engine's rows have no lines).
 fn refuse_unsupported(doc: &Document, spec: &AnovaSpec) -> Result<(), Diagnostic> {
-    let at = |line: usize, column: usize, what: &str, hint: &str| {
-        Err(doc
-            .error_at(
-                line,
-                Some(column),
-                format!("cell summaries cannot carry {what}"),
-            )
-            .hint(hint.to_string()))
-    };
     let model = &spec.model;
-    if model.value.several() {
-        return at(
-            model.line,
-            model.column,
+    // Each: where the block asks for it (None when it does not), what it is,
+    // and what to do instead. `subject` comes before `random` because it
+    // implies a random term of its own.
+    let refused = [
+        (
+            model.value.several().then_some((model.line, model.column)),
             "several responses",
             "write one block per response for the query",
-        );
-    }
-    if let Some(r) = &spec.random {
-        return at(
-            r.line,
-            r.column,
-            "random terms",
-            "a mixed model needs every observation: run it on the raw rows",
-        );
-    }
-    if let Some(s) = &spec.subject {
-        return at(
-            s.line,
-            s.column,
+        ),
+        (
+            spec.subject.as_ref().map(|s| (s.line, s.column)),
             "a `subject`",
             "repeated measures need every observation: run them on the raw rows",
-        );
-    }
-    if let Some(c) = &spec.covariates {
-        return at(
-            c.line,
-            c.column,
+        ),
+        (
+            spec.random.as_ref().map(|r| (r.line, r.column)),
+            "random terms",
+            "a mixed model needs every observation: run it on the raw rows",
+        ),
+        (
+            spec.covariates.as_ref().map(|c| (c.line, c.column)),
             "covariates",
             "a covariate's slope needs the observations: run the block on the raw rows",
-        );
-    }
-    if let Some(t) = &spec.transform {
-        return at(
-            t.line,
-            t.column,
+        ),
+        (
+            spec.transform.as_ref().map(|t| (t.line, t.column)),
             "a transformation",
             "transform the response in the engine and name the new column in `model`, or run the block on the raw rows",
-        );
+        ),
+    ];
+    if let Some((Some((line, column)), what, hint)) = refused.iter().find(|r| r.0.is_some()) {
+        return Err(doc
+            .error_at(
+                *line,
+                Some(*column),
+                format!("cell summaries cannot carry {what}"),
+            )
+            .hint(hint.to_string()));
     }
     if spec.method == crate::doc::block::Omnibus::Ranks {
         return Err(doc

@@ -68,18 +68,26 @@ fn only_the_from_clause_differs_between_engines() {
 
 #[test]
 fn unsupported_blocks_are_refused_with_the_reason() {
+    // The block's lines: 1 the fence, 2 `id`, 3 `data`, 4 `model`, 5 the
+    // key under test; each refusal points at the line that asks for it,
+    // where it has one.
     let cases = [
-        ("model: y ~ g\nrandom: plot", "random terms"),
-        ("model: y ~ g\ncovariate: x", "covariates"),
-        ("model: y ~ g\ntransform: log", "a transformation"),
-        ("model: y ~ g\nexclude: 4: spilled", "line numbers"),
-        ("model: y ~ g\nmethod: ranks", "rank tests"),
-        ("model: y ~ n", "name of a summary column"),
+        ("model: y, z ~ g", "several responses", Some(4)),
+        ("model: y ~ g\nrandom: plot", "random terms", Some(5)),
+        ("model: y ~ g * time\nsubject: animal", "a `subject`", Some(5)),
+        ("model: y ~ g\ncovariate: x", "covariates", Some(5)),
+        ("model: y ~ g\ntransform: log", "a transformation", Some(5)),
+        ("model: y ~ g\nexclude: 4: spilled", "line numbers", None),
+        ("model: y ~ g\nmethod: ranks", "rank tests", Some(4)),
+        ("model: y ~ n", "name of a summary column", Some(4)),
     ];
-    for (keys, expected) in cases {
+    for (keys, expected, line) in cases {
         let d = doc(&format!("data: d.csv\n{keys}"));
         let e = cell_query(&d, &options(Source::Table("rows".into()))).unwrap_err();
         assert!(e.message.contains(expected), "{keys}: {}", e.message);
+        if let Some(line) = line {
+            assert_eq!(e.place.and_then(|p| p.line), Some(line), "{keys}");
+        }
     }
 }
 
