@@ -74,7 +74,11 @@ fn unsupported_blocks_are_refused_with_the_reason() {
     let cases = [
         ("model: y, z ~ g", "several responses", Some(4)),
         ("model: y ~ g\nrandom: plot", "random terms", Some(5)),
-        ("model: y ~ g * time\nsubject: animal", "a `subject`", Some(5)),
+        (
+            "model: y ~ g * time\nsubject: animal",
+            "a `subject`",
+            Some(5),
+        ),
         ("model: y ~ g\ncovariate: x", "covariates", Some(5)),
         ("model: y ~ g\ntransform: log", "a transformation", Some(5)),
         ("model: y ~ g\nexclude: 4: spilled", "line numbers", None),

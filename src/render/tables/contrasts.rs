@@ -40,8 +40,9 @@ pub fn contrasts_table(
         (
             family_table_id(o, "pairs", family),
             format!(
-                "Table {number}. Pairwise comparisons of {} means{} ({}).",
+                "Table {number}. Pairwise comparisons of {} means of {}{} ({}).",
                 family_subject(o, family),
+                super::measure(o),
                 family_slice(o, family),
                 c.method.title()
             ),
@@ -172,8 +173,16 @@ fn one_factor_caption(o: &LinearOutcome, c: &Comparison, number: usize) -> Strin
         _ => format!("{conf} simultaneous intervals"),
     };
     let what = match c.method {
-        Method::Dunnett => "Treatment–control comparisons".to_string(),
-        _ => format!("Pairwise comparisons of {} levels", super::factors_text(o)),
+        Method::Dunnett => format!(
+            "Treatment–control comparisons of {} by {}",
+            super::measure(o),
+            super::factors_text(o)
+        ),
+        _ => format!(
+            "Pairwise comparisons of {} between {} levels",
+            super::measure(o),
+            super::factors_text(o)
+        ),
     };
     format!("Table {number}. {what} ({}, {interval}).", c.method.title())
 }

@@ -110,7 +110,8 @@ pub fn comparison_table(
         number,
         id: format!("{}-structures", o.id),
         caption: format!(
-            "Table {number}. Covariance structures over {} compared (REML, same fixed effects).",
+            "Table {number}. Covariance structures for {} over {} compared (REML, same fixed effects).",
+            measure(o),
             shown_term(&o.presentation.plots, &c.factor)
         ),
         columns: vec![

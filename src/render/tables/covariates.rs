@@ -336,8 +336,9 @@ pub fn lines_table(
     TableView {
         id: format!("{}-lines", o.id),
         caption: format!(
-            "Table {number}. Differences between the {} lines at {name} = {} (separate slopes).",
+            "Table {number}. Differences between the {} lines of {} at {name} = {} (separate slopes).",
             groups_shown(o, d),
+            super::measure(o),
             fixed(cov.mean, mean_digits(cov))
         ),
         number,

@@ -191,7 +191,8 @@ pub fn pairs_table(
         number,
         id: format!("{}-pairs", o.id),
         caption: format!(
-            "Table {number}. Pairwise comparisons of {factor} levels by their rank sums ({}, {}).",
+            "Table {number}. Pairwise comparisons of {} between {factor} levels by their rank sums ({}, {}).",
+            measure(o),
             c.method.title(),
             if conover {
                 "per pair, after Friedman's test"

@@ -81,7 +81,8 @@ pub fn planned_table(
     TableView {
         id: format!("{}-contrasts", o.id),
         caption: format!(
-            "Table {number}. Planned contrasts among the {factor} means ({}).",
+            "Table {number}. Planned contrasts among the {factor} means of {} ({}).",
+            super::measure(o),
             adjustment_words(d.adjust)
         ),
         number,

@@ -160,7 +160,8 @@ pub fn slice_pairs_table(
         number,
         id: format!("{}-cell-pairs", o.id),
         caption: format!(
-            "Table {number}. Pairwise comparisons of cell means within rows and within columns ({}).",
+            "Table {number}. Pairwise comparisons of cell means of {} within rows and within columns ({}).",
+            measure(o),
             c.method.title()
         ),
         columns,
