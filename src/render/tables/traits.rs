@@ -114,7 +114,7 @@ fn trait_table(t: &TraitsOutcome, number: usize) -> TableView {
         id: format!("{}-traits", t.id),
         caption: caption(number, &t.caption, || {
             format!(
-                "Trait table: means of {} by {}, with their precision and tests",
+                "Trait table: means of {} by {}, with their precision and tests.",
                 join_words(&traits),
                 join_words(&factors)
             )
