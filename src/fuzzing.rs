@@ -246,6 +246,47 @@ pub fn expand(data: &[u8]) {
     let _ = compile("fuzz.md", data, &Fixed, Format::Docx);
 }
 
+/// The engines on hostile data: the input is the CSV every block of a
+/// fixed document reads (columns y, a, b, u, t, x: a response, two
+/// treatment factors, a unit or subject, a numeric time or rate, a
+/// covariate), analysed as a split plot, with a covariate, as repeated
+/// measures with and without a covariance structure, with trends, a
+/// transformation, two traits and a rank test. Whatever the values, layout
+/// or emptiness of the cells, each block ends in a report or an error.
+pub fn engines(data: &[u8]) {
+    let _ = compile(
+        "fuzz.md",
+        ENGINE_BLOCKS.as_bytes(),
+        &Bytes(data),
+        Format::Html,
+    );
+}
+
+/// Every path of a fuzzed document reads the same bytes.
+struct Bytes<'a>(&'a [u8]);
+
+impl World for Bytes<'_> {
+    fn read(&self, _path: &str) -> std::io::Result<Vec<u8>> {
+        Ok(self.0.to_vec())
+    }
+    fn display(&self, path: &str) -> String {
+        path.to_string()
+    }
+}
+
+/// The document of [`engines`]: one block per engine and model form.
+const ENGINE_BLOCKS: &str = "```anova\nid: split\ndata: d.csv\nmodel: y ~ a * b\nrandom: u + u:a\ncompare: tukey\ncells: yes\n```\n\n\
+```anova\nid: kr\ndata: d.csv\nmodel: y ~ a + b\nrandom: u\nddf: satterthwaite\ncompare: lsd\n```\n\n\
+```anova\nid: mixed_cov\ndata: d.csv\nmodel: y ~ a\nrandom: u\ncovariate: x\n```\n\n\
+```anova\nid: repeated\ndata: d.csv\nmodel: y ~ a * t\nsubject: u\ncompare: tukey\nwithin: t\n```\n\n\
+```anova\nid: structured\ndata: d.csv\nmodel: y ~ a * t\nsubject: u\ncovariance: autoregressive, compare\n```\n\n\
+```anova\nid: ancova\ndata: d.csv\nmodel: y ~ a\ncovariate: x\ncompare: tukey\n```\n\n\
+```anova\nid: trend\ndata: d.csv\nmodel: y ~ t\ntrend: t\n```\n\n\
+```anova\nid: mixed_trend\ndata: d.csv\nmodel: y ~ a * t\nrandom: u\ntrend: t\n```\n\n\
+```anova\nid: logged\ndata: d.csv\nmodel: y ~ a + b\ntransform: log\ncompare: tukey\n```\n\n\
+```anova\nid: traits\ndata: d.csv\nmodel: y, x ~ a * b\n```\n\n\
+```anova\nid: ranks\ndata: d.csv\nmodel: y ~ a + u\nblock: u\nmethod: ranks\n```\n";
+
 /// Block-cache entries: arbitrary bytes as an entry, and as the payload of
 /// an entry with a valid checksum and header (which only a forger could
 /// write), must open as a miss or a result, never panic.

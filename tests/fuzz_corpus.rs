@@ -10,7 +10,7 @@ type Target = fn(&[u8]);
 #[test]
 fn every_corpus_input_is_handled_without_a_panic() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fuzz/corpus");
-    let targets: [(&str, Target); 10] = [
+    let targets: [(&str, Target); 11] = [
         ("block_parser", sheaf::fuzzing::block_parser),
         ("formula", sheaf::fuzzing::formula),
         ("document", sheaf::fuzzing::document),
@@ -21,6 +21,7 @@ fn every_corpus_input_is_handled_without_a_panic() {
         ("spreadsheet", sheaf::fuzzing::spreadsheet),
         ("expression", sheaf::fuzzing::expression),
         ("parquet", sheaf::fuzzing::parquet),
+        ("engines", sheaf::fuzzing::engines),
     ];
     let mut replayed = 0;
     for (name, run) in targets {
