@@ -40,8 +40,13 @@ pub fn contrasts_table(
         (
             family_table_id(o, "pairs", family),
             format!(
-                "Table {number}. Pairwise comparisons of {} means of {}{} ({}).",
+                "Table {number}. Pairwise comparisons of {} {} of {}{} ({}).",
                 family_subject(o, family),
+                if o.covariates.is_some() {
+                    "adjusted means"
+                } else {
+                    "means"
+                },
                 super::measure(o),
                 family_slice(o, family),
                 c.method.title()
