@@ -339,6 +339,21 @@ fn cases() -> Vec<Case> {
             doc_with("id: 3rd\ndata: plants.csv\nmodel: weight ~ group\n"),
             vec!["`3rd` is not a usable id", "report.md:4"],
         ),
+        with_data(
+            case(
+                "two random terms grouping alike",
+                // Each block holds one level of `group`, so `block:group`
+                // groups the plots exactly as `block` does.
+                doc_with(
+                    "data: plants.csv\nmodel: weight ~ group\nrandom: block + block:group\n",
+                ),
+                vec![
+                    "random terms 'block' and 'block:group' group the observations in the same way",
+                    "report.md:6:9",
+                ],
+            ),
+            b"weight,group,block\n4.17,ctrl,b1\n5.58,ctrl,b1\n4.81,trt1,b2\n4.17,trt1,b2\n6.31,ctrl,b3\n5.12,ctrl,b3\n4.4,trt1,b4\n4.9,trt1,b4\n",
+        ),
         Case {
             name: "document not UTF-8",
             document: String::new(),

@@ -110,12 +110,8 @@ pub(super) fn run_mixed(request: Request<'_>) -> Analysis {
             "drop the interaction from `model`, or check the data for missing cells",
         ));
     }
-    let fit = mixed::fit(&data.offsets, &design, &units.terms).map_err(|e| {
-        errors.model(
-            format!("the mixed model could not be fitted: {e}"),
-            "check that every random term names units with several observations each, and that the fixed terms are estimable",
-        )
-    })?;
+    let fit =
+        mixed::fit(&data.offsets, &design, &units.terms).map_err(|e| fit_error(&errors, e))?;
     let (repeated, structured) = repeated_reading(&errors, &names, &data, &model, &design)?;
     let predictions = fit
         .predictions(&data.offsets, &design, &units.terms)
@@ -775,4 +771,25 @@ fn fixed_cells(layout: &Layout) -> (Vec<usize>, usize) {
 /// Levels of every factor of the data (fixed and random-only).
 fn levels_of(data: &FactorialRows) -> Vec<usize> {
     data.layout.levels.iter().map(Vec::len).collect()
+}
+
+/// A fit that failed, as a diagnostic: a random term that cannot be told
+/// apart from another or from the residual points at `random`; anything
+/// else at the model.
+fn fit_error(errors: &Errors<'_>, e: mixed::MixedError) -> Diagnostic {
+    let message = format!("the mixed model could not be fitted: {e}");
+    match (&e, &errors.spec.random) {
+        (
+            mixed::MixedError::SameGrouping { .. } | mixed::MixedError::DuplicatesResidual { .. },
+            Some(random),
+        ) => errors.explain(
+            (errors.doc)
+                .error_at(random.line, Some(random.column), message)
+                .hint("each random term must hold several observations per level and group them differently from every other term"),
+        ),
+        _ => errors.model(
+            message,
+            "check that every random term names units with several observations each, and that the fixed terms are estimable",
+        ),
+    }
 }

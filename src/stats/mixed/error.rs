@@ -35,6 +35,10 @@ pub enum MixedError {
     /// Every level of the term holds one observation, so the term is the
     /// residual under another name and the two variances cannot be told apart.
     DuplicatesResidual { term: String },
+    /// Two random terms split the observations into the same groups (each
+    /// level of one holds exactly the observations of one level of the
+    /// other), so their variances cannot be told apart.
+    SameGrouping { first: String, second: String },
     /// A factorisation failed: the fixed design or a covariance is singular.
     Singular { what: &'static str },
     /// The optimiser stopped without meeting the convergence criterion.
@@ -114,6 +118,12 @@ impl fmt::Display for MixedError {
                 "random term '{term}' has one observation per level, so its variance cannot be told apart \
                  from the residual variance (the model is not identifiable); remove the term"
             ),
+            Self::SameGrouping { first, second } => write!(
+                f,
+                "random terms '{first}' and '{second}' group the observations in the same way \
+                 (each level of one holds exactly the observations of one level of the other), so \
+                 their variances cannot be told apart (the model is not identifiable); remove one of them"
+            ),
             Self::Singular { what } => write!(f, "{what} is singular"),
             Self::NotConverged {
                 iterations,
@@ -121,12 +131,16 @@ impl fmt::Display for MixedError {
                 gradient,
             } => write!(
                 f,
-                "REML did not converge in {iterations} iterations (last criterion {criterion}, gradient {gradient:?})"
+                "REML did not converge in {iterations} iterations (last criterion {}, largest gradient component {})",
+                short(*criterion),
+                short(gradient.iter().fold(0.0, |m: f64, g| m.max(g.abs())))
             ),
             Self::NotIdentified { smallest, largest } => write!(
                 f,
                 "a direction of the likelihood is flat (parameter not identified): the information has \
-                 eigenvalues from {smallest:e} to {largest:e}"
+                 eigenvalues from {} to {}",
+                short(*smallest),
+                short(*largest)
             ),
             Self::NotEstimable => write!(
                 f,
@@ -172,3 +186,13 @@ impl fmt::Display for MixedError {
 }
 
 impl std::error::Error for MixedError {}
+
+/// A number in a message: three significant digits in scientific form, a
+/// plain 0 for zero.
+fn short(x: f64) -> String {
+    if x == 0.0 {
+        "0".to_string()
+    } else {
+        format!("{x:.2e}")
+    }
+}

@@ -132,7 +132,30 @@ fn validate(y: &[f64], fixed: &FixedDesign, random: &[RandomTerm]) -> Result<(),
             });
         }
     }
+    for (i, first) in random.iter().enumerate() {
+        if let Some(second) = random[i + 1..].iter().find(|t| same_grouping(first, t)) {
+            return Err(MixedError::SameGrouping {
+                first: first.name.clone(),
+                second: second.name.clone(),
+            });
+        }
+    }
     Ok(())
+}
+
+/// Whether two random terms split the observations into the same groups:
+/// the levels of one map one-to-one onto the levels of the other.
+fn same_grouping(a: &RandomTerm, b: &RandomTerm) -> bool {
+    let mut a_to_b: Vec<Option<usize>> = vec![None; a.levels];
+    let mut b_to_a: Vec<Option<usize>> = vec![None; b.levels];
+    a.level_of.iter().zip(&b.level_of).all(|(&la, &lb)| {
+        match (a_to_b.get_mut(la), b_to_a.get_mut(lb)) {
+            (Some(forward), Some(backward)) => {
+                *forward.get_or_insert(lb) == lb && *backward.get_or_insert(la) == la
+            }
+            _ => false,
+        }
+    })
 }
 
 /// The observed information on the free parameters must be positive

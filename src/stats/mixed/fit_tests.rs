@@ -99,7 +99,27 @@ fn two_identical_terms_are_not_identified() {
         ..random[0].clone()
     };
     let err = fit(&y, &design, &[random[0].clone(), twin]).unwrap_err();
-    assert!(matches!(err, MixedError::NotIdentified { .. }), "{err:?}");
+    assert_eq!(
+        err,
+        MixedError::SameGrouping {
+            first: random[0].name.clone(),
+            second: "block again".into()
+        }
+    );
+    // Relabelled levels group the observations alike all the same.
+    let relabelled = RandomTerm {
+        name: "block relabelled".into(),
+        levels: random[0].levels + 2,
+        level_of: random[0]
+            .level_of
+            .iter()
+            .map(|l| random[0].levels + 1 - l)
+            .collect(),
+    };
+    let err = fit(&y, &design, &[random[0].clone(), relabelled]).unwrap_err();
+    assert!(matches!(err, MixedError::SameGrouping { .. }), "{err:?}");
+    // Plots nested in blocks are a different grouping, and are fitted.
+    assert!(fit(&y, &design, &random).is_ok());
 }
 
 #[test]
