@@ -234,3 +234,31 @@ fn an_open_dataset_with_a_between_factor_matches_pingouin() {
         "mixed time p",
     );
 }
+
+/// When every subject of one group misses an occasion, the univariate
+/// analysis has no subject in that group; the warning names the group by
+/// its factor and level, not by index (invented data).
+#[test]
+fn a_group_without_complete_subjects_is_named_in_the_warning() {
+    let mut csv = String::from("animal,diet,week,w\n");
+    for (animal, diet, weeks) in [
+        ("ewe-1", "A", &[1, 2, 3][..]),
+        ("ewe-2", "A", &[1, 2, 3]),
+        ("ewe-3", "A", &[1, 2, 3]),
+        ("ewe-4", "B", &[1, 2]),
+        ("ewe-5", "B", &[1, 3]),
+        ("ewe-6", "B", &[2, 3]),
+    ] {
+        for (i, week) in weeks.iter().enumerate() {
+            let w = 10.0 + *week as f64 * 1.5 + (animal.len() + i) as f64 * 0.3;
+            csv.push_str(&format!("{animal},{diet},{week},{w}\n"));
+        }
+    }
+    let doc = "# Pens\n\n```anova\nid: p\ndata: d.csv\nmodel: w ~ diet * week\nsubject: animal\ncompare: none\n```\n";
+    let r = build(doc, &[("d.csv", csv)]).expect("builds");
+    let warnings = r["blocks"][0]["warnings"].to_string();
+    assert!(
+        warnings.contains("no subject with diet = B was observed at every occasion"),
+        "{warnings}"
+    );
+}

@@ -251,7 +251,7 @@ fn univariate(
         within: &grid.counts,
         between: &terms,
     })
-    .map_err(|e| e.to_string())?;
+    .map_err(|e| refusal(&e, data, within, &between_terms, names))?;
     let mut tests = Vec::new();
     for effect in &analysis.within {
         let factors: Vec<usize> = effect.factors.iter().map(|&w| within[w]).collect();
@@ -287,4 +287,47 @@ fn univariate(
         }
     }
     Ok(tests)
+}
+
+/// Why the univariate analysis refused, with the factors and levels named
+/// (the analysis itself speaks of term and level indices).
+fn refusal(
+    e: &repeated::RepeatedError,
+    data: &FactorialRows,
+    within: &[usize],
+    between_terms: &[(Vec<usize>, BetweenTerm)],
+    names: &dyn Fn(&[usize]) -> String,
+) -> String {
+    use repeated::RepeatedError as E;
+    match *e {
+        E::EmptyLevel { term, level } => {
+            let factors = &between_terms[term].0;
+            // The level index runs over the term's factors, the last fastest.
+            let mut rest = level;
+            let mut parts: Vec<String> = factors
+                .iter()
+                .rev()
+                .map(|&f| {
+                    let count = data.layout.levels[f].len();
+                    let text = format!("{} = {}", names(&[f]), data.layout.levels[f][rest % count]);
+                    rest /= count;
+                    text
+                })
+                .collect();
+            parts.reverse();
+            format!(
+                "no subject with {} was observed at every occasion",
+                parts.join(", ")
+            )
+        }
+        E::AliasedTerm { term } => format!(
+            "among the subjects observed at every occasion, `{}` adds nothing to the terms before it",
+            names(&between_terms[term].0)
+        ),
+        E::TooFewWithinLevels { factor, levels } => format!(
+            "`{}` has {levels} level(s) among those subjects; it needs at least 2",
+            names(&[within[factor]])
+        ),
+        _ => e.to_string(),
+    }
 }
