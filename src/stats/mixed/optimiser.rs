@@ -7,7 +7,9 @@
 //! Convergence (spec 2.3.4), all three at once, tested after each step:
 //! |Δd| ≤ 1e-10·(1 + |d|); maxᵢ |Δψᵢ|/max(|ψᵢ|, |ψᵢ + Δψᵢ|) ≤ 1e-10 (a
 //! parameter that stays at 0 counts 0); and on the free parameters
-//! maxᵢ |∂d/∂ψᵢ|·|ψᵢ| ≤ 1e-6. At most 200 iterations.
+//! maxᵢ |∂d/∂ψᵢ|·|ψᵢ| ≤ 1e-6. At most 200 iterations; a Newton step that
+//! leaves ψ exactly in place ends the search early with the same answer,
+//! since every later iteration would repeat it.
 
 use nalgebra::DMatrix;
 
@@ -99,6 +101,13 @@ pub(crate) fn minimise(
         } else {
             rescaled(model, candidate, d_new)
         };
+        // A step that left ψ exactly where it was, taken with Newton already
+        // on, would be taken again at every iteration up to the cap (the
+        // next one starts from the same ψ with the same direction): stop
+        // now with the answer the cap would give.
+        if candidate == psi && newton && !settled {
+            return Err(fail());
+        }
         let step = relative_step(&psi, &candidate);
         newton |= step < NEWTON_SWITCH;
         last_move = Some(((d - d_new).abs(), step));
