@@ -200,19 +200,9 @@ fn factorial_scan(data: &[u8], table: &crate::data::Table, format: &crate::data:
     }
 }
 
-struct Fixed;
-
-impl World for Fixed {
-    fn read(&self, _path: &str) -> std::io::Result<Vec<u8>> {
-        Ok(
-            b"y,g,h\n1.5,a,p\n2.5,a,q\n3.1,b,p\n4.2,b,q\n5.3,c,p\n6.9,c,q\n2.2,a,p\n4.4,b,q\n"
-                .to_vec(),
-        )
-    }
-    fn display(&self, path: &str) -> String {
-        path.to_string()
-    }
-}
+/// The small data file every block of [`expression`] and [`expand`] reads.
+const FIXED: Bytes<'static> =
+    Bytes(b"y,g,h\n1.5,a,p\n2.5,a,q\n3.1,b,p\n4.2,b,q\n5.3,c,p\n6.9,c,q\n2.2,a,p\n4.4,b,q\n");
 
 /// The analysis part of [`expression`]'s document: every block kind and
 /// method, so that expressions can reach every context.
@@ -231,19 +221,19 @@ pub fn expression(data: &[u8]) {
         return;
     };
     let doc = format!("{EXPRESSION_BLOCKS}Quoted: {{{{ {text} }}}}\n");
-    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Html);
-    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Markdown);
-    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Tex);
-    let _ = compile("fuzz.md", doc.as_bytes(), &Fixed, Format::Docx);
+    let _ = compile("fuzz.md", doc.as_bytes(), &FIXED, Format::Html);
+    let _ = compile("fuzz.md", doc.as_bytes(), &FIXED, Format::Markdown);
+    let _ = compile("fuzz.md", doc.as_bytes(), &FIXED, Format::Tex);
+    let _ = compile("fuzz.md", doc.as_bytes(), &FIXED, Format::Docx);
 }
 
 /// Template expansion and the whole pipeline: the input is a document whose
 /// blocks all read the same small data file.
 pub fn expand(data: &[u8]) {
-    let _ = compile("fuzz.md", data, &Fixed, Format::Html);
-    let _ = compile("fuzz.md", data, &Fixed, Format::Markdown);
-    let _ = compile("fuzz.md", data, &Fixed, Format::Tex);
-    let _ = compile("fuzz.md", data, &Fixed, Format::Docx);
+    let _ = compile("fuzz.md", data, &FIXED, Format::Html);
+    let _ = compile("fuzz.md", data, &FIXED, Format::Markdown);
+    let _ = compile("fuzz.md", data, &FIXED, Format::Tex);
+    let _ = compile("fuzz.md", data, &FIXED, Format::Docx);
 }
 
 /// The engines on hostile data: the input is the CSV every block of a

@@ -118,11 +118,14 @@ fn refuse_unsupported(doc: &Document, spec: &AnovaSpec) -> Result<(), Diagnostic
             "transform the response in the engine and name the new column in `model`, or run the block on the raw rows",
         ),
     ];
-    if let Some((Some((line, column)), what, hint)) = refused.iter().find(|r| r.0.is_some()) {
+    let first = refused
+        .iter()
+        .find_map(|&(at, what, hint)| at.map(|at| (at, what, hint)));
+    if let Some(((line, column), what, hint)) = first {
         return Err(doc
             .error_at(
-                *line,
-                Some(*column),
+                line,
+                Some(column),
                 format!("cell summaries cannot carry {what}"),
             )
             .hint(hint.to_string()));

@@ -71,15 +71,10 @@ pub(crate) fn minimise(
         if !converged && iteration == MAX_ITERATIONS {
             return Err(fail());
         }
+        let use_newton = newton || iteration >= NEWTON_AFTER;
         let found = match converged {
             true => None,
-            false => descend(
-                model,
-                (&psi, d),
-                &der,
-                &free,
-                newton || iteration >= NEWTON_AFTER,
-            )?,
+            false => descend(model, (&psi, d), &der, &free, use_newton)?,
         };
         let Some((candidate, d_new)) = found else {
             // Converged, or no decrease is possible at working precision
@@ -105,7 +100,7 @@ pub(crate) fn minimise(
         // on, would be taken again at every iteration up to the cap (the
         // next one starts from the same ψ with the same direction): stop
         // now with the answer the cap would give.
-        if candidate == psi && newton && !settled {
+        if candidate == psi && use_newton && !settled {
             return Err(fail());
         }
         let step = relative_step(&psi, &candidate);
